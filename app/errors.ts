@@ -1,0 +1,30 @@
+/**
+ * Errors a user can act on. The CLI and the hosts print `message` and `hint`
+ * without a stack trace and exit non-zero; anything else is a bug and keeps its
+ * stack. Subsystems subclass this so callers can tell failures apart by type.
+ */
+export class UserError extends Error {
+  /** What to do next, shown under the message. */
+  readonly hint: string | undefined;
+
+  constructor(message: string, hint?: string) {
+    super(message);
+    this.name = new.target.name;
+    this.hint = hint;
+  }
+}
+
+/** A value that crossed a boundary (file, CLI argument, IPC, HTTP) was not valid. */
+export class ValidationError extends UserError {
+  /** Where the bad value was, e.g. `parts[2].value` or `--from`. */
+  readonly where: string;
+
+  constructor(where: string, message: string, hint?: string) {
+    super(`${where}: ${message}`, hint);
+    this.where = where;
+  }
+}
+
+export function isUserError(error: unknown): error is UserError {
+  return error instanceof UserError;
+}

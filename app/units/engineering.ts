@@ -1,0 +1,80 @@
+/**
+ * Engineering notation: the one place that parses and formats SI-prefixed numbers.
+ * Accepts what bench people type: "1k", "15n", "4.7u", "4.7µ", "2meg", "1e-3",
+ * "10 kHz" (a trailing SI unit word is accepted and ignored).
+ */
+import { ValidationError } from '../errors';
+
+const PREFIX_EXPONENTS: Record<string, number> = {
+  f: -15,
+  p: -12,
+  n: -9,
+  u: -6,
+  µ: -6,
+  μ: -6, // Greek mu, which some keyboards produce instead of the micro sign
+  m: -3,
+  k: 3,
+  K: 3,
+  M: 6,
+  meg: 6,
+  MEG: 6,
+  Meg: 6,
+  G: 9,
+  T: 12,
+};
+
+/** Unit words a user may append ("10 kHz", "4.7uF"); anything else is refused. */
+const UNIT_WORDS = '(?:Hz|F|H|V|Vpp|Vrms|Vpk|A|s|Ω|ohm|ohms|deg|dB)';
+const NUMBER_PATTERN = new RegExp(
+  `^\\s*([+-]?(?:\\d+\\.?\\d*|\\.\\d+)(?:[eE][+-]?\\d+)?)\\s*(meg|Meg|MEG|[fpnuµμmkKMGT])?\\s*(${UNIT_WORDS})?\\s*$`,
+);
+
+/**
+ * Parses a number in engineering notation. `where` names the field for the error.
+ * Note: as in circuit simulators, "m" is milli and "meg"/"M" is mega.
+ */
+export function parseEngineering(text: string | number, where = 'value'): number {
+  if (typeof text === 'number') {
+    if (!Number.isFinite(text)) throw new ValidationError(where, `${text} is not a finite number`);
+    return text;
+  }
+  const match = NUMBER_PATTERN.exec(text);
+  if (!match) {
+    throw new ValidationError(
+      where,
+      `"${text}" is not a number`,
+      'Use a plain number or engineering notation such as 1k, 15n, 4.7u, 2meg, 1e-3.',
+    );
+  }
+  const mantissa = Number(match[1]);
+  const prefix = match[2];
+  const exponent = prefix === undefined ? 0 : PREFIX_EXPONENTS[prefix];
+  const value = mantissa * 10 ** exponent;
+  if (!Number.isFinite(value)) throw new ValidationError(where, `"${text}" is out of range`);
+  return value;
+}
+
+const FORMAT_PREFIXES: Array<[number, string]> = [
+  [12, 'T'],
+  [9, 'G'],
+  [6, 'M'],
+  [3, 'k'],
+  [0, ''],
+  [-3, 'm'],
+  [-6, 'µ'],
+  [-9, 'n'],
+  [-12, 'p'],
+  [-15, 'f'],
+];
+
+/** Formats with an SI prefix, e.g. formatEngineering(15e-9, 'F') → "15 nF". */
+export function formatEngineering(value: number, unit = '', significantDigits = 4): string {
+  if (!Number.isFinite(value)) return `${value}${unit ? ' ' + unit : ''}`;
+  if (value === 0) return `0${unit ? ' ' + unit : ''}`;
+  const exponent = Math.floor(Math.log10(Math.abs(value)) / 3) * 3;
+  const clamped = Math.max(-15, Math.min(12, exponent));
+  const entry = FORMAT_PREFIXES.find(([e]) => e === clamped)!;
+  const scaled = value / 10 ** clamped;
+  const text = Number(scaled.toPrecision(significantDigits)).toString();
+  return `${text} ${entry[1]}${unit}`.trimEnd();
+}

@@ -1,0 +1,3 @@
+export * from './engineering';
+export * from './decibels';
+export * from './grid';

@@ -1,0 +1,22 @@
+#!/usr/bin/env bash
+# Debian packages the tests use (see DESIGN.md "Machines here"):
+#   ngspice        reference circuit simulator for the theory checks
+#   socat          pseudo-terminal pairs for real serial-port tests
+#   chromium       end-to-end tests of the window through playwright-core
+#   poppler-utils  pdftoppm/pdftotext to open exported PDF records
+#   xvfb           a display for the Electron shell test where the binary exists
+set -euo pipefail
+PACKAGES=(ngspice socat chromium poppler-utils xvfb)
+missing=()
+for package in "${PACKAGES[@]}"; do
+  dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed" || missing+=("$package")
+done
+if [ ${#missing[@]} -eq 0 ]; then
+  echo "test packages present: ${PACKAGES[*]}"
+  exit 0
+fi
+SUDO=""
+[ "$(id -u)" -ne 0 ] && SUDO="sudo"
+export DEBIAN_FRONTEND=noninteractive
+$SUDO apt-get update -qq
+$SUDO apt-get install -y -qq --no-install-recommends "${missing[@]}"
