@@ -1,0 +1,118 @@
+/**
+ * Instrument addresses: our URL forms and the VISA resource-string syntax
+ * users already know. Parsed once here; everything else takes the parsed form.
+ *
+ *   serial:///dev/ttyUSB0?baud=9600&data=8&parity=none&stop=1&flow=none
+ *   tcp://HOST:5025                 (port defaults to 5025, the common SCPI socket port)
+ *   ASRL/dev/ttyUSB0::INSTR         (serial device path)
+ *   ASRL3::INSTR                    (serial port number: COM3 on Windows, /dev/ttyS2 elsewhere)
+ *   TCPIP::HOST::5025::SOCKET, TCPIP0::HOST::PORT::SOCKET
+ */
+import { AddressError } from './errors';
+import { DEFAULT_SERIAL, type FlowControl, type Parity, type SerialSettings } from './serial-transport';
+
+export type InstrumentAddress =
+  | { kind: 'serial'; serial: SerialSettings }
+  | { kind: 'tcp'; host: string; port: number };
+
+export const DEFAULT_TCP_PORT = 5025;
+
+const PARITIES: Parity[] = ['none', 'even', 'odd', 'mark', 'space'];
+const FLOWS: FlowControl[] = ['none', 'rtscts', 'xonxoff'];
+
+export function parseAddress(text: string): InstrumentAddress {
+  const address = text.trim();
+  if (address === '') throw new AddressError(text, 'is empty');
+  if (/^serial:/i.test(address)) return parseSerialUrl(address);
+  if (/^tcp:/i.test(address)) return parseTcpUrl(address);
+  if (/^ASRL/i.test(address)) return parseVisaSerial(address);
+  if (/^TCPIP\d*::/i.test(address)) return parseVisaTcp(address);
+  throw new AddressError(text, 'is not a recognised address form');
+}
+
+/** Canonical URL form, used in logs, the store and the traffic console. */
+export function formatAddress(address: InstrumentAddress): string {
+  if (address.kind === 'tcp') return `tcp://${address.host.includes(':') ? `[${address.host}]` : address.host}:${address.port}`;
+  const s = address.serial;
+  return `serial://${s.path}?baud=${s.baudRate}&data=${s.dataBits}&parity=${s.parity}&stop=${s.stopBits}&flow=${s.flow}`;
+}
+
+function parseSerialUrl(address: string): InstrumentAddress {
+  const match = /^serial:\/\/([^?]+)(?:\?(.*))?$/i.exec(address);
+  if (!match || match[1] === '') throw new AddressError(address, 'a serial address needs a device path, e.g. serial:///dev/ttyUSB0');
+  const serial: SerialSettings = { path: decodeURIComponent(match[1]), ...DEFAULT_SERIAL };
+  for (const pair of (match[2] ?? '').split('&').filter((p) => p !== '')) {
+    const [key, value = ''] = pair.split('=');
+    applySerialSetting(address, serial, key.toLowerCase(), value.toLowerCase());
+  }
+  return { kind: 'serial', serial };
+}
+
+function applySerialSetting(address: string, serial: SerialSettings, key: string, value: string): void {
+  const number = Number(value);
+  switch (key) {
+    case 'baud':
+      if (!Number.isInteger(number) || number < 50 || number > 4_000_000) throw new AddressError(address, `baud "${value}" is not a baud rate (50–4000000)`);
+      serial.baudRate = number;
+      return;
+    case 'data':
+      if (![5, 6, 7, 8].includes(number)) throw new AddressError(address, `data "${value}" must be 5, 6, 7 or 8`);
+      serial.dataBits = number as SerialSettings['dataBits'];
+      return;
+    case 'parity':
+      if (!PARITIES.includes(value as Parity)) throw new AddressError(address, `parity "${value}" must be one of ${PARITIES.join(', ')}`);
+      serial.parity = value as Parity;
+      return;
+    case 'stop':
+      if (![1, 1.5, 2].includes(number)) throw new AddressError(address, `stop "${value}" must be 1, 1.5 or 2`);
+      serial.stopBits = number as SerialSettings['stopBits'];
+      return;
+    case 'flow':
+      if (!FLOWS.includes(value as FlowControl)) throw new AddressError(address, `flow "${value}" must be one of ${FLOWS.join(', ')}`);
+      serial.flow = value as FlowControl;
+      return;
+    default:
+      throw new AddressError(address, `unknown serial setting "${key}" (use baud, data, parity, stop, flow)`);
+  }
+}
+
+function parseTcpUrl(address: string): InstrumentAddress {
+  const match = /^tcp:\/\/(\[[^\]]+\]|[^:/?#\s]+)(?::(\d+))?\/?$/i.exec(address);
+  if (!match) throw new AddressError(address, 'a TCP address looks like tcp://HOST:PORT');
+  const host = match[1].replace(/^\[|\]$/g, '');
+  return { kind: 'tcp', host, port: parsePort(address, match[2]) };
+}
+
+function parseVisaSerial(address: string): InstrumentAddress {
+  const match = /^ASRL(.+?)::INSTR$/i.exec(address);
+  if (!match) throw new AddressError(address, 'a VISA serial resource looks like ASRL/dev/ttyUSB0::INSTR or ASRL3::INSTR');
+  const board = match[1];
+  let path: string;
+  if (/^\d+$/.test(board)) {
+    const number = Number(board);
+    if (number < 1) throw new AddressError(address, 'VISA serial port numbers start at 1');
+    // VISA numbers serial ports from 1; on Linux the first is /dev/ttyS0.
+    path = process.platform === 'win32' ? `COM${number}` : `/dev/ttyS${number - 1}`;
+  } else {
+    path = board;
+  }
+  return { kind: 'serial', serial: { path, ...DEFAULT_SERIAL } };
+}
+
+function parseVisaTcp(address: string): InstrumentAddress {
+  const parts = address.split('::');
+  if (parts.length === 4 && /^SOCKET$/i.test(parts[3]) && parts[1] !== '') {
+    return { kind: 'tcp', host: parts[1], port: parsePort(address, parts[2]) };
+  }
+  if (parts.length >= 2 && /^INSTR$/i.test(parts[parts.length - 1])) {
+    throw new AddressError(address, 'only raw-socket VISA resources (…::PORT::SOCKET) are supported, not INSTR (VXI-11/HiSLIP)');
+  }
+  throw new AddressError(address, 'a VISA TCP resource looks like TCPIP::HOST::5025::SOCKET');
+}
+
+function parsePort(address: string, text: string | undefined): number {
+  if (text === undefined || text === '') return DEFAULT_TCP_PORT;
+  const port = Number(text);
+  if (!Number.isInteger(port) || port < 1 || port > 65535) throw new AddressError(address, `port "${text}" must be 1–65535`);
+  return port;
+}

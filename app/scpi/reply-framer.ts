@@ -1,0 +1,98 @@
+/**
+ * Splits the incoming byte stream into replies. A reply is either a line of
+ * ASCII ending in LF or CR LF (IEEE 488.2 §8.5 response message terminator;
+ * CR LF is common practice on serial links), or a definite-length block
+ * (IEEE 488.2 §8.7.9) followed by the terminator. Blocks are framed by their
+ * byte count so binary data containing LF/CR passes intact.
+ */
+
+export type FrameResult =
+  | { kind: 'text'; text: string; consumed: number }
+  | { kind: 'block'; bytes: Uint8Array; consumed: number }
+  | { kind: 'malformed'; description: string; preview: string; consumed: number }
+  | { kind: 'incomplete' };
+
+const LF = 0x0a;
+const CR = 0x0d;
+const HASH = 0x23;
+const DIGIT_0 = 0x30;
+const DIGIT_9 = 0x39;
+
+/** A line longer than this without a terminator is garbage, not a reply. */
+export const MAX_TEXT_REPLY_BYTES = 1 << 20;
+
+export function frameReply(buffer: Uint8Array): FrameResult {
+  if (buffer.length === 0) return { kind: 'incomplete' };
+  if (buffer[0] === HASH) {
+    if (buffer.length < 2) return { kind: 'incomplete' };
+    const digitCount = buffer[1] - DIGIT_0;
+    if (digitCount >= 1 && digitCount <= 9) return frameDefiniteBlock(buffer, digitCount);
+    // "#0" is the indefinite form: data up to the terminator (not binary-safe on a byte stream).
+    if (digitCount === 0) return frameIndefiniteBlock(buffer);
+    // Otherwise "#H1F", "#B101", "#Q17": non-decimal numerics, plain text.
+  }
+  return frameTextLine(buffer);
+}
+
+function frameDefiniteBlock(buffer: Uint8Array, digitCount: number): FrameResult {
+  const headerEnd = 2 + digitCount;
+  if (buffer.length < headerEnd) return { kind: 'incomplete' };
+  let length = 0;
+  for (let i = 2; i < headerEnd; i++) {
+    const byte = buffer[i];
+    if (byte < DIGIT_0 || byte > DIGIT_9) return malformedUpToLineEnd(buffer, 'a block header with a non-digit length');
+    length = length * 10 + (byte - DIGIT_0);
+  }
+  const dataEnd = headerEnd + length;
+  if (buffer.length < dataEnd + 1) return { kind: 'incomplete' };
+  const bytes = buffer.slice(headerEnd, dataEnd);
+  if (buffer[dataEnd] === LF) return { kind: 'block', bytes, consumed: dataEnd + 1 };
+  if (buffer[dataEnd] === CR) {
+    if (buffer.length < dataEnd + 2) return { kind: 'incomplete' };
+    if (buffer[dataEnd + 1] === LF) return { kind: 'block', bytes, consumed: dataEnd + 2 };
+  }
+  return { kind: 'malformed', description: `a block of ${length} bytes not followed by a line terminator`, preview: preview(buffer.subarray(0, 40)), consumed: dataEnd };
+}
+
+function frameIndefiniteBlock(buffer: Uint8Array): FrameResult {
+  const end = buffer.indexOf(LF);
+  if (end < 0) return buffer.length > MAX_TEXT_REPLY_BYTES ? malformedAll(buffer) : { kind: 'incomplete' };
+  return { kind: 'block', bytes: buffer.slice(2, end), consumed: end + 1 };
+}
+
+function frameTextLine(buffer: Uint8Array): FrameResult {
+  const end = buffer.indexOf(LF);
+  if (end < 0) return buffer.length > MAX_TEXT_REPLY_BYTES ? malformedAll(buffer) : { kind: 'incomplete' };
+  let textEnd = end;
+  if (textEnd > 0 && buffer[textEnd - 1] === CR) textEnd--;
+  for (let i = 0; i < textEnd; i++) {
+    const byte = buffer[i];
+    // Response data is 7-bit printable ASCII (IEEE 488.2 §8.7); anything else means a wrong baud rate or noise.
+    if ((byte < 0x20 || byte > 0x7e) && byte !== 0x09) {
+      return { kind: 'malformed', description: 'a line of printable ASCII', preview: preview(buffer.subarray(0, Math.min(end, 80))), consumed: end + 1 };
+    }
+  }
+  let text = '';
+  for (let i = 0; i < textEnd; i++) text += String.fromCharCode(buffer[i]);
+  return { kind: 'text', text, consumed: end + 1 };
+}
+
+function malformedUpToLineEnd(buffer: Uint8Array, description: string): FrameResult {
+  const end = buffer.indexOf(LF);
+  if (end < 0) return buffer.length > MAX_TEXT_REPLY_BYTES ? malformedAll(buffer) : { kind: 'incomplete' };
+  return { kind: 'malformed', description, preview: preview(buffer.subarray(0, Math.min(end, 80))), consumed: end + 1 };
+}
+
+function malformedAll(buffer: Uint8Array): FrameResult {
+  return { kind: 'malformed', description: `a reply terminated within ${MAX_TEXT_REPLY_BYTES} bytes`, preview: preview(buffer.subarray(0, 80)), consumed: buffer.length };
+}
+
+/** Printable view of raw bytes for messages and the traffic log. */
+export function preview(bytes: Uint8Array): string {
+  let out = '';
+  for (const byte of bytes) {
+    if (byte >= 0x20 && byte <= 0x7e) out += String.fromCharCode(byte);
+    else out += `\\x${byte.toString(16).padStart(2, '0')}`;
+  }
+  return out;
+}

@@ -1,0 +1,255 @@
+/**
+ * A SCPI conversation with one instrument over any Transport. One command is
+ * in flight at a time (IEEE 488.2 §6 message exchange: a query's reply must be
+ * read before the next query), each with its own timeout. Replies are framed
+ * here, not by a line parser, so binary block data passes intact.
+ */
+import { ValidationError } from '../errors';
+import type { InstrumentIdentity } from '../service/contract';
+import { parseErrorEntry, type InstrumentErrorEntry } from './error-entry';
+import { ScpiDisconnectedError, ScpiInstrumentError, ScpiMalformedReplyError, ScpiTimeoutError } from './errors';
+import { parseIdentity } from './identity';
+import { parseReading, type Reading } from './reading';
+import { frameReply, preview } from './reply-framer';
+import { TrafficLog } from './traffic-log';
+import type { Transport } from './transport';
+
+export interface SessionOptions {
+  /** Default per-command timeout in seconds (wall clock). */
+  timeoutS?: number;
+  /** Shared traffic log; a private one is made when absent. */
+  traffic?: TrafficLog;
+  /** Upper bound on SYSTem:ERRor? reads in drainErrors (a stuck queue must not loop forever). */
+  maxErrorReads?: number;
+}
+
+export interface CommandOptions {
+  timeoutS?: number;
+}
+
+type Reply = { kind: 'text'; text: string } | { kind: 'block'; bytes: Uint8Array };
+
+interface PendingReply {
+  command: string;
+  resolve(reply: Reply): void;
+  reject(error: Error): void;
+}
+
+const encoder = new TextEncoder();
+export const DEFAULT_TIMEOUT_S = 5;
+const DEFAULT_MAX_ERROR_READS = 32;
+
+export class ScpiSession {
+  readonly traffic: TrafficLog;
+  private readonly timeoutS: number;
+  private readonly maxErrorReads: number;
+  private buffer: Uint8Array = new Uint8Array(0);
+  private pending: PendingReply | undefined;
+  private queue: Promise<unknown> = Promise.resolve();
+  private closedReason: string | undefined;
+
+  constructor(
+    private readonly transport: Transport,
+    options: SessionOptions = {},
+  ) {
+    this.timeoutS = options.timeoutS ?? DEFAULT_TIMEOUT_S;
+    this.maxErrorReads = options.maxErrorReads ?? DEFAULT_MAX_ERROR_READS;
+    this.traffic = options.traffic ?? new TrafficLog();
+    transport.onData((bytes) => this.receive(bytes));
+    transport.onClose((reason) => this.linkClosed(reason));
+    if (!transport.isOpen) this.closedReason = 'not opened';
+  }
+
+  /** Opens the transport and returns a session on it. */
+  static async open(transport: Transport, options: SessionOptions = {}): Promise<ScpiSession> {
+    await transport.open();
+    return new ScpiSession(transport, options);
+  }
+
+  get link(): string {
+    return this.transport.description;
+  }
+
+  get isOpen(): boolean {
+    return this.closedReason === undefined;
+  }
+
+  /** Sends a command that has no reply. */
+  write(command: string): Promise<void> {
+    return this.enqueue(async () => {
+      await this.send(command);
+    });
+  }
+
+  /** Sends a query and returns its reply as text (terminator removed). */
+  query(command: string, options: CommandOptions = {}): Promise<string> {
+    return this.enqueue(async () => {
+      const reply = await this.exchange(command, options);
+      if (reply.kind !== 'text') throw new ScpiMalformedReplyError(command, `<block of ${reply.bytes.length} bytes>`, 'a text reply');
+      return reply.text;
+    });
+  }
+
+  /** Sends a query whose reply is a definite-length block and returns the block's bytes. */
+  queryBlock(command: string, options: CommandOptions = {}): Promise<Uint8Array> {
+    return this.enqueue(async () => {
+      const reply = await this.exchange(command, options);
+      if (reply.kind !== 'block') throw new ScpiMalformedReplyError(command, reply.text, 'a definite-length block (#<n><length><bytes>)');
+      return reply.bytes;
+    });
+  }
+
+  /** Sends a query with one numeric reply, classifying SCPI overrange/NaN values. */
+  async queryReading(command: string, options: CommandOptions = {}): Promise<Reading> {
+    return parseReading(await this.query(command, options), command);
+  }
+
+  async identify(): Promise<InstrumentIdentity> {
+    return parseIdentity(await this.query('*IDN?'));
+  }
+
+  /** *RST: instrument to its reset state (IEEE 488.2 §10.32, recalled from memory). */
+  reset(): Promise<void> {
+    return this.write('*RST');
+  }
+
+  /** *CLS: clears the status registers and the error queue (IEEE 488.2 §10.3, recalled from memory). */
+  clearStatus(): Promise<void> {
+    return this.write('*CLS');
+  }
+
+  /** *OPC?: waits until pending operations finish; the instrument answers "1". */
+  async operationComplete(options: CommandOptions = {}): Promise<void> {
+    const reply = await this.query('*OPC?', options);
+    if (reply.trim() !== '1' && reply.trim() !== '+1') throw new ScpiMalformedReplyError('*OPC?', reply, '"1"');
+  }
+
+  /** *ESR?: reads and clears the standard event status register (0–255). */
+  async eventStatus(): Promise<number> {
+    const reply = await this.query('*ESR?');
+    const value = Number(reply.trim());
+    if (!Number.isInteger(value) || value < 0 || value > 255) throw new ScpiMalformedReplyError('*ESR?', reply, 'an integer 0–255');
+    return value;
+  }
+
+  /**
+   * Reads SYSTem:ERRor? until 0,"No error" and returns what was queued, oldest
+   * first. Bounded: an instrument that never empties its queue stops us after
+   * maxErrorReads reads rather than hanging the session.
+   */
+  async drainErrors(): Promise<InstrumentErrorEntry[]> {
+    const entries: InstrumentErrorEntry[] = [];
+    for (let i = 0; i < this.maxErrorReads; i++) {
+      const entry = parseErrorEntry(await this.query('SYSTem:ERRor?'), 'SYSTem:ERRor?');
+      if (entry.code === 0) return entries;
+      entries.push(entry);
+    }
+    return entries;
+  }
+
+  /** Drains the error queue and throws the first entry as ScpiInstrumentError, naming `command`. */
+  async throwIfErrors(command: string): Promise<void> {
+    const entries = await this.drainErrors();
+    if (entries.length > 0) throw new ScpiInstrumentError(entries[0].code, entries[0].message, command, this.link);
+  }
+
+  async close(): Promise<void> {
+    await this.transport.close();
+    this.linkClosed('closed by the application');
+  }
+
+  private enqueue<T>(operation: () => Promise<T>): Promise<T> {
+    const result = this.queue.then(operation, operation);
+    this.queue = result.catch(() => undefined);
+    return result;
+  }
+
+  private async send(command: string): Promise<void> {
+    if (/[\r\n]/.test(command)) throw new ValidationError('command', `"${command.replace(/[\r\n]/g, '⏎')}" contains a line break`, 'Send one command per line.');
+    if (this.closedReason !== undefined) throw new ScpiDisconnectedError(this.link, this.closedReason, command);
+    this.discardStaleInput();
+    this.traffic.add('sent', command, this.link);
+    try {
+      await this.transport.write(encoder.encode(`${command}\n`));
+    } catch (error) {
+      throw new ScpiDisconnectedError(this.link, (error as Error).message ?? String(error), command);
+    }
+  }
+
+  private exchange(command: string, options: CommandOptions): Promise<Reply> {
+    const timeoutS = options.timeoutS ?? this.timeoutS;
+    return new Promise<Reply>((resolve, reject) => {
+      const timer = setTimeout(() => {
+        if (this.pending !== pending) return;
+        this.pending = undefined;
+        reject(new ScpiTimeoutError(command, timeoutS, this.link));
+      }, timeoutS * 1000);
+      const pending: PendingReply = {
+        command,
+        resolve: (reply) => {
+          clearTimeout(timer);
+          resolve(reply);
+        },
+        reject: (error) => {
+          clearTimeout(timer);
+          reject(error);
+        },
+      };
+      this.pending = pending;
+      this.send(command).then(
+        () => this.deliver(),
+        (error: Error) => {
+          if (this.pending === pending) this.pending = undefined;
+          pending.reject(error);
+        },
+      );
+    });
+  }
+
+  private receive(bytes: Uint8Array): void {
+    const joined = new Uint8Array(this.buffer.length + bytes.length);
+    joined.set(this.buffer, 0);
+    joined.set(bytes, this.buffer.length);
+    this.buffer = joined;
+    this.deliver();
+  }
+
+  /** Hands a complete reply (if any) to the waiting query. */
+  private deliver(): void {
+    const pending = this.pending;
+    if (!pending) return;
+    const frame = frameReply(this.buffer);
+    if (frame.kind === 'incomplete') return;
+    this.buffer = this.buffer.slice(frame.consumed);
+    this.pending = undefined;
+    if (frame.kind === 'text') {
+      this.traffic.add('received', frame.text, this.link);
+      pending.resolve({ kind: 'text', text: frame.text });
+    } else if (frame.kind === 'block') {
+      this.traffic.add('received', `<block of ${frame.bytes.length} bytes>`, this.link);
+      pending.resolve({ kind: 'block', bytes: frame.bytes });
+    } else {
+      this.traffic.add('received', `<malformed> ${frame.preview}`, this.link);
+      pending.reject(new ScpiMalformedReplyError(pending.command, frame.preview, frame.description));
+    }
+  }
+
+  /**
+   * Bytes that arrived while no query was waiting (a reply that came after its
+   * timeout, line noise) would be taken for the next reply; drop them before
+   * sending. Common practice on links without a device-clear signal.
+   */
+  private discardStaleInput(): void {
+    if (this.buffer.length === 0) return;
+    this.traffic.add('received', `<discarded ${this.buffer.length} stale bytes> ${preview(this.buffer.subarray(0, 60))}`, this.link);
+    this.buffer = new Uint8Array(0);
+  }
+
+  private linkClosed(reason: string): void {
+    if (this.closedReason !== undefined) return;
+    this.closedReason = reason;
+    const pending = this.pending;
+    this.pending = undefined;
+    pending?.reject(new ScpiDisconnectedError(this.link, reason, pending.command));
+  }
+}
