@@ -1,0 +1,53 @@
+/** Named store failures, so callers can tell "pick another file" from "upgrade" from "skip". */
+import { UserError } from '../errors';
+
+/** The file was written by a newer Rolloff whose schema this version does not know. */
+export class StoreVersionError extends UserError {
+  constructor(
+    readonly path: string,
+    readonly fileSchemaVersion: number,
+    readonly knownSchemaVersion: number,
+    readonly writtenByAppVersion: string | undefined,
+    readonly thisAppVersion: string,
+  ) {
+    const writer = writtenByAppVersion ? ` (written by Rolloff ${writtenByAppVersion})` : '';
+    super(
+      `${path}: database schema version ${fileSchemaVersion}${writer} is newer than this Rolloff ${thisAppVersion} understands (schema version ${knownSchemaVersion}).`,
+      `Open it with Rolloff ${writtenByAppVersion ?? 'of a newer release'}${writtenByAppVersion ? ' or newer' : ''}, or choose another database with --db or ROLLOFF_DB. The file was not changed.`,
+    );
+  }
+}
+
+/** The file is not a SQLite database, or is truncated or corrupt. It is never written to. */
+export class StoreDamagedError extends UserError {
+  constructor(readonly path: string, detail: string) {
+    super(
+      `${path}: not a usable Rolloff database (${detail}).`,
+      'The file was left untouched. Restore it from a backup, or choose another database with --db or ROLLOFF_DB.',
+    );
+  }
+}
+
+/** A read-only open of a database that does not exist or still needs migrating. */
+export class StoreUnavailableError extends UserError {
+  constructor(readonly path: string, detail: string, hint: string) {
+    super(`${path}: ${detail}`, hint);
+  }
+}
+
+/** A point with this step is already stored for the run; resume skips it instead of storing it twice. */
+export class DuplicateStepError extends UserError {
+  constructor(readonly runId: number, readonly step: number) {
+    super(
+      `run ${runId}: step ${step} is already stored.`,
+      'Resume from nextStep(run) instead of re-measuring stored steps.',
+    );
+  }
+}
+
+/** A design, build, run or schedule id that is not in the database. */
+export class RecordNotFoundError extends UserError {
+  constructor(readonly kind: 'design' | 'build' | 'run' | 'schedule', readonly id: number) {
+    super(`${kind} ${id} does not exist in this database.`, `List the ${kind}s to see which ids exist.`);
+  }
+}

@@ -1,0 +1,5 @@
+export { Store, identityKey } from './store';
+export * from './errors';
+export * from './types';
+export { defaultDatabasePath, resolveDatabasePath, userDataFolder, DATABASE_FILE_NAME } from './paths';
+export { loadMigrations, DEFAULT_MIGRATIONS_DIR, type Migration } from './migrations';

@@ -1,0 +1,665 @@
+/**
+ * The SQLite store (better-sqlite3, synchronous). One Store per database file;
+ * statements are prepared once; each measured point commits on its own with
+ * synchronous=FULL so a power cut loses at most the point being written.
+ * Rows become contract types here and nowhere else.
+ */
+import { existsSync, mkdirSync, statSync } from 'node:fs';
+import { dirname } from 'node:path';
+import Database from 'better-sqlite3';
+import { ValidationError } from '../errors';
+import type {
+  BuildRecord,
+  DesignRecord,
+  InstrumentIdentity,
+  PointColumns,
+  RunEvent,
+  RunFigures,
+  RunStatus,
+  RunSummary,
+  Verdict,
+} from '../service/contract';
+import { SOFTWARE_VERSION } from '../service/version';
+import {
+  DuplicateStepError,
+  RecordNotFoundError,
+  StoreDamagedError,
+  StoreUnavailableError,
+  StoreVersionError,
+} from './errors';
+import { describeFileDamage } from './file-check';
+import { applyMigrations, latestVersion, loadMigrations, schemaVersionOf, writerAppVersion } from './migrations';
+import type {
+  CalibrationRecord,
+  InstrumentRecord,
+  InstrumentSighting,
+  NewCalibration,
+  NewPoint,
+  NewRun,
+  NewSchedule,
+  RunFilter,
+  ScheduleRecord,
+  StoreOpenOptions,
+  StoredRun,
+} from './types';
+
+const RUN_STATUSES: readonly RunStatus[] = ['planned', 'running', 'paused', 'done', 'stopped', 'failed'];
+const FINISHED_STATUSES: ReadonlySet<RunStatus> = new Set(['done', 'stopped', 'failed']);
+const EVENT_LEVELS: ReadonlySet<RunEvent['level']> = new Set(['info', 'warning', 'error']);
+const DEFAULT_LIST_LIMIT = 200;
+
+type Row = Record<string, unknown>;
+
+function isoNow(): string {
+  return new Date().toISOString();
+}
+
+function sqliteCode(error: unknown): string | undefined {
+  return error instanceof Database.SqliteError ? error.code : undefined;
+}
+
+function isDamageCode(code: string | undefined): boolean {
+  return code === 'SQLITE_CORRUPT' || code === 'SQLITE_NOTADB' || code === 'SQLITE_CORRUPT_VTAB' || code === 'SQLITE_CORRUPT_INDEX';
+}
+
+/** NaN (a missing value) is stored as NULL and read back as NaN. */
+function nullable(value: number | undefined): number | null {
+  return value === undefined || Number.isNaN(value) ? null : value;
+}
+
+function numberOrNaN(value: unknown): number {
+  return value === null || value === undefined ? Number.NaN : (value as number);
+}
+
+function requireId(value: number, where: string): number {
+  if (!Number.isInteger(value) || value <= 0) throw new ValidationError(where, `${value} is not a valid id (a positive whole number)`);
+  return value;
+}
+
+function requireFinite(value: number, where: string): number {
+  if (typeof value !== 'number' || !Number.isFinite(value)) throw new ValidationError(where, `${value} is not a finite number`);
+  return value;
+}
+
+function requireText(value: unknown, where: string): string {
+  if (typeof value !== 'string') throw new ValidationError(where, 'must be text');
+  return value;
+}
+
+function toJson(value: unknown, where: string): string {
+  const text = JSON.stringify(value);
+  if (text === undefined) throw new ValidationError(where, 'cannot be stored as JSON');
+  return text;
+}
+
+/** Escapes LIKE wildcards so a search for "10%" finds the text "10%". */
+function likePattern(search: string): string {
+  return `%${search.replace(/[\\%_]/g, (c) => '\\' + c)}%`;
+}
+
+export class Store {
+  readonly path: string;
+  readonly readonly: boolean;
+  /** Schema versions applied by this open (empty when the file was current). */
+  readonly appliedMigrations: number[];
+  private readonly db: Database.Database;
+  private readonly now: () => string;
+  private readonly statements: ReturnType<Store['prepareStatements']>;
+  private readonly insertPointTransaction: (runId: number, point: NewPoint) => void;
+  private readonly insertPointsTransaction: (runId: number, points: readonly NewPoint[]) => void;
+
+  private constructor(path: string, db: Database.Database, readonly_: boolean, applied: number[], now: () => string) {
+    this.path = path;
+    this.db = db;
+    this.readonly = readonly_;
+    this.appliedMigrations = applied;
+    this.now = now;
+    this.statements = this.prepareStatements();
+    this.insertPointTransaction = db.transaction((runId: number, point: NewPoint) => {
+      this.bindPoint(runId, point);
+      this.statements.countPoints.run(1, runId);
+    });
+    this.insertPointsTransaction = db.transaction((runId: number, points: readonly NewPoint[]) => {
+      for (const point of points) this.bindPoint(runId, point);
+      this.statements.countPoints.run(points.length, runId);
+    });
+  }
+
+  /**
+   * Opens (creating if needed) and migrates a database. A damaged or foreign
+   * file, or one from a newer Rolloff, is refused before anything is written.
+   */
+  static open(path: string, options: StoreOpenOptions = {}): Store {
+    const readonly = options.readonly === true;
+    const now = options.now ?? isoNow;
+    const migrations = loadMigrations(options.migrationsDir);
+    const knownVersion = latestVersion(migrations);
+    const inMemory = path === ':memory:';
+    const exists = !inMemory && existsSync(path);
+    if (exists) {
+      if (statSync(path).isDirectory()) {
+        throw new StoreUnavailableError(path, 'is a folder, not a database file', 'Give the path of a .sqlite file, e.g. --db ./bench.sqlite.');
+      }
+      // With a -wal file present the main file may legitimately lag; SQLite's own checks apply then.
+      const damage = existsSync(`${path}-wal`) ? undefined : describeFileDamage(path);
+      if (damage) throw new StoreDamagedError(path, damage);
+    } else if (readonly) {
+      throw new StoreUnavailableError(path, 'no database at this path', 'Check the path, or open it once without read-only so it is created.');
+    } else if (!inMemory) {
+      mkdirSync(dirname(path), { recursive: true });
+    }
+
+    let db: Database.Database;
+    try {
+      db = new Database(path, { readonly, fileMustExist: readonly });
+    } catch (error) {
+      if (isDamageCode(sqliteCode(error))) throw new StoreDamagedError(path, (error as Error).message);
+      throw new StoreUnavailableError(path, `cannot be opened: ${(error as Error).message}`, 'Check that the folder exists and you may write to it.');
+    }
+    try {
+      // Reads only until the file is known to be sound and not newer than us.
+      const fileVersion = schemaVersionOf(db);
+      db.prepare('SELECT count(*) FROM sqlite_master').get();
+      if (fileVersion > knownVersion) {
+        throw new StoreVersionError(path, fileVersion, knownVersion, writerAppVersion(db), SOFTWARE_VERSION);
+      }
+      db.pragma('foreign_keys = ON');
+      db.pragma('busy_timeout = 5000');
+      let applied: number[] = [];
+      if (readonly) {
+        if (fileVersion < knownVersion) {
+          throw new StoreUnavailableError(
+            path,
+            `schema version ${fileVersion} needs upgrading to ${knownVersion} before it can be read`,
+            'Open it once without read-only (any command that writes) so the upgrade is applied.',
+          );
+        }
+      } else {
+        if (!inMemory) db.pragma('journal_mode = WAL');
+        db.pragma('synchronous = FULL'); // DESIGN.md: each point committed with full durability
+        applied = applyMigrations(db, migrations, SOFTWARE_VERSION, now);
+      }
+      return new Store(path, db, readonly, applied, now);
+    } catch (error) {
+      db.close();
+      if (isDamageCode(sqliteCode(error))) throw new StoreDamagedError(path, (error as Error).message);
+      throw error;
+    }
+  }
+
+  get schemaVersion(): number {
+    return schemaVersionOf(this.db);
+  }
+
+  close(): void {
+    if (this.db.open) this.db.close();
+  }
+
+  private prepareStatements() {
+    const db = this.db;
+    const writer = (sql: string) => db.prepare(sql);
+    return {
+      insertDesign: writer('INSERT INTO designs (name, design_json, created_at) VALUES (?, ?, ?)'),
+      getDesign: db.prepare('SELECT * FROM designs WHERE id = ?'),
+      listDesigns: db.prepare('SELECT * FROM designs ORDER BY id'),
+      insertBuild: writer('INSERT INTO builds (design_id, label, notes, actual_values_json, created_at) VALUES (?, ?, ?, ?, ?)'),
+      getBuild: db.prepare('SELECT * FROM builds WHERE id = ?'),
+      listBuilds: db.prepare('SELECT * FROM builds WHERE (@designId IS NULL OR design_id = @designId) ORDER BY id'),
+      upsertInstrument: writer(`INSERT INTO instruments (role, identity_text, identity_json, address, first_seen_at, last_seen_at)
+        VALUES (?, ?, ?, ?, ?, ?)
+        ON CONFLICT (identity_text, address) DO UPDATE SET last_seen_at = excluded.last_seen_at, role = excluded.role`),
+      getInstrument: db.prepare('SELECT * FROM instruments WHERE identity_text = ? AND address = ?'),
+      listInstruments: db.prepare('SELECT * FROM instruments ORDER BY last_seen_at DESC, id DESC'),
+      insertRun: writer(`INSERT INTO runs (build_id, kind, request_json, plan_json, planned_count, status, created_at,
+        software_version, bench_json, operator, notes, simulated, schedule_id)
+        VALUES (?, ?, ?, ?, ?, 'planned', ?, ?, ?, ?, ?, ?, ?)`),
+      setStatus: writer(`UPDATE runs SET status = @status,
+        started_at = CASE WHEN @status = 'running' THEN COALESCE(started_at, @at) ELSE started_at END,
+        ended_at = CASE WHEN @finished = 1 THEN @at WHEN @status = 'running' THEN NULL ELSE ended_at END
+        WHERE id = @runId`),
+      setResults: writer('UPDATE runs SET figures_json = ?, verdict_json = ? WHERE id = ?'),
+      getRun: db.prepare(`SELECT r.*, b.label AS build_label, d.name AS design_name FROM runs r
+        JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id WHERE r.id = ?`),
+      listRuns: db.prepare(`SELECT r.id, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
+        r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated
+        FROM runs r JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id
+        WHERE (@status IS NULL OR r.status = @status) AND (@buildId IS NULL OR r.build_id = @buildId)
+          AND (@search IS NULL OR b.label LIKE @search ESCAPE '\\' OR d.name LIKE @search ESCAPE '\\' OR r.notes LIKE @search ESCAPE '\\')
+        ORDER BY r.id DESC LIMIT @limit`),
+      interruptedRuns: db.prepare(`SELECT r.id FROM runs r WHERE r.status IN ('running', 'paused') ORDER BY r.id`),
+      insertPoint: writer(`INSERT INTO points (run_id, step, stimulus, amplitude_vpp, input_reading, output_reading,
+        gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at) VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?)`),
+      countPoints: writer('UPDATE runs SET point_count = point_count + ? WHERE id = ?'),
+      loadPoints: db
+        .prepare(`SELECT step, stimulus, amplitude_vpp, gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at
+          FROM points WHERE run_id = ? ORDER BY step`)
+        .raw(true),
+      nextStep: db.prepare('SELECT COALESCE(MAX(step), -1) + 1 AS next FROM points WHERE run_id = ?'),
+      runExists: db.prepare('SELECT 1 FROM runs WHERE id = ?'),
+      insertEvent: writer('INSERT INTO run_events (run_id, at, level, message) VALUES (?, ?, ?, ?)'),
+      listEvents: db.prepare('SELECT at, level, message FROM run_events WHERE run_id = ? ORDER BY id'),
+      insertCalibration: writer(`INSERT INTO calibrations (bench_key, bench_json, frequencies_hz_json, gain_db_json, phase_deg_json, notes, created_at)
+        VALUES (?, ?, ?, ?, ?, ?, ?)`),
+      latestCalibration: db.prepare('SELECT * FROM calibrations WHERE bench_key = ? ORDER BY id DESC LIMIT 1'),
+      insertSchedule: writer(`INSERT INTO schedules (build_id, request_json, every_minutes, run_count, until_at, created_at)
+        VALUES (?, ?, ?, ?, ?, ?)`),
+      getSchedule: db.prepare('SELECT * FROM schedules WHERE id = ?'),
+    };
+  }
+
+  /** Runs a store operation, turning SQLite's codes into the named errors callers act on. */
+  private guard<T>(operation: () => T): T {
+    try {
+      return operation();
+    } catch (error) {
+      const code = sqliteCode(error);
+      if (isDamageCode(code)) throw new StoreDamagedError(this.path, (error as Error).message);
+      if (code === 'SQLITE_READONLY') {
+        throw new StoreUnavailableError(this.path, 'is open read-only', 'Open the database without read-only to change it.');
+      }
+      throw error;
+    }
+  }
+
+  private requireWritable(): void {
+    if (this.readonly) throw new StoreUnavailableError(this.path, 'is open read-only', 'Open the database without read-only to change it.');
+  }
+
+  // ── designs and builds ─────────────────────────────────────────────────
+
+  saveDesign(input: { name: string; design: unknown }): DesignRecord {
+    this.requireWritable();
+    const name = requireText(input.name, 'design.name').trim();
+    if (name.length === 0) throw new ValidationError('design.name', 'is empty', 'Give the design a name.');
+    const createdAt = this.now();
+    const result = this.guard(() => this.statements.insertDesign.run(name, toJson(input.design, 'design'), createdAt));
+    return this.getDesign(Number(result.lastInsertRowid));
+  }
+
+  getDesign(designId: number): DesignRecord {
+    const row = this.guard(() => this.statements.getDesign.get(requireId(designId, 'designId'))) as Row | undefined;
+    if (!row) throw new RecordNotFoundError('design', designId);
+    return designFromRow(row);
+  }
+
+  listDesigns(): DesignRecord[] {
+    return this.guard(() => this.statements.listDesigns.all() as Row[]).map(designFromRow);
+  }
+
+  createBuild(input: { designId: number; label: string; notes: string; actualValues: Record<string, number> }): BuildRecord {
+    this.requireWritable();
+    this.getDesign(input.designId);
+    const label = requireText(input.label, 'build.label').trim();
+    if (label.length === 0) throw new ValidationError('build.label', 'is empty', 'Give the build a label, e.g. "board 3".');
+    for (const [partId, value] of Object.entries(input.actualValues ?? {})) requireFinite(value, `build.actualValues.${partId}`);
+    const result = this.guard(() =>
+      this.statements.insertBuild.run(input.designId, label, requireText(input.notes ?? '', 'build.notes'), toJson(input.actualValues ?? {}, 'build.actualValues'), this.now()),
+    );
+    return this.getBuild(Number(result.lastInsertRowid));
+  }
+
+  getBuild(buildId: number): BuildRecord {
+    const row = this.guard(() => this.statements.getBuild.get(requireId(buildId, 'buildId'))) as Row | undefined;
+    if (!row) throw new RecordNotFoundError('build', buildId);
+    return buildFromRow(row);
+  }
+
+  listBuilds(designId?: number): BuildRecord[] {
+    const id = designId === undefined ? null : requireId(designId, 'designId');
+    return this.guard(() => this.statements.listBuilds.all({ designId: id }) as Row[]).map(buildFromRow);
+  }
+
+  // ── instruments ────────────────────────────────────────────────────────
+
+  /** Notes that an identity answered at an address; first sighting is kept, last is updated. */
+  recordInstrument(sighting: InstrumentSighting): InstrumentRecord {
+    this.requireWritable();
+    const identityText = identityKey(sighting.identity);
+    const address = requireText(sighting.address, 'instrument.address');
+    const at = sighting.at ?? this.now();
+    this.guard(() =>
+      this.statements.upsertInstrument.run(sighting.role, identityText, toJson(sighting.identity, 'instrument.identity'), address, at, at),
+    );
+    return instrumentFromRow(this.statements.getInstrument.get(identityText, address) as Row);
+  }
+
+  listInstruments(): InstrumentRecord[] {
+    return this.guard(() => this.statements.listInstruments.all() as Row[]).map(instrumentFromRow);
+  }
+
+  // ── runs ───────────────────────────────────────────────────────────────
+
+  createRun(input: NewRun): StoredRun {
+    this.requireWritable();
+    this.getBuild(input.buildId);
+    if (input.kind !== 'ac' && input.kind !== 'dc') throw new ValidationError('run.kind', `"${String(input.kind)}" is not ac or dc`);
+    if (input.scheduleId != null) this.getSchedule(input.scheduleId);
+    const plannedCount = Array.isArray(input.plan?.steps) ? input.plan.steps.length : 0;
+    const result = this.guard(() =>
+      this.statements.insertRun.run(
+        input.buildId,
+        input.kind,
+        toJson(input.request, 'run.request'),
+        toJson(input.plan, 'run.plan'),
+        plannedCount,
+        this.now(),
+        requireText(input.softwareVersion, 'run.softwareVersion'),
+        toJson(input.bench ?? [], 'run.bench'),
+        requireText(input.operator ?? '', 'run.operator'),
+        requireText(input.notes ?? '', 'run.notes'),
+        input.simulated ? 1 : 0,
+        input.scheduleId ?? null,
+      ),
+    );
+    return this.getRun(Number(result.lastInsertRowid));
+  }
+
+  /** Moves a run to a status; first 'running' stamps the start, a finished status stamps the end. */
+  updateRunStatus(runId: number, status: RunStatus): StoredRun {
+    this.requireWritable();
+    if (!RUN_STATUSES.includes(status)) {
+      throw new ValidationError('run.status', `"${String(status)}" is not a run status`, `Use one of: ${RUN_STATUSES.join(', ')}.`);
+    }
+    const result = this.guard(() => this.statements.setStatus.run({ status, at: this.now(), finished: FINISHED_STATUSES.has(status) ? 1 : 0, runId: requireId(runId, 'runId') }));
+    if (result.changes === 0) throw new RecordNotFoundError('run', runId);
+    return this.getRun(runId);
+  }
+
+  setRunResults(runId: number, figures: RunFigures, verdict: Verdict | null): StoredRun {
+    this.requireWritable();
+    const result = this.guard(() =>
+      this.statements.setResults.run(toJson(figures, 'run.figures'), verdict === null ? null : toJson(verdict, 'run.verdict'), requireId(runId, 'runId')),
+    );
+    if (result.changes === 0) throw new RecordNotFoundError('run', runId);
+    return this.getRun(runId);
+  }
+
+  getRun(runId: number): StoredRun {
+    const row = this.guard(() => this.statements.getRun.get(requireId(runId, 'runId'))) as Row | undefined;
+    if (!row) throw new RecordNotFoundError('run', runId);
+    return storedRunFromRow(row);
+  }
+
+  /** Newest first. */
+  listRuns(filter: RunFilter = {}): RunSummary[] {
+    if (filter.status !== undefined && !RUN_STATUSES.includes(filter.status)) {
+      throw new ValidationError('filter.status', `"${String(filter.status)}" is not a run status`, `Use one of: ${RUN_STATUSES.join(', ')}.`);
+    }
+    const limit = filter.limit ?? DEFAULT_LIST_LIMIT;
+    if (!Number.isInteger(limit) || limit <= 0) throw new ValidationError('filter.limit', `${limit} is not a positive whole number`);
+    const search = filter.search?.trim() ? likePattern(filter.search.trim()) : null;
+    const buildId = filter.buildId === undefined ? null : requireId(filter.buildId, 'filter.buildId');
+    const rows = this.guard(() => this.statements.listRuns.all({ status: filter.status ?? null, buildId, search, limit }) as Row[]);
+    return rows.map(summaryFromRow);
+  }
+
+  /** Runs left running or paused, e.g. by a crash or power cut; the service offers to resume them. */
+  findInterruptedRuns(): StoredRun[] {
+    const rows = this.guard(() => this.statements.interruptedRuns.all() as Array<{ id: number }>);
+    return rows.map((row) => this.getRun(row.id));
+  }
+
+  // ── points ─────────────────────────────────────────────────────────────
+
+  private bindPoint(runId: number, point: NewPoint): void {
+    try {
+      this.statements.insertPoint.run(
+        runId,
+        point.step,
+        point.stimulus,
+        point.amplitudeVpp,
+        nullable(point.inputReading),
+        nullable(point.outputReading),
+        nullable(point.gainDb),
+        nullable(point.gainUncertaintyDb),
+        nullable(point.phaseDeg),
+        nullable(point.phaseUncertaintyDeg),
+        nullable(point.outputV),
+        point.flags,
+        point.measuredAt ?? this.now(),
+      );
+    } catch (error) {
+      const code = sqliteCode(error);
+      if (code === 'SQLITE_CONSTRAINT_PRIMARYKEY' || code === 'SQLITE_CONSTRAINT_UNIQUE') throw new DuplicateStepError(runId, point.step);
+      if (code === 'SQLITE_CONSTRAINT_FOREIGNKEY') throw new RecordNotFoundError('run', runId);
+      throw error;
+    }
+  }
+
+  private validatePoint(point: NewPoint, where: string): void {
+    if (!Number.isInteger(point.step) || point.step < 0) throw new ValidationError(`${where}.step`, `${point.step} is not a whole number ≥ 0`);
+    requireFinite(point.stimulus, `${where}.stimulus`);
+    requireFinite(point.amplitudeVpp, `${where}.amplitudeVpp`);
+    if (!Number.isInteger(point.flags) || point.flags < 0) throw new ValidationError(`${where}.flags`, `${point.flags} is not a flag set`);
+  }
+
+  /** Stores one point in its own transaction (durable when this returns). A stored step is refused with DuplicateStepError. */
+  insertPoint(runId: number, point: NewPoint): void {
+    this.requireWritable();
+    requireId(runId, 'runId');
+    this.validatePoint(point, 'point');
+    this.guard(() => this.insertPointTransaction(runId, point));
+  }
+
+  /** Stores many points in one transaction (imports, benchmarks); all or nothing. */
+  insertPoints(runId: number, points: readonly NewPoint[]): void {
+    this.requireWritable();
+    requireId(runId, 'runId');
+    points.forEach((point, index) => this.validatePoint(point, `points[${index}]`));
+    this.guard(() => this.insertPointsTransaction(runId, points));
+  }
+
+  /** A run's points in step order, columnar as the contract and the charts want them. */
+  loadPoints(runId: number): PointColumns {
+    requireId(runId, 'runId');
+    const rows = this.guard(() => this.statements.loadPoints.all(runId) as unknown[][]);
+    if (rows.length === 0 && !this.statements.runExists.get(runId)) throw new RecordNotFoundError('run', runId);
+    const n = rows.length;
+    const columns: PointColumns = {
+      step: new Array<number>(n),
+      stimulus: new Array<number>(n),
+      amplitudeVpp: new Array<number>(n),
+      gainDb: new Array<number>(n),
+      gainUncertaintyDb: new Array<number>(n),
+      phaseDeg: new Array<number>(n),
+      phaseUncertaintyDeg: new Array<number>(n),
+      outputV: new Array<number>(n),
+      flags: new Array<number>(n),
+      measuredAt: new Array<string>(n),
+    };
+    for (let i = 0; i < n; i++) {
+      const row = rows[i];
+      columns.step[i] = row[0] as number;
+      columns.stimulus[i] = row[1] as number;
+      columns.amplitudeVpp[i] = row[2] as number;
+      columns.gainDb[i] = numberOrNaN(row[3]);
+      columns.gainUncertaintyDb[i] = numberOrNaN(row[4]);
+      columns.phaseDeg[i] = numberOrNaN(row[5]);
+      columns.phaseUncertaintyDeg[i] = numberOrNaN(row[6]);
+      columns.outputV[i] = numberOrNaN(row[7]);
+      columns.flags[i] = row[8] as number;
+      columns.measuredAt[i] = row[9] as string;
+    }
+    return columns;
+  }
+
+  /** The step a resumed sweep measures next: one past the highest stored step (0 for a fresh run). */
+  nextStep(runId: number): number {
+    requireId(runId, 'runId');
+    if (!this.statements.runExists.get(runId)) throw new RecordNotFoundError('run', runId);
+    return (this.guard(() => this.statements.nextStep.get(runId)) as { next: number }).next;
+  }
+
+  // ── events ─────────────────────────────────────────────────────────────
+
+  appendEvent(runId: number, level: RunEvent['level'], message: string, at?: string): RunEvent {
+    this.requireWritable();
+    if (!EVENT_LEVELS.has(level)) throw new ValidationError('event.level', `"${String(level)}" is not info, warning or error`);
+    const event: RunEvent = { at: at ?? this.now(), level, message: requireText(message, 'event.message') };
+    try {
+      this.guard(() => this.statements.insertEvent.run(requireId(runId, 'runId'), event.at, event.level, event.message));
+    } catch (error) {
+      if (sqliteCode(error) === 'SQLITE_CONSTRAINT_FOREIGNKEY') throw new RecordNotFoundError('run', runId);
+      throw error;
+    }
+    return event;
+  }
+
+  listEvents(runId: number): RunEvent[] {
+    return this.guard(() => this.statements.listEvents.all(requireId(runId, 'runId')) as RunEvent[]);
+  }
+
+  // ── calibrations ───────────────────────────────────────────────────────
+
+  saveCalibration(input: NewCalibration): CalibrationRecord {
+    this.requireWritable();
+    const benchKey = requireText(input.benchKey, 'calibration.benchKey');
+    if (benchKey.length === 0) throw new ValidationError('calibration.benchKey', 'is empty');
+    const n = input.frequencyHz?.length ?? 0;
+    if (n === 0) throw new ValidationError('calibration.frequencyHz', 'is empty', 'A calibration needs at least one frequency.');
+    if (input.gainDb?.length !== n || input.phaseDeg?.length !== n) {
+      throw new ValidationError('calibration', `frequencyHz has ${n} entries but gainDb has ${input.gainDb?.length} and phaseDeg ${input.phaseDeg?.length}`);
+    }
+    input.frequencyHz.forEach((f, i) => requireFinite(f, `calibration.frequencyHz[${i}]`));
+    input.gainDb.forEach((g, i) => requireFinite(g, `calibration.gainDb[${i}]`));
+    input.phaseDeg.forEach((p, i) => requireFinite(p, `calibration.phaseDeg[${i}]`));
+    const createdAt = this.now();
+    const result = this.guard(() =>
+      this.statements.insertCalibration.run(
+        benchKey,
+        toJson(input.bench ?? [], 'calibration.bench'),
+        JSON.stringify(Array.from(input.frequencyHz)),
+        JSON.stringify(Array.from(input.gainDb)),
+        JSON.stringify(Array.from(input.phaseDeg)),
+        input.notes ?? '',
+        createdAt,
+      ),
+    );
+    return { ...input, bench: input.bench ?? [], notes: input.notes ?? '', id: Number(result.lastInsertRowid), createdAt };
+  }
+
+  /** The newest calibration of this bench, or undefined when it was never calibrated. */
+  latestCalibration(benchKey: string): CalibrationRecord | undefined {
+    const row = this.guard(() => this.statements.latestCalibration.get(benchKey)) as Row | undefined;
+    if (!row) return undefined;
+    return {
+      id: row.id as number,
+      benchKey: row.bench_key as string,
+      bench: JSON.parse(row.bench_json as string),
+      frequencyHz: JSON.parse(row.frequencies_hz_json as string),
+      gainDb: JSON.parse(row.gain_db_json as string),
+      phaseDeg: JSON.parse(row.phase_deg_json as string),
+      notes: row.notes as string,
+      createdAt: row.created_at as string,
+    };
+  }
+
+  // ── schedules ──────────────────────────────────────────────────────────
+
+  createSchedule(input: NewSchedule): ScheduleRecord {
+    this.requireWritable();
+    this.getBuild(input.buildId);
+    if (!(Number.isFinite(input.everyMinutes) && input.everyMinutes > 0)) {
+      throw new ValidationError('schedule.everyMinutes', `${input.everyMinutes} is not a positive number of minutes`);
+    }
+    const count = input.count ?? null;
+    const until = input.until ?? null;
+    if (count === null && until === null) {
+      throw new ValidationError('schedule', 'has neither a run count nor an end time', 'Give a count of runs, an end time, or both.');
+    }
+    if (count !== null && !(Number.isInteger(count) && count > 0)) throw new ValidationError('schedule.count', `${count} is not a positive whole number`);
+    if (until !== null && Number.isNaN(Date.parse(until))) throw new ValidationError('schedule.until', `"${until}" is not a date and time`, 'Use ISO 8601, e.g. 2026-12-02T06:00:00Z.');
+    const result = this.guard(() =>
+      this.statements.insertSchedule.run(input.buildId, toJson(input.request, 'schedule.request'), input.everyMinutes, count, until, this.now()),
+    );
+    return this.getSchedule(Number(result.lastInsertRowid));
+  }
+
+  getSchedule(scheduleId: number): ScheduleRecord {
+    const row = this.guard(() => this.statements.getSchedule.get(requireId(scheduleId, 'scheduleId'))) as Row | undefined;
+    if (!row) throw new RecordNotFoundError('schedule', scheduleId);
+    return {
+      id: row.id as number,
+      buildId: row.build_id as number,
+      request: JSON.parse(row.request_json as string),
+      everyMinutes: row.every_minutes as number,
+      count: (row.run_count as number | null) ?? null,
+      until: (row.until_at as string | null) ?? null,
+      createdAt: row.created_at as string,
+    };
+  }
+
+  /** For maintenance and the benchmark: the database's own consistency check (slow on big files). */
+  integrityProblems(): string[] {
+    const rows = this.guard(() => this.db.pragma('quick_check') as Array<{ quick_check: string }>);
+    return rows.map((r) => r.quick_check).filter((text) => text !== 'ok');
+  }
+
+  /** Runs several store calls in one transaction (bulk work). Nested calls join it. */
+  transaction<T>(work: () => T): T {
+    return this.guard(() => this.db.transaction(work)());
+  }
+}
+
+/** One text per identity, so the same instrument at the same address is one row. */
+export function identityKey(identity: InstrumentIdentity): string {
+  return [identity.manufacturer, identity.model, identity.serialNumber, identity.firmware].map((part) => String(part ?? '').trim()).join(',');
+}
+
+function designFromRow(row: Row): DesignRecord {
+  return { id: row.id as number, name: row.name as string, design: JSON.parse(row.design_json as string), createdAt: row.created_at as string };
+}
+
+function buildFromRow(row: Row): BuildRecord {
+  return {
+    id: row.id as number,
+    designId: row.design_id as number,
+    label: row.label as string,
+    notes: row.notes as string,
+    actualValues: JSON.parse(row.actual_values_json as string),
+    createdAt: row.created_at as string,
+  };
+}
+
+function instrumentFromRow(row: Row): InstrumentRecord {
+  return {
+    id: row.id as number,
+    role: row.role as InstrumentRecord['role'],
+    identity: JSON.parse(row.identity_json as string),
+    address: row.address as string,
+    firstSeenAt: row.first_seen_at as string,
+    lastSeenAt: row.last_seen_at as string,
+  };
+}
+
+function summaryFromRow(row: Row): RunSummary {
+  return {
+    id: row.id as number,
+    buildId: row.build_id as number,
+    buildLabel: row.build_label as string,
+    designName: row.design_name as string,
+    kind: row.kind as RunSummary['kind'],
+    status: row.status as RunStatus,
+    startedAt: (row.started_at as string | null) ?? null,
+    endedAt: (row.ended_at as string | null) ?? null,
+    pointCount: row.point_count as number,
+    plannedCount: row.planned_count as number,
+    simulated: row.simulated === 1,
+  };
+}
+
+function storedRunFromRow(row: Row): StoredRun {
+  return {
+    ...summaryFromRow(row),
+    request: JSON.parse(row.request_json as string),
+    plan: JSON.parse(row.plan_json as string),
+    softwareVersion: row.software_version as string,
+    bench: JSON.parse(row.bench_json as string),
+    operator: row.operator as string,
+    notes: row.notes as string,
+    scheduleId: (row.schedule_id as number | null) ?? null,
+    createdAt: row.created_at as string,
+    figures: row.figures_json === null ? null : JSON.parse(row.figures_json as string),
+    verdict: row.verdict_json === null ? null : JSON.parse(row.verdict_json as string),
+  };
+}

@@ -1,0 +1,131 @@
+/**
+ * Store-side record shapes. Where the contract (app/service/contract.ts) has a
+ * type, the store returns it; these cover what only the service sees.
+ */
+import type {
+  InstrumentIdentity,
+  InstrumentInfo,
+  InstrumentRole,
+  RunFigures,
+  RunKind,
+  RunStatus,
+  RunSummary,
+  SweepPlanSummary,
+  SweepRequest,
+  Verdict,
+} from '../service/contract';
+
+export interface NewRun {
+  buildId: number;
+  kind: RunKind;
+  request: SweepRequest;
+  plan: SweepPlanSummary;
+  softwareVersion: string;
+  bench: InstrumentInfo[];
+  operator: string;
+  notes: string;
+  simulated: boolean;
+  scheduleId?: number | null;
+}
+
+/** A run as stored: the summary plus what was asked, planned and found. */
+export interface StoredRun extends RunSummary {
+  request: SweepRequest;
+  plan: SweepPlanSummary;
+  softwareVersion: string;
+  bench: InstrumentInfo[];
+  operator: string;
+  notes: string;
+  scheduleId: number | null;
+  createdAt: string;
+  figures: RunFigures | null;
+  verdict: Verdict | null;
+}
+
+export interface RunFilter {
+  /** Matched (case-insensitive substring) against build label, design name and run notes. */
+  search?: string;
+  status?: RunStatus;
+  buildId?: number;
+  /** Newest first; default 200. */
+  limit?: number;
+}
+
+/** One measured step. Missing values are NaN (stored as NULL). */
+export interface NewPoint {
+  step: number;
+  /** Hz (AC) or input volts (DC). */
+  stimulus: number;
+  amplitudeVpp: number;
+  /** The raw readings as the instruments gave them (volts), kept for audit. */
+  inputReading?: number;
+  outputReading?: number;
+  gainDb: number;
+  gainUncertaintyDb: number;
+  phaseDeg: number;
+  phaseUncertaintyDeg: number;
+  outputV: number;
+  flags: number;
+  /** ISO 8601; defaults to now. */
+  measuredAt?: string;
+}
+
+export interface InstrumentSighting {
+  role: InstrumentRole;
+  identity: InstrumentIdentity;
+  address: string;
+  /** ISO 8601; defaults to now. */
+  at?: string;
+}
+
+export interface InstrumentRecord {
+  id: number;
+  role: InstrumentRole;
+  identity: InstrumentIdentity;
+  address: string;
+  firstSeenAt: string;
+  lastSeenAt: string;
+}
+
+/** Through-calibration of one bench: corrections per frequency, subtracted from measurements. */
+export interface NewCalibration {
+  /** Stable key of the instrument set, e.g. from benchKeyOf(bench). */
+  benchKey: string;
+  bench: InstrumentInfo[];
+  frequencyHz: number[];
+  gainDb: number[];
+  phaseDeg: number[];
+  notes?: string;
+}
+
+export interface CalibrationRecord extends Required<NewCalibration> {
+  id: number;
+  createdAt: string;
+}
+
+export interface NewSchedule {
+  buildId: number;
+  request: SweepRequest;
+  everyMinutes: number;
+  /** Stop after this many runs, or at `until` (ISO 8601), whichever comes first; at least one is required. */
+  count?: number | null;
+  until?: string | null;
+}
+
+export interface ScheduleRecord {
+  id: number;
+  buildId: number;
+  request: SweepRequest;
+  everyMinutes: number;
+  count: number | null;
+  until: string | null;
+  createdAt: string;
+}
+
+export interface StoreOpenOptions {
+  readonly?: boolean;
+  /** Folder of NNNN_name.sql files; defaults to the repository's migrations/. */
+  migrationsDir?: string;
+  /** Clock for timestamps; tests pass a fixed one. */
+  now?: () => string;
+}
