@@ -1,0 +1,70 @@
+/**
+ * Bundles the renderer (views, client, uPlot, the pure modules they use) with
+ * esbuild, in memory. The web host serves these files; the Electron build
+ * writes the same files to disk, so both shells run one renderer.
+ */
+import { build } from 'esbuild';
+import { readFile } from 'node:fs/promises';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+export interface StaticFile {
+  contentType: string;
+  body: Buffer;
+}
+
+/** Relative URL path (e.g. "index.html", "app.js") → file. */
+export type RendererFiles = Map<string, StaticFile>;
+
+const PROJECT_ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
+export const RENDERER_DIR = join(PROJECT_ROOT, 'renderer');
+
+/**
+ * The Content-Security-Policy both shells apply. No remote origin appears in
+ * it: the window loads and talks only to where it came from.
+ */
+export function contentSecurityPolicy(connectSources: string[] = []): string {
+  return [
+    "default-src 'self'",
+    "script-src 'self'",
+    "style-src 'self'",
+    "img-src 'self' data: blob:",
+    "font-src 'self'",
+    `connect-src 'self'${connectSources.length ? ' ' + connectSources.join(' ') : ''}`,
+    "object-src 'none'",
+    "base-uri 'none'",
+    "form-action 'none'",
+    "frame-ancestors 'none'",
+  ].join('; ');
+}
+
+export async function bundleRenderer(options: { minify?: boolean } = {}): Promise<RendererFiles> {
+  const result = await build({
+    entryPoints: { app: join(RENDERER_DIR, 'main.ts') },
+    bundle: true,
+    write: false,
+    outdir: '/renderer-out',
+    format: 'esm',
+    platform: 'browser',
+    target: ['chrome120'],
+    minify: options.minify ?? true,
+    sourcemap: false,
+    legalComments: 'none',
+    logLevel: 'silent',
+  });
+  const files: RendererFiles = new Map();
+  for (const output of result.outputFiles) {
+    const name = output.path.slice('/renderer-out/'.length);
+    files.set(name, { contentType: contentTypeOf(name), body: Buffer.from(output.contents) });
+  }
+  const html = await readFile(join(RENDERER_DIR, 'index.html'), 'utf8');
+  files.set('index.html', { contentType: contentTypeOf('index.html'), body: Buffer.from(html) });
+  return files;
+}
+
+function contentTypeOf(name: string): string {
+  if (name.endsWith('.js')) return 'text/javascript; charset=utf-8';
+  if (name.endsWith('.css')) return 'text/css; charset=utf-8';
+  if (name.endsWith('.html')) return 'text/html; charset=utf-8';
+  return 'application/octet-stream';
+}
