@@ -1,0 +1,4 @@
+export * from './errors';
+export * from './sine-fit';
+export * from './two-channel';
+export * from './distortion';
