@@ -61,9 +61,9 @@ export function analyzeAcRun(
     gain.push(measured.gainDb[i]);
     ideal.push(theory.idealGainDb[i]);
   }
-  const passband = passbandGainDb(gain);
+  const passband = passbandGainDb(freq, gain);
   const deviations = deviationDb(measured.gainDb, theory.gainDb);
-  const theoryPassband = passbandGainDb(theory.gainDb);
+  const theoryPassband = passbandGainDb(measured.frequencyHz, theory.gainDb);
   const inPassband = (i: number) => usable(i) && theoryPassband !== undefined && theory.gainDb[i] >= theoryPassband + HALF_POWER_DB;
   const worst = largestDeviation(measured.frequencyHz, deviations, inPassband);
 

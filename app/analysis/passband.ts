@@ -2,25 +2,34 @@
  * Pass-band gain and the −3 dB corners relative to it.
  */
 import { dbFromRatio } from '../units';
-import { crossingsLogF } from './crossing';
+import { ascendingOrder, crossingsLogF } from './crossing';
 
 /** 20·log10(1/√2) ≈ −3.0103 dB: the half-power level. */
 export const HALF_POWER_DB = dbFromRatio(Math.SQRT1_2);
 
 /**
- * Pass-band gain: median of the gains within `windowDb` of the largest one.
- * The median of a window (not the maximum) keeps one noisy high point from
- * biasing the reference (common practice, no source).
+ * Pass-band gain, defined as the theory engine's summary defines it (app/circuit
+ * summarizeAc) so measured and theoretical −3 dB points mean the same thing:
+ * the low-frequency gain when it is within 3 dB of the peak (low-pass-like
+ * responses, where a resonant peak must not become the reference), otherwise
+ * the peak (high- and band-pass). Measured data is noisy, so "low-frequency
+ * gain" is the median of the `endPoints` lowest-frequency points and "peak" the
+ * median of the points within `windowDb` of the largest (common practice, no source).
  */
-export function passbandGainDb(gainDb: ArrayLike<number>, windowDb = 0.1): number | undefined {
+export function passbandGainDb(frequencyHz: ArrayLike<number>, gainDb: ArrayLike<number>, windowDb = 0.1, endPoints = 3): number | undefined {
+  const order = ascendingOrder(frequencyHz).filter((i) => Number.isFinite(gainDb[i]));
+  if (order.length === 0) return undefined;
   let peak = -Infinity;
-  for (let i = 0; i < gainDb.length; i++) if (Number.isFinite(gainDb[i]) && gainDb[i] > peak) peak = gainDb[i];
-  if (!Number.isFinite(peak)) return undefined;
-  const near: number[] = [];
-  for (let i = 0; i < gainDb.length; i++) if (gainDb[i] >= peak - windowDb) near.push(gainDb[i]);
-  near.sort((a, b) => a - b);
-  const middle = near.length >> 1;
-  return near.length % 2 === 1 ? near[middle] : (near[middle - 1] + near[middle]) / 2;
+  for (const i of order) if (gainDb[i] > peak) peak = gainDb[i];
+  const lowEnd = median(order.slice(0, endPoints).map((i) => gainDb[i]));
+  if (lowEnd >= peak + HALF_POWER_DB) return lowEnd;
+  return median(order.filter((i) => gainDb[i] >= peak - windowDb).map((i) => gainDb[i]));
+}
+
+function median(values: number[]): number {
+  const sorted = [...values].sort((a, b) => a - b);
+  const middle = sorted.length >> 1;
+  return sorted.length % 2 === 1 ? sorted[middle] : (sorted[middle - 1] + sorted[middle]) / 2;
 }
 
 /** Frequencies where the gain crosses pass band − 3.01 dB, interpolated in log f. */

@@ -18,7 +18,7 @@ export interface RefineInput {
 
 export function refinementFrequencies(input: RefineInput): number[] {
   const resolution = input.resolutionDecades ?? 0.002;
-  const passband = passbandGainDb(input.gainDb);
+  const passband = passbandGainDb(input.frequencyHz, input.gainDb);
   const targets: number[] = [];
   if (passband !== undefined) targets.push(...crossingsLogF(input.frequencyHz, input.gainDb, passband + HALF_POWER_DB));
   if (input.idealGainDb) {

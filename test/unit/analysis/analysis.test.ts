@@ -61,7 +61,7 @@ describe('pass band, −3 dB point and roll-off of a first-order low-pass', () =
   const gainDb = firstOrderLowPassDb(f, 10, 1591.5);
 
   it('pass-band gain is 20·log10(10) = 20 dB (IEC 60027-3 definition of the decibel)', () => {
-    expect(passbandGainDb(gainDb)).toBeCloseTo(20, 1);
+    expect(passbandGainDb(f, gainDb)).toBeCloseTo(20, 1);
   });
 
   it('−3 dB point lands on f_c = 1591.5 Hz within 1 % at 10 points per decade (handbook f_c = 1/(2πRC))', () => {
@@ -75,6 +75,17 @@ describe('pass band, −3 dB point and roll-off of a first-order low-pass', () =
     const slope = rolloffDbPerDecade(f, gainDb, 20)!;
     expect(slope).toBeGreaterThan(-21);
     expect(slope).toBeLessThan(-19);
+  });
+
+  it('uses the low-frequency gain, not a resonant peak, when the low end is within 3 dB of the peak (as app/circuit summarizeAc)', () => {
+    // Second-order low-pass, Q = 1.2: |H| = 1/√((1−x²)² + (x/Q)²), x = f/f0 (handbook second-order section);
+    // peak Q/√(1 − 1/(4Q²)) ≈ 1.32, i.e. +2.4 dB, within 3 dB of the low end.
+    const q = 1.2;
+    const peaked = f.map((fr) => {
+      const x = fr / 1000;
+      return dbFromRatio(1 / Math.hypot(1 - x * x, x / q));
+    });
+    expect(passbandGainDb(f, peaked)).toBeCloseTo(0, 2);
   });
 
   it('a −3 dB half-power level is 20·log10(1/√2) = −3.0103 dB (IEC 60027-3)', () => {

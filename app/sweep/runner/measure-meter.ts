@@ -1,0 +1,100 @@
+/**
+ * Meter-only AC measurement: the output's AC RMS against the nominal stimulus,
+ * corrected by the bench's through-calibration (the same sweep with the stage
+ * bypassed, so the generator's real output and the meter's frequency response
+ * cancel). No phase: a meter cannot see it.
+ */
+import type { BenchClock } from '../../bench/clock';
+import type { Reading } from '../../scpi/reading';
+import { PointFlag } from '../../service/contract';
+import { dbFromRatio } from '../../units';
+import { waitUntilSettled } from './timing';
+import type { StepMeasurer, StepResult, StepSetting, SweepInstruments } from './types';
+
+/** Through-calibration: gain of the bypassed path per frequency (dB). */
+export interface ThroughCalibration {
+  frequencyHz: number[];
+  gainDb: number[];
+}
+
+export interface MeterMeasurerOptions {
+  clock: BenchClock;
+  /** Applied when present; a through-calibration run itself has none. */
+  calibration?: ThroughCalibration;
+}
+
+/** dB per relative unit of a voltage ratio: d(20·log10 x)/dx · x = 20/ln 10. */
+const DB_PER_RELATIVE_UNIT = 20 / Math.LN10;
+
+export function meterMeasurer(options: MeterMeasurerOptions): StepMeasurer {
+  const { clock } = options;
+  let outputOn = false;
+  let lastIntegrationS = NaN;
+  return {
+    async prepare(instruments: SweepInstruments) {
+      if (!instruments.meter) throw new Error('meter measurement needs a meter');
+      outputOn = false;
+      lastIntegrationS = NaN;
+      await instruments.meter.setRange('auto');
+    },
+
+    async measure(instruments: SweepInstruments, setting: StepSetting): Promise<StepResult> {
+      const meter = instruments.meter!;
+      await instruments.generator.configureSine({ frequencyHz: setting.stimulus, amplitudeVpp: setting.amplitudeVpp, offsetV: 0 });
+      if (!outputOn) {
+        await instruments.generator.setOutput(true);
+        outputOn = true;
+      }
+      const changedAtS = clock.nowS();
+      if (setting.integrateS !== lastIntegrationS) {
+        await meter.setIntegration(setting.integrateS);
+        lastIntegrationS = setting.integrateS;
+      }
+      await waitUntilSettled(clock, changedAtS, setting.settleS);
+      const readings: Reading[] = [];
+      for (let k = 0; k < setting.averages; k++) {
+        await clock.sleepS(setting.integrateS);
+        readings.push(await meter.readAcRmsV());
+      }
+      return reduceRmsReadings(readings, setting, options.calibration);
+    },
+  };
+}
+
+/** Turns RMS readings into a gain point; overrange/NaN readings flag the point instead of entering the mean. */
+export function reduceRmsReadings(readings: Reading[], setting: StepSetting, calibration?: ThroughCalibration): StepResult {
+  const good = readings.filter((r) => r.flag === 'ok').map((r) => r.value);
+  let flags = 0;
+  if (readings.some((r) => r.flag === 'overrange')) flags |= PointFlag.overrange;
+  if (readings.some((r) => r.flag === 'nan')) flags |= PointFlag.notANumber;
+  const nominalInputRmsV = setting.amplitudeVpp / (2 * Math.SQRT2); // sine: Vrms = Vpp/(2√2) (handbook)
+  if (good.length === 0) {
+    return { gainDb: NaN, gainUncertaintyDb: NaN, phaseDeg: NaN, phaseUncertaintyDeg: NaN, outputV: NaN, inputReading: nominalInputRmsV, outputReading: NaN, flags };
+  }
+  const meanV = good.reduce((s, v) => s + v, 0) / good.length;
+  const sd = good.length > 1 ? Math.sqrt(good.reduce((s, v) => s + (v - meanV) ** 2, 0) / (good.length - 1)) : NaN;
+  const correctionDb = calibration ? interpolateLogF(calibration.frequencyHz, calibration.gainDb, setting.stimulus) : 0;
+  return {
+    gainDb: dbFromRatio(meanV / nominalInputRmsV) - correctionDb,
+    gainUncertaintyDb: (DB_PER_RELATIVE_UNIT * sd) / Math.sqrt(good.length) / meanV,
+    phaseDeg: NaN,
+    phaseUncertaintyDeg: NaN,
+    outputV: meanV,
+    inputReading: nominalInputRmsV,
+    outputReading: meanV,
+    flags,
+  };
+}
+
+/** Calibration value at f, linear in log f between neighbours, held flat beyond the ends. */
+export function interpolateLogF(frequencyHz: number[], valuesDb: number[], atHz: number): number {
+  const n = frequencyHz.length;
+  if (n === 0) return 0;
+  if (atHz <= frequencyHz[0]) return valuesDb[0];
+  if (atHz >= frequencyHz[n - 1]) return valuesDb[n - 1];
+  let i = 1;
+  while (frequencyHz[i] < atHz) i++;
+  const t = Math.log(atHz / frequencyHz[i - 1]) / Math.log(frequencyHz[i] / frequencyHz[i - 1]);
+  return valuesDb[i - 1] + t * (valuesDb[i] - valuesDb[i - 1]);
+}
+

@@ -1,0 +1,99 @@
+/**
+ * Scope measurement: both channels' waveforms (ch1 = stage input, ch2 = stage
+ * output), each fitted with the IEEE Std 1057 three-parameter sine fit at the
+ * stimulus frequency; gain and phase with uncertainties from the fits.
+ */
+import type { BenchClock } from '../../bench/clock';
+import type { ScopeControl } from '../../bench/roles';
+import { PointFlag } from '../../service/contract';
+import { distortionScore, DISTORTION_SCORE_LIMIT, responseFromFits, sineFit3, type StageResponse } from '../../signal';
+import { formatEngineering } from '../../units';
+import { combineAcquisitions } from './combine';
+import { waitUntilSettled } from './timing';
+import type { StepMeasurer, StepResult, StepSetting, SweepInstruments } from './types';
+
+/** Signal height on screen: 6 of 8 vertical divisions, room for tolerance and overshoot (common practice, no source). */
+const SCREEN_DIVISIONS_USED = 6;
+
+export interface ScopeMeasurerOptions {
+  clock: BenchClock;
+  /** Expected |H(f)| from theory, to set channel 2's vertical scale. */
+  expectedGainRatioAt(frequencyHz: number): number;
+}
+
+export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
+  const { clock } = options;
+  let outputOn = false;
+  let lastTimebaseS = NaN;
+  let lastScales = { 1: NaN, 2: NaN };
+
+  return {
+    async prepare(instruments: SweepInstruments) {
+      if (!instruments.scope) throw new Error('scope measurement needs a scope');
+      outputOn = false;
+      lastTimebaseS = NaN;
+      lastScales = { 1: NaN, 2: NaN };
+    },
+
+    async measure(instruments: SweepInstruments, setting: StepSetting): Promise<StepResult> {
+      const scope = instruments.scope!;
+      await instruments.generator.configureSine({ frequencyHz: setting.stimulus, amplitudeVpp: setting.amplitudeVpp, offsetV: 0 });
+      if (!outputOn) {
+        await instruments.generator.setOutput(true);
+        outputOn = true;
+      }
+      const changedAtS = clock.nowS();
+      if (setting.integrateS !== lastTimebaseS) {
+        await scope.setTimebase(setting.integrateS);
+        lastTimebaseS = setting.integrateS;
+      }
+      const scales = {
+        1: niceScale(setting.amplitudeVpp / SCREEN_DIVISIONS_USED),
+        2: niceScale((setting.amplitudeVpp * options.expectedGainRatioAt(setting.stimulus)) / SCREEN_DIVISIONS_USED),
+      };
+      if (scales[1] !== lastScales[1] || scales[2] !== lastScales[2]) {
+        await scope.setupChannels(scales);
+        lastScales = scales;
+      }
+      await waitUntilSettled(clock, changedAtS, setting.settleS);
+
+      const responses: StageResponse[] = [];
+      let worstDistortion = 0;
+      for (let k = 0; k < setting.averages; k++) {
+        // One record spans the integration time; wait for it to fill before fetching.
+        await clock.sleepS(setting.integrateS);
+        const input = await scope.fetchWaveform(1);
+        const output = await scope.fetchWaveform(2);
+        const inputFit = sineFit3({ samplesV: input.samplesV, sampleIntervalS: input.sampleIntervalS, frequencyHz: setting.stimulus });
+        const outputFit = sineFit3({ samplesV: output.samplesV, sampleIntervalS: output.sampleIntervalS, frequencyHz: setting.stimulus });
+        worstDistortion = Math.max(worstDistortion, distortionScore(outputFit));
+        responses.push(responseFromFits(inputFit, outputFit));
+      }
+      const combined = combineAcquisitions(responses);
+      const distorted = worstDistortion > DISTORTION_SCORE_LIMIT;
+      const last = responses[responses.length - 1];
+      return {
+        gainDb: combined.gainDb,
+        gainUncertaintyDb: combined.gainUncertaintyDb,
+        phaseDeg: combined.phaseDeg,
+        phaseUncertaintyDeg: combined.phaseUncertaintyDeg,
+        outputV: last.output.amplitudeV,
+        inputReading: last.input.amplitudeV,
+        outputReading: last.output.amplitudeV,
+        flags: distorted ? PointFlag.distorted : 0,
+        advice: distorted
+          ? `output at ${formatEngineering(setting.stimulus, 'Hz')} is not a clean sine (residual ${(worstDistortion * 100).toFixed(1)} % of its RMS): ` +
+            `likely slew limiting or clipping. Lower the amplitude (now ${setting.amplitudeVpp.toPrecision(3)} Vpp) or use automatic amplitude.`
+          : undefined,
+      };
+    },
+  };
+}
+
+/** Rounds up to the 1-2-5 sequence of vertical scales scopes offer (common practice, no source). */
+export function niceScale(voltsPerDiv: number): number {
+  if (!(voltsPerDiv > 0) || !Number.isFinite(voltsPerDiv)) return 1;
+  const decade = 10 ** Math.floor(Math.log10(voltsPerDiv));
+  for (const step of [1, 2, 5, 10]) if (step * decade >= voltsPerDiv * (1 - 1e-9)) return step * decade;
+  return 10 * decade;
+}

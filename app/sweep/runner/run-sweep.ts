@@ -1,0 +1,128 @@
+/**
+ * The sweep loop: set, settle, measure, store — one step at a time, each point
+ * committed to the store the moment it is measured. Starting again on a run
+ * continues at the store's next step, so a crash loses no point and repeats none.
+ */
+import type { BenchClock } from '../../bench/clock';
+import type { PointColumns, RunEvent, RunProgress, RunStatus, ServiceEvents } from '../../service/contract';
+import { PointFlag } from '../../service/contract';
+import type { Store } from '../../store';
+import type { RunControl } from './control';
+import { withRecovery } from './recovery';
+import type { StepMeasurer, StepSetting, SweepInstruments } from './types';
+
+export interface SweepRunOptions {
+  store: Store;
+  runId: number;
+  clock: BenchClock;
+  control: RunControl;
+  measurer: StepMeasurer;
+  /** Opens (or re-opens after a disconnect) the instruments the sweep uses. */
+  connectInstruments(): Promise<SweepInstruments>;
+  plannedSteps: StepSetting[];
+  /** Extra steps after the planned ones, from the points so far (refinement); [] when finished. */
+  nextExtraSteps?(points: PointColumns, firstStep: number): StepSetting[];
+  /** Give up and mark the run failed when the link stays down this long (bench seconds). */
+  giveUpAfterS: number;
+  emit<E extends 'progress' | 'point' | 'runEvent'>(event: E, payload: ServiceEvents[E]): void;
+}
+
+export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
+  const { store, runId, clock, control } = options;
+  const log = (level: RunEvent['level'], message: string) => {
+    const event = store.appendEvent(runId, level, message);
+    options.emit('runEvent', { runId, ...event });
+  };
+  const firstStep = store.nextStep(runId);
+  store.updateRunStatus(runId, 'running');
+  log('info', firstStep === 0 ? 'sweep started' : `sweep continued at step ${firstStep}`);
+
+  let instruments: SweepInstruments | undefined;
+  const reconnect = async () => {
+    instruments = await options.connectInstruments();
+    await options.measurer.prepare(instruments);
+  };
+  const recovery = { runId, clock, giveUpAfterS: options.giveUpAfterS, reconnect, log };
+
+  let queue = options.plannedSteps.filter((s) => s.step >= firstStep);
+  const total = () => Math.max(options.plannedSteps.length, firstStep) + queue.length;
+  const startedS = clock.nowS();
+  let physicalDoneS = 0;
+
+  try {
+    await withRecovery(reconnect, recovery);
+    for (;;) {
+      if (queue.length === 0 && options.nextExtraSteps) {
+        queue = options.nextExtraSteps(store.loadPoints(runId), store.nextStep(runId));
+        if (queue.length > 0) log('info', `refinement: ${queue.length} extra point(s) near the −3 dB and gain-limit points`);
+      }
+      const setting = queue[0];
+      if (!setting) break;
+      if (control.pending !== 'none') return await halt(control.pending === 'stop' ? 'stopped' : 'paused');
+
+      const { value: result, retried } = await withRecovery(() => options.measurer.measure(instruments!, setting), recovery);
+      const flags = result.flags | (retried ? PointFlag.retried : 0) | (setting.refinement ? PointFlag.refinement : 0);
+      store.insertPoint(runId, {
+        step: setting.step,
+        stimulus: setting.stimulus,
+        amplitudeVpp: setting.amplitudeVpp,
+        inputReading: result.inputReading,
+        outputReading: result.outputReading,
+        gainDb: result.gainDb,
+        gainUncertaintyDb: result.gainUncertaintyDb,
+        phaseDeg: result.phaseDeg,
+        phaseUncertaintyDeg: result.phaseUncertaintyDeg,
+        outputV: result.outputV,
+        flags,
+      });
+      queue.shift();
+      if (result.advice) log('warning', result.advice);
+      options.emit('point', {
+        runId, index: setting.step, stimulus: setting.stimulus, gainDb: result.gainDb, phaseDeg: result.phaseDeg,
+        outputV: result.outputV, flags, gainUncertaintyDb: result.gainUncertaintyDb, phaseUncertaintyDeg: result.phaseUncertaintyDeg,
+      });
+      physicalDoneS += setting.settleS + setting.averages * setting.integrateS;
+      options.emit('progress', progress(runId, setting.step + 1, total(), etaS(queue, clock.nowS() - startedS, physicalDoneS), 'running'));
+    }
+    await outputOff(instruments, log);
+    store.updateRunStatus(runId, 'done');
+    log('info', 'sweep finished');
+    options.emit('progress', progress(runId, total(), total(), 0, 'done'));
+    return 'done';
+  } catch (error) {
+    await outputOff(instruments, log);
+    store.updateRunStatus(runId, 'failed');
+    log('error', `sweep failed: ${(error as Error).message}`);
+    options.emit('progress', progress(runId, store.nextStep(runId), total(), 0, 'failed'));
+    throw error;
+  }
+
+  async function halt(status: 'stopped' | 'paused'): Promise<RunStatus> {
+    await outputOff(instruments, log);
+    store.updateRunStatus(runId, status);
+    log('info', status === 'paused' ? `paused before step ${store.nextStep(runId)}` : 'stopped by the user');
+    options.emit('progress', progress(runId, store.nextStep(runId), total(), 0, status));
+    return status;
+  }
+}
+
+function progress(runId: number, step: number, total: number, etaS: number, status: RunStatus): RunProgress {
+  return { runId, step, total, etaS, status };
+}
+
+/** Remaining physical time scaled by how the sweep has kept pace with its physical minimum so far. */
+function etaS(queue: StepSetting[], elapsedS: number, physicalDoneS: number): number {
+  const remainingS = queue.reduce((sum, s) => sum + s.settleS + s.averages * s.integrateS, 0);
+  const pace = physicalDoneS > 0 ? Math.max(1, elapsedS / physicalDoneS) : 1;
+  return remainingS * pace;
+}
+
+/** The generator is switched off whenever a sweep leaves the running state: nothing stays driven unattended. */
+async function outputOff(instruments: SweepInstruments | undefined, log: (level: RunEvent['level'], message: string) => void): Promise<void> {
+  if (!instruments) return;
+  try {
+    await instruments.generator.setOutput(false);
+  } catch (error) {
+    log('warning', `could not switch the generator output off: ${(error as Error).message}`);
+  }
+}
