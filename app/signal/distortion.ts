@@ -7,7 +7,7 @@ import type { SineFit } from './sine-fit';
 
 /**
  * Residual RMS over the fitted sine's RMS (A/√2). 0 for a perfect sine; a full
- * triangle wave scores about 0.12, a sine clipped at 80 % of its peak about 0.05.
+ * triangle wave scores about 0.12, a sine clipped at 80 % of its peak about 0.09.
  */
 export function distortionScore(fit: SineFit): number {
   const sineRmsV = fit.amplitudeV / Math.SQRT2;
