@@ -1,0 +1,146 @@
+/**
+ * The record model: everything a test record shows, as plain JSON-safe data.
+ * The JSON export IS this object, so a JSON file rebuilds the record exactly and
+ * every other format (PDF, HTML, CSV) is rendered from it alone.
+ *
+ * Numbers that were not finite at the source (overrange, not-a-number readings)
+ * are null here: JSON cannot carry NaN or ±Infinity, and the flags column says why.
+ */
+import type {
+  InstrumentInfo,
+  RunEvent,
+  RunFigures,
+  RunKind,
+  RunStatus,
+  SweepRequest,
+  Verdict,
+} from '../service/contract';
+
+/** Bumped when the record layout changes; readers refuse versions they do not know. */
+export const RECORD_FORMAT_VERSION = 1;
+
+export type MaybeNumber = number | null;
+
+/** Columnar measured points; index i of every array is one point. */
+export interface RecordPoints {
+  step: number[];
+  /** Hz for AC runs, input volts for DC runs. */
+  stimulus: MaybeNumber[];
+  amplitudeVpp: MaybeNumber[];
+  gainDb: MaybeNumber[];
+  gainUncertaintyDb: MaybeNumber[];
+  phaseDeg: MaybeNumber[];
+  phaseUncertaintyDeg: MaybeNumber[];
+  outputV: MaybeNumber[];
+  flags: number[];
+  measuredAt: string[];
+}
+
+/** Theory of the actual circuit on its own grid (Hz for AC, input volts for DC). */
+export interface RecordTheory {
+  stimulus: MaybeNumber[];
+  gainDb: MaybeNumber[];
+  phaseDeg: MaybeNumber[];
+  idealGainDb: MaybeNumber[];
+  idealPhaseDeg: MaybeNumber[];
+  bandLowDb: MaybeNumber[] | null;
+  bandHighDb: MaybeNumber[] | null;
+  /** Frequency where the loop gain falls to 1 (DESIGN.md "Theory"), if the theory found one. */
+  gainLimitHz: number | null;
+  minus3dbHz: number[];
+}
+
+/** DC log stage: the fitted transfer curve drawn over the measured points. */
+export interface RecordDcFit {
+  inputV: number[];
+  outputV: number[];
+  description: string;
+}
+
+export interface RecordDigest {
+  algorithm: 'SHA-256';
+  /** How the hashed bytes are made; see app/record/DIGEST.md. */
+  method: string;
+  hex: string;
+}
+
+export interface RecordRun {
+  id: number;
+  kind: RunKind;
+  status: RunStatus;
+  startedAt: string | null;
+  endedAt: string | null;
+  operator: string;
+  notes: string;
+  simulated: boolean;
+  /** Software that measured the run (may differ from the one that exported it). */
+  softwareVersion: string;
+  pointCount: number;
+  plannedCount: number;
+  plan: SweepRequest;
+}
+
+export interface RecordDesign {
+  id: number | null;
+  name: string;
+  /** The design file's JSON as stored (parts, values, op-amp model). */
+  content: unknown;
+}
+
+export interface RecordBuild {
+  id: number;
+  label: string;
+  notes: string;
+  /** Measured part values by part id, SI units. */
+  actualValues: Record<string, number>;
+  createdAt: string | null;
+}
+
+export interface RunRecord {
+  recordType: 'run';
+  formatVersion: typeof RECORD_FORMAT_VERSION;
+  title: string;
+  generatedAt: string;
+  /** Software that wrote this record. */
+  generatedBy: string;
+  safetyNotice: string[];
+  run: RecordRun;
+  design: RecordDesign;
+  build: RecordBuild;
+  bench: InstrumentInfo[];
+  points: RecordPoints;
+  theory: RecordTheory;
+  dcFit: RecordDcFit | null;
+  figures: RunFigures;
+  verdict: Verdict | null;
+  events: RunEvent[];
+  digest: RecordDigest;
+}
+
+export interface ComparisonFigureRow {
+  runId: number;
+  label: string;
+  figures: RunFigures;
+  deltas: Partial<Record<keyof RunFigures, number>>;
+  verdict: Verdict | null;
+}
+
+export interface ComparisonRecord {
+  recordType: 'comparison';
+  formatVersion: typeof RECORD_FORMAT_VERSION;
+  title: string;
+  generatedAt: string;
+  generatedBy: string;
+  safetyNotice: string[];
+  /** A run id, or "theory" when each run is compared with its own theory. */
+  reference: number | 'theory';
+  /** Full record of every compared run, in the order given. */
+  runs: RunRecord[];
+  /** Per run: stimulus and measured − reference, dB. */
+  differences: Array<{ runId: number; stimulus: MaybeNumber[]; deltaDb: MaybeNumber[] }>;
+  figureTable: ComparisonFigureRow[];
+  /** SHA-256 over the member runs' digests, in order (see DIGEST.md). */
+  digest: RecordDigest;
+}
+
+export type AnyRecord = RunRecord | ComparisonRecord;

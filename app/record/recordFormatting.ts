@@ -1,0 +1,79 @@
+/** Words and number formats a record uses, shared by every format so they say the same thing. */
+import { PointFlag, type InstrumentIdentity, type RunFigures, type Verdict } from '../service/contract';
+import { formatEngineering } from '../units';
+import type { MaybeNumber } from './model';
+
+export const FLAG_NAMES: Record<keyof typeof PointFlag, string> = {
+  distorted: 'distorted',
+  overrange: 'overrange',
+  notANumber: 'not a number',
+  outsideToleranceBand: 'outside tolerance band',
+  retried: 'retried',
+  refinement: 'refinement point',
+  pastGainLimit: 'past gain limit',
+};
+
+/** Flag bits → words, e.g. 9 → "distorted; outside tolerance band". Unknown bits are named by value. */
+export function flagWords(flags: number): string {
+  const words: string[] = [];
+  let known = 0;
+  for (const [key, bit] of Object.entries(PointFlag) as Array<[keyof typeof PointFlag, number]>) {
+    known |= bit;
+    if (flags & bit) words.push(FLAG_NAMES[key]);
+  }
+  const unknown = flags & ~known;
+  if (unknown) words.push(`unknown flags ${unknown}`);
+  return words.join('; ');
+}
+
+export function formatMaybe(value: MaybeNumber | undefined, format: (v: number) => string, missing = '—'): string {
+  return value === null || value === undefined || !Number.isFinite(value) ? missing : format(value);
+}
+
+export const formatHz = (value: number) => formatEngineering(value, 'Hz', 4);
+export const formatVolts = (value: number) => formatEngineering(value, 'V', 4);
+export const formatDb = (value: number, decimals = 2) => `${value.toFixed(decimals)} dB`;
+export const formatDeg = (value: number, decimals = 1) => `${value.toFixed(decimals)}°`;
+
+/** The reply an instrument gave to *IDN? (IEEE 488.2 §10.14: four comma-separated fields). */
+export function idnText(identity: InstrumentIdentity): string {
+  return [identity.manufacturer, identity.model, identity.serialNumber, identity.firmware].join(',');
+}
+
+export function verdictHeadline(verdict: Verdict | null): string {
+  if (!verdict) return 'NO VERDICT (no limits were set for this run)';
+  return verdict.pass ? 'PASS' : 'FAIL';
+}
+
+export interface FigureLine {
+  key: keyof RunFigures | 'logFit.n' | 'logFit.isA' | 'logFit.rsOhm';
+  label: string;
+  value: string;
+}
+
+/** Extracted figures as labelled lines; only figures the run has. */
+export function figureLines(figures: RunFigures): FigureLine[] {
+  const lines: FigureLine[] = [];
+  if (isNumber(figures.passbandGainDb)) lines.push({ key: 'passbandGainDb', label: 'Pass-band gain', value: formatDb(figures.passbandGainDb) });
+  if (figures.minus3dbHz && figures.minus3dbHz.length > 0) lines.push({ key: 'minus3dbHz', label: '−3 dB frequencies', value: figures.minus3dbHz.map(formatHz).join(', ') });
+  if (isNumber(figures.rolloffDbPerDecade)) lines.push({ key: 'rolloffDbPerDecade', label: 'Roll-off', value: `${figures.rolloffDbPerDecade.toFixed(1)} dB/decade` });
+  if (isNumber(figures.gainLimitHz)) lines.push({ key: 'gainLimitHz', label: 'Gain-limit point (loop gain = 1)', value: formatHz(figures.gainLimitHz) });
+  if (isNumber(figures.gbwEstimateHz)) {
+    const uncertainty = isNumber(figures.gbwUncertaintyHz) ? ` ± ${formatHz(figures.gbwUncertaintyHz)}` : '';
+    lines.push({ key: 'gbwEstimateHz', label: 'Op-amp gain-bandwidth estimate', value: formatHz(figures.gbwEstimateHz) + uncertainty });
+  }
+  if (isNumber(figures.maxDeviationDb)) lines.push({ key: 'maxDeviationDb', label: 'Largest deviation from theory', value: formatDb(figures.maxDeviationDb) });
+  const fit = figures.logFit;
+  if (fit) {
+    const ci = (pair: [number, number], format: (v: number) => string) => `95 % interval ${format(pair[0])} … ${format(pair[1])}`;
+    const plain = (v: number) => Number(v.toPrecision(4)).toString();
+    lines.push({ key: 'logFit.n', label: 'Diode ideality factor n', value: `${plain(fit.n)} (${ci(fit.nCi, plain)})` });
+    lines.push({ key: 'logFit.isA', label: 'Saturation current I_S', value: `${formatEngineering(fit.isA, 'A', 4)} (${ci(fit.isCi, (v) => formatEngineering(v, 'A', 4))})` });
+    lines.push({ key: 'logFit.rsOhm', label: 'Series resistance R_S', value: `${formatEngineering(fit.rsOhm, 'Ω', 4)} (${ci(fit.rsCi, (v) => formatEngineering(v, 'Ω', 4))})` });
+  }
+  return lines;
+}
+
+function isNumber(value: unknown): value is number {
+  return typeof value === 'number' && Number.isFinite(value);
+}

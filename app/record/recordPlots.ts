@@ -1,0 +1,193 @@
+/**
+ * Which plots a record shows, built from the record alone:
+ * run (AC) → Bode gain and phase, measured over theory, tolerance band,
+ *            gain-limit point and −3 dB points marked;
+ * run (DC) → transfer curve, measured points and the fitted curve;
+ * comparison → overlay of all runs and their difference from the reference.
+ */
+import { formatEngineering, unwrapPhaseDeg } from '../units';
+import { linearAxis, logAxis, type Axis } from './plotAxes';
+import type { ComparisonRecord, MaybeNumber, RunRecord } from './model';
+import type { PlotMarker, PlotSeries, PlotSpec } from './plotSpec';
+
+export const PLOT_COLORS = {
+  measured: '#1f4fbf',
+  theory: '#202020',
+  ideal: '#8a8a8a',
+  band: '#9fd3a8',
+  measuredMarker: '#c0392b',
+  theoryMarker: '#6d6d6d',
+  gainLimit: '#b7720b',
+};
+
+/** Distinct colours for runs in a comparison, in order. */
+export const RUN_COLORS = ['#1f4fbf', '#c0392b', '#2e8b57', '#8e44ad', '#d35400', '#16a085', '#7a5c12', '#555555'];
+
+export function runPlots(record: RunRecord): PlotSpec[] {
+  return record.run.kind === 'dc' ? [dcTransferPlot(record)] : [gainPlot(record), phasePlot(record)];
+}
+
+export function comparisonPlots(record: ComparisonRecord): PlotSpec[] {
+  return [overlayPlot(record), differencePlot(record)];
+}
+
+function stimulusAxis(record: RunRecord, extra: MaybeNumber[] = []): Axis {
+  const values = [...record.points.stimulus, ...record.theory.stimulus, ...extra];
+  return logAxis(values, 'Frequency (Hz)', 'Hz');
+}
+
+function gainMarkers(record: RunRecord): PlotMarker[] {
+  const markers: PlotMarker[] = [];
+  if (record.theory.gainLimitHz !== null) {
+    markers.push({ name: 'Gain limit (theory)', color: PLOT_COLORS.gainLimit, x: record.theory.gainLimitHz, label: `gain limit ${formatEngineering(record.theory.gainLimitHz, 'Hz', 3)}` });
+  }
+  if (record.figures.gainLimitHz !== undefined && record.figures.gainLimitHz !== null) {
+    markers.push({ name: 'Gain limit (measured)', color: PLOT_COLORS.measuredMarker, x: record.figures.gainLimitHz, label: `meas. gain limit ${formatEngineering(record.figures.gainLimitHz, 'Hz', 3)}` });
+  }
+  for (const f of record.theory.minus3dbHz) {
+    markers.push({ name: '−3 dB (theory)', color: PLOT_COLORS.theoryMarker, x: f, label: `−3 dB ${formatEngineering(f, 'Hz', 3)}` });
+  }
+  for (const f of record.figures.minus3dbHz ?? []) {
+    markers.push({ name: '−3 dB (measured)', color: PLOT_COLORS.measuredMarker, x: f, label: `meas. −3 dB ${formatEngineering(f, 'Hz', 3)}` });
+  }
+  return markers;
+}
+
+function gainPlot(record: RunRecord): PlotSpec {
+  const { points, theory } = record;
+  const yValues = [...points.gainDb, ...theory.gainDb, ...(theory.bandLowDb ?? []), ...(theory.bandHighDb ?? [])];
+  const series: PlotSeries[] = [];
+  if (theory.idealGainDb.some((v) => v !== null)) series.push({ name: 'Ideal op-amp', color: PLOT_COLORS.ideal, style: 'dashed', xs: theory.stimulus, ys: theory.idealGainDb });
+  if (theory.stimulus.length) series.push({ name: 'Theory (actual circuit)', color: PLOT_COLORS.theory, style: 'line', xs: theory.stimulus, ys: theory.gainDb });
+  series.push({ name: 'Measured ± uncertainty', color: PLOT_COLORS.measured, style: 'points', xs: points.stimulus, ys: points.gainDb, errors: points.gainUncertaintyDb });
+  return {
+    title: 'Gain',
+    x: stimulusAxis(record),
+    y: linearAxis(yValues, 'Gain (dB)', ''),
+    bands: theory.bandLowDb && theory.bandHighDb ? [{ name: 'Tolerance band', color: PLOT_COLORS.band, xs: theory.stimulus, lows: theory.bandLowDb, highs: theory.bandHighDb }] : [],
+    series,
+    markers: gainMarkers(record),
+  };
+}
+
+/** Linear interpolation in log-frequency; null outside the grid. */
+function interpolateLog(xs: MaybeNumber[], ys: MaybeNumber[], x: number): number | null {
+  for (let i = 1; i < xs.length; i++) {
+    const x0 = xs[i - 1];
+    const x1 = xs[i];
+    const y0 = ys[i - 1];
+    const y1 = ys[i];
+    if (x0 === null || x1 === null || y0 === null || y1 === null || x0 <= 0 || x1 <= 0) continue;
+    if ((x >= x0 && x <= x1) || (x <= x0 && x >= x1)) {
+      const t = x1 === x0 ? 0 : Math.log(x / x0) / Math.log(x1 / x0);
+      return y0 + t * (y1 - y0);
+    }
+  }
+  return null;
+}
+
+/** Unwraps a phase column with the one unwrap in app/units, keeping null gaps as gaps. */
+function unwrapColumn(values: MaybeNumber[]): MaybeNumber[] {
+  const present = values.map((v, i) => [v, i] as const).filter(([v]) => v !== null) as Array<readonly [number, number]>;
+  const unwrapped = unwrapPhaseDeg(Float64Array.from(present.map(([v]) => v)));
+  const result: MaybeNumber[] = values.map(() => null);
+  present.forEach(([, index], k) => (result[index] = unwrapped[k]));
+  return result;
+}
+
+/** Shifts a phase curve by whole turns so it lies on the same branch as a reference curve. */
+function alignToReference(phases: MaybeNumber[], stimulus: MaybeNumber[], refStimulus: MaybeNumber[], refPhases: MaybeNumber[]): MaybeNumber[] {
+  const first = phases.findIndex((p, i) => p !== null && stimulus[i] !== null);
+  if (first < 0) return phases;
+  const reference = interpolateLog(refStimulus, refPhases, stimulus[first]!);
+  if (reference === null) return phases;
+  const turns = Math.round((reference - phases[first]!) / 360);
+  return phases.map((p) => (p === null ? null : p + 360 * turns));
+}
+
+function phasePlot(record: RunRecord): PlotSpec {
+  const { points, theory } = record;
+  const theoryPhase = unwrapColumn(theory.phaseDeg);
+  const idealPhase = alignToReference(unwrapColumn(theory.idealPhaseDeg), theory.stimulus, theory.stimulus, theoryPhase);
+  const measuredPhase = alignToReference(unwrapColumn(points.phaseDeg), points.stimulus, theory.stimulus, theoryPhase);
+  const series: PlotSeries[] = [];
+  if (idealPhase.some((v) => v !== null)) series.push({ name: 'Ideal op-amp', color: PLOT_COLORS.ideal, style: 'dashed', xs: theory.stimulus, ys: idealPhase });
+  if (theory.stimulus.length) series.push({ name: 'Theory (actual circuit)', color: PLOT_COLORS.theory, style: 'line', xs: theory.stimulus, ys: theoryPhase });
+  series.push({ name: 'Measured ± uncertainty', color: PLOT_COLORS.measured, style: 'points', xs: points.stimulus, ys: measuredPhase, errors: points.phaseUncertaintyDeg });
+  return {
+    title: 'Phase',
+    x: stimulusAxis(record),
+    y: linearAxis([...theoryPhase, ...measuredPhase], 'Phase (°)', ''),
+    bands: [],
+    series,
+    markers: gainMarkers(record).filter((m) => m.name.startsWith('Gain limit')),
+  };
+}
+
+function inputAxis(values: MaybeNumber[]): Axis {
+  const finite = values.filter((v): v is number => v !== null);
+  // A log stage is swept over decades of input; fall back to linear if any input is ≤ 0.
+  return finite.length > 0 && finite.every((v) => v > 0) ? logAxis(finite, 'Input (V)', 'V') : linearAxis(finite, 'Input (V)', 'V');
+}
+
+function dcTransferPlot(record: RunRecord): PlotSpec {
+  const { points, dcFit } = record;
+  const series: PlotSeries[] = [];
+  if (dcFit) series.push({ name: dcFit.description || 'Fitted curve', color: PLOT_COLORS.theory, style: 'line', xs: dcFit.inputV, ys: dcFit.outputV });
+  series.push({ name: 'Measured', color: PLOT_COLORS.measured, style: 'points', xs: points.stimulus, ys: points.outputV });
+  return {
+    title: 'DC transfer',
+    x: inputAxis([...points.stimulus, ...(dcFit?.inputV ?? [])]),
+    y: linearAxis([...points.outputV, ...(dcFit?.outputV ?? [])], 'Output (V)', 'V'),
+    bands: [],
+    series,
+    markers: [],
+  };
+}
+
+function runLegendName(run: RunRecord): string {
+  return `Run ${run.run.id} — ${run.build.label}`;
+}
+
+function overlayPlot(record: ComparisonRecord): PlotSpec {
+  const dc = record.runs.every((r) => r.run.kind === 'dc');
+  const series: PlotSeries[] = [];
+  const first = record.runs[0];
+  if (!dc && record.reference === 'theory' && first.theory.stimulus.length) {
+    series.push({ name: `Theory (run ${first.run.id})`, color: PLOT_COLORS.theory, style: 'dashed', xs: first.theory.stimulus, ys: first.theory.gainDb });
+  }
+  record.runs.forEach((run, i) => {
+    const color = RUN_COLORS[i % RUN_COLORS.length];
+    const ys = dc ? run.points.outputV : run.points.gainDb;
+    series.push({ name: runLegendName(run) + (run.run.id === record.reference ? ' (reference)' : ''), color, style: 'line', xs: run.points.stimulus, ys });
+  });
+  const xs = series.flatMap((s) => s.xs);
+  const ys = series.flatMap((s) => s.ys);
+  return {
+    title: dc ? 'Overlay: DC transfer' : 'Overlay: gain',
+    x: dc ? inputAxis(xs) : logAxis(xs, 'Frequency (Hz)', 'Hz'),
+    y: dc ? linearAxis(ys, 'Output (V)', 'V') : linearAxis(ys, 'Gain (dB)', ''),
+    bands: [],
+    series,
+    markers: [],
+  };
+}
+
+function differencePlot(record: ComparisonRecord): PlotSpec {
+  const dc = record.runs.every((r) => r.run.kind === 'dc');
+  const series: PlotSeries[] = record.differences.map((difference) => {
+    const index = record.runs.findIndex((r) => r.run.id === difference.runId);
+    const run = record.runs[index];
+    return { name: run ? runLegendName(run) : `Run ${difference.runId}`, color: RUN_COLORS[Math.max(0, index) % RUN_COLORS.length], style: 'line' as const, xs: difference.stimulus, ys: difference.deltaDb };
+  });
+  const xs = series.flatMap((s) => s.xs);
+  const reference = record.reference === 'theory' ? 'theory' : `run ${record.reference}`;
+  return {
+    title: `Difference from ${reference}`,
+    x: dc ? inputAxis(xs) : logAxis(xs, 'Frequency (Hz)', 'Hz'),
+    y: linearAxis([0, ...series.flatMap((s) => s.ys)], `Measured − ${reference} (dB)`, ''),
+    bands: [],
+    series,
+    markers: [],
+  };
+}

@@ -1,0 +1,210 @@
+/** The content of a run record, in reading order (see recordDocument.ts). */
+import { formatEngineering } from '../units';
+import type { Block, RecordDocument } from './recordDocument';
+import type { RecordDesign, RunRecord } from './model';
+import { runPlots } from './recordPlots';
+import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatVolts, idnText, verdictHeadline } from './recordFormatting';
+
+export const SIMULATED_BANNER = 'SIMULATED BENCH — these readings come from the virtual bench and describe a computed circuit, not a physical board.';
+
+export function runDocument(record: RunRecord): RecordDocument {
+  const { run } = record;
+  const blocks: Block[] = [
+    { kind: 'verdict', pass: record.verdict ? record.verdict.pass : null, headline: verdictHeadline(record.verdict), reasons: record.verdict?.reasons ?? [] },
+    {
+      kind: 'keyValues',
+      rows: [
+        ['Run', `${run.id} (${run.kind === 'ac' ? 'AC frequency sweep' : 'DC transfer sweep'}, ${run.status})`],
+        ['Build', record.build.label],
+        ['Design', record.design.name],
+        ['Operator', run.operator || '—'],
+        ['Started', run.startedAt ?? '—'],
+        ['Ended', run.endedAt ?? '—'],
+        ['Points', `${run.pointCount} of ${run.plannedCount} planned`],
+        ['Measured with', `Rolloff ${run.softwareVersion}`],
+        ['Bench', run.simulated ? 'simulated (virtual bench)' : 'physical instruments'],
+        ['Data digest (SHA-256)', record.digest.hex],
+      ],
+    },
+    ...benchBlocks(record),
+    ...designBlocks(record.design, record),
+    ...planBlocks(record),
+    { kind: 'heading', text: run.kind === 'ac' ? 'Frequency response' : 'DC transfer' },
+    ...runPlots(record).map((spec) => ({ kind: 'plot' as const, spec })),
+    ...figureBlocks(record),
+    ...pointBlocks(record),
+    ...eventBlocks(record),
+    { kind: 'heading', text: 'Data digest' },
+    { kind: 'keyValues', rows: [['SHA-256', record.digest.hex], ['Method', record.digest.method]] },
+    { kind: 'heading', text: 'Safety' },
+    { kind: 'list', items: record.safetyNotice },
+  ];
+  return {
+    title: record.title,
+    banner: run.simulated ? SIMULATED_BANNER : null,
+    blocks,
+    footer: `${record.generatedBy} — record generated ${record.generatedAt} — run ${run.id} — SHA-256 ${record.digest.hex.slice(0, 16)}…`,
+  };
+}
+
+export function benchBlocks(record: RunRecord): Block[] {
+  return [
+    { kind: 'heading', text: 'Bench' },
+    {
+      kind: 'table',
+      columns: ['Role', 'Address', 'Profile', '*IDN? reply', 'Simulated'],
+      rows: record.bench.map((i) => [i.role, i.address, i.profileId, idnText(i.identity), i.simulated ? 'yes' : 'no']),
+    },
+  ];
+}
+
+interface DesignPartView {
+  id: string;
+  kind: string;
+  nodes: string;
+  value: number | null;
+  /** Model parameters for op-amps and diodes, as text. */
+  modelText: string | null;
+}
+
+/** Op-amp and diode model fields (app/circuit design file) with their units, for the parts table. */
+const MODEL_FIELDS: Array<[string, string, string]> = [
+  ['openLoopGain', 'A0', ''], ['gbw', 'GBW', 'Hz'], ['slewRate', 'SR', 'V/s'], ['secondPoleHz', '2nd pole', 'Hz'],
+  ['inputOffsetV', 'Vos', 'V'], ['inputBiasA', 'Ib', 'A'], ['is', 'IS', 'A'], ['n', 'N', ''], ['rs', 'RS', 'Ω'],
+];
+
+function modelText(model: unknown): string | null {
+  if (!model || typeof model !== 'object') return null;
+  const m = model as Record<string, unknown>;
+  const fields = MODEL_FIELDS.filter(([key]) => typeof m[key] === 'number').map(([key, name, unit]) => `${name} ${formatEngineering(m[key] as number, unit)}`);
+  if (Array.isArray(m.rails)) fields.push(`rails ${m.rails.map((v) => formatEngineering(Number(v), 'V')).join(' / ')}`);
+  if (m.ideal === true) fields.push('ideal');
+  return fields.length ? fields.join(', ') : null;
+}
+
+/** Reads parts from a design file if it has a parts list; the full JSON is shown anyway. */
+function designParts(content: unknown): DesignPartView[] {
+  const parts = (content as { parts?: unknown } | null)?.parts;
+  if (!Array.isArray(parts)) return [];
+  return parts.flatMap((part) => {
+    if (!part || typeof part !== 'object') return [];
+    const p = part as Record<string, unknown>;
+    const id = String(p.id ?? p.name ?? '?');
+    const kind = String(p.type ?? p.kind ?? '');
+    const nodes = Array.isArray(p.nodes) ? p.nodes.join(' – ') : '';
+    const value = typeof p.value === 'number' ? p.value : null;
+    return [{ id, kind, nodes, value, modelText: modelText(p.model) }];
+  });
+}
+
+/** Design JSON with one part per line: complete, but short enough to print. */
+export function compactDesignJson(content: unknown): string {
+  if (!content || typeof content !== 'object' || Array.isArray(content)) return JSON.stringify(content, null, 2) ?? 'null';
+  const lines = Object.entries(content as Record<string, unknown>).map(([key, value]) => {
+    if (Array.isArray(value) && value.length > 0) return `  ${JSON.stringify(key)}: [\n${value.map((v) => `    ${JSON.stringify(v)}`).join(',\n')}\n  ]`;
+    return `  ${JSON.stringify(key)}: ${JSON.stringify(value)}`;
+  });
+  return `{\n${lines.join(',\n')}\n}`;
+}
+
+const UNIT_BY_KIND: Record<string, string> = { resistor: 'Ω', R: 'Ω', capacitor: 'F', C: 'F', inductor: 'H', L: 'H' };
+
+function designBlocks(design: RecordDesign, record: RunRecord): Block[] {
+  const parts = designParts(design.content);
+  const actual = record.build.actualValues;
+  const blocks: Block[] = [{ kind: 'heading', text: 'Design and build' }];
+  blocks.push({
+    kind: 'keyValues',
+    rows: [
+      ['Design', `${design.name}${design.id !== null ? ` (id ${design.id})` : ''}`],
+      ['Build label', record.build.label],
+      ['Build notes', record.build.notes || '—'],
+      ['Build created', record.build.createdAt ?? '—'],
+    ],
+  });
+  const partIds = new Set(parts.map((p) => p.id));
+  const rows = parts.map((p) => {
+    const unit = UNIT_BY_KIND[p.kind] ?? '';
+    const measured = actual[p.id];
+    const deviation = measured !== undefined && p.value ? `${(((measured - p.value) / p.value) * 100).toFixed(2)} %` : '—';
+    return [p.id, p.kind, p.nodes, p.modelText ?? formatMaybe(p.value, (v) => formatEngineering(v, unit)), measured === undefined ? '—' : formatEngineering(measured, unit), deviation];
+  });
+  for (const [id, value] of Object.entries(actual)) if (!partIds.has(id)) rows.push([id, '', '', '—', formatEngineering(value), '—']);
+  if (rows.length > 0) blocks.push({ kind: 'table', caption: 'Parts: design values and the values measured on this build', columns: ['Part', 'Kind', 'Nodes', 'Design value or model', 'Actual value', 'Deviation'], rows });
+  blocks.push({ kind: 'code', caption: 'Design file (JSON, including the op-amp model)', text: compactDesignJson(design.content) });
+  return blocks;
+}
+
+function planBlocks(record: RunRecord): Block[] {
+  const plan = record.run.plan;
+  const unitFormat = record.run.kind === 'ac' ? formatHz : formatVolts;
+  const amplitude = plan.amplitude.mode === 'fixed'
+    ? `fixed ${formatEngineering(plan.amplitude.vpp, 'Vpp')}`
+    : `chosen per point from theory${plan.amplitude.targetOutputVpp ? `, target output ${formatEngineering(plan.amplitude.targetOutputVpp, 'Vpp')}` : ''}`;
+  const limits = plan.limits;
+  const limitText = limits
+    ? [
+        limits.maxDeviationDb !== undefined ? `|measured − theory| ≤ ${limits.maxDeviationDb} dB` : null,
+        limits.cornerTolerance !== undefined ? `−3 dB points within ±${(limits.cornerTolerance * 100).toFixed(1)} %` : null,
+        limits.passbandGainDb ? `pass-band gain ${limits.passbandGainDb[0]} … ${limits.passbandGainDb[1]} dB` : null,
+      ].filter(Boolean).join('; ') || 'none'
+    : 'none';
+  return [
+    { kind: 'heading', text: 'Plan' },
+    {
+      kind: 'keyValues',
+      rows: [
+        ['Sweep', `${unitFormat(plan.from)} to ${unitFormat(plan.to)}, ${plan.spacing}, ${plan.pointsPerDecade} points per decade`],
+        ['Stimulus amplitude', amplitude],
+        ['Measured with', plan.measurement],
+        ['Minimum cycles / averages', `${plan.minCycles} / ${plan.averages}`],
+        ['Refinement near corners', plan.refine ? 'yes' : 'no'],
+        ['Limits', limitText],
+        ['Run notes', record.run.notes || '—'],
+      ],
+    },
+  ];
+}
+
+function figureBlocks(record: RunRecord): Block[] {
+  const rows: Array<[string, string]> = figureLines(record.figures).map((line) => [line.label, line.value]);
+  if (record.theory.gainLimitHz !== null) rows.push(['Gain-limit point, theory', formatHz(record.theory.gainLimitHz)]);
+  if (record.theory.minus3dbHz.length > 0) rows.push(['−3 dB frequencies, theory', record.theory.minus3dbHz.map(formatHz).join(', ')]);
+  return [{ kind: 'heading', text: 'Extracted figures' }, rows.length ? { kind: 'keyValues', rows } : { kind: 'paragraph', text: 'No figures were extracted from this run.' }];
+}
+
+function pointBlocks(record: RunRecord): Block[] {
+  const p = record.points;
+  const ac = record.run.kind === 'ac';
+  const rows = p.step.map((step, i) => {
+    const gain = formatMaybe(p.gainDb[i], (v) => `${formatDb(v, 3)} ± ${formatMaybe(p.gainUncertaintyDb[i], (u) => u.toFixed(3))}`);
+    const phase = formatMaybe(p.phaseDeg[i], (v) => `${formatDeg(v, 2)} ± ${formatMaybe(p.phaseUncertaintyDeg[i], (u) => u.toFixed(2))}`);
+    const stimulus = formatMaybe(p.stimulus[i], ac ? formatHz : formatVolts);
+    const amplitude = formatMaybe(p.amplitudeVpp[i], (v) => formatEngineering(v, 'Vpp'));
+    return ac
+      ? [String(step), stimulus, amplitude, gain, phase, flagWords(p.flags[i]), p.measuredAt[i]]
+      : [String(step), stimulus, formatMaybe(p.outputV[i], formatVolts), flagWords(p.flags[i]), p.measuredAt[i]];
+  });
+  const columns = ac
+    ? ['#', 'Frequency', 'Amplitude', 'Gain ± u', 'Phase ± u', 'Flags', 'Measured at']
+    : ['#', 'Input', 'Output', 'Flags', 'Measured at'];
+  return [
+    { kind: 'heading', text: 'Points' },
+    {
+      kind: 'table',
+      caption: ac ? 'u: the uncertainty stored with each point by the measurement.' : undefined,
+      columns,
+      rows,
+      alignRight: columns.map((c) => c !== 'Flags' && c !== 'Measured at'),
+    },
+  ];
+}
+
+function eventBlocks(record: RunRecord): Block[] {
+  return [
+    { kind: 'heading', text: 'Events and notes' },
+    record.events.length
+      ? { kind: 'table', columns: ['Time', 'Level', 'Message'], rows: record.events.map((e) => [e.at, e.level, e.message]) }
+      : { kind: 'paragraph', text: 'No events were logged during this run.' },
+  ];
+}

@@ -1,0 +1,49 @@
+/** Renders a laid-out plot (plotSpec.ts) as inline SVG: vector paths, decade grid, legend. */
+import { escapeHtml } from './htmlEscape';
+import { layoutPlot, type PlotSpec, type XY } from './plotSpec';
+
+const WIDTH = 760;
+const HEIGHT = 360;
+const FRAME = { left: 64, top: 28, width: 500, height: 280 };
+
+const num = (v: number) => Number(v.toFixed(2)).toString();
+const pointsAttr = (path: XY[]) => path.map((p) => `${num(p.x)},${num(p.y)}`).join(' ');
+
+export function svgPlot(spec: PlotSpec): string {
+  const layout = layoutPlot(spec, FRAME);
+  const out: string[] = [];
+  out.push(`<svg xmlns="http://www.w3.org/2000/svg" class="plot" viewBox="0 0 ${WIDTH} ${HEIGHT}" width="${WIDTH}" height="${HEIGHT}" role="img" aria-label="${escapeHtml(spec.title)}">`);
+  out.push(`<text x="${FRAME.left}" y="16" class="plot-title">${escapeHtml(spec.title)}</text>`);
+  for (const line of layout.grid) {
+    out.push(`<line x1="${num(line.from.x)}" y1="${num(line.from.y)}" x2="${num(line.to.x)}" y2="${num(line.to.y)}" class="${line.major ? 'grid-major' : 'grid-minor'}"/>`);
+  }
+  for (const band of layout.bands) {
+    for (const polygon of band.polygons) out.push(`<polygon points="${pointsAttr(polygon)}" fill="${band.color}" fill-opacity="0.45" stroke="none"/>`);
+  }
+  for (const line of layout.lines) {
+    for (const path of line.paths) out.push(`<polyline points="${pointsAttr(path)}" fill="none" stroke="${line.color}" stroke-width="1.5"${line.dashed ? ' stroke-dasharray="5 3"' : ''}/>`);
+  }
+  for (const marker of layout.markers) {
+    out.push(`<line x1="${num(marker.from.x)}" y1="${num(marker.from.y)}" x2="${num(marker.to.x)}" y2="${num(marker.to.y)}" stroke="${marker.color}" stroke-width="1" stroke-dasharray="2 2"/>`);
+    out.push(`<text x="${num(marker.labelAt.x)}" y="${num(marker.labelAt.y)}" text-anchor="${marker.labelAnchor}" class="marker-label" fill="${marker.color}">${escapeHtml(marker.label)}</text>`);
+  }
+  for (const series of layout.points) {
+    for (const [a, b] of series.errorBars) out.push(`<line x1="${num(a.x)}" y1="${num(a.y)}" x2="${num(b.x)}" y2="${num(b.y)}" stroke="${series.color}" stroke-width="1"/>`);
+    for (const dot of series.dots) out.push(`<circle cx="${num(dot.x)}" cy="${num(dot.y)}" r="2.5" fill="${series.color}"/>`);
+  }
+  out.push(`<rect x="${FRAME.left}" y="${FRAME.top}" width="${FRAME.width}" height="${FRAME.height}" fill="none" stroke="#000" stroke-width="1"/>`);
+  for (const label of layout.xLabels) out.push(`<text x="${num(label.at.x)}" y="${num(label.at.y + 14)}" text-anchor="middle" class="tick">${escapeHtml(label.text)}</text>`);
+  for (const label of layout.yLabels) out.push(`<text x="${num(label.at.x - 4)}" y="${num(label.at.y + 3)}" text-anchor="end" class="tick">${escapeHtml(label.text)}</text>`);
+  out.push(`<text x="${FRAME.left + FRAME.width / 2}" y="${FRAME.top + FRAME.height + 32}" text-anchor="middle" class="axis-title">${escapeHtml(spec.x.title)}</text>`);
+  out.push(`<text transform="translate(14 ${FRAME.top + FRAME.height / 2}) rotate(-90)" text-anchor="middle" class="axis-title">${escapeHtml(spec.y.title)}</text>`);
+  const legendX = FRAME.left + FRAME.width + 14;
+  layout.legend.forEach((entry, i) => {
+    const y = FRAME.top + 8 + i * 16;
+    if (entry.style === 'band') out.push(`<rect x="${legendX}" y="${y - 5}" width="18" height="10" fill="${entry.color}" fill-opacity="0.45"/>`);
+    else if (entry.style === 'points') out.push(`<circle cx="${legendX + 9}" cy="${y}" r="3" fill="${entry.color}"/>`);
+    else out.push(`<line x1="${legendX}" y1="${y}" x2="${legendX + 18}" y2="${y}" stroke="${entry.color}" stroke-width="1.5"${entry.style === 'line' ? '' : ' stroke-dasharray="4 2"'}/>`);
+    out.push(`<text x="${legendX + 24}" y="${y + 3}" class="legend">${escapeHtml(entry.name)}</text>`);
+  });
+  out.push('</svg>');
+  return out.join('\n');
+}

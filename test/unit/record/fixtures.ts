@@ -1,0 +1,211 @@
+/**
+ * Run data for record tests, made without a bench: the theory is the handbook
+ * closed form of an inverting RC low-pass stage with a single-pole op-amp
+ * (DESIGN.md "Theory": H = −(Z_F/Z_N) / (1 + (1 + Z_F/Z_N)/A), A = A0/(1 + s/ω_p)),
+ * the "measurement" is that theory plus seeded pseudo-random noise, and the
+ * figures and verdict come from the real run analysis (app/analysis).
+ * All of it is invented demo data and labelled simulated.
+ */
+import type { BuildRecord, InstrumentInfo, RunDetail } from '../../../app/service/contract';
+import { PointFlag } from '../../../app/service/contract';
+import { analyzeAcRun } from '../../../app/analysis';
+import { dbFromRatio, degreesFromRadians, logGrid } from '../../../app/units';
+
+export const INVENTED_NOTE = 'Invented demo data for tests (theory plus seeded noise), not a measurement.';
+
+/** Park–Miller minimal standard generator: deterministic noise for reproducible fixtures. */
+function seededNoise(seed: number): () => number {
+  let state = seed % 2147483647 || 1;
+  return () => {
+    state = (state * 48271) % 2147483647;
+    return state / 2147483647 - 0.5;
+  };
+}
+
+export interface StageValues {
+  inputOhm: number;
+  feedbackOhm: number;
+  feedbackF: number;
+  openLoopGain: number;
+  gbwHz: number;
+}
+
+export const NOMINAL_STAGE: StageValues = { inputOhm: 10e3, feedbackOhm: 100e3, feedbackF: 1.5e-9, openLoopGain: 1e5, gbwHz: 1e6 };
+
+/** Complex H(j2πf) of the inverting low-pass, real op-amp; returns [re, im]. */
+export function invertingLowPass(values: StageValues, frequencyHz: number, idealOpAmp = false): [number, number] {
+  const w = 2 * Math.PI * frequencyHz;
+  // Z_F = R_F / (1 + jωR_F C_F) → ratio Z_F/Z_N = k / (1 + jx), with k = R_F/R_N, x = ωR_F C_F.
+  const k = values.feedbackOhm / values.inputOhm;
+  const x = w * values.feedbackOhm * values.feedbackF;
+  const den = 1 + x * x;
+  const ratio: [number, number] = [k / den, (-k * x) / den];
+  if (idealOpAmp) return [-ratio[0], -ratio[1]];
+  // 1/A = (1 + jω/ω_p)/A0 with ω_p = 2π·GBW/A0.
+  const wp = (2 * Math.PI * values.gbwHz) / values.openLoopGain;
+  const invA: [number, number] = [1 / values.openLoopGain, w / wp / values.openLoopGain];
+  const noiseGain: [number, number] = [1 + ratio[0], ratio[1]];
+  const correction: [number, number] = [1 + noiseGain[0] * invA[0] - noiseGain[1] * invA[1], noiseGain[0] * invA[1] + noiseGain[1] * invA[0]];
+  const cd = correction[0] ** 2 + correction[1] ** 2;
+  const h: [number, number] = [(ratio[0] * correction[0] + ratio[1] * correction[1]) / cd, (ratio[1] * correction[0] - ratio[0] * correction[1]) / cd];
+  return [-h[0], -h[1]];
+}
+
+/** Where |A| meets |noise gain 1 + Z_F/Z_N| (loop gain 1, DESIGN.md "Theory"), by bisection on log f. */
+export function gainLimitPointHz(values: StageValues): number {
+  const loopGainExcess = (f: number) => {
+    const fp = values.gbwHz / values.openLoopGain;
+    const openLoop = values.openLoopGain / Math.hypot(1, f / fp);
+    const k = values.feedbackOhm / values.inputOhm;
+    const x = 2 * Math.PI * f * values.feedbackOhm * values.feedbackF;
+    const noiseGain = Math.hypot(1 + k / (1 + x * x), (-k * x) / (1 + x * x));
+    return openLoop - noiseGain;
+  };
+  let low = 1;
+  let high = 1e10;
+  for (let i = 0; i < 200; i++) {
+    const mid = Math.sqrt(low * high);
+    if (loopGainExcess(mid) > 0) low = mid;
+    else high = mid;
+  }
+  return Math.sqrt(low * high);
+}
+
+export const SIMULATED_BENCH: InstrumentInfo[] = [
+  { role: 'generator', address: 'tcp://127.0.0.1:5025', profileId: 'generic-generator', simulated: true, identity: { manufacturer: 'Rolloff', model: 'Virtual generator', serialNumber: 'VB-GEN-0001', firmware: '0.1.0' } },
+  { role: 'scope', address: 'serial:/dev/pts/7?baud=115200', profileId: 'generic-scope', simulated: true, identity: { manufacturer: 'Rolloff', model: 'Virtual scope', serialNumber: 'VB-SCOPE-0002', firmware: '0.1.0' } },
+];
+
+export const FIXTURE_DESIGN = {
+  name: 'Inverting low-pass, gain 10',
+  description: INVENTED_NOTE,
+  input: 'in',
+  output: 'out',
+  temperatureC: 25,
+  parts: [
+    { id: 'RN', type: 'resistor', nodes: ['in', 'sum'], value: 10e3, tolerance: 0.01 },
+    { id: 'RF', type: 'resistor', nodes: ['sum', 'out'], value: 100e3, tolerance: 0.01 },
+    { id: 'CF', type: 'capacitor', nodes: ['sum', 'out'], value: 1.5e-9, tolerance: 0.05 },
+    { id: 'U1', type: 'opamp', nodes: ['0', 'sum', 'out'], model: { openLoopGain: 1e5, gbw: 1e6, slewRate: 0.5e6, rails: [-13, 13] } },
+  ],
+};
+
+export function fixtureBuild(overrides: Partial<BuildRecord> = {}): BuildRecord {
+  return {
+    id: 3,
+    designId: 1,
+    label: 'Board A (hand-wired)',
+    notes: `${INVENTED_NOTE} CF measured on the bridge before fitting.`,
+    actualValues: { RN: 9.98e3, RF: 100.4e3, CF: 1.52e-9 },
+    createdAt: '2026-11-30T09:12:00.000Z',
+    ...overrides,
+  };
+}
+
+export interface AcFixtureOptions {
+  runId?: number;
+  build?: BuildRecord;
+  seed?: number;
+  noiseDb?: number;
+  /** Index of a point to mark overrange with a non-finite reading. */
+  overrangeIndex?: number;
+}
+
+/** A complete AC RunDetail: actual-value theory plus noise as "measured", analysed by app/analysis. */
+export function acRunDetail(options: AcFixtureOptions = {}): RunDetail {
+  const build = options.build ?? fixtureBuild();
+  const actual: StageValues = {
+    ...NOMINAL_STAGE,
+    inputOhm: build.actualValues.RN ?? NOMINAL_STAGE.inputOhm,
+    feedbackOhm: build.actualValues.RF ?? NOMINAL_STAGE.feedbackOhm,
+    feedbackF: build.actualValues.CF ?? NOMINAL_STAGE.feedbackF,
+  };
+  const noise = seededNoise(options.seed ?? 7);
+  const noiseDb = options.noiseDb ?? 0.05;
+  const frequencies = Array.from(logGrid(10, 1e6, 8));
+  const theoryGrid = Array.from(logGrid(10, 1e6, 40));
+  const gainOf = (values: StageValues, f: number, ideal = false) => {
+    const [re, im] = invertingLowPass(values, f, ideal);
+    return { gainDb: dbFromRatio(Math.hypot(re, im)), phaseDeg: degreesFromRadians(Math.atan2(im, re)) };
+  };
+  const measuredGain: number[] = [];
+  const measuredPhase: number[] = [];
+  const flags: number[] = [];
+  frequencies.forEach((f, i) => {
+    const { gainDb, phaseDeg } = gainOf(actual, f);
+    measuredGain.push(gainDb + noiseDb * 2 * noise());
+    measuredPhase.push(phaseDeg + 0.5 * noise());
+    flags.push(i === options.overrangeIndex ? PointFlag.overrange : 0);
+  });
+  if (options.overrangeIndex !== undefined) measuredGain[options.overrangeIndex] = Number.NaN;
+  const theoryAtPoints = frequencies.map((f) => gainOf(actual, f).gainDb);
+  const idealAtPoints = frequencies.map((f) => gainOf(actual, f, true).gainDb);
+  // Tolerance band: ±(0.2 dB + 3 % of the slope region), a simple invented band for drawing.
+  const bandWidthDb = (g: number, ideal: number) => 0.2 + Math.min(3, Math.abs(g - ideal) + 0.03 * Math.abs(g));
+  const gainLimitHz = gainLimitPointHz(actual);
+  const cornerHz = 1 / (2 * Math.PI * actual.feedbackOhm * actual.feedbackF);
+  const limits = { maxDeviationDb: 1, cornerTolerance: 0.1, passbandGainDb: [19, 21] as [number, number] };
+  const analysis = analyzeAcRun(
+    { frequencyHz: frequencies, gainDb: measuredGain, gainUncertaintyDb: frequencies.map(() => noiseDb), phaseDeg: measuredPhase, flags },
+    {
+      gainDb: theoryAtPoints,
+      idealGainDb: idealAtPoints,
+      bandLowDb: theoryAtPoints.map((g, i) => g - bandWidthDb(g, idealAtPoints[i])),
+      bandHighDb: theoryAtPoints.map((g, i) => g + bandWidthDb(g, idealAtPoints[i])),
+      gainLimitHz,
+      minus3dbHz: [cornerHz],
+    },
+    limits,
+  );
+  const theory = theoryGrid.map((f) => ({ ...gainOf(actual, f), ideal: gainOf(actual, f, true) }));
+  const runId = options.runId ?? 12;
+  return {
+    id: runId,
+    buildId: build.id,
+    buildLabel: build.label,
+    designName: FIXTURE_DESIGN.name,
+    kind: 'ac',
+    status: 'done',
+    startedAt: '2026-11-30T10:00:00.000Z',
+    endedAt: '2026-11-30T10:04:31.500Z',
+    pointCount: frequencies.length,
+    plannedCount: frequencies.length,
+    simulated: true,
+    request: {
+      buildId: build.id, kind: 'ac', from: 10, to: 1e6, pointsPerDecade: 8, spacing: 'log',
+      amplitude: { mode: 'auto', targetOutputVpp: 2 }, measurement: 'scope', minCycles: 10, averages: 4, refine: false,
+      operator: 'J. Doe (invented)', notes: INVENTED_NOTE, limits,
+    },
+    bench: SIMULATED_BENCH,
+    softwareVersion: '0.1.0',
+    points: {
+      step: frequencies.map((_, i) => i),
+      stimulus: frequencies,
+      amplitudeVpp: frequencies.map(() => 0.2),
+      gainDb: measuredGain,
+      gainUncertaintyDb: frequencies.map(() => noiseDb),
+      phaseDeg: measuredPhase,
+      phaseUncertaintyDeg: frequencies.map(() => 0.3),
+      outputV: frequencies.map(() => Number.NaN),
+      flags: Array.from(analysis.flags),
+      measuredAt: frequencies.map((_, i) => new Date(Date.parse('2026-11-30T10:00:00.000Z') + i * 5000).toISOString()),
+    },
+    theory: {
+      frequencyHz: theoryGrid,
+      gainDb: theory.map((t) => t.gainDb),
+      phaseDeg: theory.map((t) => t.phaseDeg),
+      idealGainDb: theory.map((t) => t.ideal.gainDb),
+      idealPhaseDeg: theory.map((t) => t.ideal.phaseDeg),
+      bandLowDb: theory.map((t) => t.gainDb - bandWidthDb(t.gainDb, t.ideal.gainDb)),
+      bandHighDb: theory.map((t) => t.gainDb + bandWidthDb(t.gainDb, t.ideal.gainDb)),
+    },
+    figures: analysis.figures,
+    verdict: analysis.verdict,
+    events: [
+      { at: '2026-11-30T10:00:00.000Z', level: 'info', message: 'Run started on the virtual bench.' },
+      { at: '2026-11-30T10:02:10.000Z', level: 'warning', message: 'Point 30 retried after a distorted reading.' },
+    ],
+    theoryGainLimitHz: gainLimitHz,
+    theoryMinus3dbHz: [cornerHz],
+  };
+}

@@ -1,0 +1,123 @@
+/**
+ * Run records built from fixture data (handbook theory plus seeded noise, see
+ * fixtures.ts): JSON validates against the shipped schema file and rebuilds the
+ * record, CSV reads back to the same numbers, the digest pins the data.
+ */
+import { createHash } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { buildRunRecord, canonicalJson, readCsv, recordFromJson, renderRecord, runDigestInput } from '../../../app/record';
+import { validateAgainstSchema } from '../../../app/record/schemaValidator';
+import { ValidationError } from '../../../app/errors';
+import type { RunRecord } from '../../../app/record';
+import { acRunDetail, fixtureBuild, FIXTURE_DESIGN } from './fixtures';
+
+const GENERATED_AT = '2026-12-01T12:00:00.000Z';
+const SCHEMA = JSON.parse(readFileSync(new URL('../../../app/record/record.schema.json', import.meta.url), 'utf8'));
+
+function record(options: Parameters<typeof acRunDetail>[0] = {}): RunRecord {
+  return buildRunRecord(acRunDetail(options), { design: FIXTURE_DESIGN, build: fixtureBuild(), designId: 1, generatedAt: GENERATED_AT });
+}
+
+const text = async (r: RunRecord, format: 'csv' | 'json' | 'html') => new TextDecoder().decode((await renderRecord(r, format)).bytes);
+
+describe('run record', () => {
+  it('stores non-finite readings as null and keeps every point', () => {
+    const r = record({ overrangeIndex: 5 });
+    expect(r.points.gainDb[5]).toBeNull();
+    expect(r.points.outputV.every((v) => v === null)).toBe(true);
+    expect(r.points.step.length).toBe(41);
+    expect(r.run.pointCount).toBe(41);
+  });
+
+  it('digest is SHA-256 of the documented canonical JSON (cross-checked with node:crypto)', () => {
+    const r = record();
+    const expected = createHash('sha256').update(canonicalJson(runDigestInput(r)), 'utf8').digest('hex');
+    expect(r.digest.hex).toBe(expected);
+    expect(r.digest.hex).toMatch(/^[0-9a-f]{64}$/);
+  });
+
+  it('digest changes when one point is altered, and not when only the export time changes', () => {
+    const detail = acRunDetail();
+    const context = { design: FIXTURE_DESIGN, build: fixtureBuild(), generatedAt: GENERATED_AT };
+    const original = buildRunRecord(detail, context).digest.hex;
+    const altered = structuredClone(detail);
+    altered.points.gainDb[17] += 1e-9;
+    expect(buildRunRecord(altered, context).digest.hex).not.toBe(original);
+    const relabelled = buildRunRecord(detail, { ...context, build: fixtureBuild({ label: 'Board B' }) }).digest.hex;
+    expect(relabelled).not.toBe(original);
+    expect(buildRunRecord(detail, { ...context, generatedAt: '2030-01-01T00:00:00.000Z' }).digest.hex).toBe(original);
+  });
+
+  it('JSON validates against app/record/record.schema.json and rebuilds the same record', async () => {
+    const r = record({ overrangeIndex: 3 });
+    const json = await text(r, 'json');
+    expect(validateAgainstSchema(JSON.parse(json), SCHEMA)).toEqual([]);
+    const rebuilt = recordFromJson(json, 'run.json');
+    expect(rebuilt).toEqual(r);
+    // Rebuilt means every other format comes out byte for byte the same.
+    expect(await text(rebuilt as RunRecord, 'html')).toBe(await text(r, 'html'));
+    expect(await text(rebuilt as RunRecord, 'csv')).toBe(await text(r, 'csv'));
+  });
+
+  it('a JSON record with an altered number is refused (digest) and a broken one names the field (schema)', async () => {
+    const r = record();
+    const parsed = JSON.parse(await text(r, 'json'));
+    parsed.points.gainDb[4] = parsed.points.gainDb[4] + 0.5;
+    expect(() => recordFromJson(JSON.stringify(parsed), 'run.json')).toThrow(/run\.json run 12\.digest: does not match/);
+    const broken = JSON.parse(await text(r, 'json'));
+    broken.points.flags[2] = 'overrange';
+    expect(() => recordFromJson(JSON.stringify(broken), 'run.json')).toThrow(ValidationError);
+    expect(() => recordFromJson(JSON.stringify(broken), 'run.json')).toThrow(/points\/flags\/2/);
+    expect(() => recordFromJson('{"recordType":', 'run.json')).toThrow(/not valid JSON/);
+  });
+
+  it('the schema file rejects what it should (guards against a schema that accepts anything)', async () => {
+    const parsed = JSON.parse(await text(record(), 'json'));
+    for (const mutate of [
+      (x: any) => delete x.digest,
+      (x: any) => (x.run.kind = 'rf'),
+      (x: any) => (x.digest.hex = 'ABC'),
+      (x: any) => (x.bench[0].identity.serial = 'x'),
+      (x: any) => (x.points.gainDb[0] = '20'),
+    ]) {
+      const copy = structuredClone(parsed);
+      mutate(copy);
+      expect(validateAgainstSchema(copy, SCHEMA).length).toBeGreaterThan(0);
+    }
+  });
+
+  it('CSV (RFC 4180) reads back to the same numbers, with units in the header', async () => {
+    const r = record({ overrangeIndex: 5 });
+    const csv = await text(r, 'csv');
+    expect(csv.endsWith('\r\n')).toBe(true);
+    expect(csv.split('\r\n')).toHaveLength(r.points.step.length + 2);
+    const [header, ...rows] = readCsv(csv, 'run.csv');
+    expect(header).toEqual(['run_id', 'build_label', 'step', 'frequency_hz', 'amplitude_vpp', 'gain_db', 'gain_uncertainty_db', 'phase_deg', 'phase_uncertainty_deg', 'output_v', 'flags', 'flag_names', 'measured_at']);
+    const column = (name: string) => rows.map((row) => row[header.indexOf(name)]);
+    const asNumbers = (name: string) => column(name).map((cell) => (cell === '' ? null : Number(cell)));
+    expect(asNumbers('frequency_hz')).toEqual(r.points.stimulus);
+    expect(asNumbers('gain_db')).toEqual(r.points.gainDb);
+    expect(asNumbers('phase_deg')).toEqual(r.points.phaseDeg);
+    expect(asNumbers('gain_uncertainty_db')).toEqual(r.points.gainUncertaintyDb);
+    expect(asNumbers('flags')).toEqual(r.points.flags);
+    expect(column('measured_at')).toEqual(r.points.measuredAt);
+    expect(column('flag_names')[5]).toContain('overrange');
+    expect(new Set(column('build_label'))).toEqual(new Set(['Board A (hand-wired)']));
+  });
+
+  it('refuses inconsistent service data with a located error', () => {
+    const detail = acRunDetail();
+    detail.points.phaseDeg.pop();
+    expect(() => buildRunRecord(detail, { design: FIXTURE_DESIGN, build: fixtureBuild() })).toThrow(/run 12\.points\.phaseDeg: has 40 values where 41 were expected/);
+    expect(() => buildRunRecord(acRunDetail(), { design: FIXTURE_DESIGN, build: fixtureBuild({ id: 99 }) })).toThrow(/belongs to build 3/);
+  });
+
+  it('file names are safe and say what the record is', async () => {
+    const r = buildRunRecord(acRunDetail(), { design: FIXTURE_DESIGN, build: fixtureBuild({ label: '../../etc/pässwd <A>' }), generatedAt: GENERATED_AT });
+    const { fileName, mimeType } = await renderRecord(r, 'csv');
+    expect(fileName).toBe('rolloff-run-12-etc-passwd-A.csv');
+    expect(mimeType).toMatch(/^text\/csv/);
+    await expect(renderRecord(r, 'docx' as never)).rejects.toThrow(/not a record format/);
+  });
+});
