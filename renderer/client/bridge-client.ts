@@ -1,0 +1,28 @@
+/**
+ * The client inside the Electron window: the preload exposes `rolloff.call`
+ * and `rolloff.on` through contextBridge; this wraps them in the same shape
+ * as the HTTP client.
+ */
+import type { RolloffClient, ServiceEventName } from '../../app/service/contract';
+import { errorFromWire, type WireError } from './remote-error';
+
+/** What main/preload.ts exposes on window.rolloff. */
+export interface PreloadBridge {
+  call(method: string, args: unknown[]): Promise<{ ok: true; result: unknown } | { ok: false; error: WireError }>;
+  on(event: ServiceEventName, listener: (payload: unknown) => void): () => void;
+}
+
+export function createBridgeClient(bridge: PreloadBridge): RolloffClient {
+  const call = async (method: string, args: unknown[]): Promise<unknown> => {
+    const reply = await bridge.call(method, args);
+    if (!reply.ok) throw errorFromWire(reply.error, `${method} failed.`);
+    return reply.result;
+  };
+  return new Proxy({} as RolloffClient, {
+    get(_target, name) {
+      if (name === 'on') return (event: ServiceEventName, listener: (payload: unknown) => void) => bridge.on(event, listener);
+      if (typeof name !== 'string' || name === 'then') return undefined;
+      return (...args: unknown[]) => call(name, args);
+    },
+  });
+}

@@ -1,0 +1,37 @@
+/**
+ * Renderer entry: picks the client (Electron preload bridge when present,
+ * else the web host over HTTP and WebSocket) and mounts the views.
+ */
+import 'uplot/dist/uPlot.min.css';
+import './styles.css';
+import type { RolloffClient } from '../app/service/contract';
+import { createBridgeClient, type PreloadBridge } from './client/bridge-client';
+import { createHttpClient } from './client/http-client';
+import { mountShell } from './shell';
+import { AppState } from './state';
+import { BenchView } from './views/bench-view';
+import { DesignView } from './views/design-view';
+import { SweepView } from './views/sweep-view';
+import { HistoryView } from './views/history-view';
+import { CompareView } from './views/compare-view';
+import { RecordView } from './views/record-view';
+import { AboutView } from './views/about-view';
+
+function chooseClient(): RolloffClient {
+  const bridge = (window as unknown as { rolloff?: PreloadBridge }).rolloff;
+  if (bridge) return createBridgeClient(bridge);
+  return createHttpClient(new URL('./', location.href));
+}
+
+const client = chooseClient();
+const state = new AppState();
+const root = document.getElementById('app')!;
+mountShell(root, client, state, [
+  new BenchView(client, state),
+  new DesignView(client, state),
+  new SweepView(client, state),
+  new HistoryView(client, state),
+  new CompareView(client, state),
+  new RecordView(client, state),
+  new AboutView(),
+]);

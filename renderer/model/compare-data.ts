@@ -1,0 +1,20 @@
+/** Plot columns for the Compare view, built from the service's Comparison. */
+import type { Comparison } from '../../app/service/contract';
+import { alignSeries, type AlignedColumns } from './aligned-series';
+
+export function compareColumns(comparison: Comparison): { overlay: AlignedColumns; difference: AlignedColumns } {
+  const theory = comparison.runs[0]?.theory;
+  const overlay = alignSeries([
+    { xs: theory?.frequencyHz ?? [], ys: theory?.gainDb ?? [] },
+    ...comparison.runs.map((run) => ({ xs: run.points.stimulus, ys: run.points.gainDb })),
+  ]);
+  const byRun = new Map(comparison.differences.map((d) => [d.runId, d]));
+  const difference = alignSeries(comparison.runs.map((run) => ({ xs: byRun.get(run.id)?.stimulus ?? [], ys: byRun.get(run.id)?.deltaDb ?? [] })));
+  return { overlay, difference };
+}
+
+/** Distinct hues around the colour wheel, dark enough to read on the light plot background. */
+export function runColor(index: number, count: number): string {
+  const hue = Math.round((index * 360) / Math.max(1, count) + 20) % 360;
+  return `hsl(${hue}, 70%, ${index % 2 === 0 ? 38 : 46}%)`;
+}

@@ -1,0 +1,47 @@
+/**
+ * Messages to the user: errors show what happened and what to do (the
+ * service's message and hint), in a live region screen readers announce.
+ */
+import { UserError } from '../app/errors';
+import { h } from './dom';
+
+let region: HTMLElement | undefined;
+
+export function noticeRegion(): HTMLElement {
+  region ??= h('div', { className: 'notices', role: 'status', 'aria-live': 'polite' });
+  return region;
+}
+
+export function showError(error: unknown, context?: string): void {
+  const message = error instanceof Error ? error.message : String(error);
+  const hint = error instanceof UserError ? error.hint : undefined;
+  push('error', `${context ? context + ': ' : ''}${message}`, hint);
+  if (!(error instanceof UserError)) console.error(error);
+}
+
+export function showInfo(message: string): void {
+  push('info', message);
+}
+
+function push(kind: 'error' | 'info', message: string, hint?: string): void {
+  const close = h('button', { type: 'button', className: 'notice-close', 'aria-label': 'Dismiss message' }, '×');
+  const notice = h('div', { className: `notice notice-${kind}`, role: kind === 'error' ? 'alert' : undefined }, h('p', {}, message), hint ? h('p', { className: 'hint' }, hint) : null, close);
+  close.addEventListener('click', () => notice.remove());
+  noticeRegion().appendChild(notice);
+  // Information fades; errors stay until dismissed so nothing is missed.
+  if (kind === 'info') setTimeout(() => notice.remove(), 5_000);
+  while (noticeRegion().childElementCount > 4) noticeRegion().firstElementChild?.remove();
+}
+
+/** Runs an action from a button: disables it meanwhile and reports a failure. */
+export async function guarded<T>(button: HTMLButtonElement | undefined, context: string, action: () => Promise<T>): Promise<T | undefined> {
+  if (button) button.disabled = true;
+  try {
+    return await action();
+  } catch (error) {
+    showError(error, context);
+    return undefined;
+  } finally {
+    if (button) button.disabled = false;
+  }
+}

@@ -1,0 +1,153 @@
+/**
+ * One chart with a logarithmic frequency axis (uPlot): theory lines, the
+ * tolerance band, measured points, distorted points and vertical markers for
+ * the gain-limit and −3 dB points. Bode, Compare and difference plots are all
+ * built from this.
+ */
+import uPlot from 'uplot';
+import type { AlignedColumns } from '../model/aligned-series';
+import { formatEngineering } from '../../app/units';
+
+export interface SeriesStyle {
+  label: string;
+  color: string;
+  /** 'line': theory; 'points': measured; 'band-edge': invisible edge of a filled band. */
+  kind: 'line' | 'points' | 'points-line' | 'band-edge' | 'dashed';
+  width?: number;
+  pointSize?: number;
+}
+
+export interface Marker {
+  xHz: number;
+  label: string;
+  color: string;
+}
+
+export interface FrequencyChartOptions {
+  yLabel: string;
+  yUnit: string;
+  series: SeriesStyle[];
+  /** Pairs of series indexes (1-based as in uPlot: high, low) filled as a band. */
+  bands?: Array<{ high: number; low: number; fill: string }>;
+  height: number;
+  /** Linear x for DC transfer plots (volts). */
+  xLinear?: boolean;
+  xLabel?: string;
+}
+
+export class FrequencyChart {
+  readonly plot: uPlot;
+  private markers: Marker[] = [];
+  private resizeObserver: ResizeObserver | undefined;
+
+  constructor(
+    readonly container: HTMLElement,
+    options: FrequencyChartOptions,
+  ) {
+    const xUnit = options.xLinear ? 'V' : 'Hz';
+    const uplotOptions: uPlot.Options = {
+      width: Math.max(320, container.clientWidth || 800),
+      height: options.height,
+      legend: { show: true, live: false },
+      cursor: { drag: { x: true, y: false, setScale: true } },
+      scales: { x: { time: false, distr: options.xLinear ? 1 : 3 }, y: { auto: true } },
+      axes: [
+        {
+          label: options.xLabel ?? 'Frequency',
+          stroke: '#33404d',
+          grid: { stroke: '#dde3e8', width: 1 },
+          ticks: { stroke: '#b9c3cc', width: 1 },
+          values: (_u, splits) => splits.map((v) => (v == null ? '' : formatEngineering(v, xUnit, 3))),
+        },
+        {
+          label: options.yLabel,
+          stroke: '#33404d',
+          grid: { stroke: '#dde3e8', width: 1 },
+          ticks: { stroke: '#b9c3cc', width: 1 },
+          values: (_u, splits) => splits.map((v) => (v == null ? '' : `${Number(v.toPrecision(4))}`)),
+          size: 56,
+        },
+      ],
+      series: [{ label: options.xLinear ? 'Input' : 'Frequency', value: (_u, v) => (v == null ? '—' : formatEngineering(v, xUnit, 4)) }, ...options.series.map((style) => seriesOptions(style, options.yUnit))],
+      bands: (options.bands ?? []).map((band) => ({ series: [band.high, band.low] as [number, number], fill: band.fill })),
+      hooks: {
+        draw: [(u) => this.drawMarkers(u)],
+      },
+    };
+    const empty: uPlot.AlignedData = [[], ...options.series.map(() => [])] as unknown as uPlot.AlignedData;
+    this.plot = new uPlot(uplotOptions, empty, container);
+    if (typeof ResizeObserver !== 'undefined') {
+      this.resizeObserver = new ResizeObserver(() => {
+        const width = container.clientWidth;
+        if (width > 0 && Math.abs(width - this.plot.width) > 2) this.plot.setSize({ width, height: options.height });
+      });
+      this.resizeObserver.observe(container);
+    }
+  }
+
+  setData(columns: AlignedColumns, markers: Marker[] = this.markers): void {
+    this.markers = markers;
+    this.plot.setData(columns as unknown as uPlot.AlignedData, true);
+  }
+
+  setMarkers(markers: Marker[]): void {
+    this.markers = markers;
+    this.plot.redraw(false, false);
+  }
+
+  destroy(): void {
+    this.resizeObserver?.disconnect();
+    this.plot.destroy();
+  }
+
+  private drawMarkers(u: uPlot): void {
+    const context = u.ctx;
+    const { left, top, width, height } = u.bbox;
+    context.save();
+    context.font = `${Math.round(11 * devicePixelRatio)}px system-ui, sans-serif`;
+    let labelRow = 0;
+    for (const marker of this.markers) {
+      if (!Number.isFinite(marker.xHz)) continue;
+      const x = u.valToPos(marker.xHz, 'x', true);
+      if (x < left || x > left + width) continue;
+      context.strokeStyle = marker.color;
+      context.fillStyle = marker.color;
+      context.lineWidth = 1.5 * devicePixelRatio;
+      context.setLineDash([6 * devicePixelRatio, 4 * devicePixelRatio]);
+      context.beginPath();
+      context.moveTo(x, top);
+      context.lineTo(x, top + height);
+      context.stroke();
+      const textWidth = context.measureText(marker.label).width;
+      const textX = x + 4 * devicePixelRatio + textWidth > left + width ? x - 4 * devicePixelRatio - textWidth : x + 4 * devicePixelRatio;
+      context.fillText(marker.label, textX, top + (14 + 14 * labelRow) * devicePixelRatio);
+      labelRow = (labelRow + 1) % 3;
+    }
+    context.restore();
+    this.container.dataset.drawnAt = String(performance.now());
+    this.container.dispatchEvent(new CustomEvent('rolloff:drawn', { detail: { drawnAt: performance.now() } }));
+  }
+}
+
+function seriesOptions(style: SeriesStyle, unit: string): uPlot.Series {
+  const value = (_u: uPlot, v: number | null) => (v == null ? '—' : `${v.toFixed(2)} ${unit}`);
+  switch (style.kind) {
+    case 'line':
+      return { label: style.label, stroke: style.color, width: style.width ?? 2, spanGaps: true, points: { show: false }, value };
+    case 'dashed':
+      return { label: style.label, stroke: style.color, width: style.width ?? 1.5, dash: [8, 5], spanGaps: true, points: { show: false }, value };
+    case 'band-edge':
+      return { label: style.label, stroke: style.color, width: 0.5, spanGaps: true, points: { show: false }, value };
+    case 'points-line':
+      return { label: style.label, stroke: style.color, width: style.width ?? 1, spanGaps: true, points: { show: true, size: style.pointSize ?? 6, stroke: style.color, fill: style.color }, value };
+    case 'points':
+      return {
+        label: style.label,
+        stroke: style.color,
+        width: 0,
+        paths: () => null,
+        points: { show: true, size: style.pointSize ?? 9, stroke: style.color, fill: style.color, width: 2 },
+        value,
+      };
+  }
+}

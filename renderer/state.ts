@@ -1,0 +1,46 @@
+/**
+ * What the views share: the chosen design and build, the run on the Sweep
+ * view, the runs picked for Compare and Record, and the latest bench status.
+ * Views subscribe and re-render the parts that depend on a change.
+ */
+import type { BenchStatus, BuildRecord, DesignRecord } from '../app/service/contract';
+import type { ViewId } from './model/views';
+
+export interface SharedState {
+  design: DesignRecord | undefined;
+  build: BuildRecord | undefined;
+  /** Run shown on the Sweep view (live or reopened). */
+  sweepRunId: number | undefined;
+  /** Runs picked in History for Compare and Record, in the order picked. */
+  pickedRunIds: number[];
+  bench: BenchStatus | undefined;
+}
+
+type Listener = (state: SharedState, changed: Array<keyof SharedState>) => void;
+
+export class AppState {
+  private state: SharedState = { design: undefined, build: undefined, sweepRunId: undefined, pickedRunIds: [], bench: undefined };
+  private readonly listeners = new Set<Listener>();
+  /** Set by the shell: lets one view send the user to another. */
+  showView: (view: ViewId) => void = () => {};
+
+  get current(): SharedState {
+    return this.state;
+  }
+
+  update(changes: Partial<SharedState>): void {
+    this.state = { ...this.state, ...changes };
+    const changed = Object.keys(changes) as Array<keyof SharedState>;
+    for (const listener of this.listeners) listener(this.state, changed);
+  }
+
+  subscribe(listener: Listener): () => void {
+    this.listeners.add(listener);
+    return () => this.listeners.delete(listener);
+  }
+
+  togglePicked(runId: number, picked: boolean): void {
+    const rest = this.state.pickedRunIds.filter((id) => id !== runId);
+    this.update({ pickedRunIds: picked ? [...rest, runId] : rest });
+  }
+}

@@ -1,0 +1,163 @@
+/**
+ * Bench: connect instruments by address or from the port list, see their
+ * identities, set the maximum stimulus amplitude, start the virtual bench
+ * (always labelled simulated) and watch the SCPI traffic.
+ */
+import type { BenchStatus, InstrumentRole, ProfileSummary, RolloffClient, TrafficLine } from '../../app/service/contract';
+import { parseEngineering } from '../../app/units';
+import { field, h, replaceChildren, select } from '../dom';
+import { guarded, showInfo } from '../notices';
+import type { View } from '../shell';
+import type { AppState } from '../state';
+
+const ROLES: InstrumentRole[] = ['generator', 'meter', 'scope'];
+/** Enough scroll-back to see a sweep's recent exchanges without the page growing without bound. */
+const TRAFFIC_LINES_KEPT = 400;
+
+export class BenchView implements View {
+  readonly id = 'bench' as const;
+  readonly element: HTMLElement;
+  private readonly instrumentsBody = h('tbody');
+  private readonly roleSelect = select(ROLES.map((r) => ({ value: r, label: r })), 'generator', { name: 'role' });
+  private readonly addressInput = h('input', { type: 'text', name: 'address', list: 'port-list', autocomplete: 'off', placeholder: 'serial device path, host:port or resource string' });
+  private readonly portList = h('datalist', { id: 'port-list' });
+  private readonly profileSelect = h('select', { name: 'profile' });
+  private readonly maxInput = h('input', { type: 'text', name: 'max-stimulus', inputmode: 'decimal', 'data-testid': 'max-stimulus' });
+  private readonly virtualDesignSelect = h('select', { name: 'virtual-design', 'data-testid': 'virtual-design' });
+  private readonly virtualStatus = h('p', { className: 'virtual-status', 'data-testid': 'virtual-status' });
+  private readonly traffic = h('ol', { className: 'traffic', 'aria-label': 'Instrument traffic', 'data-testid': 'traffic' });
+  private profiles: ProfileSummary[] = [];
+
+  constructor(
+    private readonly client: RolloffClient,
+    private readonly state: AppState,
+  ) {
+    const connectButton = h('button', { type: 'submit', className: 'primary' }, 'Connect');
+    const connectForm = h(
+      'form',
+      { className: 'row-form', 'aria-label': 'Connect an instrument' },
+      field('Role', this.roleSelect),
+      field('Address', this.addressInput, 'Pick a port from the list or type an address.'),
+      field('Profile', this.profileSelect),
+      connectButton,
+      this.portList,
+    );
+    this.roleSelect.addEventListener('change', () => this.renderProfiles());
+    connectForm.addEventListener('submit', (event) => {
+      event.preventDefault();
+      void guarded(connectButton, 'Connecting', async () => {
+        const info = await client.connect({ role: this.roleSelect.value as InstrumentRole, address: this.addressInput.value, profileId: this.profileSelect.value });
+        showInfo(`Connected ${info.role}: ${info.identity.manufacturer} ${info.identity.model}`);
+        await this.refreshBench();
+      });
+    });
+
+    const maxButton = h('button', { type: 'submit' }, 'Apply');
+    const maxForm = h('form', { className: 'row-form', 'aria-label': 'Maximum stimulus amplitude' }, field('Maximum stimulus (V peak-to-peak)', this.maxInput, 'The generator is never driven above this. Engineering notation works: 500m, 2.'), maxButton);
+    maxForm.addEventListener('submit', (event) => {
+      event.preventDefault();
+      void guarded(maxButton, 'Setting the maximum stimulus', async () => {
+        const bench = await client.setMaxStimulus(parseEngineering(this.maxInput.value, 'Maximum stimulus'));
+        state.update({ bench });
+        showInfo(`Maximum stimulus set to ${bench.maxStimulusVpp} Vpp.`);
+      });
+    });
+
+    const virtualButton = h('button', { type: 'submit', 'data-testid': 'start-virtual' }, 'Start the virtual bench');
+    const virtualForm = h('form', { className: 'row-form', 'aria-label': 'Virtual bench' }, field('Simulated circuit', this.virtualDesignSelect, 'The virtual bench answers SCPI like real instruments; its readings are computed, not measured.'), virtualButton);
+    virtualForm.addEventListener('submit', (event) => {
+      event.preventDefault();
+      void guarded(virtualButton, 'Starting the virtual bench', async () => {
+        const designId = Number(this.virtualDesignSelect.value);
+        const bench = await client.startVirtualBench(designId);
+        state.update({ bench });
+        showInfo('Virtual bench started — simulated instruments.');
+      });
+    });
+
+    const clearTraffic = h('button', { type: 'button', className: 'small' }, 'Clear');
+    clearTraffic.addEventListener('click', () => (this.traffic.textContent = ''));
+
+    this.element = h(
+      'section',
+      { 'aria-labelledby': 'bench-title' },
+      h('h2', { id: 'bench-title' }, 'Bench'),
+      h('div', { className: 'columns' },
+        h('div', { className: 'panel' },
+          h('h3', {}, 'Instruments'),
+          h('table', { className: 'data-table', 'data-testid': 'instruments' }, h('thead', {}, h('tr', {}, ['Role', 'Address', 'Profile', 'Identity', ''].map((t) => h('th', { scope: 'col' }, t)))), this.instrumentsBody),
+          connectForm,
+          maxForm,
+        ),
+        h('div', { className: 'panel' }, h('h3', {}, 'Virtual bench ', h('span', { className: 'badge simulated' }, 'simulated')), virtualForm, this.virtualStatus),
+      ),
+      h('div', { className: 'panel' }, h('h3', {}, 'Traffic ', clearTraffic), this.traffic),
+    );
+
+    client.on('traffic', (line) => this.appendTraffic(line));
+    state.subscribe((s, changed) => {
+      if (changed.includes('bench')) this.renderBench(s.bench);
+      if (changed.includes('design') && s.design) this.virtualDesignSelect.value = String(s.design.id);
+    });
+  }
+
+  async activate(): Promise<void> {
+    const [ports, profiles, designs] = await Promise.all([this.client.listPorts(), this.client.listProfiles(), this.client.listDesigns()]);
+    replaceChildren(this.portList, ports.map((port) => h('option', { value: port.path }, [port.manufacturer, port.serialNumber].filter(Boolean).join(' '))));
+    this.profiles = profiles;
+    this.renderProfiles();
+    const chosen = this.state.current.design?.id ?? designs.at(-1)?.id;
+    replaceChildren(this.virtualDesignSelect, designs.length === 0 ? h('option', { value: '' }, 'Save a design first (Design view)') : designs.map((d) => h('option', { value: String(d.id) }, `${d.name} (#${d.id})`)));
+    if (chosen !== undefined) this.virtualDesignSelect.value = String(chosen);
+    await this.refreshBench();
+  }
+
+  private async refreshBench(): Promise<void> {
+    this.state.update({ bench: await this.client.benchStatus() });
+  }
+
+  private renderProfiles(): void {
+    const role = this.roleSelect.value;
+    const matching = this.profiles.filter((p) => p.role === role);
+    replaceChildren(this.profileSelect, matching.map((p) => h('option', { value: p.id }, `${p.id}${p.builtIn ? '' : ' (yours)'} — ${p.description}`)));
+  }
+
+  private renderBench(bench: BenchStatus | undefined): void {
+    if (!bench) return;
+    if (document.activeElement !== this.maxInput) this.maxInput.value = String(bench.maxStimulusVpp);
+    replaceChildren(
+      this.instrumentsBody,
+      bench.instruments.length === 0
+        ? h('tr', {}, h('td', { colspan: '5', className: 'empty' }, 'No instruments connected.'))
+        : bench.instruments.map((instrument) => {
+            const disconnect = h('button', { type: 'button', className: 'small' }, 'Disconnect');
+            disconnect.addEventListener('click', () => void guarded(disconnect, 'Disconnecting', async () => {
+              await this.client.disconnect(instrument.role);
+              await this.refreshBench();
+            }));
+            const identity = instrument.identity;
+            return h(
+              'tr',
+              {},
+              h('th', { scope: 'row' }, instrument.role),
+              h('td', {}, instrument.address),
+              h('td', {}, instrument.profileId),
+              h('td', {}, `${identity.manufacturer} ${identity.model} ${identity.serialNumber} ${identity.firmware}`.trim(), instrument.simulated ? h('span', { className: 'badge simulated' }, 'simulated') : null),
+              h('td', {}, disconnect),
+            );
+          }),
+    );
+    const virtual = bench.virtualBench;
+    this.virtualStatus.textContent = virtual
+      ? `Running (simulated): ${virtual.designName} — ${Object.entries(virtual.addresses).map(([role, address]) => `${role} at ${address}`).join(', ')}`
+      : 'Not running.';
+  }
+
+  private appendTraffic(line: TrafficLine): void {
+    const item = h('li', { className: `traffic-${line.direction}` }, h('time', {}, line.at.slice(11, 23)), h('span', { className: 'role' }, line.role), h('span', { className: 'direction' }, line.direction === 'sent' ? '→' : '←'), h('code', {}, line.text));
+    const atBottom = this.traffic.scrollTop + this.traffic.clientHeight >= this.traffic.scrollHeight - 4;
+    this.traffic.appendChild(item);
+    while (this.traffic.childElementCount > TRAFFIC_LINES_KEPT) this.traffic.firstElementChild?.remove();
+    if (atBottom) this.traffic.scrollTop = this.traffic.scrollHeight;
+  }
+}

@@ -1,0 +1,140 @@
+/**
+ * Compare: overlay the gain of several runs over theory, plot each run's
+ * difference from theory or from a reference run, and tabulate the figures
+ * with their deltas.
+ */
+import type { Comparison, RolloffClient, RunFigures, RunSummary } from '../../app/service/contract';
+import { field, h, replaceChildren } from '../dom';
+import { formatDb, formatDelta, formatHz } from '../model/format';
+import { compareColumns, runColor } from '../model/compare-data';
+import { guarded } from '../notices';
+import { FrequencyChart } from '../plot/frequency-chart';
+import { PLOT_COLORS } from '../plot/bode-plot';
+import type { View } from '../shell';
+import type { AppState } from '../state';
+
+export class CompareView implements View {
+  readonly id = 'compare' as const;
+  readonly element: HTMLElement;
+  private readonly runPicker = h('div', { className: 'run-picker', 'data-testid': 'compare-runs' });
+  private readonly reference = h('select', { name: 'reference', 'data-testid': 'compare-reference' });
+  private readonly overlayHost = h('div', { className: 'chart', 'data-testid': 'compare-overlay' });
+  private readonly differenceHost = h('div', { className: 'chart', 'data-testid': 'compare-difference' });
+  private readonly table = h('div', { className: 'figure-table', 'data-testid': 'compare-table' });
+  private overlay: FrequencyChart | undefined;
+  private difference: FrequencyChart | undefined;
+  private runs: RunSummary[] = [];
+
+  constructor(
+    private readonly client: RolloffClient,
+    private readonly state: AppState,
+  ) {
+    const compareButton = h('button', { type: 'button', className: 'primary', 'data-testid': 'compare-run' }, 'Compare');
+    compareButton.addEventListener('click', () => void guarded(compareButton, 'Comparing runs', () => this.compare()));
+    this.element = h(
+      'section',
+      { 'aria-labelledby': 'compare-title' },
+      h('h2', { id: 'compare-title' }, 'Compare'),
+      h('div', { className: 'panel' }, h('h3', {}, 'Runs'), this.runPicker, h('div', { className: 'row-form' }, field('Differences against', this.reference), compareButton)),
+      h('div', { className: 'panel' }, h('h3', {}, 'Gain'), this.overlayHost, h('h3', {}, 'Difference'), this.differenceHost),
+      h('div', { className: 'panel' }, h('h3', {}, 'Figures'), this.table),
+    );
+  }
+
+  async activate(): Promise<void> {
+    this.runs = await this.client.listRuns();
+    this.renderPicker();
+    if (this.state.current.pickedRunIds.length >= 1) await this.compare();
+  }
+
+  private renderPicker(): void {
+    const picked = new Set(this.state.current.pickedRunIds);
+    replaceChildren(
+      this.runPicker,
+      this.runs.length === 0
+        ? h('p', { className: 'empty' }, 'No runs yet.')
+        : this.runs.map((run) => {
+            const box = h('input', { type: 'checkbox', 'data-compare-run': String(run.id) });
+            box.checked = picked.has(run.id);
+            box.addEventListener('change', () => {
+              this.state.togglePicked(run.id, box.checked);
+              this.renderReference();
+            });
+            return h('label', { className: 'run-chip' }, box, ` #${run.id} ${run.designName} — ${run.buildLabel} (${run.status})`);
+          }),
+    );
+    this.renderReference();
+  }
+
+  private renderReference(): void {
+    const previous = this.reference.value;
+    const options = [h('option', { value: 'theory' }, 'theory of each run'), ...this.state.current.pickedRunIds.map((id) => h('option', { value: String(id) }, `run #${id}`))];
+    replaceChildren(this.reference, options);
+    if ([...this.reference.options].some((o) => o.value === previous)) this.reference.value = previous;
+  }
+
+  private async compare(): Promise<void> {
+    const runIds = this.state.current.pickedRunIds;
+    if (runIds.length === 0) throw new Error('Pick at least one run (tick it above or in History).');
+    const reference = this.reference.value === 'theory' || this.reference.value === '' ? 'theory' : Number(this.reference.value);
+    const comparison = await this.client.compareRuns(runIds, reference);
+    this.show(comparison);
+  }
+
+  /** Draws a comparison; public so the render benchmark can time exactly this. */
+  show(comparison: Comparison): void {
+    this.overlay?.destroy();
+    this.difference?.destroy();
+    const labels = comparison.runs.map((run) => `#${run.id} ${run.buildLabel}`);
+    this.overlay = new FrequencyChart(this.overlayHost, {
+      yLabel: 'Gain (dB)',
+      yUnit: 'dB',
+      height: 320,
+      series: [
+        { label: 'Theory (first run)', color: PLOT_COLORS.theory, kind: 'line' },
+        ...labels.map((label, i) => ({ label, color: runColor(i, labels.length), kind: 'points-line' as const, pointSize: 4 })),
+      ],
+    });
+    this.difference = new FrequencyChart(this.differenceHost, {
+      yLabel: comparison.referenceRunId === 'theory' ? 'Measured − theory (dB)' : `Measured − run #${comparison.referenceRunId} (dB)`,
+      yUnit: 'dB',
+      height: 220,
+      series: labels.map((label, i) => ({ label, color: runColor(i, labels.length), kind: 'points-line' as const, pointSize: 4 })),
+    });
+    const columns = compareColumns(comparison);
+    const first = comparison.runs[0];
+    const markers = first?.theoryGainLimitHz !== undefined ? [{ xHz: first.theoryGainLimitHz, label: `gain limit (theory) ${formatHz(first.theoryGainLimitHz)}`, color: PLOT_COLORS.gainLimit }] : [];
+    this.overlay.setData(columns.overlay, markers);
+    this.difference.setData(columns.difference, []);
+    this.element.dataset.comparedRuns = String(comparison.runs.length);
+    this.renderTable(comparison);
+  }
+
+  private renderTable(comparison: Comparison): void {
+    const rows: Array<[string, keyof RunFigures, (v: number | undefined) => string, string]> = [
+      ['Pass-band gain', 'passbandGainDb', (v) => formatDb(v), 'dB'],
+      ['Gain-limit point', 'gainLimitHz', formatHz, 'Hz'],
+      ['GBW estimate', 'gbwEstimateHz', formatHz, 'Hz'],
+      ['Roll-off (dB/decade)', 'rolloffDbPerDecade', (v) => (v === undefined ? '—' : v.toFixed(1)), 'dB/dec'],
+      ['Largest deviation', 'maxDeviationDb', (v) => formatDb(v), 'dB'],
+    ];
+    replaceChildren(
+      this.table,
+      h('table', { className: 'data-table' },
+        h('thead', {}, h('tr', {}, h('th', { scope: 'col' }, 'Run'), rows.map(([title]) => h('th', { scope: 'col' }, title)), h('th', { scope: 'col' }, '−3 dB points'), h('th', { scope: 'col' }, 'Verdict'))),
+        h('tbody', {}, comparison.figureTable.map((entry) =>
+          h('tr', {},
+            h('th', { scope: 'row' }, entry.label),
+            rows.map(([, key, format, unit]) => {
+              const value = entry.figures[key] as number | undefined;
+              const delta = entry.deltas[key];
+              return h('td', {}, format(value), delta !== undefined ? h('small', { className: 'delta' }, ` (${formatDelta(delta, unit === 'Hz' ? 'Hz' : unit)})`) : null);
+            }),
+            h('td', {}, entry.figures.minus3dbHz.map((f) => formatHz(f)).join(', ') || '—'),
+            h('td', {}, entry.verdict ? h('span', { className: `badge ${entry.verdict.pass ? 'pass' : 'fail'}`, title: entry.verdict.reasons.join('; ') }, entry.verdict.pass ? 'pass' : 'fail') : '—'),
+          ),
+        )),
+      ),
+    );
+  }
+}

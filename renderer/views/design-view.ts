@@ -1,0 +1,305 @@
+/**
+ * Design: start from a template, a design file or a saved design; edit part
+ * values and the op-amp model; the theoretical gain and phase, tolerance band,
+ * gain-limit and −3 dB points update as you type. Theory is computed here in
+ * the window with the pure circuit module — no round trip to the service.
+ */
+import type { BuildRecord, DesignRecord, RolloffClient, TemplateInfo, TheoryColumns } from '../../app/service/contract';
+import { logGrid, parseEngineering, formatEngineering } from '../../app/units';
+import { monteCarloAc, parseDesign, solveAc, summarizeAc } from '../../app/circuit';
+import { debounce, field, h, replaceChildren } from '../dom';
+import { formatDb, formatHz } from '../model/format';
+import { guarded, showError, showInfo } from '../notices';
+import { BodePlot } from '../plot/bode-plot';
+import type { View } from '../shell';
+import type { AppState } from '../state';
+
+/** The display range of the Design view's theory plot: wide enough for audio and instrumentation stages. */
+const THEORY_FROM_HZ = 1;
+const THEORY_TO_HZ = 10e6;
+const THEORY_POINTS_PER_DECADE = 30;
+/** Monte Carlo size for the live band: enough for stable 2.5/97.5 % percentiles while typing (common practice, no source). */
+const BAND_SAMPLES = 300;
+const BAND_SEED = 1;
+
+type DraftPart = Record<string, unknown> & { id: string; type: string; nodes: string[] };
+type Draft = Record<string, unknown> & { name: string; parts: DraftPart[] };
+
+const OPAMP_FIELDS: Array<{ key: string; label: string; unit: string }> = [
+  { key: 'openLoopGain', label: 'Open-loop gain A0', unit: 'V/V' },
+  { key: 'gbw', label: 'Gain-bandwidth', unit: 'Hz' },
+  { key: 'slewRate', label: 'Slew rate', unit: 'V/s' },
+];
+const DIODE_FIELDS: Array<{ key: string; label: string; unit: string }> = [
+  { key: 'is', label: 'Saturation current IS', unit: 'A' },
+  { key: 'n', label: 'Emission coefficient n', unit: '' },
+  { key: 'rs', label: 'Series resistance RS', unit: 'Ω' },
+];
+
+export class DesignView implements View {
+  readonly id = 'design' as const;
+  readonly element: HTMLElement;
+  private readonly templateSelect = h('select', { name: 'template', 'data-testid': 'template' });
+  private readonly templateParams = h('div', { className: 'param-grid' });
+  private readonly savedSelect = h('select', { name: 'saved-design', 'data-testid': 'saved-design' });
+  private readonly nameInput = h('input', { type: 'text', name: 'design-name', 'data-testid': 'design-name' });
+  private readonly partsHost = h('div', { className: 'parts' });
+  private readonly figures = h('dl', { className: 'figures', 'data-testid': 'design-figures' });
+  private readonly theoryError = h('p', { className: 'inline-error', role: 'alert', hidden: true });
+  private readonly buildLabel = h('input', { type: 'text', name: 'build-label', 'data-testid': 'build-label', placeholder: 'e.g. board A, first assembly' });
+  private readonly buildNotes = h('textarea', { name: 'build-notes', rows: '2' });
+  private readonly actualHost = h('div', { className: 'param-grid' });
+  private readonly savedState = h('p', { className: 'saved-state', 'data-testid': 'design-saved-state' });
+  private readonly plotHost = h('div', { className: 'plot-host' });
+  private plot: BodePlot | undefined;
+  private templates: TemplateInfo[] = [];
+  private draft: Draft | undefined;
+  private readonly recompute = debounce(() => this.computeTheory(), 120);
+
+  constructor(
+    private readonly client: RolloffClient,
+    private readonly state: AppState,
+  ) {
+    const makeButton = h('button', { type: 'button', 'data-testid': 'make-template' }, 'Use template');
+    makeButton.addEventListener('click', () => void guarded(makeButton, 'Making the design', () => this.makeFromTemplate()));
+    this.templateSelect.addEventListener('change', () => this.renderTemplateParams());
+
+    const loadButton = h('button', { type: 'button' }, 'Open');
+    loadButton.addEventListener('click', () => void guarded(loadButton, 'Opening the design', async () => {
+      const designs = await client.listDesigns();
+      const record = designs.find((d) => String(d.id) === this.savedSelect.value);
+      if (record) this.loadDraft(record.design, record);
+    }));
+
+    const fileInput = h('input', { type: 'file', accept: '.json,application/json', 'aria-label': 'Open a design file' });
+    fileInput.addEventListener('change', () => void this.openFile(fileInput));
+
+    const saveButton = h('button', { type: 'button', className: 'primary', 'data-testid': 'save-design' }, 'Save design');
+    saveButton.addEventListener('click', () => void guarded(saveButton, 'Saving the design', () => this.save()));
+    this.nameInput.addEventListener('input', () => {
+      if (this.draft) this.draft.name = this.nameInput.value;
+      this.markUnsaved();
+    });
+
+    const buildButton = h('button', { type: 'button', className: 'primary', 'data-testid': 'create-build' }, 'Create build');
+    buildButton.addEventListener('click', () => void guarded(buildButton, 'Creating the build', () => this.createBuild()));
+
+    this.element = h(
+      'section',
+      { 'aria-labelledby': 'design-title' },
+      h('h2', { id: 'design-title' }, 'Design'),
+      h('div', { className: 'columns design-columns' },
+        h('div', { className: 'panel' },
+          h('h3', {}, 'Start from'),
+          field('Template', this.templateSelect),
+          this.templateParams,
+          makeButton,
+          field('Saved design', this.savedSelect),
+          loadButton,
+          field('Design file', fileInput),
+          h('h3', {}, 'Parts'),
+          field('Name', this.nameInput),
+          this.partsHost,
+          h('div', { className: 'actions' }, saveButton, this.savedState),
+          h('h3', {}, 'Build'),
+          h('p', { className: 'hint' }, 'A build is one physical board of this design. Enter measured part values where you have them.'),
+          field('Label', this.buildLabel),
+          field('Notes', this.buildNotes),
+          this.actualHost,
+          buildButton,
+        ),
+        h('div', { className: 'panel wide' }, h('h3', {}, 'Theory'), this.theoryError, this.figures, this.plotHost),
+      ),
+    );
+  }
+
+  async activate(): Promise<void> {
+    if (!this.plot) {
+      this.plot = new BodePlot('ac');
+      this.plotHost.appendChild(this.plot.element);
+    }
+    const [templates, designs] = await Promise.all([this.templates.length ? Promise.resolve(this.templates) : this.client.listTemplates(), this.client.listDesigns()]);
+    if (this.templates.length === 0) {
+      this.templates = templates;
+      replaceChildren(this.templateSelect, templates.map((t) => h('option', { value: t.id }, t.title)));
+      this.renderTemplateParams();
+    }
+    replaceChildren(this.savedSelect, designs.length === 0 ? h('option', { value: '' }, 'none saved yet') : designs.map((d) => h('option', { value: String(d.id) }, `${d.name} (#${d.id})`)));
+    if (this.state.current.design) this.savedSelect.value = String(this.state.current.design.id);
+    if (!this.draft && designs.length > 0) {
+      const record = this.state.current.design ?? designs[designs.length - 1];
+      this.loadDraft(record.design, record);
+    }
+  }
+
+  private renderTemplateParams(): void {
+    const template = this.templates.find((t) => t.id === this.templateSelect.value);
+    replaceChildren(
+      this.templateParams,
+      (template?.parameters ?? []).map((p) =>
+        field(`${p.name} (${p.unit})`, h('input', { type: 'text', name: `template-${p.name}`, 'data-param': p.name, value: formatEngineering(p.defaultValue, '', 6).replace(' ', ''), title: p.description }), p.description),
+      ),
+    );
+    if (template) this.templateParams.prepend(h('p', { className: 'hint' }, template.description));
+  }
+
+  private async makeFromTemplate(): Promise<void> {
+    const parameters: Record<string, number> = {};
+    for (const input of this.templateParams.querySelectorAll<HTMLInputElement>('input[data-param]')) {
+      parameters[input.dataset.param!] = parseEngineering(input.value, input.dataset.param);
+    }
+    const design = await this.client.makeTemplate(this.templateSelect.value, parameters);
+    this.loadDraft(design, undefined);
+  }
+
+  private async openFile(input: HTMLInputElement): Promise<void> {
+    const file = input.files?.[0];
+    if (!file) return;
+    try {
+      const json = JSON.parse(await file.text());
+      parseDesign(json, file.name);
+      this.loadDraft(json, undefined);
+    } catch (error) {
+      showError(error, `Opening ${file.name}`);
+    } finally {
+      input.value = '';
+    }
+  }
+
+  private loadDraft(design: unknown, record: DesignRecord | undefined): void {
+    this.draft = structuredClone(design) as Draft;
+    this.nameInput.value = this.draft.name ?? '';
+    if (record) {
+      this.state.update({ design: record });
+      this.savedState.textContent = `Saved as #${record.id}.`;
+    } else this.markUnsaved();
+    this.renderParts();
+    this.computeTheory();
+  }
+
+  private markUnsaved(): void {
+    this.savedState.textContent = 'Not saved yet.';
+  }
+
+  private renderParts(): void {
+    const draft = this.draft;
+    if (!draft) return;
+    const rows = draft.parts.map((part) => {
+      const title = h('th', { scope: 'row' }, part.id, h('small', {}, ` ${part.type} ${part.nodes.join('–')}`));
+      if (part.type === 'resistor' || part.type === 'capacitor' || part.type === 'inductor') {
+        const unit = part.type === 'resistor' ? 'Ω' : part.type === 'capacitor' ? 'F' : 'H';
+        const value = this.numberInput(String(typeof part.value === 'number' ? formatEngineering(part.value, '', 6).replace(' ', '') : part.value), `${part.id} value (${unit})`, (text) => (part.value = text));
+        const tolerance = this.numberInput(part.tolerance === undefined ? '' : String(Number(part.tolerance) * 100), `${part.id} tolerance (%)`, (text) => {
+          if (text.trim() === '') delete part.tolerance;
+          else part.tolerance = parseEngineering(text, `${part.id} tolerance`) / 100;
+        });
+        return h('tr', {}, title, h('td', {}, value), h('td', {}, tolerance));
+      }
+      const model = (part.model ?? {}) as Record<string, unknown>;
+      const fields = part.type === 'opamp' ? OPAMP_FIELDS : DIODE_FIELDS;
+      const inputs = fields.map((f) =>
+        field(`${f.label}${f.unit ? ` (${f.unit})` : ''}`, this.numberInput(model[f.key] === undefined ? '' : formatEngineering(Number(model[f.key]), '', 6).replace(' ', ''), `${part.id} ${f.label}`, (text) => {
+          if (text.trim() === '') delete model[f.key];
+          else model[f.key] = parseEngineering(text, `${part.id} ${f.key}`);
+        })),
+      );
+      if (part.type === 'opamp') {
+        const rails = (model.rails as [number, number] | undefined) ?? undefined;
+        inputs.push(field('Output rails low/high (V)', this.numberInput(rails ? `${rails[0]}, ${rails[1]}` : '', `${part.id} rails`, (text) => {
+          if (text.trim() === '') delete model.rails;
+          else {
+            const [low, high] = text.split(',').map((t) => parseEngineering(t.trim(), `${part.id} rails`));
+            model.rails = [low, high];
+          }
+        })));
+      }
+      return h('tr', {}, title, h('td', { colspan: '2' }, h('div', { className: 'param-grid' }, inputs)));
+    });
+    replaceChildren(
+      this.partsHost,
+      h('table', { className: 'data-table parts-table' }, h('thead', {}, h('tr', {}, h('th', { scope: 'col' }, 'Part'), h('th', { scope: 'col' }, 'Value'), h('th', { scope: 'col' }, 'Tolerance %'))), h('tbody', {}, rows)),
+    );
+    replaceChildren(
+      this.actualHost,
+      draft.parts
+        .filter((p) => p.type === 'resistor' || p.type === 'capacitor' || p.type === 'inductor')
+        .map((p) => field(`Measured ${p.id}`, h('input', { type: 'text', 'data-actual': p.id, placeholder: 'as designed' }))),
+    );
+  }
+
+  /** An input whose text is applied to the draft as you type; a bad value is shown beside it and not applied. */
+  private numberInput(value: string, label: string, apply: (text: string) => void): HTMLInputElement {
+    const input = h('input', { type: 'text', value, 'aria-label': label, 'data-part-input': label, autocomplete: 'off', spellcheck: 'false' });
+    input.addEventListener('input', () => {
+      try {
+        apply(input.value);
+        input.removeAttribute('aria-invalid');
+        input.title = '';
+        this.markUnsaved();
+        this.recompute();
+      } catch (error) {
+        input.setAttribute('aria-invalid', 'true');
+        input.title = (error as Error).message;
+      }
+    });
+    return input;
+  }
+
+  private computeTheory(): void {
+    if (!this.draft || !this.plot) return;
+    try {
+      const design = parseDesign(this.draft, 'Design view');
+      const frequencies = logGrid(THEORY_FROM_HZ, THEORY_TO_HZ, THEORY_POINTS_PER_DECADE);
+      const response = solveAc(design, frequencies);
+      const summary = summarizeAc(design, response);
+      const hasTolerances = design.parts.some((p) => 'tolerance' in p && p.tolerance !== undefined && p.tolerance > 0);
+      const band = hasTolerances ? monteCarloAc(design, frequencies, { samples: BAND_SAMPLES, seed: BAND_SEED, distribution: 'uniform' }) : undefined;
+      const theory: TheoryColumns = {
+        frequencyHz: Array.from(response.frequencyHz),
+        gainDb: Array.from(response.gainDb),
+        phaseDeg: Array.from(response.phaseDeg),
+        idealGainDb: Array.from(response.idealGainDb),
+        idealPhaseDeg: Array.from(response.idealPhaseDeg),
+        bandLowDb: band ? Array.from(band.gainLowDb) : undefined,
+        bandHighDb: band ? Array.from(band.gainHighDb) : undefined,
+      };
+      this.plot.setTheory(theory, { theoryGainLimitHz: summary.gainLimitHz, theoryMinus3dbHz: summary.minus3dbHz });
+      this.theoryError.hidden = true;
+      replaceChildren(
+        this.figures,
+        h('dt', {}, 'Pass-band gain'), h('dd', { 'data-figure': 'passband' }, formatDb(summary.passbandGainDb)),
+        h('dt', {}, '−3 dB points'), h('dd', { 'data-figure': 'minus3db' }, summary.minus3dbHz.length ? summary.minus3dbHz.map((f) => formatHz(f)).join(', ') : 'none in range'),
+        h('dt', {}, 'Gain-limit point'), h('dd', { 'data-figure': 'gain-limit' }, formatHz(summary.gainLimitHz)),
+        h('dt', {}, 'Roll-off'), h('dd', {}, summary.rolloffDbPerDecade === undefined ? '—' : `${summary.rolloffDbPerDecade.toFixed(1)} dB/decade`),
+        h('dt', {}, 'Tolerance band'), h('dd', {}, hasTolerances ? `2.5–97.5 % of ${BAND_SAMPLES} Monte Carlo samples` : 'no part tolerances given'),
+      );
+    } catch (error) {
+      this.theoryError.hidden = false;
+      this.theoryError.textContent = (error as Error).message;
+    }
+  }
+
+  private async save(): Promise<void> {
+    if (!this.draft) throw new Error('Pick a template or open a design first.');
+    parseDesign(this.draft, 'Design view');
+    const record = await this.client.saveDesign(this.draft);
+    this.state.update({ design: record });
+    this.savedState.textContent = `Saved as #${record.id}.`;
+    showInfo(`Design "${record.name}" saved.`);
+  }
+
+  private async createBuild(): Promise<BuildRecord> {
+    const design = this.state.current.design;
+    if (!design || this.savedState.textContent !== `Saved as #${design.id}.`) await this.save();
+    const designId = this.state.current.design!.id;
+    const actualValues: Record<string, number> = {};
+    for (const input of this.actualHost.querySelectorAll<HTMLInputElement>('input[data-actual]')) {
+      if (input.value.trim() !== '') actualValues[input.dataset.actual!] = parseEngineering(input.value, `Measured ${input.dataset.actual}`);
+    }
+    const build = await this.client.createBuild({ designId, label: this.buildLabel.value.trim() || `build ${new Date().toISOString().slice(0, 16)}`, notes: this.buildNotes.value, actualValues });
+    this.state.update({ build });
+    showInfo(`Build "${build.label}" created for design #${designId}.`);
+    return build;
+  }
+}
+

@@ -1,0 +1,120 @@
+/**
+ * History: designs, builds and runs, searchable. Runs left running or paused
+ * by a crash or a stop are offered for resume; runs can be picked for
+ * Compare and Record, or reopened on the Sweep view.
+ */
+import type { RolloffClient, RunStatus, RunSummary } from '../../app/service/contract';
+import { debounce, field, h, replaceChildren, select } from '../dom';
+import { guarded } from '../notices';
+import type { View } from '../shell';
+import type { AppState } from '../state';
+
+const STATUSES: Array<RunStatus | ''> = ['', 'planned', 'running', 'paused', 'done', 'stopped', 'failed'];
+
+export class HistoryView implements View {
+  readonly id = 'history' as const;
+  readonly element: HTMLElement;
+  private readonly search = h('input', { type: 'search', name: 'search', placeholder: 'design, build, operator, notes…', 'data-testid': 'history-search' });
+  private readonly status = select(STATUSES.map((s) => ({ value: s, label: s || 'any status' })), '', { name: 'status' });
+  private readonly runsBody = h('tbody', { 'data-testid': 'history-runs' });
+  private readonly designsBody = h('tbody');
+  private readonly interrupted = h('div', { className: 'interrupted', 'data-testid': 'interrupted-runs' });
+  private readonly pickedText = h('span', { 'data-testid': 'picked-count' });
+  private readonly refreshSoon = debounce(() => void this.refresh(), 200);
+
+  constructor(
+    private readonly client: RolloffClient,
+    private readonly state: AppState,
+  ) {
+    this.search.addEventListener('input', () => this.refreshSoon());
+    this.status.addEventListener('change', () => this.refreshSoon());
+    const compare = h('button', { type: 'button', className: 'primary', 'data-testid': 'compare-picked' }, 'Compare picked runs');
+    compare.addEventListener('click', () => state.showView('compare'));
+    const record = h('button', { type: 'button' }, 'Record of picked runs');
+    record.addEventListener('click', () => state.showView('record'));
+    this.element = h(
+      'section',
+      { 'aria-labelledby': 'history-title' },
+      h('h2', { id: 'history-title' }, 'History'),
+      this.interrupted,
+      h('div', { className: 'panel' },
+        h('div', { className: 'row-form' }, field('Search', this.search), field('Status', this.status), h('div', { className: 'actions' }, this.pickedText, compare, record)),
+        h('table', { className: 'data-table' },
+          h('thead', {}, h('tr', {}, ['Pick', 'Run', 'Design', 'Build', 'Kind', 'Status', 'Started', 'Points', ''].map((t) => h('th', { scope: 'col' }, t)))),
+          this.runsBody,
+        ),
+      ),
+      h('div', { className: 'panel' }, h('h3', {}, 'Designs and builds'), h('table', { className: 'data-table' }, h('thead', {}, h('tr', {}, ['Design', 'Saved', 'Builds'].map((t) => h('th', { scope: 'col' }, t)))), this.designsBody)),
+    );
+    state.subscribe((s, changed) => {
+      if (changed.includes('pickedRunIds')) this.pickedText.textContent = `${s.pickedRunIds.length} picked`;
+    });
+    this.pickedText.textContent = '0 picked';
+  }
+
+  async activate(): Promise<void> {
+    await this.refresh();
+  }
+
+  private async refresh(): Promise<void> {
+    const filter: { search?: string; status?: RunStatus } = {};
+    if (this.search.value.trim()) filter.search = this.search.value.trim();
+    if (this.status.value) filter.status = this.status.value as RunStatus;
+    const [runs, designs, builds, allOpen] = await Promise.all([
+      this.client.listRuns(filter),
+      this.client.listDesigns(),
+      this.client.listBuilds(),
+      this.client.listRuns(),
+    ]);
+    replaceChildren(this.runsBody, runs.length === 0 ? h('tr', {}, h('td', { colspan: '9', className: 'empty' }, 'No runs match.')) : runs.map((run) => this.runRow(run)));
+    replaceChildren(
+      this.designsBody,
+      designs.map((design) =>
+        h('tr', {}, h('th', { scope: 'row' }, `${design.name} (#${design.id})`), h('td', {}, design.createdAt.slice(0, 16).replace('T', ' ')), h('td', {}, builds.filter((b) => b.designId === design.id).map((b) => b.label).join(', ') || '—')),
+      ),
+    );
+    const resumable = allOpen.filter((run) => (run.status === 'running' || run.status === 'paused') && run.id !== this.state.current.sweepRunId);
+    replaceChildren(
+      this.interrupted,
+      resumable.length === 0
+        ? null
+        : h('div', { className: 'panel attention' }, h('h3', {}, 'Unfinished runs'), h('p', {}, 'These runs did not finish (paused, or interrupted when the app stopped). Every point measured so far is kept; resuming continues with the next step.'),
+            h('ul', {}, resumable.map((run) => h('li', {}, `Run #${run.id} ${run.designName} — ${run.buildLabel}: ${run.pointCount} of ${run.plannedCount} points (${run.status}) `, this.resumeButton(run))))),
+    );
+  }
+
+  private runRow(run: RunSummary): HTMLTableRowElement {
+    const pick = h('input', { type: 'checkbox', 'aria-label': `Pick run ${run.id}`, 'data-pick-run': String(run.id) });
+    pick.checked = this.state.current.pickedRunIds.includes(run.id);
+    pick.addEventListener('change', () => this.state.togglePicked(run.id, pick.checked));
+    const open = h('button', { type: 'button', className: 'small' }, 'Open');
+    open.addEventListener('click', () => {
+      this.state.update({ sweepRunId: run.id });
+      this.state.showView('sweep');
+    });
+    const unfinished = run.pointCount < run.plannedCount && run.status !== 'running' && run.status !== 'planned';
+    return h(
+      'tr',
+      { 'data-run': String(run.id) },
+      h('td', {}, pick),
+      h('th', { scope: 'row' }, `#${run.id}`),
+      h('td', {}, run.designName),
+      h('td', {}, run.buildLabel),
+      h('td', {}, run.kind.toUpperCase()),
+      h('td', {}, h('span', { className: `badge status-${run.status}` }, run.status), run.simulated ? h('span', { className: 'badge simulated' }, 'simulated') : null),
+      h('td', {}, run.startedAt ? run.startedAt.slice(0, 16).replace('T', ' ') : '—'),
+      h('td', {}, `${run.pointCount}/${run.plannedCount}`),
+      h('td', {}, open, unfinished ? this.resumeButton(run) : null),
+    );
+  }
+
+  private resumeButton(run: RunSummary): HTMLButtonElement {
+    const button = h('button', { type: 'button', className: 'small', 'data-resume-run': String(run.id) }, 'Resume');
+    button.addEventListener('click', () => void guarded(button, `Resuming run #${run.id}`, async () => {
+      await this.client.resumeRun(run.id);
+      this.state.update({ sweepRunId: run.id });
+      this.state.showView('sweep');
+    }));
+    return button;
+  }
+}

@@ -1,0 +1,254 @@
+/**
+ * Sweep: plan settings with the estimated duration, start / pause / resume /
+ * stop, the live Bode plot (measured over theory, band, gain-limit and −3 dB
+ * points, distorted points marked), progress with ETA, and the run's events.
+ */
+import type { BuildRecord, RolloffClient, RunDetail, RunProgress, RunStatus, RunSummary, SweepRequest } from '../../app/service/contract';
+import { parseEngineering } from '../../app/units';
+import { debounce, field, h, replaceChildren, select } from '../dom';
+import { formatDuration } from '../model/format';
+import { LivePoints } from '../model/live-points';
+import { guarded, showError } from '../notices';
+import { BodePlot } from '../plot/bode-plot';
+import type { View } from '../shell';
+import type { AppState } from '../state';
+
+const EVENTS_KEPT = 300;
+
+export class SweepView implements View {
+  readonly id = 'sweep' as const;
+  readonly element: HTMLElement;
+  private readonly buildSelect = h('select', { name: 'build', 'data-testid': 'sweep-build' });
+  private readonly inputs = {
+    kind: select([{ value: 'ac', label: 'AC frequency sweep' }, { value: 'dc', label: 'DC transfer sweep' }], 'ac', { name: 'kind' }),
+    from: h('input', { type: 'text', name: 'from', value: '100', 'data-testid': 'sweep-from' }),
+    to: h('input', { type: 'text', name: 'to', value: '100k', 'data-testid': 'sweep-to' }),
+    pointsPerDecade: h('input', { type: 'number', name: 'points-per-decade', value: '10', min: '1', max: '1000', 'data-testid': 'sweep-ppd' }),
+    spacing: select([{ value: 'log', label: 'log' }, { value: 'linear', label: 'linear' }], 'log', { name: 'spacing' }),
+    amplitudeMode: select([{ value: 'auto', label: 'auto (stay linear)' }, { value: 'fixed', label: 'fixed' }], 'auto', { name: 'amplitude-mode' }),
+    amplitudeVpp: h('input', { type: 'text', name: 'amplitude', value: '1', 'data-testid': 'sweep-amplitude' }),
+    measurement: select([{ value: 'scope', label: 'scope (gain and phase)' }, { value: 'meter', label: 'meter (gain only)' }], 'scope', { name: 'measurement' }),
+    minCycles: h('input', { type: 'number', name: 'min-cycles', value: '3', min: '1' }),
+    averages: h('input', { type: 'number', name: 'averages', value: '1', min: '1' }),
+    refine: h('input', { type: 'checkbox', name: 'refine', checked: true }),
+    operator: h('input', { type: 'text', name: 'operator', autocomplete: 'name' }),
+    notes: h('textarea', { name: 'notes', rows: '2' }),
+  };
+  private readonly estimate = h('p', { className: 'estimate', 'data-testid': 'sweep-estimate', 'aria-live': 'polite' });
+  private readonly buttons = {
+    start: h('button', { type: 'button', className: 'primary', 'data-testid': 'sweep-start' }, 'Start'),
+    pause: h('button', { type: 'button', 'data-testid': 'sweep-pause' }, 'Pause'),
+    resume: h('button', { type: 'button', 'data-testid': 'sweep-resume' }, 'Resume'),
+    stop: h('button', { type: 'button', className: 'danger', 'data-testid': 'sweep-stop' }, 'Stop'),
+  };
+  private readonly progress = h('progress', { max: '1', value: '0', 'aria-label': 'Sweep progress' });
+  private readonly progressText = h('span', { className: 'progress-text', 'data-testid': 'sweep-progress' }, 'No run yet.');
+  private readonly runHeader = h('p', { className: 'run-header', 'data-testid': 'run-header' });
+  private readonly events = h('ol', { className: 'events', 'aria-label': 'Run events', 'data-testid': 'run-events' });
+  private readonly plotHost = h('div', { className: 'plot-host', 'data-testid': 'sweep-plot' });
+  private plot: BodePlot | undefined;
+  private live: LivePoints | undefined;
+  private run: RunSummary | undefined;
+  private builds: BuildRecord[] = [];
+  private readonly replan = debounce(() => void this.updateEstimate(), 250);
+
+  constructor(
+    private readonly client: RolloffClient,
+    private readonly state: AppState,
+  ) {
+    const form = h(
+      'form',
+      { className: 'plan-form', 'aria-label': 'Sweep plan' },
+      field('Build', this.buildSelect),
+      field('Kind', this.inputs.kind),
+      field('From (Hz or V)', this.inputs.from, 'Engineering notation: 10, 1k, 2meg.'),
+      field('To (Hz or V)', this.inputs.to),
+      field('Points per decade', this.inputs.pointsPerDecade),
+      field('Spacing', this.inputs.spacing),
+      field('Stimulus amplitude', this.inputs.amplitudeMode),
+      field('Amplitude (Vpp; fixed) or target output (Vpp; auto)', this.inputs.amplitudeVpp, 'Never above the bench maximum.'),
+      field('Measure with', this.inputs.measurement),
+      field('Minimum cycles', this.inputs.minCycles),
+      field('Averages', this.inputs.averages),
+      field('Refine −3 dB and gain-limit points', this.inputs.refine),
+      field('Operator', this.inputs.operator),
+      field('Notes', this.inputs.notes),
+    );
+    form.addEventListener('input', () => this.replan());
+    form.addEventListener('change', () => this.replan());
+    form.addEventListener('submit', (event) => event.preventDefault());
+
+    this.buttons.start.addEventListener('click', () => void guarded(this.buttons.start, 'Starting the sweep', () => this.start()));
+    this.buttons.pause.addEventListener('click', () => void guarded(this.buttons.pause, 'Pausing', async () => this.applySummary(await client.pauseRun(this.run!.id))));
+    this.buttons.resume.addEventListener('click', () => void guarded(this.buttons.resume, 'Resuming', async () => this.applySummary(await client.resumeRun(this.run!.id))));
+    this.buttons.stop.addEventListener('click', () => void guarded(this.buttons.stop, 'Stopping', async () => this.applySummary(await client.stopRun(this.run!.id))));
+
+    this.element = h(
+      'section',
+      { 'aria-labelledby': 'sweep-title' },
+      h('h2', { id: 'sweep-title' }, 'Sweep'),
+      h('div', { className: 'columns sweep-columns' },
+        h('div', { className: 'panel' }, h('h3', {}, 'Plan'), form, this.estimate),
+        h('div', { className: 'panel wide' },
+          h('div', { className: 'run-controls' }, this.buttons.start, this.buttons.pause, this.buttons.resume, this.buttons.stop, this.progress, this.progressText),
+          this.runHeader,
+          this.plotHost,
+          h('h3', {}, 'Events'),
+          this.events,
+        ),
+      ),
+    );
+    this.renderButtons();
+
+    client.on('point', (point) => {
+      if (this.live?.add(point)) this.plot?.setMeasured(this.live);
+    });
+    client.on('progress', (progress) => this.applyProgress(progress));
+    client.on('runEvent', (event) => {
+      if (event.runId === this.run?.id) this.appendEvent(event.at, event.level, event.message);
+    });
+    state.subscribe((s, changed) => {
+      if (changed.includes('build') && s.build) this.buildSelect.value = String(s.build.id);
+      if (changed.includes('sweepRunId') && s.sweepRunId !== undefined && s.sweepRunId !== this.run?.id) void this.openRun(s.sweepRunId);
+    });
+  }
+
+  async activate(): Promise<void> {
+    if (!this.plot) this.replacePlot('ac');
+    const [designs, builds] = await Promise.all([this.client.listDesigns(), this.client.listBuilds()]);
+    this.builds = builds;
+    const names = new Map(designs.map((d) => [d.id, d.name]));
+    const chosen = this.state.current.build?.id ?? builds.at(-1)?.id;
+    replaceChildren(this.buildSelect, builds.length === 0 ? h('option', { value: '' }, 'Create a build first (Design view)') : builds.map((b) => h('option', { value: String(b.id) }, `${names.get(b.designId) ?? 'design #' + b.designId} — ${b.label} (#${b.id})`)));
+    if (chosen !== undefined) this.buildSelect.value = String(chosen);
+    await this.updateEstimate();
+  }
+
+  /** The request the form describes; throws ValidationError naming the field. */
+  private request(): SweepRequest {
+    const buildId = Number(this.buildSelect.value);
+    if (!Number.isInteger(buildId) || buildId < 1) throw new Error('Pick a build first (create one on the Design view).');
+    const amount = parseEngineering(this.inputs.amplitudeVpp.value, 'Amplitude');
+    const auto = this.inputs.amplitudeMode.value === 'auto';
+    return {
+      buildId,
+      kind: this.inputs.kind.value as SweepRequest['kind'],
+      from: parseEngineering(this.inputs.from.value, 'From'),
+      to: parseEngineering(this.inputs.to.value, 'To'),
+      pointsPerDecade: Number(this.inputs.pointsPerDecade.value),
+      spacing: this.inputs.spacing.value as SweepRequest['spacing'],
+      amplitude: auto ? { mode: 'auto', targetOutputVpp: amount } : { mode: 'fixed', vpp: amount },
+      measurement: this.inputs.measurement.value as SweepRequest['measurement'],
+      minCycles: Number(this.inputs.minCycles.value),
+      averages: Number(this.inputs.averages.value),
+      refine: this.inputs.refine.checked,
+      operator: this.inputs.operator.value,
+      notes: this.inputs.notes.value,
+    };
+  }
+
+  private async updateEstimate(): Promise<void> {
+    if (this.builds.length === 0) {
+      this.estimate.textContent = 'No build to sweep yet.';
+      return;
+    }
+    try {
+      const plan = await this.client.planSweep(this.request());
+      replaceChildren(this.estimate, `${plan.steps.length} points, about ${formatDuration(plan.estimatedDurationS)}.`, plan.warnings.length ? h('ul', { className: 'warnings' }, plan.warnings.map((w) => h('li', {}, w))) : null);
+      this.estimate.classList.remove('invalid');
+    } catch (error) {
+      this.estimate.textContent = (error as Error).message;
+      this.estimate.classList.add('invalid');
+    }
+  }
+
+  private async start(): Promise<void> {
+    const summary = await this.client.startRun(this.request());
+    this.state.update({ sweepRunId: summary.id });
+    await this.openRun(summary.id, summary);
+  }
+
+  /** Shows a run (new, live, or reopened from History) with what the store already has. */
+  private async openRun(runId: number, summary?: RunSummary): Promise<void> {
+    this.live = new LivePoints(runId);
+    this.run = summary ?? this.run;
+    this.events.textContent = '';
+    try {
+      const detail = await this.client.getRun(runId);
+      this.showDetail(detail);
+    } catch (error) {
+      showError(error, `Opening run #${runId}`);
+    }
+  }
+
+  private showDetail(detail: RunDetail): void {
+    if (!this.plot || this.plot.kind !== detail.kind) this.replacePlot(detail.kind);
+    const stored = LivePoints.fromColumns(detail.id, detail.points);
+    // Points that arrived by event while getRun was in flight are kept too (the buffer drops duplicates).
+    if (this.live?.runId === detail.id) stored.addAll(this.live);
+    this.live = stored;
+    this.plot!.setTheory(detail.theory, { theoryGainLimitHz: detail.theoryGainLimitHz, theoryMinus3dbHz: detail.theoryMinus3dbHz });
+    this.plot!.setMeasuredMarkers({ measuredGainLimitHz: detail.figures.gainLimitHz, measuredMinus3dbHz: detail.figures.minus3dbHz });
+    this.plot!.setMeasured(this.live!);
+    for (const event of detail.events.slice(-EVENTS_KEPT)) this.appendEvent(event.at, event.level, event.message);
+    this.applySummary(detail);
+    this.applyProgress({ runId: detail.id, step: detail.pointCount, total: detail.plannedCount, etaS: NaN, status: detail.status });
+  }
+
+  private replacePlot(kind: RunDetail['kind']): void {
+    this.plot?.destroy();
+    this.plot = new BodePlot(kind);
+    replaceChildren(this.plotHost, this.plot.element);
+  }
+
+  private applySummary(summary: RunSummary): void {
+    const previous = this.run?.status;
+    this.run = summary;
+    replaceChildren(
+      this.runHeader,
+      `Run #${summary.id}: ${summary.designName} — ${summary.buildLabel} `,
+      h('span', { className: `badge status-${summary.status}`, 'data-testid': 'run-status' }, summary.status),
+      summary.simulated ? h('span', { className: 'badge simulated' }, 'simulated') : null,
+    );
+    this.renderButtons();
+    if (previous !== summary.status && isFinished(summary.status) && previous !== undefined && !isFinished(previous)) void this.refreshFigures(summary.id);
+  }
+
+  private applyProgress(progress: RunProgress): void {
+    if (progress.runId !== this.run?.id) return;
+    this.progress.max = Math.max(1, progress.total);
+    this.progress.value = Math.min(progress.step, progress.total);
+    const eta = progress.status === 'running' && Number.isFinite(progress.etaS) ? `, about ${formatDuration(progress.etaS)} left` : '';
+    this.progressText.textContent = `${progress.step} of ${progress.total} points${eta} (${progress.status})`;
+    if (progress.status !== this.run.status) this.applySummary({ ...this.run, status: progress.status, pointCount: progress.step });
+  }
+
+  /** After a run ends the service has the measured figures: show their markers. */
+  private async refreshFigures(runId: number): Promise<void> {
+    try {
+      const detail = await this.client.getRun(runId);
+      if (detail.id !== this.run?.id) return;
+      this.plot?.setMeasuredMarkers({ measuredGainLimitHz: detail.figures.gainLimitHz, measuredMinus3dbHz: detail.figures.minus3dbHz });
+    } catch (error) {
+      showError(error, `Reading run #${runId}`);
+    }
+  }
+
+  private renderButtons(): void {
+    const status: RunStatus | undefined = this.run?.status;
+    this.buttons.pause.disabled = status !== 'running';
+    this.buttons.resume.disabled = !(status === 'paused' || status === 'stopped' || status === 'failed') || this.run!.pointCount >= this.run!.plannedCount;
+    this.buttons.stop.disabled = !(status === 'running' || status === 'paused');
+    this.buttons.start.disabled = status === 'running';
+  }
+
+  private appendEvent(at: string, level: string, message: string): void {
+    this.events.appendChild(h('li', { className: `event-${level}` }, h('time', {}, at.slice(11, 19)), ` ${message}`));
+    while (this.events.childElementCount > EVENTS_KEPT) this.events.firstElementChild?.remove();
+    this.events.scrollTop = this.events.scrollHeight;
+  }
+}
+
+function isFinished(status: RunStatus): boolean {
+  return status === 'done' || status === 'stopped' || status === 'failed';
+}

@@ -1,0 +1,118 @@
+/**
+ * The one boundary check for window calls. Expected outcomes follow the
+ * contract's types (app/service/contract.ts) and the ranges documented in
+ * validate-arguments.ts — common practice, no source.
+ */
+import { describe, expect, it } from 'vitest';
+import { ValidationError } from '../../../app/errors';
+import { API_METHOD_NAMES, validateCall } from '../../../app/service/validate-arguments';
+import type { SweepRequest } from '../../../app/service/contract';
+
+const GOOD_SWEEP: SweepRequest = {
+  buildId: 3,
+  kind: 'ac',
+  from: 10,
+  to: 100_000,
+  pointsPerDecade: 10,
+  spacing: 'log',
+  amplitude: { mode: 'fixed', vpp: 1 },
+  measurement: 'scope',
+  minCycles: 3,
+  averages: 2,
+  refine: true,
+  operator: 'tester',
+  notes: '',
+};
+
+function rejection(method: unknown, args: unknown): ValidationError {
+  try {
+    validateCall(method, args);
+  } catch (error) {
+    expect(error).toBeInstanceOf(ValidationError);
+    return error as ValidationError;
+  }
+  throw new Error(`validateCall(${String(method)}) accepted ${JSON.stringify(args)}`);
+}
+
+describe('validateCall', () => {
+  it('knows every method of the contract exactly once', () => {
+    expect(new Set(API_METHOD_NAMES).size).toBe(API_METHOD_NAMES.length);
+    expect(API_METHOD_NAMES).toHaveLength(22);
+  });
+
+  it('refuses unknown and prototype method names, naming the method', () => {
+    expect(rejection('dropAllTables', []).message).toMatch(/"dropAllTables" is not a Rolloff API method/);
+    expect(rejection('constructor', []).where).toBe('method');
+    expect(rejection('__proto__', []).where).toBe('method');
+    expect(rejection(42, []).where).toBe('method');
+  });
+
+  it('refuses an argument list that is not a list', () => {
+    expect(rejection('getRun', { runId: 1 }).message).toMatch(/must be a JSON array/);
+  });
+
+  it('accepts well-formed calls and returns the checked arguments', () => {
+    expect(validateCall('listPorts', []).args).toEqual([]);
+    expect(validateCall('getRun', [7]).args).toEqual([7]);
+    expect(validateCall('compareRuns', [[1, 2], 'theory']).args).toEqual([[1, 2], 'theory']);
+    expect(validateCall('compareRuns', [[1, 2], 2]).args).toEqual([[1, 2], 2]);
+    expect(validateCall('startRun', [GOOD_SWEEP]).args).toEqual([GOOD_SWEEP]);
+    expect(validateCall('listRuns', [{ search: 'board A', status: 'paused' }]).args).toEqual([{ search: 'board A', status: 'paused' }]);
+    expect(validateCall('listBuilds', []).args).toEqual([]);
+    expect(validateCall('connect', [{ role: 'meter', address: ' 127.0.0.1:5025 ', profileId: 'generic-meter' }]).args).toEqual([
+      { role: 'meter', address: '127.0.0.1:5025', profileId: 'generic-meter' },
+    ]);
+  });
+
+  it('refuses bad store ids with the argument named', () => {
+    for (const bad of [0, -1, 1.5, '3', null, Number.NaN, 2 ** 60]) {
+      const error = rejection('getRun', [bad]);
+      expect(error.where).toBe('getRun(runId)');
+    }
+  });
+
+  it('refuses extra arguments', () => {
+    expect(rejection('getRun', [1, 2]).message).toMatch(/takes 1 argument/);
+    expect(rejection('listPorts', ['x']).message).toMatch(/takes 0 argument/);
+  });
+
+  it('names the field of a bad sweep request', () => {
+    const cases: Array<[Partial<Record<keyof SweepRequest, unknown>>, string]> = [
+      [{ from: 0 }, 'startRun(request).from'],
+      [{ to: 5 }, 'startRun(request).to'],
+      [{ from: '10' }, 'startRun(request).from'],
+      [{ pointsPerDecade: 0 }, 'startRun(request).pointsPerDecade'],
+      [{ pointsPerDecade: 2.5 }, 'startRun(request).pointsPerDecade'],
+      [{ kind: 'ramp' }, 'startRun(request).kind'],
+      [{ amplitude: { mode: 'fixed', vpp: -1 } }, 'startRun(request).amplitude.vpp'],
+      [{ amplitude: { mode: 'fixed', vpp: Infinity } }, 'startRun(request).amplitude.vpp'],
+      [{ amplitude: { mode: 'loud' } }, 'startRun(request).amplitude.mode'],
+      [{ refine: 'yes' }, 'startRun(request).refine'],
+      [{ notes: 'x'.repeat(20_001) }, 'startRun(request).notes'],
+      [{ limits: { passbandGainDb: [3, 1] } }, 'startRun(request).limits.passbandGainDb'],
+    ];
+    for (const [change, where] of cases) {
+      expect(rejection('startRun', [{ ...GOOD_SWEEP, ...change }]).where, JSON.stringify(change)).toBe(where);
+    }
+  });
+
+  it('refuses unknown fields instead of passing them on', () => {
+    const error = rejection('planSweep', [{ ...GOOD_SWEEP, sql: 'DROP TABLE runs' }]);
+    expect(error.where).toBe('planSweep(request).sql');
+    expect(error.hint).toMatch(/Known fields/);
+  });
+
+  it('checks builds, designs, run lists and formats', () => {
+    expect(rejection('createBuild', [{ designId: 1, label: '   ', notes: '', actualValues: {} }]).where).toBe('createBuild(build).label');
+    expect(rejection('createBuild', [{ designId: 1, label: 'A', notes: '', actualValues: { R1: -5 } }]).where).toBe('createBuild(build).actualValues.R1');
+    expect(rejection('saveDesign', ['not a design']).where).toBe('saveDesign(design)');
+    expect(rejection('saveDesign', [{ name: 'x' }]).where).toBe('saveDesign(design).parts');
+    expect(rejection('compareRuns', [[], 'theory']).where).toBe('compareRuns(runIds)');
+    expect(rejection('compareRuns', [[1, 1], 'theory']).message).toMatch(/more than once/);
+    expect(rejection('compareRuns', [[1], 'ideal']).where).toBe('compareRuns(reference [argument 2])');
+    expect(rejection('exportRecord', [[1], 'docx']).message).toMatch(/must be one of pdf, html, csv, json/);
+    expect(rejection('setMaxStimulus', [0]).where).toBe('setMaxStimulus(maxStimulusVpp)');
+    expect(rejection('disconnect', ['oscilloscope']).where).toBe('disconnect(role)');
+    expect(rejection('makeTemplate', ['inverting', { R1: 'big' }]).where).toBe('makeTemplate(parameters [argument 2]).R1');
+  });
+});
