@@ -1,0 +1,150 @@
+/**
+ * ngspice netlist of a design, for cross-checks and for users who want to
+ * run the reference simulator themselves. Op-amps become the SAME macro-model
+ * the solver uses (see stamp.ts): a 1 S transconductance into A0 ohms in
+ * parallel with 1/(2π·GBW) farads gives A(s) = A0/(1 + s·A0/(2π·GBW)); an
+ * optional second stage (1 S into 1 Ω ∥ 1/(2π·f2)) adds the second pole; a
+ * unity VCVS copies the result to the output node. SPICE names are
+ * case-insensitive, so nodes and elements get sanitised unique names.
+ */
+import { isGroundNode, type Design } from './types';
+
+export type SpiceAnalysis =
+  | { kind: 'ac'; fromHz: number; toHz: number; pointsPerDecade: number }
+  | { kind: 'dc'; inputsV: ArrayLike<number> }
+  | { kind: 'op' };
+
+export interface SpiceOptions {
+  /** When given, a .control block runs the analysis and writes the result there (wrdata/print). */
+  outputFile?: string;
+  /** Ideal op-amps become a VCVS of gain 1e12 (a close stand-in for the nullor). */
+  idealOpAmps?: boolean;
+}
+
+const IDEAL_VCVS_GAIN = 1e12;
+
+export interface SpiceNames {
+  node(name: string): string;
+  element(partId: string): string;
+  /** Name of the ideal source driving the input node. */
+  inputSource: string;
+}
+
+const ELEMENT_LETTER = { resistor: 'R', capacitor: 'C', inductor: 'L', diode: 'D', opamp: 'E' } as const;
+
+/** Unique, case-safe SPICE names for the design's nodes and parts. */
+export function spiceNames(design: Design): SpiceNames {
+  const nodes = new Map<string, string>();
+  const usedNodes = new Set<string>(['0']);
+  const nodeName = (name: string): string => {
+    if (isGroundNode(name)) return '0';
+    let safe = nodes.get(name);
+    if (safe !== undefined) return safe;
+    safe = name.toLowerCase().replace(/[^a-z0-9_]/g, '_');
+    if (!/^[a-z]/.test(safe)) safe = `n${safe}`;
+    while (usedNodes.has(safe)) safe = `${safe}_`;
+    usedNodes.add(safe);
+    nodes.set(name, safe);
+    return safe;
+  };
+  const elements = new Map<string, string>();
+  const usedElements = new Set<string>();
+  for (const part of design.parts) {
+    let safe = `${ELEMENT_LETTER[part.type]}_${part.id.toLowerCase().replace(/[^a-z0-9_]/g, '_')}`;
+    while (usedElements.has(safe)) safe = `${safe}_`;
+    usedElements.add(safe);
+    elements.set(part.id, safe);
+  }
+  design.parts.forEach((part) => part.nodes.forEach(nodeName));
+  nodeName(design.input);
+  nodeName(design.output);
+  return { node: nodeName, element: (id) => elements.get(id) ?? id, inputSource: 'v__input' };
+}
+
+function num(value: number): string {
+  return String(value);
+}
+
+export function toSpiceNetlist(design: Design, analysis: SpiceAnalysis, options: SpiceOptions = {}): string {
+  const names = spiceNames(design);
+  const node = names.node;
+  const lines: string[] = [
+    `* ${design.name.replace(/\n/g, ' ')}`,
+    '* Netlist written by Rolloff. Op-amps use the single-pole macro-model of Rolloff\'s solver:',
+    '* G (1 S) into A0 ohms parallel 1/(2*pi*GBW) farads, then a unity VCVS to the output.',
+    `${names.inputSource} ${node(design.input)} 0 DC 0 AC 1`,
+  ];
+  const models: string[] = [];
+  for (const part of design.parts) {
+    const name = names.element(part.id);
+    switch (part.type) {
+      case 'resistor':
+      case 'capacitor':
+      case 'inductor':
+        lines.push(`${name} ${node(part.nodes[0])} ${node(part.nodes[1])} ${num(part.value)}`);
+        break;
+      case 'diode': {
+        const model = `dm_${name.slice(2)}`;
+        lines.push(`${name} ${node(part.nodes[0])} ${node(part.nodes[1])} ${model}`);
+        models.push(`.model ${model} D(IS=${num(part.model.is)} N=${num(part.model.n)} RS=${num(part.model.rs)})`);
+        break;
+      }
+      case 'opamp': {
+        const m = part.model;
+        const base = name.slice(2);
+        const [plus, minus, out] = part.nodes.map(node);
+        lines.push(`* op-amp ${part.id}: A0=${num(m.openLoopGain)} GBW=${num(m.gbw)} Hz${m.secondPoleHz ? ` second pole ${num(m.secondPoleHz)} Hz` : ''}`);
+        let sensePlus = plus;
+        if (m.inputOffsetV) {
+          sensePlus = `${base}__sp`;
+          lines.push(`v__${base}_os ${sensePlus} ${plus} DC ${num(m.inputOffsetV)}`);
+        }
+        if (m.inputBiasA) {
+          if (plus !== '0') lines.push(`i__${base}_bp ${plus} 0 DC ${num(m.inputBiasA)}`);
+          if (minus !== '0') lines.push(`i__${base}_bm ${minus} 0 DC ${num(m.inputBiasA)}`);
+        }
+        if (options.idealOpAmps || m.ideal) {
+          lines.push(`${name} ${out} 0 ${sensePlus} ${minus} ${num(IDEAL_VCVS_GAIN)}`);
+          break;
+        }
+        const p1 = `${base}__p1`;
+        lines.push(`g__${base}_1 0 ${p1} ${sensePlus} ${minus} 1`);
+        lines.push(`r__${base}_1 ${p1} 0 ${num(m.openLoopGain)}`);
+        lines.push(`c__${base}_1 ${p1} 0 ${num(1 / (2 * Math.PI * m.gbw))}`);
+        let last = p1;
+        if (m.secondPoleHz !== undefined) {
+          const p2 = `${base}__p2`;
+          lines.push(`g__${base}_2 0 ${p2} ${p1} 0 1`);
+          lines.push(`r__${base}_2 ${p2} 0 1`);
+          lines.push(`c__${base}_2 ${p2} 0 ${num(1 / (2 * Math.PI * m.secondPoleHz))}`);
+          last = p2;
+        }
+        lines.push(`${name} ${out} 0 ${last} 0 1`);
+        break;
+      }
+    }
+  }
+  lines.push(...models);
+  lines.push(`.options TEMP=${num(design.temperatureC)} TNOM=${num(design.temperatureC)}`);
+  const outputNode = node(design.output);
+  const file = options.outputFile;
+  switch (analysis.kind) {
+    case 'ac':
+      lines.push(`.ac dec ${analysis.pointsPerDecade} ${num(analysis.fromHz)} ${num(analysis.toHz)}`);
+      if (file) {
+        lines.push('.control', 'run', 'set wr_singlescale', 'set wr_vecnames', 'option numdgt=15');
+        lines.push(`wrdata ${file} real(v(${outputNode})) imag(v(${outputNode}))`, '.endc');
+      }
+      break;
+    case 'op':
+      lines.push('.op');
+      break;
+    case 'dc':
+      lines.push('.control', 'option numdgt=15');
+      lines.push(`foreach level ${Array.from(analysis.inputsV, num).join(' ')}`);
+      lines.push(`  alter ${names.inputSource} dc = $level`, '  op', `  print v(${outputNode})${file ? ` >> ${file}` : ''}`, 'end', '.endc');
+      break;
+  }
+  lines.push('.end');
+  return lines.join('\n') + '\n';
+}

@@ -1,0 +1,80 @@
+/**
+ * Figures of an AC response: pass-band gain, −3 dB points, roll-off, peak and
+ * the gain-limit point of the output op-amp.
+ */
+import { dbFromRatio } from '../units';
+import type { AcResponse } from './solve-ac';
+import { outputOpAmpIndex } from './output-opamp';
+import type { Design } from './types';
+
+export interface AcSummary {
+  /**
+   * Gain at the lowest frequency when that is within 3 dB of the peak
+   * (low-pass-like responses), otherwise the peak gain (high- and band-pass).
+   */
+  passbandGainDb: number;
+  /** Frequencies where the gain crosses pass band − 3.01 dB (half power), log-interpolated. */
+  minus3dbHz: number[];
+  /** Least-squares slope of gain over the top decade of the sweep, dB/decade. */
+  rolloffDbPerDecade: number | undefined;
+  /** Gain-limit point of the output op-amp (the one driving the output node, else the first). */
+  gainLimitHz: number | undefined;
+  peakGainDb: number;
+  peakFrequencyHz: number;
+}
+
+/** −3 dB in the half-power sense: 20·log10(1/√2). */
+const HALF_POWER_DB = dbFromRatio(Math.SQRT1_2);
+
+export function summarizeAc(design: Design, response: AcResponse): AcSummary {
+  const { frequencyHz, gainDb } = response;
+  const count = frequencyHz.length;
+  let peakIndex = 0;
+  for (let i = 1; i < count; i++) if (gainDb[i] > gainDb[peakIndex]) peakIndex = i;
+  const peakGainDb = gainDb[peakIndex];
+  const passbandGainDb = gainDb[0] >= peakGainDb + HALF_POWER_DB ? gainDb[0] : peakGainDb;
+  const level = passbandGainDb + HALF_POWER_DB;
+  const minus3dbHz: number[] = [];
+  for (let i = 1; i < count; i++) {
+    const a = gainDb[i - 1] - level;
+    const b = gainDb[i] - level;
+    if ((a > 0 && b <= 0) || (a <= 0 && b > 0)) {
+      if (a === b) continue;
+      const t = a / (a - b);
+      const logF = Math.log10(frequencyHz[i - 1]) + t * (Math.log10(frequencyHz[i]) - Math.log10(frequencyHz[i - 1]));
+      minus3dbHz.push(10 ** logF);
+    }
+  }
+  const opIndex = outputOpAmpIndex(design);
+  return {
+    passbandGainDb,
+    minus3dbHz,
+    rolloffDbPerDecade: topDecadeSlope(frequencyHz, gainDb),
+    gainLimitHz: opIndex === undefined ? undefined : response.opamps[opIndex]?.gainLimitHz,
+    peakGainDb,
+    peakFrequencyHz: frequencyHz[peakIndex],
+  };
+}
+
+function topDecadeSlope(frequencyHz: Float64Array, gainDb: Float64Array): number | undefined {
+  const count = frequencyHz.length;
+  if (count < 2) return undefined;
+  const top = frequencyHz[count - 1];
+  let n = 0;
+  let sx = 0;
+  let sy = 0;
+  let sxx = 0;
+  let sxy = 0;
+  for (let i = 0; i < count; i++) {
+    if (frequencyHz[i] < top / 10 * (1 - 1e-12)) continue;
+    const x = Math.log10(frequencyHz[i]);
+    n++;
+    sx += x;
+    sy += gainDb[i];
+    sxx += x * x;
+    sxy += x * gainDb[i];
+  }
+  const denominator = n * sxx - sx * sx;
+  if (n < 2 || denominator <= 0) return undefined;
+  return (n * sxy - sx * sy) / denominator;
+}
