@@ -15,7 +15,10 @@ export type SpiceAnalysis =
   | { kind: 'op' };
 
 export interface SpiceOptions {
-  /** When given, a .control block runs the analysis and writes the result there (wrdata/print). */
+  /**
+   * When given, a .control block runs the analysis, writes the result there
+   * (wrdata/print) and quits (so `ngspice -b` exits 0).
+   */
   outputFile?: string;
   /** Ideal op-amps become a VCVS of gain 1e12 (a close stand-in for the nullor). */
   idealOpAmps?: boolean;
@@ -133,7 +136,7 @@ export function toSpiceNetlist(design: Design, analysis: SpiceAnalysis, options:
       lines.push(`.ac dec ${analysis.pointsPerDecade} ${num(analysis.fromHz)} ${num(analysis.toHz)}`);
       if (file) {
         lines.push('.control', 'run', 'set wr_singlescale', 'set wr_vecnames', 'option numdgt=15');
-        lines.push(`wrdata ${file} real(v(${outputNode})) imag(v(${outputNode}))`, '.endc');
+        lines.push(`wrdata ${file} real(v(${outputNode})) imag(v(${outputNode}))`, 'quit', '.endc');
       }
       break;
     case 'op':
@@ -142,7 +145,7 @@ export function toSpiceNetlist(design: Design, analysis: SpiceAnalysis, options:
     case 'dc':
       lines.push('.control', 'option numdgt=15');
       lines.push(`foreach level ${Array.from(analysis.inputsV, num).join(' ')}`);
-      lines.push(`  alter ${names.inputSource} dc = $level`, '  op', `  print v(${outputNode})${file ? ` >> ${file}` : ''}`, 'end', '.endc');
+      lines.push(`  alter ${names.inputSource} dc = $level`, '  op', `  print v(${outputNode})${file ? ` >> ${file}` : ''}`, 'end', 'quit', '.endc');
       break;
   }
   lines.push('.end');
