@@ -4,7 +4,7 @@
  * no new windows, no webviews, no permission grants.
  */
 import type { BrowserWindowConstructorOptions } from 'electron';
-import { contentSecurityPolicy } from '../app/host/renderer-bundle';
+import { contentSecurityPolicy } from '../app/host/content-security-policy';
 
 /** The parts of BrowserWindow used here (injected so tests can pass a fake). */
 export interface WindowLike {

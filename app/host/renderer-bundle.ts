@@ -19,25 +19,6 @@ export type RendererFiles = Map<string, StaticFile>;
 const PROJECT_ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '../..');
 export const RENDERER_DIR = join(PROJECT_ROOT, 'renderer');
 
-/**
- * The Content-Security-Policy both shells apply. No remote origin appears in
- * it: the window loads and talks only to where it came from.
- */
-export function contentSecurityPolicy(connectSources: string[] = []): string {
-  return [
-    "default-src 'self'",
-    "script-src 'self'",
-    "style-src 'self'",
-    "img-src 'self' data: blob:",
-    "font-src 'self'",
-    `connect-src 'self'${connectSources.length ? ' ' + connectSources.join(' ') : ''}`,
-    "object-src 'none'",
-    "base-uri 'none'",
-    "form-action 'none'",
-    "frame-ancestors 'none'",
-  ].join('; ');
-}
-
 export async function bundleRenderer(options: { minify?: boolean } = {}): Promise<RendererFiles> {
   const result = await build({
     entryPoints: { app: join(RENDERER_DIR, 'main.ts') },

@@ -12,7 +12,8 @@ import type { RolloffApi, ServiceEventName } from '../service/contract';
 import { validateCall } from '../service/validate-arguments';
 import { ValidationError } from '../errors';
 import { createAccessToken, isLoopbackHost, TOKEN_COOKIE, tokenFromRequest, tokenMatches } from './access-token';
-import { contentSecurityPolicy, type RendererFiles } from './renderer-bundle';
+import { contentSecurityPolicy } from './content-security-policy';
+import type { RendererFiles } from './renderer-bundle';
 import { httpStatusFor, serializeError } from './wire-error';
 
 export type EventListener = (event: ServiceEventName, payload: unknown) => void;
