@@ -55,15 +55,33 @@ class PdfFlow {
 }
 
 function columnWidths(doc: Doc, fonts: PdfFontSet, columns: string[], rows: string[][], total: number): number[] {
-  // Natural width of each column (longest cell, capped), then scaled to fit the page.
-  const natural = columns.map((c, i) => {
-    let widest = doc.font(fonts.bold).widthOfString(fonts.printable(c));
+  // Each column gets at least its header and its longest word; the space left is shared in
+  // proportion to how much more each column would like (its longest cell, capped).
+  const minimum: number[] = [];
+  const natural: number[] = [];
+  columns.forEach((c, i) => {
+    doc.font(fonts.bold);
+    let least = doc.widthOfString(fonts.printable(c));
     doc.font(fonts.regular);
-    for (const row of rows.slice(0, 400)) widest = Math.max(widest, Math.min(doc.widthOfString(fonts.printable(row[i] ?? '')), 220));
-    return widest + 6;
+    let widest = least;
+    for (const row of rows.slice(0, 400)) {
+      const cell = fonts.printable(row[i] ?? '');
+      widest = Math.max(widest, Math.min(doc.widthOfString(cell), 220));
+      for (const word of cell.split(/\s+/)) least = Math.max(least, Math.min(doc.widthOfString(word), 60));
+    }
+    minimum.push(least + 6);
+    natural.push(widest + 6);
   });
-  const sum = natural.reduce((a, b) => a + b, 0);
-  return natural.map((w) => (w * total) / sum);
+  const sumMinimum = minimum.reduce((a, b) => a + b, 0);
+  const sumNatural = natural.reduce((a, b) => a + b, 0);
+  if (sumNatural <= total || sumMinimum >= total) {
+    const basis = sumNatural <= total ? natural : minimum;
+    const sum = basis.reduce((a, b) => a + b, 0);
+    return basis.map((w) => (w * total) / sum);
+  }
+  const spare = total - sumMinimum;
+  const wanted = sumNatural - sumMinimum;
+  return minimum.map((least, i) => least + ((natural[i] - least) * spare) / wanted);
 }
 
 function drawTable(flow: PdfFlow, block: Extract<Block, { kind: 'table' }>): void {

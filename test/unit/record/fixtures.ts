@@ -6,7 +6,7 @@
  * figures and verdict come from the real run analysis (app/analysis).
  * All of it is invented demo data and labelled simulated.
  */
-import type { BuildRecord, InstrumentInfo, RunDetail } from '../../../app/service/contract';
+import type { BuildRecord, Comparison, InstrumentInfo, RunDetail } from '../../../app/service/contract';
 import { PointFlag } from '../../../app/service/contract';
 import { analyzeAcRun } from '../../../app/analysis';
 import { dbFromRatio, degreesFromRadians, logGrid } from '../../../app/units';
@@ -208,4 +208,51 @@ export function acRunDetail(options: AcFixtureOptions = {}): RunDetail {
     theoryGainLimitHz: gainLimitHz,
     theoryMinus3dbHz: [cornerHz],
   };
+}
+
+/**
+ * A Comparison of two fixture runs on two builds, with differences against a
+ * reference run (same frequency grid, so point-by-point), as the service would
+ * produce. Figures' deltas are run minus reference.
+ */
+export function comparisonFixture(reference: number | 'theory' = 12): { comparison: Comparison; contexts: Map<number, { design: unknown; build: BuildRecord }> } {
+  const buildA = fixtureBuild();
+  const buildB = fixtureBuild({ id: 4, label: 'Board B (PCB rev 2)', actualValues: { RN: 10.05e3, RF: 99.1e3, CF: 1.43e-9 }, notes: `${INVENTED_NOTE} Second board.` });
+  const runA = acRunDetail({ runId: 12, build: buildA, seed: 3 });
+  const runB = acRunDetail({ runId: 15, build: buildB, seed: 11 });
+  const runs = [runA, runB];
+  const referenceRun = runs.find((r) => r.id === reference);
+  const differences = runs.map((run) => {
+    // Against theory: measured − theory of the same run (interpolated on its own fine grid is not needed:
+    // the fixture theory is evaluated exactly at each point).
+    const deltaDb = run.points.gainDb.map((g, i) => {
+      if (referenceRun) return g - referenceRun.points.gainDb[i];
+      const build = run.id === 12 ? buildA : buildB;
+      const [re, im] = invertingLowPass({ ...NOMINAL_STAGE, inputOhm: build.actualValues.RN, feedbackOhm: build.actualValues.RF, feedbackF: build.actualValues.CF }, run.points.stimulus[i]);
+      return g - dbFromRatio(Math.hypot(re, im));
+    });
+    return { runId: run.id, stimulus: run.points.stimulus, deltaDb };
+  });
+  const figureDelta = (run: RunDetail, key: 'passbandGainDb' | 'gainLimitHz' | 'maxDeviationDb') => {
+    const value = run.figures[key];
+    const base = referenceRun ? referenceRun.figures[key] : key === 'gainLimitHz' ? run.theoryGainLimitHz : key === 'passbandGainDb' ? 20 : 0;
+    return value !== undefined && base !== undefined ? value - base : undefined;
+  };
+  const comparison: Comparison = {
+    runs,
+    referenceRunId: reference,
+    differences,
+    figureTable: runs.map((run) => ({
+      runId: run.id,
+      label: run.buildLabel,
+      figures: run.figures,
+      deltas: {
+        passbandGainDb: figureDelta(run, 'passbandGainDb'),
+        gainLimitHz: figureDelta(run, 'gainLimitHz'),
+        minus3dbHz: run.figures.minus3dbHz[0] - (referenceRun ? referenceRun.figures.minus3dbHz[0] : run.theoryMinus3dbHz[0]),
+      },
+      verdict: run.verdict,
+    })),
+  };
+  return { comparison, contexts: new Map([[12, { design: FIXTURE_DESIGN, build: buildA }], [15, { design: FIXTURE_DESIGN, build: buildB }]]) };
 }

@@ -1,0 +1,105 @@
+/**
+ * PDF records open in a real PDF reader (poppler): pdftoppm renders every page,
+ * pdftotext finds the build label, each instrument's *IDN? reply, the digest
+ * and the verdict. Run data: fixture theory plus seeded noise
+ * (test/unit/record/fixtures.ts).
+ */
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterAll, describe, expect, it } from 'vitest';
+import { buildComparisonRecord, buildRunRecord, renderRecord, type AnyRecord } from '../../../app/record';
+import { idnText } from '../../../app/record/recordFormatting';
+import { acRunDetail, comparisonFixture, fixtureBuild, FIXTURE_DESIGN } from '../../unit/record/fixtures';
+
+const dir = mkdtempSync(join(tmpdir(), 'rolloff-record-pdf-'));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+async function writePdf(record: AnyRecord, name: string, standardFontsOnly = false): Promise<string> {
+  const rendered = await renderRecord(record, 'pdf', { standardFontsOnly });
+  expect(rendered.mimeType).toBe('application/pdf');
+  const path = join(dir, name);
+  writeFileSync(path, rendered.bytes);
+  return path;
+}
+
+function pageCount(path: string): number {
+  const info = execFileSync('pdfinfo', [path], { encoding: 'utf8' });
+  return Number(/Pages:\s+(\d+)/.exec(info)?.[1]);
+}
+
+/** Renders every page with pdftoppm; returns the PNG files. */
+function renderPages(path: string, prefix: string): string[] {
+  execFileSync('pdftoppm', ['-r', '40', '-png', path, join(dir, prefix)]);
+  return readdirSync(dir).filter((f) => f.startsWith(prefix) && f.endsWith('.png')).map((f) => join(dir, f));
+}
+
+/** Text of the PDF with all whitespace removed, so table wrapping does not hide a match. */
+function squeezedText(path: string): string {
+  return execFileSync('pdftotext', [path, '-'], { encoding: 'utf8' }).replace(/\s+/g, '');
+}
+
+const squeeze = (text: string) => text.replace(/\s+/g, '');
+
+function hostileFreeRunRecord() {
+  const detail = acRunDetail({ overrangeIndex: 5 });
+  return buildRunRecord(detail, { design: FIXTURE_DESIGN, build: fixtureBuild({ label: 'Board A – Ω test µ 25 °C' }), generatedAt: '2026-12-01T12:00:00.000Z' });
+}
+
+describe('PDF run record', () => {
+  it.each([
+    ['embedded Unicode font', false],
+    ['PDF standard fonts', true],
+  ])('opens and carries label, identities, digest and verdict (%s)', async (_name, standardFontsOnly) => {
+    const record = hostileFreeRunRecord();
+    const path = await writePdf(record, `run-${standardFontsOnly ? 'std' : 'ttf'}.pdf`, standardFontsOnly);
+    const pages = pageCount(path);
+    expect(pages).toBeGreaterThanOrEqual(2);
+    const pngs = renderPages(path, `run-${standardFontsOnly ? 'std' : 'ttf'}-page`);
+    expect(pngs).toHaveLength(pages);
+    for (const png of pngs) expect(statSync(png).size).toBeGreaterThan(1000);
+    const text = squeezedText(path);
+    // Standard fonts cannot show Ω; the PDF spells it (the HTML and JSON keep the original).
+    expect(text).toContain(squeeze(standardFontsOnly ? 'Board A - ohm test µ 25 °C' : 'Board A – Ω test µ 25 °C'));
+    for (const instrument of record.bench) expect(text).toContain(squeeze(idnText(instrument.identity)));
+    expect(text).toContain(record.digest.hex);
+    expect(text).toContain('Verdict:PASS');
+    expect(text).toContain('SIMULATEDBENCH');
+    expect(text).toContain(squeeze('Respect the ratings of the instruments'));
+  });
+
+  it('a failing run says FAIL with its reasons', async () => {
+    const detail = acRunDetail();
+    detail.verdict = { pass: false, reasons: ['Pass-band gain 17.2 dB outside [19, 21] dB.'] };
+    const path = await writePdf(buildRunRecord(detail, { design: FIXTURE_DESIGN, build: fixtureBuild(), generatedAt: '2026-12-01T12:00:00.000Z' }), 'fail.pdf');
+    const text = squeezedText(path);
+    expect(text).toContain('Verdict:FAIL');
+    expect(text).toContain(squeeze('Pass-band gain 17.2 dB outside [19, 21] dB.'));
+  });
+
+  it('the same record gives the same PDF bytes (fixed creation date)', async () => {
+    const a = await renderRecord(hostileFreeRunRecord(), 'pdf');
+    const b = await renderRecord(hostileFreeRunRecord(), 'pdf');
+    expect(Buffer.from(a.bytes).equals(Buffer.from(b.bytes))).toBe(true);
+  });
+});
+
+describe('PDF comparison record', () => {
+  it('opens and lists every run, its label and identities, the digests and the verdict', async () => {
+    const { comparison, contexts } = comparisonFixture('theory');
+    const record = buildComparisonRecord(comparison, { runs: contexts, generatedAt: '2026-12-01T12:00:00.000Z' });
+    const path = await writePdf(record, 'comparison.pdf');
+    const pages = pageCount(path);
+    expect(renderPages(path, 'comparison-page')).toHaveLength(pages);
+    const text = squeezedText(path);
+    expect(text).toContain(squeeze('Board B (PCB rev 2)'));
+    expect(text).toContain(record.digest.hex);
+    for (const run of record.runs) {
+      expect(text).toContain(run.digest.hex);
+      for (const instrument of run.bench) expect(text).toContain(squeeze(idnText(instrument.identity)));
+    }
+    expect(text).toMatch(/Verdict:(PASS|FAIL)/);
+    expect(text).toContain('Differencefromtheory');
+  });
+});
