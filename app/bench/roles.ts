@@ -61,6 +61,8 @@ export interface Waveform {
   channel: ScopeChannel;
   sampleIntervalS: number;
   samplesV: Float64Array;
+  /** Some samples sat at the converter's limits: the vertical scale is too small. */
+  clipped: boolean;
 }
 
 export interface ScopeControl {
@@ -71,6 +73,12 @@ export interface ScopeControl {
   /** Horizontal extent of one record in seconds (the profile knows the division count). */
   setTimebase(secondsPerRecord: number): Promise<void>;
   readonly divisions: number;
+  /**
+   * Captures one record of both channels at once (same time base, so the phase
+   * between them is meaningful) and waits until it is complete.
+   */
+  acquire(): Promise<void>;
+  /** A channel of the last acquire(). */
   fetchWaveform(channel: ScopeChannel): Promise<Waveform>;
   /** Present only when the profile has the measurement. Peak-to-peak volts. */
   measureAmplitudeVpp?(channel: ScopeChannel): Promise<Reading>;

@@ -1,0 +1,73 @@
+/**
+ * The circuit as the virtual generator sees it: the design with the
+ * generator's source resistance in series with its input, so the theory
+ * engine itself computes the loading of a 50 Ω source by the stage's input
+ * impedance. Two views of it: the output node (scope ch2, meter) and the
+ * design's input node (scope ch1).
+ */
+import { solveAc } from '../circuit/solve-ac';
+import { solveDcTransfer } from '../circuit/solve-dc';
+import { slowestTimeConstantS } from '../circuit/time-constant';
+import { outputOpAmpIndex } from '../circuit/output-opamp';
+import type { Design, OpAmpModel } from '../circuit/types';
+
+const EMF_NODE = '__generator_emf';
+const SOURCE_RESISTOR_ID = '__generator_source_resistance';
+
+export interface Phasor {
+  gain: number;
+  phaseRad: number;
+}
+
+/** A τ beyond this is a GMIN artefact of a capacitor-only node, not a settling the bench would wait for. */
+const MAX_SIMULATED_TIME_CONSTANT_S = 10;
+
+export class CircuitUnderTest {
+  readonly toOutput: Design;
+  readonly toInput: Design;
+  readonly timeConstantS: number;
+  readonly rails: [number, number] | undefined;
+  readonly slewRateVPerS: number | undefined;
+  private readonly acCache = new Map<number, { output: Phasor; input: Phasor }>();
+  private readonly dcCache = new Map<number, { outputV: number; inputV: number }>();
+
+  constructor(
+    readonly design: Design,
+    readonly sourceImpedanceOhm: number,
+  ) {
+    const parts = [...design.parts, { id: SOURCE_RESISTOR_ID, type: 'resistor' as const, nodes: [EMF_NODE, design.input] as [string, string], value: sourceImpedanceOhm }];
+    this.toOutput = { ...design, input: EMF_NODE, parts };
+    this.toInput = { ...design, input: EMF_NODE, output: design.input, parts };
+    this.timeConstantS = Math.min(MAX_SIMULATED_TIME_CONSTANT_S, slowestTimeConstantS(this.toOutput));
+    const index = outputOpAmpIndex(design);
+    const model = index === undefined ? undefined : (design.parts.filter((p) => p.type === 'opamp')[index] as { model: OpAmpModel }).model;
+    this.rails = model?.rails;
+    this.slewRateVPerS = model?.slewRate;
+  }
+
+  /** Output and input-node phasors per volt of generator EMF at `frequencyHz`. */
+  ac(frequencyHz: number): { output: Phasor; input: Phasor } {
+    const cached = this.acCache.get(frequencyHz);
+    if (cached) return cached;
+    const frequencies = Float64Array.of(frequencyHz);
+    const phasor = (design: Design): Phasor => {
+      const response = solveAc(design, frequencies);
+      return { gain: Math.hypot(response.re[0], response.im[0]), phaseRad: Math.atan2(response.im[0], response.re[0]) };
+    };
+    const result = { output: phasor(this.toOutput), input: phasor(this.toInput) };
+    if (this.acCache.size > 10_000) this.acCache.clear();
+    this.acCache.set(frequencyHz, result);
+    return result;
+  }
+
+  /** DC output and input-node volts for a DC EMF (nonlinear parts included). */
+  dc(emfV: number): { outputV: number; inputV: number } {
+    const cached = this.dcCache.get(emfV);
+    if (cached) return cached;
+    const inputs = Float64Array.of(emfV);
+    const result = { outputV: solveDcTransfer(this.toOutput, inputs).outputV[0], inputV: solveDcTransfer(this.toInput, inputs).outputV[0] };
+    if (this.dcCache.size > 10_000) this.dcCache.clear();
+    this.dcCache.set(emfV, result);
+    return result;
+  }
+}

@@ -1,0 +1,11 @@
+/** The virtual bench: simulated instruments around a computed circuit. */
+export * from './virtual-bench';
+export * from './faults';
+export * from './pty-pair';
+export * from './bench-model';
+export * from './circuit-under-test';
+export { SIMULATED_MANUFACTURER } from './sim-instrument';
+export { SIM_METER_AC_BANDWIDTH_HZ } from './sim-meter';
+export { SIM_GENERATOR_LIMITS } from './sim-generator';
+export { SIM_SCOPE_DIVISIONS } from './sim-scope';
+export { LOOPBACK_HOST, SIM_SERIAL_BAUD } from './endpoints';

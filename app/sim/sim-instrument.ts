@@ -1,0 +1,124 @@
+/**
+ * Base of a simulated instrument: a command table, the IEEE 488.2 common
+ * commands, an error queue and the standard event status register. Subclasses
+ * add their subsystem commands. Transport-free: link-server.ts feeds it lines.
+ */
+import type { InstrumentIdentity } from '../service/contract';
+import { formatErrorEntry } from '../scpi/error-entry';
+import { formatIdentity } from '../scpi/identity';
+import { HeaderPattern, splitProgramMessage, type ProgramUnit } from './program-message';
+import { SimCommandError, SimErrorQueue } from './scpi-errors';
+import type { BenchClock } from '../bench/clock';
+
+export type SimReply = string | Uint8Array;
+
+export interface CommandContext {
+  params: string[];
+  suffixes: number[];
+  header: string;
+}
+
+export type CommandHandler = (context: CommandContext) => SimReply | void | Promise<SimReply | void>;
+
+/** Standard event status register bits (IEEE 488.2 §11.5.1.1, recalled from memory). */
+const ESR_OPERATION_COMPLETE = 1;
+const ESR_QUERY_ERROR = 4;
+const ESR_EXECUTION_ERROR = 16;
+const ESR_COMMAND_ERROR = 32;
+
+export const SIMULATED_MANUFACTURER = 'Rolloff virtual bench (simulated)';
+
+export abstract class SimInstrument {
+  readonly errors = new SimErrorQueue();
+  private readonly commands: Array<{ pattern: HeaderPattern; handler: CommandHandler }> = [];
+  private eventStatus = 0;
+
+  constructor(
+    readonly identity: InstrumentIdentity,
+    protected readonly clock: BenchClock,
+  ) {
+    this.define('*IDN?', () => formatIdentity(this.identity));
+    this.define('*RST', () => this.reset());
+    this.define('*CLS', () => {
+      this.errors.clear();
+      this.eventStatus = 0;
+    });
+    this.define('*ESR?', () => {
+      const value = this.eventStatus;
+      this.eventStatus = 0;
+      return String(value);
+    });
+    this.define('*OPC', () => {
+      this.eventStatus |= ESR_OPERATION_COMPLETE;
+    });
+    this.define('*OPC?', async () => {
+      await this.pendingOperations();
+      return '1';
+    });
+    this.define('*WAI', () => this.pendingOperations());
+    this.define('SYSTem:ERRor[:NEXT]?', () => formatErrorEntry(this.errors.next()));
+  }
+
+  /** Restores the power-on settings. */
+  protected abstract reset(): void;
+
+  /** Resolves when overlapped operations (e.g. an acquisition) are done. */
+  protected async pendingOperations(): Promise<void> {}
+
+  protected define(pattern: string, handler: CommandHandler): void {
+    this.commands.push({ pattern: new HeaderPattern(pattern), handler });
+  }
+
+  /**
+   * Executes one program message (a line without its terminator) and returns
+   * the response message, or undefined when it has no queries. Errors are
+   * queued, never thrown: a bad command must not stop the instrument.
+   */
+  async execute(message: string): Promise<SimReply | undefined> {
+    const replies: SimReply[] = [];
+    let units: ProgramUnit[];
+    try {
+      if (/[^\x20-\x7e\t]/.test(message)) throw new SimCommandError('invalidCharacter');
+      units = splitProgramMessage(message);
+    } catch (error) {
+      this.queue(error);
+      return undefined;
+    }
+    for (const unit of units) {
+      const reply = await this.executeUnit(unit);
+      if (reply !== undefined) replies.push(reply);
+    }
+    if (replies.length === 0) return undefined;
+    if (replies.length === 1) return replies[0];
+    // Several query replies in one response message are separated by ';' (IEEE 488.2 §8.4.1, recalled).
+    return replies.map((r) => (typeof r === 'string' ? r : new TextDecoder().decode(r))).join(';');
+  }
+
+  private async executeUnit(unit: ProgramUnit): Promise<SimReply | undefined> {
+    for (const { pattern, handler } of this.commands) {
+      const suffixes = pattern.match(unit.header);
+      if (!suffixes) continue;
+      try {
+        const reply = await handler({ params: unit.params, suffixes, header: unit.header });
+        return reply === undefined ? undefined : reply;
+      } catch (error) {
+        this.queue(error);
+        return undefined;
+      }
+    }
+    this.queue(new SimCommandError('undefinedHeader', unit.header));
+    return undefined;
+  }
+
+  private queue(error: unknown): void {
+    if (!(error instanceof SimCommandError)) {
+      this.errors.push(-200, `Execution error; ${(error as Error)?.message ?? String(error)}`);
+      this.eventStatus |= ESR_EXECUTION_ERROR;
+      return;
+    }
+    this.errors.push(error.code, error.text);
+    if (error.code <= -100 && error.code > -200) this.eventStatus |= ESR_COMMAND_ERROR;
+    else if (error.code <= -200 && error.code > -300) this.eventStatus |= ESR_EXECUTION_ERROR;
+    else if (error.code <= -400 && error.code > -500) this.eventStatus |= ESR_QUERY_ERROR;
+  }
+}

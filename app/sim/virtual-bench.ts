@@ -1,0 +1,139 @@
+/**
+ * The virtual bench: a simulated generator, meter and two-channel scope
+ * (ch1 = circuit input, ch2 = circuit output) around a circuit computed by
+ * the theory engine, each answering SCPI on its own TCP port or PTY. Always
+ * labelled simulated: every *IDN? manufacturer field says so.
+ */
+import { mkdtempSync, rmSync, existsSync, statSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { parseDesign } from '../circuit/parse-design';
+import type { Design } from '../circuit/types';
+import { SeededRandom } from '../circuit/random';
+import { scaledClock, type BenchClock } from '../bench/clock';
+import type { InstrumentRole } from '../service/contract';
+import { ValidationError } from '../errors';
+import { BenchModel } from './bench-model';
+import { CircuitUnderTest } from './circuit-under-test';
+import { listenPty, listenTcp, type Endpoint } from './endpoints';
+import { FaultState, type SimFault } from './faults';
+import type { LinkOptions } from './link-server';
+import { SimGenerator } from './sim-generator';
+import { SimMeter } from './sim-meter';
+import { SimScope } from './sim-scope';
+import type { SimInstrument } from './sim-instrument';
+
+/** The generator's output resistance, ohms (the usual bench-generator figure). */
+export const SIM_SOURCE_IMPEDANCE_OHM = 50;
+
+export interface VirtualBenchOptions {
+  /** A design file's JSON or a parsed Design. */
+  design: unknown;
+  /** TCP: 0 for an ephemeral port per instrument, or N for N, N+1, N+2 (generator, meter, scope). */
+  tcpPort?: number;
+  /** PTY: a folder (or true for a temp folder) where the serial links generator, meter, scope appear. */
+  pty?: string | true;
+  /** Bench seconds per wall second (default 1). Ignored when `clock` is given. */
+  timeScale?: number;
+  clock?: BenchClock;
+  /** White noise added to every simulated voltage, V RMS (default 0). */
+  noiseVrms?: number;
+  /** Wall-clock delay before each reply, seconds (default 0). */
+  latencyS?: number;
+  faults?: Partial<Record<InstrumentRole, SimFault>>;
+  seed?: number;
+}
+
+export interface VirtualBench {
+  addresses: Record<InstrumentRole, string>;
+  clock: BenchClock;
+  design: Design;
+  /** The signal model, for tests that compare readings with theory. */
+  model: BenchModel;
+  readonly simulated: true;
+  /** Sets (or with null clears) a fault on one instrument or all of them. */
+  setFault(role: InstrumentRole | 'all', fault: SimFault | null): Promise<void>;
+  stop(): Promise<void>;
+}
+
+const ROLES: InstrumentRole[] = ['generator', 'meter', 'scope'];
+
+export async function startVirtualBench(options: VirtualBenchOptions): Promise<VirtualBench> {
+  const design = parseDesign(options.design, 'virtual bench design');
+  const clock = options.clock ?? scaledClock(options.timeScale ?? 1);
+  const noiseVrms = options.noiseVrms ?? 0;
+  if (!(noiseVrms >= 0) || !Number.isFinite(noiseVrms)) throw new ValidationError('noiseVrms', `${noiseVrms} is not a non-negative number of volts`);
+  const latencyS = options.latencyS ?? 0;
+  if (!(latencyS >= 0) || !Number.isFinite(latencyS)) throw new ValidationError('latencyS', `${latencyS} is not a non-negative number of seconds`);
+  const seed = options.seed ?? 1;
+  if (options.tcpPort !== undefined && options.pty !== undefined) throw new ValidationError('virtual bench', 'give either a TCP port or a PTY folder, not both');
+
+  const model = new BenchModel(new CircuitUnderTest(design, SIM_SOURCE_IMPEDANCE_OHM), clock, noiseVrms, seed);
+  const meter = new SimMeter(model, clock);
+  const scope = new SimScope(model, clock);
+  const instruments: Record<InstrumentRole, SimInstrument> = { generator: new SimGenerator(model, clock), meter, scope };
+  const faults: Record<InstrumentRole, FaultState> = { generator: new FaultState(), meter: new FaultState(), scope: new FaultState() };
+  const linkRandom = new SeededRandom(seed ^ 0x5eed);
+
+  let ptyDir: string | undefined;
+  let ownPtyDir = false;
+  if (options.pty !== undefined) {
+    if (options.pty === true) {
+      ptyDir = mkdtempSync(join(tmpdir(), 'rolloff-bench-'));
+      ownPtyDir = true;
+    } else {
+      ptyDir = options.pty;
+      if (!existsSync(ptyDir) || !statSync(ptyDir).isDirectory()) throw new ValidationError('--pty', `"${ptyDir}" is not a folder`, 'Give an existing folder; the links generator, meter and scope are made inside it.');
+    }
+  }
+
+  const endpoints: Partial<Record<InstrumentRole, Endpoint>> = {};
+  const stopAll = async () => {
+    for (const endpoint of Object.values(endpoints)) await endpoint?.stop().catch(() => undefined);
+    if (ownPtyDir && ptyDir) rmSync(ptyDir, { recursive: true, force: true });
+  };
+  try {
+    for (const [index, role] of ROLES.entries()) {
+      const linkOptions: LinkOptions = { latencyS, faults: faults[role], random: linkRandom };
+      endpoints[role] = ptyDir
+        ? await listenPty(instruments[role], join(ptyDir, role), linkOptions)
+        : await listenTcp(instruments[role], options.tcpPort ? options.tcpPort + index : 0, linkOptions);
+    }
+  } catch (error) {
+    await stopAll();
+    throw error;
+  }
+
+  const setFault = async (role: InstrumentRole | 'all', fault: SimFault | null) => {
+    for (const target of role === 'all' ? ROLES : [role]) {
+      if (fault?.kind === 'drop-link') {
+        await endpoints[target]!.dropLinks();
+        continue;
+      }
+      faults[target].set(fault ?? undefined);
+      const forced = fault?.kind === 'overrange' || fault?.kind === 'nan' ? fault.kind : undefined;
+      if (target === 'meter') meter.forcedReading = forced;
+      if (target === 'scope') scope.forcedReading = forced;
+    }
+  };
+  for (const role of ROLES) {
+    const fault = options.faults?.[role];
+    if (fault) await setFault(role, fault);
+  }
+
+  let stopped = false;
+  return {
+    addresses: { generator: endpoints.generator!.address, meter: endpoints.meter!.address, scope: endpoints.scope!.address },
+    clock,
+    design,
+    model,
+    simulated: true,
+    setFault,
+    stop: async () => {
+      if (stopped) return;
+      stopped = true;
+      for (const role of ROLES) faults[role].set(undefined);
+      await stopAll();
+    },
+  };
+}
