@@ -3,6 +3,7 @@
  * the gain-limit point of the output op-amp.
  */
 import { dbFromRatio } from '../units';
+import { AcSolver } from './ac-solver';
 import type { AcResponse } from './solve-ac';
 import { outputOpAmpIndex } from './output-opamp';
 import type { Design } from './types';
@@ -13,7 +14,11 @@ export interface AcSummary {
    * (low-pass-like responses), otherwise the peak gain (high- and band-pass).
    */
   passbandGainDb: number;
-  /** Frequencies where the gain crosses pass band − 3.01 dB (half power), log-interpolated. */
+  /**
+   * Frequencies where the gain crosses pass band − 3.01 dB (half power):
+   * bracketed on the sweep grid, then pinned by bisection on log f with the
+   * solver (same op-amp mode as the response), so they do not depend on the grid density.
+   */
   minus3dbHz: number[];
   /** Least-squares slope of gain over the top decade of the sweep, dB/decade. */
   rolloffDbPerDecade: number | undefined;
@@ -35,14 +40,29 @@ export function summarizeAc(design: Design, response: AcResponse): AcSummary {
   const passbandGainDb = gainDb[0] >= peakGainDb + HALF_POWER_DB ? gainDb[0] : peakGainDb;
   const level = passbandGainDb + HALF_POWER_DB;
   const minus3dbHz: number[] = [];
+  let solver: AcSolver | undefined;
+  const h = new Float64Array(2);
   for (let i = 1; i < count; i++) {
     const a = gainDb[i - 1] - level;
     const b = gainDb[i] - level;
     if ((a > 0 && b <= 0) || (a <= 0 && b > 0)) {
-      if (a === b) continue;
-      const t = a / (a - b);
-      const logF = Math.log10(frequencyHz[i - 1]) + t * (Math.log10(frequencyHz[i]) - Math.log10(frequencyHz[i - 1]));
-      minus3dbHz.push(10 ** logF);
+      if (solver === undefined) {
+        solver = new AcSolver(design);
+        solver.stamp(isIdealResponse(response) ? 'ideal' : 'model');
+      }
+      const above = (frequency: number) => {
+        solver!.transferAt(frequency, h);
+        return dbFromRatio(Math.hypot(h[0], h[1])) > level;
+      };
+      let lowHz = frequencyHz[i - 1];
+      let highHz = frequencyHz[i];
+      const lowAbove = a > 0;
+      for (let k = 0; k < BISECTION_STEPS; k++) {
+        const middleHz = Math.sqrt(lowHz * highHz);
+        if (above(middleHz) === lowAbove) lowHz = middleHz;
+        else highHz = middleHz;
+      }
+      minus3dbHz.push(Math.sqrt(lowHz * highHz));
     }
   }
   const opIndex = outputOpAmpIndex(design);
@@ -54,6 +74,15 @@ export function summarizeAc(design: Design, response: AcResponse): AcSummary {
     peakGainDb,
     peakFrequencyHz: frequencyHz[peakIndex],
   };
+}
+
+const BISECTION_STEPS = 50;
+
+/** A response computed with ideal op-amps has its main curve equal to the ideal one. */
+function isIdealResponse(response: AcResponse): boolean {
+  if (response.gainDb === response.idealGainDb) return true;
+  for (let i = 0; i < response.gainDb.length; i++) if (response.gainDb[i] !== response.idealGainDb[i]) return false;
+  return true;
 }
 
 function topDecadeSlope(frequencyHz: Float64Array, gainDb: Float64Array): number | undefined {
