@@ -4,7 +4,11 @@
  */
 import type { CommandSpec } from '../args';
 import { aboutCommand } from './about';
+import { theoryCommand } from './theory';
+import { templateCommand } from './template';
 
 export const COMMANDS: CommandSpec[] = [
   aboutCommand,
+  theoryCommand,
+  templateCommand,
 ];
