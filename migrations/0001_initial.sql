@@ -42,31 +42,39 @@ CREATE TABLE schedules (
   CHECK (run_count IS NOT NULL OR until_at IS NOT NULL)
 );
 
+-- Small, filtered columns first and JSON last: SQLite reads a row's columns in
+-- order, so listing stops before the JSON. The plan (up to thousands of steps)
+-- lives in run_plans so that updating a run's status or point count never
+-- rewrites it.
 CREATE TABLE runs (
   id               INTEGER PRIMARY KEY,
   build_id         INTEGER NOT NULL REFERENCES builds(id),
   kind             TEXT NOT NULL CHECK (kind IN ('ac', 'dc')),
-  request_json     TEXT NOT NULL,
-  plan_json        TEXT NOT NULL,
+  status           TEXT NOT NULL DEFAULT 'planned'
+                   CHECK (status IN ('planned', 'running', 'paused', 'done', 'stopped', 'failed')),
   planned_count    INTEGER NOT NULL DEFAULT 0,
   -- kept by the store in the same transaction as each point, so listing runs never counts points
   point_count      INTEGER NOT NULL DEFAULT 0,
-  status           TEXT NOT NULL DEFAULT 'planned'
-                   CHECK (status IN ('planned', 'running', 'paused', 'done', 'stopped', 'failed')),
+  simulated        INTEGER NOT NULL DEFAULT 0 CHECK (simulated IN (0, 1)),
   created_at       TEXT NOT NULL,
   started_at       TEXT,
   ended_at         TEXT,
   software_version TEXT NOT NULL,
-  bench_json       TEXT NOT NULL DEFAULT '[]',
   operator         TEXT NOT NULL DEFAULT '',
   notes            TEXT NOT NULL DEFAULT '',
-  simulated        INTEGER NOT NULL DEFAULT 0 CHECK (simulated IN (0, 1)),
   schedule_id      INTEGER REFERENCES schedules(id),
+  request_json     TEXT NOT NULL,
+  bench_json       TEXT NOT NULL DEFAULT '[]',
   figures_json     TEXT,
   verdict_json     TEXT
 );
 CREATE INDEX runs_by_build ON runs(build_id, id);
 CREATE INDEX runs_by_status ON runs(status, id);
+
+CREATE TABLE run_plans (
+  run_id    INTEGER PRIMARY KEY REFERENCES runs(id) ON DELETE CASCADE,
+  plan_json TEXT NOT NULL
+);
 
 -- One measured step. UNIQUE (run_id, step) makes a resumed sweep idempotent and
 -- is also the index that loads a run's points in step order.

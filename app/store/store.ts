@@ -165,6 +165,7 @@ export class Store {
       }
       db.pragma('foreign_keys = ON');
       db.pragma('busy_timeout = 5000');
+      db.pragma('cache_size = -32768'); // 32 MiB: bulk imports stay in memory until commit
       let applied: number[] = [];
       if (readonly) {
         if (fileVersion < knownVersion) {
@@ -210,15 +211,17 @@ export class Store {
         ON CONFLICT (identity_text, address) DO UPDATE SET last_seen_at = excluded.last_seen_at, role = excluded.role`),
       getInstrument: db.prepare('SELECT * FROM instruments WHERE identity_text = ? AND address = ?'),
       listInstruments: db.prepare('SELECT * FROM instruments ORDER BY last_seen_at DESC, id DESC'),
-      insertRun: writer(`INSERT INTO runs (build_id, kind, request_json, plan_json, planned_count, status, created_at,
+      insertRun: writer(`INSERT INTO runs (build_id, kind, request_json, planned_count, status, created_at,
         software_version, bench_json, operator, notes, simulated, schedule_id)
-        VALUES (?, ?, ?, ?, ?, 'planned', ?, ?, ?, ?, ?, ?, ?)`),
+        VALUES (?, ?, ?, ?, 'planned', ?, ?, ?, ?, ?, ?, ?)`),
+      insertPlan: writer('INSERT INTO run_plans (run_id, plan_json) VALUES (?, ?)'),
       setStatus: writer(`UPDATE runs SET status = @status,
         started_at = CASE WHEN @status = 'running' THEN COALESCE(started_at, @at) ELSE started_at END,
         ended_at = CASE WHEN @finished = 1 THEN @at WHEN @status = 'running' THEN NULL ELSE ended_at END
         WHERE id = @runId`),
       setResults: writer('UPDATE runs SET figures_json = ?, verdict_json = ? WHERE id = ?'),
-      getRun: db.prepare(`SELECT r.*, b.label AS build_label, d.name AS design_name FROM runs r
+      getRun: db.prepare(`SELECT r.*, p.plan_json, b.label AS build_label, d.name AS design_name FROM runs r
+        JOIN run_plans p ON p.run_id = r.id
         JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id WHERE r.id = ?`),
       listRuns: db.prepare(`SELECT r.id, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
         r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated
@@ -335,12 +338,12 @@ export class Store {
     if (input.kind !== 'ac' && input.kind !== 'dc') throw new ValidationError('run.kind', `"${String(input.kind)}" is not ac or dc`);
     if (input.scheduleId != null) this.getSchedule(input.scheduleId);
     const plannedCount = Array.isArray(input.plan?.steps) ? input.plan.steps.length : 0;
-    const result = this.guard(() =>
-      this.statements.insertRun.run(
+    const planJson = toJson(input.plan, 'run.plan');
+    const runId = this.transaction(() => {
+      const result = this.statements.insertRun.run(
         input.buildId,
         input.kind,
         toJson(input.request, 'run.request'),
-        toJson(input.plan, 'run.plan'),
         plannedCount,
         this.now(),
         requireText(input.softwareVersion, 'run.softwareVersion'),
@@ -349,9 +352,12 @@ export class Store {
         requireText(input.notes ?? '', 'run.notes'),
         input.simulated ? 1 : 0,
         input.scheduleId ?? null,
-      ),
-    );
-    return this.getRun(Number(result.lastInsertRowid));
+      );
+      const id = Number(result.lastInsertRowid);
+      this.statements.insertPlan.run(id, planJson);
+      return id;
+    });
+    return this.getRun(runId);
   }
 
   /** Moves a run to a status; first 'running' stamps the start, a finished status stamps the end. */
