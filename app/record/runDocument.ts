@@ -1,5 +1,5 @@
 /** The content of a run record, in reading order (see recordDocument.ts). */
-import { formatEngineering } from '../units';
+import { formatEngineering, parseEngineering } from '../units';
 import type { Block, RecordDocument } from './recordDocument';
 import type { RecordDesign, RunRecord } from './model';
 import { runPlots } from './recordPlots';
@@ -82,6 +82,17 @@ function modelText(model: unknown): string | null {
   return fields.length ? fields.join(', ') : null;
 }
 
+/** Design files may give values as numbers or in engineering notation ("10k"). */
+function partValue(value: unknown): number | null {
+  if (typeof value === 'number') return Number.isFinite(value) ? value : null;
+  if (typeof value !== 'string') return null;
+  try {
+    return parseEngineering(value);
+  } catch {
+    return null; // shown as "—"; the design file below keeps the text as written
+  }
+}
+
 /** Reads parts from a design file if it has a parts list; the full JSON is shown anyway. */
 function designParts(content: unknown): DesignPartView[] {
   const parts = (content as { parts?: unknown } | null)?.parts;
@@ -92,8 +103,7 @@ function designParts(content: unknown): DesignPartView[] {
     const id = String(p.id ?? p.name ?? '?');
     const kind = String(p.type ?? p.kind ?? '');
     const nodes = Array.isArray(p.nodes) ? p.nodes.join(' – ') : '';
-    const value = typeof p.value === 'number' ? p.value : null;
-    return [{ id, kind, nodes, value, modelText: modelText(p.model) }];
+    return [{ id, kind, nodes, value: partValue(p.value), modelText: modelText(p.model) }];
   });
 }
 

@@ -11,7 +11,7 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { buildComparisonRecord, buildRunRecord, renderRecord, type AnyRecord } from '../../../app/record';
 import { idnText } from '../../../app/record/recordFormatting';
-import { acRunDetail, comparisonFixture, fixtureBuild, FIXTURE_DESIGN } from '../../unit/record/fixtures';
+import { acRunDetail, comparisonFixture, dcRunDetail, fixtureBuild, FIXTURE_DESIGN, LOG_STAGE_DESIGN } from '../../unit/record/fixtures';
 
 const dir = mkdtempSync(join(tmpdir(), 'rolloff-record-pdf-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -82,6 +82,21 @@ describe('PDF run record', () => {
     const a = await renderRecord(hostileFreeRunRecord(), 'pdf');
     const b = await renderRecord(hostileFreeRunRecord(), 'pdf');
     expect(Buffer.from(a.bytes).equals(Buffer.from(b.bytes))).toBe(true);
+  });
+});
+
+describe('PDF DC (log stage) record', () => {
+  it('opens and shows the transfer plot, the fitted figures and no verdict', async () => {
+    const { detail, build, dcFit } = dcRunDetail();
+    const record = buildRunRecord(detail, { design: LOG_STAGE_DESIGN, build, dcFit, generatedAt: '2026-12-01T12:00:00.000Z' });
+    const path = await writePdf(record, 'dc.pdf');
+    expect(renderPages(path, 'dc-page')).toHaveLength(pageCount(path));
+    const text = squeezedText(path);
+    expect(text).toContain('DCtransfer');
+    expect(text).toContain('Diodeidealityfactorn');
+    expect(text).toContain('Verdict:NOVERDICT');
+    expect(text).toContain('Logstageboard');
+    expect(text).toContain(record.digest.hex);
   });
 });
 

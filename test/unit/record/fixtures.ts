@@ -10,6 +10,9 @@ import type { BuildRecord, Comparison, InstrumentInfo, RunDetail } from '../../.
 import { PointFlag } from '../../../app/service/contract';
 import { analyzeAcRun } from '../../../app/analysis';
 import { dbFromRatio, degreesFromRadians, logGrid } from '../../../app/units';
+import { logStageIdeal } from '../../../app/circuit/log-stage';
+import { fitLogStage, logFitFigures } from '../../../app/signal';
+import type { RecordDcFit } from '../../../app/record';
 
 export const INVENTED_NOTE = 'Invented demo data for tests (theory plus seeded noise), not a measurement.';
 
@@ -255,4 +258,60 @@ export function comparisonFixture(reference: number | 'theory' = 12): { comparis
     })),
   };
   return { comparison, contexts: new Map([[12, { design: FIXTURE_DESIGN, build: buildA }], [15, { design: FIXTURE_DESIGN, build: buildB }]]) };
+}
+
+/** The invented log-stage design (same values as app/circuit/examples/log-stage.json). */
+export const LOG_STAGE_DESIGN = {
+  name: 'Diode-feedback log stage',
+  description: INVENTED_NOTE,
+  input: 'in',
+  output: 'out',
+  temperatureC: 25,
+  parts: [
+    { id: 'R1', type: 'resistor', nodes: ['in', 'inv'], value: '10k', tolerance: 0.01 },
+    { id: 'D1', type: 'diode', nodes: ['inv', 'out'], model: { is: 1e-14, n: 1.0, rs: 0.5 } },
+    { id: 'U1', type: 'opamp', nodes: ['0', 'inv', 'out'], model: { openLoopGain: 1e5, gbw: 1e6, slewRate: 5e5, rails: [-12, 12] } },
+  ],
+};
+
+/**
+ * A DC log-stage run: output from the log-stage equation (app/circuit logStageIdeal,
+ * DESIGN.md "Theory") plus seeded noise, fitted with app/signal's fitLogStage, and the
+ * fitted curve drawn as the service does.
+ */
+export function dcRunDetail(): { detail: RunDetail; build: BuildRecord; dcFit: RecordDcFit } {
+  const build = fixtureBuild({ id: 5, designId: 2, label: 'Log stage board', actualValues: { R1: 10.02e3 } });
+  const noise = seededNoise(5);
+  const inputs = Array.from(logGrid(1e-3, 10, 6));
+  const diode = { is: 1e-14, n: 1.0, rs: 0.5 };
+  const outputs = inputs.map((v) => logStageIdeal(v, 10.02e3, diode, 25) + 0.0005 * noise());
+  const fit = fitLogStage(inputs, outputs, 10.02e3, 25, { n: 1, isA: 1e-14, rsOhm: 0.5 });
+  const curveInputs = Array.from(logGrid(1e-3, 10, 12));
+  const dcFit: RecordDcFit = {
+    inputV: curveInputs,
+    outputV: curveInputs.map((v) => logStageIdeal(v, 10.02e3, { is: fit.isA, n: fit.n, rs: fit.rsOhm }, 25)),
+    description: `fitted n = ${fit.n.toPrecision(4)}`,
+  };
+  const count = inputs.length;
+  const detail: RunDetail = {
+    id: 21, buildId: build.id, buildLabel: build.label, designName: LOG_STAGE_DESIGN.name, kind: 'dc', status: 'done',
+    startedAt: '2026-11-30T11:00:00.000Z', endedAt: '2026-11-30T11:01:00.000Z', pointCount: count, plannedCount: count, simulated: true,
+    request: {
+      buildId: build.id, kind: 'dc', from: 1e-3, to: 10, pointsPerDecade: 6, spacing: 'log', amplitude: { mode: 'fixed', vpp: 0 },
+      measurement: 'meter', minCycles: 1, averages: 1, refine: false, operator: 'J. Doe (invented)', notes: INVENTED_NOTE,
+    },
+    bench: [SIMULATED_BENCH[0], { ...SIMULATED_BENCH[1], role: 'meter', profileId: 'generic-meter', identity: { manufacturer: 'Rolloff', model: 'Virtual meter', serialNumber: 'VB-METER-0003', firmware: '0.1.0' } }],
+    softwareVersion: '0.1.0',
+    points: {
+      step: inputs.map((_, i) => i), stimulus: inputs, amplitudeVpp: inputs.map(() => 0), gainDb: inputs.map(() => Number.NaN),
+      gainUncertaintyDb: inputs.map(() => Number.NaN), phaseDeg: inputs.map(() => Number.NaN), phaseUncertaintyDeg: inputs.map(() => Number.NaN),
+      outputV: outputs, flags: inputs.map(() => 0), measuredAt: inputs.map((_, i) => new Date(Date.parse('2026-11-30T11:00:00.000Z') + i * 2000).toISOString()),
+    },
+    theory: { frequencyHz: [], gainDb: [], phaseDeg: [], idealGainDb: [], idealPhaseDeg: [] },
+    figures: { minus3dbHz: [], logFit: logFitFigures(fit) },
+    verdict: null,
+    events: [],
+    theoryMinus3dbHz: [],
+  };
+  return { detail, build, dcFit };
 }
