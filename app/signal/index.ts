@@ -5,7 +5,6 @@ export * from './distortion';
 export * from './cramer-rao';
 export * from './student-t';
 export * from './levenberg-marquardt';
-export * from './physical-constants';
 export * from './log-stage-fit';
 export * from './single-pole-fit';
 export * from './outliers';

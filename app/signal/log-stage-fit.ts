@@ -8,7 +8,7 @@
 import { ValidationError } from '../errors';
 import { FitError } from './errors';
 import { levenbergMarquardt, type ConvergenceReason } from './levenberg-marquardt';
-import { thermalVoltageV } from './physical-constants';
+import { thermalVoltageV } from '../circuit/thermal-voltage'; // CODATA 2018 constants, defined once in app/circuit
 
 export interface LogStageInitial {
   n?: number;

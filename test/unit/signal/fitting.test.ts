@@ -8,8 +8,8 @@ import {
   logFitFigures,
   studentT95,
   studentTQuantile,
-  thermalVoltageV,
 } from '../../../app/signal';
+import { thermalVoltageV } from '../../../app/circuit/thermal-voltage';
 import { seededGaussian } from './seeded-random';
 
 describe('Student-t quantiles', () => {
