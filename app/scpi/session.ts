@@ -27,7 +27,9 @@ export interface CommandOptions {
   timeoutS?: number;
 }
 
-type Reply = { kind: 'text'; text: string } | { kind: 'block'; bytes: Uint8Array };
+/** A reply as framed: a text line or a definite-length block. */
+export type ScpiReply = { kind: 'text'; text: string } | { kind: 'block'; bytes: Uint8Array };
+type Reply = ScpiReply;
 
 interface PendingReply {
   command: string;
@@ -97,6 +99,11 @@ export class ScpiSession {
       if (reply.kind !== 'block') throw new ScpiMalformedReplyError(command, reply.text, 'a definite-length block (#<n><length><bytes>)');
       return reply.bytes;
     });
+  }
+
+  /** Sends a query and returns the reply as framed, text or block (for a raw console). */
+  queryRaw(command: string, options: CommandOptions = {}): Promise<ScpiReply> {
+    return this.enqueue(() => this.exchange(command, options));
   }
 
   /** Sends a query with one numeric reply, classifying SCPI overrange/NaN values. */

@@ -15,7 +15,7 @@
  *   slowest time constant;
  * - then clipping at the rails and additive Gaussian noise (noiseVrms).
  */
-import { SeededRandom } from '../circuit/random';
+import { SeededRandom } from '../circuit';
 import type { BenchClock } from '../bench/clock';
 import { CircuitUnderTest, type Phasor } from './circuit-under-test';
 

@@ -7,9 +7,7 @@
 import { mkdtempSync, rmSync, existsSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { parseDesign } from '../circuit/parse-design';
-import type { Design } from '../circuit/types';
-import { SeededRandom } from '../circuit/random';
+import { parseDesign, SeededRandom, type Design } from '../circuit';
 import { scaledClock, type BenchClock } from '../bench/clock';
 import type { InstrumentRole } from '../service/contract';
 import { ValidationError } from '../errors';

@@ -1,0 +1,84 @@
+/**
+ * `rolloff sim`: starts the virtual bench and prints the addresses it answers
+ * on; runs until Ctrl-C. Everything it reports is simulated.
+ */
+import { readFileSync } from 'node:fs';
+import { UserError, ValidationError } from '../../errors';
+import { startVirtualBench, parseFaultSpec, type SimFault } from '../../sim';
+import type { InstrumentRole } from '../../service/contract';
+import { formatEngineering } from '../../units';
+import { optionNumber, optionString, type CommandSpec } from '../args';
+
+export const simCommand: CommandSpec = {
+  name: 'sim',
+  summary: 'Start the virtual bench (simulated generator, meter and scope around a design)',
+  usage: '--design DESIGN.json [--tcp PORT | --pty DIR] [options]',
+  options: [
+    { name: 'design', kind: 'string', placeholder: 'FILE', description: 'design file of the simulated circuit (required)' },
+    { name: 'tcp', kind: 'integer', placeholder: 'PORT', description: 'TCP on 127.0.0.1: generator on PORT, meter PORT+1, scope PORT+2 (0: any free ports)' },
+    { name: 'pty', kind: 'string', placeholder: 'DIR', description: 'serial pseudo-terminals DIR/generator, DIR/meter, DIR/scope (needs socat)' },
+    { name: 'time-scale', kind: 'number', placeholder: 'X', description: 'simulated seconds per real second', defaultValue: 1 },
+    { name: 'noise', kind: 'number', placeholder: 'VRMS', description: 'white noise on every simulated voltage', defaultValue: 0 },
+    { name: 'latency', kind: 'number', placeholder: 'S', description: 'delay before each reply', defaultValue: 0 },
+    { name: 'seed', kind: 'integer', placeholder: 'N', description: 'noise and fault random seed', defaultValue: 1 },
+    { name: 'fault', kind: 'string', placeholder: '[ROLE=]KIND[:VALUE]', repeatable: true, description: 'inject a fault: garbage[:P], no-reply[:P], slow:S, hang, overrange, nan' },
+  ],
+  details: `
+Channel 1 of the scope is the circuit input, channel 2 the output. The
+generator has a 50 Ω output resistance; its amplitude is calibrated for its
+load setting. Every *IDN? reply says "simulated".
+Examples:
+  rolloff sim --design app/circuit/examples/inverting-lowpass.json --tcp 5025
+  rolloff sim --design d.json --pty /tmp/bench --noise 1m --fault meter=garbage:0.05`,
+  async run(parsed) {
+    const designPath = optionString(parsed, 'design');
+    if (!designPath) throw new ValidationError('--design', 'is required', 'Give the design file of the circuit to simulate, e.g. --design app/circuit/examples/inverting-lowpass.json.');
+    let design: unknown;
+    try {
+      design = JSON.parse(readFileSync(designPath, 'utf8'));
+    } catch (error) {
+      throw new ValidationError('--design', `cannot read ${designPath}: ${(error as Error).message}`);
+    }
+    const tcpPort = optionNumber(parsed, 'tcp');
+    if (tcpPort !== undefined && (tcpPort < 0 || tcpPort > 65533)) throw new ValidationError('--tcp', `${tcpPort} is not a usable port (0–65533; three consecutive ports are used)`);
+    const pty = optionString(parsed, 'pty');
+    const timeScale = optionNumber(parsed, 'time-scale')!;
+    if (!(timeScale > 0)) throw new ValidationError('--time-scale', 'must be a positive number');
+    const faults: Partial<Record<InstrumentRole, SimFault>> = {};
+    for (const spec of (parsed.options.fault as string[] | undefined) ?? []) {
+      const { role, fault } = parseFaultSpec(spec);
+      if (fault.kind === 'drop-link') throw new ValidationError('--fault', 'drop-link is a one-shot event; use it from the in-process API');
+      for (const target of role === 'all' ? (['generator', 'meter', 'scope'] as const) : [role]) faults[target] = fault;
+    }
+    const bench = await startVirtualBench({
+      design,
+      ...(pty !== undefined ? { pty } : { tcpPort: tcpPort ?? 0 }),
+      timeScale,
+      noiseVrms: optionNumber(parsed, 'noise')!,
+      latencyS: optionNumber(parsed, 'latency')!,
+      seed: optionNumber(parsed, 'seed')!,
+      faults,
+    }).catch((error: unknown) => {
+      if (error instanceof UserError) throw error;
+      const code = (error as NodeJS.ErrnoException)?.code;
+      if (code === 'EADDRINUSE') throw new UserError(`--tcp ${tcpPort}: a port in ${tcpPort}–${(tcpPort ?? 0) + 2} is already in use`, 'Pick another port, or --tcp 0 for any free ports.');
+      throw error;
+    });
+    const lines = [
+      `Virtual bench running — SIMULATED instruments, design "${bench.design.name}"`,
+      `  generator  ${bench.addresses.generator}`,
+      `  meter      ${bench.addresses.meter}`,
+      `  scope      ${bench.addresses.scope}   (ch1 = circuit input, ch2 = output)`,
+      `  time scale ×${timeScale}, noise ${formatEngineering(optionNumber(parsed, 'noise')!, 'Vrms')}${Object.keys(faults).length ? `, faults: ${Object.entries(faults).map(([r, f]) => `${r}=${f!.kind}`).join(', ')}` : ''}`,
+      'Press Ctrl-C to stop.',
+    ];
+    process.stdout.write(`${lines.join('\n')}\n`);
+    await new Promise<void>((resolve) => {
+      process.once('SIGINT', () => resolve());
+      process.once('SIGTERM', () => resolve());
+    });
+    await bench.stop();
+    process.stdout.write('Virtual bench stopped.\n');
+    return 0;
+  },
+};
