@@ -24,6 +24,7 @@ export interface AcSummary {
   rolloffDbPerDecade: number | undefined;
   /** Gain-limit point of the output op-amp (the one driving the output node, else the first). */
   gainLimitHz: number | undefined;
+  /** Largest gain; an interior grid maximum is refined between its neighbours. */
   peakGainDb: number;
   peakFrequencyHz: number;
 }
@@ -36,24 +37,23 @@ export function summarizeAc(design: Design, response: AcResponse): AcSummary {
   const count = frequencyHz.length;
   let peakIndex = 0;
   for (let i = 1; i < count; i++) if (gainDb[i] > gainDb[peakIndex]) peakIndex = i;
-  const peakGainDb = gainDb[peakIndex];
+  const solver = new AcSolver(design);
+  solver.stamp(isIdealResponse(response) ? 'ideal' : 'model');
+  const h = new Float64Array(2);
+  const gainAtDb = (frequency: number) => {
+    solver.transferAt(frequency, h);
+    return dbFromRatio(Math.hypot(h[0], h[1]));
+  };
+  const peak = refinePeak(frequencyHz, peakIndex, gainDb[peakIndex], gainAtDb);
+  const peakGainDb = peak.gainDb;
   const passbandGainDb = gainDb[0] >= peakGainDb + HALF_POWER_DB ? gainDb[0] : peakGainDb;
   const level = passbandGainDb + HALF_POWER_DB;
   const minus3dbHz: number[] = [];
-  let solver: AcSolver | undefined;
-  const h = new Float64Array(2);
   for (let i = 1; i < count; i++) {
     const a = gainDb[i - 1] - level;
     const b = gainDb[i] - level;
     if ((a > 0 && b <= 0) || (a <= 0 && b > 0)) {
-      if (solver === undefined) {
-        solver = new AcSolver(design);
-        solver.stamp(isIdealResponse(response) ? 'ideal' : 'model');
-      }
-      const above = (frequency: number) => {
-        solver!.transferAt(frequency, h);
-        return dbFromRatio(Math.hypot(h[0], h[1])) > level;
-      };
+      const above = (frequency: number) => gainAtDb(frequency) > level;
       let lowHz = frequencyHz[i - 1];
       let highHz = frequencyHz[i];
       const lowAbove = a > 0;
@@ -72,11 +72,44 @@ export function summarizeAc(design: Design, response: AcResponse): AcSummary {
     rolloffDbPerDecade: topDecadeSlope(frequencyHz, gainDb),
     gainLimitHz: opIndex === undefined ? undefined : response.opamps[opIndex]?.gainLimitHz,
     peakGainDb,
-    peakFrequencyHz: frequencyHz[peakIndex],
+    peakFrequencyHz: peak.frequencyHz,
   };
 }
 
 const BISECTION_STEPS = 50;
+const GOLDEN_STEPS = 60;
+
+/**
+ * An interior grid maximum is refined by golden-section search on log f
+ * between its neighbours, so a narrow band-pass peak is not under-read.
+ */
+function refinePeak(frequencyHz: Float64Array, index: number, gridGainDb: number, gainAtDb: (f: number) => number): { frequencyHz: number; gainDb: number } {
+  if (index === 0 || index === frequencyHz.length - 1) return { frequencyHz: frequencyHz[index], gainDb: gridGainDb };
+  const ratio = (Math.sqrt(5) - 1) / 2;
+  let low = Math.log10(frequencyHz[index - 1]);
+  let high = Math.log10(frequencyHz[index + 1]);
+  let x1 = high - ratio * (high - low);
+  let x2 = low + ratio * (high - low);
+  let g1 = gainAtDb(10 ** x1);
+  let g2 = gainAtDb(10 ** x2);
+  for (let k = 0; k < GOLDEN_STEPS; k++) {
+    if (g1 < g2) {
+      low = x1;
+      x1 = x2;
+      g1 = g2;
+      x2 = low + ratio * (high - low);
+      g2 = gainAtDb(10 ** x2);
+    } else {
+      high = x2;
+      x2 = x1;
+      g2 = g1;
+      x1 = high - ratio * (high - low);
+      g1 = gainAtDb(10 ** x1);
+    }
+  }
+  const best = g1 > g2 ? { frequencyHz: 10 ** x1, gainDb: g1 } : { frequencyHz: 10 ** x2, gainDb: g2 };
+  return best.gainDb > gridGainDb ? best : { frequencyHz: frequencyHz[index], gainDb: gridGainDb };
+}
 
 /** A response computed with ideal op-amps has its main curve equal to the ideal one. */
 function isIdealResponse(response: AcResponse): boolean {
