@@ -13,15 +13,18 @@ export const HALF_POWER_DB = dbFromRatio(Math.SQRT1_2);
  * the low-frequency gain when it is within 3 dB of the peak (low-pass-like
  * responses, where a resonant peak must not become the reference), otherwise
  * the peak (high- and band-pass). Measured data is noisy, so "low-frequency
- * gain" is the median of the `endPoints` lowest-frequency points and "peak" the
- * median of the points within `windowDb` of the largest (common practice, no source).
+ * gain" is the median of the points in the lowest `lowEndDecades` of the sweep
+ * (by frequency, not by count, so a coarse grid and a dense theory grid mean
+ * the same thing) and "peak" the median of the points within `windowDb` of the
+ * largest (common practice, no source).
  */
-export function passbandGainDb(frequencyHz: ArrayLike<number>, gainDb: ArrayLike<number>, windowDb = 0.1, endPoints = 3): number | undefined {
+export function passbandGainDb(frequencyHz: ArrayLike<number>, gainDb: ArrayLike<number>, windowDb = 0.1, lowEndDecades = 0.1): number | undefined {
   const order = ascendingOrder(frequencyHz).filter((i) => Number.isFinite(gainDb[i]));
   if (order.length === 0) return undefined;
   let peak = -Infinity;
   for (const i of order) if (gainDb[i] > peak) peak = gainDb[i];
-  const lowEnd = median(order.slice(0, endPoints).map((i) => gainDb[i]));
+  const lowEndHz = frequencyHz[order[0]] * 10 ** lowEndDecades;
+  const lowEnd = median(order.filter((i) => frequencyHz[i] <= lowEndHz).map((i) => gainDb[i]));
   if (lowEnd >= peak + HALF_POWER_DB) return lowEnd;
   return median(order.filter((i) => gainDb[i] >= peak - windowDb).map((i) => gainDb[i]));
 }

@@ -104,6 +104,14 @@ export interface SweepRequest {
   notes: string;
   /** Optional pass/fail limits. */
   limits?: VerdictLimits;
+  /**
+   * Through-calibration (meter runs): the stage is bypassed and the generator
+   * measured directly; the result is stored as the bench's calibration and
+   * applied to later meter runs.
+   */
+  through?: boolean;
+  /** The maximum stimulus in force when the run was made (Vpp); the service fills it in and records it. */
+  maxStimulusVpp?: number;
 }
 
 export interface VerdictLimits {

@@ -3,12 +3,30 @@
  * add one import and one entry per command.
  */
 import type { CommandSpec } from '../args';
+import { serveCommand } from './serve';
 import { aboutCommand } from './about';
 import { theoryCommand } from './theory';
 import { templateCommand } from './template';
+import { sweepCommand } from './sweep';
+import { runsCommand } from './runs';
+import { showCommand } from './show';
+import { resumeCommand } from './resume';
+import { portsCommand } from './ports';
+import { probeCommand } from './probe';
+import { queryCommand } from './query';
+import { simCommand } from './sim';
 
 export const COMMANDS: CommandSpec[] = [
+  serveCommand,
   aboutCommand,
   theoryCommand,
   templateCommand,
+  sweepCommand,
+  runsCommand,
+  showCommand,
+  resumeCommand,
+  portsCommand,
+  probeCommand,
+  queryCommand,
+  simCommand,
 ];

@@ -1,9 +1,9 @@
 /**
- * Several acquisitions of one step reduced to one point. Phases are averaged
+ * Several acquisitions of one step reduced to one point, outliers rejected. Phases are averaged
  * as deviations from the first acquisition so a jump across ±180° cannot
  * cancel out.
  */
-import type { StageResponse } from '../../signal';
+import { averageWithOutlierRejection, type StageResponse } from '../../signal';
 import { wrapPhaseDeg } from '../../units';
 
 export interface CombinedResponse {
@@ -25,15 +25,15 @@ export function combineAcquisitions(responses: StageResponse[]): CombinedRespons
 }
 
 /**
- * Mean of n values; its standard error is the larger of the scatter-based
- * s/√n and the fits' own uncertainty combined as u/√n (GUM JCGM 100:2008
- * §4.2, recalled from memory), so a lucky low scatter of few samples cannot
- * claim more certainty than the fits support.
+ * Robust mean (modified z-score rejection, app/signal averageWithOutlierRejection);
+ * its standard error is the larger of the kept values' scatter s/√n and the fits'
+ * own uncertainty u/√n (GUM JCGM 100:2008 §4.2, recalled from memory), so a lucky
+ * low scatter of few samples cannot claim more certainty than the fits support.
  */
 function meanWithStandardError(values: number[], uncertainties: number[]): { mean: number; standardError: number } {
-  const n = values.length;
-  const mean = values.reduce((s, v) => s + v, 0) / n;
-  const variance = values.reduce((s, v) => s + (v - mean) ** 2, 0) / (n - 1);
-  const fitU = Math.sqrt(uncertainties.reduce((s, u) => s + u * u, 0) / n);
-  return { mean, standardError: Math.max(Math.sqrt(variance / n), fitU / Math.sqrt(n)) };
+  const robust = averageWithOutlierRejection(values);
+  const kept = values.map((_, i) => i).filter((i) => !robust.rejectedIndices.includes(i));
+  const fitU = Math.sqrt(kept.reduce((s, i) => s + uncertainties[i] ** 2, 0) / kept.length);
+  const scatter = Number.isFinite(robust.standardError) ? robust.standardError : 0;
+  return { mean: robust.mean, standardError: Math.max(scatter, fitU / Math.sqrt(kept.length)) };
 }

@@ -5,6 +5,7 @@
 import type { BenchClock } from '../../bench/clock';
 import type { Reading } from '../../scpi/reading';
 import { PointFlag } from '../../service/contract';
+import { averageWithOutlierRejection } from '../../signal';
 import { waitUntilSettled } from './timing';
 import type { StepMeasurer, StepResult, StepSetting, SweepInstruments } from './types';
 
@@ -35,7 +36,7 @@ export function dcMeasurer(options: { clock: BenchClock }): StepMeasurer {
       await waitUntilSettled(clock, changedAtS, setting.settleS);
       const readings: Reading[] = [];
       for (let k = 0; k < setting.averages; k++) {
-        await clock.sleepS(setting.integrateS);
+        // The reading itself integrates over the aperture set above (READ? returns when it is done).
         readings.push(await meter.readDcV());
       }
       return reduceDcReadings(readings, setting.stimulus);
@@ -48,6 +49,6 @@ export function reduceDcReadings(readings: Reading[], inputV: number): StepResul
   let flags = 0;
   if (readings.some((r) => r.flag === 'overrange')) flags |= PointFlag.overrange;
   if (readings.some((r) => r.flag === 'nan')) flags |= PointFlag.notANumber;
-  const meanV = good.length > 0 ? good.reduce((s, v) => s + v, 0) / good.length : NaN;
+  const meanV = good.length > 0 ? averageWithOutlierRejection(good).mean : NaN;
   return { gainDb: NaN, gainUncertaintyDb: NaN, phaseDeg: NaN, phaseUncertaintyDeg: NaN, outputV: meanV, inputReading: inputV, outputReading: meanV, flags };
 }

@@ -8,6 +8,7 @@ import type { BenchClock } from '../../bench/clock';
 import type { Reading } from '../../scpi/reading';
 import { PointFlag } from '../../service/contract';
 import { dbFromRatio } from '../../units';
+import { averageWithOutlierRejection } from '../../signal';
 import { waitUntilSettled } from './timing';
 import type { StepMeasurer, StepResult, StepSetting, SweepInstruments } from './types';
 
@@ -53,7 +54,7 @@ export function meterMeasurer(options: MeterMeasurerOptions): StepMeasurer {
       await waitUntilSettled(clock, changedAtS, setting.settleS);
       const readings: Reading[] = [];
       for (let k = 0; k < setting.averages; k++) {
-        await clock.sleepS(setting.integrateS);
+        // The reading itself integrates over the aperture set above (READ? returns when it is done).
         readings.push(await meter.readAcRmsV());
       }
       return reduceRmsReadings(readings, setting, options.calibration);
@@ -71,12 +72,13 @@ export function reduceRmsReadings(readings: Reading[], setting: StepSetting, cal
   if (good.length === 0) {
     return { gainDb: NaN, gainUncertaintyDb: NaN, phaseDeg: NaN, phaseUncertaintyDeg: NaN, outputV: NaN, inputReading: nominalInputRmsV, outputReading: NaN, flags };
   }
-  const meanV = good.reduce((s, v) => s + v, 0) / good.length;
-  const sd = good.length > 1 ? Math.sqrt(good.reduce((s, v) => s + (v - meanV) ** 2, 0) / (good.length - 1)) : NaN;
+  // Outliers (a reading caught mid-transient, a glitch) are rejected by modified z-score (app/signal).
+  const robust = averageWithOutlierRejection(good);
+  const meanV = robust.mean;
   const correctionDb = calibration ? interpolateLogF(calibration.frequencyHz, calibration.gainDb, setting.stimulus) : 0;
   return {
     gainDb: dbFromRatio(meanV / nominalInputRmsV) - correctionDb,
-    gainUncertaintyDb: (DB_PER_RELATIVE_UNIT * sd) / Math.sqrt(good.length) / meanV,
+    gainUncertaintyDb: (DB_PER_RELATIVE_UNIT * robust.standardError) / meanV,
     phaseDeg: NaN,
     phaseUncertaintyDeg: NaN,
     outputV: meanV,

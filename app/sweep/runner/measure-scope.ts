@@ -4,7 +4,7 @@
  * stimulus frequency; gain and phase with uncertainties from the fits.
  */
 import type { BenchClock } from '../../bench/clock';
-import type { ScopeControl } from '../../bench/roles';
+import type { ScopeControl, Waveform } from '../../bench/roles';
 import { PointFlag } from '../../service/contract';
 import { distortionScore, DISTORTION_SCORE_LIMIT, responseFromFits, sineFit3, type StageResponse } from '../../signal';
 import { formatEngineering } from '../../units';
@@ -14,6 +14,8 @@ import type { StepMeasurer, StepResult, StepSetting, SweepInstruments } from './
 
 /** Signal height on screen: 6 of 8 vertical divisions, room for tolerance and overshoot (common practice, no source). */
 const SCREEN_DIVISIONS_USED = 6;
+/** Each widening is ×2.5 of the scale; three cover a build 15× off theory. */
+const MAX_SCALE_WIDENINGS = 3;
 
 export interface ScopeMeasurerOptions {
   clock: BenchClock;
@@ -59,13 +61,22 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
 
       const responses: StageResponse[] = [];
       let worstDistortion = 0;
+      let clipped = false;
       for (let k = 0; k < setting.averages; k++) {
-        // One record spans the integration time; wait for it to fill before fetching.
-        await clock.sleepS(setting.integrateS);
-        const input = await scope.fetchWaveform(1);
-        const output = await scope.fetchWaveform(2);
-        const inputFit = sineFit3({ samplesV: input.samplesV, sampleIntervalS: input.sampleIntervalS, frequencyHz: setting.stimulus });
-        const outputFit = sineFit3({ samplesV: output.samplesV, sampleIntervalS: output.sampleIntervalS, frequencyHz: setting.stimulus });
+        // One record of both channels at once spans the integration time (whole cycles).
+        let record = await acquireBoth(scope);
+        // A build that differs from theory can overflow the expected scale: widen and take the record again.
+        for (let widen = 0; widen < MAX_SCALE_WIDENINGS && (record.input.clipped || record.output.clipped); widen++) {
+          lastScales = {
+            1: record.input.clipped ? niceScale(lastScales[1] * 2.5) : lastScales[1],
+            2: record.output.clipped ? niceScale(lastScales[2] * 2.5) : lastScales[2],
+          };
+          await scope.setupChannels(lastScales);
+          record = await acquireBoth(scope);
+        }
+        clipped ||= record.input.clipped || record.output.clipped;
+        const inputFit = sineFit3({ samplesV: record.input.samplesV, sampleIntervalS: record.input.sampleIntervalS, frequencyHz: setting.stimulus });
+        const outputFit = sineFit3({ samplesV: record.output.samplesV, sampleIntervalS: record.output.sampleIntervalS, frequencyHz: setting.stimulus });
         worstDistortion = Math.max(worstDistortion, distortionScore(outputFit));
         responses.push(responseFromFits(inputFit, outputFit));
       }
@@ -80,7 +91,7 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
         outputV: last.output.amplitudeV,
         inputReading: last.input.amplitudeV,
         outputReading: last.output.amplitudeV,
-        flags: distorted ? PointFlag.distorted : 0,
+        flags: (distorted ? PointFlag.distorted : 0) | (clipped ? PointFlag.overrange : 0),
         advice: distorted
           ? `output at ${formatEngineering(setting.stimulus, 'Hz')} is not a clean sine (residual ${(worstDistortion * 100).toFixed(1)} % of its RMS): ` +
             `likely slew limiting or clipping. Lower the amplitude (now ${setting.amplitudeVpp.toPrecision(3)} Vpp) or use automatic amplitude.`
@@ -88,6 +99,11 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
       };
     },
   };
+}
+
+async function acquireBoth(scope: ScopeControl): Promise<{ input: Waveform; output: Waveform }> {
+  await scope.acquire();
+  return { input: await scope.fetchWaveform(1), output: await scope.fetchWaveform(2) };
 }
 
 /** Rounds up to the 1-2-5 sequence of vertical scales scopes offer (common practice, no source). */

@@ -1,0 +1,34 @@
+import type { CommandSpec } from '../args';
+import { requirePositional } from '../args';
+import { SAFETY_NOTICE_SHORT } from '../../service/safety';
+import { BENCH_OPTIONS, connectBench, openService } from '../../sweep/cli/sweep-options';
+import { followRun } from '../../sweep/cli/follow-run';
+import { runDetailText } from '../../sweep/cli/summary-text';
+import { parseRunId } from './show';
+
+export const resumeCommand: CommandSpec = {
+  name: 'resume',
+  summary: 'Continue a paused, interrupted or failed run at its next step (no point lost or repeated)',
+  usage: 'RUN [--db PATH] [--max-amplitude VPP] [--generator ADDR …]',
+  options: BENCH_OPTIONS.filter((o) => o.name !== 'virtual'),
+  details: `
+A simulated run continues on a fresh virtual bench of its build. A real run reconnects to the
+addresses it was measured with, unless other addresses are given. The maximum stimulus recorded
+with the run applies unless --max-amplitude is given.`,
+  async run(parsed) {
+    process.stderr.write(`${SAFETY_NOTICE_SHORT}\n\n`);
+    const runId = parseRunId(requirePositional(parsed, 0, 'RUN'));
+    const service = openService(parsed);
+    try {
+      const stored = service.store.getRun(runId);
+      if (!stored.simulated) await connectBench(service, parsed, stored.buildId);
+      await service.resumeRun(runId);
+      process.stderr.write(`run ${runId} continues at step ${service.store.nextStep(runId)}\n`);
+      const status = await followRun(service, runId);
+      process.stdout.write(runDetailText(await service.getRun(runId)));
+      return status === 'done' || status === 'paused' ? 0 : 1;
+    } finally {
+      await service.close();
+    }
+  },
+};

@@ -1,0 +1,44 @@
+import type { CommandSpec } from '../args';
+import { optionFlag, optionNumber, optionString } from '../args';
+import { ValidationError } from '../../errors';
+import type { RunStatus } from '../../service/contract';
+import { RolloffService } from '../../service/service';
+import { resolveDatabasePath } from '../../store';
+import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';
+import { runTable } from '../../sweep/cli/summary-text';
+
+const STATUSES: RunStatus[] = ['planned', 'running', 'paused', 'done', 'stopped', 'failed'];
+
+export const runsCommand: CommandSpec = {
+  name: 'runs',
+  summary: 'List stored runs, newest first; runs interrupted by a crash are offered for resume',
+  usage: '[--search TEXT] [--status STATUS] [--build ID] [--db PATH]',
+  options: [
+    { name: 'search', kind: 'string', placeholder: 'TEXT', description: 'match build label, design name or notes' },
+    { name: 'status', kind: 'string', placeholder: 'STATUS', description: `only runs with this status (${STATUSES.join(', ')})` },
+    { name: 'build', kind: 'integer', placeholder: 'ID', description: 'only runs of this build' },
+    { name: 'json', kind: 'flag', description: 'print as JSON' },
+    DATABASE_OPTION,
+  ],
+  async run(parsed) {
+    const status = optionString(parsed, 'status');
+    if (status !== undefined && !STATUSES.includes(status as RunStatus)) throw new ValidationError('--status', `"${status}" is not a run status`, `Use one of: ${STATUSES.join(', ')}.`);
+    const service = new RolloffService({ databasePath: resolveDatabasePath(optionString(parsed, 'db')) });
+    try {
+      const runs = await service.listRuns({ search: optionString(parsed, 'search'), status: status as RunStatus | undefined, buildId: optionNumber(parsed, 'build') });
+      if (optionFlag(parsed, 'json')) {
+        process.stdout.write(JSON.stringify(runs) + '\n');
+        return 0;
+      }
+      process.stdout.write(runTable(runs));
+      const interrupted = service.interruptedRuns();
+      if (interrupted.length > 0) {
+        process.stderr.write(`\n${interrupted.length} run(s) were left running or paused: ${interrupted.map((r) => r.id).join(', ')}.\n`);
+        process.stderr.write(`Continue one with: rolloff resume RUN${optionString(parsed, 'db') ? ` --db ${optionString(parsed, 'db')}` : ''}\n`);
+      }
+      return 0;
+    } finally {
+      await service.close();
+    }
+  },
+};

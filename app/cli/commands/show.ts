@@ -1,0 +1,58 @@
+import type { CommandSpec } from '../args';
+import { optionFlag, optionString, requirePositional } from '../args';
+import { parseEngineering, formatEngineering } from '../../units';
+import { ValidationError } from '../../errors';
+import { PointFlag } from '../../service/contract';
+import { RolloffService } from '../../service/service';
+import { resolveDatabasePath } from '../../store';
+import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';
+import { runDetailText } from '../../sweep/cli/summary-text';
+
+const FLAG_NAMES = Object.entries(PointFlag) as Array<[string, number]>;
+
+export const showCommand: CommandSpec = {
+  name: 'show',
+  summary: 'Show one run: figures against theory, verdict, and optionally its points and events',
+  usage: 'RUN [--points] [--events] [--json] [--db PATH]',
+  options: [
+    { name: 'points', kind: 'flag', description: 'list the measured points with uncertainties and flags' },
+    { name: 'events', kind: 'flag', description: 'list the run\'s events' },
+    { name: 'json', kind: 'flag', description: 'print the whole run (RunDetail) as JSON' },
+    DATABASE_OPTION,
+  ],
+  async run(parsed) {
+    const runId = parseRunId(requirePositional(parsed, 0, 'RUN'));
+    const service = new RolloffService({ databasePath: resolveDatabasePath(optionString(parsed, 'db')) });
+    try {
+      const detail = await service.getRun(runId);
+      if (optionFlag(parsed, 'json')) {
+        process.stdout.write(JSON.stringify(detail) + '\n');
+        return 0;
+      }
+      process.stdout.write(runDetailText(detail));
+      if (optionFlag(parsed, 'points')) {
+        const p = detail.points;
+        process.stdout.write(`\n${'step'.padEnd(5)} ${(detail.kind === 'ac' ? 'frequency' : 'input').padEnd(12)} ${'amplitude'.padEnd(11)} ${(detail.kind === 'ac' ? 'gain dB' : 'output V').padEnd(16)} ${'phase °'.padEnd(16)} flags\n`);
+        for (let i = 0; i < p.step.length; i++) {
+          const flags = FLAG_NAMES.filter(([, bit]) => (p.flags[i] & bit) !== 0).map(([name]) => name).join(',');
+          const main = detail.kind === 'ac' ? `${p.gainDb[i].toFixed(3)} ±${p.gainUncertaintyDb[i].toFixed(3)}` : `${p.outputV[i].toPrecision(6)}`;
+          const phase = Number.isFinite(p.phaseDeg[i]) ? `${p.phaseDeg[i].toFixed(2)} ±${p.phaseUncertaintyDeg[i].toFixed(2)}` : '—';
+          process.stdout.write(`${String(p.step[i]).padEnd(5)} ${formatEngineering(p.stimulus[i], detail.kind === 'ac' ? 'Hz' : 'V').padEnd(12)} ${formatEngineering(p.amplitudeVpp[i], 'Vpp').padEnd(11)} ${main.padEnd(16)} ${phase.padEnd(16)} ${flags}\n`);
+        }
+      }
+      if (optionFlag(parsed, 'events')) {
+        process.stdout.write('\n');
+        for (const e of detail.events) process.stdout.write(`${e.at}  ${e.level.padEnd(7)}  ${e.message}\n`);
+      }
+      return 0;
+    } finally {
+      await service.close();
+    }
+  },
+};
+
+export function parseRunId(text: string): number {
+  const value = parseEngineering(text, 'RUN');
+  if (!Number.isInteger(value) || value <= 0) throw new ValidationError('RUN', `"${text}" is not a run number`, 'See rolloff runs for the list.');
+  return value;
+}

@@ -1,0 +1,54 @@
+import type { CommandSpec } from '../args';
+import { optionFlag } from '../args';
+import { SAFETY_NOTICE_SHORT } from '../../service/safety';
+import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, connectBench, openService, requestFrom, resolveBuildId } from '../../sweep/cli/sweep-options';
+import { followRun } from '../../sweep/cli/follow-run';
+import { formatDuration } from '../../sweep/cli/progress-bar';
+import { runDetailText } from '../../sweep/cli/summary-text';
+import { formatEngineering } from '../../units';
+
+export const sweepCommand: CommandSpec = {
+  name: 'sweep',
+  summary: 'Sweep a build (frequency or DC transfer), store every point, compare with theory',
+  usage: '(--build ID | --design FILE.json [--label TEXT] [--actual PART=VALUE …]) (--virtual | --generator ADDR --scope ADDR|--meter ADDR) [options]',
+  options: [...BUILD_OPTIONS, ...BENCH_OPTIONS, ...PLAN_OPTIONS, { name: 'json', kind: 'flag', description: 'print the finished run (RunDetail) as JSON on stdout' }],
+  details: `
+Examples:
+  rolloff sweep --design lowpass.json --label "board A" --virtual --max-amplitude 2
+  rolloff sweep --build 3 --generator tcp://192.0.2.10:5025 --scope tcp://192.0.2.11:5025 --max-amplitude 1 --from 10 --to 1meg
+  rolloff sweep --build 4 --dc --from 1m --to 10 --per-decade 5 --virtual --max-amplitude 20
+
+Every point is stored the moment it is measured. Ctrl-C pauses after the current point;
+"rolloff resume RUN" continues where it stopped.`,
+  async run(parsed) {
+    process.stderr.write(`${SAFETY_NOTICE_SHORT}\n\n`);
+    const service = openService(parsed);
+    try {
+      const buildId = await resolveBuildId(service, parsed);
+      const request = requestFrom(parsed, buildId);
+      await connectBench(service, parsed, buildId);
+      const plan = await service.planSweep(request);
+      process.stderr.write(
+        `plan: ${plan.steps.length} points, physical minimum ${formatDuration(plan.estimatedDurationS)} of bench time` +
+          `${service.clock.timeScale !== 1 ? ` (virtual bench ×${service.clock.timeScale})` : ''}; maximum stimulus ${service.maxStimulus} Vpp\n`,
+      );
+      for (const warning of plan.warnings) process.stderr.write(`plan warning: ${warning}\n`);
+      const run = await service.startRun(request);
+      process.stderr.write(`run ${run.id} started${run.simulated ? ' on the virtual bench (simulated)' : ''}; database ${service.store.path}\n`);
+      const status = await followRun(service, run.id).catch((error) => {
+        throw error;
+      });
+      const detail = await service.getRun(run.id);
+      if (optionFlag(parsed, 'json')) process.stdout.write(JSON.stringify(detail) + '\n');
+      else process.stdout.write(runDetailText(detail));
+      if (status === 'paused') process.stderr.write(`run ${run.id} paused; continue with: rolloff resume ${run.id} --db ${service.store.path}\n`);
+      if (detail.kind === 'ac' && detail.figures.gainLimitHz !== undefined && detail.theoryGainLimitHz !== undefined) {
+        const ratio = detail.figures.gainLimitHz / detail.theoryGainLimitHz - 1;
+        process.stderr.write(`gain-limit point ${formatEngineering(detail.figures.gainLimitHz, 'Hz')} measured, ${(ratio * 100).toFixed(1)} % from theory\n`);
+      }
+      return status === 'done' || status === 'paused' ? 0 : 1;
+    } finally {
+      await service.close();
+    }
+  },
+};

@@ -1,0 +1,52 @@
+/** exportRecord: the run detail (or comparison) handed to the record module (app/record). */
+import { buildComparisonRecord, buildRunRecord, renderRecord, type RecordDcFit } from '../record';
+import type { ExportedRecord, RecordFormat, RunDetail } from './contract';
+import type { RolloffService } from './service';
+import { logStageIdeal } from '../circuit/log-stage';
+import { designOf } from './theory';
+import type { DiodePart, PassivePart } from '../circuit/types';
+import { logGrid } from '../units';
+
+export async function exportRecordFor(service: RolloffService, runIds: number[], format: RecordFormat, reference: number | 'theory'): Promise<ExportedRecord> {
+  const store = service.store;
+  const contextOf = (detail: RunDetail) => {
+    const build = store.getBuild(detail.buildId);
+    const design = store.getDesign(build.designId);
+    return { design: design.design, designId: design.id, build, dcFit: dcFitCurve(detail, design) };
+  };
+  let rendered;
+  if (runIds.length === 1) {
+    const detail = await service.getRun(runIds[0]);
+    rendered = await renderRecord(buildRunRecord(detail, contextOf(detail)), format);
+  } else {
+    const comparison = await service.compareRuns(runIds, reference);
+    const runs = new Map(comparison.runs.map((detail) => [detail.id, contextOf(detail)]));
+    rendered = await renderRecord(buildComparisonRecord(comparison, { runs }), format);
+  }
+  const binary = format === 'pdf';
+  return {
+    fileName: rendered.fileName,
+    mimeType: rendered.mimeType,
+    content: binary ? Buffer.from(rendered.bytes).toString('base64') : new TextDecoder().decode(rendered.bytes),
+    encoding: binary ? 'base64' : 'utf8',
+  };
+}
+
+/** The fitted log-stage curve over the run's input range, drawn with the measured points. */
+function dcFitCurve(detail: RunDetail, designRecord: { id: number; name: string; design: unknown; createdAt: string }): RecordDcFit | null {
+  const fit = detail.figures.logFit;
+  if (detail.kind !== 'dc' || !fit || detail.points.stimulus.length === 0) return null;
+  const design = designOf(designRecord);
+  const resistor = design.parts.find((p): p is PassivePart => p.type === 'resistor' && (p.nodes as string[]).includes(design.input));
+  const diode = design.parts.find((p): p is DiodePart => p.type === 'diode');
+  if (!resistor || !diode) return null;
+  const magnitudes = detail.points.stimulus.map(Math.abs);
+  const sign = Math.sign(detail.points.stimulus[0]) || 1;
+  const inputV = Array.from(logGrid(Math.min(...magnitudes), Math.max(...magnitudes), 50), (m) => sign * m);
+  const model = { ...diode.model, n: fit.n, is: fit.isA, rs: fit.rsOhm };
+  return {
+    inputV,
+    outputV: inputV.map((v) => logStageIdeal(v, resistor.value, model, design.temperatureC)),
+    description: `fitted n = ${fit.n.toPrecision(4)}, IS = ${fit.isA.toPrecision(3)} A, RS = ${fit.rsOhm.toPrecision(3)} Ω`,
+  };
+}

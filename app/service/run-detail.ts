@@ -1,0 +1,110 @@
+/**
+ * A run with everything a view or a record needs: points, theory over the
+ * run's frequencies with the tolerance band, figures, flags and verdict.
+ */
+import type { Store, StoredRun } from '../store';
+import type { PointColumns, RunDetail, RunFigures, Verdict } from './contract';
+import { PointFlag } from './contract';
+import { analyzeAcRun } from '../analysis';
+import type { Design, DiodePart, PassivePart } from '../circuit/types';
+import { fitLogStage, logFitFigures, FitError } from '../signal';
+import { ValidationError } from '../errors';
+import { buildDesign, estimateGbw, theoryAtPoints, theoryColumns, theoryFigures } from './theory';
+
+export interface RunAnalysis {
+  figures: RunFigures;
+  verdict: Verdict | null;
+  /** Flags per point including the analysis flags (tolerance band, past gain limit). */
+  flags: number[];
+  theoryGainLimitHz?: number;
+  theoryMinus3dbHz: number[];
+}
+
+export function designForRun(store: Store, run: StoredRun): Design {
+  const build = store.getBuild(run.buildId);
+  return buildDesign(store.getDesign(build.designId), build);
+}
+
+/** Figures, flags and verdict of a run from its stored points. */
+export function analyzeRun(store: Store, run: StoredRun, points: PointColumns = store.loadPoints(run.id)): RunAnalysis {
+  const design = designForRun(store, run);
+  if (run.kind === 'dc') return analyzeDcRun(design, points);
+  const from = Math.min(run.request.from, ...points.stimulus);
+  const to = Math.max(run.request.to, ...points.stimulus);
+  const figuresOfTheory = theoryFigures(design, from, to);
+  const theory = theoryAtPoints(design, points.stimulus, figuresOfTheory);
+  const gbw = run.request.measurement === 'scope' ? estimateGbw(design, {
+    frequencyHz: points.stimulus, gainDb: points.gainDb, phaseDeg: points.phaseDeg,
+    gainUncertaintyDb: points.gainUncertaintyDb, phaseUncertaintyDeg: points.phaseUncertaintyDeg,
+  }) : undefined;
+  const result = analyzeAcRun(
+    { frequencyHz: points.stimulus, gainDb: points.gainDb, gainUncertaintyDb: points.gainUncertaintyDb, phaseDeg: points.phaseDeg, flags: points.flags },
+    theory,
+    run.request.limits,
+    gbw,
+  );
+  return {
+    figures: result.figures,
+    verdict: result.verdict,
+    flags: Array.from(result.flags),
+    theoryGainLimitHz: figuresOfTheory.gainLimitHz,
+    theoryMinus3dbHz: figuresOfTheory.minus3dbHz,
+  };
+}
+
+function analyzeDcRun(design: Design, points: PointColumns): RunAnalysis {
+  const figures: RunFigures = { minus3dbHz: [] };
+  const usable = points.stimulus.map((_, i) => i).filter((i) => Number.isFinite(points.outputV[i]) && (points.flags[i] & (PointFlag.overrange | PointFlag.notANumber)) === 0);
+  const inputResistor = resistorAtInput(design);
+  if (inputResistor && usable.length >= 4) {
+    try {
+      const diode = design.parts.find((p): p is DiodePart => p.type === 'diode');
+      const fit = fitLogStage(
+        usable.map((i) => points.stimulus[i]),
+        usable.map((i) => points.outputV[i]),
+        inputResistor.value,
+        design.temperatureC,
+        diode ? { n: diode.model.n, isA: diode.model.is, rsOhm: diode.model.rs } : {},
+      );
+      figures.logFit = logFitFigures(fit);
+    } catch (error) {
+      if (!(error instanceof FitError || error instanceof ValidationError)) throw error;
+    }
+  }
+  return { figures, verdict: null, flags: [...points.flags], theoryMinus3dbHz: [] };
+}
+
+/** The log stage's input resistor: the resistor with one end on the design's input node. */
+function resistorAtInput(design: Design): PassivePart | undefined {
+  return design.parts.find((p): p is PassivePart => p.type === 'resistor' && (p.nodes as string[]).includes(design.input));
+}
+
+export function runDetail(store: Store, runId: number): RunDetail {
+  const run = store.getRun(runId);
+  const points = store.loadPoints(runId);
+  const design = designForRun(store, run);
+  const analysis = analyzeRun(store, run, points);
+  let theory: RunDetail['theory'] = { frequencyHz: [], gainDb: [], phaseDeg: [], idealGainDb: [], idealPhaseDeg: [] };
+  if (run.kind === 'ac') {
+    const frequencies = [...run.plan.steps.map((s) => s.stimulus), ...points.stimulus];
+    theory = theoryColumns(design, frequencies);
+    // Measured phases are wrapped to (−180°, 180°]; shift each by whole turns to sit on the theory's continuous curve.
+    const atPoints = theoryAtPoints(design, points.stimulus, { gainLimitHz: undefined, minus3dbHz: [] });
+    points.phaseDeg = points.phaseDeg.map((p, i) => (Number.isFinite(p) ? p + 360 * Math.round((atPoints.response.phaseDeg[i] - p) / 360) : p));
+  }
+  points.flags = analysis.flags;
+  const { request, plan: _plan, operator: _operator, notes: _notes, scheduleId: _scheduleId, createdAt: _createdAt, figures: _f, verdict: _v, ...summary } = run;
+  return {
+    ...summary,
+    request,
+    bench: run.bench,
+    softwareVersion: run.softwareVersion,
+    points,
+    theory,
+    figures: analysis.figures,
+    verdict: analysis.verdict,
+    events: store.listEvents(runId),
+    theoryGainLimitHz: analysis.theoryGainLimitHz,
+    theoryMinus3dbHz: analysis.theoryMinus3dbHz,
+  };
+}

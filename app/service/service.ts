@@ -1,0 +1,562 @@
+/**
+ * The one service: implements RolloffApi for the window hosts and the CLI.
+ * It owns the store, the connected instruments, the virtual bench and the
+ * running sweeps, and pushes ServiceEvents to whoever listens.
+ */
+import { SerialPort } from 'serialport';
+import { UserError, ValidationError } from '../errors';
+import { Store, identityKey, type StoredRun } from '../store';
+import { openInstrument, builtInProfiles, loadProfiles, realClock, type BenchClock, type OpenedInstrument } from '../bench';
+import { TrafficLog } from '../scpi/traffic-log';
+import type { Design } from '../circuit/types';
+import { parseDesign } from '../circuit/parse-design';
+import { solveAc } from '../circuit/solve-ac';
+import { TEMPLATES, makeDesignFromTemplate } from '../circuit/templates';
+import { planSweep, planStepsAt, refinementFrequencies, toPlanSummary, type PlanInput, type PlanInstruments } from '../sweep/plan';
+import { RunControl } from '../sweep/runner/control';
+import { runSweep } from '../sweep/runner/run-sweep';
+import { scopeMeasurer } from '../sweep/runner/measure-scope';
+import { meterMeasurer } from '../sweep/runner/measure-meter';
+import { dcMeasurer } from '../sweep/runner/measure-dc';
+import { RunStateError } from '../sweep/runner/errors';
+import type { StepMeasurer, StepSetting, SweepInstruments } from '../sweep/runner/types';
+import { PointFlag } from './contract';
+import type {
+  BenchStatus, BuildRecord, Comparison, ConnectRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
+  PointColumns, PortInfo, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunStatus, RunSummary, ServiceEventName,
+  ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
+} from './contract';
+import { ServiceEventBus } from './events';
+import { buildDesign, designOf, planTheoryFor } from './theory';
+import { analyzeRun, designForRun, runDetail } from './run-detail';
+import { compareDetails } from './compare';
+import { SOFTWARE_VERSION } from './version';
+import { startVirtualBenchFor, type VirtualBenchHandle, type VirtualBenchSettings } from './virtual-bench';
+import { exportRecordFor } from './export';
+
+export interface RolloffServiceOptions {
+  databasePath: string;
+  /** The user's ceiling on generator output; otherwise the one recorded with the latest run, else unset. */
+  maxStimulusVpp?: number;
+  /** Folder of user instrument profiles (else ROLLOFF_PROFILE_DIR). */
+  profileFolder?: string;
+  /** Virtual bench options: time scale (bench seconds per wall second), noise, link latency, seed. */
+  virtualBench?: Partial<VirtualBenchSettings>;
+  /** Give up on a run when the link stays down this long (bench seconds). Default 120 s. */
+  giveUpAfterS?: number;
+  /** Time an instrument needs after a setting change (s). Default 10 ms (common practice, no source). */
+  instrumentSettleS?: number;
+  /** Meter aperture for meter and DC runs (s). Default 0.1 s = 5 power-line cycles at 50 Hz (common practice). */
+  meterIntegrationS?: number;
+  /** Largest number of refinement points added after the coarse pass. Default 8. */
+  maxRefinementPoints?: number;
+}
+
+interface ConnectedInstrument {
+  opened: OpenedInstrument;
+  request: ConnectRequest;
+  simulated: boolean;
+}
+
+interface ActiveRun {
+  control: RunControl;
+  finished: Promise<RunStatus>;
+}
+
+/** Fixed default when no generator is connected yet (planning preview): the generic profile's limits. */
+function genericGeneratorLimits(): PlanInstruments['generator'] {
+  const profile = builtInProfiles().find((p) => p.role === 'generator');
+  if (profile?.role === 'generator') return { ...profile.generator.limits, minAmplitudeVpp: 0 };
+  return { minFrequencyHz: 1e-3, maxFrequencyHz: 1e7, maxAmplitudeVpp: 20, minAmplitudeVpp: 0 };
+}
+
+const ROLES: InstrumentRole[] = ['generator', 'meter', 'scope'];
+
+export class RolloffService implements RolloffApi {
+  readonly store: Store;
+  readonly events = new ServiceEventBus();
+  private readonly options: RolloffServiceOptions;
+  private readonly traffic = new TrafficLog();
+  private readonly instruments = new Map<InstrumentRole, ConnectedInstrument>();
+  private readonly active = new Map<number, ActiveRun>();
+  private virtual: (VirtualBenchHandle & { designName: string; key: string }) | undefined;
+  private maxStimulusVpp: number | undefined;
+
+  constructor(options: RolloffServiceOptions) {
+    this.options = options;
+    this.store = Store.open(options.databasePath);
+    this.maxStimulusVpp = options.maxStimulusVpp ?? this.lastRecordedMaxStimulus();
+    this.traffic.subscribe((entry) => {
+      const role = ROLES.find((r) => this.instruments.get(r)?.opened.session && entry.link.includes(this.instruments.get(r)!.opened.address)) ?? 'other';
+      this.events.emit('traffic', { at: entry.at, role, direction: entry.direction, text: entry.text });
+    });
+  }
+
+  /** Subscribe to one event; returns the unsubscribe function (RolloffClient.on). */
+  on<E extends ServiceEventName>(event: E, listener: (payload: ServiceEvents[E]) => void): () => void {
+    return this.events.on(event, listener);
+  }
+
+  /** The service as a client object (the CLI and in-process hosts). */
+  asClient(): RolloffClient {
+    return this as unknown as RolloffClient;
+  }
+
+  /** The bench clock: scaled for a virtual bench so settling and integration run faster, real otherwise. */
+  get clock(): BenchClock {
+    return this.virtual?.clock ?? realClock;
+  }
+
+  get maxStimulus(): number | undefined {
+    return this.maxStimulusVpp;
+  }
+
+  /** Stops sweeps (paused, resumable), closes instruments, the virtual bench and the store. */
+  async close(): Promise<void> {
+    for (const [runId, run] of this.active) {
+      run.control.requestPause();
+      await run.finished.catch(() => undefined);
+      this.active.delete(runId);
+    }
+    for (const role of ROLES) await this.disconnect(role);
+    await this.virtual?.stop();
+    this.virtual = undefined;
+    this.store.close();
+  }
+
+  // ── Bench ──────────────────────────────────────────────────────────────
+
+  async listPorts(): Promise<PortInfo[]> {
+    const ports = await SerialPort.list();
+    return ports.map((p) => ({ path: p.path, manufacturer: p.manufacturer, serialNumber: p.serialNumber, vendorId: p.vendorId, productId: p.productId }));
+  }
+
+  async listProfiles(): Promise<ProfileSummary[]> {
+    const builtIn = new Set(builtInProfiles().map((p) => p.id));
+    return loadProfiles(this.options.profileFolder).map((p) => ({ id: p.id, role: p.role, description: p.description, builtIn: builtIn.has(p.id) }));
+  }
+
+  async benchStatus(): Promise<BenchStatus> {
+    return {
+      instruments: this.instrumentInfos(),
+      maxStimulusVpp: this.maxStimulusVpp ?? 0,
+      virtualBench: this.virtual ? { addresses: this.virtual.addresses, designName: this.virtual.designName } : undefined,
+    };
+  }
+
+  async connect(request: ConnectRequest): Promise<InstrumentInfo> {
+    const info = await this.connectRole(request, false);
+    this.events.emit('bench', await this.benchStatus());
+    return info;
+  }
+
+  async disconnect(role: InstrumentRole): Promise<void> {
+    const connected = this.instruments.get(role);
+    if (!connected) return;
+    this.instruments.delete(role);
+    await connected.opened.close().catch(() => undefined);
+    this.events.emit('bench', await this.benchStatus());
+  }
+
+  async startVirtualBench(designId: number): Promise<BenchStatus> {
+    const record = this.store.getDesign(designId);
+    await this.startVirtualBenchForDesign(designOf(record), record.name, `design:${designId}`);
+    return this.benchStatus();
+  }
+
+  /** A virtual bench simulating one build's actual circuit (its measured part values), connected in all three roles. */
+  async startVirtualBenchForBuild(buildId: number): Promise<BenchStatus> {
+    const build = this.store.getBuild(buildId);
+    const designRecord = this.store.getDesign(build.designId);
+    await this.startVirtualBenchForDesign(buildDesign(designRecord, build), `${designRecord.name} — build ${build.label}`, `build:${buildId}`);
+    return this.benchStatus();
+  }
+
+  /** Fault injection on the running virtual bench (tests, demos). */
+  get virtualBench(): VirtualBenchHandle | undefined {
+    return this.virtual;
+  }
+
+  async setMaxStimulus(maxStimulusVpp: number): Promise<BenchStatus> {
+    if (!(Number.isFinite(maxStimulusVpp) && maxStimulusVpp > 0)) {
+      throw new ValidationError('maximum stimulus', `${maxStimulusVpp} Vpp is not a positive amplitude`, 'Give the largest peak-to-peak voltage the circuit may see, e.g. 2.');
+    }
+    if (this.active.size > 0) throw new UserError('the maximum stimulus cannot change during a sweep', 'Pause or stop the running sweep first.');
+    this.maxStimulusVpp = maxStimulusVpp;
+    // The generator control holds its ceiling from the moment it is opened: reopen it with the new one.
+    const generator = this.instruments.get('generator');
+    if (generator) await this.connectRole(generator.request, generator.simulated);
+    const status = await this.benchStatus();
+    this.events.emit('bench', status);
+    return status;
+  }
+
+  // ── Designs and builds ─────────────────────────────────────────────────
+
+  async listTemplates(): Promise<TemplateInfo[]> {
+    return TEMPLATES;
+  }
+
+  async makeTemplate(templateId: string, parameters: Record<string, number>): Promise<unknown> {
+    return makeDesignFromTemplate(templateId, parameters);
+  }
+
+  async saveDesign(design: unknown): Promise<DesignRecord> {
+    const parsed = parseDesign(design, 'design');
+    return this.store.saveDesign({ name: parsed.name, design });
+  }
+
+  async listDesigns(): Promise<DesignRecord[]> {
+    return this.store.listDesigns();
+  }
+
+  async createBuild(build: { designId: number; label: string; notes: string; actualValues: Record<string, number> }): Promise<BuildRecord> {
+    const design = this.store.getDesign(build.designId);
+    // Refuses unknown part ids or bad values before anything is stored.
+    buildDesign(design, { id: 0, designId: build.designId, label: build.label, notes: build.notes, actualValues: build.actualValues, createdAt: '' });
+    return this.store.createBuild(build);
+  }
+
+  async listBuilds(designId?: number): Promise<BuildRecord[]> {
+    return this.store.listBuilds(designId);
+  }
+
+  // ── Sweeps ─────────────────────────────────────────────────────────────
+
+  async planSweep(request: SweepRequest): Promise<SweepPlanSummary> {
+    return toPlanSummary(planSweep(this.planInput(request, this.requireMaxStimulus())));
+  }
+
+  async startRun(request: SweepRequest): Promise<RunSummary> {
+    return this.startRunWith(request);
+  }
+
+  /** startRun with the service-only options (schedule id). */
+  async startRunWith(request: SweepRequest, extra: { scheduleId?: number } = {}): Promise<RunSummary> {
+    const maxStimulusVpp = this.requireMaxStimulus();
+    this.requireInstrumentsFor(request);
+    const plan = planSweep(this.planInput(request, maxStimulusVpp));
+    const run = this.store.createRun({
+      buildId: request.buildId,
+      kind: request.kind,
+      request: { ...request, maxStimulusVpp },
+      plan: toPlanSummary(plan),
+      softwareVersion: SOFTWARE_VERSION,
+      bench: this.instrumentInfos(),
+      operator: request.operator,
+      notes: request.notes,
+      simulated: this.instrumentInfos().some((i) => i.simulated),
+      scheduleId: extra.scheduleId ?? null,
+    });
+    for (const warning of plan.warnings) this.logRunEvent(run.id, 'warning', `plan: ${warning}`);
+    this.launch(run.id);
+    return this.summaryOf(run.id);
+  }
+
+  async pauseRun(runId: number): Promise<RunSummary> {
+    const active = this.active.get(runId);
+    if (active) {
+      active.control.requestPause();
+      await active.finished.catch(() => undefined);
+    } else if (this.store.getRun(runId).status === 'running') {
+      // Left running by a crash: nothing is measuring it, so it is in effect paused.
+      this.store.updateRunStatus(runId, 'paused');
+    }
+    return this.summaryOf(runId);
+  }
+
+  async stopRun(runId: number): Promise<RunSummary> {
+    const active = this.active.get(runId);
+    if (active) {
+      active.control.requestStop();
+      await active.finished.catch(() => undefined);
+    } else {
+      const run = this.store.getRun(runId);
+      if (run.status === 'running' || run.status === 'paused' || run.status === 'planned') {
+        this.store.updateRunStatus(runId, 'stopped');
+        this.logRunEvent(runId, 'info', 'stopped by the user');
+        this.finalize(runId);
+      }
+    }
+    return this.summaryOf(runId);
+  }
+
+  /**
+   * Continues a run at its next step. A simulated run gets a fresh virtual
+   * bench of its build; a real one reconnects to the addresses it was measured
+   * with unless instruments are already connected.
+   */
+  async resumeRun(runId: number): Promise<RunSummary> {
+    const run = this.store.getRun(runId);
+    if (this.active.has(runId)) throw new RunStateError(runId, 'is already running');
+    if (run.status === 'done') throw new RunStateError(runId, 'is finished; nothing to resume', 'Start a new run of the same build instead.');
+    if (this.maxStimulusVpp === undefined && typeof run.request.maxStimulusVpp === 'number') this.maxStimulusVpp = run.request.maxStimulusVpp;
+    const maxStimulusVpp = this.requireMaxStimulus();
+    if (run.simulated) {
+      if (this.virtual?.key !== `build:${run.buildId}`) await this.startVirtualBenchForBuild(run.buildId);
+    } else {
+      for (const instrument of run.bench) {
+        if (!this.instruments.has(instrument.role)) await this.connectRole({ role: instrument.role, address: instrument.address, profileId: instrument.profileId }, false);
+      }
+    }
+    this.requireInstrumentsFor(run.request);
+    this.logRunEvent(runId, 'info', `resumed (maximum stimulus ${maxStimulusVpp} Vpp)`);
+    this.launch(runId);
+    return this.summaryOf(runId);
+  }
+
+  /** Resolves when a run started or resumed by this service leaves the running state. */
+  async waitForRun(runId: number): Promise<RunStatus> {
+    const active = this.active.get(runId);
+    if (!active) return this.store.getRun(runId).status;
+    return active.finished;
+  }
+
+  /** Runs a crash left running or paused: offered for resume at start. */
+  interruptedRuns(): RunSummary[] {
+    return this.store.findInterruptedRuns().filter((r) => !this.active.has(r.id)).map((r) => this.summaryOf(r.id));
+  }
+
+  // ── History, Compare, Record ───────────────────────────────────────────
+
+  async listRuns(filter?: { search?: string; status?: RunStatus; buildId?: number }): Promise<RunSummary[]> {
+    return this.store.listRuns(filter ?? {});
+  }
+
+  async getRun(runId: number) {
+    return runDetail(this.store, runId);
+  }
+
+  async compareRuns(runIds: number[], reference: number | 'theory'): Promise<Comparison> {
+    if (runIds.length === 0) throw new ValidationError('runIds', 'is empty', 'Give at least one run.');
+    return compareDetails(runIds.map((id) => runDetail(this.store, id)), reference);
+  }
+
+  async exportRecord(runIds: number[], format: RecordFormat, reference: number | 'theory' = 'theory'): Promise<ExportedRecord> {
+    if (runIds.length === 0) throw new ValidationError('runIds', 'is empty', 'Give at least one run.');
+    return exportRecordFor(this, runIds, format, reference);
+  }
+
+  // ── internals ──────────────────────────────────────────────────────────
+
+  private summaryOf(runId: number): RunSummary {
+    const { request: _r, plan: _p, softwareVersion: _s, bench: _b, operator: _o, notes: _n, scheduleId: _sc, createdAt: _c, figures: _f, verdict: _v, ...summary } = this.store.getRun(runId);
+    return summary;
+  }
+
+  private lastRecordedMaxStimulus(): number | undefined {
+    const latest = this.store.listRuns({ limit: 1 })[0];
+    if (!latest) return undefined;
+    const value = this.store.getRun(latest.id).request.maxStimulusVpp;
+    return typeof value === 'number' && value > 0 ? value : undefined;
+  }
+
+  private requireMaxStimulus(): number {
+    if (this.maxStimulusVpp === undefined) {
+      throw new ValidationError('maximum stimulus', 'is not set', 'Set the largest peak-to-peak voltage the circuit may see: --max-amplitude VPP, or on the Bench view.');
+    }
+    return this.maxStimulusVpp;
+  }
+
+  private requireInstrumentsFor(request: SweepRequest): void {
+    const needed: InstrumentRole[] = ['generator', request.kind === 'ac' && request.measurement === 'scope' ? 'scope' : 'meter'];
+    const missing = needed.filter((role) => !this.instruments.has(role));
+    if (missing.length > 0) {
+      throw new UserError(
+        `no ${missing.join(' or ')} connected for this ${request.kind === 'dc' ? 'DC transfer' : request.measurement} sweep`,
+        'Connect it on the Bench view (or give its address, e.g. --generator tcp://127.0.0.1:5025), or use the virtual bench (--virtual).',
+      );
+    }
+  }
+
+  private instrumentInfos(): InstrumentInfo[] {
+    return ROLES.filter((r) => this.instruments.has(r)).map((role) => {
+      const c = this.instruments.get(role)!;
+      return { role, address: c.opened.address, profileId: c.opened.profileId, identity: c.opened.identity, simulated: c.simulated };
+    });
+  }
+
+  private async connectRole(request: ConnectRequest, simulated: boolean): Promise<InstrumentInfo> {
+    const previous = this.instruments.get(request.role);
+    if (previous) {
+      this.instruments.delete(request.role);
+      await previous.opened.close().catch(() => undefined);
+    }
+    if (request.role === 'generator') this.requireMaxStimulus();
+    const opened = await openInstrument(request.address, request.role, request.profileId, {
+      maxStimulusVpp: this.maxStimulusVpp,
+      traffic: this.traffic,
+      profileFolder: this.options.profileFolder,
+    });
+    const isSimulated = simulated || /\(simulated\)/i.test(opened.identity.manufacturer);
+    this.instruments.set(request.role, { opened: opened as OpenedInstrument, request, simulated: isSimulated });
+    this.store.recordInstrument({ role: request.role, identity: opened.identity, address: opened.address });
+    return { role: request.role, address: opened.address, profileId: opened.profileId, identity: opened.identity, simulated: isSimulated };
+  }
+
+  private async startVirtualBenchForDesign(design: Design, name: string, key: string): Promise<void> {
+    if (this.active.size > 0) throw new UserError('the virtual bench cannot change during a sweep', 'Pause or stop the running sweep first.');
+    for (const role of ROLES) {
+      const connected = this.instruments.get(role);
+      if (connected) {
+        this.instruments.delete(role);
+        await connected.opened.close().catch(() => undefined);
+      }
+    }
+    await this.virtual?.stop();
+    this.virtual = undefined;
+    const handle = await startVirtualBenchFor(design, this.options.virtualBench ?? {});
+    this.virtual = { ...handle, designName: name, key };
+    const profiles: Record<InstrumentRole, string> = { generator: 'scpi-generator', meter: 'scpi-meter', scope: 'scpi-scope' };
+    for (const role of ROLES) await this.connectRole({ role, address: handle.addresses[role], profileId: profiles[role] }, true);
+    this.events.emit('bench', await this.benchStatus());
+  }
+
+  private planInput(request: SweepRequest, maxStimulusVpp: number): PlanInput {
+    const build = this.store.getBuild(request.buildId);
+    const design = buildDesign(this.store.getDesign(build.designId), build);
+    return this.planInputFor(request, maxStimulusVpp, design);
+  }
+
+  private planInputFor(request: SweepRequest, maxStimulusVpp: number, design: Design): PlanInput {
+    const generator = this.instruments.get('generator')?.opened.control as SweepInstruments['generator'] | undefined;
+    const usesMeter = request.kind === 'dc' || request.measurement === 'meter';
+    return {
+      request,
+      maxStimulusVpp,
+      instruments: {
+        generator: generator ? { ...generator.limits, minAmplitudeVpp: 0 } : genericGeneratorLimits(),
+        instrumentSettleS: this.options.instrumentSettleS ?? 0.01,
+        minIntegrationS: usesMeter ? (this.options.meterIntegrationS ?? 0.1) : 0,
+      },
+      theory: planTheoryFor(design),
+    };
+  }
+
+  private currentInstruments(): SweepInstruments {
+    return {
+      generator: this.instruments.get('generator')!.opened.control as SweepInstruments['generator'],
+      scope: this.instruments.get('scope')?.opened.control as SweepInstruments['scope'],
+      meter: this.instruments.get('meter')?.opened.control as SweepInstruments['meter'],
+    };
+  }
+
+  /** Re-opens every connected role at its address (after a timeout or a pulled link). */
+  private async reconnectAll(): Promise<SweepInstruments> {
+    for (const role of ROLES) {
+      const connected = this.instruments.get(role);
+      if (connected) await this.connectRole(connected.request, connected.simulated);
+    }
+    return this.currentInstruments();
+  }
+
+  private launch(runId: number): void {
+    const run = this.store.getRun(runId);
+    const design = designForRun(this.store, run);
+    const request = run.request;
+    const maxStimulusVpp = this.requireMaxStimulus();
+    const clock = this.clock;
+    const averages = request.averages;
+    const plannedSteps: StepSetting[] = run.plan.steps.map((s) => ({ step: s.index, stimulus: s.stimulus, amplitudeVpp: s.amplitudeVpp, settleS: s.settleS, integrateS: s.integrateS, averages, refinement: false }));
+    const planInput = this.planInputFor(request, maxStimulusVpp, design);
+    const maxRefinement = this.options.maxRefinementPoints ?? 8;
+    const ideal = request.kind === 'ac' ? planInput.theory : undefined;
+
+    const nextExtraSteps = request.kind === 'ac' && request.refine
+      ? (points: PointColumns, firstStep: number): StepSetting[] => {
+          const refinedSoFar = points.flags.filter((f) => (f & PointFlag.refinement) !== 0).length;
+          const room = maxRefinement - refinedSoFar;
+          if (room <= 0) return [];
+          const usable = points.stimulus.map((_, i) => i).filter((i) => Number.isFinite(points.gainDb[i]) && (points.flags[i] & (PointFlag.overrange | PointFlag.notANumber)) === 0);
+          const frequencyHz = usable.map((i) => points.stimulus[i]);
+          const gainDb = usable.map((i) => points.gainDb[i]);
+          const idealGainDb = idealGainAt(design, frequencyHz);
+          const wanted = refinementFrequencies({ frequencyHz, gainDb, idealGainDb }).slice(0, room);
+          if (wanted.length === 0) return [];
+          const extra = planStepsAt(Float64Array.from(wanted), planInput).columns;
+          return wanted.map((stimulus, k) => ({ step: firstStep + k, stimulus, amplitudeVpp: extra.amplitudeVpp[k], settleS: extra.settleS[k], integrateS: extra.integrateS[k], averages, refinement: true }));
+        }
+      : undefined;
+
+    const measurer = this.measurerFor(run, clock, ideal?.gainRatioAt);
+    const control = new RunControl();
+    let first = true;
+    const finished = runSweep({
+      store: this.store,
+      runId,
+      clock,
+      control,
+      measurer,
+      plannedSteps,
+      nextExtraSteps,
+      giveUpAfterS: this.options.giveUpAfterS ?? 120,
+      emit: (event, payload) => this.events.emit(event, payload),
+      connectInstruments: async () => {
+        if (first) {
+          first = false;
+          return this.currentInstruments();
+        }
+        return this.reconnectAll();
+      },
+    }).finally(() => {
+      this.active.delete(runId);
+      this.finalize(runId);
+    });
+    // The caller learns the outcome through waitForRun/events; an unobserved rejection must not crash the process.
+    finished.catch(() => undefined);
+    this.active.set(runId, { control, finished });
+  }
+
+  private measurerFor(run: StoredRun, clock: BenchClock, gainRatioAt: ((f: number) => number) | undefined): StepMeasurer {
+    if (run.kind === 'dc') return dcMeasurer({ clock });
+    if (run.request.measurement === 'meter') {
+      const calibration = run.request.through ? undefined : this.store.latestCalibration(this.benchKey());
+      if (calibration) this.logRunEvent(run.id, 'info', `through-calibration ${calibration.id} of ${calibration.createdAt} applied`);
+      else if (!run.request.through) this.logRunEvent(run.id, 'warning', 'no through-calibration for this bench: gains include the generator\'s and meter\'s own response');
+      return meterMeasurer({ clock, calibration });
+    }
+    return scopeMeasurer({ clock, expectedGainRatioAt: gainRatioAt ?? (() => 1) });
+  }
+
+  /** Stable key of the generator + meter pair a through-calibration belongs to. */
+  private benchKey(): string {
+    return (['generator', 'meter'] as const).map((role) => {
+      const c = this.instruments.get(role);
+      return c ? `${role}=${identityKey(c.opened.identity)}` : `${role}=none`;
+    }).join(';');
+  }
+
+  /** Figures and verdict stored with the run; a through-calibration run becomes the bench's calibration. */
+  private finalize(runId: number): void {
+    try {
+      const run = this.store.getRun(runId);
+      const points = this.store.loadPoints(runId);
+      if (points.step.length === 0) return;
+      const analysis = analyzeRun(this.store, run, points);
+      this.store.setRunResults(runId, analysis.figures, analysis.verdict);
+      if (run.request.through && run.status === 'done') {
+        const calibration = this.store.saveCalibration({
+          benchKey: this.benchKey(), bench: run.bench, frequencyHz: points.stimulus, gainDb: points.gainDb,
+          phaseDeg: points.phaseDeg.map((p) => (Number.isFinite(p) ? p : 0)), notes: `through-calibration from run ${runId}`,
+        });
+        this.logRunEvent(runId, 'info', `stored as through-calibration ${calibration.id} for this bench`);
+      }
+    } catch (error) {
+      this.logRunEvent(runId, 'error', `analysis failed: ${(error as Error).message}`);
+    }
+  }
+
+  private logRunEvent(runId: number, level: 'info' | 'warning' | 'error', message: string): void {
+    const event = this.store.appendEvent(runId, level, message);
+    this.events.emit('runEvent', { runId, ...event });
+  }
+}
+
+function idealGainAt(design: Design, frequencyHz: number[]): number[] {
+  if (frequencyHz.length === 0) return [];
+  return Array.from(solveIdeal(design, frequencyHz));
+}
+
+function solveIdeal(design: Design, frequencyHz: number[]): Float64Array {
+  return solveAc(design, Float64Array.from(frequencyHz)).idealGainDb;
+}

@@ -1,0 +1,51 @@
+/**
+ * The service's side of the virtual bench (app/sim): started on 127.0.0.1
+ * (ephemeral ports) or on pseudo-terminals, sharing one scaled clock with the
+ * sweep runner so settling and integration run `timeScale` times faster than
+ * real time on both sides alike. Always simulated, and labelled so.
+ */
+import type { Design } from '../circuit/types';
+import { scaledClock, type BenchClock } from '../bench/clock';
+import type { InstrumentRole } from './contract';
+import { startVirtualBench, type SimFault } from '../sim';
+
+export interface VirtualBenchSettings {
+  /** Bench seconds per wall-clock second (1 = real time). */
+  timeScale: number;
+  /** Output noise, volts RMS. */
+  noiseVrms: number;
+  /** Extra delay per reply (wall seconds): a realistic link. */
+  latencyS: number;
+  seed: number;
+  /** TCP on 127.0.0.1 (default) or pseudo-terminals (serial path). */
+  link: 'tcp' | 'pty';
+}
+
+export interface VirtualBenchHandle {
+  addresses: Record<InstrumentRole, string>;
+  clock: BenchClock;
+  /** Sets (or with null clears) a fault on one instrument or all of them. */
+  setFault(role: InstrumentRole | 'all', fault: SimFault | null): Promise<void>;
+  stop(): Promise<void>;
+}
+
+const DEFAULTS: VirtualBenchSettings = { timeScale: 1, noiseVrms: 1e-4, latencyS: 0, seed: 1, link: 'tcp' };
+
+export async function startVirtualBenchFor(design: Design, settings: Partial<VirtualBenchSettings>): Promise<VirtualBenchHandle> {
+  const chosen = { ...DEFAULTS, ...settings };
+  const clock = scaledClock(chosen.timeScale);
+  const bench = await startVirtualBench({
+    design,
+    clock,
+    ...(chosen.link === 'pty' ? { pty: true as const } : { tcpPort: 0 }),
+    noiseVrms: chosen.noiseVrms,
+    latencyS: chosen.latencyS,
+    seed: chosen.seed,
+  });
+  return {
+    addresses: bench.addresses,
+    clock,
+    setFault: (role, fault) => bench.setFault(role, fault),
+    stop: () => bench.stop(),
+  };
+}

@@ -1,0 +1,43 @@
+/** Plain-text summaries of runs for the terminal. */
+import type { RunDetail, RunFigures, RunSummary } from '../../service/contract';
+import { formatEngineering } from '../../units';
+
+export function figureLines(figures: RunFigures, theory?: { gainLimitHz?: number; minus3dbHz: number[] }): string[] {
+  const lines: string[] = [];
+  const hz = (v: number | undefined) => (v === undefined ? '—' : formatEngineering(v, 'Hz'));
+  if (figures.passbandGainDb !== undefined) lines.push(`pass-band gain      ${figures.passbandGainDb.toFixed(3)} dB`);
+  lines.push(`−3 dB points        ${figures.minus3dbHz.length ? figures.minus3dbHz.map(hz).join(', ') : '—'}${theory ? `   (theory ${theory.minus3dbHz.length ? theory.minus3dbHz.map(hz).join(', ') : '—'})` : ''}`);
+  if (figures.rolloffDbPerDecade !== undefined) lines.push(`roll-off            ${figures.rolloffDbPerDecade.toFixed(1)} dB/decade`);
+  lines.push(`gain-limit point    ${hz(figures.gainLimitHz)}${theory ? `   (theory ${hz(theory.gainLimitHz)})` : ''}`);
+  if (figures.gbwEstimateHz !== undefined) {
+    lines.push(`GBW estimate        ${hz(figures.gbwEstimateHz)}${figures.gbwUncertaintyHz !== undefined ? ` ± ${hz(figures.gbwUncertaintyHz)} (1σ)` : ''}`);
+  }
+  if (figures.maxDeviationDb !== undefined) lines.push(`largest deviation   ${figures.maxDeviationDb.toFixed(3)} dB from theory (pass band)`);
+  if (figures.logFit) {
+    const f = figures.logFit;
+    lines.push(`log fit n           ${f.n.toPrecision(4)}  [${f.nCi.map((v) => v.toPrecision(4)).join(', ')}] (95 %)`);
+    lines.push(`log fit IS          ${formatEngineering(f.isA, 'A')}  [${f.isCi.map((v) => formatEngineering(v, 'A')).join(', ')}]`);
+    lines.push(`log fit RS          ${formatEngineering(f.rsOhm, 'Ω')}  [${f.rsCi.map((v) => formatEngineering(v, 'Ω')).join(', ')}]`);
+  }
+  return lines;
+}
+
+export function runDetailText(detail: RunDetail): string {
+  const lines = [
+    `run ${detail.id}  ${detail.kind.toUpperCase()}  ${detail.status}${detail.simulated ? '  (SIMULATED: virtual bench)' : ''}`,
+    `build "${detail.buildLabel}" of design "${detail.designName}"`,
+    `points ${detail.pointCount}/${detail.plannedCount} planned   started ${detail.startedAt ?? '—'}   ended ${detail.endedAt ?? '—'}`,
+    '',
+    ...figureLines(detail.figures, detail.kind === 'ac' ? { gainLimitHz: detail.theoryGainLimitHz, minus3dbHz: detail.theoryMinus3dbHz } : undefined),
+  ];
+  if (detail.verdict) lines.push('', `verdict: ${detail.verdict.pass ? 'PASS' : 'FAIL'}`, ...detail.verdict.reasons.map((r) => `  ${r}`));
+  return lines.join('\n') + '\n';
+}
+
+export function runTable(runs: RunSummary[]): string {
+  if (runs.length === 0) return 'No runs.\n';
+  const rows = runs.map((r) => [String(r.id), r.kind, r.status, `${r.pointCount}/${r.plannedCount}`, r.buildLabel, r.designName, r.startedAt ?? '—', r.simulated ? 'simulated' : '']);
+  const header = ['run', 'kind', 'status', 'points', 'build', 'design', 'started', ''];
+  const widths = header.map((h, c) => Math.max(h.length, ...rows.map((row) => row[c].length)));
+  return [header, ...rows].map((row) => row.map((cell, c) => cell.padEnd(widths[c])).join('  ').trimEnd()).join('\n') + '\n';
+}

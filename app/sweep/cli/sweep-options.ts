@@ -1,0 +1,147 @@
+/**
+ * Options shared by the commands that sweep (sweep, schedule, resume, demo):
+ * the bench, the plan and the database, and the one way to turn them into a
+ * service call. Every command goes through the service, like the window does.
+ */
+import { readFileSync } from 'node:fs';
+import type { OptionSpec, ParsedArgs } from '../../cli/args';
+import { optionFlag, optionNumber, optionString } from '../../cli/args';
+import { ValidationError } from '../../errors';
+import { RolloffService } from '../../service/service';
+import type { SweepRequest, VerdictLimits } from '../../service/contract';
+import { resolveDatabasePath } from '../../store';
+import { parseEngineering } from '../../units';
+
+export const DATABASE_OPTION: OptionSpec = { name: 'db', kind: 'string', placeholder: 'PATH', description: 'database file (default: ROLLOFF_DB or the user data folder)' };
+
+export const BENCH_OPTIONS: OptionSpec[] = [
+  { name: 'virtual', kind: 'flag', description: 'use the virtual bench (simulated instruments on 127.0.0.1) with the build\'s circuit' },
+  { name: 'time-scale', kind: 'number', placeholder: 'X', description: 'virtual bench: bench seconds per wall second', defaultValue: 1 },
+  { name: 'noise', kind: 'number', placeholder: 'VRMS', description: 'virtual bench: output noise in volts RMS', defaultValue: 1e-4 },
+  { name: 'generator', kind: 'string', placeholder: 'ADDRESS', description: 'generator address, e.g. tcp://HOST:5025 or serial:///dev/ttyUSB0?baud=9600' },
+  { name: 'scope', kind: 'string', placeholder: 'ADDRESS', description: 'scope address (scope measurement)' },
+  { name: 'meter', kind: 'string', placeholder: 'ADDRESS', description: 'meter address (meter or DC measurement)' },
+  { name: 'generator-profile', kind: 'string', placeholder: 'ID', description: 'generator profile', defaultValue: 'scpi-generator' },
+  { name: 'scope-profile', kind: 'string', placeholder: 'ID', description: 'scope profile', defaultValue: 'scpi-scope' },
+  { name: 'meter-profile', kind: 'string', placeholder: 'ID', description: 'meter profile', defaultValue: 'scpi-meter' },
+  { name: 'max-amplitude', kind: 'number', placeholder: 'VPP', description: 'largest generator output ever used, peak-to-peak (required once; later runs reuse the last one recorded)' },
+  DATABASE_OPTION,
+];
+
+export const PLAN_OPTIONS: OptionSpec[] = [
+  { name: 'dc', kind: 'flag', description: 'DC transfer sweep (log stage) instead of a frequency sweep' },
+  { name: 'from', kind: 'number', placeholder: 'HZ|V', description: 'start frequency (or DC level)', defaultValue: 10 },
+  { name: 'to', kind: 'number', placeholder: 'HZ|V', description: 'end frequency (or DC level)', defaultValue: 100_000 },
+  { name: 'per-decade', kind: 'integer', placeholder: 'N', description: 'points per decade', defaultValue: 10 },
+  { name: 'linear', kind: 'flag', description: 'linear spacing (same number of points)' },
+  { name: 'amplitude', kind: 'number', placeholder: 'VPP', description: 'fixed stimulus amplitude (default: automatic per frequency from theory)' },
+  { name: 'target-output', kind: 'number', placeholder: 'VPP', description: 'automatic amplitude: aim for this output' },
+  { name: 'measure', kind: 'string', placeholder: 'scope|meter', description: 'how to measure AC points', defaultValue: 'scope' },
+  { name: 'through', kind: 'flag', description: 'through-calibration run (meter measures the generator directly; stage bypassed)' },
+  { name: 'cycles', kind: 'integer', placeholder: 'N', description: 'minimum whole cycles per acquisition', defaultValue: 5 },
+  { name: 'averages', kind: 'integer', placeholder: 'N', description: 'acquisitions per point (outliers rejected)', defaultValue: 1 },
+  { name: 'no-refine', kind: 'flag', description: 'skip the extra points near the −3 dB and gain-limit points' },
+  { name: 'max-deviation', kind: 'number', placeholder: 'DB', description: 'verdict: largest allowed |measured − theory| in the pass band' },
+  { name: 'corner-tolerance', kind: 'number', placeholder: 'FRACTION', description: 'verdict: allowed relative error of each −3 dB point, e.g. 0.05' },
+  { name: 'operator', kind: 'string', placeholder: 'NAME', description: 'who ran it (recorded)', defaultValue: '' },
+  { name: 'notes', kind: 'string', placeholder: 'TEXT', description: 'notes recorded with the run', defaultValue: '' },
+];
+
+export const BUILD_OPTIONS: OptionSpec[] = [
+  { name: 'build', kind: 'integer', placeholder: 'ID', description: 'stored build to sweep' },
+  { name: 'design', kind: 'string', placeholder: 'FILE', description: 'design file: stores it and a new build of it' },
+  { name: 'label', kind: 'string', placeholder: 'TEXT', description: 'label of the new build (with --design)', defaultValue: 'build' },
+  { name: 'actual', kind: 'string', placeholder: 'PART=VALUE', repeatable: true, description: 'measured part value of the new build, e.g. C1=16.2n' },
+];
+
+/** Opens the service on --db; the virtual bench options apply when --virtual is used. */
+export function openService(parsed: ParsedArgs, overrides: { timeScale?: number; latencyS?: number } = {}): RolloffService {
+  const timeScale = overrides.timeScale ?? optionNumber(parsed, 'time-scale') ?? 1;
+  if (!(timeScale > 0)) throw new ValidationError('--time-scale', `${timeScale} is not a positive number`);
+  return new RolloffService({
+    databasePath: resolveDatabasePath(optionString(parsed, 'db')),
+    maxStimulusVpp: optionNumber(parsed, 'max-amplitude'),
+    virtualBench: { timeScale, noiseVrms: optionNumber(parsed, 'noise') ?? 1e-4, latencyS: overrides.latencyS ?? 0 },
+  });
+}
+
+/** "C1=16.2n" pairs → part values in SI units. */
+export function actualValuesFrom(parsed: ParsedArgs): Record<string, number> {
+  const values: Record<string, number> = {};
+  for (const entry of (parsed.options.actual as string[] | undefined) ?? []) {
+    const at = entry.indexOf('=');
+    if (at <= 0) throw new ValidationError(`--actual ${entry}`, 'is not PART=VALUE', 'Example: --actual C1=16.2n --actual R2=10.1k');
+    values[entry.slice(0, at).trim()] = parseEngineering(entry.slice(at + 1), `--actual ${entry}`);
+  }
+  return values;
+}
+
+/** The build to sweep: --build ID, or a new build of --design FILE. */
+export async function resolveBuildId(service: RolloffService, parsed: ParsedArgs): Promise<number> {
+  const buildId = optionNumber(parsed, 'build');
+  const designFile = optionString(parsed, 'design');
+  if (buildId !== undefined && designFile !== undefined) throw new ValidationError('--build/--design', 'give one, not both');
+  if (buildId !== undefined) return service.store.getBuild(buildId).id;
+  if (designFile === undefined) throw new ValidationError('--build', 'is missing', 'Give --build ID (see rolloff build list) or --design FILE.json [--label TEXT] [--actual PART=VALUE …].');
+  const design = readJsonFile(designFile, '--design');
+  const saved = await service.saveDesign(design);
+  const build = await service.createBuild({ designId: saved.id, label: optionString(parsed, 'label') ?? 'build', notes: '', actualValues: actualValuesFrom(parsed) });
+  return build.id;
+}
+
+export function readJsonFile(path: string, where: string): unknown {
+  let text: string;
+  try {
+    text = readFileSync(path, 'utf8');
+  } catch (error) {
+    throw new ValidationError(where, `cannot read ${path}: ${(error as NodeJS.ErrnoException).code ?? (error as Error).message}`, 'Check the path.');
+  }
+  try {
+    return JSON.parse(text);
+  } catch (error) {
+    throw new ValidationError(`${where} ${path}`, `is not valid JSON (${(error as Error).message})`, 'Fix the file, or make one with rolloff template.');
+  }
+}
+
+/** Connects what the options name: the virtual bench of the build, or the given addresses. */
+export async function connectBench(service: RolloffService, parsed: ParsedArgs, buildId: number): Promise<void> {
+  if (optionFlag(parsed, 'virtual')) {
+    await service.startVirtualBenchForBuild(buildId);
+    return;
+  }
+  for (const role of ['generator', 'scope', 'meter'] as const) {
+    const address = optionString(parsed, role);
+    if (address) await service.connect({ role, address, profileId: optionString(parsed, `${role}-profile`) ?? `scpi-${role}` });
+  }
+}
+
+export function requestFrom(parsed: ParsedArgs, buildId: number): SweepRequest {
+  const measure = optionString(parsed, 'measure') ?? 'scope';
+  if (measure !== 'scope' && measure !== 'meter') throw new ValidationError('--measure', `"${measure}" is not scope or meter`);
+  const through = optionFlag(parsed, 'through');
+  const fixed = optionNumber(parsed, 'amplitude');
+  const target = optionNumber(parsed, 'target-output');
+  if (fixed !== undefined && target !== undefined) throw new ValidationError('--amplitude/--target-output', 'give one, not both', '--amplitude fixes the stimulus; --target-output sets it per frequency from theory.');
+  const limits: VerdictLimits = {};
+  const maxDeviation = optionNumber(parsed, 'max-deviation');
+  const cornerTolerance = optionNumber(parsed, 'corner-tolerance');
+  if (maxDeviation !== undefined) limits.maxDeviationDb = maxDeviation;
+  if (cornerTolerance !== undefined) limits.cornerTolerance = cornerTolerance;
+  return {
+    buildId,
+    kind: optionFlag(parsed, 'dc') ? 'dc' : 'ac',
+    from: optionNumber(parsed, 'from') ?? 10,
+    to: optionNumber(parsed, 'to') ?? 100_000,
+    pointsPerDecade: optionNumber(parsed, 'per-decade') ?? 10,
+    spacing: optionFlag(parsed, 'linear') ? 'linear' : 'log',
+    amplitude: fixed !== undefined ? { mode: 'fixed', vpp: fixed } : { mode: 'auto', ...(target !== undefined ? { targetOutputVpp: target } : {}) },
+    measurement: through ? 'meter' : measure,
+    minCycles: optionNumber(parsed, 'cycles') ?? 5,
+    averages: optionNumber(parsed, 'averages') ?? 1,
+    refine: !optionFlag(parsed, 'no-refine') && !through,
+    operator: optionString(parsed, 'operator') ?? '',
+    notes: optionString(parsed, 'notes') ?? '',
+    ...(Object.keys(limits).length > 0 ? { limits } : {}),
+    ...(through ? { through: true } : {}),
+  };
+}
