@@ -5,7 +5,7 @@
  */
 
 /** First 32 bits of the fractional parts of the cube roots of the first 64 primes (FIPS 180-4 §4.2.2). */
-const ROUND_CONSTANTS = new Uint32Array([
+const ROUND_CONSTANTS = new Int32Array([
   0x428a2f98, 0x71374491, 0xb5c0fbcf, 0xe9b5dba5, 0x3956c25b, 0x59f111f1, 0x923f82a4, 0xab1c5ed5,
   0xd807aa98, 0x12835b01, 0x243185be, 0x550c7dc3, 0x72be5d74, 0x80deb1fe, 0x9bdc06a7, 0xc19bf174,
   0xe49b69c1, 0xefbe4786, 0x0fc19dc6, 0x240ca1cc, 0x2de92c6f, 0x4a7484aa, 0x5cb0a9dc, 0x76f988da,
@@ -35,46 +35,46 @@ export function sha256(message: Uint8Array): Uint8Array {
   view.setUint32(paddedLength - 8, Math.floor(bitLength / 2 ** 32));
   view.setUint32(paddedLength - 4, bitLength >>> 0);
 
-  const hash = INITIAL_HASH.slice();
-  const schedule = new Uint32Array(64);
+  // 32-bit words kept as signed int32 (| 0) so the engine stays in integer arithmetic.
+  const hash = Int32Array.from(INITIAL_HASH);
+  const schedule = new Int32Array(64);
   for (let blockStart = 0; blockStart < paddedLength; blockStart += 64) {
-    for (let t = 0; t < 16; t++) schedule[t] = view.getUint32(blockStart + t * 4);
+    for (let t = 0; t < 16; t++) schedule[t] = view.getInt32(blockStart + t * 4);
     for (let t = 16; t < 64; t++) {
       const w15 = schedule[t - 15];
       const w2 = schedule[t - 2];
       const sigma0 = rotateRight(w15, 7) ^ rotateRight(w15, 18) ^ (w15 >>> 3);
       const sigma1 = rotateRight(w2, 17) ^ rotateRight(w2, 19) ^ (w2 >>> 10);
-      schedule[t] = (schedule[t - 16] + sigma0 + schedule[t - 7] + sigma1) >>> 0;
+      schedule[t] = (schedule[t - 16] + sigma0 + schedule[t - 7] + sigma1) | 0;
     }
-    let [a, b, c, d, e, f, g, h] = hash;
+    let a = hash[0], b = hash[1], c = hash[2], d = hash[3], e = hash[4], f = hash[5], g = hash[6], h = hash[7];
     for (let t = 0; t < 64; t++) {
       const bigSigma1 = rotateRight(e, 6) ^ rotateRight(e, 11) ^ rotateRight(e, 25);
       const choose = (e & f) ^ (~e & g);
-      const temp1 = (h + bigSigma1 + choose + ROUND_CONSTANTS[t] + schedule[t]) >>> 0;
+      const temp1 = (h + bigSigma1 + choose + ROUND_CONSTANTS[t] + schedule[t]) | 0;
       const bigSigma0 = rotateRight(a, 2) ^ rotateRight(a, 13) ^ rotateRight(a, 22);
       const majority = (a & b) ^ (a & c) ^ (b & c);
-      const temp2 = (bigSigma0 + majority) >>> 0;
       h = g;
       g = f;
       f = e;
-      e = (d + temp1) >>> 0;
+      e = (d + temp1) | 0;
       d = c;
       c = b;
       b = a;
-      a = (temp1 + temp2) >>> 0;
+      a = (temp1 + bigSigma0 + majority) | 0;
     }
-    hash[0] = (hash[0] + a) >>> 0;
-    hash[1] = (hash[1] + b) >>> 0;
-    hash[2] = (hash[2] + c) >>> 0;
-    hash[3] = (hash[3] + d) >>> 0;
-    hash[4] = (hash[4] + e) >>> 0;
-    hash[5] = (hash[5] + f) >>> 0;
-    hash[6] = (hash[6] + g) >>> 0;
-    hash[7] = (hash[7] + h) >>> 0;
+    hash[0] += a;
+    hash[1] += b;
+    hash[2] += c;
+    hash[3] += d;
+    hash[4] += e;
+    hash[5] += f;
+    hash[6] += g;
+    hash[7] += h;
   }
   const digest = new Uint8Array(32);
   const digestView = new DataView(digest.buffer);
-  hash.forEach((word, i) => digestView.setUint32(i * 4, word));
+  hash.forEach((word, i) => digestView.setInt32(i * 4, word));
   return digest;
 }
 

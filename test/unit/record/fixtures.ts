@@ -112,6 +112,8 @@ export interface AcFixtureOptions {
   noiseDb?: number;
   /** Index of a point to mark overrange with a non-finite reading. */
   overrangeIndex?: number;
+  /** Measured points per decade over 10 Hz … 1 MHz (default 8, i.e. 41 points). */
+  pointsPerDecade?: number;
 }
 
 /** A complete AC RunDetail: actual-value theory plus noise as "measured", analysed by app/analysis. */
@@ -125,7 +127,7 @@ export function acRunDetail(options: AcFixtureOptions = {}): RunDetail {
   };
   const noise = seededNoise(options.seed ?? 7);
   const noiseDb = options.noiseDb ?? 0.05;
-  const frequencies = Array.from(logGrid(10, 1e6, 8));
+  const frequencies = Array.from(logGrid(10, 1e6, options.pointsPerDecade ?? 8));
   const theoryGrid = Array.from(logGrid(10, 1e6, 40));
   const gainOf = (values: StageValues, f: number, ideal = false) => {
     const [re, im] = invertingLowPass(values, f, ideal);

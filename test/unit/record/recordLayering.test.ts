@@ -1,0 +1,40 @@
+/**
+ * Most of app/record must run in the window as well as in Node (the Record view
+ * can build HTML, CSV and JSON records and check digests without the service).
+ * Only the PDF writer and the entry points that reach it may use Node or packages.
+ */
+import { readdirSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+
+const RECORD_DIR = new URL('../../../app/record/', import.meta.url).pathname;
+/** Files allowed to need Node or npm packages: PDF writing and what imports it. */
+const NODE_SIDE = new Set(['pdfFonts.ts', 'pdfPlot.ts', 'pdfRecord.ts', 'renderRecord.ts', 'index.ts']);
+const PURE_OUTSIDE = ['../errors', '../units', '../service/contract', '../service/safety', '../service/version'];
+
+function importsOf(source: string): string[] {
+  return [...source.matchAll(/(?:^|\n)\s*(?:import|export)\s[^'"]*?from\s*['"]([^'"]+)['"]/g)].map((m) => m[1]);
+}
+
+describe('app/record layering', () => {
+  const files = readdirSync(RECORD_DIR).filter((f) => f.endsWith('.ts'));
+
+  it('finds the record sources', () => {
+    expect(files.length).toBeGreaterThan(15);
+  });
+
+  it('pure record files import only other pure record files and pure modules', () => {
+    const problems: string[] = [];
+    for (const file of files.filter((f) => !NODE_SIDE.has(f))) {
+      for (const specifier of importsOf(readFileSync(join(RECORD_DIR, file), 'utf8'))) {
+        const local = specifier.startsWith('./') && !NODE_SIDE.has(specifier.slice(2) + '.ts');
+        if (!local && !PURE_OUTSIDE.includes(specifier)) problems.push(`${file} imports ${specifier}`);
+      }
+    }
+    expect(problems).toEqual([]);
+  });
+
+  it('the check sees the Node side (guards against a vacuous pass)', () => {
+    expect(importsOf(readFileSync(join(RECORD_DIR, 'pdfRecord.ts'), 'utf8'))).toContain('pdfkit');
+  });
+});
