@@ -1,0 +1,24 @@
+/** Shared set-up for the sweep integration tests: a temp database and designs from the templates. */
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { makeDesignFromTemplate } from '../../../app/circuit/templates';
+import type { SweepRequest } from '../../../app/service/contract';
+
+export function tempFolder(): { path: string; remove(): void } {
+  const path = mkdtempSync(join(tmpdir(), 'rolloff-sweep-'));
+  return { path, remove: () => rmSync(path, { recursive: true, force: true }) };
+}
+
+/** Inverting stage, gain −RF/RN = −100, single-pole op-amp A0 = 1e5, GBW = 1 MHz (template defaults otherwise). */
+export function invertingGain100(): unknown {
+  return makeDesignFromTemplate('inverting-gain', { rn: 1e3, rf: 100e3, gbw: 1e6, openLoopGain: 1e5 });
+}
+
+export function sweepRequest(buildId: number, overrides: Partial<SweepRequest> = {}): SweepRequest {
+  return {
+    buildId, kind: 'ac', from: 100, to: 1e6, pointsPerDecade: 5, spacing: 'log',
+    amplitude: { mode: 'auto' }, measurement: 'scope', minCycles: 5, averages: 1, refine: true,
+    operator: 'integration test', notes: '', ...overrides,
+  };
+}

@@ -1,0 +1,89 @@
+/**
+ * End to end over real TCP on 127.0.0.1: the service drives the virtual bench
+ * (app/sim) through the SCPI session, the sweep runner stores every point, the
+ * analysis finds the gain-limit point. Expected values come from the theory
+ * engine (app/circuit solveAc, checked against ngspice in its own tests) and
+ * from the DESIGN.md formula for the loop-gain-1 point.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { join } from 'node:path';
+import { RolloffService } from '../../../app/service/service';
+import type { RunDetail } from '../../../app/service/contract';
+import { PointFlag } from '../../../app/service/contract';
+import { invertingGain100, sweepRequest, tempFolder } from './helpers';
+
+describe('sweep on the virtual bench over TCP', () => {
+  const folder = tempFolder();
+  let service: RolloffService;
+  let detail: RunDetail;
+  const pointsSeen: number[] = [];
+
+  beforeAll(async () => {
+    service = new RolloffService({ databasePath: join(folder.path, 'bench.sqlite'), maxStimulusVpp: 1, virtualBench: { timeScale: 50, noiseVrms: 1e-4, link: 'tcp' } });
+    service.on('point', (p) => pointsSeen.push(p.index));
+    const design = await service.saveDesign(invertingGain100());
+    const build = await service.createBuild({ designId: design.id, label: 'gain 100', notes: '', actualValues: {} });
+    await service.startVirtualBenchForBuild(build.id);
+    const run = await service.startRun(sweepRequest(build.id));
+    expect(await service.waitForRun(run.id)).toBe('done');
+    detail = await service.getRun(run.id);
+  });
+
+  afterAll(async () => {
+    await service.close();
+    folder.remove();
+  });
+
+  it('answers on 127.0.0.1 only and is labelled simulated', async () => {
+    const status = await service.benchStatus();
+    for (const address of Object.values(status.virtualBench!.addresses)) expect(address).toMatch(/^tcp:\/\/127\.0\.0\.1:\d+$/);
+    expect(detail.simulated).toBe(true);
+    expect(detail.bench.every((i) => i.simulated)).toBe(true);
+  });
+
+  it('stores every planned point once, in step order, and emits each as it is measured', () => {
+    expect(detail.points.step).toEqual(detail.points.step.map((_, i) => i));
+    expect(detail.points.step.length).toBeGreaterThanOrEqual(detail.plannedCount);
+    expect(pointsSeen).toEqual(detail.points.step);
+  });
+
+  it('measured gain agrees with theory within 3× its stated standard uncertainty plus the 0.1 % settling residual the plan allows', () => {
+    // Theory at each measured frequency, from the same RunDetail's theory columns (solveAc of the build).
+    const theoryAt = new Map(detail.theory.frequencyHz.map((f, i) => [f, detail.theory.gainDb[i]]));
+    // e^−6.9 ≈ 0.1 % residual transient (plan settle rule) → 20·log10(1.001) ≈ 0.0087 dB.
+    const settleResidualDb = 20 * Math.log10(1.001);
+    let compared = 0;
+    detail.points.stimulus.forEach((f, i) => {
+      if (detail.points.flags[i] & PointFlag.distorted) return;
+      const deltaDb = Math.abs(detail.points.gainDb[i] - theoryAt.get(f)!);
+      expect(deltaDb, `at ${f} Hz`).toBeLessThanOrEqual(3 * detail.points.gainUncertaintyDb[i] + settleResidualDb);
+      compared++;
+    });
+    expect(compared).toBeGreaterThan(15);
+  });
+
+  it('finds the gain-limit point within 10 % of theory (|A| = noise gain 101: ≈ GBW/101 ≈ 9.9 kHz, DESIGN.md)', () => {
+    const measured = detail.figures.gainLimitHz!;
+    const theory = detail.theoryGainLimitHz!;
+    expect(theory).toBeGreaterThan(9.0e3);
+    expect(theory).toBeLessThan(10.5e3);
+    expect(Math.abs(measured / theory - 1)).toBeLessThan(0.1);
+  });
+
+  it('estimates GBW within 10 % of the model\'s 1 MHz from the single-pole fit', () => {
+    expect(Math.abs(detail.figures.gbwEstimateHz! / 1e6 - 1)).toBeLessThan(0.1);
+  });
+
+  it('refinement added points near the measured −3 dB / gain-limit crossing', () => {
+    const refined = detail.points.stimulus.filter((_, i) => detail.points.flags[i] & PointFlag.refinement);
+    expect(refined.length).toBeGreaterThan(0);
+    const nearest = Math.min(...refined.map((f) => Math.abs(Math.log10(f / detail.figures.gainLimitHz!))));
+    expect(nearest).toBeLessThan(0.01); // within 2.3 %
+  });
+
+  it('flags points past the theory gain-limit point', () => {
+    detail.points.stimulus.forEach((f, i) => {
+      expect((detail.points.flags[i] & PointFlag.pastGainLimit) !== 0).toBe(f > detail.theoryGainLimitHz!);
+    });
+  });
+});
