@@ -159,7 +159,11 @@ export class Store {
     try {
       // Reads only until the file is known to be sound and not newer than us.
       const fileVersion = schemaVersionOf(db);
-      db.prepare('SELECT count(*) FROM sqlite_master').get();
+      const { tableCount } = db.prepare("SELECT count(*) AS tableCount FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%'").get() as { tableCount: number };
+      if (fileVersion === 0 && tableCount > 0) {
+        // Tables but no Rolloff schema version: another program's database, which migrating would alter.
+        throw new StoreDamagedError(path, 'a SQLite database of another program, not a Rolloff database');
+      }
       if (fileVersion > knownVersion) {
         throw new StoreVersionError(path, fileVersion, knownVersion, writerAppVersion(db), SOFTWARE_VERSION);
       }

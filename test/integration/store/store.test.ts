@@ -222,6 +222,16 @@ describe('opening and migrations', () => {
     expect(sha256(path)).toBe(before);
   });
 
+  it('refuses another program\'s SQLite database instead of adding tables to it', () => {
+    const path = join(folder, 'other.sqlite');
+    const raw = new Database(path);
+    raw.exec('CREATE TABLE recipes (id INTEGER PRIMARY KEY, title TEXT)');
+    raw.close();
+    const before = sha256(path);
+    expect(() => Store.open(path)).toThrow(/another program/);
+    expect(sha256(path)).toBe(before);
+  });
+
   it('opens read-only without writing, and refuses writes and missing files clearly', () => {
     const store = openStore('ro.sqlite');
     seedRun(store);
