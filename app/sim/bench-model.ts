@@ -151,7 +151,7 @@ function slewLimitedPeriod(peakV: number, phaseRad: number, frequencyHz: number,
   const maxStepV = slewRate * stepS;
   const table = new Float64Array(SLEW_TABLE_POINTS);
   let y = 0;
-  const warmupPeriods = 4;
+  const warmupPeriods = 16; // the start-up offset dies out within ~8 periods
   for (let period = 0; period <= warmupPeriods; period++) {
     for (let i = 0; i < SLEW_TABLE_POINTS; i++) {
       const target = peakV * Math.sin((2 * Math.PI * i) / SLEW_TABLE_POINTS + phaseRad);
@@ -159,5 +159,9 @@ function slewLimitedPeriod(peakV: number, phaseRad: number, frequencyHz: number,
       if (period === warmupPeriods) table[i] = y;
     }
   }
+  // Remove what is left of the start-up offset: a symmetric-slewing op-amp's AC part has zero mean.
+  let meanV = 0;
+  for (const v of table) meanV += v / SLEW_TABLE_POINTS;
+  for (let i = 0; i < SLEW_TABLE_POINTS; i++) table[i] -= meanV;
   return table;
 }

@@ -1,0 +1,100 @@
+/**
+ * The user's maximum stimulus is enforced by the GeneratorControl before any
+ * byte is sent. The figure compared is 2·(Vpp/2 + |offset|) × (2 for a 50 Ω
+ * load setting, else 1): our documented rule (app/bench/stimulus.ts), built
+ * on the divider formula for a 50 Ω source (see stimulus.test.ts).
+ */
+import { describe, expect, it } from 'vitest';
+import { memoryTransportPair } from '../../../app/scpi';
+import { findProfile, openInstrument, StimulusLimitError, type GeneratorControl } from '../../../app/bench';
+import { ValidationError } from '../../../app/errors';
+
+/** A fake generator that accepts everything and records what it got. */
+async function fakeGenerator(maxStimulusVpp: number): Promise<{ control: GeneratorControl; received: string[] }> {
+  const { a, b } = memoryTransportPair('fake generator');
+  const received: string[] = [];
+  let pending = '';
+  b.onData((bytes) => {
+    pending += new TextDecoder().decode(bytes);
+    let at: number;
+    while ((at = pending.indexOf('\n')) >= 0) {
+      const line = pending.slice(0, at);
+      pending = pending.slice(at + 1);
+      received.push(line);
+      const reply = line === '*IDN?' ? 'Test,Fake generator,1,1' : line === 'SYSTem:ERRor?' ? '0,"No error"' : line.endsWith('?') ? '+1.0E+03' : undefined;
+      if (reply !== undefined) void b.write(new TextEncoder().encode(`${reply}\n`));
+    }
+  });
+  const opened = await openInstrument('memory', 'generator', findProfile('scpi-generator', 'generator'), { maxStimulusVpp, transport: a });
+  return { control: opened.control, received };
+}
+
+const settings = (received: string[]) => received.filter((line) => !line.endsWith('?'));
+
+describe('GeneratorControl stimulus limit', () => {
+  it('opens with the output off and a known load before anything else', async () => {
+    const { received } = await fakeGenerator(2);
+    const outputOff = received.indexOf('OUTPut:STATe OFF');
+    expect(outputOff).toBeGreaterThan(0);
+    expect(received.indexOf('OUTPut:LOAD INFinity')).toBeGreaterThan(outputOff);
+  });
+
+  it('sends a setting within the limit', async () => {
+    const { control, received } = await fakeGenerator(2);
+    await control.configureSine({ frequencyHz: 1000, amplitudeVpp: 1.5, offsetV: 0.25 });
+    expect(settings(received)).toEqual(expect.arrayContaining(['SOURce:FUNCtion SINusoid', 'SOURce:FREQuency 1000', 'SOURce:VOLTage 1.5', 'SOURce:VOLTage:OFFSet 0.25']));
+  });
+
+  it('refuses an amplitude above the limit with StimulusLimitError and sends nothing', async () => {
+    const { control, received } = await fakeGenerator(2);
+    const before = received.length;
+    const error = await control.configureSine({ frequencyHz: 1000, amplitudeVpp: 2.1, offsetV: 0 }).catch((e) => e);
+    expect(error).toBeInstanceOf(StimulusLimitError);
+    expect(error).toMatchObject({ requestedVpp: 2.1, maxStimulusVpp: 2 });
+    expect(received.length).toBe(before);
+  });
+
+  it('counts |offset| as peak: 1 Vpp with −0.6 V offset is 2.2 Vpp worst case', async () => {
+    const { control, received } = await fakeGenerator(2);
+    const before = received.length;
+    await expect(control.configureSine({ frequencyHz: 1000, amplitudeVpp: 1, offsetV: -0.6 })).rejects.toBeInstanceOf(StimulusLimitError);
+    expect(received.length).toBe(before);
+  });
+
+  it('refuses a DC level whose doubled magnitude exceeds the limit', async () => {
+    const { control } = await fakeGenerator(2);
+    await expect(control.configureDc(1)).resolves.toBeUndefined();
+    await expect(control.configureDc(-1.01)).rejects.toBeInstanceOf(StimulusLimitError);
+  });
+
+  it('doubles the open-circuit figure for a 50 Ω load setting, and refuses a load change that would exceed the limit', async () => {
+    const { control, received } = await fakeGenerator(2);
+    await control.configureSine({ frequencyHz: 1000, amplitudeVpp: 1.5, offsetV: 0 });
+    const before = received.length;
+    await expect(control.setLoad('50-ohm')).rejects.toBeInstanceOf(StimulusLimitError);
+    expect(received.length).toBe(before);
+    await control.configureSine({ frequencyHz: 1000, amplitudeVpp: 0.9, offsetV: 0 });
+    await control.setLoad('50-ohm');
+    await expect(control.configureSine({ frequencyHz: 1000, amplitudeVpp: 1.1, offsetV: 0 })).rejects.toBeInstanceOf(StimulusLimitError);
+  });
+
+  it('orders changes so no intermediate state exceeds the limit: shrink amplitude before growing offset', async () => {
+    const { control, received } = await fakeGenerator(2);
+    await control.configureSine({ frequencyHz: 1000, amplitudeVpp: 2, offsetV: 0 });
+    received.length = 0;
+    await control.configureSine({ frequencyHz: 1000, amplitudeVpp: 1, offsetV: 0.5 });
+    const sent = settings(received);
+    expect(sent.indexOf('SOURce:VOLTage 1')).toBeLessThan(sent.indexOf('SOURce:VOLTage:OFFSet 0.5'));
+  });
+
+  it('refuses frequencies outside the profile range, and a non-finite value, as ValidationError', async () => {
+    const { control } = await fakeGenerator(2);
+    await expect(control.configureSine({ frequencyHz: 1e9, amplitudeVpp: 1, offsetV: 0 })).rejects.toBeInstanceOf(ValidationError);
+    await expect(control.configureSine({ frequencyHz: Number.NaN, amplitudeVpp: 1, offsetV: 0 })).rejects.toBeInstanceOf(ValidationError);
+  });
+
+  it('will not open a generator without a maximum stimulus', async () => {
+    const { a } = memoryTransportPair();
+    await expect(openInstrument('memory', 'generator', 'scpi-generator', { transport: a })).rejects.toThrow(/maxStimulusVpp/);
+  });
+});

@@ -1,0 +1,126 @@
+/**
+ * Profiles: the shipped ones validate; broken ones are refused with the file
+ * and field named (common practice: validate data files at the boundary).
+ */
+import { mkdtempSync, writeFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { afterEach, describe, expect, it } from 'vitest';
+import { builtInProfiles, findProfile, loadProfiles, ProfileError, validateProfile, OPERATION_RULES } from '../../../app/bench';
+import scpiGenerator from '../../../app/bench/profiles/scpi-generator.json';
+
+const clone = <T>(value: T): T => JSON.parse(JSON.stringify(value));
+
+function refusal(json: unknown): ProfileError {
+  try {
+    validateProfile(json, 'my-profile.json');
+  } catch (error) {
+    expect(error).toBeInstanceOf(ProfileError);
+    return error as ProfileError;
+  }
+  throw new Error('expected the profile to be refused');
+}
+
+describe('shipped profiles', () => {
+  it('all validate, one per role, with every required operation', () => {
+    const profiles = builtInProfiles();
+    expect(profiles.map((p) => `${p.role}:${p.id}`).sort()).toEqual(['generator:scpi-generator', 'meter:scpi-meter', 'scope:scpi-scope']);
+    for (const profile of profiles) {
+      const required = Object.entries(OPERATION_RULES[profile.role]).filter(([, rule]) => rule.required).map(([name]) => name);
+      for (const name of required) expect(profile.operations[name], `${profile.id} ${name}`).toBeDefined();
+    }
+  });
+
+  it('carry no maker or model names: ids are generic', () => {
+    for (const profile of builtInProfiles()) expect(profile.id).toMatch(/^scpi-(generator|meter|scope)$/);
+  });
+});
+
+describe('broken profiles are refused naming the field', () => {
+  it('missing operation', () => {
+    const json = clone(scpiGenerator) as Record<string, any>;
+    delete json.operations.frequency;
+    const error = refusal(json);
+    expect(error.field).toBe('operations.frequency');
+    expect(error.message).toContain('my-profile.json');
+    expect(error.message).toContain('missing');
+  });
+
+  it('unknown placeholder in a template', () => {
+    const json = clone(scpiGenerator) as Record<string, any>;
+    json.operations.frequency = 'SOURce:FREQuency {freq}';
+    const error = refusal(json);
+    expect(error.field).toBe('operations.frequency');
+    expect(error.message).toMatch(/unknown placeholder \{freq\}.*\{frequencyHz\}/);
+  });
+
+  it('unbalanced brace', () => {
+    const json = clone(scpiGenerator) as Record<string, any>;
+    json.operations.offset = 'SOURce:VOLTage:OFFSet {offsetV';
+    expect(refusal(json).field).toBe('operations.offset');
+  });
+
+  it('a query where its reply would never be read', () => {
+    const json = clone(scpiGenerator) as Record<string, any>;
+    json.operations.outputOn = ['OUTPut ON', 'OUTPut?'];
+    expect(refusal(json).field).toBe('operations.outputOn');
+  });
+
+  it('a read operation that does not end in a query', () => {
+    const json = clone(scpiGenerator) as Record<string, any>;
+    json.operations.readFrequency = 'SOURce:FREQuency';
+    expect(refusal(json).message).toMatch(/must end with a query/);
+  });
+
+  it('unknown operation, unknown field, bad role, bad limits', () => {
+    const withUnknownOp = clone(scpiGenerator) as Record<string, any>;
+    withUnknownOp.operations.sweepTheMoon = 'X';
+    expect(refusal(withUnknownOp).field).toBe('operations.sweepTheMoon');
+    expect(refusal({ ...clone(scpiGenerator), colour: 'red' }).field).toBe('colour');
+    expect(refusal({ ...clone(scpiGenerator), role: 'toaster' }).field).toBe('role');
+    const badLimits = clone(scpiGenerator) as Record<string, any>;
+    badLimits.generator.maxFrequencyHz = 0.0001;
+    expect(refusal(badLimits).field).toBe('generator.maxFrequencyHz');
+  });
+
+  it('a scope profile with an integer encoding but no volts-per-code field', () => {
+    const scope = clone(builtInProfiles().find((p) => p.role === 'scope')!) as Record<string, any>;
+    delete scope.source;
+    delete scope.builtIn;
+    scope.scope.preambleFields = ['points', 'sampleIntervalS'];
+    expect(refusal(scope).field).toBe('scope.preambleFields');
+  });
+});
+
+describe('user profile folder', () => {
+  let folder: string | undefined;
+  afterEach(() => {
+    if (folder) rmSync(folder, { recursive: true, force: true });
+  });
+
+  it('adds valid user profiles and finds them by id and role', () => {
+    folder = mkdtempSync(join(tmpdir(), 'rolloff-profiles-'));
+    writeFileSync(join(folder, 'lab-gen.json'), JSON.stringify({ ...clone(scpiGenerator), id: 'lab-gen', description: 'our bench generator' }));
+    expect(loadProfiles(folder).map((p) => p.id)).toContain('lab-gen');
+    expect(findProfile('lab-gen', 'generator', folder).builtIn).toBe(false);
+    expect(() => findProfile('lab-gen', 'meter', folder)).toThrow(ProfileError);
+  });
+
+  it('refuses bad JSON naming the file, and a duplicate id naming both files', () => {
+    folder = mkdtempSync(join(tmpdir(), 'rolloff-profiles-'));
+    writeFileSync(join(folder, 'broken.json'), '{ "id": ');
+    expect(() => loadProfiles(folder)).toThrow(/broken\.json.*not valid JSON/);
+    rmSync(join(folder, 'broken.json'));
+    writeFileSync(join(folder, 'copy.json'), JSON.stringify(scpiGenerator));
+    expect(() => loadProfiles(folder)).toThrow(/copy\.json.*already used by built-in scpi-generator\.json/);
+  });
+
+  it('an unknown id lists the profiles that exist for the role', () => {
+    expect(() => findProfile('nope', 'meter')).toThrow(ProfileError);
+    try {
+      findProfile('nope', 'meter');
+    } catch (error) {
+      expect((error as ProfileError).hint).toContain('scpi-meter');
+    }
+  });
+});

@@ -1,0 +1,64 @@
+/**
+ * Addresses: our URL forms and VISA resource strings (VISA resource syntax,
+ * common practice: ASRLn::INSTR, TCPIP[board]::host::port::SOCKET).
+ */
+import { describe, expect, it } from 'vitest';
+import { AddressError, formatAddress, parseAddress } from '../../../app/scpi';
+
+describe('parseAddress', () => {
+  it('reads a serial URL with every setting', () => {
+    expect(parseAddress('serial:///dev/ttyUSB0?baud=19200&data=7&parity=even&stop=2&flow=rtscts')).toEqual({
+      kind: 'serial',
+      serial: { path: '/dev/ttyUSB0', baudRate: 19200, dataBits: 7, parity: 'even', stopBits: 2, flow: 'rtscts' },
+    });
+  });
+
+  it('defaults a bare serial URL to 9600 8N1 without flow control (common practice)', () => {
+    expect(parseAddress('serial:///dev/ttyACM0')).toEqual({ kind: 'serial', serial: { path: '/dev/ttyACM0', baudRate: 9600, dataBits: 8, parity: 'none', stopBits: 1, flow: 'none' } });
+  });
+
+  it('reads tcp URLs, defaulting to port 5025 (common SCPI socket port)', () => {
+    expect(parseAddress('tcp://127.0.0.1:6000')).toEqual({ kind: 'tcp', host: '127.0.0.1', port: 6000 });
+    expect(parseAddress('tcp://bench-host')).toEqual({ kind: 'tcp', host: 'bench-host', port: 5025 });
+  });
+
+  it('reads VISA serial resources by path and by number', () => {
+    expect(parseAddress('ASRL/dev/ttyUSB1::INSTR')).toMatchObject({ kind: 'serial', serial: { path: '/dev/ttyUSB1' } });
+    const numbered = parseAddress('ASRL3::INSTR');
+    expect(numbered.kind === 'serial' && numbered.serial.path).toBe(process.platform === 'win32' ? 'COM3' : '/dev/ttyS2');
+  });
+
+  it('reads VISA socket resources with and without a board number', () => {
+    expect(parseAddress('TCPIP::127.0.0.1::5025::SOCKET')).toEqual({ kind: 'tcp', host: '127.0.0.1', port: 5025 });
+    expect(parseAddress('TCPIP0::127.0.0.1::7000::SOCKET')).toEqual({ kind: 'tcp', host: '127.0.0.1', port: 7000 });
+    expect(parseAddress('tcpip0::localhost::7000::socket')).toEqual({ kind: 'tcp', host: 'localhost', port: 7000 });
+  });
+
+  it('round-trips through the canonical form', () => {
+    for (const text of ['serial:///dev/ttyUSB0?baud=115200', 'tcp://127.0.0.1:5025']) {
+      const parsed = parseAddress(text);
+      expect(parseAddress(formatAddress(parsed))).toEqual(parsed);
+    }
+  });
+
+  it.each([
+    ['', /empty/],
+    ['foo', /not a recognised/],
+    ['tcp://127.0.0.1:99999', /port/],
+    ['serial:///dev/ttyUSB0?baud=fast', /baud/],
+    ['serial:///dev/ttyUSB0?parity=sometimes', /parity/],
+    ['serial:///dev/ttyUSB0?speed=9600', /unknown serial setting/],
+    ['TCPIP::127.0.0.1::INSTR', /only raw-socket/],
+    ['ASRL0::INSTR', /start at 1/],
+  ])('refuses %j with an AddressError listing the accepted forms', (text, pattern) => {
+    let caught: unknown;
+    try {
+      parseAddress(text);
+    } catch (error) {
+      caught = error;
+    }
+    expect(caught).toBeInstanceOf(AddressError);
+    expect((caught as AddressError).message).toMatch(pattern);
+    expect((caught as AddressError).hint).toMatch(/TCPIP::HOST::5025::SOCKET/);
+  });
+});
