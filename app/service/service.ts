@@ -78,6 +78,8 @@ export class RolloffService implements RolloffApi {
   private readonly options: RolloffServiceOptions;
   private readonly traffic = new TrafficLog();
   private readonly instruments = new Map<InstrumentRole, ConnectedInstrument>();
+  /** What each role should be connected to, kept while a link is down so reconnecting knows where. */
+  private readonly wanted = new Map<InstrumentRole, { request: ConnectRequest; simulated: boolean }>();
   private readonly active = new Map<number, ActiveRun>();
   private virtual: (VirtualBenchHandle & { designName: string; key: string }) | undefined;
   private maxStimulusVpp: number | undefined;
@@ -151,6 +153,7 @@ export class RolloffService implements RolloffApi {
   }
 
   async disconnect(role: InstrumentRole): Promise<void> {
+    this.wanted.delete(role);
     const connected = this.instruments.get(role);
     if (!connected) return;
     this.instruments.delete(role);
@@ -293,7 +296,8 @@ export class RolloffService implements RolloffApi {
     if (this.maxStimulusVpp === undefined && typeof run.request.maxStimulusVpp === 'number') this.maxStimulusVpp = run.request.maxStimulusVpp;
     const maxStimulusVpp = this.requireMaxStimulus();
     if (run.simulated) {
-      if (this.virtual?.key !== `build:${run.buildId}`) await this.startVirtualBenchForBuild(run.buildId);
+      // A fresh virtual bench of the run's build: the one it ran on may be gone with the process that crashed.
+      await this.startVirtualBenchForBuild(run.buildId);
     } else {
       for (const instrument of run.bench) {
         if (!this.instruments.has(instrument.role)) await this.connectRole({ role: instrument.role, address: instrument.address, profileId: instrument.profileId }, false);
@@ -383,6 +387,7 @@ export class RolloffService implements RolloffApi {
       await previous.opened.close().catch(() => undefined);
     }
     if (request.role === 'generator') this.requireMaxStimulus();
+    this.wanted.set(request.role, { request, simulated });
     const opened = await openInstrument(request.address, request.role, request.profileId, {
       maxStimulusVpp: this.maxStimulusVpp,
       traffic: this.traffic,
@@ -397,6 +402,7 @@ export class RolloffService implements RolloffApi {
   private async startVirtualBenchForDesign(design: Design, name: string, key: string): Promise<void> {
     if (this.active.size > 0) throw new UserError('the virtual bench cannot change during a sweep', 'Pause or stop the running sweep first.');
     for (const role of ROLES) {
+      this.wanted.delete(role);
       const connected = this.instruments.get(role);
       if (connected) {
         this.instruments.delete(role);
@@ -444,8 +450,8 @@ export class RolloffService implements RolloffApi {
   /** Re-opens every connected role at its address (after a timeout or a pulled link). */
   private async reconnectAll(): Promise<SweepInstruments> {
     for (const role of ROLES) {
-      const connected = this.instruments.get(role);
-      if (connected) await this.connectRole(connected.request, connected.simulated);
+      const wanted = this.wanted.get(role);
+      if (wanted) await this.connectRole(wanted.request, wanted.simulated);
     }
     return this.currentInstruments();
   }

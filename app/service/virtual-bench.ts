@@ -26,6 +26,8 @@ export interface VirtualBenchHandle {
   clock: BenchClock;
   /** Sets (or with null clears) a fault on one instrument or all of them. */
   setFault(role: InstrumentRole | 'all', fault: SimFault | null): Promise<void>;
+  /** Whether the simulated generator's output is on (tests check it is off after a sweep). */
+  generatorOutputOn(): boolean;
   stop(): Promise<void>;
 }
 
@@ -46,6 +48,7 @@ export async function startVirtualBenchFor(design: Design, settings: Partial<Vir
     addresses: bench.addresses,
     clock,
     setFault: (role, fault) => bench.setFault(role, fault),
+    generatorOutputOn: () => bench.model.generatorOutput.on,
     stop: () => bench.stop(),
   };
 }
