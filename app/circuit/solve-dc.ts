@@ -29,11 +29,11 @@ const MAX_ITERATIONS = 300;
 const VOLTAGE_ABSTOL_V = 1e-9;
 const RELTOL = 1e-9;
 
-export function solveDcTransfer(design: Design, inputsV: Float64Array): DcTransfer {
+export function solveDcTransfer(design: Design, inputsV: Float64Array, options: { idealOpAmps?: boolean } = {}): DcTransfer {
   const layout = buildLayout(design);
   const n = layout.size;
   const pencil = allocatePencil(n);
-  stampLinear(design, layout, nominalValues(design), 'model', pencil, false);
+  stampLinear(design, layout, nominalValues(design), options.idealOpAmps ? 'ideal' : 'model', pencil, false);
   const { g, bG } = pencil;
 
   // Constant sources: offsets and bias currents.
@@ -41,7 +41,7 @@ export function solveDcTransfer(design: Design, inputsV: Float64Array): DcTransf
   for (const slot of layout.opamps) {
     const model = slot.model;
     if (model.inputOffsetV !== undefined && model.inputOffsetV !== 0) {
-      if (model.ideal) {
+      if (model.ideal || options.idealOpAmps) {
         constantRhs[slot.outputCurrent] -= model.inputOffsetV;
       } else constantRhs[slot.pole1] += model.openLoopGain * model.inputOffsetV;
     }

@@ -39,7 +39,7 @@ export const theoryCommand: CommandSpec = {
     { name: 'samples', kind: 'integer', placeholder: 'N', description: 'Monte Carlo samples', defaultValue: 1000 },
     { name: 'seed', kind: 'integer', placeholder: 'N', description: 'Monte Carlo seed (same seed, same band)', defaultValue: 1 },
     { name: 'distribution', kind: 'string', placeholder: 'uniform|gaussian', description: 'part value distribution within tolerance', defaultValue: 'uniform' },
-    { name: 'ideal', kind: 'flag', description: 'main curve with ideal op-amps (no gain or bandwidth limit)' },
+    { name: 'ideal', kind: 'flag', description: 'ideal op-amps (no gain or bandwidth limit) for the main curve or the DC transfer' },
     { name: 'dc', kind: 'flag', description: 'DC transfer (input_v, output_v) instead of AC, e.g. for the log stage' },
   ],
   details: `
@@ -166,7 +166,7 @@ function dcTransfer(design: Design, parsed: ParsedArgs, format: Format): string 
   if (from > 0 && to > 0) inputs = logGrid(from, to, perDecade);
   else if (from < 0 && to < 0) inputs = logGrid(-from, -to, perDecade).map((v) => -v);
   else throw new ValidationError('--from/--to', `the DC sweep is log-spaced, so ${from} V to ${to} V cannot include 0 V`, 'Sweep a positive range (e.g. --from 1m --to 10) or a negative one.');
-  const transfer = solveDcTransfer(design, inputs);
+  const transfer = solveDcTransfer(design, inputs, { idealOpAmps: optionFlag(parsed, 'ideal') });
   if (format === 'json') {
     return JSON.stringify({ design: design.name, inputV: Array.from(transfer.inputV), outputV: Array.from(transfer.outputV), clipped: Array.from(transfer.clipped, Boolean) }, null, 2) + '\n';
   }
