@@ -5,7 +5,7 @@
 export type { Design, Part, PartType, PassivePart, DiodePart, OpAmpPart, OpAmpModel, DiodeModel } from './types';
 export { isGroundNode } from './types';
 export { DesignError, SingularCircuitError, DcConvergenceError } from './design-error';
-export { parseDesign } from './parse-design';
+export { parseDesign, type ParseDesignOptions } from './parse-design';
 export { withActualValues } from './actual-values';
 export { solveAc, type AcResponse, type AcOptions, type OpAmpAcColumns } from './solve-ac';
 export { summarizeAc, type AcSummary } from './summarize-ac';
