@@ -1,0 +1,160 @@
+/**
+ * One scenario run against the virtual bench over whichever link the test
+ * opened (PTY or TCP), so both transports are held to the same checks.
+ *
+ * Expected values come from the theory engine (app/circuit solveAc) applied
+ * to the design with the generator's 50 Ω source resistance added in series
+ * (voltage-divider model of a generator output, handbook), and the sine
+ * relations Vrms = Vpk/√2 (handbook formula).
+ */
+import { expect } from 'vitest';
+import { openInstrument, type OpenedInstrument } from '../../../app/bench';
+import { parseDesign, solveAc, type Design } from '../../../app/circuit';
+import type { VirtualBench } from '../../../app/sim';
+
+export const TEST_DESIGN_JSON = {
+  name: 'Integration test: inverting low-pass, gain −10, corner ≈ 1.06 kHz (invented)',
+  input: 'in',
+  output: 'out',
+  parts: [
+    { id: 'R1', type: 'resistor', nodes: ['in', 'inv'], value: '1k' },
+    { id: 'R2', type: 'resistor', nodes: ['inv', 'out'], value: '10k' },
+    { id: 'C1', type: 'capacitor', nodes: ['inv', 'out'], value: '15n' },
+    { id: 'U1', type: 'opamp', nodes: ['0', 'inv', 'out'], model: { openLoopGain: 1e5, gbw: 1e6, slewRate: 5e5, rails: [-12, 12] } },
+  ],
+};
+
+/** Theory: complex transfer from generator EMF (behind 50 Ω) to a node. */
+export function theoryFromEmf(design: Design, node: string, frequencyHz: number): { gain: number; phaseDeg: number } {
+  const withSource: Design = {
+    ...design,
+    input: 'emf',
+    output: node,
+    parts: [...design.parts, { id: 'RS', type: 'resistor', nodes: ['emf', design.input], value: 50 }],
+  };
+  const response = solveAc(withSource, Float64Array.of(frequencyHz));
+  return { gain: Math.hypot(response.re[0], response.im[0]), phaseDeg: (Math.atan2(response.im[0], response.re[0]) * 180) / Math.PI };
+}
+
+/** Least-squares amplitude and phase of a sine at a known frequency (IEEE Std 1057 three-parameter form). */
+export function fitSine(samplesV: Float64Array, intervalS: number, frequencyHz: number): { amplitudeV: number; phaseDeg: number; residualMaxV: number } {
+  // Normal equations for v ≈ a·cos + b·sin + c.
+  const n = samplesV.length;
+  let scc = 0, sss = 0, scs = 0, sc = 0, ss = 0, svc = 0, svs = 0, sv = 0;
+  for (let i = 0; i < n; i++) {
+    const w = 2 * Math.PI * frequencyHz * i * intervalS;
+    const c = Math.cos(w);
+    const s = Math.sin(w);
+    const v = samplesV[i];
+    scc += c * c; sss += s * s; scs += c * s; sc += c; ss += s; svc += v * c; svs += v * s; sv += v;
+  }
+  const m = [[scc, scs, sc], [scs, sss, ss], [sc, ss, n]];
+  const rhs = [svc, svs, sv];
+  const [a, b, offset] = solve3(m, rhs);
+  let residualMaxV = 0;
+  for (let i = 0; i < n; i++) {
+    const w = 2 * Math.PI * frequencyHz * i * intervalS;
+    residualMaxV = Math.max(residualMaxV, Math.abs(samplesV[i] - (a * Math.cos(w) + b * Math.sin(w) + offset)));
+  }
+  // a·cos + b·sin = A·sin(w + φ) with A = √(a²+b²), φ = atan2(a, b).
+  return { amplitudeV: Math.hypot(a, b), phaseDeg: (Math.atan2(a, b) * 180) / Math.PI, residualMaxV };
+}
+
+function solve3(m: number[][], r: number[]): number[] {
+  const det = (x: number[][]) => x[0][0] * (x[1][1] * x[2][2] - x[1][2] * x[2][1]) - x[0][1] * (x[1][0] * x[2][2] - x[1][2] * x[2][0]) + x[0][2] * (x[1][0] * x[2][1] - x[1][1] * x[2][0]);
+  const d = det(m);
+  return [0, 1, 2].map((col) => det(m.map((row, i) => row.map((v, j) => (j === col ? r[i] : v)))) / d);
+}
+
+export interface OpenedBench {
+  generator: OpenedInstrument<'generator'>;
+  meter: OpenedInstrument<'meter'>;
+  scope: OpenedInstrument<'scope'>;
+  close(): Promise<void>;
+}
+
+export async function openBench(bench: VirtualBench): Promise<OpenedBench> {
+  const generator = await openInstrument(bench.addresses.generator, 'generator', 'scpi-generator', { maxStimulusVpp: 2 });
+  const meter = await openInstrument(bench.addresses.meter, 'meter', 'scpi-meter');
+  const scope = await openInstrument(bench.addresses.scope, 'scope', 'scpi-scope');
+  return {
+    generator,
+    meter,
+    scope,
+    close: async () => {
+      for (const instrument of [generator, meter, scope]) await instrument.close().catch(() => undefined);
+    },
+  };
+}
+
+/** The checks every transport must pass. */
+export async function runBenchScenario(bench: VirtualBench): Promise<void> {
+  const design = parseDesign(TEST_DESIGN_JSON);
+  const opened = await openBench(bench);
+  try {
+    const { generator, meter, scope } = opened;
+    for (const instrument of [generator, meter, scope]) expect(instrument.identity.manufacturer).toMatch(/simulated/);
+
+    // Generator: set and read back the frequency.
+    const frequencyHz = 1000;
+    const amplitudeVpp = 1;
+    await generator.control.configureSine({ frequencyHz, amplitudeVpp, offsetV: 0 });
+    await generator.control.setOutput(true);
+    expect(await generator.control.readFrequencyHz()).toEqual({ value: frequencyHz, flag: 'ok' });
+    await generator.control.configureSine({ frequencyHz: 1234.5, amplitudeVpp, offsetV: 0 });
+    expect((await generator.control.readFrequencyHz()).value).toBe(1234.5);
+    await generator.control.configureSine({ frequencyHz, amplitudeVpp, offsetV: 0 });
+    await bench.clock.sleepS(0.01); // ≫ 7τ (τ = R2·C1 = 150 µs)
+
+    // Meter: AC RMS of the output against theory (high-Z setting: EMF = displayed amplitude).
+    const out = theoryFromEmf(design, 'out', frequencyHz);
+    const expectedRmsV = (out.gain * amplitudeVpp) / 2 / Math.SQRT2;
+    await meter.control.setIntegration(0.1);
+    const rms = await meter.control.readAcRmsV();
+    expect(rms.flag).toBe('ok');
+    // 0.3 %: stratified-sampling scatter of the simulated meter plus its 300 kHz bandwidth (5e−6 at 1 kHz).
+    expect(Math.abs(rms.value / expectedRmsV - 1)).toBeLessThan(3e-3);
+    const dc = await meter.control.readDcV();
+    expect(Math.abs(dc.value)).toBeLessThan(0.01);
+
+    // Scope: both channels of one acquisition; amplitude and phase against theory; block intact.
+    const input = theoryFromEmf(design, 'in', frequencyHz);
+    await scope.control.setupChannels({ 1: 0.2, 2: 1 });
+    await scope.control.setTimebase(5 / frequencyHz);
+    await scope.control.acquire();
+    const ch1 = await scope.control.fetchWaveform(1);
+    const ch2 = await scope.control.fetchWaveform(2);
+    expect(ch1.samplesV.length).toBe(2000);
+    expect(ch1.sampleIntervalS).toBeCloseTo(5 / frequencyHz / 2000, 12);
+    expect(ch1.clipped || ch2.clipped).toBe(false);
+    const fit1 = fitSine(ch1.samplesV, ch1.sampleIntervalS, frequencyHz);
+    const fit2 = fitSine(ch2.samplesV, ch2.sampleIntervalS, frequencyHz);
+    expect(Math.abs(fit1.amplitudeV / ((input.gain * amplitudeVpp) / 2) - 1)).toBeLessThan(1e-3);
+    expect(Math.abs(fit2.amplitudeV / ((out.gain * amplitudeVpp) / 2) - 1)).toBeLessThan(1e-3);
+    const measuredPhaseDeg = ((fit2.phaseDeg - fit1.phaseDeg + 540) % 360) - 180;
+    const theoryPhaseDeg = ((out.phaseDeg - input.phaseDeg + 540) % 360) - 180;
+    expect(Math.abs(measuredPhaseDeg - theoryPhaseDeg)).toBeLessThan(0.1);
+    // A corrupted or mis-framed byte would leave a residual far above one 16-bit code (5·V/div/32000).
+    expect(fit2.residualMaxV).toBeLessThan((5 * 1) / 32000);
+    expect(fit1.residualMaxV).toBeLessThan((5 * 0.2) / 32000);
+
+    // The raw block: binary, containing bytes equal to LF and CR, delivered whole and identical on refetch.
+    await scope.session.write('WAVeform:SOURce CHANnel2');
+    const raw1 = await scope.session.queryBlock('WAVeform:DATA?');
+    const raw2 = await scope.session.queryBlock('WAVeform:DATA?');
+    expect(raw1.length).toBe(4000);
+    expect(raw1.includes(0x0a) || raw1.includes(0x0d)).toBe(true);
+    expect(Buffer.from(raw1).equals(Buffer.from(raw2))).toBe(true);
+
+    // Profile measurements agree with the waveform.
+    const vpp = await scope.control.measureAmplitudeVpp!(2);
+    expect(Math.abs(vpp.value / (2 * fit2.amplitudeV) - 1)).toBeLessThan(2e-3);
+    const phase = await scope.control.measurePhaseDeg!();
+    expect(Math.abs(phase.value - theoryPhaseDeg)).toBeLessThan(0.1);
+
+    // Nothing went wrong on the way.
+    for (const instrument of [generator, meter, scope]) expect(await instrument.session.drainErrors()).toEqual([]);
+  } finally {
+    await opened.close();
+  }
+}

@@ -1,0 +1,61 @@
+/**
+ * The session over a real serial port: serialport on a socat pseudo-terminal
+ * pair, against the virtual bench. See bench-scenario.ts for the sources of
+ * the expected values.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { SerialPort } from 'serialport';
+import { startVirtualBench, type VirtualBench } from '../../../app/sim';
+import { connect, ScpiDisconnectedError, SerialTransport, ScpiSession } from '../../../app/scpi';
+import { openPtyPair } from '../../helpers/pty';
+import { runBenchScenario, TEST_DESIGN_JSON } from './bench-scenario';
+
+describe('virtual bench over a pseudo-terminal (serialport + socat)', () => {
+  let bench: VirtualBench;
+  beforeAll(async () => {
+    bench = await startVirtualBench({ design: TEST_DESIGN_JSON, pty: true, timeScale: 10, seed: 3 });
+  });
+  afterAll(async () => {
+    await bench?.stop();
+  });
+
+  it('answers on serial:// addresses', () => {
+    for (const address of Object.values(bench.addresses)) expect(address).toMatch(/^serial:\/\/\/.+\?baud=115200$/);
+  });
+
+  it('passes the scenario: *IDN?, frequency read-back, meter vs theory, scope waveforms intact', async () => {
+    await runBenchScenario(bench);
+  });
+
+  it('a pulled link (PTY torn down) is ScpiDisconnectedError; reconnecting works', async () => {
+    const session = await connect(bench.addresses.meter, { timeoutS: 5 });
+    expect((await session.identify()).model).toBe('virtual meter');
+    await session.write('SENSe:VOLTage:APERture 5');
+    const inFlight = session.query('READ?', { timeoutS: 10 });
+    await new Promise((resolve) => setTimeout(resolve, 50));
+    await bench.setFault('meter', { kind: 'drop-link' });
+    await expect(inFlight).rejects.toBeInstanceOf(ScpiDisconnectedError);
+    const again = await connect(bench.addresses.meter, { timeoutS: 5 });
+    expect((await again.identify()).model).toBe('virtual meter');
+    await again.write('SENSe:VOLTage:APERture 0.1');
+    await again.close();
+  });
+});
+
+describe('openPtyPair helper', () => {
+  it('carries bytes both ways between its two ends, then cleans up', async () => {
+    const pair = await openPtyPair();
+    const instrumentEnd = new SerialPort({ path: pair.a, baudRate: 9600 });
+    await new Promise((resolve) => instrumentEnd.once('open', resolve));
+    instrumentEnd.on('data', (chunk: Buffer) => {
+      if (chunk.includes(0x0a)) instrumentEnd.write('pong\r\n');
+    });
+    const live = await ScpiSession.open(new SerialTransport({ path: pair.b, baudRate: 9600, dataBits: 8, parity: 'none', stopBits: 1, flow: 'none' }), { timeoutS: 2 });
+    expect(await live.query('ping?')).toBe('pong');
+    await live.close();
+    await new Promise<void>((resolve) => instrumentEnd.close(() => resolve()));
+    await pair.close();
+    const { existsSync } = await import('node:fs');
+    expect(existsSync(pair.a) || existsSync(pair.b)).toBe(false);
+  });
+});

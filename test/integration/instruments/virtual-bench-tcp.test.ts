@@ -1,0 +1,127 @@
+/**
+ * The session over TCP on 127.0.0.1 against the virtual bench: the shared
+ * scenario, then error queue, overrange/NaN and every injected fault surfacing
+ * as its named error. Sources: SCPI-1999 (error codes -113/-222, 9.9E37 and
+ * 9.91E37 — recalled from memory), IEEE 488.2 (framing), else common practice.
+ */
+import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
+import { startVirtualBench, type VirtualBench } from '../../../app/sim';
+import { connect, ScpiDisconnectedError, ScpiMalformedReplyError, ScpiTimeoutError, ScpiInstrumentError } from '../../../app/scpi';
+import { openInstrument } from '../../../app/bench';
+import { openBench, runBenchScenario, TEST_DESIGN_JSON } from './bench-scenario';
+
+describe('virtual bench over TCP on 127.0.0.1', () => {
+  let bench: VirtualBench;
+  beforeAll(async () => {
+    bench = await startVirtualBench({ design: TEST_DESIGN_JSON, tcpPort: 0, timeScale: 10, seed: 5 });
+  });
+  afterAll(async () => {
+    await bench?.stop();
+  });
+  afterEach(async () => {
+    await bench.setFault('all', null);
+  });
+
+  it('listens on loopback only', () => {
+    for (const address of Object.values(bench.addresses)) expect(address).toMatch(/^tcp:\/\/127\.0\.0\.1:\d+$/);
+  });
+
+  it('passes the scenario: *IDN?, frequency read-back, meter vs theory, scope waveforms intact', async () => {
+    await runBenchScenario(bench);
+  });
+
+  it('queues -113 for an unknown header and -222 for an out-of-range value; the profile layer raises ScpiInstrumentError', async () => {
+    const session = await connect(bench.addresses.generator, { timeoutS: 0.5 });
+    await expect(session.query('SOURce:WOBBle?', { timeoutS: 0.2 })).rejects.toBeInstanceOf(ScpiTimeoutError);
+    await session.write('SOURce:FREQuency 1e12');
+    const errors = await session.drainErrors();
+    expect(errors.map((e) => e.code)).toEqual([-113, -222]);
+    await expect(session.throwIfErrors('x')).resolves.toBeUndefined();
+    await session.write('OUTPut:LOAD 75');
+    await expect(session.throwIfErrors('OUTPut:LOAD 75')).rejects.toBeInstanceOf(ScpiInstrumentError);
+    await session.close();
+  });
+
+  it('reads overrange on a too-small fixed meter range, and the injected overrange / NaN faults, as flags without values', async () => {
+    const { generator, meter, close } = await openBench(bench);
+    try {
+      await generator.control.configureSine({ frequencyHz: 1000, amplitudeVpp: 1, offsetV: 0 });
+      await generator.control.setOutput(true);
+      await meter.control.setIntegration(0.01);
+      await meter.control.setRange(0.1); // output ≈ 2.4 V RMS on a 0.1 V range
+      const physical = await meter.control.readAcRmsV();
+      expect(physical.flag).toBe('overrange');
+      expect(Number.isNaN(physical.value)).toBe(true);
+      await meter.control.setRange('auto');
+      expect((await meter.control.readAcRmsV()).flag).toBe('ok');
+      await bench.setFault('meter', { kind: 'nan' });
+      expect((await meter.control.readAcRmsV()).flag).toBe('nan');
+      await bench.setFault('meter', { kind: 'overrange' });
+      expect((await meter.control.readDcV()).flag).toBe('overrange');
+    } finally {
+      await close();
+    }
+  });
+
+  it('garbage replies surface as ScpiMalformedReplyError; the session recovers when they stop', async () => {
+    const session = await connect(bench.addresses.meter, { timeoutS: 0.5 });
+    await bench.setFault('meter', { kind: 'garbage' });
+    let malformed = 0;
+    for (let i = 0; i < 20; i++) {
+      try {
+        await session.identify();
+      } catch (error) {
+        if (error instanceof ScpiMalformedReplyError) malformed++;
+        else if (!(error instanceof ScpiTimeoutError)) throw error;
+      }
+    }
+    expect(malformed).toBeGreaterThan(10);
+    await bench.setFault('meter', null);
+    await new Promise((resolve) => setTimeout(resolve, 50));
+    expect((await session.identify()).model).toBe('virtual meter');
+    await session.close();
+  });
+
+  it('a hung instrument times out with ScpiTimeoutError, and answers again once released', async () => {
+    const session = await connect(bench.addresses.scope, { timeoutS: 0.3 });
+    await bench.setFault('scope', { kind: 'hang' });
+    await expect(session.query('*OPC?')).rejects.toBeInstanceOf(ScpiTimeoutError);
+    await bench.setFault('scope', null);
+    // The command queued during the hang is answered late; the session drops that stale reply.
+    await new Promise((resolve) => setTimeout(resolve, 50));
+    expect((await session.identify()).model).toBe('virtual scope');
+    await session.close();
+  });
+
+  it('missing and slow replies: no-reply times out, slow replies arrive after the delay', async () => {
+    const session = await connect(bench.addresses.generator, { timeoutS: 0.3 });
+    await bench.setFault('generator', { kind: 'no-reply' });
+    await expect(session.query('*IDN?')).rejects.toBeInstanceOf(ScpiTimeoutError);
+    await bench.setFault('generator', { kind: 'slow', delayS: 0.15 });
+    const started = performance.now();
+    expect((await session.identify()).model).toBe('virtual generator');
+    expect(performance.now() - started).toBeGreaterThanOrEqual(140);
+    await session.close();
+  });
+
+  it('a dropped link rejects the query in flight with ScpiDisconnectedError; a new connection works', async () => {
+    const opened = await openInstrument(bench.addresses.meter, 'meter', 'scpi-meter');
+    await opened.control.setIntegration(5);
+    const inFlight = opened.control.readAcRmsV();
+    await new Promise((resolve) => setTimeout(resolve, 50));
+    await bench.setFault('meter', { kind: 'drop-link' });
+    await expect(inFlight).rejects.toBeInstanceOf(ScpiDisconnectedError);
+    await expect(opened.session.identify()).rejects.toBeInstanceOf(ScpiDisconnectedError);
+    const again = await openInstrument(bench.addresses.meter, 'meter', 'scpi-meter');
+    await again.control.setIntegration(0.01);
+    expect((await again.control.readDcV()).flag).toBe('ok');
+    await again.close();
+  });
+
+  it('refuses to connect to a closed port with a clear ConnectError', async () => {
+    const probe = await startVirtualBench({ design: TEST_DESIGN_JSON, tcpPort: 0 });
+    const address = probe.addresses.generator;
+    await probe.stop();
+    await expect(connect(address)).rejects.toThrow(/cannot open tcp:\/\/127\.0\.0\.1:\d+/);
+  });
+});
