@@ -72,9 +72,14 @@ export function formatEngineering(value: number, unit = '', significantDigits = 
   if (!Number.isFinite(value)) return `${value}${unit ? ' ' + unit : ''}`;
   if (value === 0) return `0${unit ? ' ' + unit : ''}`;
   const exponent = Math.floor(Math.log10(Math.abs(value)) / 3) * 3;
-  const clamped = Math.max(-15, Math.min(12, exponent));
+  let clamped = Math.max(-15, Math.min(12, exponent));
+  let rounded = Number((value / 10 ** clamped).toPrecision(significantDigits));
+  // Rounding can carry into the next prefix (999.96 k → 1000 k): say 1 M instead.
+  if (Math.abs(rounded) >= 1000 && clamped < 12) {
+    clamped += 3;
+    rounded = Number((rounded / 1000).toPrecision(significantDigits));
+  }
   const entry = FORMAT_PREFIXES.find(([e]) => e === clamped)!;
-  const scaled = value / 10 ** clamped;
-  const text = Number(scaled.toPrecision(significantDigits)).toString();
+  const text = rounded.toString();
   return `${text} ${entry[1]}${unit}`.trimEnd();
 }
