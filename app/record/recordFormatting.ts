@@ -34,6 +34,8 @@ export const formatHz = (value: number) => formatEngineering(value, 'Hz', 4);
 export const formatVolts = (value: number) => formatEngineering(value, 'V', 4);
 export const formatDb = (value: number, decimals = 2) => `${value.toFixed(decimals)} dB`;
 export const formatDeg = (value: number, decimals = 1) => `${value.toFixed(decimals)}°`;
+/** Uncertainties to two significant digits (GUM JCGM 100:2008 §7.2.6, recalled from memory). */
+export const formatUncertainty = (value: number) => Number(value.toPrecision(2)).toString();
 
 /** The reply an instrument gave to *IDN? (IEEE 488.2 §10.14: four comma-separated fields). */
 export function idnText(identity: InstrumentIdentity): string {

@@ -3,7 +3,7 @@ import { formatEngineering, parseEngineering } from '../units';
 import type { Block, RecordDocument } from './recordDocument';
 import type { RecordDesign, RunRecord } from './model';
 import { runPlots } from './recordPlots';
-import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatVolts, idnText, verdictHeadline } from './recordFormatting';
+import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatUncertainty, formatVolts, idnText, verdictHeadline } from './recordFormatting';
 
 export const SIMULATED_BANNER = 'SIMULATED BENCH — these readings come from the virtual bench and describe a computed circuit, not a physical board.';
 
@@ -166,7 +166,8 @@ function planBlocks(record: RunRecord): Block[] {
       rows: [
         ['Sweep', `${unitFormat(plan.from)} to ${unitFormat(plan.to)}, ${plan.spacing}, ${plan.pointsPerDecade} points per decade`],
         ['Stimulus amplitude', amplitude],
-        ['Measured with', plan.measurement],
+        ['Maximum stimulus in force', plan.maxStimulusVpp !== undefined ? formatEngineering(plan.maxStimulusVpp, 'Vpp') : 'not recorded'],
+        ['Measured with', `${plan.measurement}${plan.through ? ' (through calibration: the stage was bypassed)' : ''}`],
         ['Minimum cycles / averages', `${plan.minCycles} / ${plan.averages}`],
         ['Refinement near corners', plan.refine ? 'yes' : 'no'],
         ['Limits', limitText],
@@ -187,8 +188,8 @@ function pointBlocks(record: RunRecord): Block[] {
   const p = record.points;
   const ac = record.run.kind === 'ac';
   const rows = p.step.map((step, i) => {
-    const gain = formatMaybe(p.gainDb[i], (v) => `${formatDb(v, 3)} ± ${formatMaybe(p.gainUncertaintyDb[i], (u) => u.toFixed(3))}`);
-    const phase = formatMaybe(p.phaseDeg[i], (v) => `${formatDeg(v, 2)} ± ${formatMaybe(p.phaseUncertaintyDeg[i], (u) => u.toFixed(2))}`);
+    const gain = formatMaybe(p.gainDb[i], (v) => `${formatDb(v, 3)} ± ${formatMaybe(p.gainUncertaintyDb[i], formatUncertainty)}`);
+    const phase = formatMaybe(p.phaseDeg[i], (v) => `${formatDeg(v, 2)} ± ${formatMaybe(p.phaseUncertaintyDeg[i], formatUncertainty)}`);
     const stimulus = formatMaybe(p.stimulus[i], ac ? formatHz : formatVolts);
     const amplitude = formatMaybe(p.amplitudeVpp[i], (v) => formatEngineering(v, 'Vpp'));
     return ac

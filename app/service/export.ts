@@ -7,7 +7,10 @@ import { designOf } from './theory';
 import type { DiodePart, PassivePart } from '../circuit/types';
 import { logGrid } from '../units';
 
-export async function exportRecordFor(service: RolloffService, runIds: number[], format: RecordFormat, reference: number | 'theory'): Promise<ExportedRecord> {
+/** What an export reads: the service, or a read-only store behind the same three members (`rolloff export`). */
+export type RecordSource = Pick<RolloffService, 'store' | 'getRun' | 'compareRuns'>;
+
+export async function exportRecordFor(service: RecordSource, runIds: number[], format: RecordFormat, reference: number | 'theory'): Promise<ExportedRecord> {
   const store = service.store;
   const contextOf = (detail: RunDetail) => {
     const build = store.getBuild(detail.buildId);

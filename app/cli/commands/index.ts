@@ -15,6 +15,7 @@ import { portsCommand } from './ports';
 import { probeCommand } from './probe';
 import { queryCommand } from './query';
 import { simCommand } from './sim';
+import { exportCommand } from './export';
 
 export const COMMANDS: CommandSpec[] = [
   serveCommand,
@@ -29,4 +30,5 @@ export const COMMANDS: CommandSpec[] = [
   probeCommand,
   queryCommand,
   simCommand,
+  exportCommand,
 ];

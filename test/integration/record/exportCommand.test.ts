@@ -1,0 +1,202 @@
+/**
+ * `rolloff export` end to end on real data: two builds swept on the virtual
+ * bench over TCP on 127.0.0.1 (labelled simulated), stored in a real SQLite
+ * file, then exported by the real CLI in a child process. Exporting must never
+ * change the database: its bytes, modification time and row counts are compared
+ * before and after.
+ */
+import { execFile } from 'node:child_process';
+import { createHash } from 'node:crypto';
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { promisify } from 'node:util';
+import Database from 'better-sqlite3';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { makeDesignFromTemplate } from '../../../app/circuit/templates';
+import { readCsv, recordFromJson, type ComparisonRecord, type RunRecord } from '../../../app/record';
+import { RolloffService } from '../../../app/service/service';
+import type { RunDetail, SweepRequest } from '../../../app/service/contract';
+
+const run = promisify(execFile);
+const ROOT = resolve(__dirname, '../../..');
+const CLI = join(ROOT, 'app/cli/bin.mjs');
+
+const folder = mkdtempSync(join(tmpdir(), 'rolloff-export-'));
+const databasePath = join(folder, 'bench.sqlite');
+const outFolder = join(folder, 'records');
+let runIds: number[] = [];
+let details: RunDetail[] = [];
+
+interface DatabaseState {
+  file: { sha256: string; mtimeMs: number; size: number };
+  /** SHA-256 of the write-ahead log's bytes; an absent log counts as empty. */
+  walSha256: string;
+  rows: Record<string, number>;
+}
+
+const sha256Of = (bytes: Buffer) => createHash('sha256').update(bytes).digest('hex');
+
+/**
+ * The database file itself, the content of its write-ahead log, and every table's row count.
+ * The -shm file is left out on purpose: it is SQLite's shared-memory index, which every
+ * reader of a WAL database (read-only ones included) creates or updates and which holds no
+ * data (sqlite.org/walformat.html, "the shm file ... does not contain persistent content").
+ */
+function databaseState(): DatabaseState {
+  const walPath = `${databasePath}-wal`;
+  const state = {
+    file: { sha256: sha256Of(readFileSync(databasePath)), mtimeMs: statSync(databasePath).mtimeMs, size: statSync(databasePath).size },
+    walSha256: sha256Of(existsSync(walPath) ? readFileSync(walPath) : Buffer.alloc(0)),
+  };
+  // Counted through a read-only connection so the count itself cannot write.
+  const db = new Database(databasePath, { readonly: true, fileMustExist: true });
+  const tables = db.prepare("SELECT name FROM sqlite_master WHERE type = 'table' ORDER BY name").all() as Array<{ name: string }>;
+  const rows = Object.fromEntries(tables.map(({ name }) => [name, (db.prepare(`SELECT count(*) AS n FROM "${name}"`).get() as { n: number }).n]));
+  db.close();
+  return { ...state, rows };
+}
+
+async function cli(...args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
+  try {
+    const { stdout, stderr } = await run(process.execPath, [CLI, ...args], { cwd: folder, encoding: 'utf8', env: { ...process.env, ROLLOFF_DB: join(folder, 'no-such.sqlite') } });
+    return { code: 0, stdout, stderr };
+  } catch (error) {
+    const failure = error as { code: number; stdout: string; stderr: string };
+    return { code: failure.code, stdout: failure.stdout, stderr: failure.stderr };
+  }
+}
+
+function request(buildId: number): SweepRequest {
+  return {
+    buildId, kind: 'ac', from: 100, to: 100e3, pointsPerDecade: 4, spacing: 'log', amplitude: { mode: 'auto' }, measurement: 'scope',
+    minCycles: 5, averages: 1, refine: false, operator: 'integration test', notes: 'Virtual bench run for the export test <b>&</b>.',
+    limits: { maxDeviationDb: 1, cornerTolerance: 0.1 },
+  };
+}
+
+let before: DatabaseState;
+
+beforeAll(async () => {
+  const service = new RolloffService({ databasePath, maxStimulusVpp: 1, virtualBench: { timeScale: 50, noiseVrms: 1e-4, link: 'tcp' } });
+  try {
+    // Inverting low-pass, gain −10, corner 1/(2π·10 kΩ·15 nF) ≈ 1.06 kHz (template defaults).
+    const design = await service.saveDesign(makeDesignFromTemplate('inverting-lowpass', {}));
+    const builds = [
+      await service.createBuild({ designId: design.id, label: 'Board A <script>alert(1)</script>', notes: 'first board', actualValues: { RF: 10.1e3 } }),
+      await service.createBuild({ designId: design.id, label: 'Board B', notes: 'second board, CF from another reel', actualValues: { CF: 16e-9 } }),
+    ];
+    for (const build of builds) {
+      await service.startVirtualBenchForBuild(build.id);
+      const started = await service.startRun(request(build.id));
+      expect(await service.waitForRun(started.id)).toBe('done');
+      runIds.push(started.id);
+      details.push(await service.getRun(started.id));
+    }
+  } finally {
+    await service.close();
+  }
+  mkdirSync(outFolder);
+  before = databaseState();
+}, 120_000);
+
+afterAll(() => rmSync(folder, { recursive: true, force: true }));
+
+describe('rolloff export on a real virtual-bench run', () => {
+  it('writes a PDF that names the build, the instruments, the digest and the verdict', async () => {
+    const result = await cli('export', String(runIds[0]), '--pdf', '--db', databasePath, '--out', outFolder);
+    expect(result.stderr).toBe('');
+    expect(result.code).toBe(0);
+    const path = /Wrote (.+\.pdf) /.exec(result.stdout)![1];
+    expect(path.startsWith(outFolder)).toBe(true);
+    const text = (await run('pdftotext', [path, '-'])).stdout.replace(/\s+/g, '');
+    expect(text).toContain('BoardA<script>alert(1)</script>');
+    for (const instrument of details[0].bench) expect(text).toContain(`${instrument.identity.manufacturer},${instrument.identity.model}`.replace(/\s+/g, ''));
+    expect(text).toMatch(/Verdict:(PASS|FAIL)/);
+    const json = await cli('export', String(runIds[0]), '--json', '--db', databasePath, '--out', '-');
+    const record = recordFromJson(json.stdout, 'stdout') as RunRecord;
+    expect(text).toContain(record.digest.hex);
+  });
+
+  it('JSON and CSV carry the stored numbers exactly', async () => {
+    const json = await cli('export', String(runIds[1]), '--json', '--db', databasePath, '--out', join(outFolder, 'run.json'));
+    expect(json.code).toBe(0);
+    const record = recordFromJson(readFileSync(join(outFolder, 'run.json'), 'utf8'), 'run.json') as RunRecord;
+    expect(record.run.simulated).toBe(true);
+    expect(record.points.gainDb).toEqual(details[1].points.gainDb.map((v) => (Number.isFinite(v) ? v : null)));
+    const csv = await cli('export', String(runIds[1]), '--csv', '--db', databasePath, '--out', '-');
+    const [header, ...rows] = readCsv(csv.stdout);
+    expect(rows.map((r) => Number(r[header.indexOf('frequency_hz')]))).toEqual(details[1].points.stimulus);
+    expect(rows.map((r) => Number(r[header.indexOf('gain_db')]))).toEqual(details[1].points.gainDb);
+  });
+
+  it('several runs give a comparison record against the chosen reference', async () => {
+    const result = await cli('export', String(runIds[1]), '--json', '--reference', String(runIds[0]), '--db', databasePath, '--out', '-');
+    expect(result.code).toBe(0);
+    const record = recordFromJson(result.stdout) as ComparisonRecord;
+    expect(record.recordType).toBe('comparison');
+    expect(record.reference).toBe(runIds[0]);
+    expect(record.runs.map((r) => r.run.id).sort()).toEqual([...runIds].sort());
+    const html = await cli('export', ...runIds.map(String), '--html', '--db', databasePath, '--out', outFolder);
+    expect(html.code).toBe(0);
+    const file = readdirSync(outFolder).find((f) => f.startsWith('rolloff-comparison-') && f.endsWith('.html'))!;
+    const content = readFileSync(join(outFolder, file), 'utf8');
+    expect(content).toContain('Board A &lt;script&gt;alert(1)&lt;/script&gt;');
+    expect(content).not.toContain('<script>');
+  });
+
+  it('refuses bad input with a clear message and writes nothing', async () => {
+    const cases: Array<[string[], RegExp]> = [
+      [['export', '999', '--pdf', '--db', databasePath], /999/],
+      [['export', String(runIds[0]), '--db', databasePath], /no output format/],
+      [['export', String(runIds[0]), '--pdf', '--csv', '--db', databasePath], /choose only one format/],
+      [['export', 'twelve', '--pdf', '--db', databasePath], /"twelve" is not a run id/],
+      [['export', String(runIds[0]), '--pdf', '--reference', 'best', '--db', databasePath], /neither a run id nor "theory"/],
+      [['export', String(runIds[0]), '--pdf', '--db', join(folder, 'missing.sqlite')], /no database at this path/],
+      [['export', String(runIds[0]), '--pdf', '--db', databasePath, '--out', join(folder, 'nowhere', 'x.pdf')], /does not exist/],
+    ];
+    const filesBefore = readdirSync(folder).sort();
+    for (const [args, message] of cases) {
+      const result = await cli(...args);
+      expect(result.code, args.join(' ')).toBe(2);
+      expect(result.stderr).toMatch(message);
+      expect(result.stderr).not.toMatch(/internal error|    at /);
+    }
+    expect(readdirSync(folder).sort()).toEqual(filesBefore);
+    expect(existsSync(join(folder, 'missing.sqlite'))).toBe(false);
+  });
+
+  it('does not replace an existing file unless --force is given', async () => {
+    const target = join(outFolder, 'keep.csv');
+    writeFileSync(target, 'precious');
+    const refused = await cli('export', String(runIds[0]), '--csv', '--db', databasePath, '--out', target);
+    expect(refused.code).toBe(2);
+    expect(refused.stderr).toMatch(/already exists; nothing was written[\s\S]*--force/);
+    expect(readFileSync(target, 'utf8')).toBe('precious');
+    const forced = await cli('export', String(runIds[0]), '--csv', '--db', databasePath, '--out', target, '--force');
+    expect(forced.code).toBe(0);
+    expect(readFileSync(target, 'utf8')).toMatch(/^run_id,build_label,step,frequency_hz/);
+    expect(readdirSync(outFolder).filter((f) => f.endsWith('.part'))).toEqual([]);
+  });
+
+  it('left the database exactly as it was: file bytes, modification time, log content and row counts', () => {
+    const after = databaseState();
+    expect(after.file).toEqual(before.file);
+    expect(after.walSha256).toBe(before.walSha256);
+    expect(after.rows).toEqual(before.rows);
+    expect(Object.values(after.rows).reduce((a, b) => a + b, 0)).toBeGreaterThan(0);
+  });
+});
+
+describe('the unchanged-database check', () => {
+  it('does notice a write (guards against a vacuous pass)', async () => {
+    const service = new RolloffService({ databasePath });
+    try {
+      await service.createBuild({ designId: details[0].request.buildId ? (await service.listBuilds())[0].designId : 1, label: 'written after the exports', notes: '', actualValues: {} });
+    } finally {
+      await service.close();
+    }
+    const after = databaseState();
+    expect(after.rows).not.toEqual(before.rows);
+  });
+});
