@@ -67,7 +67,11 @@ function outputFormat(parsed: ParsedArgs): Format {
 }
 
 function acResponse(design: Design, parsed: ParsedArgs, format: Format): string {
-  const frequencies = logGrid(optionNumber(parsed, 'from') ?? 10, optionNumber(parsed, 'to') ?? 1e6, optionNumber(parsed, 'per-decade') ?? 20);
+  const fromHz = optionNumber(parsed, 'from') ?? 10;
+  const toHz = optionNumber(parsed, 'to') ?? 1e6;
+  if (!(fromHz > 0)) throw new ValidationError('--from', `${fromHz} Hz: the AC sweep is log-spaced and must start above 0 Hz`, 'For example --from 10.');
+  if (!(toHz > fromHz)) throw new ValidationError('--to', `${toHz} Hz is not above --from (${fromHz} Hz)`, 'Give an end frequency above the start, e.g. --to 1meg.');
+  const frequencies = logGrid(fromHz, toHz, optionNumber(parsed, 'per-decade') ?? 20);
   const ideal = optionFlag(parsed, 'ideal');
   const response = solveAc(design, frequencies, { idealOpAmps: ideal });
   const summary = summarizeAc(design, response);
