@@ -8,6 +8,7 @@ import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { startVirtualBench, type VirtualBench } from '../../../app/sim';
 import { connect, ScpiDisconnectedError, ScpiMalformedReplyError, ScpiTimeoutError, ScpiInstrumentError } from '../../../app/scpi';
 import { openInstrument } from '../../../app/bench';
+import { parseDesign, solveDcTransfer } from '../../../app/circuit';
 import { openBench, runBenchScenario, TEST_DESIGN_JSON } from './bench-scenario';
 
 describe('virtual bench over TCP on 127.0.0.1', () => {
@@ -116,6 +117,43 @@ describe('virtual bench over TCP on 127.0.0.1', () => {
     await again.control.setIntegration(0.01);
     expect((await again.control.readDcV()).flag).toBe('ok');
     await again.close();
+  });
+
+  it('DC transfer of a diode-feedback log stage: meter DC readings match the theory engine\'s DC solve within 1 mV', async () => {
+    // Expected: app/circuit solveDcTransfer on the design with the generator's 50 Ω in series (divider model).
+    const logStage = parseDesign({
+      name: 'log stage (invented)',
+      input: 'in',
+      output: 'out',
+      parts: [
+        { id: 'R1', type: 'resistor', nodes: ['in', 'inv'], value: '10k' },
+        { id: 'D1', type: 'diode', nodes: ['inv', 'out'], model: { is: 1e-14, n: 1, rs: 0.5 } },
+        { id: 'U1', type: 'opamp', nodes: ['0', 'inv', 'out'], model: { openLoopGain: 1e5, gbw: 1e6, rails: [-12, 12] } },
+      ],
+    });
+    const dcBench = await startVirtualBench({ design: logStage, tcpPort: 0, timeScale: 100 });
+    const generator = await openInstrument(dcBench.addresses.generator, 'generator', 'scpi-generator', { maxStimulusVpp: 20 });
+    const meter = await openInstrument(dcBench.addresses.meter, 'meter', 'scpi-meter');
+    try {
+      await generator.control.setOutput(true);
+      await meter.control.setIntegration(0.02);
+      const levels = Float64Array.of(0.01, 0.1, 1, 10);
+      const withSource = { ...logStage, input: 'emf', parts: [...logStage.parts, { id: 'RS', type: 'resistor' as const, nodes: ['emf', 'in'] as [string, string], value: 50 }] };
+      const expected = solveDcTransfer(withSource, levels).outputV;
+      for (let i = 0; i < levels.length; i++) {
+        await generator.control.configureDc(levels[i]);
+        await dcBench.clock.sleepS(10 * dcBench.model.circuit.timeConstantS);
+        const reading = await meter.control.readDcV();
+        expect(reading.flag).toBe('ok');
+        expect(Math.abs(reading.value - expected[i])).toBeLessThan(1e-3);
+      }
+      // Slope about n·VT·ln 10 ≈ 59 mV per decade at 25 °C (Shockley diode, handbook formula).
+      expect(expected[2] - expected[3]).toBeGreaterThan(0.055);
+    } finally {
+      await generator.close();
+      await meter.close();
+      await dcBench.stop();
+    }
   });
 
   it('refuses to connect to a closed port with a clear ConnectError', async () => {

@@ -1,0 +1,32 @@
+/**
+ * BenchClock: bench time runs timeScale× faster than wall time, for both
+ * nowS and sleepS (our definition, app/bench/clock.ts; no external source).
+ */
+import { describe, expect, it } from 'vitest';
+import { realClock, scaledClock } from '../../../app/bench';
+
+describe('BenchClock', () => {
+  it('a ×100 clock sleeps one bench second in about 10 ms of wall time and advances ~1 s', async () => {
+    const clock = scaledClock(100);
+    const startBenchS = clock.nowS();
+    const startWallMs = performance.now();
+    await clock.sleepS(1);
+    const wallMs = performance.now() - startWallMs;
+    const benchS = clock.nowS() - startBenchS;
+    expect(wallMs).toBeGreaterThanOrEqual(9);
+    expect(wallMs).toBeLessThan(200);
+    expect(benchS).toBeGreaterThanOrEqual(0.99);
+    expect(benchS / (wallMs / 1000)).toBeCloseTo(100, 0);
+  });
+
+  it('the real clock runs at wall speed', async () => {
+    expect(realClock.timeScale).toBe(1);
+    const start = realClock.nowS();
+    await realClock.sleepS(0.02);
+    expect(realClock.nowS() - start).toBeGreaterThanOrEqual(0.019);
+  });
+
+  it('refuses a zero, negative or infinite scale', () => {
+    for (const bad of [0, -1, Infinity, Number.NaN]) expect(() => scaledClock(bad)).toThrow(RangeError);
+  });
+});
