@@ -33,6 +33,7 @@ import { compareDetails } from './compare';
 import { SOFTWARE_VERSION } from './version';
 import { startVirtualBenchFor, type VirtualBenchHandle, type VirtualBenchSettings } from './virtual-bench';
 import { exportRecordFor } from './export';
+import { throughDesign } from './through';
 
 export interface RolloffServiceOptions {
   databasePath: string;
@@ -237,6 +238,7 @@ export class RolloffService implements RolloffApi {
   /** startRun with the service-only options (schedule id). */
   async startRunWith(request: SweepRequest, extra: { scheduleId?: number } = {}): Promise<RunSummary> {
     const maxStimulusVpp = this.requireMaxStimulus();
+    await this.matchVirtualBench(request);
     this.requireInstrumentsFor(request);
     const plan = planSweep(this.planInput(request, maxStimulusVpp));
     const run = this.store.createRun({
@@ -418,10 +420,29 @@ export class RolloffService implements RolloffApi {
     this.events.emit('bench', await this.benchStatus());
   }
 
+  /**
+   * On an all-simulated bench the virtual circuit follows the run: the build
+   * being swept (its actual part values), or for a through-calibration the same
+   * build with the meter moved to the stage input (app/service/through.ts).
+   */
+  private async matchVirtualBench(request: SweepRequest): Promise<void> {
+    if (!this.virtual || ![...this.instruments.values()].every((i) => i.simulated)) return;
+    const key = request.through ? `through:${request.buildId}` : `build:${request.buildId}`;
+    if (this.virtual.key === key) return;
+    if (!request.through) {
+      await this.startVirtualBenchForBuild(request.buildId);
+      return;
+    }
+    const build = this.store.getBuild(request.buildId);
+    const designRecord = this.store.getDesign(build.designId);
+    await this.startVirtualBenchForDesign(throughDesign(buildDesign(designRecord, build)), `${designRecord.name} — through connection`, key);
+  }
+
   private planInput(request: SweepRequest, maxStimulusVpp: number): PlanInput {
     const build = this.store.getBuild(request.buildId);
     const design = buildDesign(this.store.getDesign(build.designId), build);
-    return this.planInputFor(request, maxStimulusVpp, design);
+    // A through run measures the stage input: plan its amplitude for that node, not the stage output.
+    return this.planInputFor(request, maxStimulusVpp, request.through ? throughDesign(design) : design);
   }
 
   private planInputFor(request: SweepRequest, maxStimulusVpp: number, design: Design): PlanInput {
