@@ -114,6 +114,7 @@ describe('opening and migrations', () => {
     const raw = new Database(join(folder, 'nested/folder/new.sqlite'), { readonly: true });
     expect(raw.pragma('user_version', { simple: true })).toBe(migrations.length);
     expect(raw.pragma('journal_mode', { simple: true })).toBe('wal');
+    expect(raw.pragma('page_size', { simple: true })).toBe(16384);
     const rows = raw.prepare('SELECT version, name, app_version FROM schema_migrations ORDER BY version').all();
     expect(rows).toEqual(migrations.map((m) => ({ version: m.version, name: m.name, app_version: SOFTWARE_VERSION })));
     raw.close();
@@ -261,8 +262,11 @@ describe('points', () => {
     expect(columns.flags).toEqual([0, 5, 0]);
     expect(columns.outputV.every(Number.isNaN)).toBe(true);
     expect(columns.measuredAt[1]).toBe('2026-01-01T00:00:01.000Z');
-    expect(store.listRuns()[0].pointCount).toBe(3);
-    expect(store.nextStep(run.id)).toBe(3);
+    // Times are kept as UTC instants: an offset given on the way in comes back as Z (ISO 8601 equivalence).
+    store.insertPoint(run.id, point(3, { measuredAt: '2026-01-01T02:00:00+02:00' }));
+    expect(store.loadPoints(run.id).measuredAt[3]).toBe('2026-01-01T00:00:00.000Z');
+    expect(store.listRuns()[0].pointCount).toBe(4);
+    expect(store.nextStep(run.id)).toBe(4);
   });
 
   it('refuses a duplicate step with DuplicateStepError and stores it only once', () => {
@@ -287,6 +291,7 @@ describe('points', () => {
     expect(() => store.insertPoint(run.id, point(-1))).toThrow(/point.step/);
     expect(() => store.insertPoint(run.id, point(0, { stimulus: Number.NaN }))).toThrow(/point.stimulus/);
     expect(() => store.insertPoint(run.id, point(0, { flags: 1.5 }))).toThrow(ValidationError);
+    expect(() => store.insertPoint(run.id, point(0, { measuredAt: 'yesterday' }))).toThrow(/point.measuredAt/);
     expect(() => store.insertPoint(999, point(0))).toThrow(RecordNotFoundError);
     expect(() => store.loadPoints(999)).toThrow(/run 999 does not exist/);
     expect(() => store.nextStep(0)).toThrow(/runId/);
