@@ -5,7 +5,7 @@
  * other the address users connect to) and by tests.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { existsSync, lstatSync, mkdtempSync, rmSync, unlinkSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { UserError } from '../errors';
@@ -33,6 +33,9 @@ export async function openPtyPair(paths?: { a: string; b: string }): Promise<Pty
     paths = { a: join(ownDir, 'a'), b: join(ownDir, 'b') };
   }
   const { a, b } = paths;
+  // A link left by a crashed run would look "ready" before socat replaces it.
+  removeStaleLink(a);
+  removeStaleLink(b);
   const child = spawn('socat', ['-d', '-d', `pty,raw,echo=0,link=${a}`, `pty,raw,echo=0,link=${b}`], { stdio: ['ignore', 'ignore', 'pipe'] });
   let stderr = '';
   child.stderr?.on('data', (chunk: Buffer) => {
@@ -63,9 +66,23 @@ export async function openPtyPair(paths?: { a: string; b: string }): Promise<Pty
       if (closed) return;
       closed = true;
       await stopSocat(child, exited);
+      removeStaleLink(a);
+      removeStaleLink(b);
       if (ownDir) rmSync(ownDir, { recursive: true, force: true });
     },
   };
+}
+
+/** Removes a symbolic link at `path`; refuses to touch anything else that is there. */
+function removeStaleLink(path: string): void {
+  let stats;
+  try {
+    stats = lstatSync(path);
+  } catch {
+    return; // nothing there
+  }
+  if (!stats.isSymbolicLink()) throw new PtyUnavailableError(`${path} exists and is not a pseudo-terminal link`, 'Choose a folder where the links generator, meter and scope can be made, or remove that file.');
+  unlinkSync(path);
 }
 
 async function stopSocat(child: ChildProcess, exited: Promise<number | null>): Promise<void> {

@@ -43,6 +43,23 @@ describe('virtual bench over a pseudo-terminal (serialport + socat)', () => {
 });
 
 describe('openPtyPair helper', () => {
+  it('replaces a stale link left by a crashed run, and refuses to overwrite a regular file', async () => {
+    const { mkdtempSync, symlinkSync, writeFileSync, readlinkSync, rmSync } = await import('node:fs');
+    const { join } = await import('node:path');
+    const { tmpdir } = await import('node:os');
+    const dir = mkdtempSync(join(tmpdir(), 'rolloff-stale-'));
+    try {
+      symlinkSync('/nonexistent-pty', join(dir, 'a'));
+      const pair = await openPtyPair({ a: join(dir, 'a'), b: join(dir, 'b') });
+      expect(readlinkSync(pair.a)).toMatch(/^\/dev\/pts\//);
+      await pair.close();
+      writeFileSync(join(dir, 'a'), 'precious');
+      await expect(openPtyPair({ a: join(dir, 'a'), b: join(dir, 'b') })).rejects.toThrow(/not a pseudo-terminal link/);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
   it('carries bytes both ways between its two ends, then cleans up', async () => {
     const pair = await openPtyPair();
     const instrumentEnd = new SerialPort({ path: pair.a, baudRate: 9600 });
@@ -55,7 +72,7 @@ describe('openPtyPair helper', () => {
     await live.close();
     await new Promise<void>((resolve) => instrumentEnd.close(() => resolve()));
     await pair.close();
-    const { existsSync } = await import('node:fs');
-    expect(existsSync(pair.a) || existsSync(pair.b)).toBe(false);
+    const { lstatSync } = await import('node:fs');
+    for (const path of [pair.a, pair.b]) expect(() => lstatSync(path)).toThrow();
   });
 });
