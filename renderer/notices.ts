@@ -29,8 +29,8 @@ function push(kind: 'error' | 'info', message: string, hint?: string): void {
   close.addEventListener('click', () => notice.remove());
   noticeRegion().appendChild(notice);
   // Information fades; errors stay until dismissed so nothing is missed.
-  if (kind === 'info') setTimeout(() => notice.remove(), 5_000);
-  while (noticeRegion().childElementCount > 4) noticeRegion().firstElementChild?.remove();
+  if (kind === 'info') setTimeout(() => notice.remove(), 3_500);
+  while (noticeRegion().childElementCount > 3) noticeRegion().firstElementChild?.remove();
 }
 
 /** Runs an action from a button: disables it meanwhile and reports a failure. */

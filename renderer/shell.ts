@@ -39,6 +39,7 @@ export function mountShell(root: HTMLElement, client: RolloffClient, state: AppS
     view.element.dataset.view = view.id;
     main.appendChild(view.element);
   }
+  root.classList.add('app-root');
   replaceChildren(
     root,
     h('header', { className: 'top-bar' }, h('h1', { className: 'brand' }, 'Rolloff', h('small', {}, 'op-amp stage bench')), benchChip),

@@ -282,7 +282,7 @@ function runFilter(value: unknown, where: string): { search?: string; status?: R
 
 const SWEEP_FIELDS = [
   'buildId', 'kind', 'from', 'to', 'pointsPerDecade', 'spacing', 'amplitude', 'measurement',
-  'minCycles', 'averages', 'refine', 'operator', 'notes', 'limits',
+  'minCycles', 'averages', 'refine', 'operator', 'notes', 'limits', 'through', 'maxStimulusVpp',
 ] as const;
 
 function sweepRequest(value: unknown, where: string): SweepRequest {
@@ -317,6 +317,11 @@ function sweepRequest(value: unknown, where: string): SweepRequest {
     notes: text(object.notes ?? '', `${where}.notes`, MAX_TEXT_CHARS, true),
   };
   if (object.limits !== undefined && object.limits !== null) request.limits = verdictLimits(object.limits, `${where}.limits`);
+  if (object.through !== undefined && object.through !== null) request.through = boolean(object.through, `${where}.through`);
+  if (object.maxStimulusVpp !== undefined && object.maxStimulusVpp !== null) {
+    // The ceiling is the bench's setting, recorded by the service; a window may not pass its own.
+    throw new ValidationError(`${where}.maxStimulusVpp`, 'is set by the service from the bench setting, not by the caller', 'Set the maximum stimulus on the Bench view (setMaxStimulus).');
+  }
   return request;
 }
 

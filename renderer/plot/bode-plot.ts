@@ -72,6 +72,7 @@ export class BodePlot {
         yLabel: 'Phase (°)',
         yUnit: '°',
         height: 200,
+        markerLabels: false,
         series: [
           { label: 'Theory', color: PLOT_COLORS.theory, kind: 'line' },
           { label: 'Ideal op-amp', color: PLOT_COLORS.ideal, kind: 'dashed' },

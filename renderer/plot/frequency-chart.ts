@@ -33,17 +33,21 @@ export interface FrequencyChartOptions {
   /** Linear x for DC transfer plots (volts). */
   xLinear?: boolean;
   xLabel?: string;
+  /** Write marker labels on the plot (the upper plot of a pair; the lower one shows the lines only). */
+  markerLabels?: boolean;
 }
 
 export class FrequencyChart {
   readonly plot: uPlot;
   private markers: Marker[] = [];
   private resizeObserver: ResizeObserver | undefined;
+  private readonly markerLabels: boolean;
 
   constructor(
     readonly container: HTMLElement,
     options: FrequencyChartOptions,
   ) {
+    this.markerLabels = options.markerLabels ?? true;
     const xUnit = options.xLinear ? 'V' : 'Hz';
     const uplotOptions: uPlot.Options = {
       width: Math.max(320, container.clientWidth || 800),
@@ -118,10 +122,11 @@ export class FrequencyChart {
       context.moveTo(x, top);
       context.lineTo(x, top + height);
       context.stroke();
+      if (!this.markerLabels) continue;
       const textWidth = context.measureText(marker.label).width;
       const textX = x + 4 * devicePixelRatio + textWidth > left + width ? x - 4 * devicePixelRatio - textWidth : x + 4 * devicePixelRatio;
       context.fillText(marker.label, textX, top + (14 + 14 * labelRow) * devicePixelRatio);
-      labelRow = (labelRow + 1) % 3;
+      labelRow++;
     }
     context.restore();
     this.container.dataset.drawnAt = String(performance.now());

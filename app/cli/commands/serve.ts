@@ -1,0 +1,92 @@
+/**
+ * `rolloff serve`: the window's views and the service contract over HTTP and
+ * WebSocket, for a plain browser — the same renderer the desktop shell runs.
+ */
+import { UserError } from '../../errors';
+import { optionFlag, optionNumber, optionString, type CommandSpec } from '../args';
+import { SAFETY_NOTICE_SHORT } from '../../service/safety';
+import { resolveDatabasePath } from '../../store';
+import { bundleRenderer } from '../../host/renderer-bundle';
+import { startWebHost } from '../../host/web-host';
+import { isLoopbackHost } from '../../host/access-token';
+import { openHostedService } from '../../host/hosted-service';
+
+/** Virtual bench seconds per wall second with --virtual: a 40-point sweep takes seconds, not minutes (common practice, no source). */
+const DEFAULT_VIRTUAL_TIME_SCALE = 10;
+
+export const serveCommand: CommandSpec = {
+  name: 'serve',
+  summary: 'Serve the Rolloff window to a browser (HTTP + WebSocket), headless',
+  usage: '[options]',
+  options: [
+    { name: 'host', kind: 'string', description: 'address to listen on; anything but loopback requires the printed access token', defaultValue: '127.0.0.1', placeholder: 'ADDRESS' },
+    { name: 'port', kind: 'integer', description: 'TCP port (0 picks a free one)', defaultValue: 8765, placeholder: 'N' },
+    { name: 'db', kind: 'string', description: 'database file (default: ROLLOFF_DB or the per-user data folder)', placeholder: 'PATH' },
+    { name: 'virtual', kind: 'flag', description: 'run the virtual bench on a fast clock (simulated instruments; start it on the Bench view)' },
+    { name: 'time-scale', kind: 'number', description: 'virtual bench seconds per wall-clock second, with --virtual', defaultValue: DEFAULT_VIRTUAL_TIME_SCALE, placeholder: 'N' },
+    { name: 'max-amplitude', kind: 'number', description: 'maximum stimulus, V peak-to-peak (else set it on the Bench view)', placeholder: 'VPP' },
+    { name: 'require-token', kind: 'flag', description: 'require the access token even on a loopback address' },
+  ],
+  details: `
+Open the printed address in a browser. On 127.0.0.1 (the default) only this
+machine can connect. With --host set to any other address a random access token
+is printed and every request without it is refused; anyone who can reach the
+address and has the token can drive your instruments, so share it with care.
+Stop with Ctrl+C: running sweeps are paused (resumable), nothing is lost.
+
+Examples:
+  rolloff serve --virtual --max-amplitude 2
+  rolloff serve --db bench.sqlite --port 9000`,
+
+  async run(parsed) {
+    const host = optionString(parsed, 'host') ?? '127.0.0.1';
+    const port = optionNumber(parsed, 'port') ?? 8765;
+    if (port < 0 || port > 65_535) throw new UserError(`--port ${port} is not a TCP port`, 'Use a number from 1 to 65535, or 0 for any free port.');
+    const virtual = optionFlag(parsed, 'virtual');
+    const timeScale = optionNumber(parsed, 'time-scale') ?? DEFAULT_VIRTUAL_TIME_SCALE;
+    if (!(timeScale > 0)) throw new UserError(`--time-scale ${timeScale} must be above 0`, 'Use 1 for real time, 10 for ten times faster.');
+    const maxStimulusVpp = optionNumber(parsed, 'max-amplitude');
+    if (maxStimulusVpp !== undefined && !(maxStimulusVpp > 0)) throw new UserError(`--max-amplitude ${maxStimulusVpp} must be above 0 V`, 'Give the largest peak-to-peak voltage the circuit may see, e.g. 2.');
+    const databasePath = resolveDatabasePath(optionString(parsed, 'db'));
+
+    const files = await bundleRenderer();
+    const hosted = openHostedService({ databasePath, maxStimulusVpp, virtualBench: virtual ? { timeScale } : undefined });
+    let webHost: Awaited<ReturnType<typeof startWebHost>>;
+    try {
+      webHost = await startWebHost({
+        api: hosted.api,
+        subscribe: hosted.subscribe,
+        files,
+        host,
+        port,
+        requireToken: optionFlag(parsed, 'require-token') || !isLoopbackHost(host),
+      });
+    } catch (error) {
+      await hosted.close();
+      const code = (error as NodeJS.ErrnoException).code;
+      if (code === 'EADDRINUSE') throw new UserError(`port ${port} on ${host} is already in use`, 'Pick another with --port, or --port 0 for any free port.');
+      if (code === 'EADDRNOTAVAIL' || code === 'ENOTFOUND') throw new UserError(`cannot listen on ${host}: no such address on this machine`, 'Use 127.0.0.1, or an address of one of this machine\'s network interfaces.');
+      if (code === 'EACCES') throw new UserError(`not allowed to listen on port ${port}`, 'Ports below 1024 need special rights; use a higher one.');
+      throw error;
+    }
+
+    const lines = [
+      `Rolloff is serving the window${virtual ? ' with the virtual bench (SIMULATED instruments)' : ''}.`,
+      `Database: ${databasePath}`,
+      `Open ${webHost.url}`,
+    ];
+    if (webHost.token) lines.push(`Access token: ${webHost.token}`, '  Every request must carry it (the address above does); anyone with it can drive this bench.');
+    lines.push('Stop with Ctrl+C.', '', SAFETY_NOTICE_SHORT, '');
+    process.stdout.write(lines.join('\n'));
+
+    await new Promise<void>((resolvePromise) => {
+      const stop = () => resolvePromise();
+      process.once('SIGINT', stop);
+      process.once('SIGTERM', stop);
+    });
+    process.stdout.write('Stopping: pausing running sweeps and closing the database…\n');
+    await webHost.close();
+    await hosted.close();
+    return 0;
+  },
+};

@@ -1,0 +1,137 @@
+/**
+ * End to end in Debian's Chromium against the real `rolloff serve --virtual`
+ * (real service, real SQLite file in a temp dir, virtual bench over TCP on
+ * 127.0.0.1): pick a design, sweep, watch points and the gain-limit marker
+ * arrive, stop and resume, then compare two runs. Screenshots go to
+ * test/artifacts/ for a person to look at.
+ *
+ * The stage: inverting gain −RF/RN = −100 with a 1 MHz GBW op-amp; its
+ * gain-limit point is near GBW/noise gain = 1 MHz/101 ≈ 9.9 kHz (DESIGN.md,
+ * "Theory the tool must get right"), inside the 100 Hz – 200 kHz sweep.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { mkdirSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import type { Page } from 'playwright-core';
+import { chromiumAvailable, launchChromium } from './helpers/chromium';
+import { startServe, type ServeProcess } from './helpers/serve-process';
+
+const ARTIFACTS = resolve(__dirname, '../artifacts');
+
+describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff serve --virtual', () => {
+  let serve: ServeProcess;
+  let browser: Awaited<ReturnType<typeof launchChromium>>;
+  let page: Page;
+  const consoleErrors: string[] = [];
+
+  beforeAll(async () => {
+    mkdirSync(ARTIFACTS, { recursive: true });
+    serve = await startServe(['--virtual', '--time-scale', '1']);
+    browser = await launchChromium({ width: 1280, height: 800 });
+    page = await browser.context.newPage();
+    page.on('console', (message) => {
+      if (message.type() === 'error') consoleErrors.push(message.text());
+    });
+    page.on('pageerror', (error) => consoleErrors.push(String(error)));
+  });
+
+  afterAll(async () => {
+    await browser?.close();
+    await serve?.stop();
+  });
+
+  const shot = (name: string) => page.screenshot({ path: join(ARTIFACTS, `e2e-${name}.png`) });
+  const view = (key: string) => page.keyboard.press(`Alt+${key}`);
+
+  it('shows the safety notice on first start and remembers that it was read', async () => {
+    await page.goto(serve.url);
+    const dialog = page.getByTestId('safety-dialog');
+    await expect.poll(() => dialog.isVisible()).toBe(true);
+    expect(await dialog.textContent()).toMatch(/maximum stimulus amplitude you set/);
+    await shot('01-safety');
+    await page.getByTestId('safety-ok').click();
+    await page.reload();
+    await page.locator('.nav-button').first().waitFor();
+    expect(await page.getByTestId('safety-dialog').count()).toBe(0);
+  });
+
+  it('makes a design from a template, shows its theory as you type, saves it and creates a build', async () => {
+    await view('2');
+    await page.getByTestId('template').selectOption('inverting-gain');
+    await page.locator('input[data-param="rf"]').fill('100k');
+    await page.getByTestId('make-template').click();
+    const gainLimit = page.locator('[data-figure="gain-limit"]');
+    await expect.poll(() => gainLimit.textContent()).toMatch(/kHz/);
+    const before = await gainLimit.textContent();
+    // Editing a value re-computes theory in the window: RF 100k → 47k moves the gain-limit point up.
+    await page.locator('input[data-part-input="RF value (Ω)"]').fill('47k');
+    await expect.poll(() => gainLimit.textContent()).not.toBe(before);
+    await page.locator('input[data-part-input="RF value (Ω)"]').fill('100k');
+    await expect.poll(() => gainLimit.textContent()).toBe(before);
+    await page.getByTestId('design-name').fill('Gain −100 stage (invented example)');
+    await page.getByTestId('save-design').click();
+    await expect.poll(() => page.getByTestId('design-saved-state').textContent()).toMatch(/Saved as #1/);
+    await page.getByTestId('build-label').fill('board A');
+    await page.getByTestId('create-build').click();
+    await expect.poll(() => page.locator('.notice-info').last().textContent()).toMatch(/Build "board A" created/);
+    await shot('02-design');
+  });
+
+  it('sets the maximum stimulus and starts the virtual bench, labelled simulated', async () => {
+    await view('1');
+    await page.getByTestId('max-stimulus').fill('2');
+    await page.getByRole('button', { name: 'Apply' }).click();
+    await expect.poll(() => page.locator('.notice-info').last().textContent()).toMatch(/Maximum stimulus set to 2 Vpp/);
+    await page.getByTestId('start-virtual').click();
+    await expect.poll(() => page.getByTestId('bench-chip').textContent(), { timeout: 20_000 }).toMatch(/3 instruments — SIMULATED/);
+    await expect.poll(() => page.getByTestId('instruments').locator('tbody tr').count()).toBe(3);
+    await expect.poll(() => page.getByTestId('traffic').locator('li').count()).toBeGreaterThan(0);
+    await shot('03-bench');
+  });
+
+  it('runs a sweep: points arrive on the plot, the gain-limit marker appears; stop and resume finish it', async () => {
+    await view('3');
+    await page.getByTestId('sweep-from').fill('100');
+    await page.getByTestId('sweep-to').fill('200k');
+    await page.getByTestId('sweep-ppd').fill('8');
+    await expect.poll(() => page.getByTestId('sweep-estimate').textContent()).toMatch(/points, about/);
+    await page.getByTestId('sweep-start').click();
+    const plot = page.locator('[data-testid="sweep-plot"] .bode');
+    const measured = async () => Number(await plot.getAttribute('data-measured-points'));
+    await expect.poll(measured, { timeout: 30_000 }).toBeGreaterThan(2);
+    await expect.poll(() => plot.locator('[data-marker="gain-limit"]').first().textContent()).toMatch(/gain limit \(theory\) \d/);
+    await shot('04-sweep-live');
+
+    await page.getByTestId('sweep-stop').click();
+    await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 20_000 }).toBe('stopped');
+    const atStop = await measured();
+    await page.getByTestId('sweep-resume').click();
+    await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 60_000 }).toBe('done');
+    await expect.poll(measured).toBeGreaterThan(atStop);
+    // After the run the measured figures come back from the service and are marked too.
+    await expect.poll(() => plot.locator('[data-marker="gain-limit"]').allTextContents(), { timeout: 10_000 }).toContainEqual(expect.stringMatching(/gain limit \(measured\)/));
+    expect(await page.getByTestId('run-events').locator('li').count()).toBeGreaterThan(0);
+    await shot('05-sweep-done');
+  });
+
+  it('compares two runs with the figure table and a difference plot', async () => {
+    await page.getByTestId('sweep-ppd').fill('4');
+    await page.getByTestId('sweep-start').click();
+    await expect.poll(() => page.getByTestId('run-header').textContent(), { timeout: 10_000 }).toMatch(/^Run #2:/);
+    await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 60_000 }).toBe('done');
+    await view('4');
+    await expect.poll(() => page.locator('[data-pick-run]').count()).toBe(2);
+    for (const box of await page.locator('[data-pick-run]').all()) await box.check();
+    await expect.poll(() => page.getByTestId('picked-count').textContent()).toBe('2 picked');
+    await shot('06-history');
+    await page.getByTestId('compare-picked').click();
+    const compare = page.locator('section[data-view="compare"]');
+    await expect.poll(() => compare.getAttribute('data-compared-runs'), { timeout: 20_000 }).toBe('2');
+    await expect.poll(() => page.getByTestId('compare-table').locator('tbody tr').count()).toBe(2);
+    await page.getByTestId('compare-reference').selectOption({ index: 1 });
+    await page.getByTestId('compare-run').click();
+    await expect.poll(() => page.getByTestId('compare-difference').locator('.u-title, .u-legend').count()).toBeGreaterThan(0);
+    await shot('07-compare');
+    expect(consoleErrors).toEqual([]);
+  });
+});

@@ -1,0 +1,42 @@
+/**
+ * Debian's Chromium driven by playwright-core, with the flags the project
+ * uses everywhere (DESIGN.md "Machines here") and a fresh profile per launch
+ * so first-start behaviour (the safety notice) is seen every time.
+ */
+import { chromium, type BrowserContext } from 'playwright-core';
+import { existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+
+export const CHROMIUM_PATH = '/usr/bin/chromium';
+export const CHROMIUM_ARGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+  '--no-first-run',
+];
+
+export function chromiumAvailable(): boolean {
+  return existsSync(CHROMIUM_PATH);
+}
+
+export async function launchChromium(viewport = { width: 1280, height: 800 }): Promise<{ context: BrowserContext; close(): Promise<void> }> {
+  const profileDir = mkdtempSync(join(tmpdir(), 'rolloff-chromium-'));
+  const context = await chromium.launchPersistentContext(profileDir, {
+    executablePath: CHROMIUM_PATH,
+    headless: true,
+    args: CHROMIUM_ARGS,
+    viewport,
+    acceptDownloads: true,
+  });
+  return {
+    context,
+    async close() {
+      await context.close();
+      rmSync(profileDir, { recursive: true, force: true });
+    },
+  };
+}

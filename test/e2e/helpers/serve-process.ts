@@ -1,0 +1,60 @@
+/**
+ * Runs the real `rolloff serve` as a child process (the same command a user
+ * types) on a temp database and an ephemeral port, and reads the address it
+ * prints.
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+
+const ROOT = resolve(__dirname, '../../..');
+
+export interface ServeProcess {
+  url: string;
+  dbPath: string;
+  output: () => string;
+  stop(): Promise<void>;
+}
+
+export async function startServe(extraArgs: string[] = []): Promise<ServeProcess> {
+  const dir = mkdtempSync(join(tmpdir(), 'rolloff-serve-'));
+  const dbPath = join(dir, 'bench.sqlite');
+  const child: ChildProcess = spawn(process.execPath, ['app/cli/bin.mjs', 'serve', '--port', '0', '--db', dbPath, ...extraArgs], {
+    cwd: ROOT,
+    stdio: ['ignore', 'pipe', 'pipe'],
+    env: { ...process.env, NO_COLOR: '1' },
+  });
+  let output = '';
+  child.stdout!.on('data', (chunk) => (output += chunk));
+  child.stderr!.on('data', (chunk) => (output += chunk));
+  const url = await new Promise<string>((resolvePromise, reject) => {
+    const timer = setTimeout(() => reject(new Error(`rolloff serve printed no address within 30 s:\n${output}`)), 30_000);
+    const check = () => {
+      const match = /(http:\/\/127\.0\.0\.1:\d+\/\S*)/.exec(output);
+      if (match) {
+        clearTimeout(timer);
+        resolvePromise(match[1]);
+      }
+    };
+    child.stdout!.on('data', check);
+    child.on('exit', (code) => {
+      clearTimeout(timer);
+      reject(new Error(`rolloff serve exited with ${code}:\n${output}`));
+    });
+  });
+  return {
+    url,
+    dbPath,
+    output: () => output,
+    async stop() {
+      if (child.exitCode === null) {
+        const exited = new Promise((r) => child.once('exit', r));
+        child.kill('SIGTERM');
+        await Promise.race([exited, new Promise((r) => setTimeout(r, 5_000))]);
+        if (child.exitCode === null) child.kill('SIGKILL');
+      }
+      rmSync(dir, { recursive: true, force: true });
+    },
+  };
+}
