@@ -39,7 +39,9 @@ export interface LeastSquaresProblem {
   confidenceLevel?: number;
   /**
    * The residuals are already divided by known standard uncertainties: the
-   * covariance is (JᵀJ)⁻¹ without rescaling by the residual scatter.
+   * covariance is (JᵀJ)⁻¹, enlarged by χ²/(m − n) when that exceeds 1 (the
+   * scatter says the uncertainties or the model are too optimistic — the
+   * Particle Data Group's scale-factor practice, recalled from memory).
    */
   residualsAreStandardized?: boolean;
 }
@@ -270,7 +272,7 @@ function summarize(
   const degreesOfFreedom = m - n;
   const standardized = problem.residualsAreStandardized === true;
   const residualVariance = degreesOfFreedom > 0 ? cost / degreesOfFreedom : Number.NaN;
-  const varianceScale = standardized ? 1 : residualVariance;
+  const varianceScale = standardized ? (degreesOfFreedom > 0 ? Math.max(1, residualVariance) : 1) : residualVariance;
   const coverageFactor = standardized
     ? studentTQuantile(0.5 + confidenceLevel / 2, 1e9)
     : degreesOfFreedom > 0

@@ -98,6 +98,27 @@ describe('levenbergMarquardt', () => {
     expect(result.atBound).toEqual(['c']);
   });
 
+  it('with standardized residuals, trusts the given uncertainties unless the scatter exceeds them', () => {
+    // Straight line y = 2t + 1 through points with σ = 0.1 (common practice, no source). With scatter matching σ the
+    // slope's std is σ/√Σ(t − t̄)²; scatter ten times σ must enlarge it by about √(χ²/ν) ≈ 10.
+    const t = Float64Array.from({ length: 50 }, (_, i) => i / 10);
+    const gaussian = seededGaussian(4);
+    const noise = t.map(() => gaussian());
+    const fitWith = (scatter: number) =>
+      levenbergMarquardt({
+        parameters: [{ name: 'slope', initial: 1 }, { name: 'intercept', initial: 0 }],
+        residuals: (p) => t.map((x, i) => (p[0] * x + p[1] - (2 * x + 1 + scatter * noise[i])) / 0.1),
+        residualsAreStandardized: true,
+      });
+    const mean = t.reduce((a, b) => a + b, 0) / t.length;
+    const expectedStd = 0.1 / Math.sqrt(t.reduce((a, x) => a + (x - mean) ** 2, 0));
+    expect(fitWith(0.1).standardErrors[0] / expectedStd).toBeGreaterThan(0.99);
+    expect(fitWith(0.1).standardErrors[0] / expectedStd).toBeLessThan(1.3);
+    const ratio = fitWith(1).standardErrors[0] / expectedStd;
+    expect(ratio).toBeGreaterThan(7);
+    expect(ratio).toBeLessThan(13);
+  });
+
   it('refuses impossible set-ups with clear errors', () => {
     expect(() => levenbergMarquardt({ parameters: [{ name: 'x', initial: -1, logScale: true }], residuals: () => new Float64Array(3) })).toThrow(/positive/);
     expect(() => levenbergMarquardt({ parameters: [{ name: 'x', initial: 1 }, { name: 'y', initial: 1 }], residuals: () => new Float64Array(1) })).toThrow(/cannot determine/);
