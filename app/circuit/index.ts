@@ -15,6 +15,6 @@ export { logStageIdeal } from './log-stage';
 export { thermalVoltageV, BOLTZMANN_J_PER_K, ELEMENTARY_CHARGE_C } from './thermal-voltage';
 export { monteCarloAc, type MonteCarloOptions, type MonteCarloBand, type ToleranceDistribution } from './monte-carlo';
 export { SeededRandom } from './random';
-export { slowestTimeConstantS } from './time-constant';
+export { slowestTimeConstantS, circuitPoles, type Poles } from './time-constant';
 export { TEMPLATES, makeDesignFromTemplate, type DesignFile } from './templates';
 export { toSpiceNetlist, spiceNames, type SpiceAnalysis, type SpiceOptions, type SpiceNames } from './spice-netlist';
