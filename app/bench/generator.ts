@@ -20,10 +20,12 @@ export interface GeneratorOptions {
 }
 
 interface OutputState {
-  function: 'sine' | 'dc' | undefined;
+  shape: 'sine' | 'dc' | undefined;
   frequencyHz: number | undefined;
-  amplitudeVpp: number;
-  offsetV: number;
+  /** What the instrument holds; undefined until we have set it (its own value is unknown). */
+  amplitudeVpp: number | undefined;
+  offsetV: number | undefined;
+  outputOn: boolean;
 }
 
 export class ProfileGenerator implements GeneratorControl {
@@ -31,8 +33,8 @@ export class ProfileGenerator implements GeneratorControl {
   readonly maxStimulusVpp: number;
   private readonly runner: OperationRunner;
   private load: LoadSetting = 'high-z';
-  // Until we have set them, assume the instrument's own amplitude/offset are 0 (output is switched off at open).
-  private state: OutputState = { function: undefined, frequencyHz: undefined, amplitudeVpp: 0, offsetV: 0 };
+  // The instrument's own settings are unknown until we set them; openInstrument switches the output off first.
+  private state: OutputState = { shape: undefined, frequencyHz: undefined, amplitudeVpp: undefined, offsetV: undefined, outputOn: false };
 
   constructor(
     private readonly session: ScpiSession,
@@ -61,39 +63,40 @@ export class ProfileGenerator implements GeneratorControl {
     }
     this.checkLimit('this sine setting', amplitudeVpp, offsetV, this.load);
 
-    if (this.state.function !== 'sine') {
-      await this.runner.set('sineFunction');
-      this.state.function = 'sine';
-    }
-    if (this.state.frequencyHz !== frequencyHz) {
-      await this.runner.set('frequency', { frequencyHz });
-      this.state.frequencyHz = frequencyHz;
-    }
-    await this.applyLevels(amplitudeVpp, offsetV);
+    await this.withOutputOffForShapeChange('sine', async () => {
+      if (this.state.frequencyHz !== frequencyHz) {
+        await this.runner.set('frequency', { frequencyHz });
+        this.state.frequencyHz = frequencyHz;
+      }
+      await this.applyLevels(amplitudeVpp, offsetV);
+    });
   }
 
   async configureDc(levelV: number): Promise<void> {
     checkFinite('levelV', levelV);
     this.checkLimit(`DC level ${levelV} V`, 0, levelV, this.load);
-    if (this.state.function !== 'dc') {
-      // Amplitude is meaningless for DC; the offset command sets the level.
-      await this.runner.set('dcFunction');
-      this.state.function = 'dc';
-      this.state.amplitudeVpp = 0;
-    }
-    if (this.state.offsetV !== levelV) {
-      await this.runner.set('offset', { offsetV: levelV });
-      this.state.offsetV = levelV;
-    }
+    // The offset command sets the DC level; the sine amplitude the instrument keeps does not reach the output.
+    await this.withOutputOffForShapeChange('dc', async () => {
+      if (this.state.offsetV !== levelV) {
+        await this.runner.set('offset', { offsetV: levelV });
+        this.state.offsetV = levelV;
+      }
+    });
   }
 
   async setOutput(on: boolean): Promise<void> {
+    if (on && this.state.shape === undefined) {
+      // Whatever the instrument was left at could exceed the limit: never switch that on.
+      throw new ValidationError('setOutput', 'the generator has not been configured in this session', 'Call configureSine or configureDc before switching the output on.');
+    }
     await this.runner.set(on ? 'outputOn' : 'outputOff');
+    this.state.outputOn = on;
   }
 
   async setLoad(load: LoadSetting): Promise<void> {
     // '50-ohm' doubles the open-circuit voltage of the present setting: check first.
-    this.checkLimit(`switching the load setting to ${load}`, this.state.amplitudeVpp, this.state.offsetV, load);
+    const amplitudeVpp = this.state.shape === 'sine' ? this.state.amplitudeVpp ?? 0 : 0;
+    this.checkLimit(`switching the load setting to ${load}`, amplitudeVpp, this.state.offsetV ?? 0, load);
     await this.runner.set(load === '50-ohm' ? 'load50Ohm' : 'loadHighZ');
     this.load = load;
   }
@@ -105,6 +108,21 @@ export class ProfileGenerator implements GeneratorControl {
 
   get loadSetting(): LoadSetting {
     return this.load;
+  }
+
+  /**
+   * Changing between sine and DC exposes settings the other shape kept (a DC
+   * level becomes the sine's offset, a remembered sine amplitude reappears),
+   * which could exceed the limit for a moment: do it with the output off.
+   */
+  private async withOutputOffForShapeChange(shape: 'sine' | 'dc', configure: () => Promise<void>): Promise<void> {
+    if (this.state.shape === shape) return configure();
+    const wasOn = this.state.outputOn;
+    if (wasOn) await this.setOutput(false);
+    await this.runner.set(shape === 'sine' ? 'sineFunction' : 'dcFunction');
+    this.state.shape = shape;
+    await configure();
+    if (wasOn) await this.setOutput(true);
   }
 
   /** Applies amplitude and offset, decreases first, so each intermediate state is within old or new. */
@@ -120,7 +138,7 @@ export class ProfileGenerator implements GeneratorControl {
       await this.runner.set('offset', { offsetV });
       this.state.offsetV = offsetV;
     };
-    const offsetGrows = Math.abs(offsetV) > Math.abs(this.state.offsetV);
+    const offsetGrows = Math.abs(offsetV) > Math.abs(this.state.offsetV ?? 0);
     if (offsetGrows) {
       await setAmplitude();
       await setOffset();

@@ -135,6 +135,7 @@ describe('virtual bench over TCP on 127.0.0.1', () => {
     const generator = await openInstrument(dcBench.addresses.generator, 'generator', 'scpi-generator', { maxStimulusVpp: 20 });
     const meter = await openInstrument(dcBench.addresses.meter, 'meter', 'scpi-meter');
     try {
+      await generator.control.configureDc(0);
       await generator.control.setOutput(true);
       await meter.control.setIntegration(0.02);
       const levels = Float64Array.of(0.01, 0.1, 1, 10);

@@ -93,6 +93,28 @@ describe('GeneratorControl stimulus limit', () => {
     await expect(control.configureSine({ frequencyHz: Number.NaN, amplitudeVpp: 1, offsetV: 0 })).rejects.toBeInstanceOf(ValidationError);
   });
 
+  it('will not switch the output on before the generator is configured (its own settings are unknown)', async () => {
+    const { control, received } = await fakeGenerator(2);
+    const before = received.length;
+    await expect(control.setOutput(true)).rejects.toThrow(/not been configured/);
+    expect(received.length).toBe(before);
+  });
+
+  it('switches between sine and DC with the output off, so a remembered setting never reaches the circuit', async () => {
+    const { control, received } = await fakeGenerator(2);
+    await control.configureSine({ frequencyHz: 1000, amplitudeVpp: 2, offsetV: 0 });
+    await control.setOutput(true);
+    received.length = 0;
+    await control.configureDc(0.9);
+    await control.configureSine({ frequencyHz: 1000, amplitudeVpp: 0.2, offsetV: 0 });
+    const sent = settings(received);
+    // DC 0.9 V kept as offset under a remembered 2 Vpp sine would be 2·(1 + 0.9) = 3.8 Vpp: must not happen live.
+    expect(sent).toEqual([
+      'OUTPut:STATe OFF', 'SOURce:FUNCtion DC', 'SOURce:VOLTage:OFFSet 0.9', 'OUTPut:STATe ON',
+      'OUTPut:STATe OFF', 'SOURce:FUNCtion SINusoid', 'SOURce:VOLTage:OFFSet 0', 'SOURce:VOLTage 0.2', 'OUTPut:STATe ON',
+    ]);
+  });
+
   it('will not open a generator without a maximum stimulus', async () => {
     const { a } = memoryTransportPair();
     await expect(openInstrument('memory', 'generator', 'scpi-generator', { transport: a })).rejects.toThrow(/maxStimulusVpp/);
