@@ -55,10 +55,11 @@ export function writerAppVersion(db: Database.Database): string | undefined {
 /** Applies every migration above the file's version; returns the versions applied. */
 export function applyMigrations(db: Database.Database, migrations: Migration[], appVersion: string, now: () => string): number[] {
   const applied: number[] = [];
-  const current = schemaVersionOf(db);
   for (const migration of migrations) {
-    if (migration.version <= current) continue;
-    db.transaction(() => {
+    if (migration.version <= schemaVersionOf(db)) continue;
+    // IMMEDIATE takes the write lock first, so a second process opening the same new file waits, then sees the version and skips.
+    const ran = db.transaction(() => {
+      if (migration.version <= schemaVersionOf(db)) return false;
       db.exec(`CREATE TABLE IF NOT EXISTS schema_migrations (
         version INTEGER PRIMARY KEY, name TEXT NOT NULL, applied_at TEXT NOT NULL, app_version TEXT NOT NULL)`);
       db.exec(migration.sql);
@@ -70,8 +71,9 @@ export function applyMigrations(db: Database.Database, migrations: Migration[], 
       );
       // user_version lives in the file header; setting it inside the transaction commits it atomically with the schema.
       db.pragma(`user_version = ${migration.version}`);
+      return true;
     }).immediate();
-    applied.push(migration.version);
+    if (ran) applied.push(migration.version);
   }
   return applied;
 }

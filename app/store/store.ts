@@ -206,28 +206,27 @@ export class Store {
 
   private prepareStatements() {
     const db = this.db;
-    const writer = (sql: string) => db.prepare(sql);
     return {
-      insertDesign: writer('INSERT INTO designs (name, design_json, created_at) VALUES (?, ?, ?)'),
+      insertDesign: db.prepare('INSERT INTO designs (name, design_json, created_at) VALUES (?, ?, ?)'),
       getDesign: db.prepare('SELECT * FROM designs WHERE id = ?'),
       listDesigns: db.prepare('SELECT * FROM designs ORDER BY id'),
-      insertBuild: writer('INSERT INTO builds (design_id, label, notes, actual_values_json, created_at) VALUES (?, ?, ?, ?, ?)'),
+      insertBuild: db.prepare('INSERT INTO builds (design_id, label, notes, actual_values_json, created_at) VALUES (?, ?, ?, ?, ?)'),
       getBuild: db.prepare('SELECT * FROM builds WHERE id = ?'),
       listBuilds: db.prepare('SELECT * FROM builds WHERE (@designId IS NULL OR design_id = @designId) ORDER BY id'),
-      upsertInstrument: writer(`INSERT INTO instruments (role, identity_text, identity_json, address, first_seen_at, last_seen_at)
+      upsertInstrument: db.prepare(`INSERT INTO instruments (role, identity_text, identity_json, address, first_seen_at, last_seen_at)
         VALUES (?, ?, ?, ?, ?, ?)
         ON CONFLICT (identity_text, address) DO UPDATE SET last_seen_at = excluded.last_seen_at, role = excluded.role`),
       getInstrument: db.prepare('SELECT * FROM instruments WHERE identity_text = ? AND address = ?'),
       listInstruments: db.prepare('SELECT * FROM instruments ORDER BY last_seen_at DESC, id DESC'),
-      insertRun: writer(`INSERT INTO runs (build_id, kind, request_json, planned_count, status, created_at,
+      insertRun: db.prepare(`INSERT INTO runs (build_id, kind, request_json, planned_count, status, created_at,
         software_version, bench_json, operator, notes, simulated, schedule_id)
         VALUES (?, ?, ?, ?, 'planned', ?, ?, ?, ?, ?, ?, ?)`),
-      insertPlan: writer('INSERT INTO run_plans (run_id, plan_json) VALUES (?, ?)'),
-      setStatus: writer(`UPDATE runs SET status = @status,
+      insertPlan: db.prepare('INSERT INTO run_plans (run_id, plan_json) VALUES (?, ?)'),
+      setStatus: db.prepare(`UPDATE runs SET status = @status,
         started_at = CASE WHEN @status = 'running' THEN COALESCE(started_at, @at) ELSE started_at END,
         ended_at = CASE WHEN @finished = 1 THEN @at WHEN @status = 'running' THEN NULL ELSE ended_at END
         WHERE id = @runId`),
-      setResults: writer('UPDATE runs SET figures_json = ?, verdict_json = ? WHERE id = ?'),
+      setResults: db.prepare('UPDATE runs SET figures_json = ?, verdict_json = ? WHERE id = ?'),
       getRun: db.prepare(`SELECT r.*, p.plan_json, b.label AS build_label, d.name AS design_name FROM runs r
         JOIN run_plans p ON p.run_id = r.id
         JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id WHERE r.id = ?`),
@@ -238,21 +237,21 @@ export class Store {
           AND (@search IS NULL OR b.label LIKE @search ESCAPE '\\' OR d.name LIKE @search ESCAPE '\\' OR r.notes LIKE @search ESCAPE '\\')
         ORDER BY r.id DESC LIMIT @limit`),
       interruptedRuns: db.prepare(`SELECT r.id FROM runs r WHERE r.status IN ('running', 'paused') ORDER BY r.id`),
-      insertPoint: writer(`INSERT INTO points (run_id, step, stimulus, amplitude_vpp, input_reading, output_reading,
+      insertPoint: db.prepare(`INSERT INTO points (run_id, step, stimulus, amplitude_vpp, input_reading, output_reading,
         gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at_ms) VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?)`),
-      countPoints: writer('UPDATE runs SET point_count = point_count + ? WHERE id = ?'),
+      countPoints: db.prepare('UPDATE runs SET point_count = point_count + ? WHERE id = ?'),
       loadPoints: db
         .prepare(`SELECT step, stimulus, amplitude_vpp, gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at_ms
           FROM points WHERE run_id = ? ORDER BY step`)
         .raw(true),
       nextStep: db.prepare('SELECT COALESCE(MAX(step), -1) + 1 AS next FROM points WHERE run_id = ?'),
       runExists: db.prepare('SELECT 1 FROM runs WHERE id = ?'),
-      insertEvent: writer('INSERT INTO run_events (run_id, at, level, message) VALUES (?, ?, ?, ?)'),
+      insertEvent: db.prepare('INSERT INTO run_events (run_id, at, level, message) VALUES (?, ?, ?, ?)'),
       listEvents: db.prepare('SELECT at, level, message FROM run_events WHERE run_id = ? ORDER BY id'),
-      insertCalibration: writer(`INSERT INTO calibrations (bench_key, bench_json, frequencies_hz_json, gain_db_json, phase_deg_json, notes, created_at)
+      insertCalibration: db.prepare(`INSERT INTO calibrations (bench_key, bench_json, frequencies_hz_json, gain_db_json, phase_deg_json, notes, created_at)
         VALUES (?, ?, ?, ?, ?, ?, ?)`),
       latestCalibration: db.prepare('SELECT * FROM calibrations WHERE bench_key = ? ORDER BY id DESC LIMIT 1'),
-      insertSchedule: writer(`INSERT INTO schedules (build_id, request_json, every_minutes, run_count, until_at, created_at)
+      insertSchedule: db.prepare(`INSERT INTO schedules (build_id, request_json, every_minutes, run_count, until_at, created_at)
         VALUES (?, ?, ?, ?, ?, ?)`),
       getSchedule: db.prepare('SELECT * FROM schedules WHERE id = ?'),
     };

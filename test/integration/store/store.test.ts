@@ -160,6 +160,24 @@ describe('opening and migrations', () => {
     raw.close();
   });
 
+  it('migrates a new file once when two processes open it at the same moment', async () => {
+    const path = join(folder, 'shared.sqlite');
+    const openInChild = () =>
+      new Promise<{ code: number | null; stdout: string; stderr: string }>((resolve) => {
+        const child = spawn(process.execPath, ['--import', 'tsx', join(__dirname, 'open-and-report.ts'), path], { stdio: ['ignore', 'pipe', 'pipe'] });
+        let stdout = '';
+        let stderr = '';
+        child.stdout.on('data', (chunk) => (stdout += chunk));
+        child.stderr.on('data', (chunk) => (stderr += chunk));
+        child.on('exit', (code) => resolve({ code, stdout, stderr }));
+      });
+    const results = await Promise.all([openInChild(), openInChild()]);
+    expect(results.map((r) => r.stderr)).toEqual(['', '']);
+    expect(results.map((r) => r.code)).toEqual([0, 0]);
+    const applied = results.flatMap((r) => JSON.parse(r.stdout) as number[]);
+    expect(applied.sort()).toEqual(loadMigrations().map((m) => m.version)); // each migration applied by exactly one process
+  });
+
   it('refuses misnumbered migration folders', () => {
     const migrationsDir = join(folder, 'gappy');
     mkdirSync(migrationsDir);
