@@ -35,22 +35,19 @@ class PdfFlow {
     }
   }
 
-  /** Writes wrapped text at the cursor and moves the cursor below it. */
+  /**
+   * Writes wrapped text at the cursor and moves the cursor below it. Text taller than
+   * what is left of the page continues on the next page (pdfkit breaks it at the
+   * bottom margin); the cursor follows to where the text ended.
+   */
   text(text: string, options: { font?: string; size?: number; color?: string; x?: number; width?: number; gap?: number } = {}): void {
     const { doc } = this;
     const printable = this.fonts.printable(text);
     doc.font(options.font ?? this.fonts.regular).fontSize(options.size ?? 8.5).fillColor(options.color ?? '#000');
     const width = options.width ?? CONTENT_WIDTH;
-    const height = doc.heightOfString(printable || ' ', { width });
-    this.ensure(Math.min(height, BOTTOM - MARGIN));
-    // Long text (a design file, long notes) may run over the page end; draw it line by line.
-    if (this.y + height > BOTTOM) {
-      for (const line of printable.split('\n')) this.text(line, { ...options, gap: 0 });
-      this.y += options.gap ?? 4;
-      return;
-    }
-    doc.text(printable, options.x ?? MARGIN, this.y, { width });
-    this.y += height + (options.gap ?? 4);
+    this.ensure(Math.min(doc.heightOfString(printable || ' ', { width }), 3 * doc.currentLineHeight(true)));
+    doc.text(printable || ' ', options.x ?? MARGIN, this.y, { width });
+    this.y = doc.y + (options.gap ?? 4);
   }
 }
 
@@ -129,10 +126,14 @@ function drawKeyValues(flow: PdfFlow, rows: Array<[string, string]>): void {
     const printableValue = fonts.printable(value);
     doc.font(fonts.regular).fontSize(8);
     const height = Math.max(doc.heightOfString(printableValue || ' ', { width: CONTENT_WIDTH - keyWidth }), doc.font(fonts.bold).heightOfString(fonts.printable(key), { width: keyWidth - 6 }));
-    flow.ensure(height + 2);
+    flow.ensure(Math.min(height, 3 * doc.currentLineHeight(true)) + 2);
     doc.font(fonts.bold).fontSize(8).fillColor('#333').text(fonts.printable(key), MARGIN, flow.y, { width: keyWidth - 6 });
-    doc.font(fonts.regular).fontSize(8).fillColor('#000').text(printableValue, MARGIN + keyWidth, flow.y, { width: CONTENT_WIDTH - keyWidth });
-    flow.y += height + 2;
+    const keyBottom = doc.y;
+    const pagesBefore = doc.bufferedPageRange().count;
+    // A value taller than the page (very long notes) continues on the next page.
+    doc.font(fonts.regular).fontSize(8).fillColor('#000').text(printableValue || ' ', MARGIN + keyWidth, flow.y, { width: CONTENT_WIDTH - keyWidth });
+    const samePage = doc.bufferedPageRange().count === pagesBefore;
+    flow.y = (samePage ? Math.max(keyBottom, doc.y) : doc.y) + 2;
   }
   flow.y += 4;
 }
@@ -188,7 +189,8 @@ export function pdfRecord(document: RecordDocument, options: PdfOptions = {}): P
   const fonts = choosePdfFonts(!options.standardFontsOnly);
   const doc = new PDFDocument({
     size: 'A4',
-    margins: { top: MARGIN, bottom: MARGIN, left: MARGIN, right: MARGIN },
+    // The bottom margin leaves room for the footer; pdfkit breaks long text there.
+    margins: { top: MARGIN, bottom: PAGE.height - BOTTOM, left: MARGIN, right: MARGIN },
     bufferPages: true,
     autoFirstPage: true,
     info: { Title: fonts.printable(document.title), Creator: 'Rolloff', Producer: 'Rolloff (pdfkit)', CreationDate: options.createdAt ?? new Date() },

@@ -78,6 +78,18 @@ describe('PDF run record', () => {
     expect(text).toContain(squeeze('Pass-band gain 17.2 dB outside [19, 21] dB.'));
   });
 
+  it.each([false, true])('odd text (CJK, emoji, control characters, very long notes) renders without breaking the page (standard fonts: %s)', async (standardFontsOnly) => {
+    const detail = acRunDetail();
+    detail.request.notes = `${'long note '.repeat(3000)}\u0007end`;
+    const record = buildRunRecord(detail, { design: FIXTURE_DESIGN, build: fixtureBuild({ label: 'Board 测试 😀 tab\there\u0001' }), generatedAt: '2026-12-01T12:00:00.000Z' });
+    const path = await writePdf(record, `odd-${standardFontsOnly}.pdf`, standardFontsOnly);
+    expect(renderPages(path, `odd-${standardFontsOnly}-page`)).toHaveLength(pageCount(path));
+    const text = squeezedText(path);
+    expect(text).toContain('Board');
+    expect(text).toContain('longnoteend');
+    expect(text).toContain(record.digest.hex);
+  });
+
   it('the same record gives the same PDF bytes (fixed creation date)', async () => {
     const a = await renderRecord(hostileFreeRunRecord(), 'pdf');
     const b = await renderRecord(hostileFreeRunRecord(), 'pdf');

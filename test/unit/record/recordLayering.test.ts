@@ -5,6 +5,7 @@
  */
 import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { build } from 'esbuild';
 import { describe, expect, it } from 'vitest';
 
 const RECORD_DIR = new URL('../../../app/record/', import.meta.url).pathname;
@@ -32,6 +33,12 @@ describe('app/record layering', () => {
       }
     }
     expect(problems).toEqual([]);
+  });
+
+  it('the window-safe entry (pure.ts) bundles for the browser with no Node built-ins', async () => {
+    const result = await build({ entryPoints: [join(RECORD_DIR, 'pure.ts')], bundle: true, platform: 'browser', format: 'esm', write: false, logLevel: 'silent' });
+    expect(result.errors).toEqual([]);
+    expect(result.outputFiles[0].text).toContain('rolloff-run-digest-1');
   });
 
   it('the check sees the Node side (guards against a vacuous pass)', () => {

@@ -1,0 +1,35 @@
+/**
+ * The text formats of a record (HTML, CSV, JSON) without the PDF writer, so the
+ * window can render them too: this file and everything it imports are pure.
+ */
+import type { AnyRecord } from './model';
+import { comparisonCsv, runCsv } from './csvRecord';
+import { comparisonDocument } from './comparisonDocument';
+import { htmlRecord } from './htmlRecord';
+import { recordToJson } from './jsonRecord';
+import { runDocument } from './runDocument';
+import type { RecordDocument } from './recordDocument';
+
+export type TextRecordFormat = 'html' | 'csv' | 'json';
+
+export const TEXT_MIME_TYPES: Record<TextRecordFormat, string> = {
+  html: 'text/html; charset=utf-8',
+  csv: 'text/csv; charset=utf-8; header=present', // RFC 4180 §3
+  json: 'application/json',
+};
+
+/** The blocks a record shows, in order (shared by HTML and PDF). */
+export function recordDocument(record: AnyRecord): RecordDocument {
+  return record.recordType === 'run' ? runDocument(record) : comparisonDocument(record);
+}
+
+export function renderTextRecord(record: AnyRecord, format: TextRecordFormat): string {
+  switch (format) {
+    case 'html':
+      return htmlRecord(recordDocument(record));
+    case 'csv':
+      return record.recordType === 'run' ? runCsv(record) : comparisonCsv(record);
+    case 'json':
+      return recordToJson(record);
+  }
+}
