@@ -32,6 +32,11 @@ export interface AcSummary {
 /** −3 dB in the half-power sense: 20·log10(1/√2). */
 const HALF_POWER_DB = dbFromRatio(Math.SQRT1_2);
 
+/**
+ * `design` must be the one `response` was computed for: the −3 dB points and
+ * the peak are refined by re-solving it (ideal op-amps when the response's
+ * main curve equals its ideal curve, the op-amp model otherwise).
+ */
 export function summarizeAc(design: Design, response: AcResponse): AcSummary {
   const { frequencyHz, gainDb } = response;
   const count = frequencyHz.length;
