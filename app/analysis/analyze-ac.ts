@@ -5,7 +5,7 @@
 import type { RunFigures, Verdict, VerdictLimits } from '../service/contract';
 import { PointFlag } from '../service/contract';
 import { deviationDb, largestDeviation, outsideBand } from './deviation';
-import { measuredGainLimitHz, pastGainLimit } from './gain-limit';
+import { loopGainLimitHz, magnitudeGainLimitHz, pastGainLimit } from './gain-limit';
 import { HALF_POWER_DB, minus3dbFrequenciesHz, passbandGainDb } from './passband';
 import { rolloffDbPerDecade } from './rolloff';
 import { judge } from './verdict';
@@ -22,6 +22,8 @@ export interface MeasuredAcColumns {
 export interface TheoryAtPoints {
   gainDb: ArrayLike<number>;
   idealGainDb: ArrayLike<number>;
+  /** Ideal-op-amp phase; with measured phases it lets the gain-limit point be found from the loop gain. */
+  idealPhaseDeg?: ArrayLike<number>;
   bandLowDb?: ArrayLike<number>;
   bandHighDb?: ArrayLike<number>;
   gainLimitHz: number | undefined;
@@ -54,13 +56,18 @@ export function analyzeAcRun(
   const usable = (i: number) => (measured.flags[i] & (PointFlag.overrange | PointFlag.notANumber)) === 0 && Number.isFinite(measured.gainDb[i]);
   const freq: number[] = [];
   const gain: number[] = [];
+  const phase: number[] = [];
   const ideal: number[] = [];
+  const idealPhase: number[] = [];
   for (let i = 0; i < count; i++) {
     if (!usable(i)) continue;
     freq.push(measured.frequencyHz[i]);
     gain.push(measured.gainDb[i]);
+    phase.push(measured.phaseDeg[i]);
     ideal.push(theory.idealGainDb[i]);
+    idealPhase.push(theory.idealPhaseDeg?.[i] ?? NaN);
   }
+  const withPhase = freq.length > 0 && phase.every(Number.isFinite) && idealPhase.every(Number.isFinite);
   const passband = passbandGainDb(freq, gain);
   const deviations = deviationDb(measured.gainDb, theory.gainDb);
   const theoryPassband = passbandGainDb(measured.frequencyHz, theory.gainDb);
@@ -82,7 +89,7 @@ export function analyzeAcRun(
     passbandGainDb: passband,
     minus3dbHz,
     rolloffDbPerDecade: passband === undefined ? undefined : rolloffDbPerDecade(freq, gain, passband),
-    gainLimitHz: measuredGainLimitHz(freq, gain, ideal),
+    gainLimitHz: withPhase ? loopGainLimitHz(freq, gain, phase, ideal, idealPhase) : magnitudeGainLimitHz(freq, gain, ideal),
     gbwEstimateHz: gbw?.gbwHz,
     gbwUncertaintyHz: gbw?.gbwUncertaintyHz,
     maxDeviationDb: worst?.deviationDb,

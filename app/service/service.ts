@@ -497,8 +497,9 @@ export class RolloffService implements RolloffApi {
           const usable = points.stimulus.map((_, i) => i).filter((i) => Number.isFinite(points.gainDb[i]) && (points.flags[i] & (PointFlag.overrange | PointFlag.notANumber)) === 0);
           const frequencyHz = usable.map((i) => points.stimulus[i]);
           const gainDb = usable.map((i) => points.gainDb[i]);
-          const idealGainDb = idealGainAt(design, frequencyHz);
-          const wanted = refinementFrequencies({ frequencyHz, gainDb, idealGainDb }).slice(0, room);
+          const ideal = idealAt(design, frequencyHz);
+          const phaseDeg = usable.map((i) => points.phaseDeg[i]);
+          const wanted = refinementFrequencies({ frequencyHz, gainDb, idealGainDb: ideal.gainDb, phaseDeg, idealPhaseDeg: ideal.phaseDeg }).slice(0, room);
           if (wanted.length === 0) return [];
           const extra = planStepsAt(Float64Array.from(wanted), planInput).columns;
           return wanted.map((stimulus, k) => ({ step: firstStep + k, stimulus, amplitudeVpp: extra.amplitudeVpp[k], settleS: extra.settleS[k], integrateS: extra.integrateS[k], averages, refinement: true }));
@@ -579,11 +580,9 @@ export class RolloffService implements RolloffApi {
   }
 }
 
-function idealGainAt(design: Design, frequencyHz: number[]): number[] {
-  if (frequencyHz.length === 0) return [];
-  return Array.from(solveIdeal(design, frequencyHz));
-}
-
-function solveIdeal(design: Design, frequencyHz: number[]): Float64Array {
-  return solveAc(design, Float64Array.from(frequencyHz)).idealGainDb;
+/** Ideal-op-amp response of the build at the measured frequencies (refinement targets). */
+function idealAt(design: Design, frequencyHz: number[]): { gainDb: number[]; phaseDeg: number[] } {
+  if (frequencyHz.length === 0) return { gainDb: [], phaseDeg: [] };
+  const response = solveAc(design, Float64Array.from(frequencyHz));
+  return { gainDb: Array.from(response.idealGainDb), phaseDeg: Array.from(response.idealPhaseDeg) };
 }

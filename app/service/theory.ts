@@ -82,6 +82,7 @@ export function theoryAtPoints(design: Design, stimulusHz: number[], figures: { 
     response,
     gainDb: response.gainDb,
     idealGainDb: response.idealGainDb,
+    idealPhaseDeg: response.idealPhaseDeg,
     bandLowDb: band?.gainLowDb,
     bandHighDb: band?.gainHighDb,
     gainLimitHz: figures.gainLimitHz,

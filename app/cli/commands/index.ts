@@ -11,6 +11,7 @@ import { sweepCommand } from './sweep';
 import { runsCommand } from './runs';
 import { showCommand } from './show';
 import { resumeCommand } from './resume';
+import { demoCommand } from './demo';
 import { portsCommand } from './ports';
 import { probeCommand } from './probe';
 import { queryCommand } from './query';
@@ -26,6 +27,7 @@ export const COMMANDS: CommandSpec[] = [
   runsCommand,
   showCommand,
   resumeCommand,
+  demoCommand,
   portsCommand,
   probeCommand,
   queryCommand,

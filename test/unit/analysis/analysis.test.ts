@@ -7,7 +7,8 @@ import { describe, expect, it } from 'vitest';
 import {
   analyzeAcRun,
   crossingsLogF,
-  measuredGainLimitHz,
+  magnitudeGainLimitHz,
+  loopGainLimitHz,
   minus3dbFrequenciesHz,
   passbandGainDb,
   rolloffDbPerDecade,
@@ -100,12 +101,44 @@ describe('measured gain-limit point of an inverting −100 stage, GBW 1 MHz', ()
 
   it('falls within 2 % of the loop-gain-1 point (|A| = noise gain 101, DESIGN.md theory)', () => {
     const expected = loopGainOneHz(101, 1e5, 1e6); // ≈ 9.9 kHz
-    const found = measuredGainLimitHz(f, measuredDb, idealDb)!;
+    const found = magnitudeGainLimitHz(f, measuredDb, idealDb)!;
     expect(Math.abs(found / expected - 1)).toBeLessThan(0.02);
   });
 
   it('is absent when the measurement follows the ideal response', () => {
-    expect(measuredGainLimitHz(f, idealDb, idealDb)).toBeUndefined();
+    expect(magnitudeGainLimitHz(f, idealDb, idealDb)).toBeUndefined();
+  });
+});
+
+describe('gain-limit point from the measured loop gain, reactive feedback', () => {
+  // Inverting low-pass: Z_F = RF ∥ CF, Z_N = RN; NG = 1 + Z_F/Z_N has phase, so |H/H_ideal| = −3 dB is NOT loop gain 1.
+  const RN = 1e3, RF = 100e3, CF = 100e-12, A0 = 1e5, GBW = 1e6;
+  type C = [number, number];
+  const mul = (a: C, b: C): C => [a[0] * b[0] - a[1] * b[1], a[0] * b[1] + a[1] * b[0]];
+  const div = (a: C, b: C): C => { const d = b[0] ** 2 + b[1] ** 2; return [(a[0] * b[0] + a[1] * b[1]) / d, (a[1] * b[0] - a[0] * b[1]) / d]; };
+  const zf = (f: number): C => div([RF, 0], [1, 2 * Math.PI * f * RF * CF]);
+  const ng = (f: number): C => { const r = div(zf(f), [RN, 0]); return [1 + r[0], r[1]]; };
+  const openLoop = (f: number): C => div([A0, 0], [1, (f * A0) / GBW]); // single pole, DESIGN.md
+  const idealH = (f: number): C => { const r = div(zf(f), [RN, 0]); return [-r[0], -r[1]]; };
+  const realH = (f: number): C => { const q = div(ng(f), openLoop(f)); return div(idealH(f), [1 + q[0], q[1]]); };
+  const db = (c: C) => dbFromRatio(Math.hypot(c[0], c[1]));
+  const deg = (c: C) => (Math.atan2(c[1], c[0]) * 180) / Math.PI;
+  // Exact loop-gain-1 point |A| = |NG| by bisection in log f (numerical, from the formulas above).
+  let lo = 100, hi = 1e7;
+  for (let k = 0; k < 100; k++) { const mid = Math.sqrt(lo * hi); if (Math.hypot(...openLoop(mid)) > Math.hypot(...ng(mid))) lo = mid; else hi = mid; }
+  const exactHz = lo;
+  const f = logGrid(100, 1e6, 10);
+  const measured = Array.from(f, realH);
+  const ideal = Array.from(f, idealH);
+
+  it('finds the loop-gain-1 point within 1 % from measured gain and phase', () => {
+    const found = loopGainLimitHz(f, measured.map(db), measured.map(deg), ideal.map(db), ideal.map(deg))!;
+    expect(Math.abs(found / exactHz - 1)).toBeLessThan(0.01);
+  });
+
+  it('while the magnitude-only −3 dB rule lands well below it here (why the phase method is preferred)', () => {
+    const magnitudeOnly = magnitudeGainLimitHz(f, measured.map(db), ideal.map(db))!;
+    expect(magnitudeOnly / exactHz).toBeLessThan(0.8);
   });
 });
 
