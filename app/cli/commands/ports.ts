@@ -1,18 +1,6 @@
 /** `rolloff ports`: the serial ports this machine has, with USB identities where known. */
-import { SerialPort } from 'serialport';
-import type { PortInfo } from '../../service/contract';
+import { listSerialPorts } from '../../scpi/list-ports';
 import { optionFlag, type CommandSpec } from '../args';
-
-export async function listSerialPorts(): Promise<PortInfo[]> {
-  const ports = await SerialPort.list();
-  return ports.map((p) => ({
-    path: p.path,
-    ...(p.manufacturer ? { manufacturer: p.manufacturer } : {}),
-    ...(p.serialNumber ? { serialNumber: p.serialNumber } : {}),
-    ...(p.vendorId ? { vendorId: p.vendorId } : {}),
-    ...(p.productId ? { productId: p.productId } : {}),
-  }));
-}
 
 export const portsCommand: CommandSpec = {
   name: 'ports',
