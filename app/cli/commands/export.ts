@@ -77,22 +77,29 @@ export async function exportFromDatabase(databasePath: string, runIds: number[],
   }
 }
 
-/** Where to write: --out as a file, or as a folder that receives the record's own file name. */
-function targetPath(out: string | undefined, fileName: string): string {
-  if (out === undefined) return resolve(fileName);
+/**
+ * Where to write, checked before any work is done: --out as a file, or as an existing
+ * folder that receives the record's own file name (known only after rendering).
+ */
+function targetFor(out: string | undefined, force: boolean): (fileName: string) => string {
+  const refuseExisting = (path: string) => {
+    if (existsSync(path) && !force) {
+      throw new ExportTargetExistsError(`${path} already exists; nothing was written.`, 'Give another --out, or add --force to replace it.');
+    }
+    return path;
+  };
+  if (out === undefined) return (fileName) => refuseExisting(resolve(fileName));
   const full = resolve(out);
-  if (existsSync(full) && statSync(full).isDirectory()) return join(full, fileName);
+  if (existsSync(full) && statSync(full).isDirectory()) return (fileName) => refuseExisting(join(full, fileName));
   if (out.endsWith('/') || out.endsWith('\\')) {
     throw new ValidationError('--out', `folder ${out} does not exist`, 'Create the folder first, or give a file name.');
   }
   if (!existsSync(dirname(full))) throw new ValidationError('--out', `folder ${dirname(full)} does not exist`, 'Create the folder first, or write somewhere else.');
-  return full;
+  refuseExisting(full);
+  return () => refuseExisting(full);
 }
 
-function writeWhole(path: string, bytes: Uint8Array, force: boolean): void {
-  if (existsSync(path) && !force) {
-    throw new ExportTargetExistsError(`${path} already exists; nothing was written.`, 'Give another --out, or add --force to replace it.');
-  }
+function writeWhole(path: string, bytes: Uint8Array): void {
   const temporary = join(dirname(path), `.${basename(path)}.${process.pid}.part`);
   try {
     writeFileSync(temporary, bytes, { flag: 'wx' });
@@ -138,14 +145,15 @@ Examples:
     const reference = referenceOf(parsed);
     if (typeof reference === 'number' && !runIds.includes(reference)) runIds = [reference, ...runIds];
     const databasePath = resolveDatabasePath(optionString(parsed, 'db'));
-    const exported = await exportFromDatabase(databasePath, runIds, format, reference ?? 'theory');
     const out = optionString(parsed, 'out');
-    if (out === '-') {
+    const target = out === '-' ? undefined : targetFor(out, optionFlag(parsed, 'force'));
+    const exported = await exportFromDatabase(databasePath, runIds, format, reference ?? 'theory');
+    if (!target) {
       process.stdout.write(exported.bytes);
       return 0;
     }
-    const path = targetPath(out, exported.fileName);
-    writeWhole(path, exported.bytes, optionFlag(parsed, 'force'));
+    const path = target(exported.fileName);
+    writeWhole(path, exported.bytes);
     process.stdout.write(`Wrote ${path} (${exported.bytes.length} bytes, ${exported.mimeType.split(';')[0]})\n`);
     return 0;
   },

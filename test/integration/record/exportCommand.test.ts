@@ -17,6 +17,7 @@ import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { readCsv, recordFromJson, type ComparisonRecord, type RunRecord } from '../../../app/record';
 import { RolloffService } from '../../../app/service/service';
 import type { RunDetail, SweepRequest } from '../../../app/service/contract';
+import { main } from '../../../app/cli/main';
 
 const run = promisify(execFile);
 const ROOT = resolve(__dirname, '../../..');
@@ -67,6 +68,38 @@ async function cli(...args: string[]): Promise<{ code: number; stdout: string; s
   }
 }
 
+/**
+ * The same dispatcher in this process (app/cli/main.ts), output captured: much faster
+ * than a child process on a busy machine. A few cases above still go through the real
+ * `bin.mjs` in a child process.
+ */
+async function cliHere(...args: string[]): Promise<{ code: number; stdout: string; stderr: string }> {
+  const out: string[] = [];
+  const err: string[] = [];
+  const capture = (sink: string[]) => ((chunk: string | Uint8Array) => {
+    sink.push(typeof chunk === 'string' ? chunk : Buffer.from(chunk).toString('utf8'));
+    return true;
+  }) as typeof process.stdout.write;
+  const { write: stdoutWrite } = process.stdout;
+  const { write: stderrWrite } = process.stderr;
+  const cwd = process.cwd();
+  const savedDb = process.env.ROLLOFF_DB;
+  process.stdout.write = capture(out);
+  process.stderr.write = capture(err);
+  process.chdir(folder);
+  process.env.ROLLOFF_DB = join(folder, 'no-such.sqlite');
+  try {
+    const code = await main(args);
+    return { code, stdout: out.join(''), stderr: err.join('') };
+  } finally {
+    process.stdout.write = stdoutWrite;
+    process.stderr.write = stderrWrite;
+    process.chdir(cwd);
+    if (savedDb === undefined) delete process.env.ROLLOFF_DB;
+    else process.env.ROLLOFF_DB = savedDb;
+  }
+}
+
 function request(buildId: number): SweepRequest {
   return {
     buildId, kind: 'ac', from: 100, to: 100e3, pointsPerDecade: 4, spacing: 'log', amplitude: { mode: 'auto' }, measurement: 'scope',
@@ -113,25 +146,25 @@ describe('rolloff export on a real virtual-bench run', () => {
     expect(text).toContain('BoardA<script>alert(1)</script>');
     for (const instrument of details[0].bench) expect(text).toContain(`${instrument.identity.manufacturer},${instrument.identity.model}`.replace(/\s+/g, ''));
     expect(text).toMatch(/Verdict:(PASS|FAIL)/);
-    const json = await cli('export', String(runIds[0]), '--json', '--db', databasePath, '--out', '-');
+    const json = await cliHere('export', String(runIds[0]), '--json', '--db', databasePath, '--out', '-');
     const record = recordFromJson(json.stdout, 'stdout') as RunRecord;
     expect(text).toContain(record.digest.hex);
   });
 
   it('JSON and CSV carry the stored numbers exactly', async () => {
-    const json = await cli('export', String(runIds[1]), '--json', '--db', databasePath, '--out', join(outFolder, 'run.json'));
+    const json = await cliHere('export', String(runIds[1]), '--json', '--db', databasePath, '--out', join(outFolder, 'run.json'));
     expect(json.code).toBe(0);
     const record = recordFromJson(readFileSync(join(outFolder, 'run.json'), 'utf8'), 'run.json') as RunRecord;
     expect(record.run.simulated).toBe(true);
     expect(record.points.gainDb).toEqual(details[1].points.gainDb.map((v) => (Number.isFinite(v) ? v : null)));
-    const csv = await cli('export', String(runIds[1]), '--csv', '--db', databasePath, '--out', '-');
+    const csv = await cliHere('export', String(runIds[1]), '--csv', '--db', databasePath, '--out', '-');
     const [header, ...rows] = readCsv(csv.stdout);
     expect(rows.map((r) => Number(r[header.indexOf('frequency_hz')]))).toEqual(details[1].points.stimulus);
     expect(rows.map((r) => Number(r[header.indexOf('gain_db')]))).toEqual(details[1].points.gainDb);
   });
 
   it('several runs give a comparison record against the chosen reference', async () => {
-    const result = await cli('export', String(runIds[1]), '--json', '--reference', String(runIds[0]), '--db', databasePath, '--out', '-');
+    const result = await cliHere('export', String(runIds[1]), '--json', '--reference', String(runIds[0]), '--db', databasePath, '--out', '-');
     expect(result.code).toBe(0);
     const record = recordFromJson(result.stdout) as ComparisonRecord;
     expect(record.recordType).toBe('comparison');
@@ -156,8 +189,9 @@ describe('rolloff export on a real virtual-bench run', () => {
       [['export', String(runIds[0]), '--pdf', '--db', databasePath, '--out', join(folder, 'nowhere', 'x.pdf')], /does not exist/],
     ];
     const filesBefore = readdirSync(folder).sort();
-    for (const [args, message] of cases) {
-      const result = await cli(...args);
+    for (const [index, [args, message]] of cases.entries()) {
+      // The first case through the real bin.mjs (exit code of the process), the rest in-process.
+      const result = index === 0 ? await cli(...args) : await cliHere(...args);
       expect(result.code, args.join(' ')).toBe(2);
       expect(result.stderr).toMatch(message);
       expect(result.stderr).not.toMatch(/internal error|    at /);
@@ -169,11 +203,11 @@ describe('rolloff export on a real virtual-bench run', () => {
   it('does not replace an existing file unless --force is given', async () => {
     const target = join(outFolder, 'keep.csv');
     writeFileSync(target, 'precious');
-    const refused = await cli('export', String(runIds[0]), '--csv', '--db', databasePath, '--out', target);
+    const refused = await cliHere('export', String(runIds[0]), '--csv', '--db', databasePath, '--out', target);
     expect(refused.code).toBe(2);
     expect(refused.stderr).toMatch(/already exists; nothing was written[\s\S]*--force/);
     expect(readFileSync(target, 'utf8')).toBe('precious');
-    const forced = await cli('export', String(runIds[0]), '--csv', '--db', databasePath, '--out', target, '--force');
+    const forced = await cliHere('export', String(runIds[0]), '--csv', '--db', databasePath, '--out', target, '--force');
     expect(forced.code).toBe(0);
     expect(readFileSync(target, 'utf8')).toMatch(/^run_id,build_label,step,frequency_hz/);
     expect(readdirSync(outFolder).filter((f) => f.endsWith('.part'))).toEqual([]);
