@@ -33,6 +33,8 @@ export interface FrequencyChartOptions {
   /** Linear x for DC transfer plots (volts). */
   xLinear?: boolean;
   xLabel?: string;
+  /** uPlot's legend under the plot; off when many series make it a wall of names (a table names them instead). */
+  legend?: boolean;
   /** Write marker labels on the plot (the upper plot of a pair; the lower one shows the lines only). */
   markerLabels?: boolean;
 }
@@ -52,7 +54,7 @@ export class FrequencyChart {
     const uplotOptions: uPlot.Options = {
       width: Math.max(320, container.clientWidth || 800),
       height: options.height,
-      legend: { show: true, live: false },
+      legend: { show: options.legend ?? true, live: false },
       cursor: { drag: { x: true, y: false, setScale: true } },
       scales: { x: { time: false, distr: options.xLinear ? 1 : 3 }, y: { auto: true } },
       axes: [
@@ -130,7 +132,7 @@ export class FrequencyChart {
     }
     context.restore();
     this.container.dataset.drawnAt = String(performance.now());
-    this.container.dispatchEvent(new CustomEvent('rolloff:drawn', { detail: { drawnAt: performance.now() } }));
+    this.container.dispatchEvent(new CustomEvent('rolloff:drawn', { bubbles: true, detail: { drawnAt: performance.now() } }));
   }
 }
 

@@ -20,10 +20,12 @@ export class CompareView implements View {
   private readonly reference = h('select', { name: 'reference', 'data-testid': 'compare-reference' });
   private readonly overlayHost = h('div', { className: 'chart', 'data-testid': 'compare-overlay' });
   private readonly differenceHost = h('div', { className: 'chart', 'data-testid': 'compare-difference' });
+  private readonly differenceTitle = h('h3', { 'data-testid': 'compare-difference-title' }, 'Difference');
   private readonly table = h('div', { className: 'figure-table', 'data-testid': 'compare-table' });
   private overlay: FrequencyChart | undefined;
   private difference: FrequencyChart | undefined;
   private runs: RunSummary[] = [];
+  private chartSignature = '';
 
   constructor(
     private readonly client: RolloffClient,
@@ -36,7 +38,7 @@ export class CompareView implements View {
       { 'aria-labelledby': 'compare-title' },
       h('h2', { id: 'compare-title' }, 'Compare'),
       h('div', { className: 'panel' }, h('h3', {}, 'Runs'), this.runPicker, h('div', { className: 'row-form' }, field('Differences against', this.reference), compareButton)),
-      h('div', { className: 'panel' }, h('h3', {}, 'Gain'), this.overlayHost, h('h3', {}, 'Difference'), this.differenceHost),
+      h('div', { className: 'panel' }, h('h3', {}, 'Gain'), this.overlayHost, this.differenceTitle, this.differenceHost),
       h('div', { className: 'panel' }, h('h3', {}, 'Figures'), this.table),
     );
   }
@@ -83,24 +85,28 @@ export class CompareView implements View {
 
   /** Draws a comparison; public so the render benchmark can time exactly this. */
   show(comparison: Comparison): void {
-    this.overlay?.destroy();
-    this.difference?.destroy();
     const labels = comparison.runs.map((run) => `#${run.id} ${run.buildLabel}`);
-    this.overlay = new FrequencyChart(this.overlayHost, {
-      yLabel: 'Gain (dB)',
-      yUnit: 'dB',
-      height: 320,
-      series: [
-        { label: 'Theory (first run)', color: PLOT_COLORS.theory, kind: 'line' },
-        ...labels.map((label, i) => ({ label, color: runColor(i, labels.length), kind: 'points-line' as const, pointSize: 4 })),
-      ],
-    });
-    this.difference = new FrequencyChart(this.differenceHost, {
-      yLabel: comparison.referenceRunId === 'theory' ? 'Measured − theory (dB)' : `Measured − run #${comparison.referenceRunId} (dB)`,
-      yUnit: 'dB',
-      height: 220,
-      series: labels.map((label, i) => ({ label, color: runColor(i, labels.length), kind: 'points-line' as const, pointSize: 4 })),
-    });
+    const yLabel = comparison.referenceRunId === 'theory' ? 'Measured − theory (dB)' : `Measured − run #${comparison.referenceRunId} (dB)`;
+    // Charts are rebuilt only when the set of runs changes; otherwise new data is enough.
+    const signature = JSON.stringify([labels, yLabel]);
+    if (signature !== this.chartSignature || !this.overlay || !this.difference) {
+      this.overlay?.destroy();
+      this.difference?.destroy();
+      this.chartSignature = signature;
+      // Many runs: lines only (dots would hide each other and cost a draw per point), colours named in the table, not a legend.
+      const many = labels.length > 8;
+      const kind = many ? ('line' as const) : ('points-line' as const);
+      const runSeries = labels.map((label, i) => ({ label, color: runColor(i, labels.length), kind, width: many ? 1 : 1.25, pointSize: 4 }));
+      this.overlay = new FrequencyChart(this.overlayHost, {
+        yLabel: 'Gain (dB)',
+        yUnit: 'dB',
+        height: 320,
+        legend: !many,
+        series: [{ label: 'Theory (first run)', color: PLOT_COLORS.theory, kind: 'line' }, ...runSeries],
+      });
+      this.difference = new FrequencyChart(this.differenceHost, { yLabel, yUnit: 'dB', height: 220, legend: false, series: runSeries });
+    }
+    this.differenceTitle.textContent = comparison.referenceRunId === 'theory' ? 'Difference from theory' : `Difference from run #${comparison.referenceRunId}`;
     const columns = compareColumns(comparison);
     const first = comparison.runs[0];
     const markers = first?.theoryGainLimitHz !== undefined ? [{ xHz: first.theoryGainLimitHz, label: `gain limit (theory) ${formatHz(first.theoryGainLimitHz)}`, color: PLOT_COLORS.gainLimit }] : [];
@@ -124,7 +130,7 @@ export class CompareView implements View {
         h('thead', {}, h('tr', {}, h('th', { scope: 'col' }, 'Run'), rows.map(([title]) => h('th', { scope: 'col' }, title)), h('th', { scope: 'col' }, '−3 dB points'), h('th', { scope: 'col' }, 'Verdict'))),
         h('tbody', {}, comparison.figureTable.map((entry) =>
           h('tr', {},
-            h('th', { scope: 'row' }, entry.label),
+            h('th', { scope: 'row' }, colourSwatch(runColor(comparison.runs.findIndex((r) => r.id === entry.runId), comparison.runs.length)), entry.label),
             rows.map(([, key, format, unit]) => {
               const value = entry.figures[key] as number | undefined;
               const delta = entry.deltas[key];
@@ -137,4 +143,11 @@ export class CompareView implements View {
       ),
     );
   }
+}
+
+/** A colour key for a run; set through the style object (CSSOM), which the page's CSP allows. */
+function colourSwatch(color: string): HTMLElement {
+  const swatch = h('span', { className: 'swatch', 'aria-hidden': 'true' });
+  swatch.style.background = color;
+  return swatch;
 }
