@@ -70,6 +70,7 @@ export class ProfileGenerator implements GeneratorControl {
       }
       await this.applyLevels(amplitudeVpp, offsetV);
     });
+    await this.runner.flush();
   }
 
   async configureDc(levelV: number): Promise<void> {
@@ -82,6 +83,7 @@ export class ProfileGenerator implements GeneratorControl {
         this.state.offsetV = levelV;
       }
     });
+    await this.runner.flush();
   }
 
   async setOutput(on: boolean): Promise<void> {
@@ -91,6 +93,7 @@ export class ProfileGenerator implements GeneratorControl {
     }
     await this.runner.set(on ? 'outputOn' : 'outputOff');
     this.state.outputOn = on;
+    await this.runner.flush();
   }
 
   async setLoad(load: LoadSetting): Promise<void> {
@@ -98,6 +101,7 @@ export class ProfileGenerator implements GeneratorControl {
     const amplitudeVpp = this.state.shape === 'sine' ? this.state.amplitudeVpp ?? 0 : 0;
     this.checkLimit(`switching the load setting to ${load}`, amplitudeVpp, this.state.offsetV ?? 0, load);
     await this.runner.set(load === '50-ohm' ? 'load50Ohm' : 'loadHighZ');
+    await this.runner.flush();
     this.load = load;
   }
 

@@ -28,7 +28,7 @@ export function parsePreamble(reply: string, fields: readonly PreambleField[], c
   return { points: get('points'), sampleIntervalS, voltsPerCode, codeOffset: get('codeOffset') ?? 0, voltsOffset: get('voltsOffset') ?? 0 };
 }
 
-const BYTES_PER_SAMPLE: Record<WaveformEncoding, number> = { int8: 1, 'int16-le': 2, 'int16-be': 2, 'float32-le': 4, 'float32-be': 4 };
+export const BYTES_PER_SAMPLE: Record<WaveformEncoding, number> = { int8: 1, 'int16-le': 2, 'int16-be': 2, 'float32-le': 4, 'float32-be': 4 };
 const CODE_LIMITS: Partial<Record<WaveformEncoding, [number, number]>> = { int8: [-128, 127], 'int16-le': [-32768, 32767], 'int16-be': [-32768, 32767] };
 
 export function decodeWaveform(bytes: Uint8Array, encoding: WaveformEncoding, scaling: WaveformScaling, command: string): { samplesV: Float64Array; clipped: boolean } {

@@ -16,7 +16,7 @@ import { SOFTWARE_VERSION } from '../service/version';
 export const SIM_METER_AC_BANDWIDTH_HZ = 300e3;
 const RANGES_V = [0.1, 1, 10, 100, 1000];
 const OVERRANGE_FRACTION = 1.2;
-const MIN_SAMPLES = 20_000;
+const MIN_SAMPLES = 4096;
 const MAX_SAMPLES = 200_000;
 
 type MeterFunction = 'ac' | 'dc';

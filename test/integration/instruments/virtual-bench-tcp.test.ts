@@ -43,6 +43,20 @@ describe('virtual bench over TCP on 127.0.0.1', () => {
     await session.close();
   });
 
+  it('a setting the instrument rejects surfaces as ScpiInstrumentError naming it, before the next measurement', async () => {
+    const scope = await openInstrument(bench.addresses.scope, 'scope', 'scpi-scope');
+    try {
+      await scope.control.setVerticalScale(1, 500); // the simulated scope's range ends at 100 V/div
+      const error = await scope.control.acquire().catch((e) => e);
+      expect(error).toBeInstanceOf(ScpiInstrumentError);
+      expect(error).toMatchObject({ code: -222 });
+      expect((error as ScpiInstrumentError).command).toContain('CHANnel1:SCALe 500');
+      await expect(scope.control.acquire()).resolves.toBeUndefined();
+    } finally {
+      await scope.close();
+    }
+  });
+
   it('reads overrange on a too-small fixed meter range, and the injected overrange / NaN faults, as flags without values', async () => {
     const { generator, meter, close } = await openBench(bench);
     try {
