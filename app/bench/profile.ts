@@ -66,7 +66,7 @@ interface ProfileCommon {
   description: string;
   /** Sent once after connecting (e.g. *CLS, data format). */
   init: string[];
-  /** Read the error queue after each setting and fail on the first error. */
+  /** Read the error queue after each batch of settings (see operation.ts) and fail on the first error. */
   checkErrors: boolean;
   timeoutS: number;
   /** Operation name → commands, in order. */
