@@ -68,7 +68,7 @@ export function figureLines(figures: RunFigures): FigureLine[] {
   const fit = figures.logFit;
   if (fit) {
     const ci = (pair: [number, number], format: (v: number) => string) => `95 % interval ${format(pair[0])} … ${format(pair[1])}`;
-    const plain = (v: number) => Number(v.toPrecision(4)).toString();
+    const plain = (v: number) => v.toPrecision(4);
     lines.push({ key: 'logFit.n', label: 'Diode ideality factor n', value: `${plain(fit.n)} (${ci(fit.nCi, plain)})` });
     lines.push({ key: 'logFit.isA', label: 'Saturation current I_S', value: `${formatEngineering(fit.isA, 'A', 4)} (${ci(fit.isCi, (v) => formatEngineering(v, 'A', 4))})` });
     lines.push({ key: 'logFit.rsOhm', label: 'Series resistance R_S', value: `${formatEngineering(fit.rsOhm, 'Ω', 4)} (${ci(fit.rsCi, (v) => formatEngineering(v, 'Ω', 4))})` });

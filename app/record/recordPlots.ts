@@ -133,7 +133,7 @@ function inputAxis(values: MaybeNumber[]): Axis {
 function dcTransferPlot(record: RunRecord): PlotSpec {
   const { points, dcFit } = record;
   const series: PlotSeries[] = [];
-  if (dcFit) series.push({ name: dcFit.description || 'Fitted curve', color: PLOT_COLORS.theory, style: 'line', xs: dcFit.inputV, ys: dcFit.outputV });
+  if (dcFit) series.push({ name: 'Fitted curve', color: PLOT_COLORS.theory, style: 'line', xs: dcFit.inputV, ys: dcFit.outputV });
   series.push({ name: 'Measured', color: PLOT_COLORS.measured, style: 'points', xs: points.stimulus, ys: points.outputV });
   return {
     title: 'DC transfer',

@@ -181,6 +181,7 @@ function figureBlocks(record: RunRecord): Block[] {
   const rows: Array<[string, string]> = figureLines(record.figures).map((line) => [line.label, line.value]);
   if (record.theory.gainLimitHz !== null) rows.push(['Gain-limit point, theory', formatHz(record.theory.gainLimitHz)]);
   if (record.theory.minus3dbHz.length > 0) rows.push(['−3 dB frequencies, theory', record.theory.minus3dbHz.map(formatHz).join(', ')]);
+  if (record.dcFit) rows.push(['Fitted curve (plot)', record.dcFit.description]);
   return [{ kind: 'heading', text: 'Extracted figures' }, rows.length ? { kind: 'keyValues', rows } : { kind: 'paragraph', text: 'No figures were extracted from this run.' }];
 }
 

@@ -26,8 +26,9 @@ const CLI = join(ROOT, 'app/cli/bin.mjs');
 const folder = mkdtempSync(join(tmpdir(), 'rolloff-export-'));
 const databasePath = join(folder, 'bench.sqlite');
 const outFolder = join(folder, 'records');
-let runIds: number[] = [];
-let details: RunDetail[] = [];
+const runIds: number[] = [];
+const details: RunDetail[] = [];
+let dcRunId = 0;
 
 interface DatabaseState {
   file: { sha256: string; mtimeMs: number; size: number };
@@ -126,6 +127,17 @@ beforeAll(async () => {
       runIds.push(started.id);
       details.push(await service.getRun(started.id));
     }
+    // A DC transfer run of the log-stage template on the meter, for the log-stage record.
+    const logDesign = await service.saveDesign(makeDesignFromTemplate('log-stage', {}));
+    const logBuild = await service.createBuild({ designId: logDesign.id, label: 'Log board', notes: '', actualValues: {} });
+    await service.startVirtualBenchForBuild(logBuild.id);
+    await service.setMaxStimulus(12); // a 5 V DC level is a 10 Vpp excursion for the stimulus ceiling
+    const dcRun = await service.startRun({
+      buildId: logBuild.id, kind: 'dc', from: 1e-3, to: 5, pointsPerDecade: 3, spacing: 'log', amplitude: { mode: 'fixed', vpp: 0 },
+      measurement: 'meter', minCycles: 1, averages: 1, refine: false, operator: 'integration test', notes: '',
+    });
+    expect(await service.waitForRun(dcRun.id)).toBe('done');
+    dcRunId = dcRun.id;
   } finally {
     await service.close();
   }
@@ -161,6 +173,26 @@ describe('rolloff export on a real virtual-bench run', () => {
     const [header, ...rows] = readCsv(csv.stdout);
     expect(rows.map((r) => Number(r[header.indexOf('frequency_hz')]))).toEqual(details[1].points.stimulus);
     expect(rows.map((r) => Number(r[header.indexOf('gain_db')]))).toEqual(details[1].points.gainDb);
+  });
+
+  it('a DC log-stage run gives a record with the fitted curve and the fit figures', async () => {
+    const result = await cliHere('export', String(dcRunId), '--json', '--db', databasePath, '--out', '-');
+    expect(result.code).toBe(0);
+    const record = recordFromJson(result.stdout) as RunRecord;
+    expect(record.run.kind).toBe('dc');
+    expect(record.dcFit?.inputV.length).toBeGreaterThan(10);
+    // Log stage: the output falls by about n·V_T·ln 10 ≈ 59 mV per decade of input at 25 °C (DESIGN.md formula).
+    const fit = record.dcFit!;
+    const perDecadeV = (fit.outputV[0] - fit.outputV.at(-1)!) / Math.log10(fit.inputV.at(-1)! / fit.inputV[0]);
+    expect(perDecadeV).toBeGreaterThan(0.05);
+    expect(perDecadeV).toBeLessThan(0.07);
+    expect(record.figures.logFit?.n).toBeGreaterThan(0.9);
+    const pdf = await cliHere('export', String(dcRunId), '--pdf', '--db', databasePath, '--out', outFolder);
+    expect(pdf.code).toBe(0);
+    const path = /Wrote (.+\.pdf) /.exec(pdf.stdout)![1];
+    const text = (await run('pdftotext', [path, '-'])).stdout.replace(/\s+/g, '');
+    expect(text).toContain('DCtransfer');
+    expect(text).toContain('Diodeidealityfactorn');
   });
 
   it('several runs give a comparison record against the chosen reference', async () => {
