@@ -158,8 +158,13 @@ export class Store {
     }
     try {
       // Reads only until the file is known to be sound and not newer than us.
-      const fileVersion = schemaVersionOf(db);
-      const { tableCount } = db.prepare("SELECT count(*) AS tableCount FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%'").get() as { tableCount: number };
+      // One statement, one snapshot: another process may be migrating this file right now.
+      const { fileVersion, tableCount } = db
+        .prepare(
+          `SELECT (SELECT user_version FROM pragma_user_version) AS fileVersion,
+                  (SELECT count(*) FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%') AS tableCount`,
+        )
+        .get() as { fileVersion: number; tableCount: number };
       if (fileVersion === 0 && tableCount > 0) {
         // Tables but no Rolloff schema version: another program's database, which migrating would alter.
         throw new StoreDamagedError(path, 'a SQLite database of another program, not a Rolloff database');
