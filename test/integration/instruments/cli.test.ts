@@ -70,10 +70,11 @@ describe('rolloff sim / probe / query', () => {
   });
 
   it('query sends each command in order, prints replies and blocks, and exits 0 with an empty error queue', () => {
-    const result = rolloff('query', addresses.generator, 'SOURce:FREQuency 2500', 'SOURce:FREQuency?', '*OPC?');
+    const result = rolloff('query', addresses.generator, 'SOURce:FREQuency 2500', 'SOURce:FREQuency?', 'SOURce:FUNCtion DC;FUNCtion?', '*OPC?');
     expect(result.status).toBe(0);
     expect(result.stdout).toContain('> SOURce:FREQuency 2500');
     expect(result.stdout).toContain('+2.50000000E+03');
+    expect(result.stdout).toMatch(/> SOURce:FUNCtion DC;FUNCtion\?\nDC\n/);
     expect(result.stdout).toContain('Error queue: empty');
     const block = rolloff('query', addresses.scope, 'INITiate', '*OPC?', 'WAVeform:DATA?');
     expect(block.stdout).toMatch(/<block of 4000 bytes>/);
