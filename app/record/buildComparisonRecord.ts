@@ -28,6 +28,11 @@ export function buildComparisonRecord(comparison: Comparison, context: Compariso
     if (!runContext) throw new ValidationError(`comparison.runs[${detail.id}]`, 'the design and build of this run were not given');
     return buildRunRecord(detail, { ...runContext, generatedAt });
   });
+  const kinds = new Set(runs.map((r) => r.run.kind));
+  if (kinds.size > 1) {
+    const list = runs.map((r) => `run ${r.run.id} is ${r.run.kind === 'ac' ? 'an AC sweep' : 'a DC transfer'}`).join(', ');
+    throw new ValidationError('comparison.runs', `AC sweeps and DC transfers cannot share one plot (${list})`, 'Compare AC runs with AC runs and DC runs with DC runs.');
+  }
   const runIds = new Set(runs.map((r) => r.run.id));
   const reference = comparison.referenceRunId;
   if (reference !== 'theory' && !runIds.has(reference)) {

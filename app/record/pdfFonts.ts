@@ -17,7 +17,7 @@ export interface PdfFontSet {
   embedded: boolean;
 }
 
-const FONT_DIRECTORIES = ['/usr/share/fonts/truetype/dejavu', '/usr/share/fonts/dejavu', '/usr/share/fonts/TTF', '/Library/Fonts', 'C:\\Windows\\Fonts'];
+const FONT_DIRECTORIES = ['/usr/share/fonts/truetype/dejavu', '/usr/share/fonts/dejavu', '/usr/share/fonts/TTF'];
 const FONT_FILES = { regular: 'DejaVuSans.ttf', bold: 'DejaVuSans-Bold.ttf', mono: 'DejaVuSansMono.ttf' };
 
 /** Characters outside WinAnsi that records use, spelled in WinAnsi. */

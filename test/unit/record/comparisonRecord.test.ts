@@ -4,7 +4,7 @@ import { describe, expect, it } from 'vitest';
 import { buildComparisonRecord, readCsv, recordFromJson, renderRecord, sha256Hex, canonicalJson } from '../../../app/record';
 import type { ComparisonRecord } from '../../../app/record';
 import { validateAgainstSchema } from '../../../app/record/schemaValidator';
-import { comparisonFixture } from './fixtures';
+import { comparisonFixture, dcRunDetail, LOG_STAGE_DESIGN } from './fixtures';
 
 const SCHEMA = JSON.parse(readFileSync(new URL('../../../app/record/record.schema.json', import.meta.url), 'utf8'));
 const GENERATED_AT = '2026-12-01T12:00:00.000Z';
@@ -64,6 +64,10 @@ describe('comparison record', () => {
   it('refuses a reference that is not among the runs, and a run without its build', () => {
     const { comparison, contexts } = comparisonFixture(12);
     expect(() => buildComparisonRecord({ ...comparison, referenceRunId: 99 }, { runs: contexts })).toThrow(/run 99 is not among the compared runs/);
+    const dc = dcRunDetail();
+    const mixed = { ...comparison, runs: [comparison.runs[0], dc.detail] };
+    const mixedContexts = new Map([...contexts, [dc.detail.id, { design: LOG_STAGE_DESIGN, build: dc.build }]]);
+    expect(() => buildComparisonRecord(mixed, { runs: mixedContexts })).toThrow(/AC sweeps and DC transfers cannot share one plot/);
     contexts.delete(15);
     expect(() => buildComparisonRecord(comparison, { runs: contexts })).toThrow(/comparison\.runs\[15\]: the design and build/);
   });
