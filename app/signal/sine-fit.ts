@@ -75,13 +75,16 @@ export function sineFit3(request: SineFitRequest): SineFit {
   const { samplesV, sampleIntervalS, frequencyHz } = request;
   const startTimeS = request.startTimeS ?? 0;
   const n = samplesV.length;
-  const omega = 2 * Math.PI * frequencyHz;
+  // Whole cycles before the record are dropped so a late start time does not cost cos/sin precision.
+  const startCycles = frequencyHz * startTimeS;
+  const startFraction = startCycles - Math.floor(startCycles);
+  const cyclesPerSample = frequencyHz * sampleIntervalS;
   const cosColumn = new Float64Array(n);
   const sinColumn = new Float64Array(n);
   // Normal equations DᵀD·x = Dᵀy with D = [cos, sin, 1].
   let cc = 0, cs = 0, c1 = 0, ss = 0, s1 = 0, cy = 0, sy = 0, y1 = 0;
   for (let i = 0; i < n; i++) {
-    const angle = omega * (startTimeS + i * sampleIntervalS);
+    const angle = 2 * Math.PI * (startFraction + i * cyclesPerSample);
     const c = Math.cos(angle);
     const s = Math.sin(angle);
     const y = samplesV[i];
