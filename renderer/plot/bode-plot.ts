@@ -84,7 +84,9 @@ export class BodePlot {
         yLabel: 'Output (V)',
         yUnit: 'V',
         height: 360,
+        // Log-stage transfer sweeps are log-spaced in input level, so the axis stays logarithmic.
         xLinear: false,
+        xUnit: 'V',
         xLabel: 'Input level',
         series: [
           { label: 'Measured', color: PLOT_COLORS.measured, kind: 'points-line' },

@@ -33,6 +33,8 @@ export interface FrequencyChartOptions {
   /** Linear x for DC transfer plots (volts). */
   xLinear?: boolean;
   xLabel?: string;
+  /** Unit of the x values for tick labels; hertz unless said otherwise (DC transfer plots use volts). */
+  xUnit?: string;
   /** uPlot's legend under the plot; off when many series make it a wall of names (a table names them instead). */
   legend?: boolean;
   /** Write marker labels on the plot (the upper plot of a pair; the lower one shows the lines only). */
@@ -50,7 +52,7 @@ export class FrequencyChart {
     options: FrequencyChartOptions,
   ) {
     this.markerLabels = options.markerLabels ?? true;
-    const xUnit = options.xLinear ? 'V' : 'Hz';
+    const xUnit = options.xUnit ?? (options.xLinear ? 'V' : 'Hz');
     const uplotOptions: uPlot.Options = {
       width: Math.max(320, container.clientWidth || 800),
       height: options.height,

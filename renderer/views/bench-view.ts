@@ -35,7 +35,7 @@ export class BenchView implements View {
     const connectButton = h('button', { type: 'submit', className: 'primary' }, 'Connect');
     const connectForm = h(
       'form',
-      { className: 'row-form', 'aria-label': 'Connect an instrument' },
+      { className: 'stack-form', 'aria-label': 'Connect an instrument' },
       field('Role', this.roleSelect),
       field('Address', this.addressInput, 'Pick a port from the list or type an address.'),
       field('Profile', this.profileSelect),
@@ -53,7 +53,7 @@ export class BenchView implements View {
     });
 
     const maxButton = h('button', { type: 'submit' }, 'Apply');
-    const maxForm = h('form', { className: 'row-form', 'aria-label': 'Maximum stimulus amplitude' }, field('Maximum stimulus (V peak-to-peak)', this.maxInput, 'The generator is never driven above this. Engineering notation works: 500m, 2.'), maxButton);
+    const maxForm = h('form', { className: 'stack-form', 'aria-label': 'Maximum stimulus amplitude' }, field('Maximum stimulus (V peak-to-peak)', this.maxInput, 'The generator is never driven above this. Engineering notation works: 500m, 2.'), maxButton);
     maxForm.addEventListener('submit', (event) => {
       event.preventDefault();
       void guarded(maxButton, 'Setting the maximum stimulus', async () => {
@@ -64,7 +64,7 @@ export class BenchView implements View {
     });
 
     const virtualButton = h('button', { type: 'submit', 'data-testid': 'start-virtual' }, 'Start the virtual bench');
-    const virtualForm = h('form', { className: 'row-form', 'aria-label': 'Virtual bench' }, field('Simulated circuit', this.virtualDesignSelect, 'The virtual bench answers SCPI like real instruments; its readings are computed, not measured.'), virtualButton);
+    const virtualForm = h('form', { className: 'stack-form', 'aria-label': 'Virtual bench' }, field('Simulated circuit', this.virtualDesignSelect, 'The virtual bench answers SCPI like real instruments; its readings are computed, not measured.'), virtualButton);
     virtualForm.addEventListener('submit', (event) => {
       event.preventDefault();
       void guarded(virtualButton, 'Starting the virtual bench', async () => {
@@ -82,13 +82,13 @@ export class BenchView implements View {
       'section',
       { 'aria-labelledby': 'bench-title' },
       h('h2', { id: 'bench-title' }, 'Bench'),
-      h('div', { className: 'columns' },
-        h('div', { className: 'panel' },
-          h('h3', {}, 'Instruments'),
-          h('table', { className: 'data-table', 'data-testid': 'instruments' }, h('thead', {}, h('tr', {}, ['Role', 'Address', 'Profile', 'Identity', ''].map((t) => h('th', { scope: 'col' }, t)))), this.instrumentsBody),
-          connectForm,
-          maxForm,
-        ),
+      h('div', { className: 'panel' },
+        h('h3', {}, 'Instruments'),
+        h('table', { className: 'data-table', 'data-testid': 'instruments' }, h('thead', {}, h('tr', {}, ['Role', 'Address', 'Profile', 'Identity', ''].map((t) => h('th', { scope: 'col' }, t)))), this.instrumentsBody),
+      ),
+      h('div', { className: 'start-row' },
+        h('div', { className: 'panel' }, h('h3', {}, 'Connect'), connectForm),
+        h('div', { className: 'panel' }, h('h3', {}, 'Safety limit'), maxForm),
         h('div', { className: 'panel' }, h('h3', {}, 'Virtual bench ', h('span', { className: 'badge simulated' }, 'simulated')), virtualForm, this.virtualStatus),
       ),
       h('div', { className: 'panel' }, h('h3', {}, 'Traffic ', clearTraffic), this.traffic),
@@ -142,7 +142,7 @@ export class BenchView implements View {
               h('th', { scope: 'row' }, instrument.role),
               h('td', {}, instrument.address),
               h('td', {}, instrument.profileId),
-              h('td', {}, `${identity.manufacturer} ${identity.model} ${identity.serialNumber} ${identity.firmware}`.trim(), instrument.simulated ? h('span', { className: 'badge simulated' }, 'simulated') : null),
+              h('td', {}, h('strong', {}, `${identity.manufacturer} ${identity.model}`.trim()), h('small', {}, ` serial ${identity.serialNumber || '—'}, firmware ${identity.firmware || '—'}`), instrument.simulated ? h('span', { className: 'badge simulated' }, 'simulated') : null),
               h('td', {}, disconnect),
             );
           }),

@@ -133,6 +133,46 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
     const reference = await page.getByTestId('compare-reference').inputValue();
     await expect.poll(() => page.getByTestId('compare-difference-title').textContent()).toBe(`Difference from run #${reference}`);
     await shot('07-compare');
+  });
+
+  it('exports the picked runs as a CSV record and downloads it', async () => {
+    await view('6');
+    await page.getByTestId('record-format').selectOption('csv');
+    const download = page.waitForEvent('download');
+    await page.getByTestId('record-export').click();
+    const file = await download;
+    expect(file.suggestedFilename()).toMatch(/\.csv$/);
+    const text = await new Promise<string>((resolvePromise, reject) => {
+      file.createReadStream().then((stream) => {
+        const chunks: Buffer[] = [];
+        stream.on('data', (c: Buffer) => chunks.push(c));
+        stream.on('end', () => resolvePromise(Buffer.concat(chunks).toString('utf8')));
+        stream.on('error', reject);
+      }, reject);
+    });
+    // RFC 4180 CSV with units in the header names (the record module's format).
+    expect(text).toMatch(/frequency_hz/);
+    expect(text).toMatch(/gain_db/);
+    expect(text.split('\r\n').length).toBeGreaterThan(20);
+    await shot('08-record');
+  });
+
+  it('is usable from the keyboard and shows the cautions in About', async () => {
+    await view('0');
+    const about = page.locator('section[data-view="about"]');
+    expect(await about.isVisible()).toBe(true);
+    expect(await about.textContent()).toMatch(/simulated/);
+    // Tab order starts at the view navigation, in the order the views are listed.
+    await page.reload();
+    await page.locator('.nav-button').first().waitFor();
+    await page.keyboard.press('Tab');
+    expect(await page.evaluate(() => (document.activeElement as HTMLElement).dataset.view)).toBe('bench');
+    await page.keyboard.press('Tab');
+    expect(await page.evaluate(() => (document.activeElement as HTMLElement).dataset.view)).toBe('design');
+    await page.keyboard.press('Enter');
+    await expect.poll(() => page.locator('section[data-view="design"]').isVisible()).toBe(true);
+    await view('1');
+    await shot('09-bench-end');
     expect(consoleErrors).toEqual([]);
   });
 });
