@@ -5,8 +5,9 @@
  */
 import { contextBridge, ipcRenderer, type IpcRendererEvent } from 'electron';
 import { CALL_CHANNEL, EVENT_CHANNEL } from './channels';
+import { SERVICE_EVENT_NAMES } from '../app/service/validate-arguments';
 
-const EVENT_NAMES = new Set(['progress', 'point', 'runEvent', 'traffic', 'bench']);
+const EVENT_NAMES = new Set<string>(SERVICE_EVENT_NAMES);
 
 contextBridge.exposeInMainWorld('rolloff', {
   call(method: string, args: unknown[]): Promise<unknown> {
