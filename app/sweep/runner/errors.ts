@@ -19,3 +19,15 @@ export class RunStateError extends UserError {
     super(`run ${runId}: ${message}`, hint);
   }
 }
+
+/**
+ * Thrown by a measurer's read-back when the step must be measured again with
+ * changed instrument settings (e.g. a clipped record after the scale was
+ * widened). Internal to the runner; never reaches the user.
+ */
+export class RemeasureStep extends Error {
+  constructor(reason: string) {
+    super(reason);
+    this.name = 'RemeasureStep';
+  }
+}

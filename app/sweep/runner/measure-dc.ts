@@ -6,40 +6,33 @@ import type { BenchClock } from '../../bench/clock';
 import type { Reading } from '../../scpi/reading';
 import { PointFlag } from '../../service/contract';
 import { averageWithOutlierRejection } from '../../signal';
-import { waitUntilSettled } from './timing';
+import { AppliedStimulus, apertureChanged } from './applied-stimulus';
 import type { StepMeasurer, StepResult, StepSetting, SweepInstruments } from './types';
 
 export function dcMeasurer(options: { clock: BenchClock }): StepMeasurer {
-  const { clock } = options;
-  let outputOn = false;
+  const stimulus = new AppliedStimulus(options.clock);
   let lastIntegrationS = NaN;
   return {
     async prepare(instruments: SweepInstruments) {
       if (!instruments.meter) throw new Error('a DC transfer sweep needs a meter');
-      outputOn = false;
+      stimulus.reset();
       lastIntegrationS = NaN;
       await instruments.meter.setRange('auto');
     },
 
-    async measure(instruments: SweepInstruments, setting: StepSetting): Promise<StepResult> {
+    apply: (instruments, setting) => stimulus.apply(instruments, setting, 'dc'),
+
+    async acquire(instruments: SweepInstruments, setting: StepSetting) {
       const meter = instruments.meter!;
-      await instruments.generator.configureDc(setting.stimulus);
-      if (!outputOn) {
-        await instruments.generator.setOutput(true);
-        outputOn = true;
-      }
-      const changedAtS = clock.nowS();
-      if (setting.integrateS !== lastIntegrationS) {
+      await stimulus.ensure(instruments, setting, 'dc');
+      if (apertureChanged(lastIntegrationS, setting.integrateS)) {
         await meter.setIntegration(setting.integrateS);
         lastIntegrationS = setting.integrateS;
       }
-      await waitUntilSettled(clock, changedAtS, setting.settleS);
+      await stimulus.settled(setting.settleS);
       const readings: Reading[] = [];
-      for (let k = 0; k < setting.averages; k++) {
-        // The reading itself integrates over the aperture set above (READ? returns when it is done).
-        readings.push(await meter.readDcV());
-      }
-      return reduceDcReadings(readings, setting.stimulus);
+      for (let k = 0; k < setting.averages; k++) readings.push(await meter.readDcV());
+      return async () => reduceDcReadings(readings, setting.stimulus);
     },
   };
 }

@@ -9,7 +9,7 @@ import type { Reading } from '../../scpi/reading';
 import { PointFlag } from '../../service/contract';
 import { dbFromRatio } from '../../units';
 import { averageWithOutlierRejection } from '../../signal';
-import { waitUntilSettled } from './timing';
+import { AppliedStimulus, apertureChanged } from './applied-stimulus';
 import type { StepMeasurer, StepResult, StepSetting, SweepInstruments } from './types';
 
 /** Through-calibration: gain of the bypassed path per frequency (dB). */
@@ -28,36 +28,30 @@ export interface MeterMeasurerOptions {
 const DB_PER_RELATIVE_UNIT = 20 / Math.LN10;
 
 export function meterMeasurer(options: MeterMeasurerOptions): StepMeasurer {
-  const { clock } = options;
-  let outputOn = false;
+  const stimulus = new AppliedStimulus(options.clock);
   let lastIntegrationS = NaN;
   return {
     async prepare(instruments: SweepInstruments) {
       if (!instruments.meter) throw new Error('meter measurement needs a meter');
-      outputOn = false;
+      stimulus.reset();
       lastIntegrationS = NaN;
       await instruments.meter.setRange('auto');
     },
 
-    async measure(instruments: SweepInstruments, setting: StepSetting): Promise<StepResult> {
+    apply: (instruments, setting) => stimulus.apply(instruments, setting, 'sine'),
+
+    async acquire(instruments: SweepInstruments, setting: StepSetting) {
       const meter = instruments.meter!;
-      await instruments.generator.configureSine({ frequencyHz: setting.stimulus, amplitudeVpp: setting.amplitudeVpp, offsetV: 0 });
-      if (!outputOn) {
-        await instruments.generator.setOutput(true);
-        outputOn = true;
-      }
-      const changedAtS = clock.nowS();
-      if (setting.integrateS !== lastIntegrationS) {
+      await stimulus.ensure(instruments, setting, 'sine');
+      if (apertureChanged(lastIntegrationS, setting.integrateS)) {
         await meter.setIntegration(setting.integrateS);
         lastIntegrationS = setting.integrateS;
       }
-      await waitUntilSettled(clock, changedAtS, setting.settleS);
+      await stimulus.settled(setting.settleS);
       const readings: Reading[] = [];
-      for (let k = 0; k < setting.averages; k++) {
-        // The reading itself integrates over the aperture set above (READ? returns when it is done).
-        readings.push(await meter.readAcRmsV());
-      }
-      return reduceRmsReadings(readings, setting, options.calibration);
+      // Each reading integrates over the aperture set above (READ? returns when it is done).
+      for (let k = 0; k < setting.averages; k++) readings.push(await meter.readAcRmsV());
+      return async () => reduceRmsReadings(readings, setting, options.calibration);
     },
   };
 }

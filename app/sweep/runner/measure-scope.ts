@@ -9,7 +9,8 @@ import { PointFlag } from '../../service/contract';
 import { distortionScore, DISTORTION_SCORE_LIMIT, responseFromFits, sineFit3, type StageResponse } from '../../signal';
 import { formatEngineering } from '../../units';
 import { combineAcquisitions } from './combine';
-import { waitUntilSettled } from './timing';
+import { AppliedStimulus } from './applied-stimulus';
+import { RemeasureStep } from './errors';
 import type { StepMeasurer, StepResult, StepSetting, SweepInstruments } from './types';
 
 /** Signal height on screen: 6 of 8 vertical divisions, room for tolerance and overshoot (common practice, no source). */
@@ -25,84 +26,110 @@ export interface ScopeMeasurerOptions {
 
 export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
   const { clock } = options;
-  let outputOn = false;
+  const stimulus = new AppliedStimulus(clock);
   let lastTimebaseS = NaN;
   let lastScales = { 1: NaN, 2: NaN };
+  let channelsOn = false;
+  /** Per channel, how far the scale is widened beyond theory's expectation; kept for the rest of the sweep. */
+  const boost = { 1: 1, 2: 1 };
+
+  const setScale = async (scope: ScopeControl, wanted: { 1: number; 2: number }) => {
+    if (!channelsOn) {
+      await scope.setupChannels(wanted);
+      channelsOn = true;
+    } else {
+      // Only the channel whose scale changed: each command is a round trip on a slow link.
+      for (const channel of [1, 2] as const) if (wanted[channel] !== lastScales[channel]) await scope.setVerticalScale(channel, wanted[channel]);
+    }
+    lastScales = { ...wanted };
+  };
+
+  /** A clipped record: widen that channel (×2.5 per try) and report whether another try is allowed. */
+  const widenFor = (record: { input: Waveform; output: Waveform }): boolean => {
+    if (record.input.clipped) boost[1] *= 2.5;
+    if (record.output.clipped) boost[2] *= 2.5;
+    return Math.max(boost[1], boost[2]) <= 2.5 ** MAX_SCALE_WIDENINGS;
+  };
 
   return {
     async prepare(instruments: SweepInstruments) {
       if (!instruments.scope) throw new Error('scope measurement needs a scope');
-      outputOn = false;
+      stimulus.reset();
       lastTimebaseS = NaN;
       lastScales = { 1: NaN, 2: NaN };
+      channelsOn = false;
     },
 
-    async measure(instruments: SweepInstruments, setting: StepSetting): Promise<StepResult> {
+    apply: (instruments, setting) => stimulus.apply(instruments, setting, 'sine'),
+
+    async acquire(instruments: SweepInstruments, setting: StepSetting) {
       const scope = instruments.scope!;
-      await instruments.generator.configureSine({ frequencyHz: setting.stimulus, amplitudeVpp: setting.amplitudeVpp, offsetV: 0 });
-      if (!outputOn) {
-        await instruments.generator.setOutput(true);
-        outputOn = true;
-      }
-      const changedAtS = clock.nowS();
+      await stimulus.ensure(instruments, setting, 'sine');
+      // Scope settings go out while the circuit settles; they add no time when the settle wait is longer.
       if (setting.integrateS !== lastTimebaseS) {
         await scope.setTimebase(setting.integrateS);
         lastTimebaseS = setting.integrateS;
       }
-      const scales = {
-        1: niceScale(setting.amplitudeVpp / SCREEN_DIVISIONS_USED),
-        2: niceScale((setting.amplitudeVpp * options.expectedGainRatioAt(setting.stimulus)) / SCREEN_DIVISIONS_USED),
+      const wanted = {
+        1: niceScale((boost[1] * setting.amplitudeVpp) / SCREEN_DIVISIONS_USED),
+        2: niceScale((boost[2] * setting.amplitudeVpp * options.expectedGainRatioAt(setting.stimulus)) / SCREEN_DIVISIONS_USED),
       };
-      if (scales[1] !== lastScales[1] || scales[2] !== lastScales[2]) {
-        await scope.setupChannels(scales);
-        lastScales = scales;
-      }
-      await waitUntilSettled(clock, changedAtS, setting.settleS);
+      if (wanted[1] !== lastScales[1] || wanted[2] !== lastScales[2]) await setScale(scope, wanted);
+      await stimulus.settled(setting.settleS);
 
-      const responses: StageResponse[] = [];
-      let worstDistortion = 0;
-      let clipped = false;
-      for (let k = 0; k < setting.averages; k++) {
-        // One record of both channels at once spans the integration time (whole cycles).
-        let record = await acquireBoth(scope);
-        // A build that differs from theory can overflow the expected scale: widen and take the record again.
-        for (let widen = 0; widen < MAX_SCALE_WIDENINGS && (record.input.clipped || record.output.clipped); widen++) {
-          lastScales = {
-            1: record.input.clipped ? niceScale(lastScales[1] * 2.5) : lastScales[1],
-            2: record.output.clipped ? niceScale(lastScales[2] * 2.5) : lastScales[2],
-          };
-          await scope.setupChannels(lastScales);
-          record = await acquireBoth(scope);
-        }
-        clipped ||= record.input.clipped || record.output.clipped;
-        const inputFit = sineFit3({ samplesV: record.input.samplesV, sampleIntervalS: record.input.sampleIntervalS, frequencyHz: setting.stimulus });
-        const outputFit = sineFit3({ samplesV: record.output.samplesV, sampleIntervalS: record.output.sampleIntervalS, frequencyHz: setting.stimulus });
-        worstDistortion = Math.max(worstDistortion, distortionScore(outputFit));
-        responses.push(responseFromFits(inputFit, outputFit));
+      // Records before the last are read back at once (the next acquisition overwrites them).
+      const records: Array<{ input: Waveform; output: Waveform }> = [];
+      for (let k = 0; k < setting.averages - 1; k++) {
+        await scope.acquire();
+        const record = await fetchBoth(scope);
+        if ((record.input.clipped || record.output.clipped) && widenFor(record)) throw new RemeasureStep('clipped record; scale widened');
+        records.push(record);
       }
-      const combined = combineAcquisitions(responses);
-      const distorted = worstDistortion > DISTORTION_SCORE_LIMIT;
-      const last = responses[responses.length - 1];
-      return {
-        gainDb: combined.gainDb,
-        gainUncertaintyDb: combined.gainUncertaintyDb,
-        phaseDeg: combined.phaseDeg,
-        phaseUncertaintyDeg: combined.phaseUncertaintyDeg,
-        outputV: last.output.amplitudeV,
-        inputReading: last.input.amplitudeV,
-        outputReading: last.output.amplitudeV,
-        flags: (distorted ? PointFlag.distorted : 0) | (clipped ? PointFlag.overrange : 0),
-        advice: distorted
-          ? `output at ${formatEngineering(setting.stimulus, 'Hz')} is not a clean sine (residual ${(worstDistortion * 100).toFixed(1)} % of its RMS): ` +
-            `likely slew limiting or clipping. Lower the amplitude (now ${setting.amplitudeVpp.toPrecision(3)} Vpp) or use automatic amplitude.`
-          : undefined,
+      // One record of both channels at once spans the integration time (whole cycles). Once it is captured
+      // the stimulus is free: the runner moves the generator on while this record is read back.
+      await scope.acquire();
+      return async () => {
+        const record = await fetchBoth(scope);
+        if ((record.input.clipped || record.output.clipped) && widenFor(record)) throw new RemeasureStep('clipped record; scale widened');
+        records.push(record);
+        return reduceRecords(records, setting);
       };
     },
   };
 }
 
-async function acquireBoth(scope: ScopeControl): Promise<{ input: Waveform; output: Waveform }> {
-  await scope.acquire();
+/** Sine fits of every record, combined into one point with its flags and advice. */
+function reduceRecords(records: Array<{ input: Waveform; output: Waveform }>, setting: StepSetting): StepResult {
+  const responses: StageResponse[] = [];
+  let worstDistortion = 0;
+  let clipped = false;
+  for (const record of records) {
+    clipped ||= record.input.clipped || record.output.clipped;
+    const inputFit = sineFit3({ samplesV: record.input.samplesV, sampleIntervalS: record.input.sampleIntervalS, frequencyHz: setting.stimulus });
+    const outputFit = sineFit3({ samplesV: record.output.samplesV, sampleIntervalS: record.output.sampleIntervalS, frequencyHz: setting.stimulus });
+    worstDistortion = Math.max(worstDistortion, distortionScore(outputFit));
+    responses.push(responseFromFits(inputFit, outputFit));
+  }
+  const combined = combineAcquisitions(responses);
+  const distorted = worstDistortion > DISTORTION_SCORE_LIMIT;
+  const last = responses[responses.length - 1];
+  return {
+    gainDb: combined.gainDb,
+    gainUncertaintyDb: combined.gainUncertaintyDb,
+    phaseDeg: combined.phaseDeg,
+    phaseUncertaintyDeg: combined.phaseUncertaintyDeg,
+    outputV: last.output.amplitudeV,
+    inputReading: last.input.amplitudeV,
+    outputReading: last.output.amplitudeV,
+    flags: (distorted ? PointFlag.distorted : 0) | (clipped ? PointFlag.overrange : 0),
+    advice: distorted
+      ? `output at ${formatEngineering(setting.stimulus, 'Hz')} is not a clean sine (residual ${(worstDistortion * 100).toFixed(1)} % of its RMS): ` +
+        `likely slew limiting or clipping. Lower the amplitude (now ${setting.amplitudeVpp.toPrecision(3)} Vpp) or use automatic amplitude.`
+      : undefined,
+  };
+}
+
+async function fetchBoth(scope: ScopeControl): Promise<{ input: Waveform; output: Waveform }> {
   return { input: await scope.fetchWaveform(1), output: await scope.fetchWaveform(2) };
 }
 

@@ -9,6 +9,10 @@ import { PointFlag } from '../../service/contract';
 import type { Store } from '../../store';
 import type { RunControl } from './control';
 import { withRecovery } from './recovery';
+import { RemeasureStep } from './errors';
+
+/** A step re-measured this often with changed settings (e.g. wider scope scale) is taken as it is. */
+const MAX_REMEASURE = 8;
 import type { StepMeasurer, StepSetting, SweepInstruments } from './types';
 
 export interface SweepRunOptions {
@@ -60,7 +64,23 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
       if (!setting) break;
       if (control.pending !== 'none') return await halt(control.pending === 'stop' ? 'stopped' : 'paused');
 
-      const { value: result, retried } = await withRecovery(() => options.measurer.measure(instruments!, setting), recovery);
+      const upcoming = queue[1];
+      const attempt = async () => {
+        for (let tries = 1; ; tries++) {
+          try {
+            const read = await options.measurer.acquire(instruments!, setting);
+            // The stimulus of this step is no longer needed: move the generator on so the next step's settling
+            // runs while this step's data are read back, reduced and stored.
+            const ahead = upcoming && control.pending === 'none' ? options.measurer.apply(instruments!, upcoming) : undefined;
+            const [value] = await Promise.all([read(), ahead]);
+            return value;
+          } catch (error) {
+            if (!(error instanceof RemeasureStep) || tries >= MAX_REMEASURE) throw error;
+            log('info', `step ${setting.step}: ${error.message}; measuring it again`);
+          }
+        }
+      };
+      const { value: result, retried } = await withRecovery(attempt, recovery);
       const flags = result.flags | (retried ? PointFlag.retried : 0) | (setting.refinement ? PointFlag.refinement : 0);
       store.insertPoint(runId, {
         step: setting.step,

@@ -36,10 +36,20 @@ export interface SweepInstruments {
   meter?: MeterControl;
 }
 
-/** Measures one step on the instruments after the generator has been set and settled. */
+/**
+ * Measures steps on the instruments. Split in three so the runner can overlap
+ * link time with physics: while step k's data are read back and stored, the
+ * generator already moves to step k+1 and its settling runs.
+ */
 export interface StepMeasurer {
-  /** Called once per (re)connection before the first step. */
+  /** Called once per (re)connection before the first step; forgets any applied stimulus. */
   prepare(instruments: SweepInstruments): Promise<void>;
-  /** Sets the stimulus, waits for settling and integration, reads and reduces. */
-  measure(instruments: SweepInstruments, setting: StepSetting): Promise<StepResult>;
+  /** Sets the generator to the step's stimulus and notes when (settling counts from then). */
+  apply(instruments: SweepInstruments, setting: StepSetting): Promise<void>;
+  /**
+   * Applies the stimulus unless already applied, waits out the settling, and
+   * acquires. Resolves when the stimulus is no longer needed, with a function
+   * that reads back and reduces what was acquired.
+   */
+  acquire(instruments: SweepInstruments, setting: StepSetting): Promise<() => Promise<StepResult>>;
 }

@@ -1,0 +1,79 @@
+/**
+ * Sweep efficiency: wall time of a sweep on the virtual bench with a realistic
+ * link (a few ms per reply), divided by the physical minimum the plan requires
+ * (Σ settle + averages · integration). Target ≤ 1.10.
+ *
+ * Run: npx tsx test/bench/sweep-efficiency.ts [--latency-ms 3] [--per-decade 10]
+ * Real time (time scale 1), so the figure is what a bench user would see. The
+ * virtual bench runs in its own process (`rolloff sim`), as instruments do, so
+ * its simulation work is not charged to the sweep.
+ */
+import { spawn } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { RolloffService } from '../../app/service/service';
+import { makeDesignFromTemplate } from '../../app/circuit/templates';
+
+function argument(name: string, fallback: number): number {
+  const at = process.argv.indexOf(`--${name}`);
+  return at > 0 ? Number(process.argv[at + 1]) : fallback;
+}
+
+async function main(): Promise<void> {
+  const latencyMs = argument('latency-ms', 3);
+  const perDecade = argument('per-decade', 10);
+  const folder = mkdtempSync(join(tmpdir(), 'rolloff-bench-'));
+  const designFile = makeDesignFromTemplate('inverting-lowpass', {});
+  writeFileSync(join(folder, 'design.json'), JSON.stringify(designFile));
+  const sim = spawn(process.execPath, [join(import.meta.dirname, '../../app/cli/bin.mjs'), 'sim', '--design', join(folder, 'design.json'), '--tcp', '0',
+    '--latency', String(latencyMs / 1000), '--noise', '1e-4'], { stdio: ['ignore', 'pipe', 'inherit'] });
+  const addresses = await new Promise<Record<string, string>>((resolve, reject) => {
+    let text = '';
+    sim.stdout.on('data', (chunk) => {
+      text += chunk;
+      const found = Object.fromEntries([...text.matchAll(/^\s+(generator|meter|scope)\s+(tcp:\/\/127\.0\.0\.1:\d+)/gm)].map((m) => [m[1], m[2]]));
+      if (Object.keys(found).length === 3) resolve(found);
+    });
+    sim.on('exit', () => reject(new Error(`rolloff sim exited: ${text}`)));
+  });
+  const service = new RolloffService({ databasePath: join(folder, 'bench.sqlite'), maxStimulusVpp: 1 });
+  try {
+    const design = await service.saveDesign(designFile);
+    const build = await service.createBuild({ designId: design.id, label: 'bench', notes: '', actualValues: {} });
+    for (const role of ['generator', 'meter', 'scope'] as const) await service.connect({ role, address: addresses[role], profileId: `scpi-${role}` });
+    const cases = [
+      { name: 'scope, 10 Hz–100 kHz', request: { from: 10, to: 100e3, measurement: 'scope' as const, averages: 1 } },
+      { name: 'scope, 10 Hz–100 kHz, 3 averages', request: { from: 10, to: 100e3, measurement: 'scope' as const, averages: 3 } },
+      { name: 'meter, 10 Hz–100 kHz', request: { from: 10, to: 100e3, measurement: 'meter' as const, averages: 1 } },
+    ];
+    if (process.argv.includes('--trace')) {
+      const t0 = performance.now();
+      service.on('traffic', (t) => process.stderr.write(`${(performance.now() - t0).toFixed(1).padStart(9)} ${t.direction.padEnd(8)} ${t.text.slice(0, 50)}\n`));
+      service.on('point', (p) => process.stderr.write(`${(performance.now() - t0).toFixed(1).padStart(9)} POINT ${p.index}\n`));
+    }
+    console.log(`sweep efficiency on the virtual bench: link latency ${latencyMs} ms per reply, ${perDecade} points/decade, real time`);
+    console.log('case                                   points  physical min   wall time   ratio   overhead/point');
+    for (const c of cases) {
+      const request = {
+        buildId: build.id, kind: 'ac' as const, pointsPerDecade: perDecade, spacing: 'log' as const, amplitude: { mode: 'auto' as const },
+        minCycles: 5, refine: false, operator: 'benchmark', notes: '', ...c.request,
+      };
+      const plan = await service.planSweep(request);
+      const started = performance.now();
+      const run = await service.startRun(request);
+      await service.waitForRun(run.id);
+      const wallS = (performance.now() - started) / 1000;
+      const ratio = wallS / plan.estimatedDurationS;
+      const overheadMs = ((wallS - plan.estimatedDurationS) / plan.steps.length) * 1000;
+      console.log(`${c.name.padEnd(38)} ${String(plan.steps.length).padStart(6)}  ${plan.estimatedDurationS.toFixed(3).padStart(10)} s  ${wallS.toFixed(3).padStart(8)} s  ${ratio.toFixed(3).padStart(6)}  ${overheadMs.toFixed(1).padStart(8)} ms`);
+    }
+    console.log('target: ratio ≤ 1.10');
+  } finally {
+    await service.close();
+    sim.kill('SIGINT');
+    rmSync(folder, { recursive: true, force: true });
+  }
+}
+
+await main();
