@@ -25,7 +25,7 @@ export async function listenTcp(instrument: SimInstrument, port: number, options
   const server: Server = createServer((socket) => {
     socket.setNoDelay(true);
     sockets.add(socket);
-    const link = new InstrumentLink(instrument, { write: (bytes) => socket.write(bytes), destroy: () => socket.destroy() }, options);
+    const link = new InstrumentLink(instrument, { write: (bytes) => socket.write(bytes) }, options);
     socket.on('data', (chunk: Buffer) => link.receive(new Uint8Array(chunk.buffer, chunk.byteOffset, chunk.byteLength)));
     socket.on('close', () => {
       link.close();
@@ -68,7 +68,7 @@ export async function listenPty(instrument: SimInstrument, clientPath: string, o
     pair = await openPtyPair({ a: instrumentPath, b: clientPath });
     const opened = new SerialPort({ path: instrumentPath, baudRate: SIM_SERIAL_BAUD, autoOpen: false });
     await new Promise<void>((resolve, reject) => opened.open((error) => (error ? reject(error) : resolve())));
-    const current = new InstrumentLink(instrument, { write: (bytes) => opened.write(Buffer.from(bytes)), destroy: () => opened.close() }, options);
+    const current = new InstrumentLink(instrument, { write: (bytes) => opened.write(Buffer.from(bytes)) }, options);
     opened.on('data', (chunk: Buffer) => current.receive(new Uint8Array(chunk.buffer, chunk.byteOffset, chunk.byteLength)));
     opened.on('error', () => undefined);
     port = opened;

@@ -10,7 +10,6 @@ import type { SimInstrument, SimReply } from './sim-instrument';
 
 export interface ByteLink {
   write(bytes: Uint8Array): void;
-  destroy(): void;
 }
 
 export interface LinkOptions {

@@ -64,14 +64,25 @@ function candidateAddresses(address: InstrumentAddress, bauds: string | undefine
 }
 
 async function report(session: ScpiSession, address: InstrumentAddress, identity: InstrumentIdentity): Promise<void> {
-  const errors = await session.drainErrors();
-  await session.clearStatus();
-  const lines = [
+  const identityLines = [
     `Address:        ${formatAddress(address)}`,
     `Manufacturer:   ${identity.manufacturer}`,
     `Model:          ${identity.model}`,
     `Serial number:  ${identity.serialNumber}`,
     `Firmware:       ${identity.firmware}`,
+  ];
+  // The identity is worth showing even if the error queue cannot be read.
+  process.stdout.write(`${identityLines.join('\n')}\n`);
+  let errors;
+  try {
+    errors = await session.drainErrors();
+  } catch (error) {
+    if (!(error instanceof ScpiTimeoutError || error instanceof ScpiMalformedReplyError)) throw error;
+    process.stdout.write(`Error queue:    not readable (${error.message})\n`);
+    return;
+  }
+  await session.clearStatus();
+  const lines = [
     errors.length === 0 ? 'Error queue:    empty' : `Error queue:    ${errors.length} entr${errors.length === 1 ? 'y' : 'ies'} (now cleared)`,
     ...errors.map((e) => `  ${e.code},"${e.message}"`),
   ];
