@@ -52,7 +52,7 @@ describe('parseErrorEntry (SCPI-1999 SYSTem:ERRor? reply form, recalled from mem
 
 describe('parseIdentity (*IDN? four fields, IEEE 488.2 §10.14, recalled)', () => {
   it('splits manufacturer, model, serial number, firmware', () => {
-    expect(parseIdentity('Maker,Model 1,SN123,1.0\n')).toEqual({ manufacturer: 'Maker', model: 'Model 1', serialNumber: 'SN123', firmware: '1.0' });
+    expect(parseIdentity('Invented Maker,Model 1,SN123,1.0\n')).toEqual({ manufacturer: 'Invented Maker', model: 'Model 1', serialNumber: 'SN123', firmware: '1.0' });
   });
   it('refuses a reply without four fields', () => {
     expect(() => parseIdentity('just text')).toThrow(ScpiMalformedReplyError);

@@ -40,9 +40,9 @@ function scriptedPeer(respond: Responder, options: { maxErrorReads?: number } = 
 
 describe('ScpiSession', () => {
   it('queries, parses *IDN? and sends writes without waiting for a reply', async () => {
-    const { session, received } = scriptedPeer((line) => (line === '*IDN?' ? 'Acme Test,Unit 7,0,2.1\n' : undefined));
+    const { session, received } = scriptedPeer((line) => (line === '*IDN?' ? 'Invented Maker,Unit 7,0,2.1\n' : undefined));
     await session.write('*RST');
-    expect(await session.identify()).toEqual({ manufacturer: 'Acme Test', model: 'Unit 7', serialNumber: '0', firmware: '2.1' });
+    expect(await session.identify()).toEqual({ manufacturer: 'Invented Maker', model: 'Unit 7', serialNumber: '0', firmware: '2.1' });
     expect(received).toEqual(['*RST', '*IDN?']);
   });
 
