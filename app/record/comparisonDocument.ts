@@ -80,7 +80,7 @@ export function comparisonDocument(record: ComparisonRecord): RecordDocument {
         rows: [
           ['Build notes', run.build.notes || '—'],
           ['Run notes', run.run.notes || '—'],
-          ['Verdict', `${verdictHeadline(run.verdict)}${run.verdict?.reasons.length ? ` — ${run.verdict.reasons.join('; ')}` : ''}`],
+          ['Verdict', `${verdictHeadline(run.verdict)}${run.verdict?.reasons.length ? ` — ${run.verdict.reasons.join(' ')}` : ''}`],
           ...run.bench.map((i): [string, string] => [`${i.role} (${i.address})`, `${idnText(i.identity)}${i.simulated ? ' [simulated]' : ''}`]),
           ...lines.map((l): [string, string] => [l.label, l.value]),
         ],

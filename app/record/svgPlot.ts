@@ -2,7 +2,9 @@
 import { escapeHtml } from './htmlEscape';
 import { layoutPlot, type PlotSpec, type XY } from './plotSpec';
 
-const WIDTH = 760;
+const WIDTH = 800;
+/** Legend entries longer than this are shortened; the full name is the entry's tooltip. */
+const LEGEND_CHARACTERS = 34;
 const HEIGHT = 360;
 const FRAME = { left: 64, top: 28, width: 500, height: 280 };
 
@@ -42,7 +44,8 @@ export function svgPlot(spec: PlotSpec): string {
     if (entry.style === 'band') out.push(`<rect x="${legendX}" y="${y - 5}" width="18" height="10" fill="${entry.color}" fill-opacity="0.45"/>`);
     else if (entry.style === 'points') out.push(`<circle cx="${legendX + 9}" cy="${y}" r="3" fill="${entry.color}"/>`);
     else out.push(`<line x1="${legendX}" y1="${y}" x2="${legendX + 18}" y2="${y}" stroke="${entry.color}" stroke-width="1.5"${entry.style === 'line' ? '' : ' stroke-dasharray="4 2"'}/>`);
-    out.push(`<text x="${legendX + 24}" y="${y + 3}" class="legend">${escapeHtml(entry.name)}</text>`);
+    const shown = entry.name.length > LEGEND_CHARACTERS ? `${entry.name.slice(0, LEGEND_CHARACTERS - 1)}…` : entry.name;
+    out.push(`<text x="${legendX + 24}" y="${y + 3}" class="legend"><title>${escapeHtml(entry.name)}</title>${escapeHtml(shown)}</text>`);
   });
   out.push('</svg>');
   return out.join('\n');
