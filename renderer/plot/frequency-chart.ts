@@ -50,7 +50,10 @@ export class FrequencyChart {
   constructor(
     readonly container: HTMLElement,
     options: FrequencyChartOptions,
+    /** Data and markers to draw at once; saves a second draw when the data are already known. */
+    initial?: { columns: AlignedColumns; markers: Marker[] },
   ) {
+    this.markers = initial?.markers ?? [];
     this.markerLabels = options.markerLabels ?? true;
     const xUnit = options.xUnit ?? (options.xLinear ? 'V' : 'Hz');
     const uplotOptions: uPlot.Options = {
@@ -82,8 +85,8 @@ export class FrequencyChart {
         draw: [(u) => this.drawMarkers(u)],
       },
     };
-    const empty: uPlot.AlignedData = [[], ...options.series.map(() => [])] as unknown as uPlot.AlignedData;
-    this.plot = new uPlot(uplotOptions, empty, container);
+    const data = (initial?.columns ?? [[], ...options.series.map(() => [])]) as unknown as uPlot.AlignedData;
+    this.plot = new uPlot(uplotOptions, data, container);
     if (typeof ResizeObserver !== 'undefined') {
       this.resizeObserver = new ResizeObserver(() => {
         const width = container.clientWidth;

@@ -87,9 +87,16 @@ export class CompareView implements View {
   show(comparison: Comparison): void {
     const labels = comparison.runs.map((run) => `#${run.id} ${run.buildLabel}`);
     const yLabel = comparison.referenceRunId === 'theory' ? 'Measured − theory (dB)' : `Measured − run #${comparison.referenceRunId} (dB)`;
+    this.differenceTitle.textContent = comparison.referenceRunId === 'theory' ? 'Difference from theory' : `Difference from run #${comparison.referenceRunId}`;
+    const columns = compareColumns(comparison);
+    const first = comparison.runs[0];
+    const markers = first?.theoryGainLimitHz !== undefined ? [{ xHz: first.theoryGainLimitHz, label: `gain limit (theory) ${formatHz(first.theoryGainLimitHz)}`, color: PLOT_COLORS.gainLimit }] : [];
     // Charts are rebuilt only when the set of runs changes; otherwise new data is enough.
     const signature = JSON.stringify([labels, yLabel]);
-    if (signature !== this.chartSignature || !this.overlay || !this.difference) {
+    if (signature === this.chartSignature && this.overlay && this.difference) {
+      this.overlay.setData(columns.overlay, markers);
+      this.difference.setData(columns.difference, []);
+    } else {
       this.overlay?.destroy();
       this.difference?.destroy();
       this.chartSignature = signature;
@@ -97,21 +104,13 @@ export class CompareView implements View {
       const many = labels.length > 8;
       const kind = many ? ('line' as const) : ('points-line' as const);
       const runSeries = labels.map((label, i) => ({ label, color: runColor(i, labels.length), kind, width: many ? 1 : 1.25, pointSize: 4 }));
-      this.overlay = new FrequencyChart(this.overlayHost, {
-        yLabel: 'Gain (dB)',
-        yUnit: 'dB',
-        height: 320,
-        legend: !many,
-        series: [{ label: 'Theory (first run)', color: PLOT_COLORS.theory, kind: 'line' }, ...runSeries],
-      });
-      this.difference = new FrequencyChart(this.differenceHost, { yLabel, yUnit: 'dB', height: 220, legend: false, series: runSeries });
+      this.overlay = new FrequencyChart(
+        this.overlayHost,
+        { yLabel: 'Gain (dB)', yUnit: 'dB', height: 320, legend: !many, series: [{ label: 'Theory (first run)', color: PLOT_COLORS.theory, kind: 'line' }, ...runSeries] },
+        { columns: columns.overlay, markers },
+      );
+      this.difference = new FrequencyChart(this.differenceHost, { yLabel, yUnit: 'dB', height: 220, legend: false, series: runSeries }, { columns: columns.difference, markers: [] });
     }
-    this.differenceTitle.textContent = comparison.referenceRunId === 'theory' ? 'Difference from theory' : `Difference from run #${comparison.referenceRunId}`;
-    const columns = compareColumns(comparison);
-    const first = comparison.runs[0];
-    const markers = first?.theoryGainLimitHz !== undefined ? [{ xHz: first.theoryGainLimitHz, label: `gain limit (theory) ${formatHz(first.theoryGainLimitHz)}`, color: PLOT_COLORS.gainLimit }] : [];
-    this.overlay.setData(columns.overlay, markers);
-    this.difference.setData(columns.difference, []);
     this.element.dataset.comparedRuns = String(comparison.runs.length);
     this.renderTable(comparison);
   }
