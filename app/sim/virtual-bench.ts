@@ -27,6 +27,8 @@ export const SIM_SOURCE_IMPEDANCE_OHM = 50;
 export interface VirtualBenchOptions {
   /** A design file's JSON or a parsed Design. */
   design: unknown;
+  /** Where the design came from (file path), named in design errors. */
+  designSource?: string;
   /** TCP: 0 for an ephemeral port per instrument, or N for N, N+1, N+2 (generator, meter, scope). */
   tcpPort?: number;
   /** PTY: a folder (or true for a temp folder) where the serial links generator, meter, scope appear. */
@@ -57,7 +59,7 @@ export interface VirtualBench {
 const ROLES: InstrumentRole[] = ['generator', 'meter', 'scope'];
 
 export async function startVirtualBench(options: VirtualBenchOptions): Promise<VirtualBench> {
-  const design = parseDesign(options.design, 'virtual bench design');
+  const design = parseDesign(options.design, options.designSource ?? 'virtual bench design');
   const clock = options.clock ?? scaledClock(options.timeScale ?? 1);
   const noiseVrms = options.noiseVrms ?? 0;
   if (!(noiseVrms >= 0) || !Number.isFinite(noiseVrms)) throw new ValidationError('noiseVrms', `${noiseVrms} is not a non-negative number of volts`);

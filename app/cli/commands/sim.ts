@@ -44,6 +44,9 @@ Examples:
     const pty = optionString(parsed, 'pty');
     const timeScale = optionNumber(parsed, 'time-scale')!;
     if (!(timeScale > 0)) throw new ValidationError('--time-scale', 'must be a positive number');
+    for (const name of ['noise', 'latency'] as const) {
+      if (!(optionNumber(parsed, name)! >= 0)) throw new ValidationError(`--${name}`, 'must be zero or more');
+    }
     const faults: Partial<Record<InstrumentRole, SimFault>> = {};
     for (const spec of (parsed.options.fault as string[] | undefined) ?? []) {
       const { role, fault } = parseFaultSpec(spec);
@@ -52,6 +55,7 @@ Examples:
     }
     const bench = await startVirtualBench({
       design,
+      designSource: designPath,
       ...(pty !== undefined ? { pty } : { tcpPort: tcpPort ?? 0 }),
       timeScale,
       noiseVrms: optionNumber(parsed, 'noise')!,
