@@ -6,3 +6,4 @@ export * from './gain-limit';
 export * from './deviation';
 export * from './verdict';
 export * from './analyze-ac';
+export * from './drift';

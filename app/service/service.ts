@@ -21,6 +21,8 @@ import { dcMeasurer } from '../sweep/runner/measure-dc';
 import { RunStateError } from '../sweep/runner/errors';
 import type { StepMeasurer, StepSetting, SweepInstruments } from '../sweep/runner/types';
 import { PointFlag } from './contract';
+import { driftSummary, type DriftRow } from '../analysis';
+import type { RunFigures } from './contract';
 import type {
   BenchStatus, BuildRecord, Comparison, ConnectRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
   PointColumns, PortInfo, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunStatus, RunSummary, ServiceEventName,
@@ -51,6 +53,13 @@ export interface RolloffServiceOptions {
   meterIntegrationS?: number;
   /** Largest number of refinement points added after the coarse pass. Default 8. */
   maxRefinementPoints?: number;
+}
+
+/** What a schedule produced: its runs and how their figures drifted. */
+export interface ScheduleReport {
+  scheduleId: number;
+  runs: Array<{ runId: number; status: RunStatus; startedAt: string | null; figures: RunFigures | null }>;
+  drift: DriftRow[];
 }
 
 interface ConnectedInstrument {
@@ -341,6 +350,44 @@ export class RolloffService implements RolloffApi {
   async exportRecord(runIds: number[], format: RecordFormat, reference: number | 'theory' = 'theory'): Promise<ExportedRecord> {
     if (runIds.length === 0) throw new ValidationError('runIds', 'is empty', 'Give at least one run.');
     return exportRecordFor(this, runIds, format, reference);
+  }
+
+  // ── Schedules (CLI; each repetition is an ordinary run of the same build) ──
+
+  /**
+   * Repeats a sweep every `everyMinutes` (bench time: scaled on a virtual bench),
+   * `count` times or until the wall-clock time `until`, whichever comes first.
+   * Resolves with every run and the drift of the figures across them.
+   */
+  async runSchedule(input: { request: SweepRequest; everyMinutes: number; count?: number; until?: string }, onRun?: (summary: RunSummary, index: number) => void): Promise<ScheduleReport> {
+    const { request, everyMinutes } = input;
+    if (!(Number.isFinite(everyMinutes) && everyMinutes > 0)) throw new ValidationError('every', `${everyMinutes} min is not a positive interval`);
+    if (input.count === undefined && input.until === undefined) throw new ValidationError('count/until', 'give a number of runs or an end time', 'e.g. --count 12, or --until 07:30.');
+    if (input.count !== undefined && !(Number.isInteger(input.count) && input.count >= 1)) throw new ValidationError('count', `${input.count} is not a whole number ≥ 1`);
+    const untilMs = input.until === undefined ? Infinity : Date.parse(input.until);
+    if (Number.isNaN(untilMs)) throw new ValidationError('until', `"${input.until}" is not a time`, 'Give an ISO 8601 time, e.g. 2026-12-02T07:30.');
+    if (untilMs <= Date.now()) throw new ValidationError('until', `${input.until} is already past`);
+    const schedule = this.store.createSchedule({ buildId: request.buildId, request, everyMinutes, count: input.count ?? null, until: input.until === undefined ? null : new Date(untilMs).toISOString() });
+    const runIds: number[] = [];
+    const clock = this.clock;
+    for (let index = 0; ; index++) {
+      const slotS = clock.nowS();
+      const run = await this.startRunWith(request, { scheduleId: schedule.id });
+      runIds.push(run.id);
+      onRun?.(run, index);
+      const status = await this.waitForRun(run.id).catch(() => 'failed' as const);
+      if (status === 'paused' || status === 'stopped') break; // the user intervened: end the schedule too
+      if (input.count !== undefined && runIds.length >= input.count) break;
+      const nextSlotS = slotS + everyMinutes * 60;
+      if (Date.now() + ((nextSlotS - clock.nowS()) / clock.timeScale) * 1000 > untilMs) break;
+      await clock.sleepS(Math.max(0, nextSlotS - clock.nowS()));
+    }
+    const runs = runIds.map((id) => this.store.getRun(id));
+    return {
+      scheduleId: schedule.id,
+      runs: runs.map((r) => ({ runId: r.id, status: r.status, startedAt: r.startedAt, figures: r.figures })),
+      drift: driftSummary(runs.map((r) => r.figures ?? { minus3dbHz: [] })),
+    };
   }
 
   // ── internals ──────────────────────────────────────────────────────────

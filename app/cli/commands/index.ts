@@ -12,6 +12,9 @@ import { runsCommand } from './runs';
 import { showCommand } from './show';
 import { resumeCommand } from './resume';
 import { demoCommand } from './demo';
+import { scheduleCommand } from './schedule';
+import { designCommand } from './design';
+import { buildCommand } from './build';
 import { portsCommand } from './ports';
 import { probeCommand } from './probe';
 import { queryCommand } from './query';
@@ -28,6 +31,9 @@ export const COMMANDS: CommandSpec[] = [
   showCommand,
   resumeCommand,
   demoCommand,
+  scheduleCommand,
+  designCommand,
+  buildCommand,
   portsCommand,
   probeCommand,
   queryCommand,
