@@ -86,7 +86,6 @@ export class RolloffService implements RolloffApi {
   readonly store: Store;
   readonly events = new ServiceEventBus();
   private readonly options: RolloffServiceOptions;
-  private readonly traffic = new TrafficLog();
   private readonly instruments = new Map<InstrumentRole, ConnectedInstrument>();
   /** What each role should be connected to, kept while a link is down so reconnecting knows where. */
   private readonly wanted = new Map<InstrumentRole, { request: ConnectRequest; simulated: boolean }>();
@@ -98,10 +97,6 @@ export class RolloffService implements RolloffApi {
     this.options = options;
     this.store = Store.open(options.databasePath);
     this.maxStimulusVpp = options.maxStimulusVpp ?? this.lastRecordedMaxStimulus();
-    this.traffic.subscribe((entry) => {
-      const role = ROLES.find((r) => this.instruments.get(r)?.opened.session && entry.link.includes(this.instruments.get(r)!.opened.address)) ?? 'other';
-      this.events.emit('traffic', { at: entry.at, role, direction: entry.direction, text: entry.text });
-    });
   }
 
   /** Subscribe to one event; returns the unsubscribe function (RolloffClient.on). */
@@ -437,9 +432,12 @@ export class RolloffService implements RolloffApi {
     }
     if (request.role === 'generator') this.requireMaxStimulus();
     this.wanted.set(request.role, { request, simulated });
+    // One traffic log per role, so every line (the *IDN? at open included) reaches the window with its role.
+    const traffic = new TrafficLog();
+    traffic.subscribe((entry) => this.events.emit('traffic', { at: entry.at, role: request.role, direction: entry.direction, text: entry.text }));
     const opened = await openInstrument(request.address, request.role, request.profileId, {
       maxStimulusVpp: this.maxStimulusVpp,
-      traffic: this.traffic,
+      traffic,
       profileFolder: this.options.profileFolder,
     });
     const isSimulated = simulated || /\(simulated\)/i.test(opened.identity.manufacturer);

@@ -24,6 +24,11 @@ Every point is stored the moment it is measured. Ctrl-C pauses after the current
     process.stderr.write(`${SAFETY_NOTICE_SHORT}\n\n`);
     const service = openService(parsed);
     try {
+      const interrupted = service.interruptedRuns();
+      if (interrupted.length > 0) {
+        process.stderr.write(`Note: run(s) ${interrupted.map((r) => r.id).join(', ')} were left running or paused by an earlier session; ` +
+          `continue one with: rolloff resume RUN --db ${service.store.path}\n`);
+      }
       const buildId = await resolveBuildId(service, parsed);
       const request = requestFrom(parsed, buildId);
       await connectBench(service, parsed, buildId);

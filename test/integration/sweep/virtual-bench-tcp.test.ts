@@ -17,10 +17,12 @@ describe('sweep on the virtual bench over TCP', () => {
   let service: RolloffService;
   let detail: RunDetail;
   const pointsSeen: number[] = [];
+  const trafficRoles = new Set<string>();
 
   beforeAll(async () => {
     service = new RolloffService({ databasePath: join(folder.path, 'bench.sqlite'), maxStimulusVpp: 1, virtualBench: { timeScale: 50, noiseVrms: 1e-4, link: 'tcp' } });
     service.on('point', (p) => pointsSeen.push(p.index));
+    service.on('traffic', (t) => trafficRoles.add(t.role));
     const design = await service.saveDesign(invertingGain100());
     const build = await service.createBuild({ designId: design.id, label: 'gain 100', notes: '', actualValues: {} });
     await service.startVirtualBenchForBuild(build.id);
@@ -39,6 +41,10 @@ describe('sweep on the virtual bench over TCP', () => {
     for (const address of Object.values(status.virtualBench!.addresses)) expect(address).toMatch(/^tcp:\/\/127\.0\.0\.1:\d+$/);
     expect(detail.simulated).toBe(true);
     expect(detail.bench.every((i) => i.simulated)).toBe(true);
+  });
+
+  it('reports instrument traffic by role for the Bench view', () => {
+    expect([...trafficRoles].sort()).toEqual(['generator', 'meter', 'scope']); // the meter answers *IDN? at connect
   });
 
   it('stores every planned point once, in step order, and emits each as it is measured', () => {
