@@ -152,12 +152,14 @@ export class RolloffService implements RolloffApi {
   }
 
   async connect(request: ConnectRequest): Promise<InstrumentInfo> {
+    this.requireIdleBench();
     const info = await this.connectRole(request, false);
     this.events.emit('bench', await this.benchStatus());
     return info;
   }
 
   async disconnect(role: InstrumentRole): Promise<void> {
+    if (this.instruments.has(role)) this.requireIdleBench();
     this.wanted.delete(role);
     const connected = this.instruments.get(role);
     if (!connected) return;
@@ -189,7 +191,7 @@ export class RolloffService implements RolloffApi {
     if (!(Number.isFinite(maxStimulusVpp) && maxStimulusVpp > 0)) {
       throw new ValidationError('maximum stimulus', `${maxStimulusVpp} Vpp is not a positive amplitude`, 'Give the largest peak-to-peak voltage the circuit may see, e.g. 2.');
     }
-    if (this.active.size > 0) throw new UserError('the maximum stimulus cannot change during a sweep', 'Pause or stop the running sweep first.');
+    this.requireIdleBench();
     this.maxStimulusVpp = maxStimulusVpp;
     // The generator control holds its ceiling from the moment it is opened: reopen it with the new one.
     const generator = this.instruments.get('generator');
@@ -242,6 +244,10 @@ export class RolloffService implements RolloffApi {
   /** startRun with the service-only options (schedule id). */
   async startRunWith(request: SweepRequest, extra: { scheduleId?: number } = {}): Promise<RunSummary> {
     const maxStimulusVpp = this.requireMaxStimulus();
+    this.requireIdleBench();
+    if (request.through && (request.kind !== 'ac' || request.measurement !== 'meter')) {
+      throw new ValidationError('through', 'a through-calibration is an AC meter run', 'Use measurement "meter" (rolloff sweep --through sets it).');
+    }
     await this.matchVirtualBench(request);
     this.requireInstrumentsFor(request);
     const plan = planSweep(this.planInput(request, maxStimulusVpp));
@@ -298,6 +304,7 @@ export class RolloffService implements RolloffApi {
   async resumeRun(runId: number): Promise<RunSummary> {
     const run = this.store.getRun(runId);
     if (this.active.has(runId)) throw new RunStateError(runId, 'is already running');
+    this.requireIdleBench();
     if (run.status === 'done') throw new RunStateError(runId, 'is finished; nothing to resume', 'Start a new run of the same build instead.');
     if (this.maxStimulusVpp === undefined && typeof run.request.maxStimulusVpp === 'number') this.maxStimulusVpp = run.request.maxStimulusVpp;
     const maxStimulusVpp = this.requireMaxStimulus();
@@ -399,6 +406,14 @@ export class RolloffService implements RolloffApi {
     return typeof value === 'number' && value > 0 ? value : undefined;
   }
 
+  /** One sweep at a time: the instruments are shared. */
+  private requireIdleBench(): void {
+    const running = [...this.active.keys()];
+    if (running.length > 0) {
+      throw new UserError(`run ${running[0]} is using the bench`, `Wait for it to finish, or pause/stop it first (rolloff resume continues it later).`);
+    }
+  }
+
   private requireMaxStimulus(): number {
     if (this.maxStimulusVpp === undefined) {
       throw new ValidationError('maximum stimulus', 'is not set', 'Set the largest peak-to-peak voltage the circuit may see: --max-amplitude VPP, or on the Bench view.');
@@ -447,7 +462,7 @@ export class RolloffService implements RolloffApi {
   }
 
   private async startVirtualBenchForDesign(design: Design, name: string, key: string): Promise<void> {
-    if (this.active.size > 0) throw new UserError('the virtual bench cannot change during a sweep', 'Pause or stop the running sweep first.');
+    this.requireIdleBench();
     for (const role of ROLES) {
       this.wanted.delete(role);
       const connected = this.instruments.get(role);
