@@ -176,7 +176,7 @@ export class Store {
       db.pragma('busy_timeout = 5000');
       db.pragma('cache_size = -32768'); // 32 MiB: bulk imports stay in memory until commit
       if (!readonly && fileVersion === 0 && tableCount === 0) {
-        // Only possible before the first table exists; 16 KiB pages cut bulk-insert CPU by about a fifth (test/bench/store.ts).
+        // Only possible before the first table exists; 16 KiB pages cut bulk-insert CPU by about a fifth against 4 KiB (measured on this schema, 1M points).
         db.pragma('page_size = 16384');
       }
       let applied: number[] = [];
