@@ -237,6 +237,16 @@ export class RolloffService implements RolloffApi {
     return toPlanSummary(planSweep(this.planInput(request, this.requireMaxStimulus())));
   }
 
+  /**
+   * The plan for a design file and measured values that are not stored yet:
+   * lets a caller refuse a bad request before storing anything.
+   */
+  planForUnsavedBuild(request: SweepRequest, design: unknown, actualValues: Record<string, number>): SweepPlanSummary {
+    const record: DesignRecord = { id: 0, name: '', design, createdAt: '' };
+    const built = buildDesign(record, { id: 0, designId: 0, label: '', notes: '', actualValues, createdAt: '' });
+    return toPlanSummary(planSweep(this.planInputFor(request, this.requireMaxStimulus(), request.through ? throughDesign(built) : built)));
+  }
+
   async startRun(request: SweepRequest): Promise<RunSummary> {
     return this.startRunWith(request);
   }

@@ -2,7 +2,7 @@ import type { CommandSpec } from '../args';
 import { optionNumber, optionString } from '../args';
 import { ValidationError } from '../../errors';
 import { SAFETY_NOTICE_SHORT } from '../../service/safety';
-import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, connectBench, openService, requestFrom, resolveBuildId } from '../../sweep/cli/sweep-options';
+import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, checkBenchOptions, connectBench, openService, requestFrom, resolveBuildId } from '../../sweep/cli/sweep-options';
 import { followRun } from '../../sweep/cli/follow-run';
 import { formatEngineering } from '../../units';
 
@@ -27,6 +27,8 @@ and ends the schedule.`,
     const until = untilTime(optionString(parsed, 'until'));
     const service = openService(parsed);
     try {
+      requestFrom(parsed, 0);
+      checkBenchOptions(service, parsed);
       const buildId = await resolveBuildId(service, parsed);
       const request = requestFrom(parsed, buildId);
       await connectBench(service, parsed, buildId);

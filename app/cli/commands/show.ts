@@ -1,6 +1,6 @@
 import type { CommandSpec } from '../args';
 import { optionFlag, optionString, requirePositional } from '../args';
-import { parseEngineering, formatEngineering } from '../../units';
+import { formatEngineering } from '../../units';
 import { ValidationError } from '../../errors';
 import { PointFlag } from '../../service/contract';
 import { RolloffService } from '../../service/service';
@@ -52,7 +52,6 @@ export const showCommand: CommandSpec = {
 };
 
 export function parseRunId(text: string): number {
-  const value = parseEngineering(text, 'RUN');
-  if (!Number.isInteger(value) || value <= 0) throw new ValidationError('RUN', `"${text}" is not a run number`, 'See rolloff runs for the list.');
-  return value;
+  if (!/^\s*\d+\s*$/.test(text) || Number(text) <= 0) throw new ValidationError('RUN', `"${text}" is not a run number`, 'See rolloff runs for the list.');
+  return Number(text);
 }

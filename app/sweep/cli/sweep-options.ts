@@ -84,6 +84,8 @@ export async function resolveBuildId(service: RolloffService, parsed: ParsedArgs
   if (buildId !== undefined) return service.store.getBuild(buildId).id;
   if (designFile === undefined) throw new ValidationError('--build', 'is missing', 'Give --build ID (see rolloff build list) or --design FILE.json [--label TEXT] [--actual PART=VALUE …].');
   const design = readJsonFile(designFile, '--design');
+  // Design, measured values and plan are all checked before anything is stored.
+  service.planForUnsavedBuild(requestFrom(parsed, 0), design, actualValuesFrom(parsed));
   const saved = await service.saveDesign(design);
   const build = await service.createBuild({ designId: saved.id, label: optionString(parsed, 'label') ?? 'build', notes: '', actualValues: actualValuesFrom(parsed) });
   return build.id;
@@ -100,6 +102,16 @@ export function readJsonFile(path: string, where: string): unknown {
     return JSON.parse(text);
   } catch (error) {
     throw new ValidationError(`${where} ${path}`, `is not valid JSON (${(error as Error).message})`, 'Fix the file, or make one with rolloff template.');
+  }
+}
+
+/** Refuses a sweep that could not start (no ceiling, no instruments) before anything is stored. */
+export function checkBenchOptions(service: RolloffService, parsed: ParsedArgs): void {
+  if (service.maxStimulus === undefined) {
+    throw new ValidationError('--max-amplitude', 'is missing and no earlier run in this database recorded one', 'Give the largest peak-to-peak voltage the circuit may see, e.g. --max-amplitude 2.');
+  }
+  if (!optionFlag(parsed, 'virtual') && !optionString(parsed, 'generator')) {
+    throw new ValidationError('--generator', 'no instruments given', 'Give --generator ADDRESS with --scope or --meter ADDRESS, or use --virtual for the simulated bench.');
   }
 }
 

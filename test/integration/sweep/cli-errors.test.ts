@@ -1,0 +1,46 @@
+/**
+ * Bad input to the sweep commands: a clear message naming the option, a hint,
+ * exit status 2, no stack trace, and nothing stored in the database.
+ */
+import { afterAll, describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import { existsSync, writeFileSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import { Store } from '../../../app/store';
+import { makeDesignFromTemplate } from '../../../app/circuit/templates';
+import { tempFolder } from './helpers';
+
+const BIN = join(resolve(__dirname, '../../..'), 'app/cli/bin.mjs');
+
+describe('sweep command errors', () => {
+  const folder = tempFolder();
+  afterAll(() => folder.remove());
+  const design = join(folder.path, 'design.json');
+  writeFileSync(design, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
+  const db = join(folder.path, 'errors.sqlite');
+
+  it.each([
+    [['sweep', '--design', design, '--virtual'], /--max-amplitude: is missing/],
+    [['sweep', '--design', design, '--max-amplitude', '1'], /--generator: no instruments given/],
+    [['sweep', '--design', design, '--virtual', '--max-amplitude', '1', '--measure', 'probe'], /--measure: "probe" is not scope or meter/],
+    [['sweep', '--design', design, '--virtual', '--max-amplitude', '1', '--from', '1k', '--to', '10'], /from\/to: the range/],
+    [['sweep', '--design', join(folder.path, 'missing.json'), '--virtual', '--max-amplitude', '1'], /--design: cannot read/],
+    [['show', 'x1'], /RUN: "x1" is not a run number/],
+  ])('%j is refused cleanly', (args, message) => {
+    const result = spawnSync(process.execPath, [BIN, ...args, '--db', db], { encoding: 'utf8' });
+    expect(result.status).toBe(2);
+    expect(result.stderr).toMatch(message);
+    expect(result.stderr).not.toMatch(/\n\s+at /); // no stack trace
+  });
+
+  it('left no design, build or run behind', () => {
+    if (!existsSync(db)) return expect(existsSync(db)).toBe(false);
+    const store = Store.open(db, { readonly: true });
+    try {
+      expect(store.listRuns()).toEqual([]);
+      expect(store.listBuilds()).toEqual([]);
+    } finally {
+      store.close();
+    }
+  });
+});
