@@ -83,7 +83,7 @@ export function mountShell(root: HTMLElement, client: RolloffClient, state: AppS
     if (changed.includes('bench')) renderBench(s.bench);
   });
   client.on('bench', (bench) => state.update({ bench }));
-  client.benchStatus().then((bench) => state.update({ bench }), (error) => showError(error, 'Reading the bench status'));
+  state.refreshBench(() => client.benchStatus()).catch((error) => showError(error, 'Reading the bench status'));
 
   show(current ?? 'bench');
   openSafetyDialogIfNew(root);

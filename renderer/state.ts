@@ -28,7 +28,11 @@ export class AppState {
     return this.state;
   }
 
+  /** Counts bench-status updates, so a slow read cannot overwrite a newer status (see refreshBench). */
+  private benchVersion = 0;
+
   update(changes: Partial<SharedState>): void {
+    if ('bench' in changes) this.benchVersion++;
     this.state = { ...this.state, ...changes };
     const changed = Object.keys(changes) as Array<keyof SharedState>;
     for (const listener of this.listeners) listener(this.state, changed);
@@ -37,6 +41,16 @@ export class AppState {
   subscribe(listener: Listener): () => void {
     this.listeners.add(listener);
     return () => this.listeners.delete(listener);
+  }
+
+  /**
+   * Reads the bench status and applies it unless a newer one (a command's
+   * result or a bench event) arrived while the read was in flight.
+   */
+  async refreshBench(read: () => Promise<BenchStatus>): Promise<void> {
+    const version = this.benchVersion;
+    const bench = await read();
+    if (this.benchVersion === version) this.update({ bench });
   }
 
   togglePicked(runId: number, picked: boolean): void {

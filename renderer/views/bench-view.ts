@@ -113,7 +113,7 @@ export class BenchView implements View {
   }
 
   private async refreshBench(): Promise<void> {
-    this.state.update({ bench: await this.client.benchStatus() });
+    await this.state.refreshBench(() => this.client.benchStatus());
   }
 
   private renderProfiles(): void {

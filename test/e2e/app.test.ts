@@ -55,6 +55,28 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
     expect(await page.getByTestId('safety-dialog').count()).toBe(0);
   });
 
+  it('opens a design file, and refuses a bad one naming the part', async () => {
+    await view('2');
+    const fileInput = page.getByLabel('Open a design file');
+    const design = {
+      name: 'Follower with gain 2 (invented example)',
+      input: 'in',
+      output: 'out',
+      parts: [
+        { id: 'RG', type: 'resistor', nodes: ['inv', '0'], value: '10k' },
+        { id: 'RF', type: 'resistor', nodes: ['inv', 'out'], value: '10k' },
+        { id: 'U1', type: 'opamp', nodes: ['in', 'inv', 'out'], model: { openLoopGain: 1e5, gbw: 1e6 } },
+      ],
+    };
+    await fileInput.setInputFiles({ name: 'follower.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(design)) });
+    await expect.poll(() => page.getByTestId('design-name').inputValue()).toBe(design.name);
+    await expect.poll(() => page.locator('[data-figure="passband"]').textContent()).toMatch(/^6\.0\d dB$/); // 20·log10(1 + RF/RG) = 6.02 dB, non-inverting gain (handbook formula)
+    const bad = { ...design, parts: [{ ...design.parts[0], value: '-10k' }, ...design.parts.slice(1)] };
+    await fileInput.setInputFiles({ name: 'bad.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(bad)) });
+    await expect.poll(() => page.locator('.notice-error').last().textContent()).toMatch(/Opening bad\.json: .*RG/);
+    await page.locator('.notice-error .notice-close').last().click();
+  });
+
   it('makes a design from a template, shows its theory as you type, saves it and creates a build', async () => {
     await view('2');
     await page.getByTestId('template').selectOption('inverting-gain');
