@@ -2,8 +2,14 @@
  * Measured against theory, point by point: deviation and the tolerance band.
  */
 
-/** Coverage factor for the expanded uncertainty, k = 2 (≈95 %) as in the GUM, JCGM 100:2008 §6.3 (clause recalled from memory). */
-export const COVERAGE_FACTOR = 2;
+/**
+ * Coverage factor for calling a point outside the band: k = 3. The GUM's usual
+ * k = 2 (≈95 %, JCGM 100:2008 §6.3, clause recalled from memory) would flag one
+ * point in twenty by chance when the band is narrow (a build with measured part
+ * values has almost no tolerance left); k = 3 (≈99.7 % for a normal
+ * distribution) keeps chance flags rare (common practice, no source).
+ */
+export const COVERAGE_FACTOR = 3;
 
 /** measured − theory in dB, per point. */
 export function deviationDb(measuredGainDb: ArrayLike<number>, theoryGainDb: ArrayLike<number>): Float64Array {

@@ -79,6 +79,12 @@ function resistorAtInput(design: Design): PassivePart | undefined {
   return design.parts.find((p): p is PassivePart => p.type === 'resistor' && (p.nodes as string[]).includes(design.input));
 }
 
+/** The build's diode model (log stage), for comparing a DC fit with theory. */
+export function diodeOfRun(store: Store, runId: number): { n: number; isA: number; rsOhm: number } | undefined {
+  const diode = designForRun(store, store.getRun(runId)).parts.find((p): p is DiodePart => p.type === 'diode');
+  return diode ? { n: diode.model.n, isA: diode.model.is, rsOhm: diode.model.rs } : undefined;
+}
+
 export function runDetail(store: Store, runId: number): RunDetail {
   const run = store.getRun(runId);
   const points = store.loadPoints(runId);

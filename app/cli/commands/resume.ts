@@ -4,6 +4,7 @@ import { SAFETY_NOTICE_SHORT } from '../../service/safety';
 import { BENCH_OPTIONS, connectBench, openService } from '../../sweep/cli/sweep-options';
 import { followRun } from '../../sweep/cli/follow-run';
 import { runDetailText } from '../../sweep/cli/summary-text';
+import { diodeOfRun } from '../../service/run-detail';
 import { parseRunId } from './show';
 
 export const resumeCommand: CommandSpec = {
@@ -25,7 +26,7 @@ with the run applies unless --max-amplitude is given.`,
       await service.resumeRun(runId);
       process.stderr.write(`run ${runId} continues at step ${service.store.nextStep(runId)}\n`);
       const status = await followRun(service, runId);
-      process.stdout.write(runDetailText(await service.getRun(runId)));
+      process.stdout.write(runDetailText(await service.getRun(runId), diodeOfRun(service.store, runId)));
       return status === 'done' || status === 'paused' ? 0 : 1;
     } finally {
       await service.close();

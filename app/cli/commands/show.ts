@@ -7,6 +7,7 @@ import { RolloffService } from '../../service/service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';
 import { runDetailText } from '../../sweep/cli/summary-text';
+import { diodeOfRun } from '../../service/run-detail';
 
 const FLAG_NAMES = Object.entries(PointFlag) as Array<[string, number]>;
 
@@ -29,14 +30,14 @@ export const showCommand: CommandSpec = {
         process.stdout.write(JSON.stringify(detail) + '\n');
         return 0;
       }
-      process.stdout.write(runDetailText(detail));
+      process.stdout.write(runDetailText(detail, diodeOfRun(service.store, runId)));
       if (optionFlag(parsed, 'points')) {
         const p = detail.points;
         process.stdout.write(`\n${'step'.padEnd(5)} ${(detail.kind === 'ac' ? 'frequency' : 'input').padEnd(12)} ${'amplitude'.padEnd(11)} ${(detail.kind === 'ac' ? 'gain dB' : 'output V').padEnd(16)} ${'phase °'.padEnd(16)} flags\n`);
         for (let i = 0; i < p.step.length; i++) {
           const flags = FLAG_NAMES.filter(([, bit]) => (p.flags[i] & bit) !== 0).map(([name]) => name).join(',');
-          const main = detail.kind === 'ac' ? `${p.gainDb[i].toFixed(3)} ±${p.gainUncertaintyDb[i].toFixed(3)}` : `${p.outputV[i].toPrecision(6)}`;
-          const phase = Number.isFinite(p.phaseDeg[i]) ? `${p.phaseDeg[i].toFixed(2)} ±${p.phaseUncertaintyDeg[i].toFixed(2)}` : '—';
+          const main = detail.kind === 'ac' ? `${p.gainDb[i].toFixed(3)} ±${p.gainUncertaintyDb[i].toPrecision(2)}` : `${p.outputV[i].toPrecision(6)}`;
+          const phase = Number.isFinite(p.phaseDeg[i]) ? `${p.phaseDeg[i].toFixed(2)} ±${p.phaseUncertaintyDeg[i].toPrecision(2)}` : '—';
           process.stdout.write(`${String(p.step[i]).padEnd(5)} ${formatEngineering(p.stimulus[i], detail.kind === 'ac' ? 'Hz' : 'V').padEnd(12)} ${formatEngineering(p.amplitudeVpp[i], 'Vpp').padEnd(11)} ${main.padEnd(16)} ${phase.padEnd(16)} ${flags}\n`);
         }
       }

@@ -5,6 +5,7 @@ import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, checkBenchOptions, connectB
 import { followRun } from '../../sweep/cli/follow-run';
 import { formatDuration } from '../../sweep/cli/progress-bar';
 import { runDetailText } from '../../sweep/cli/summary-text';
+import { diodeOfRun } from '../../service/run-detail';
 import { formatEngineering } from '../../units';
 
 export const sweepCommand: CommandSpec = {
@@ -48,7 +49,7 @@ Every point is stored the moment it is measured. Ctrl-C pauses after the current
       });
       const detail = await service.getRun(run.id);
       if (optionFlag(parsed, 'json')) process.stdout.write(JSON.stringify(detail) + '\n');
-      else process.stdout.write(runDetailText(detail));
+      else process.stdout.write(runDetailText(detail, diodeOfRun(service.store, run.id)));
       if (status === 'paused') process.stderr.write(`run ${run.id} paused; continue with: rolloff resume ${run.id} --db ${service.store.path}\n`);
       if (detail.kind === 'ac' && detail.figures.gainLimitHz !== undefined && detail.theoryGainLimitHz !== undefined) {
         const ratio = detail.figures.gainLimitHz / detail.theoryGainLimitHz - 1;

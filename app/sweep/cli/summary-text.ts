@@ -6,6 +6,7 @@ export function figureLines(figures: RunFigures, theory?: { gainLimitHz?: number
   const lines: string[] = [];
   const hz = (v: number | undefined) => (v === undefined ? '—' : formatEngineering(v, 'Hz'));
   if (figures.passbandGainDb !== undefined) lines.push(`pass-band gain      ${figures.passbandGainDb.toFixed(3)} dB`);
+  if (figures.logFit) return logFitLines(figures.logFit);
   lines.push(`−3 dB points        ${figures.minus3dbHz.length ? figures.minus3dbHz.map(hz).join(', ') : '—'}${theory ? `   (theory ${theory.minus3dbHz.length ? theory.minus3dbHz.map(hz).join(', ') : '—'})` : ''}`);
   if (figures.rolloffDbPerDecade !== undefined) lines.push(`roll-off            ${figures.rolloffDbPerDecade.toFixed(1)} dB/decade`);
   lines.push(`gain-limit point    ${hz(figures.gainLimitHz)}${theory ? `   (theory ${hz(theory.gainLimitHz)})` : ''}`);
@@ -13,16 +14,25 @@ export function figureLines(figures: RunFigures, theory?: { gainLimitHz?: number
     lines.push(`GBW estimate        ${hz(figures.gbwEstimateHz)}${figures.gbwUncertaintyHz !== undefined ? ` ± ${hz(figures.gbwUncertaintyHz)} (1σ)` : ''}`);
   }
   if (figures.maxDeviationDb !== undefined) lines.push(`largest deviation   ${figures.maxDeviationDb.toFixed(3)} dB from theory (pass band)`);
-  if (figures.logFit) {
-    const f = figures.logFit;
-    lines.push(`log fit n           ${f.n.toPrecision(4)}  [${f.nCi.map((v) => v.toPrecision(4)).join(', ')}] (95 %)`);
-    lines.push(`log fit IS          ${formatEngineering(f.isA, 'A')}  [${f.isCi.map((v) => formatEngineering(v, 'A')).join(', ')}]`);
-    lines.push(`log fit RS          ${formatEngineering(f.rsOhm, 'Ω')}  [${f.rsCi.map((v) => formatEngineering(v, 'Ω')).join(', ')}]`);
-  }
   return lines;
 }
 
-export function runDetailText(detail: RunDetail): string {
+function logFitLines(f: NonNullable<RunFigures['logFit']>): string[] {
+  return [
+    `log fit n           ${f.n.toPrecision(4)}  [${f.nCi.map((v) => v.toPrecision(4)).join(', ')}] (95 %)`,
+    `log fit IS          ${formatEngineering(f.isA, 'A')}  [${f.isCi.map((v) => formatEngineering(v, 'A')).join(', ')}]`,
+    `log fit RS          ${formatEngineering(f.rsOhm, 'Ω')}  [${f.rsCi.map((v) => formatEngineering(v, 'Ω')).join(', ')}]`,
+  ];
+}
+
+/** The design's diode model, printed beside a log-stage fit so the two can be compared. */
+export interface DiodeTheory {
+  n: number;
+  isA: number;
+  rsOhm: number;
+}
+
+export function runDetailText(detail: RunDetail, diode?: DiodeTheory): string {
   const lines = [
     `run ${detail.id}  ${detail.kind.toUpperCase()}  ${detail.status}${detail.simulated ? '  (SIMULATED: virtual bench)' : ''}`,
     `build "${detail.buildLabel}" of design "${detail.designName}"`,
@@ -30,6 +40,10 @@ export function runDetailText(detail: RunDetail): string {
     '',
     ...figureLines(detail.figures, detail.kind === 'ac' ? { gainLimitHz: detail.theoryGainLimitHz, minus3dbHz: detail.theoryMinus3dbHz } : undefined),
   ];
+  if (detail.figures.logFit && diode) {
+    lines.push(`theory (build)      n ${diode.n}, IS ${formatEngineering(diode.isA, 'A')}, RS ${formatEngineering(diode.rsOhm, 'Ω')}` +
+      '   (the fit takes I = Vin/R: source resistance and op-amp input error shift IS and n slightly)');
+  }
   if (detail.verdict) lines.push('', `verdict: ${detail.verdict.pass ? 'PASS' : 'FAIL'}`, ...detail.verdict.reasons.map((r) => `  ${r}`));
   return lines.join('\n') + '\n';
 }
