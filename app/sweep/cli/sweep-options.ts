@@ -24,6 +24,7 @@ export const BENCH_OPTIONS: OptionSpec[] = [
   { name: 'generator-profile', kind: 'string', placeholder: 'ID', description: 'generator profile', defaultValue: 'scpi-generator' },
   { name: 'scope-profile', kind: 'string', placeholder: 'ID', description: 'scope profile', defaultValue: 'scpi-scope' },
   { name: 'meter-profile', kind: 'string', placeholder: 'ID', description: 'meter profile', defaultValue: 'scpi-meter' },
+  { name: 'give-up', kind: 'number', placeholder: 'S', description: 'mark the run failed (points kept) when the instruments stay unreachable this long', defaultValue: 120 },
   { name: 'max-amplitude', kind: 'number', placeholder: 'VPP', description: 'largest generator output ever used, peak-to-peak (required once; later runs reuse the last one recorded)' },
   DATABASE_OPTION,
 ];
@@ -61,6 +62,7 @@ export function openService(parsed: ParsedArgs, overrides: { timeScale?: number;
   return new RolloffService({
     databasePath: resolveDatabasePath(optionString(parsed, 'db')),
     maxStimulusVpp: optionNumber(parsed, 'max-amplitude'),
+    giveUpAfterS: optionNumber(parsed, 'give-up') ?? 120,
     virtualBench: { timeScale, noiseVrms: optionNumber(parsed, 'noise') ?? 1e-4, latencyS: overrides.latencyS ?? 0 },
   });
 }
