@@ -65,10 +65,13 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
     async acquire(instruments: SweepInstruments, setting: StepSetting) {
       const scope = instruments.scope!;
       await stimulus.ensure(instruments, setting, 'sine');
-      // Scope settings go out while the circuit settles; they add no time when the settle wait is longer.
-      if (setting.integrateS !== lastTimebaseS) {
-        await scope.setTimebase(setting.integrateS);
-        lastTimebaseS = setting.integrateS;
+      // One record holds all `averages` acquisitions back to back (each whole cycles); it is split into
+      // segments in software, so averaging costs no extra read-backs. Scope settings go out while the
+      // circuit settles; they add no time when the settle wait is longer.
+      const recordS = setting.integrateS * setting.averages;
+      if (recordS !== lastTimebaseS) {
+        await scope.setTimebase(recordS);
+        lastTimebaseS = recordS;
       }
       const wanted = {
         1: niceScale((boost[1] * setting.amplitudeVpp) / SCREEN_DIVISIONS_USED),
@@ -76,37 +79,41 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
       };
       if (wanted[1] !== lastScales[1] || wanted[2] !== lastScales[2]) await setScale(scope, wanted);
       await stimulus.settled(setting.settleS);
-
-      // Records before the last are read back at once (the next acquisition overwrites them).
-      const records: Array<{ input: Waveform; output: Waveform }> = [];
-      for (let k = 0; k < setting.averages - 1; k++) {
-        await scope.acquire();
-        const record = await fetchBoth(scope);
-        if ((record.input.clipped || record.output.clipped) && widenFor(record)) throw new RemeasureStep('clipped record; scale widened');
-        records.push(record);
-      }
-      // One record of both channels at once spans the integration time (whole cycles). Once it is captured
-      // the stimulus is free: the runner moves the generator on while this record is read back.
+      // Both channels at once on one time base. Once captured the stimulus is free: the runner moves the
+      // generator on while this record is read back.
       await scope.acquire();
       return async () => {
         const record = await fetchBoth(scope);
         if ((record.input.clipped || record.output.clipped) && widenFor(record)) throw new RemeasureStep('clipped record; scale widened');
-        records.push(record);
-        return reduceRecords(records, setting);
+        return reduceRecords(splitRecord(record, setting.averages), setting);
       };
     },
   };
 }
 
+/**
+ * A record cut into `count` equal consecutive segments, each one acquisition for
+ * the robust average. Each keeps its start time so phases stay on one time axis.
+ */
+export function splitRecord(record: { input: Waveform; output: Waveform }, count: number): Array<{ input: Waveform; output: Waveform; startTimeS: number }> {
+  const length = Math.floor(record.input.samplesV.length / count);
+  return Array.from({ length: count }, (_, k) => ({
+    input: { ...record.input, samplesV: record.input.samplesV.subarray(k * length, (k + 1) * length) },
+    output: { ...record.output, samplesV: record.output.samplesV.subarray(k * length, (k + 1) * length) },
+    startTimeS: k * length * record.input.sampleIntervalS,
+  }));
+}
+
 /** Sine fits of every record, combined into one point with its flags and advice. */
-function reduceRecords(records: Array<{ input: Waveform; output: Waveform }>, setting: StepSetting): StepResult {
+function reduceRecords(records: Array<{ input: Waveform; output: Waveform; startTimeS: number }>, setting: StepSetting): StepResult {
   const responses: StageResponse[] = [];
   let worstDistortion = 0;
   let clipped = false;
   for (const record of records) {
     clipped ||= record.input.clipped || record.output.clipped;
-    const inputFit = sineFit3({ samplesV: record.input.samplesV, sampleIntervalS: record.input.sampleIntervalS, frequencyHz: setting.stimulus });
-    const outputFit = sineFit3({ samplesV: record.output.samplesV, sampleIntervalS: record.output.sampleIntervalS, frequencyHz: setting.stimulus });
+    const { startTimeS } = record;
+    const inputFit = sineFit3({ samplesV: record.input.samplesV, sampleIntervalS: record.input.sampleIntervalS, frequencyHz: setting.stimulus, startTimeS });
+    const outputFit = sineFit3({ samplesV: record.output.samplesV, sampleIntervalS: record.output.sampleIntervalS, frequencyHz: setting.stimulus, startTimeS });
     worstDistortion = Math.max(worstDistortion, distortionScore(outputFit));
     responses.push(responseFromFits(inputFit, outputFit));
   }

@@ -13,7 +13,8 @@ import { withRecovery } from '../../../app/sweep/runner/recovery';
 import { SweepGaveUpError, RemeasureStep } from '../../../app/sweep/runner/errors';
 import { reduceRmsReadings, interpolateLogF } from '../../../app/sweep/runner/measure-meter';
 import { combineAcquisitions } from '../../../app/sweep/runner/combine';
-import { niceScale, scopeMeasurer } from '../../../app/sweep/runner/measure-scope';
+import { niceScale, scopeMeasurer, splitRecord } from '../../../app/sweep/runner/measure-scope';
+import { sineFit3 } from '../../../app/signal';
 import { apertureChanged } from '../../../app/sweep/runner/applied-stimulus';
 import { PointFlag } from '../../../app/service/contract';
 import type { StageResponse } from '../../../app/signal';
@@ -93,6 +94,22 @@ describe('reducing readings', () => {
     const response = (gainDb: number) => ({ gainDb, gainStdDb: 0.001, phaseDeg: 0, phaseStdDeg: 0.1 }) as StageResponse;
     const combined = combineAcquisitions([response(10), response(10.001), response(9.999), response(10.0005), response(13)]);
     expect(combined.gainDb).toBeCloseTo(10, 2);
+  });
+});
+
+describe('averaging segments of one record', () => {
+  it('splits a record into equal consecutive segments that fit to the same amplitude and phase (IEEE 1057 fit, app/signal)', () => {
+    const f = 1000, dt = 1e-5, n = 3000; // 30 cycles
+    const wave = (a: number, phi: number) => Float64Array.from({ length: n }, (_, i) => a * Math.cos(2 * Math.PI * f * i * dt + phi));
+    const record = { input: { channel: 1 as const, sampleIntervalS: dt, samplesV: wave(1, 0.3), clipped: false }, output: { channel: 2 as const, sampleIntervalS: dt, samplesV: wave(2, -1.2), clipped: false } };
+    const segments = splitRecord(record, 3);
+    expect(segments.map((s) => s.input.samplesV.length)).toEqual([1000, 1000, 1000]);
+    expect(segments.map((s) => s.startTimeS)).toEqual([0, 1000 * dt, 2000 * dt]);
+    for (const segment of segments) {
+      const fit = sineFit3({ samplesV: segment.output.samplesV, sampleIntervalS: dt, frequencyHz: f, startTimeS: segment.startTimeS });
+      expect(fit.amplitudeV).toBeCloseTo(2, 9);
+      expect(fit.phaseRad).toBeCloseTo(-1.2, 9);
+    }
   });
 });
 
