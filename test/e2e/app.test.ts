@@ -82,8 +82,10 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
     await page.getByTestId('template').selectOption('inverting-gain');
     await page.locator('input[data-param="rf"]').fill('100k');
     await page.getByTestId('make-template').click();
+    await expect.poll(() => page.getByTestId('design-name').inputValue()).toBe('Inverting gain stage');
     const gainLimit = page.locator('[data-figure="gain-limit"]');
-    await expect.poll(() => gainLimit.textContent()).toMatch(/kHz/);
+    // GBW / noise gain = 1 MHz / (1 + 100k/1k) ≈ 9.9 kHz (DESIGN.md theory notes).
+    await expect.poll(() => gainLimit.textContent()).toBe('9.9 kHz');
     const before = await gainLimit.textContent();
     // Editing a value re-computes theory in the window: RF 100k → 47k moves the gain-limit point up.
     await page.locator('input[data-part-input="RF value (Ω)"]').fill('47k');
@@ -140,6 +142,11 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
     await page.getByTestId('sweep-ppd').fill('4');
     await page.getByTestId('sweep-start').click();
     await expect.poll(() => page.getByTestId('run-header').textContent(), { timeout: 10_000 }).toMatch(/^Run #2:/);
+    // Pause and resume this one (the first run was stopped and resumed).
+    await expect.poll(async () => Number(await page.locator('[data-testid="sweep-plot"] .bode').getAttribute('data-measured-points')), { timeout: 30_000 }).toBeGreaterThan(0);
+    await page.getByTestId('sweep-pause').click();
+    await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 20_000 }).toBe('paused');
+    await page.getByTestId('sweep-resume').click();
     await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 60_000 }).toBe('done');
     await view('4');
     await expect.poll(() => page.locator('[data-pick-run]').count()).toBe(2);
