@@ -9,6 +9,8 @@ import { createBridgeClient, type PreloadBridge } from './client/bridge-client';
 import { createHttpClient } from './client/http-client';
 import { mountShell } from './shell';
 import { AppState } from './state';
+import { UserError } from '../app/errors';
+import { showError, showInfo } from './notices';
 import { BenchView } from './views/bench-view';
 import { DesignView } from './views/design-view';
 import { SweepView } from './views/sweep-view';
@@ -17,14 +19,29 @@ import { CompareView } from './views/compare-view';
 import { RecordView } from './views/record-view';
 import { AboutView } from './views/about-view';
 
+const state = new AppState();
+
 function chooseClient(): RolloffClient {
   const bridge = (window as unknown as { rolloff?: PreloadBridge }).rolloff;
   if (bridge) return createBridgeClient(bridge);
-  return createHttpClient(new URL('./', location.href));
+  let everConnected = false;
+  let lost = false;
+  return createHttpClient(new URL('./', location.href), (connected) => {
+    if (!connected && everConnected && !lost) {
+      lost = true;
+      showError(new UserError('Lost the connection to the Rolloff host; trying again…', 'Running sweeps go on in the host. Check that "rolloff serve" is still running.'));
+    } else if (connected) {
+      if (lost) {
+        showInfo('Connected to the Rolloff host again.');
+        state.resyncView();
+      }
+      everConnected = true;
+      lost = false;
+    }
+  });
 }
 
 const client = chooseClient();
-const state = new AppState();
 const root = document.getElementById('app')!;
 mountShell(root, client, state, [
   new BenchView(client, state),

@@ -15,6 +15,8 @@ export interface View {
   readonly element: HTMLElement;
   /** Called each time the view is shown, to refresh lists from the service. */
   activate(): void | Promise<void>;
+  /** After the event connection came back: re-read what events may have been missed (default: activate). */
+  resync?(): void | Promise<void>;
 }
 
 export function mountShell(root: HTMLElement, client: RolloffClient, state: AppState, views: View[]): void {
@@ -60,6 +62,11 @@ export function mountShell(root: HTMLElement, client: RolloffClient, state: AppS
     document.title = `Rolloff — ${VIEWS.find((v) => v.id === id)?.title}`;
     Promise.resolve(view.activate()).catch((error) => showError(error, `Opening ${id}`));
   }
+  state.resyncView = () => {
+    const view = views.find((v) => v.id === current);
+    if (view) Promise.resolve(view.resync ? view.resync() : view.activate()).catch((error) => showError(error, 'Re-reading after the reconnection'));
+    state.refreshBench(() => client.benchStatus()).catch(() => undefined);
+  };
   state.showView = (id) => {
     show(id);
     main.focus({ preventScroll: true });

@@ -23,6 +23,8 @@ export class AppState {
   private readonly listeners = new Set<Listener>();
   /** Set by the shell: lets one view send the user to another. */
   showView: (view: ViewId) => void = () => {};
+  /** Set by the shell: re-reads the current view after the event connection came back. */
+  resyncView: () => void = () => {};
 
   get current(): SharedState {
     return this.state;

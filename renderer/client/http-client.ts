@@ -8,8 +8,10 @@ import type { RolloffClient, ServiceEventName, ServiceEvents } from '../../app/s
 import { errorFromWire, type WireError } from './remote-error';
 import { EventHub } from './event-hub';
 
-export function createHttpClient(base: URL): RolloffClient {
+/** `onConnection` hears when the event socket drops and comes back (events sent meanwhile are lost: views re-read). */
+export function createHttpClient(base: URL, onConnection?: (connected: boolean) => void): RolloffClient {
   const hub = new EventHub();
+  if (onConnection) hub.onConnection(onConnection);
   connectEvents(base, hub);
   const call = async (method: string, args: unknown[]): Promise<unknown> => {
     let response: Response;

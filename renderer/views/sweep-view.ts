@@ -124,6 +124,12 @@ export class SweepView implements View {
     await this.updateEstimate();
   }
 
+  /** After a reconnection: lists again, and the shown run from the store (points sent meanwhile were missed). */
+  async resync(): Promise<void> {
+    await this.activate();
+    if (this.run) await this.openRun(this.run.id);
+  }
+
   /** The request the form describes; throws ValidationError naming the field. */
   private request(): SweepRequest {
     const buildId = Number(this.buildSelect.value);
