@@ -102,7 +102,7 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
         outputV: result.outputV, flags, gainUncertaintyDb: result.gainUncertaintyDb, phaseUncertaintyDeg: result.phaseUncertaintyDeg,
       });
       physicalDoneS += setting.settleS + setting.averages * setting.integrateS;
-      options.emit('progress', progress(runId, setting.step + 1, total(), etaS(queue, clock.nowS() - startedS, physicalDoneS), 'running'));
+      options.emit('progress', progress(runId, setting.step + 1, total(), etaS(queue, clock.nowS() - startedS, physicalDoneS) / clock.timeScale, 'running'));
     }
     await outputOff(instruments, log);
     store.updateRunStatus(runId, 'done');
@@ -130,7 +130,7 @@ function progress(runId: number, step: number, total: number, etaS: number, stat
   return { runId, step, total, etaS, status };
 }
 
-/** Remaining physical time scaled by how the sweep has kept pace with its physical minimum so far. */
+/** Remaining physical time (bench seconds) scaled by how the sweep has kept pace with its physical minimum so far; the caller converts to wall seconds. */
 function etaS(queue: StepSetting[], elapsedS: number, physicalDoneS: number): number {
   const remainingS = queue.reduce((sum, s) => sum + s.settleS + s.averages * s.integrateS, 0);
   const pace = physicalDoneS > 0 ? Math.max(1, elapsedS / physicalDoneS) : 1;
