@@ -49,7 +49,8 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
   const recovery = { runId, clock, giveUpAfterS: options.giveUpAfterS, reconnect, log };
 
   let queue = options.plannedSteps.filter((s) => s.step >= firstStep);
-  const total = () => Math.max(options.plannedSteps.length, firstStep) + queue.length;
+  // Steps stored so far plus steps still queued (refinement may add more later).
+  const total = () => store.nextStep(runId) + queue.length;
   const startedS = clock.nowS();
   let physicalDoneS = 0;
 

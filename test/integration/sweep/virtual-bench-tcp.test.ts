@@ -18,11 +18,13 @@ describe('sweep on the virtual bench over TCP', () => {
   let detail: RunDetail;
   const pointsSeen: number[] = [];
   const trafficRoles = new Set<string>();
+  const progress: Array<{ step: number; total: number; etaS: number; status: string }> = [];
 
   beforeAll(async () => {
     service = new RolloffService({ databasePath: join(folder.path, 'bench.sqlite'), maxStimulusVpp: 1, virtualBench: { timeScale: 50, noiseVrms: 1e-4, link: 'tcp' } });
     service.on('point', (p) => pointsSeen.push(p.index));
     service.on('traffic', (t) => trafficRoles.add(t.role));
+    service.on('progress', (p) => progress.push(p));
     const design = await service.saveDesign(invertingGain100());
     const build = await service.createBuild({ designId: design.id, label: 'gain 100', notes: '', actualValues: {} });
     await service.startVirtualBenchForBuild(build.id);
@@ -41,6 +43,17 @@ describe('sweep on the virtual bench over TCP', () => {
     for (const address of Object.values(status.virtualBench!.addresses)) expect(address).toMatch(/^tcp:\/\/127\.0\.0\.1:\d+$/);
     expect(detail.simulated).toBe(true);
     expect(detail.bench.every((i) => i.simulated)).toBe(true);
+  });
+
+  it('reports progress: step rising to the total, ETA falling to 0, ending done', () => {
+    const steps = progress.map((p) => p.step);
+    expect(steps).toEqual([...steps].sort((a, b) => a - b));
+    for (const p of progress) expect(p.step).toBeLessThanOrEqual(p.total);
+    // While the planned points run, the total is the plan; refinement may add to it afterwards.
+    expect(progress[0].total).toBe(detail.plannedCount);
+    const last = progress[progress.length - 1];
+    expect(last).toMatchObject({ step: detail.pointCount, total: detail.pointCount, etaS: 0, status: 'done' });
+    expect(progress[0].etaS).toBeGreaterThan(0);
   });
 
   it('reports instrument traffic by role for the Bench view', () => {
