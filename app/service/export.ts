@@ -2,9 +2,8 @@
 import { buildComparisonRecord, buildRunRecord, renderRecord, type RecordDcFit } from '../record';
 import type { ExportedRecord, RecordFormat, RunDetail } from './contract';
 import type { RolloffService } from './service';
-import { logStageIdeal } from '../circuit/log-stage';
+import { logStageIdeal, type DiodePart, type PassivePart } from '../circuit';
 import { designOf } from './theory';
-import type { DiodePart, PassivePart } from '../circuit/types';
 import { logGrid } from '../units';
 
 /** What an export reads: the service, or a read-only store behind the same three members (`rolloff export`). */

@@ -6,7 +6,7 @@ import type { Store, StoredRun } from '../store';
 import type { PointColumns, RunDetail, RunFigures, Verdict } from './contract';
 import { PointFlag } from './contract';
 import { analyzeAcRun } from '../analysis';
-import type { Design, DiodePart, PassivePart } from '../circuit/types';
+import type { Design, DiodePart, PassivePart } from '../circuit';
 import { fitLogStage, logFitFigures, FitError } from '../signal';
 import { ValidationError } from '../errors';
 import { buildDesign, estimateGbw, theoryAtPoints, theoryColumns, theoryFigures } from './theory';

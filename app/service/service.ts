@@ -8,10 +8,7 @@ import { UserError, ValidationError } from '../errors';
 import { Store, identityKey, type StoredRun } from '../store';
 import { openInstrument, builtInProfiles, loadProfiles, realClock, type BenchClock, type OpenedInstrument } from '../bench';
 import { TrafficLog } from '../scpi/traffic-log';
-import type { Design } from '../circuit/types';
-import { parseDesign } from '../circuit/parse-design';
-import { solveAc } from '../circuit/solve-ac';
-import { TEMPLATES, makeDesignFromTemplate } from '../circuit/templates';
+import { type Design, parseDesign, solveAc, TEMPLATES, makeDesignFromTemplate } from '../circuit';
 import { planSweep, planStepsAt, refinementFrequencies, toPlanSummary, type PlanInput, type PlanInstruments } from '../sweep/plan';
 import { RunControl } from '../sweep/runner/control';
 import { runSweep } from '../sweep/runner/run-sweep';
@@ -20,11 +17,10 @@ import { meterMeasurer } from '../sweep/runner/measure-meter';
 import { dcMeasurer } from '../sweep/runner/measure-dc';
 import { RunStateError } from '../sweep/runner/errors';
 import type { StepMeasurer, StepSetting, SweepInstruments } from '../sweep/runner/types';
-import { PointFlag } from './contract';
 import { driftSummary, type DriftRow } from '../analysis';
-import type { RunFigures } from './contract';
+import { PointFlag } from './contract';
 import type {
-  BenchStatus, BuildRecord, Comparison, ConnectRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
+  RunFigures, BenchStatus, BuildRecord, Comparison, ConnectRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
   PointColumns, PortInfo, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunStatus, RunSummary, ServiceEventName,
   ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
 } from './contract';

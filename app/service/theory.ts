@@ -3,13 +3,7 @@
  * it comes from the theory engine (app/circuit) applied to the build's actual
  * part values.
  */
-import type { Design, OpAmpPart } from '../circuit/types';
-import { parseDesign } from '../circuit/parse-design';
-import { withActualValues } from '../circuit/actual-values';
-import { solveAc, type AcResponse } from '../circuit/solve-ac';
-import { stimulusLimitVpk } from '../circuit/output-limits';
-import { slowestTimeConstantS } from '../circuit/time-constant';
-import { monteCarloAc } from '../circuit/monte-carlo';
+import { type Design, type OpAmpPart, parseDesign, withActualValues, solveAc, type AcResponse, stimulusLimitVpk, slowestTimeConstantS, monteCarloAc } from '../circuit';
 import { openLoopGainAt } from '../circuit/opamp-gain';
 import { outputOpAmpIndex } from '../circuit/output-opamp';
 import type { BuildRecord, DesignRecord, TheoryColumns } from './contract';

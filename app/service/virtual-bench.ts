@@ -4,7 +4,7 @@
  * sweep runner so settling and integration run `timeScale` times faster than
  * real time on both sides alike. Always simulated, and labelled so.
  */
-import type { Design } from '../circuit/types';
+import type { Design } from '../circuit';
 import { scaledClock, type BenchClock } from '../bench/clock';
 import type { InstrumentRole } from './contract';
 import { startVirtualBench, type SimFault } from '../sim';

@@ -3,7 +3,7 @@ import { optionFlag, optionString } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../service/safety';
 import { RolloffService } from '../../service/service';
 import { resolveDatabasePath } from '../../store';
-import { makeDesignFromTemplate } from '../../circuit/templates';
+import { makeDesignFromTemplate } from '../../circuit';
 import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';
 import { followRun } from '../../sweep/cli/follow-run';
 import { figureLines } from '../../sweep/cli/summary-text';
