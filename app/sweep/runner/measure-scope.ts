@@ -32,6 +32,7 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
   let channelsOn = false;
   /** Per channel, how far the scale is widened beyond theory's expectation; kept for the rest of the sweep. */
   const boost = { 1: 1, 2: 1 };
+  let crossChecked = false;
 
   const setScale = async (scope: ScopeControl, wanted: { 1: number; 2: number }) => {
     if (!channelsOn) {
@@ -85,10 +86,38 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
       return async () => {
         const record = await fetchBoth(scope);
         if ((record.input.clipped || record.output.clipped) && widenFor(record)) throw new RemeasureStep('clipped record; scale widened');
-        return reduceRecords(splitRecord(record, setting.averages), setting);
+        const result = reduceRecords(splitRecord(record, setting.averages), setting);
+        if (!crossChecked && scope.measureAmplitudeVpp) {
+          // Once per sweep, the scope's own amplitude measurement of the same capture against the sine fit:
+          // catches a wrong probe attenuation or a channel mix-up before a whole sweep is trusted.
+          crossChecked = true;
+          return { ...result, ...(await crossCheck(scope, record, setting)) };
+        }
+        return result;
       };
     },
   };
+}
+
+/** Relative disagreement above which the cross-check warns: well above noise in a peak-to-peak reading (common practice, no source). */
+const CROSS_CHECK_LIMIT = 0.1;
+
+async function crossCheck(scope: ScopeControl, record: { input: Waveform; output: Waveform }, setting: StepSetting): Promise<{ note?: string; advice?: string }> {
+  const fitted = (w: Waveform) => 2 * sineFit3({ samplesV: w.samplesV, sampleIntervalS: w.sampleIntervalS, frequencyHz: setting.stimulus }).amplitudeV;
+  const rows: string[] = [];
+  let worst = 0;
+  for (const [channel, wave] of [[1, record.input], [2, record.output]] as const) {
+    const reading = await scope.measureAmplitudeVpp!(channel);
+    if (reading.flag !== 'ok') return { advice: `the scope's own Vpp measurement of channel ${channel} read ${reading.flag}; check its vertical setup` };
+    const fit = fitted(wave);
+    const relative = reading.value / fit - 1;
+    worst = Math.max(worst, Math.abs(relative));
+    rows.push(`ch${channel} ${formatEngineering(reading.value, 'Vpp')} vs fit ${formatEngineering(fit, 'Vpp')}`);
+  }
+  const text = `cross-check at ${formatEngineering(setting.stimulus, 'Hz')}, scope's own measurement against the sine fit: ${rows.join(', ')}`;
+  return worst > CROSS_CHECK_LIMIT
+    ? { advice: `${text} — they differ by ${(worst * 100).toFixed(0)} %: check probe attenuation settings and which channel is input (ch1) and output (ch2).` }
+    : { note: `${text} (agree within ${(CROSS_CHECK_LIMIT * 100).toFixed(0)} %)` };
 }
 
 /**

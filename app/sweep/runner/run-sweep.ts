@@ -98,6 +98,7 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
       });
       queue.shift();
       if (result.advice) log('warning', result.advice);
+      if (result.note) log('info', result.note);
       options.emit('point', {
         runId, index: setting.step, stimulus: setting.stimulus, gainDb: result.gainDb, phaseDeg: result.phaseDeg,
         outputV: result.outputV, flags, gainUncertaintyDb: result.gainUncertaintyDb, phaseUncertaintyDeg: result.phaseUncertaintyDeg,

@@ -25,8 +25,10 @@ export interface StepResult {
   outputReading: number;
   /** PointFlag bits found while measuring (distorted, overrange, notANumber). */
   flags: number;
-  /** Advice for the run's event log, e.g. to lower the amplitude. */
+  /** Advice for the run's event log (a warning), e.g. to lower the amplitude. */
   advice?: string;
+  /** A remark for the run's event log (information), e.g. a cross-check that passed. */
+  note?: string;
 }
 
 /** The instrument controls a sweep uses; replaced wholesale after a reconnect. */

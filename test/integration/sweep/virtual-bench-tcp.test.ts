@@ -100,6 +100,12 @@ describe('sweep on the virtual bench over TCP', () => {
     expect(nearest).toBeLessThan(0.01); // within 2.3 %
   });
 
+  it('cross-checks the fit against the scope\'s own amplitude measurement once, and they agree', () => {
+    const checks = detail.events.filter((e) => e.message.startsWith('cross-check'));
+    expect(checks).toHaveLength(1);
+    expect(checks[0].level).toBe('info');
+  });
+
   it('flags points past the theory gain-limit point', () => {
     detail.points.stimulus.forEach((f, i) => {
       expect((detail.points.flags[i] & PointFlag.pastGainLimit) !== 0).toBe(f > detail.theoryGainLimitHz!);

@@ -113,6 +113,40 @@ describe('averaging segments of one record', () => {
   });
 });
 
+describe('cross-check with the scope\'s own measurement', () => {
+  const makeScope = (reportedVpp: (channel: 1 | 2) => number): ScopeControl => {
+    const wave = (channel: 1 | 2): Waveform => ({
+      channel, sampleIntervalS: 1 / 40_000, clipped: false,
+      samplesV: Float64Array.from({ length: 400 }, (_, i) => (channel === 1 ? 0.5 : 1) * Math.cos((2 * Math.PI * i) / 40)),
+    });
+    return {
+      divisions: 10, setVerticalScale: async () => {}, setupChannels: async () => {}, setTimebase: async () => {}, acquire: async () => {},
+      fetchWaveform: async (channel) => wave(channel),
+      measureAmplitudeVpp: async (channel) => ({ value: reportedVpp(channel), flag: 'ok' }),
+    };
+  };
+  const run = async (scope: ScopeControl) => {
+    const instruments = { generator: { configureSine: async () => {}, setOutput: async () => {} }, scope } as unknown as SweepInstruments;
+    const measurer = scopeMeasurer({ clock: manualClock(), expectedGainRatioAt: () => 2 });
+    await measurer.prepare(instruments);
+    const first = await (await measurer.acquire(instruments, setting({ step: 0 })))();
+    const second = await (await measurer.acquire(instruments, setting({ step: 1 })))();
+    return { first, second };
+  };
+
+  it('notes agreement once per sweep when the scope reads what the fit found (1 Vpp and 2 Vpp)', async () => {
+    const { first, second } = await run(makeScope((channel) => (channel === 1 ? 1.0 : 2.0)));
+    expect(first.note).toMatch(/agree within 10 %/);
+    expect(first.advice).toBeUndefined();
+    expect(second.note).toBeUndefined();
+  });
+
+  it('warns when the scope reads 10× the fit (a probe attenuation left at ×10)', async () => {
+    const { first } = await run(makeScope((channel) => (channel === 1 ? 10 : 2.0)));
+    expect(first.advice).toMatch(/probe attenuation/);
+  });
+});
+
 describe('scope scales', () => {
   it('rounds up to the 1-2-5 sequence', () => {
     expect([0.013, 0.2, 0.21, 0.6, 7].map(niceScale)).toEqual([0.02, 0.2, 0.5, 1, 10]);
