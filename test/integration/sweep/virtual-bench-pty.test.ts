@@ -38,6 +38,14 @@ describe.skipIf(!hasSocat)('sweep on the virtual bench over a pseudo-terminal (s
     for (const instrument of detail.bench) expect(instrument.address).toMatch(/^serial:\/\//);
   });
 
+  it('measured gain agrees with theory within 3× its stated uncertainty plus the 0.1 % settling residual', () => {
+    const theoryAt = new Map(detail.theory.frequencyHz.map((f, i) => [f, detail.theory.gainDb[i]]));
+    const settleResidualDb = 20 * Math.log10(1.001); // plan settle rule leaves e^−6.9 ≈ 0.1 %
+    detail.points.stimulus.forEach((f, i) => {
+      expect(Math.abs(detail.points.gainDb[i] - theoryAt.get(f)!), `at ${f} Hz`).toBeLessThanOrEqual(3 * detail.points.gainUncertaintyDb[i] + settleResidualDb);
+    });
+  });
+
   it('finds the gain-limit point within 10 % of theory', () => {
     expect(Math.abs(detail.figures.gainLimitHz! / detail.theoryGainLimitHz! - 1)).toBeLessThan(0.1);
   });
