@@ -10,6 +10,7 @@ import type { Design, DiodePart, PassivePart } from '../circuit';
 import { fitLogStage, logFitFigures, FitError } from '../signal';
 import { ValidationError } from '../errors';
 import { buildDesign, estimateGbw, theoryAtPoints, theoryColumns, theoryFigures } from './theory';
+import { throughDesign } from './through';
 
 export interface RunAnalysis {
   figures: RunFigures;
@@ -20,9 +21,11 @@ export interface RunAnalysis {
   theoryMinus3dbHz: number[];
 }
 
+/** The circuit a run measured: the build, or for a through-calibration the through connection of it. */
 export function designForRun(store: Store, run: StoredRun): Design {
   const build = store.getBuild(run.buildId);
-  return buildDesign(store.getDesign(build.designId), build);
+  const design = buildDesign(store.getDesign(build.designId), build);
+  return run.request.through ? throughDesign(design) : design;
 }
 
 /** Figures, flags and verdict of a run from its stored points. */

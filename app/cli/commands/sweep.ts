@@ -42,6 +42,9 @@ Every point is stored the moment it is measured. Ctrl-C pauses after the current
           `${service.clock.timeScale !== 1 ? ` (virtual bench ×${service.clock.timeScale})` : ''}; maximum stimulus ${service.maxStimulus} Vpp\n`,
       );
       for (const warning of plan.warnings) process.stderr.write(`plan warning: ${warning}\n`);
+      if (request.through && !optionFlag(parsed, 'virtual')) {
+        process.stderr.write('through-calibration: the meter must read the generator output directly (stage bypassed); the result becomes this bench\'s calibration.\n');
+      }
       const run = await service.startRun(request);
       process.stderr.write(`run ${run.id} started${run.simulated ? ' on the virtual bench (simulated)' : ''}; database ${service.store.path}\n`);
       const status = await followRun(service, run.id).catch((error) => {
