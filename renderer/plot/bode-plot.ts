@@ -46,6 +46,7 @@ export class BodePlot {
   private measured: MeasuredColumns | undefined;
   private markers: MarkerSet = {};
   private frameRequested = false;
+  private dcTheory: { inputV: ArrayLike<number>; outputV: ArrayLike<number> } | undefined;
 
   constructor(readonly kind: RunKind = 'ac') {
     const gainHost = h('div', { className: 'chart', 'data-chart': 'gain' });
@@ -89,11 +90,18 @@ export class BodePlot {
         xUnit: 'V',
         xLabel: 'Input level',
         series: [
+          { label: 'Theory', color: PLOT_COLORS.theory, kind: 'line' },
           { label: 'Measured', color: PLOT_COLORS.measured, kind: 'points-line' },
           { label: 'Distorted', color: PLOT_COLORS.distorted, kind: 'points', pointSize: 12 },
         ],
       });
     }
+  }
+
+  /** DC transfer theory (input volts → output volts), computed by the caller from the build's circuit. */
+  setDcTheory(inputV: ArrayLike<number>, outputV: ArrayLike<number>): void {
+    this.dcTheory = { inputV, outputV };
+    this.scheduleDraw();
   }
 
   setTheory(theory: TheoryColumns | undefined, markers: MarkerSet): void {
@@ -141,7 +149,14 @@ export class BodePlot {
         markers,
       );
     } else {
-      this.gainChart.setData(alignSeries([{ xs: measured.stimulus, ys: measured.outputV }, { xs: measured.stimulus, ys: distortedGain }]), markers);
+      this.gainChart.setData(
+        alignSeries([
+          { xs: this.dcTheory?.inputV ?? [], ys: this.dcTheory?.outputV ?? [] },
+          { xs: measured.stimulus, ys: measured.outputV },
+          { xs: measured.stimulus, ys: distortedGain },
+        ]),
+        markers,
+      );
     }
     this.element.dataset.measuredPoints = String(measured.stimulus.length);
     this.element.dataset.distortedPoints = String(distortedGain.filter((v) => v !== null).length);

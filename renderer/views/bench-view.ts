@@ -5,6 +5,7 @@
  */
 import type { BenchStatus, InstrumentRole, ProfileSummary, RolloffClient, TrafficLine } from '../../app/service/contract';
 import { parseEngineering } from '../../app/units';
+import { UserError } from '../../app/errors';
 import { field, h, replaceChildren, select } from '../dom';
 import { guarded, showInfo } from '../notices';
 import type { View } from '../shell';
@@ -69,6 +70,7 @@ export class BenchView implements View {
       event.preventDefault();
       void guarded(virtualButton, 'Starting the virtual bench', async () => {
         const designId = Number(this.virtualDesignSelect.value);
+        if (!(designId >= 1)) throw new UserError('No design picked for the virtual bench.', 'Save a design on the Design view (Alt+2), then pick it here.');
         const bench = await client.startVirtualBench(designId);
         state.update({ bench });
         showInfo('Virtual bench started — simulated instruments.');

@@ -3,10 +3,11 @@
  * stop, the live Bode plot (measured over theory, band, gain-limit and −3 dB
  * points, distorted points marked), progress with ETA, and the run's events.
  */
-import type { BuildRecord, RolloffClient, RunDetail, RunProgress, RunStatus, RunSummary, SweepRequest } from '../../app/service/contract';
-import { parseEngineering } from '../../app/units';
+import type { BuildRecord, RolloffClient, RunDetail, RunFigures, RunProgress, RunStatus, RunSummary, SweepRequest, Verdict } from '../../app/service/contract';
+import { formatEngineering, logGrid, parseEngineering } from '../../app/units';
+import { parseDesign, solveDcTransfer, withActualValues } from '../../app/circuit';
 import { debounce, field, h, replaceChildren, select } from '../dom';
-import { formatDuration } from '../model/format';
+import { formatDb, formatDuration, formatHz } from '../model/format';
 import { LivePoints } from '../model/live-points';
 import { guarded, showError } from '../notices';
 import { BodePlot } from '../plot/bode-plot';
@@ -44,12 +45,14 @@ export class SweepView implements View {
   private readonly progress = h('progress', { max: '1', value: '0', 'aria-label': 'Sweep progress' });
   private readonly progressText = h('span', { className: 'progress-text', 'data-testid': 'sweep-progress' }, 'No run yet.');
   private readonly runHeader = h('p', { className: 'run-header', 'data-testid': 'run-header' });
+  private readonly figures = h('dl', { className: 'figures', 'data-testid': 'run-figures' });
   private readonly events = h('ol', { className: 'events', 'aria-label': 'Run events', 'data-testid': 'run-events' });
   private readonly plotHost = h('div', { className: 'plot-host', 'data-testid': 'sweep-plot' });
   private plot: BodePlot | undefined;
   private live: LivePoints | undefined;
   private run: RunSummary | undefined;
   private builds: BuildRecord[] = [];
+  private readonly seenEvents = new Set<string>();
   private readonly replan = debounce(() => void this.updateEstimate(), 250);
 
   constructor(
@@ -93,6 +96,8 @@ export class SweepView implements View {
           h('div', { className: 'run-controls' }, this.buttons.start, this.buttons.pause, this.buttons.resume, this.buttons.stop, this.progress, this.progressText),
           this.runHeader,
           this.plotHost,
+          h('h3', {}, 'Figures'),
+          this.figures,
           h('h3', {}, 'Events'),
           this.events,
         ),
@@ -179,6 +184,7 @@ export class SweepView implements View {
     this.live = new LivePoints(runId);
     this.run = summary ?? this.run;
     this.events.textContent = '';
+    this.seenEvents.clear();
     try {
       const detail = await this.client.getRun(runId);
       this.showDetail(detail);
@@ -196,6 +202,8 @@ export class SweepView implements View {
     this.plot!.setTheory(detail.theory, { theoryGainLimitHz: detail.theoryGainLimitHz, theoryMinus3dbHz: detail.theoryMinus3dbHz });
     this.plot!.setMeasuredMarkers({ measuredGainLimitHz: detail.figures.gainLimitHz, measuredMinus3dbHz: detail.figures.minus3dbHz });
     this.plot!.setMeasured(this.live!);
+    this.renderFigures(detail.figures, detail.verdict);
+    if (detail.kind === 'dc') void this.showDcTheory(detail);
     for (const event of detail.events.slice(-EVENTS_KEPT)) this.appendEvent(event.at, event.level, event.message);
     this.applySummary(detail);
     this.applyProgress({ runId: detail.id, step: detail.pointCount, total: detail.plannedCount, etaS: NaN, status: detail.status });
@@ -235,9 +243,48 @@ export class SweepView implements View {
       const detail = await this.client.getRun(runId);
       if (detail.id !== this.run?.id) return;
       this.plot?.setMeasuredMarkers({ measuredGainLimitHz: detail.figures.gainLimitHz, measuredMinus3dbHz: detail.figures.minus3dbHz });
+      this.renderFigures(detail.figures, detail.verdict);
     } catch (error) {
       showError(error, `Reading run #${runId}`);
     }
+  }
+
+  /** The log stage's DC transfer from the build's own part values, computed here with the pure circuit module. */
+  private async showDcTheory(detail: RunDetail): Promise<void> {
+    try {
+      const [builds, designs] = await Promise.all([this.client.listBuilds(), this.client.listDesigns()]);
+      const build = builds.find((b) => b.id === detail.buildId);
+      const record = designs.find((d) => d.id === build?.designId);
+      if (!build || !record) return;
+      const design = withActualValues(parseDesign(record.design, record.name), build.actualValues);
+      const low = Math.min(detail.request.from, detail.request.to);
+      const high = Math.max(detail.request.from, detail.request.to);
+      // Theory drawn four times denser than the sweep so the curve is smooth between points.
+      const inputs = low > 0 ? logGrid(low, high, detail.request.pointsPerDecade * 4) : Float64Array.from({ length: 101 }, (_, i) => low + ((high - low) * i) / 100);
+      const transfer = solveDcTransfer(design, inputs);
+      if (this.run?.id === detail.id) this.plot?.setDcTheory(transfer.inputV, transfer.outputV);
+    } catch (error) {
+      showError(error, 'Computing the DC theory');
+    }
+  }
+
+  private renderFigures(figures: RunFigures, verdict: Verdict | null): void {
+    const rows: Array<[string, string]> = [];
+    if (figures.passbandGainDb !== undefined) rows.push(['Pass-band gain', formatDb(figures.passbandGainDb)]);
+    if (figures.minus3dbHz.length > 0) rows.push(['−3 dB points', figures.minus3dbHz.map((f) => formatHz(f)).join(', ')]);
+    if (figures.gainLimitHz !== undefined) rows.push(['Gain-limit point (measured)', formatHz(figures.gainLimitHz)]);
+    if (figures.gbwEstimateHz !== undefined) rows.push(['GBW estimate', `${formatHz(figures.gbwEstimateHz)}${figures.gbwUncertaintyHz !== undefined ? ` ± ${formatHz(figures.gbwUncertaintyHz)}` : ''}`]);
+    if (figures.rolloffDbPerDecade !== undefined) rows.push(['Roll-off', `${figures.rolloffDbPerDecade.toFixed(1)} dB/decade`]);
+    if (figures.maxDeviationDb !== undefined) rows.push(['Largest deviation from theory', formatDb(figures.maxDeviationDb)]);
+    const fit = figures.logFit;
+    if (fit) {
+      const interval = (value: number, ci: [number, number], unit: string) => `${formatEngineering(value, unit)} (95 %: ${formatEngineering(ci[0], unit)} … ${formatEngineering(ci[1], unit)})`;
+      rows.push(['Emission coefficient n', `${fit.n.toFixed(3)} (95 %: ${fit.nCi[0].toFixed(3)} … ${fit.nCi[1].toFixed(3)})`]);
+      rows.push(['Saturation current IS', interval(fit.isA, fit.isCi, 'A')]);
+      rows.push(['Series resistance RS', interval(fit.rsOhm, fit.rsCi, 'Ω')]);
+    }
+    if (verdict) rows.push(['Verdict', `${verdict.pass ? 'pass' : 'fail'}${verdict.reasons.length ? ' — ' + verdict.reasons.join('; ') : ''}`]);
+    replaceChildren(this.figures, rows.length === 0 ? h('p', { className: 'empty' }, 'Figures appear when the run has enough points.') : rows.flatMap(([term, value]) => [h('dt', {}, term), h('dd', {}, value)]));
   }
 
   private renderButtons(): void {
@@ -249,6 +296,10 @@ export class SweepView implements View {
   }
 
   private appendEvent(at: string, level: string, message: string): void {
+    // The same event can come twice: by event while getRun is in flight, and in getRun's list.
+    const key = `${at}|${message}`;
+    if (this.seenEvents.has(key)) return;
+    this.seenEvents.add(key);
     this.events.appendChild(h('li', { className: `event-${level}` }, h('time', {}, at.slice(11, 19)), ` ${message}`));
     while (this.events.childElementCount > EVENTS_KEPT) this.events.firstElementChild?.remove();
     this.events.scrollTop = this.events.scrollHeight;

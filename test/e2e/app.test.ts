@@ -186,6 +186,38 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
     await shot('08-record');
   });
 
+  it('runs a DC transfer sweep of the log stage and shows the fitted diode parameters', async () => {
+    await view('2');
+    await page.getByTestId('template').selectOption('log-stage');
+    await page.getByTestId('make-template').click();
+    await expect.poll(() => page.getByTestId('design-name').inputValue()).toBe('Diode-feedback log stage');
+    await page.getByTestId('build-label').fill('log board');
+    await page.getByTestId('create-build').click();
+    await expect.poll(() => page.locator('.notice-info').last().textContent()).toMatch(/Build "log board" created/);
+    await view('1');
+    await expect.poll(() => page.getByTestId('virtual-design').locator('option').count()).toBe(2);
+    await page.getByTestId('virtual-design').selectOption({ label: 'Diode-feedback log stage (#2)' });
+    await page.getByTestId('start-virtual').click();
+    await expect.poll(() => page.getByTestId('virtual-status').textContent(), { timeout: 20_000 }).toMatch(/Diode-feedback log stage/);
+    await view('3');
+    await page.getByTestId('sweep-build').selectOption({ label: 'Diode-feedback log stage — log board (#2)' });
+    await page.locator('select[name="kind"]').selectOption('dc');
+    await page.locator('select[name="measurement"]').selectOption('meter');
+    await page.getByTestId('sweep-from').fill('1m');
+    await page.getByTestId('sweep-to').fill('1');
+    await page.getByTestId('sweep-ppd').fill('4');
+    await expect.poll(() => page.getByTestId('sweep-estimate').textContent()).toMatch(/points, about/);
+    await page.getByTestId('sweep-start').click();
+    await expect.poll(() => page.getByTestId('run-header').textContent(), { timeout: 10_000 }).toMatch(/^Run #3:/);
+    await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 60_000 }).toBe('done');
+    const figures = page.getByTestId('run-figures');
+    await expect.poll(() => figures.textContent(), { timeout: 10_000 }).toMatch(/Emission coefficient n/);
+    // The simulated diode has n = 1 (the template's default); the fit should find it within a few per cent.
+    const n = Number(/Emission coefficient n\s*([\d.]+)/.exec((await figures.textContent()) ?? '')?.[1]);
+    expect(Math.abs(n - 1)).toBeLessThan(0.05);
+    await shot('10-dc-sweep');
+  });
+
   it('is usable from the keyboard and shows the cautions in About', async () => {
     await view('0');
     const about = page.locator('section[data-view="about"]');
