@@ -19,6 +19,7 @@ export class RecordView implements View {
     { name: 'format', 'data-testid': 'record-format' },
   );
   private readonly picked = h('p', { 'data-testid': 'record-picked' });
+  private readonly runsBody = h('tbody');
   private readonly result = h('p', { className: 'record-result', 'data-testid': 'record-result' });
 
   constructor(
@@ -33,18 +34,48 @@ export class RecordView implements View {
       'section',
       { 'aria-labelledby': 'record-title' },
       h('h2', { id: 'record-title' }, 'Record'),
-      h('div', { className: 'panel' }, this.picked, pickButton, field('Format', this.format), exportButton, this.result),
+      h('div', { className: 'columns' },
+        h('div', { className: 'panel stack-form' },
+          h('h3', {}, 'Export'),
+          field('Format', this.format),
+          h('p', { className: 'hint' }, 'One run gives a run record; several runs give a comparison record against theory. Every record carries the design, the build, the bench identities, the points with their uncertainties, the figures, the safety notice and a digest of the data.'),
+          exportButton,
+          this.result,
+        ),
+        h('div', { className: 'panel' },
+          h('h3', {}, 'Runs in the record'),
+          this.picked,
+          h('table', { className: 'data-table' }, h('thead', {}, h('tr', {}, ['Run', 'Design', 'Build', 'Kind', 'Status', 'Points'].map((t) => h('th', { scope: 'col' }, t)))), this.runsBody),
+          pickButton,
+        ),
+      ),
     );
   }
 
-  activate(): void {
-    const ids = this.state.current.pickedRunIds;
-    const sweepRun = this.state.current.sweepRunId;
-    replaceChildren(this.picked, ids.length > 0 ? `Runs: ${ids.map((id) => '#' + id).join(', ')}` : sweepRun !== undefined ? `Run #${sweepRun} (from the Sweep view)` : 'No run picked yet.');
+  async activate(): Promise<void> {
+    const ids = this.runIds();
+    const fromSweep = this.state.current.pickedRunIds.length === 0 && ids.length > 0;
+    replaceChildren(this.picked, ids.length === 0 ? 'No run picked yet.' : fromSweep ? 'The run on the Sweep view:' : `${ids.length} run${ids.length === 1 ? '' : 's'} picked in History:`);
+    const runs = ids.length === 0 ? [] : await this.client.listRuns();
+    replaceChildren(
+      this.runsBody,
+      ids.map((id) => {
+        const run = runs.find((r) => r.id === id);
+        return h('tr', {}, h('th', { scope: 'row' }, `#${id}`), h('td', {}, run?.designName ?? '—'), h('td', {}, run?.buildLabel ?? '—'), h('td', {}, run?.kind.toUpperCase() ?? '—'),
+          h('td', {}, run ? h('span', { className: `badge status-${run.status}` }, run.status) : '—', run?.simulated ? h('span', { className: 'badge simulated' }, 'simulated') : null),
+          h('td', {}, run ? `${run.pointCount}` : '—'));
+      }),
+    );
+  }
+
+  /** The picked runs, else the run shown on the Sweep view. */
+  private runIds(): number[] {
+    const { pickedRunIds, sweepRunId } = this.state.current;
+    return pickedRunIds.length > 0 ? pickedRunIds : sweepRunId !== undefined ? [sweepRunId] : [];
   }
 
   private async export(): Promise<void> {
-    const ids = this.state.current.pickedRunIds.length > 0 ? this.state.current.pickedRunIds : this.state.current.sweepRunId !== undefined ? [this.state.current.sweepRunId] : [];
+    const ids = this.runIds();
     if (ids.length === 0) throw new Error('Pick one or more runs in History first.');
     const record = await this.client.exportRecord(ids, this.format.value as RecordFormat);
     const bytes = record.encoding === 'base64' ? Uint8Array.from(atob(record.content), (c) => c.charCodeAt(0)) : new TextEncoder().encode(record.content);
