@@ -157,10 +157,16 @@ async function benchmarkLiveSweep(page: Page): Promise<number[]> {
     unsubscribe();
     const log = await page.evaluate(() => (window as unknown as { drawLog: Array<{ at: number; points: number }> }).drawLog);
     const latencies: number[] = [];
+    const slowest: Array<[number, number]> = [];
     emittedAt.forEach((at, i) => {
       const drawn = log.find((entry) => entry.points >= i + 1 && entry.at >= at);
-      if (drawn) latencies.push(drawn.at - at);
+      if (drawn) {
+        latencies.push(drawn.at - at);
+        slowest.push([drawn.at - at, i]);
+      }
     });
+    slowest.sort((a, b) => b[0] - a[0]);
+    process.stdout.write(`  slowest points (ms @ point index): ${slowest.slice(0, 4).map(([ms, i]) => `${ms.toFixed(0)} @ ${i}`).join(', ')}\n`);
     if (latencies.length < emittedAt.length * 0.9) throw new Error(`only ${latencies.length} of ${emittedAt.length} points were seen drawn`);
     return latencies;
   } finally {
