@@ -72,7 +72,14 @@ export async function startWebHost(options: WebHostOptions): Promise<WebHost> {
         sendJson(response, 405, { error: wireValidation('HTTP method', `${request.method} is not allowed on ${url.pathname}`, 'Call API methods with POST.') });
         return;
       }
-      await handleApiCall(request, response, decodeURIComponent(url.pathname.slice('/api/'.length)));
+      let methodName: string;
+      try {
+        methodName = decodeURIComponent(url.pathname.slice('/api/'.length));
+      } catch {
+        sendJson(response, 400, { error: wireValidation('path', `${url.pathname.slice(0, 80)} is not a valid method path`) });
+        return;
+      }
+      await handleApiCall(request, response, methodName);
       return;
     }
     if (request.method !== 'GET' && request.method !== 'HEAD') {

@@ -174,6 +174,8 @@ describe('web host on loopback: malformed calls', () => {
     expect(before).not.toBe('');
     const cases: Array<[Promise<Reply>, number, RegExp]> = [
       [call(base, 'dropEverything', []), 400, /"dropEverything" is not a Rolloff API method/],
+      [call(base, '%E0%A4%A', []), 400, /is not a valid method path/],
+      [call(base, '__proto__', []), 400, /"__proto__" is not a Rolloff API method/],
       [call(base, 'saveDesign', '{"name": '), 400, /saveDesign request body: is not valid JSON/],
       [call(base, 'getRun', { runId: 1 }), 400, /getRun arguments: must be a JSON array/],
       [call(base, 'getRun', ['1']), 400, /getRun\(runId\): must be a finite number/],
