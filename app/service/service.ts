@@ -367,7 +367,11 @@ export class RolloffService implements RolloffApi {
    * `count` times or until the wall-clock time `until`, whichever comes first.
    * Resolves with every run and the drift of the figures across them.
    */
-  async runSchedule(input: { request: SweepRequest; everyMinutes: number; count?: number; until?: string }, onRun?: (summary: RunSummary, index: number) => void): Promise<ScheduleReport> {
+  async runSchedule(
+    input: { request: SweepRequest; everyMinutes: number; count?: number; until?: string },
+    /** Called as each repetition starts, with the bench time (s) its slot began. */
+    onRun?: (summary: RunSummary, index: number, slotS: number) => void,
+  ): Promise<ScheduleReport> {
     const { request, everyMinutes } = input;
     if (!(Number.isFinite(everyMinutes) && everyMinutes > 0)) throw new ValidationError('every', `${everyMinutes} min is not a positive interval`);
     if (input.count === undefined && input.until === undefined) throw new ValidationError('count/until', 'give a number of runs or an end time', 'e.g. --count 12, or --until 07:30.');
@@ -382,7 +386,7 @@ export class RolloffService implements RolloffApi {
       const slotS = clock.nowS();
       const run = await this.startRunWith(request, { scheduleId: schedule.id });
       runIds.push(run.id);
-      onRun?.(run, index);
+      onRun?.(run, index, slotS);
       const status = await this.waitForRun(run.id).catch(() => 'failed' as const);
       if (status === 'paused' || status === 'stopped') break; // the user intervened: end the schedule too
       if (input.count !== undefined && runIds.length >= input.count) break;
