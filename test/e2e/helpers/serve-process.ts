@@ -14,12 +14,15 @@ export interface ServeProcess {
   url: string;
   dbPath: string;
   output: () => string;
+  /** SIGTERM (clean stop); removes the temp folder unless the database was given by the caller. */
   stop(): Promise<void>;
+  /** SIGKILL: the process dies mid-work, as in a crash or power cut. The database stays. */
+  kill(): Promise<void>;
 }
 
-export async function startServe(extraArgs: string[] = []): Promise<ServeProcess> {
-  const dir = mkdtempSync(join(tmpdir(), 'rolloff-serve-'));
-  const dbPath = join(dir, 'bench.sqlite');
+export async function startServe(extraArgs: string[] = [], options: { dbPath?: string } = {}): Promise<ServeProcess> {
+  const dir = options.dbPath ? undefined : mkdtempSync(join(tmpdir(), 'rolloff-serve-'));
+  const dbPath = options.dbPath ?? join(dir!, 'bench.sqlite');
   const child: ChildProcess = spawn(process.execPath, ['app/cli/bin.mjs', 'serve', '--port', '0', '--db', dbPath, ...extraArgs], {
     cwd: ROOT,
     stdio: ['ignore', 'pipe', 'pipe'],
@@ -28,6 +31,7 @@ export async function startServe(extraArgs: string[] = []): Promise<ServeProcess
   let output = '';
   child.stdout!.on('data', (chunk) => (output += chunk));
   child.stderr!.on('data', (chunk) => (output += chunk));
+  const exited = new Promise<void>((r) => child.once('exit', () => r()));
   const url = await new Promise<string>((resolvePromise, reject) => {
     const timer = setTimeout(() => reject(new Error(`rolloff serve printed no address within 30 s:\n${output}`)), 30_000);
     const check = () => {
@@ -43,18 +47,21 @@ export async function startServe(extraArgs: string[] = []): Promise<ServeProcess
       reject(new Error(`rolloff serve exited with ${code}:\n${output}`));
     });
   });
+  const end = async (signal: NodeJS.Signals) => {
+    if (child.exitCode === null && child.signalCode === null) {
+      child.kill(signal);
+      await Promise.race([exited, new Promise((r) => setTimeout(r, 5_000))]);
+      if (child.exitCode === null && child.signalCode === null) child.kill('SIGKILL');
+    }
+  };
   return {
     url,
     dbPath,
     output: () => output,
     async stop() {
-      if (child.exitCode === null) {
-        const exited = new Promise((r) => child.once('exit', r));
-        child.kill('SIGTERM');
-        await Promise.race([exited, new Promise((r) => setTimeout(r, 5_000))]);
-        if (child.exitCode === null) child.kill('SIGKILL');
-      }
-      rmSync(dir, { recursive: true, force: true });
+      await end('SIGTERM');
+      if (dir) rmSync(dir, { recursive: true, force: true });
     },
+    kill: () => end('SIGKILL'),
   };
 }
