@@ -13,7 +13,7 @@ import { AppliedStimulus } from './applied-stimulus';
 import { RemeasureStep } from './errors';
 import type { StepMeasurer, StepResult, StepSetting, SweepInstruments } from './types';
 
-/** Signal height on screen: 6 of 8 vertical divisions, room for tolerance and overshoot (common practice, no source). */
+/** Signal height on screen: 6 divisions peak-to-peak, inside the 8 or 10 vertical divisions scopes have, with room for tolerance and overshoot (common practice, no source). */
 const SCREEN_DIVISIONS_USED = 6;
 /** Each widening is ×2.5 of the scale; three cover a build 15× off theory. */
 const MAX_SCALE_WIDENINGS = 3;
