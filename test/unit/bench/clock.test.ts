@@ -14,7 +14,8 @@ describe('BenchClock', () => {
     const wallMs = performance.now() - startWallMs;
     const benchS = clock.nowS() - startBenchS;
     expect(wallMs).toBeGreaterThanOrEqual(9);
-    expect(wallMs).toBeLessThan(200);
+    // Generous upper bound: a loaded CI machine delays timers; the ratio below is the real check.
+    expect(wallMs).toBeLessThan(2000);
     expect(benchS).toBeGreaterThanOrEqual(0.99);
     expect(benchS / (wallMs / 1000)).toBeCloseTo(100, 0);
   });
