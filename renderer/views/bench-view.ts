@@ -108,7 +108,9 @@ export class BenchView implements View {
     replaceChildren(this.portList, ports.map((port) => h('option', { value: port.path }, [port.manufacturer, port.serialNumber].filter(Boolean).join(' '))));
     this.profiles = profiles;
     this.renderProfiles();
-    const chosen = this.state.current.design?.id ?? designs.at(-1)?.id;
+    // Keep what the user picked here if it still exists; else the design open on the Design view; else the newest.
+    const previous = Number(this.virtualDesignSelect.value);
+    const chosen = designs.some((d) => d.id === previous) ? previous : this.state.current.design?.id ?? designs.at(-1)?.id;
     replaceChildren(this.virtualDesignSelect, designs.length === 0 ? h('option', { value: '' }, 'Save a design first (Design view)') : designs.map((d) => h('option', { value: String(d.id) }, `${d.name} (#${d.id})`)));
     if (chosen !== undefined) this.virtualDesignSelect.value = String(chosen);
     await this.refreshBench();

@@ -53,6 +53,7 @@ export class SweepView implements View {
   private run: RunSummary | undefined;
   private builds: BuildRecord[] = [];
   private readonly seenEvents = new Set<string>();
+  private estimateSequence = 0;
   private readonly replan = debounce(() => void this.updateEstimate(), 250);
 
   constructor(
@@ -123,7 +124,9 @@ export class SweepView implements View {
     const [designs, builds] = await Promise.all([this.client.listDesigns(), this.client.listBuilds()]);
     this.builds = builds;
     const names = new Map(designs.map((d) => [d.id, d.name]));
-    const chosen = this.state.current.build?.id ?? builds.at(-1)?.id;
+    // Keep what the user picked here if it still exists; else the build made on the Design view; else the newest.
+    const previous = Number(this.buildSelect.value);
+    const chosen = builds.some((b) => b.id === previous) ? previous : this.state.current.build?.id ?? builds.at(-1)?.id;
     replaceChildren(this.buildSelect, builds.length === 0 ? h('option', { value: '' }, 'Create a build first (Design view)') : builds.map((b) => h('option', { value: String(b.id) }, `${names.get(b.designId) ?? 'design #' + b.designId} — ${b.label} (#${b.id})`)));
     if (chosen !== undefined) this.buildSelect.value = String(chosen);
     await this.updateEstimate();
@@ -163,11 +166,15 @@ export class SweepView implements View {
       this.estimate.textContent = 'No build to sweep yet.';
       return;
     }
+    // Only the answer to the latest form state counts; an earlier, slower answer is dropped.
+    const sequence = ++this.estimateSequence;
     try {
       const plan = await this.client.planSweep(this.request());
+      if (sequence !== this.estimateSequence) return;
       replaceChildren(this.estimate, `${plan.steps.length} points, about ${formatDuration(plan.estimatedDurationS)}.`, plan.warnings.length ? h('ul', { className: 'warnings' }, plan.warnings.map((w) => h('li', {}, w))) : null);
       this.estimate.classList.remove('invalid');
     } catch (error) {
+      if (sequence !== this.estimateSequence) return;
       this.estimate.textContent = (error as Error).message;
       this.estimate.classList.add('invalid');
     }

@@ -107,6 +107,7 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
     await page.getByTestId('max-stimulus').fill('2');
     await page.getByRole('button', { name: 'Apply' }).click();
     await expect.poll(() => page.locator('.notice-info').last().textContent()).toMatch(/Maximum stimulus set to 2 Vpp/);
+    await expect.poll(() => page.getByTestId('virtual-design').inputValue()).toBe('1');
     await page.getByTestId('start-virtual').click();
     await expect.poll(() => page.getByTestId('bench-chip').textContent(), { timeout: 20_000 }).toMatch(/3 instruments — SIMULATED/);
     await expect.poll(() => page.getByTestId('instruments').locator('tbody tr').count()).toBe(3);
@@ -217,6 +218,30 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
     const n = Number(/Emission coefficient n\s*([\d.]+)/.exec((await figures.textContent()) ?? '')?.[1]);
     expect(Math.abs(n - 1)).toBeLessThan(0.05);
     await shot('10-dc-sweep');
+  });
+
+  it('marks distorted points when a fixed stimulus drives the output into the rails', async () => {
+    await view('1');
+    await page.getByTestId('virtual-design').selectOption({ label: 'Gain −100 stage (invented example) (#1)' });
+    await page.getByTestId('start-virtual').click();
+    await expect.poll(() => page.getByTestId('virtual-status').textContent(), { timeout: 20_000 }).toMatch(/Gain −100 stage/);
+    await view('3');
+    await page.getByTestId('sweep-build').selectOption({ label: 'Gain −100 stage (invented example) — board A (#1)' });
+    await page.locator('select[name="kind"]').selectOption('ac');
+    await page.locator('select[name="measurement"]').selectOption('scope');
+    await page.locator('select[name="amplitude-mode"]').selectOption('fixed');
+    // 2 Vpp in × 100 = 200 Vpp wanted; the ±12 V rails clip it (the design's op-amp model).
+    await page.getByTestId('sweep-amplitude').fill('2');
+    await page.getByTestId('sweep-from').fill('100');
+    await page.getByTestId('sweep-to').fill('1k');
+    await page.getByTestId('sweep-ppd').fill('3');
+    await expect.poll(() => page.getByTestId('sweep-estimate').textContent()).toMatch(/points, about/);
+    await page.getByTestId('sweep-start').click();
+    await expect.poll(() => page.getByTestId('run-header').textContent(), { timeout: 10_000 }).toMatch(/^Run #4:/);
+    await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 60_000 }).toMatch(/done|failed/);
+    const plot = page.locator('[data-testid="sweep-plot"] .bode');
+    await expect.poll(async () => Number(await plot.getAttribute('data-distorted-points'))).toBeGreaterThan(0);
+    await shot('11-distorted');
   });
 
   it('is usable from the keyboard and shows the cautions in About', async () => {
