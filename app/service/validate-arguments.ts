@@ -21,14 +21,6 @@ import type {
   VerdictLimits,
 } from './contract';
 
-/** Every method a window may call, in contract order. */
-export const API_METHOD_NAMES: readonly RolloffMethodName[] = [
-  'listPorts', 'listProfiles', 'benchStatus', 'connect', 'disconnect', 'startVirtualBench', 'setMaxStimulus',
-  'listTemplates', 'makeTemplate', 'saveDesign', 'listDesigns', 'createBuild', 'listBuilds',
-  'planSweep', 'startRun', 'pauseRun', 'resumeRun', 'stopRun',
-  'listRuns', 'getRun', 'compareRuns', 'exportRecord',
-];
-
 /** Every event the service pushes to windows. */
 export const SERVICE_EVENT_NAMES: readonly ServiceEventName[] = ['progress', 'point', 'runEvent', 'traffic', 'bench'];
 
@@ -47,7 +39,7 @@ const MAX_COUNT = 10_000;
 export type ApiArguments<M extends RolloffMethodName> = Parameters<RolloffApi[M]>;
 
 export function isApiMethodName(name: unknown): name is RolloffMethodName {
-  return typeof name === 'string' && (API_METHOD_NAMES as readonly string[]).includes(name);
+  return typeof name === 'string' && Object.prototype.hasOwnProperty.call(CHECKS, name);
 }
 
 /**
@@ -115,6 +107,13 @@ const CHECKS: Record<RolloffMethodName, Check> = {
   exportRecord: (r) =>
     r.done([runIdList(r.required(0, 'runIds'), r.where(0, 'runIds')), oneOf(r.required(1, 'format'), RECORD_FORMATS, r.where(1, 'format'))]),
 };
+
+/**
+ * Every method a window may call. Taken from the checks table, whose type
+ * requires one entry per contract method, so a method added to the contract
+ * cannot be called before its arguments are checked here.
+ */
+export const API_METHOD_NAMES = Object.keys(CHECKS) as readonly RolloffMethodName[];
 
 /** Walks one call's positional arguments and refuses extra ones. */
 class ArgumentReader {
