@@ -259,6 +259,16 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
     await page.keyboard.press('Enter');
     await expect.poll(() => page.locator('section[data-view="design"]').isVisible()).toBe(true);
     await view('1');
+    // Every view fits 1280×800 without sideways scrolling.
+    for (const key of ['1', '2', '3', '4', '5', '6', '0']) {
+      await view(key);
+      const overflow = await page.evaluate(() => {
+        const host = document.getElementById('view-host')!;
+        return { page: document.documentElement.scrollWidth - window.innerWidth, view: host.scrollWidth - host.clientWidth };
+      });
+      expect(overflow, `view Alt+${key}`).toEqual({ page: 0, view: 0 });
+    }
+    await view('1');
     await shot('09-bench-end');
     expect(consoleErrors).toEqual([]);
   });
