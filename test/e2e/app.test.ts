@@ -259,6 +259,13 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
     await page.keyboard.press('Enter');
     await expect.poll(() => page.locator('section[data-view="design"]').isVisible()).toBe(true);
     await view('1');
+    // Connecting to an address where nothing answers gives a clear error, not a hang or a stack trace.
+    await view('1');
+    await page.locator('select[name="role"]').selectOption('meter');
+    await page.locator('input[name="address"]').fill('tcp://127.0.0.1:1');
+    await page.getByRole('button', { name: 'Connect', exact: true }).click();
+    await expect.poll(() => page.locator('.notice-error').last().textContent(), { timeout: 20_000 }).toMatch(/^Connecting: .*127\.0\.0\.1:1/);
+    expect(await page.locator('.notice-error').last().textContent()).not.toMatch(/\bat \w+ \(/);
     // Every view fits 1280×800 without sideways scrolling.
     for (const key of ['1', '2', '3', '4', '5', '6', '0']) {
       await view(key);
