@@ -3,6 +3,7 @@
  * difference from theory or from a reference run, and tabulate the figures
  * with their deltas.
  */
+import { UserError } from '../../app/errors';
 import type { Comparison, RolloffClient, RunFigures, RunSummary } from '../../app/service/contract';
 import { field, h, replaceChildren } from '../dom';
 import { formatDb, formatDelta, formatHz } from '../model/format';
@@ -77,7 +78,7 @@ export class CompareView implements View {
 
   private async compare(): Promise<void> {
     const runIds = this.state.current.pickedRunIds;
-    if (runIds.length === 0) throw new Error('Pick at least one run (tick it above or in History).');
+    if (runIds.length === 0) throw new UserError('No run picked to compare.', 'Tick one or more runs above or in History (Alt+4).');
     const reference = this.reference.value === 'theory' || this.reference.value === '' ? 'theory' : Number(this.reference.value);
     const comparison = await this.client.compareRuns(runIds, reference);
     this.show(comparison);

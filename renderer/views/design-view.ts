@@ -4,6 +4,7 @@
  * gain-limit and −3 dB points update as you type. Theory is computed here in
  * the window with the pure circuit module — no round trip to the service.
  */
+import { UserError } from '../../app/errors';
 import type { BuildRecord, DesignRecord, RolloffClient, TemplateInfo, TheoryColumns } from '../../app/service/contract';
 import { logGrid, parseEngineering, formatEngineering } from '../../app/units';
 import { monteCarloAc, parseDesign, solveAc, summarizeAc } from '../../app/circuit';
@@ -135,7 +136,7 @@ export class DesignView implements View {
     replaceChildren(
       this.templateParams,
       (template?.parameters ?? []).map((p) =>
-        field(`${p.name} (${p.unit})`, h('input', { type: 'text', name: `template-${p.name}`, 'data-param': p.name, value: formatEngineering(p.defaultValue, '', 6).replace(' ', ''), title: p.description }), p.description),
+        field(`${p.name}${p.unit ? ` (${p.unit})` : ''}`, h('input', { type: 'text', name: `template-${p.name}`, 'data-param': p.name, value: parameterText(p.defaultValue, p.unit), title: p.description }), p.description),
       ),
     );
     if (template) this.templateParams.prepend(h('p', { className: 'hint' }, template.description));
@@ -278,7 +279,7 @@ export class DesignView implements View {
   }
 
   private async save(): Promise<void> {
-    if (!this.draft) throw new Error('Pick a template or open a design first.');
+    if (!this.draft) throw new UserError('There is no design to save yet.', 'Pick a template, a saved design or a design file first.');
     parseDesign(this.draft, 'Design view');
     const record = await this.client.saveDesign(this.draft);
     this.state.update({ design: record });
@@ -301,3 +302,9 @@ export class DesignView implements View {
   }
 }
 
+
+/** Part values read best with SI prefixes (15n, 4.7k); plain ratios such as a 0.01 tolerance do not ("10m"). */
+function parameterText(value: number, unit: string): string {
+  const prefixed = ['Ω', 'F', 'H', 'Hz', 'A', 'V/s', 'V/V'].includes(unit) || Math.abs(value) >= 1e4 || (value !== 0 && Math.abs(value) < 1e-3);
+  return prefixed ? formatEngineering(value, '', 6).replace(' ', '') : String(value);
+}

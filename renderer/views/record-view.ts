@@ -1,4 +1,5 @@
 /** Record: export the picked runs as PDF, HTML, CSV or JSON and download the file. */
+import { UserError } from '../../app/errors';
 import type { RecordFormat, RolloffClient } from '../../app/service/contract';
 import { field, h, replaceChildren, select } from '../dom';
 import { guarded, showInfo } from '../notices';
@@ -76,7 +77,7 @@ export class RecordView implements View {
 
   private async export(): Promise<void> {
     const ids = this.runIds();
-    if (ids.length === 0) throw new Error('Pick one or more runs in History first.');
+    if (ids.length === 0) throw new UserError('No run picked for the record.', 'Tick one or more runs in History (Alt+4), or open a run on the Sweep view.');
     const record = await this.client.exportRecord(ids, this.format.value as RecordFormat);
     const bytes = record.encoding === 'base64' ? Uint8Array.from(atob(record.content), (c) => c.charCodeAt(0)) : new TextEncoder().encode(record.content);
     const url = URL.createObjectURL(new Blob([bytes], { type: record.mimeType }));

@@ -3,6 +3,7 @@
  * stop, the live Bode plot (measured over theory, band, gain-limit and −3 dB
  * points, distorted points marked), progress with ETA, and the run's events.
  */
+import { UserError } from '../../app/errors';
 import type { BuildRecord, RolloffClient, RunDetail, RunFigures, RunProgress, RunStatus, RunSummary, SweepRequest, Verdict } from '../../app/service/contract';
 import { formatEngineering, logGrid, parseEngineering } from '../../app/units';
 import { parseDesign, solveDcTransfer, withActualValues } from '../../app/circuit';
@@ -141,7 +142,7 @@ export class SweepView implements View {
   /** The request the form describes; throws ValidationError naming the field. */
   private request(): SweepRequest {
     const buildId = Number(this.buildSelect.value);
-    if (!Number.isInteger(buildId) || buildId < 1) throw new Error('Pick a build first (create one on the Design view).');
+    if (!Number.isInteger(buildId) || buildId < 1) throw new UserError('No build picked for the sweep.', 'Create a build on the Design view (Alt+2), then pick it here.');
     const amount = parseEngineering(this.inputs.amplitudeVpp.value, 'Amplitude');
     const auto = this.inputs.amplitudeMode.value === 'auto';
     return {
