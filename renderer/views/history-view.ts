@@ -67,9 +67,12 @@ export class HistoryView implements View {
       this.client.listRuns(),
     ]);
     replaceChildren(this.runsBody, runs.length === 0 ? h('tr', {}, h('td', { colspan: '9', className: 'empty' }, 'No runs match.')) : runs.map((run) => this.runRow(run)));
+    // The same search words narrow the designs table (by design name or build label).
+    const words = this.search.value.trim().toLowerCase();
+    const matching = words === '' ? designs : designs.filter((d) => d.name.toLowerCase().includes(words) || builds.some((b) => b.designId === d.id && b.label.toLowerCase().includes(words)));
     replaceChildren(
       this.designsBody,
-      designs.map((design) =>
+      matching.length === 0 ? h('tr', {}, h('td', { colspan: '3', className: 'empty' }, 'No designs match.')) : matching.map((design) =>
         h('tr', {}, h('th', { scope: 'row' }, `${design.name} (#${design.id})`), h('td', {}, design.createdAt.slice(0, 16).replace('T', ' ')), h('td', {}, builds.filter((b) => b.designId === design.id).map((b) => b.label).join(', ') || '—')),
       ),
     );

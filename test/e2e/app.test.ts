@@ -152,6 +152,10 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
     await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 60_000 }).toBe('done');
     await view('4');
     await expect.poll(() => page.locator('[data-pick-run]').count()).toBe(2);
+    await page.getByTestId('history-search').fill('no such board');
+    await expect.poll(() => page.getByTestId('history-runs').textContent()).toBe('No runs match.');
+    await page.getByTestId('history-search').fill('board A');
+    await expect.poll(() => page.locator('[data-pick-run]').count()).toBe(2);
     for (const box of await page.locator('[data-pick-run]').all()) await box.check();
     await expect.poll(() => page.getByTestId('picked-count').textContent()).toBe('2 picked');
     await shot('06-history');
