@@ -170,13 +170,22 @@ export class DesignView implements View {
     this.nameInput.value = this.draft.name ?? '';
     if (record) {
       this.state.update({ design: record });
-      this.savedState.textContent = `Saved as #${record.id}.`;
+      this.markSaved(record);
     } else this.markUnsaved();
     this.renderParts();
     this.computeTheory();
   }
 
+  /** True while the draft differs from the design last saved or opened from the store. */
+  private unsaved = true;
+
+  private markSaved(record: DesignRecord): void {
+    this.unsaved = false;
+    this.savedState.textContent = `Saved as #${record.id}.`;
+  }
+
   private markUnsaved(): void {
+    this.unsaved = true;
     this.savedState.textContent = 'Not saved yet.';
   }
 
@@ -283,13 +292,14 @@ export class DesignView implements View {
     parseDesign(this.draft, 'Design view');
     const record = await this.client.saveDesign(this.draft);
     this.state.update({ design: record });
-    this.savedState.textContent = `Saved as #${record.id}.`;
+    this.markSaved(record);
     showInfo(`Design "${record.name}" saved.`);
   }
 
   private async createBuild(): Promise<BuildRecord> {
     const design = this.state.current.design;
-    if (!design || this.savedState.textContent !== `Saved as #${design.id}.`) await this.save();
+    // A build belongs to a stored design: save edits first so the build matches what is on screen.
+    if (!design || this.unsaved) await this.save();
     const designId = this.state.current.design!.id;
     const actualValues: Record<string, number> = {};
     for (const input of this.actualHost.querySelectorAll<HTMLInputElement>('input[data-actual]')) {
