@@ -25,10 +25,19 @@ export function scaledClock(timeScale: number): BenchClock {
   return {
     timeScale,
     nowS: () => (wallS() - startWallS) * timeScale,
+    // Never returns early: a timer may fire up to ~1 ms before its delay (fractional delays are
+    // truncated and the event loop's cached time can lag), which would cut settling short. The
+    // last millisecond is polled on the event loop instead.
     sleepS: (seconds: number) =>
       new Promise<void>((resolve) => {
-        const wallMs = Math.max(0, (seconds / timeScale) * 1000);
-        setTimeout(resolve, wallMs);
+        const untilWallS = wallS() + Math.max(0, seconds / timeScale);
+        const check = () => {
+          const leftMs = (untilWallS - wallS()) * 1000;
+          if (leftMs <= 0) resolve();
+          else if (leftMs > 1) setTimeout(check, leftMs);
+          else setImmediate(check);
+        };
+        check();
       }),
   };
 }

@@ -30,11 +30,12 @@ export class ProfileMeter implements MeterControl {
     if (rangeV === 'auto') {
       await this.runner.set('acRangeAuto');
       await this.runner.set('dcRangeAuto');
-      return;
+    } else {
+      if (!(rangeV > 0) || !Number.isFinite(rangeV)) throw new ValidationError('rangeV', `${rangeV} is not a positive number of volts`);
+      await this.runner.set('acRange', { rangeV });
+      await this.runner.set('dcRange', { rangeV });
     }
-    if (!(rangeV > 0) || !Number.isFinite(rangeV)) throw new ValidationError('rangeV', `${rangeV} is not a positive number of volts`);
-    await this.runner.set('acRange', { rangeV });
-    await this.runner.set('dcRange', { rangeV });
+    await this.runner.flush();
   }
 
   async setIntegration(integrationS: number): Promise<void> {
@@ -42,6 +43,8 @@ export class ProfileMeter implements MeterControl {
     const powerLineCycles = integrationS * this.profile.meter.powerLineHz;
     await this.runner.set('integration', { integrationS, powerLineCycles });
     this.integrationS = integrationS;
+    // Checked now, not at the next reading: a sweep sets the aperture while the circuit settles.
+    await this.runner.flush();
   }
 
   private async read(operation: 'readAcRms' | 'readDc'): Promise<Reading> {

@@ -9,6 +9,7 @@
  * measurement is taken with it, at one round trip per batch instead of one
  * per command (each reply costs the link's latency).
  */
+import type { ResponseUnit } from '../scpi/reply-framer';
 import type { ScpiSession } from '../scpi/session';
 import type { Profile } from './profile';
 import { ProfileError } from './errors';
@@ -63,6 +64,14 @@ export class OperationRunner {
     const commands = this.commands(name, values);
     for (const command of commands.slice(0, -1)) await this.session.write(command);
     return this.session.queryBlock(commands[commands.length - 1], { timeoutS: timeoutS ?? this.profile.timeoutS });
+  }
+
+  /** A query whose one response message holds several units (text or block), e.g. `A?;B?`. */
+  async queryUnits(name: string, values: Record<string, number> = {}, timeoutS?: number): Promise<ResponseUnit[]> {
+    await this.flush();
+    const commands = this.commands(name, values);
+    for (const command of commands.slice(0, -1)) await this.session.write(command);
+    return this.session.queryUnits(commands[commands.length - 1], { timeoutS: timeoutS ?? this.profile.timeoutS });
   }
 
   /** The command text an operation would send (for messages). */

@@ -49,6 +49,8 @@ export const OPERATION_RULES: Record<InstrumentRole, Record<string, OperationRul
     acquire: op('capture one record of both channels and wait for it', [], true),
     waveformPreamble: op('waveform scaling of a channel', ['channel'], true),
     waveformData: op('waveform data block of a channel', ['channel'], true),
+    // One program message, one response message: channel 1 preamble; channel 1 data; channel 2 preamble; channel 2 data.
+    waveformBoth: op('preamble and data of channel 1, then of channel 2, in one response message', [], true, false),
     measureAmplitudeVpp: op('peak-to-peak of a channel', ['channel'], true, false),
     measurePhaseDeg: op('phase of channel 2 relative to channel 1', [], true, false),
   },

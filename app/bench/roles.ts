@@ -80,6 +80,8 @@ export interface ScopeControl {
   acquire(): Promise<void>;
   /** A channel of the last acquire(). */
   fetchWaveform(channel: ScopeChannel): Promise<Waveform>;
+  /** Both channels of the last acquire(), in one round trip when the profile allows it. */
+  fetchBoth(): Promise<{ 1: Waveform; 2: Waveform }>;
   /** Present only when the profile has the measurement. Peak-to-peak volts. */
   measureAmplitudeVpp?(channel: ScopeChannel): Promise<Reading>;
   /** Present only when the profile has it. Phase of channel 2 relative to channel 1, degrees. */

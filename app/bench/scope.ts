@@ -1,6 +1,8 @@
 /** ScopeControl over a profile. */
 import { ValidationError } from '../errors';
+import { ScpiMalformedReplyError } from '../scpi/errors';
 import { parseReading, type Reading } from '../scpi/reading';
+import type { ResponseUnit } from '../scpi/reply-framer';
 import type { ScpiSession } from '../scpi/session';
 import { OperationRunner } from './operation';
 import type { ScopeProfile } from './profile';
@@ -35,18 +37,20 @@ export class ProfileScope implements ScopeControl {
     }
   }
 
+  // Settings are checked (error queue) when the call ends, so a caller that sets up while the circuit
+  // settles has the check's round trip behind it before it acquires.
   async setVerticalScale(channel: ScopeChannel, voltsPerDiv: number): Promise<void> {
-    if (!(voltsPerDiv > 0) || !Number.isFinite(voltsPerDiv)) throw new ValidationError('voltsPerDiv', `${voltsPerDiv} is not a positive number`);
-    await this.runner.set('verticalScale', { channel: checkChannel(channel), voltsPerDiv });
-    this.preambles.clear();
+    await this.sendVerticalScale(channel, voltsPerDiv);
+    await this.runner.flush();
   }
 
   async setupChannels(voltsPerDiv: { 1: number; 2: number }): Promise<void> {
     for (const channel of [1, 2] as const) {
       await this.runner.set('channelOn', { channel });
       this.preambles.clear();
-      await this.setVerticalScale(channel, voltsPerDiv[channel]);
+      await this.sendVerticalScale(channel, voltsPerDiv[channel]);
     }
+    await this.runner.flush();
   }
 
   async setTimebase(secondsPerRecord: number): Promise<void> {
@@ -54,6 +58,13 @@ export class ProfileScope implements ScopeControl {
     await this.runner.set('timebase', { secondsPerRecord, secondsPerDiv: secondsPerRecord / this.divisions });
     this.preambles.clear();
     this.secondsPerRecord = secondsPerRecord;
+    await this.runner.flush();
+  }
+
+  private async sendVerticalScale(channel: ScopeChannel, voltsPerDiv: number): Promise<void> {
+    if (!(voltsPerDiv > 0) || !Number.isFinite(voltsPerDiv)) throw new ValidationError('voltsPerDiv', `${voltsPerDiv} is not a positive number`);
+    await this.runner.set('verticalScale', { channel: checkChannel(channel), voltsPerDiv });
+    this.preambles.clear();
   }
 
   async acquire(): Promise<void> {
@@ -71,6 +82,24 @@ export class ProfileScope implements ScopeControl {
     if (bytesPerPoint !== undefined && bytesPerPoint !== BYTES_PER_SAMPLE[this.profile.scope.encoding]) scaling = await this.fetchPreamble(channel);
     const { samplesV, clipped } = decodeWaveform(bytes, this.profile.scope.encoding, scaling, command);
     return { channel, sampleIntervalS: scaling.sampleIntervalS, samplesV, clipped };
+  }
+
+  async fetchBoth(): Promise<{ 1: Waveform; 2: Waveform }> {
+    if (!this.runner.has('waveformBoth')) return { 1: await this.fetchWaveform(1), 2: await this.fetchWaveform(2) };
+    const command = this.runner.describe('waveformBoth');
+    const units = await this.runner.queryUnits('waveformBoth');
+    const layout = units.map((u) => u.kind).join(';');
+    if (layout !== 'text;block;text;block') {
+      throw new ScpiMalformedReplyError(command, `<${layout || 'nothing'}>`, 'text;block;text;block (channel 1 preamble; channel 1 data; channel 2 preamble; channel 2 data)');
+    }
+    const waveform = (channel: ScopeChannel, preamble: ResponseUnit, data: ResponseUnit): Waveform => {
+      // Read with the data, the preamble is always that of this record: nothing to cache.
+      const scaling = parsePreamble(preamble.kind === 'text' ? preamble.text : '', this.profile.scope.preambleFields, command);
+      this.preambles.set(channel, scaling);
+      const { samplesV, clipped } = decodeWaveform(data.kind === 'block' ? data.bytes : new Uint8Array(0), this.profile.scope.encoding, scaling, command);
+      return { channel, sampleIntervalS: scaling.sampleIntervalS, samplesV, clipped };
+    };
+    return { 1: waveform(1, units[0], units[1]), 2: waveform(2, units[2], units[3]) };
   }
 
   private async fetchPreamble(channel: ScopeChannel): Promise<WaveformScaling> {

@@ -34,8 +34,31 @@ export function fillTemplate(template: string, values: Record<string, number>): 
   });
 }
 
-/** A command is a query when its header (before the first space) ends in '?'. */
+/**
+ * A command is a query when the header (before the first space) of any of its
+ * program message units (separated by ';' outside quotes) ends in '?': the
+ * message then has a response.
+ */
 export function isQuery(command: string): boolean {
-  const header = command.trim().split(/\s+/)[0];
-  return header.endsWith('?');
+  return splitUnits(command).some((unit) => unit.trim().split(/\s+/)[0].endsWith('?'));
+}
+
+function splitUnits(command: string): string[] {
+  const units: string[] = [];
+  let current = '';
+  let quote: string | undefined;
+  for (const char of command) {
+    if (quote) {
+      if (char === quote) quote = undefined;
+    } else if (char === '"' || char === "'") {
+      quote = char;
+    } else if (char === ';') {
+      units.push(current);
+      current = '';
+      continue;
+    }
+    current += char;
+  }
+  units.push(current);
+  return units;
 }

@@ -34,6 +34,74 @@ export function frameReply(buffer: Uint8Array): FrameResult {
   return frameTextLine(buffer);
 }
 
+/** One unit of a response message: text (numbers, strings, lists) or a definite-length block. */
+export type ResponseUnit = { kind: 'text'; text: string } | { kind: 'block'; bytes: Uint8Array };
+
+export type UnitsFrameResult =
+  | { kind: 'units'; units: ResponseUnit[]; consumed: number }
+  | { kind: 'malformed'; description: string; preview: string; consumed: number }
+  | { kind: 'incomplete' };
+
+const SEMICOLON = 0x3b;
+const QUOTE = 0x22;
+
+/**
+ * Frames one response message made of several units separated by ';' and
+ * ended by the terminator (IEEE 488.2 §8.4.1 and §8.4.2, recalled from
+ * memory), as a program message with several queries gets it. Each unit is a
+ * definite-length block (framed by its count, so its bytes may hold ';' or LF)
+ * or text up to the next ';' or terminator outside a quoted string.
+ */
+export function frameResponseUnits(buffer: Uint8Array): UnitsFrameResult {
+  const units: ResponseUnit[] = [];
+  let at = 0;
+  for (;;) {
+    if (at >= buffer.length) return { kind: 'incomplete' };
+    let end: number;
+    if (buffer[at] === HASH && at + 1 < buffer.length && buffer[at + 1] > DIGIT_0 && buffer[at + 1] <= DIGIT_9) {
+      const headerEnd = at + 2 + (buffer[at + 1] - DIGIT_0);
+      if (buffer.length < headerEnd) return { kind: 'incomplete' };
+      let length = 0;
+      for (let i = at + 2; i < headerEnd; i++) {
+        if (buffer[i] < DIGIT_0 || buffer[i] > DIGIT_9) return malformedUpToLineEnd(buffer, 'a block header with a non-digit length');
+        length = length * 10 + (buffer[i] - DIGIT_0);
+      }
+      end = headerEnd + length;
+      if (buffer.length <= end) return { kind: 'incomplete' };
+      units.push({ kind: 'block', bytes: buffer.slice(headerEnd, end) });
+    } else if (buffer[at] === HASH && at + 1 >= buffer.length) {
+      return { kind: 'incomplete' };
+    } else {
+      let quoted = false;
+      end = at;
+      while (end < buffer.length && (quoted || (buffer[end] !== SEMICOLON && buffer[end] !== LF))) {
+        const byte = buffer[end];
+        if (byte === QUOTE) quoted = !quoted;
+        else if ((byte < 0x20 || byte > 0x7e) && byte !== 0x09 && !(byte === CR && buffer[end + 1] === LF)) {
+          return malformedUpToLineEnd(buffer, 'response units of printable ASCII or definite-length blocks');
+        }
+        end++;
+      }
+      if (end >= buffer.length) return end - at > MAX_TEXT_REPLY_BYTES ? malformedAll(buffer) : { kind: 'incomplete' };
+      const textEnd = buffer[end] === LF && end > at && buffer[end - 1] === CR ? end - 1 : end;
+      let text = '';
+      for (let i = at; i < textEnd; i++) text += String.fromCharCode(buffer[i]);
+      units.push({ kind: 'text', text });
+    }
+    // After a unit: ';' and the next unit, or the terminator (LF or CR LF).
+    if (buffer[end] === SEMICOLON) {
+      at = end + 1;
+      continue;
+    }
+    if (buffer[end] === LF) return { kind: 'units', units, consumed: end + 1 };
+    if (buffer[end] === CR) {
+      if (buffer.length < end + 2) return { kind: 'incomplete' };
+      if (buffer[end + 1] === LF) return { kind: 'units', units, consumed: end + 2 };
+    }
+    return { kind: 'malformed', description: 'response units separated by ";" and ended by a line terminator', preview: preview(buffer.subarray(0, 40)), consumed: end };
+  }
+}
+
 function frameDefiniteBlock(buffer: Uint8Array, digitCount: number): FrameResult {
   const headerEnd = 2 + digitCount;
   if (buffer.length < headerEnd) return { kind: 'incomplete' };
@@ -77,13 +145,15 @@ function frameTextLine(buffer: Uint8Array): FrameResult {
   return { kind: 'text', text, consumed: end + 1 };
 }
 
-function malformedUpToLineEnd(buffer: Uint8Array, description: string): FrameResult {
+type Unframed = { kind: 'malformed'; description: string; preview: string; consumed: number } | { kind: 'incomplete' };
+
+function malformedUpToLineEnd(buffer: Uint8Array, description: string): Unframed {
   const end = buffer.indexOf(LF);
   if (end < 0) return buffer.length > MAX_TEXT_REPLY_BYTES ? malformedAll(buffer) : { kind: 'incomplete' };
   return { kind: 'malformed', description, preview: preview(buffer.subarray(0, Math.min(end, 80))), consumed: end + 1 };
 }
 
-function malformedAll(buffer: Uint8Array): FrameResult {
+function malformedAll(buffer: Uint8Array): Unframed {
   return { kind: 'malformed', description: `a reply terminated within ${MAX_TEXT_REPLY_BYTES} bytes`, preview: preview(buffer.subarray(0, 80)), consumed: buffer.length };
 }
 

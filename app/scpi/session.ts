@@ -10,7 +10,7 @@ import { parseErrorEntry, type InstrumentErrorEntry } from './error-entry';
 import { ScpiDisconnectedError, ScpiInstrumentError, ScpiMalformedReplyError, ScpiTimeoutError } from './errors';
 import { parseIdentity } from './identity';
 import { parseReading, type Reading } from './reading';
-import { frameReply, preview } from './reply-framer';
+import { frameReply, frameResponseUnits, preview, type ResponseUnit } from './reply-framer';
 import { TrafficLog } from './traffic-log';
 import type { Transport } from './transport';
 
@@ -29,10 +29,12 @@ export interface CommandOptions {
 
 /** A reply as framed: a text line or a definite-length block. */
 export type ScpiReply = { kind: 'text'; text: string } | { kind: 'block'; bytes: Uint8Array };
-type Reply = ScpiReply;
+type Reply = ScpiReply | { kind: 'units'; units: ResponseUnit[] };
 
 interface PendingReply {
   command: string;
+  /** Several units separated by ';' are expected (a program message with several queries). */
+  units: boolean;
   resolve(reply: Reply): void;
   reject(error: Error): void;
 }
@@ -87,7 +89,7 @@ export class ScpiSession {
   query(command: string, options: CommandOptions = {}): Promise<string> {
     return this.enqueue(async () => {
       const reply = await this.exchange(command, options);
-      if (reply.kind !== 'text') throw new ScpiMalformedReplyError(command, `<block of ${reply.bytes.length} bytes>`, 'a text reply');
+      if (reply.kind !== 'text') throw new ScpiMalformedReplyError(command, reply.kind === 'block' ? `<block of ${reply.bytes.length} bytes>` : '<units>', 'a text reply');
       return reply.text;
     });
   }
@@ -96,14 +98,31 @@ export class ScpiSession {
   queryBlock(command: string, options: CommandOptions = {}): Promise<Uint8Array> {
     return this.enqueue(async () => {
       const reply = await this.exchange(command, options);
-      if (reply.kind !== 'block') throw new ScpiMalformedReplyError(command, reply.text, 'a definite-length block (#<n><length><bytes>)');
+      if (reply.kind !== 'block') throw new ScpiMalformedReplyError(command, reply.kind === 'text' ? reply.text : '<units>', 'a definite-length block (#<n><length><bytes>)');
       return reply.bytes;
     });
   }
 
   /** Sends a query and returns the reply as framed, text or block (for a raw console). */
   queryRaw(command: string, options: CommandOptions = {}): Promise<ScpiReply> {
-    return this.enqueue(() => this.exchange(command, options));
+    return this.enqueue(async () => {
+      const reply = await this.exchange(command, options);
+      if (reply.kind === 'units') throw new ScpiMalformedReplyError(command, '<units>', 'one reply');
+      return reply;
+    });
+  }
+
+  /**
+   * Sends a program message with several queries (`A?;B?`) and returns the units
+   * of its one response message in order, text or block: one round trip for
+   * what would otherwise be several.
+   */
+  queryUnits(command: string, options: CommandOptions = {}): Promise<ResponseUnit[]> {
+    return this.enqueue(async () => {
+      const reply = await this.exchange(command, options, true);
+      if (reply.kind !== 'units') throw new ScpiMalformedReplyError(command, '<one reply>', 'response units');
+      return reply.units;
+    });
   }
 
   /** Sends a query with one numeric reply, classifying SCPI overrange/NaN values. */
@@ -183,7 +202,7 @@ export class ScpiSession {
     }
   }
 
-  private exchange(command: string, options: CommandOptions): Promise<Reply> {
+  private exchange(command: string, options: CommandOptions, units = false): Promise<Reply> {
     const timeoutS = options.timeoutS ?? this.timeoutS;
     return new Promise<Reply>((resolve, reject) => {
       const timer = setTimeout(() => {
@@ -193,6 +212,7 @@ export class ScpiSession {
       }, timeoutS * 1000);
       const pending: PendingReply = {
         command,
+        units,
         resolve: (reply) => {
           clearTimeout(timer);
           resolve(reply);
@@ -225,6 +245,7 @@ export class ScpiSession {
   private deliver(): void {
     const pending = this.pending;
     if (!pending) return;
+    if (pending.units) return this.deliverUnits(pending);
     const frame = frameReply(this.buffer);
     if (frame.kind === 'incomplete') return;
     this.buffer = this.buffer.slice(frame.consumed);
@@ -235,6 +256,20 @@ export class ScpiSession {
     } else if (frame.kind === 'block') {
       this.traffic.add('received', `<block of ${frame.bytes.length} bytes>`, this.link);
       pending.resolve({ kind: 'block', bytes: frame.bytes });
+    } else {
+      this.traffic.add('received', `<malformed> ${frame.preview}`, this.link);
+      pending.reject(new ScpiMalformedReplyError(pending.command, frame.preview, frame.description));
+    }
+  }
+
+  private deliverUnits(pending: PendingReply): void {
+    const frame = frameResponseUnits(this.buffer);
+    if (frame.kind === 'incomplete') return;
+    this.buffer = this.buffer.slice(frame.consumed);
+    this.pending = undefined;
+    if (frame.kind === 'units') {
+      this.traffic.add('received', frame.units.map((u) => (u.kind === 'text' ? u.text : `<block of ${u.bytes.length} bytes>`)).join(';'), this.link);
+      pending.resolve(frame);
     } else {
       this.traffic.add('received', `<malformed> ${frame.preview}`, this.link);
       pending.reject(new ScpiMalformedReplyError(pending.command, frame.preview, frame.description));

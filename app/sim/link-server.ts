@@ -5,6 +5,7 @@
  * message with an LF terminator, and applies link latency and faults.
  */
 import { SeededRandom } from '../circuit';
+import { realClock } from '../bench/clock';
 import type { FaultState } from './faults';
 import type { SimInstrument, SimReply } from './sim-instrument';
 
@@ -71,7 +72,9 @@ export class InstrumentLink {
     const fault = this.options.faults.current;
     let delayS = this.options.latencyS;
     if (fault?.kind === 'slow') delayS += fault.delayS;
-    if (delayS > 0) await new Promise((resolve) => setTimeout(resolve, delayS * 1000));
+    // The clock's sleep never ends early (a bare timer can fire ~1 ms before its delay): a reply is
+    // never faster than the latency asked for.
+    if (delayS > 0) await realClock.sleepS(delayS);
     if (this.closed) return;
     if (fault?.kind === 'no-reply' && this.options.random.nextUniform() < (fault.probability ?? 1)) return;
     if (fault?.kind === 'garbage' && this.options.random.nextUniform() < (fault.probability ?? 1)) {

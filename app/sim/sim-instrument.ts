@@ -91,7 +91,17 @@ export abstract class SimInstrument {
     if (replies.length === 0) return undefined;
     if (replies.length === 1) return replies[0];
     // Several query replies in one response message are separated by ';' (IEEE 488.2 §8.4.1, recalled).
-    return replies.map((r) => (typeof r === 'string' ? r : new TextDecoder().decode(r))).join(';');
+    // Joined as bytes: a block unit is binary and must pass unchanged.
+    if (replies.every((r) => typeof r === 'string')) return replies.join(';');
+    const parts = replies.map((r) => (typeof r === 'string' ? new TextEncoder().encode(r) : r));
+    const joined = new Uint8Array(parts.reduce((sum, p) => sum + p.length, 0) + parts.length - 1);
+    let at = 0;
+    parts.forEach((part, i) => {
+      if (i > 0) joined[at++] = 0x3b; // ';'
+      joined.set(part, at);
+      at += part.length;
+    });
+    return joined;
   }
 
   private async executeUnit(unit: ProgramUnit): Promise<SimReply | undefined> {

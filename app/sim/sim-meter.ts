@@ -18,6 +18,8 @@ const RANGES_V = [0.1, 1, 10, 100, 1000];
 const OVERRANGE_FRACTION = 1.2;
 const MIN_SAMPLES = 4096;
 const MAX_SAMPLES = 200_000;
+const SAMPLES_PER_SLICE = 4096;
+const FINAL_SLICE_SAMPLES = 256;
 
 type MeterFunction = 'ac' | 'dc';
 
@@ -78,17 +80,31 @@ export class SimMeter extends SimInstrument {
 
   private async measure(): Promise<string> {
     const startS = this.clock.nowS();
-    await this.clock.sleepS(this.apertureS);
-    if (this.forcedReading) return formatNr3(this.forcedReading === 'nan' ? SCPI_NOT_A_NUMBER : SCPI_INFINITY);
+    const apertureS = this.apertureS;
     const frequencyHz = this.model.generatorOutput.frequencyHz;
-    const count = Math.min(MAX_SAMPLES, Math.max(MIN_SAMPLES, Math.ceil(64 * frequencyHz * this.apertureS)));
-    const samples = this.model.sampleStratified('output', startS, this.apertureS, count);
+    const count = Math.min(MAX_SAMPLES, Math.max(MIN_SAMPLES, Math.ceil(64 * frequencyHz * apertureS)));
+    // Integrated as the aperture runs, slice by slice once each slice is past (as an integrating
+    // converter does): the reply then follows the aperture's end by one slice's computation, not by
+    // the whole simulation, and a generator change during the aperture enters the slices after it.
+    // The last slice is short, so little computation is left once the aperture ends.
+    const bounds = [0];
+    for (let at = SAMPLES_PER_SLICE; at < count - FINAL_SLICE_SAMPLES; at += SAMPLES_PER_SLICE) bounds.push(at);
+    if (count > FINAL_SLICE_SAMPLES) bounds.push(count - FINAL_SLICE_SAMPLES);
+    bounds.push(count);
     let sum = 0;
     let sumSquares = 0;
-    for (const v of samples) {
-      sum += v;
-      sumSquares += v * v;
+    for (let k = 0; k + 1 < bounds.length; k++) {
+      const first = bounds[k];
+      const next = bounds[k + 1];
+      const sliceStartS = startS + (first / count) * apertureS;
+      const sliceEndS = startS + (next / count) * apertureS;
+      await this.clock.sleepS(sliceEndS - this.clock.nowS());
+      for (const v of this.model.sampleStratified('output', sliceStartS, sliceEndS - sliceStartS, next - first)) {
+        sum += v;
+        sumSquares += v * v;
+      }
     }
+    if (this.forcedReading) return formatNr3(this.forcedReading === 'nan' ? SCPI_NOT_A_NUMBER : SCPI_INFINITY);
     const meanV = sum / count;
     let value: number;
     if (this.meterFunction === 'dc') {

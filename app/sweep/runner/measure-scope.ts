@@ -166,7 +166,8 @@ function reduceRecords(records: Array<{ input: Waveform; output: Waveform; start
 }
 
 async function fetchBoth(scope: ScopeControl): Promise<{ input: Waveform; output: Waveform }> {
-  return { input: await scope.fetchWaveform(1), output: await scope.fetchWaveform(2) };
+  const both = await scope.fetchBoth();
+  return { input: both[1], output: both[2] };
 }
 
 /** Rounds up to the 1-2-5 sequence of vertical scales scopes offer (common practice, no source). */

@@ -138,6 +138,13 @@ export async function runBenchScenario(bench: VirtualBench): Promise<void> {
     expect(fit2.residualMaxV).toBeLessThan((5 * 1) / 32000);
     expect(fit1.residualMaxV).toBeLessThan((5 * 0.2) / 32000);
 
+    // Both channels in one program message (units separated by ';', IEEE 488.2 §8.4.1, recalled from
+    // memory): the same preamble and the same samples as the per-channel reads, in one round trip.
+    const both = await scope.control.fetchBoth();
+    expect([...both[1].samplesV]).toEqual([...ch1.samplesV]);
+    expect([...both[2].samplesV]).toEqual([...ch2.samplesV]);
+    expect([both[1].sampleIntervalS, both[2].sampleIntervalS]).toEqual([ch1.sampleIntervalS, ch2.sampleIntervalS]);
+
     // The raw block: binary, containing bytes equal to LF and CR, delivered whole and identical on refetch.
     await scope.session.write('WAVeform:SOURce CHANnel2');
     const raw1 = await scope.session.queryBlock('WAVeform:DATA?');

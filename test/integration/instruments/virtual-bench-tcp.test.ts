@@ -46,8 +46,8 @@ describe('virtual bench over TCP on 127.0.0.1', () => {
   it('a setting the instrument rejects surfaces as ScpiInstrumentError naming it, before the next measurement', async () => {
     const scope = await openInstrument(bench.addresses.scope, 'scope', 'scpi-scope');
     try {
-      await scope.control.setVerticalScale(1, 500); // the simulated scope's range ends at 100 V/div
-      const error = await scope.control.acquire().catch((e) => e);
+      // The simulated scope's range ends at 100 V/div; the setting call itself reads the error queue.
+      const error = await scope.control.setVerticalScale(1, 500).catch((e) => e);
       expect(error).toBeInstanceOf(ScpiInstrumentError);
       expect(error).toMatchObject({ code: -222 });
       expect((error as ScpiInstrumentError).command).toContain('CHANnel1:SCALe 500');

@@ -122,6 +122,7 @@ describe('cross-check with the scope\'s own measurement', () => {
     return {
       divisions: 10, setVerticalScale: async () => {}, setupChannels: async () => {}, setTimebase: async () => {}, acquire: async () => {},
       fetchWaveform: async (channel) => wave(channel),
+      fetchBoth: async () => ({ 1: wave(1), 2: wave(2) }),
       measureAmplitudeVpp: async (channel) => ({ value: reportedVpp(channel), flag: 'ok' }),
     };
   };
@@ -174,6 +175,7 @@ describe('scope scales', () => {
       setTimebase: async () => {},
       acquire: async () => {},
       fetchWaveform: async (channel) => sample(channel),
+      fetchBoth: async () => ({ 1: sample(1), 2: sample(2) }),
     };
     const instruments = { generator: { configureSine: async () => {}, setOutput: async () => {} }, scope } as unknown as SweepInstruments;
     const clock = manualClock();
