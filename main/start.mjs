@@ -19,12 +19,13 @@ export function electronBinaryPath(projectRoot = root) {
 }
 
 const MISSING_MESSAGE = `The Rolloff desktop shell needs the Electron binary, which is not installed here
-(node_modules/electron/path.txt or node_modules/electron/dist is missing — it is
-downloaded by npm install and cannot be fetched without internet access).
+(node_modules/electron/path.txt or node_modules/electron/dist is missing — the
+electron package fetches it from the internet, which this machine cannot reach).
 
 To run the desktop shell: on a machine with internet access run
-    npm install
-    npx electron-builder install-app-deps   (rebuilds better-sqlite3 for Electron)
+    npm ci
+    node node_modules/electron/install.js   (fetches the Electron binary)
+    npx electron-builder install-app-deps   (rebuilds better-sqlite3 and serialport for Electron)
 then npm start again.
 
 Everything the window does also works in a browser through the headless host:
