@@ -21,22 +21,24 @@ import { queryCommand } from './query';
 import { simCommand } from './sim';
 import { exportCommand } from './export';
 
+// Listed in the order of a bench session: try the demo, compute what the
+// design should do, find the instruments, sweep, look back, file the record.
 export const COMMANDS: CommandSpec[] = [
-  serveCommand,
-  aboutCommand,
+  demoCommand,
   theoryCommand,
   templateCommand,
-  sweepCommand,
-  runsCommand,
-  showCommand,
-  resumeCommand,
-  demoCommand,
-  scheduleCommand,
   designCommand,
   buildCommand,
   portsCommand,
   probeCommand,
   queryCommand,
   simCommand,
+  sweepCommand,
+  scheduleCommand,
+  resumeCommand,
+  runsCommand,
+  showCommand,
   exportCommand,
+  serveCommand,
+  aboutCommand,
 ];
