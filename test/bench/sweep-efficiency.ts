@@ -49,7 +49,7 @@ async function main(): Promise<void> {
     ];
     if (process.argv.includes('--trace')) {
       const t0 = performance.now();
-      service.on('traffic', (t) => process.stderr.write(`${(performance.now() - t0).toFixed(1).padStart(9)} ${t.direction.padEnd(8)} ${t.text.slice(0, 50)}\n`));
+      service.on('traffic', (t) => process.stderr.write(`${(performance.now() - t0).toFixed(1).padStart(9)} ${t.role.padEnd(9)} ${t.direction.padEnd(8)} ${t.text.slice(0, 50)}\n`));
       service.on('point', (p) => process.stderr.write(`${(performance.now() - t0).toFixed(1).padStart(9)} POINT ${p.index}\n`));
     }
     console.log(`sweep efficiency on the virtual bench: link latency ${latencyMs} ms per reply, ${perDecade} points/decade, real time`);

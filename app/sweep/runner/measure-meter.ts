@@ -5,6 +5,7 @@
  * cancel). No phase: a meter cannot see it.
  */
 import type { BenchClock } from '../../bench/clock';
+import type { MeterControl } from '../../bench/roles';
 import type { Reading } from '../../scpi/reading';
 import { PointFlag } from '../../service/contract';
 import { dbFromRatio } from '../../units';
@@ -30,6 +31,13 @@ const DB_PER_RELATIVE_UNIT = 20 / Math.LN10;
 export function meterMeasurer(options: MeterMeasurerOptions): StepMeasurer {
   const stimulus = new AppliedStimulus(options.clock);
   let lastIntegrationS = NaN;
+  /** The step's aperture; the bookkeeping follows only once the meter has taken it. */
+  const setUp = async (meter: MeterControl, setting: StepSetting) => {
+    if (!apertureChanged(lastIntegrationS, setting.integrateS)) return;
+    lastIntegrationS = NaN;
+    await meter.setIntegration(setting.integrateS);
+    lastIntegrationS = setting.integrateS;
+  };
   return {
     async prepare(instruments: SweepInstruments) {
       if (!instruments.meter) throw new Error('meter measurement needs a meter');
@@ -43,15 +51,18 @@ export function meterMeasurer(options: MeterMeasurerOptions): StepMeasurer {
     async acquire(instruments: SweepInstruments, setting: StepSetting) {
       const meter = instruments.meter!;
       await stimulus.ensure(instruments, setting, 'sine');
-      if (apertureChanged(lastIntegrationS, setting.integrateS)) {
-        await meter.setIntegration(setting.integrateS);
-        lastIntegrationS = setting.integrateS;
-      }
+      // Usually done already, right after the previous step's readings (see below).
+      await setUp(meter, setting);
       await stimulus.settled(setting.settleS);
       const readings: Reading[] = [];
       // Each reading integrates over the aperture set above (READ? returns when it is done).
       for (let k = 0; k < setting.averages; k++) readings.push(await meter.readAcRmsV());
-      return async () => reduceRmsReadings(readings, setting, options.calibration);
+      return async (next?: StepSetting) => {
+        // The meter is free: the next step's aperture goes out while the generator moves on and the circuit
+        // settles. A refused setting is left for the next step's own set-up to report.
+        if (next) await setUp(meter, next).catch(() => undefined);
+        return reduceRmsReadings(readings, setting, options.calibration);
+      };
     },
   };
 }

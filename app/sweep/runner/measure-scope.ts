@@ -45,6 +45,25 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
     lastScales = { ...wanted };
   };
 
+  /**
+   * Time base and scales for a step. One record holds all `averages` acquisitions back to back (each
+   * whole cycles), split into segments in software, so averaging costs no extra read-backs. The
+   * bookkeeping follows each setting only once the scope has taken it.
+   */
+  const setUp = async (scope: ScopeControl, setting: StepSetting) => {
+    const recordS = setting.integrateS * setting.averages;
+    if (recordS !== lastTimebaseS) {
+      lastTimebaseS = NaN;
+      await scope.setTimebase(recordS);
+      lastTimebaseS = recordS;
+    }
+    const wanted = {
+      1: niceScale((boost[1] * setting.amplitudeVpp) / SCREEN_DIVISIONS_USED),
+      2: niceScale((boost[2] * setting.amplitudeVpp * options.expectedGainRatioAt(setting.stimulus)) / SCREEN_DIVISIONS_USED),
+    };
+    if (wanted[1] !== lastScales[1] || wanted[2] !== lastScales[2]) await setScale(scope, wanted);
+  };
+
   /** A clipped record: widen that channel (×2.5 per try) and report whether another try is allowed. */
   const widenFor = (record: { input: Waveform; output: Waveform }): boolean => {
     if (record.input.clipped) boost[1] *= 2.5;
@@ -66,34 +85,38 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
     async acquire(instruments: SweepInstruments, setting: StepSetting) {
       const scope = instruments.scope!;
       await stimulus.ensure(instruments, setting, 'sine');
-      // One record holds all `averages` acquisitions back to back (each whole cycles); it is split into
-      // segments in software, so averaging costs no extra read-backs. Scope settings go out while the
-      // circuit settles; they add no time when the settle wait is longer.
-      const recordS = setting.integrateS * setting.averages;
-      if (recordS !== lastTimebaseS) {
-        await scope.setTimebase(recordS);
-        lastTimebaseS = recordS;
-      }
-      const wanted = {
-        1: niceScale((boost[1] * setting.amplitudeVpp) / SCREEN_DIVISIONS_USED),
-        2: niceScale((boost[2] * setting.amplitudeVpp * options.expectedGainRatioAt(setting.stimulus)) / SCREEN_DIVISIONS_USED),
-      };
-      if (wanted[1] !== lastScales[1] || wanted[2] !== lastScales[2]) await setScale(scope, wanted);
+      // Usually done already, right after the previous step's read-back (see below).
+      await setUp(scope, setting);
       await stimulus.settled(setting.settleS);
       // Both channels at once on one time base. Once captured the stimulus is free: the runner moves the
       // generator on while this record is read back.
       await scope.acquire();
-      return async () => {
+      return async (next?: StepSetting) => {
         const record = await fetchBoth(scope);
-        if ((record.input.clipped || record.output.clipped) && widenFor(record)) throw new RemeasureStep('clipped record; scale widened');
-        const result = reduceRecords(splitRecord(record, setting.averages), setting);
+        const clipped = record.input.clipped || record.output.clipped;
+        if (clipped && widenFor(record)) throw new RemeasureStep('clipped record; scale widened');
+        // Once per sweep, the scope's own amplitude measurement of this capture against the sine fit: catches a
+        // wrong probe attenuation or a channel mix-up before a whole sweep is trusted. Asked before the next
+        // step's settings change the scope.
+        let crossChecking: Promise<{ note?: string; advice?: string }> | undefined;
         if (!crossChecked && scope.measureAmplitudeVpp) {
-          // Once per sweep, the scope's own amplitude measurement of the same capture against the sine fit:
-          // catches a wrong probe attenuation or a channel mix-up before a whole sweep is trusted.
           crossChecked = true;
-          return { ...result, ...(await crossCheck(scope, record, setting)) };
+          crossChecking = crossCheck(scope, record, setting);
         }
-        return result;
+        // The scope is free now: the next step's time base and scales go out while this record is reduced and
+        // stored and the circuit settles. A refused setting is left for the next step's own set-up to report.
+        const nextSetUp = next
+          ? (async () => {
+              await crossChecking?.catch(() => undefined);
+              await setUp(scope, next);
+            })().catch(() => undefined)
+          : undefined;
+        try {
+          const result = reduceRecords(splitRecord(record, setting.averages), setting);
+          return crossChecking ? { ...result, ...(await crossChecking) } : result;
+        } finally {
+          await nextSetUp;
+        }
       };
     },
   };

@@ -72,8 +72,9 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
             const read = await options.measurer.acquire(instruments!, setting);
             // The stimulus of this step is no longer needed: move the generator on so the next step's settling
             // runs while this step's data are read back, reduced and stored.
-            const ahead = upcoming && control.pending === 'none' ? options.measurer.apply(instruments!, upcoming) : undefined;
-            const [value] = await Promise.all([read(), ahead]);
+            const next = upcoming && control.pending === 'none' ? upcoming : undefined;
+            const ahead = next ? options.measurer.apply(instruments!, next) : undefined;
+            const [value] = await Promise.all([read(next), ahead]);
             return value;
           } catch (error) {
             if (!(error instanceof RemeasureStep) || tries >= MAX_REMEASURE) throw error;

@@ -51,7 +51,10 @@ export interface StepMeasurer {
   /**
    * Applies the stimulus unless already applied, waits out the settling, and
    * acquires. Resolves when the stimulus is no longer needed, with a function
-   * that reads back and reduces what was acquired.
+   * that reads back and reduces what was acquired. Given the next step, that
+   * function also sends the next step's measuring-instrument settings (time
+   * base, scales, aperture) once this step's data are in, so their round trips
+   * overlap the reduction, the store and the next settling.
    */
-  acquire(instruments: SweepInstruments, setting: StepSetting): Promise<() => Promise<StepResult>>;
+  acquire(instruments: SweepInstruments, setting: StepSetting): Promise<(next?: StepSetting) => Promise<StepResult>>;
 }
