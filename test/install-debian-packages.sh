@@ -5,8 +5,9 @@
 #   chromium       end-to-end tests of the window through playwright-core
 #   poppler-utils  pdftoppm/pdftotext to open exported PDF records
 #   xvfb           a display for the Electron shell test where the binary exists
+#   fonts-dejavu-core  a Unicode font embedded in PDF records (standard PDF fonts otherwise)
 set -euo pipefail
-PACKAGES=(ngspice socat chromium poppler-utils xvfb)
+PACKAGES=(ngspice socat chromium poppler-utils xvfb fonts-dejavu-core)
 missing=()
 for package in "${PACKAGES[@]}"; do
   dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed" || missing+=("$package")

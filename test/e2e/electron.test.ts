@@ -15,7 +15,7 @@ import { buildElectronShell } from '../../main/build';
 
 const ROOT = resolve(__dirname, '../..');
 const binary = (electronBinaryPath as (root: string) => string | undefined)(ROOT);
-const SKIP_REASON = 'skipped: the Electron binary is not installed (node_modules/electron/dist is missing; it needs npm install with internet access)';
+const SKIP_REASON = 'skipped: the Electron binary is not installed (node_modules/electron/dist is missing; fetch it with node node_modules/electron/install.js on a machine with internet access)';
 
 if (!binary) console.warn(`test/e2e/electron.test.ts ${SKIP_REASON}`);
 
