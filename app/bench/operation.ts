@@ -2,13 +2,17 @@
  * Runs one profile operation: fills its templates and sends them in order.
  * The reply of a query operation is its last command's reply.
  *
- * Error checking (profile checkErrors): settings are written without waiting,
- * and the error queue is read once before the next query, or when a control
- * method calls flush() at its end — so a rejected setting still surfaces as
- * ScpiInstrumentError naming the commands since the last check, before any
- * measurement is taken with it, at one round trip per batch instead of one
- * per command (each reply costs the link's latency).
+ * Settings are collected and go out at the next flush() (a control method
+ * calls it at its end) or query, as one program message — units joined by ';',
+ * each header rooted with ':' so none is read relative to the one before
+ * (SCPI-1999 Vol 1 §6.2, recalled from memory) — with, under profile
+ * checkErrors, the first error-queue read as its last unit. A rejected
+ * setting surfaces as ScpiInstrumentError naming the commands of the batch,
+ * before any measurement is taken with it, at one write and one round trip
+ * per batch (each reply costs the link's latency, each write a turn).
  */
+import { parseErrorEntry } from '../scpi/error-entry';
+import { ScpiInstrumentError } from '../scpi/errors';
 import type { ResponseUnit } from '../scpi/reply-framer';
 import type { ScpiSession } from '../scpi/session';
 import type { Profile } from './profile';
@@ -16,7 +20,8 @@ import { ProfileError } from './errors';
 import { fillTemplate } from './template';
 
 export class OperationRunner {
-  private unchecked: string[] = [];
+  /** Settings collected since the last flush, in order. */
+  private unsent: string[] = [];
 
   constructor(
     private readonly session: ScpiSession,
@@ -33,21 +38,23 @@ export class OperationRunner {
     return templates.map((template) => fillTemplate(template, values));
   }
 
-  /** A setting: sends every command; the error check follows at the next flush or query. */
+  /** A setting: its commands go out, with the error check, at the next flush or query. */
   async set(name: string, values: Record<string, number> = {}): Promise<void> {
-    const commands = this.commands(name, values);
-    for (const command of commands) {
-      await this.session.write(command);
-      if (this.profile.checkErrors) this.unchecked.push(command);
-    }
+    this.unsent.push(...this.commands(name, values));
   }
 
-  /** Reads the error queue if settings were sent since the last check; throws the first error. */
+  /** Sends the collected settings as one message and, under checkErrors, reads the error queue in the same exchange; throws the first error. */
   async flush(): Promise<void> {
-    if (this.unchecked.length === 0) return;
-    const commands = this.unchecked.join('; ');
-    this.unchecked = [];
-    await this.session.throwIfErrors(commands);
+    if (this.unsent.length === 0) return;
+    const commands = this.unsent;
+    this.unsent = [];
+    const message = commands.map(rooted).join(';');
+    if (!this.profile.checkErrors) return this.session.write(message);
+    const reply = await this.session.query(`${message};${ERROR_QUERY}`);
+    const first = parseErrorEntry(reply, ERROR_QUERY);
+    if (first.code === 0) return;
+    await this.session.drainErrors().catch(() => undefined); // the rest of the queue belongs to the same batch
+    throw new ScpiInstrumentError(first.code, first.message, commands.join('; '), this.session.link);
   }
 
   /** A query with a text reply. */
@@ -78,4 +85,12 @@ export class OperationRunner {
   describe(name: string, values: Record<string, number> = {}): string {
     return this.commands(name, values).join('; ');
   }
+}
+
+const ERROR_QUERY = ':SYSTem:ERRor?';
+
+/** A command whose first header starts at the root: ':' added unless it has one or is a common (*) command. */
+function rooted(command: string): string {
+  const trimmed = command.trimStart();
+  return trimmed.startsWith(':') || trimmed.startsWith('*') ? trimmed : `:${trimmed}`;
 }

@@ -10,6 +10,7 @@ import type { BenchModel } from './bench-model';
 import { booleanParam, formatNr3, numberParam, stringParam } from './parameters';
 import { SimCommandError } from './scpi-errors';
 import { SimInstrument, SIMULATED_MANUFACTURER } from './sim-instrument';
+import { sliceBounds } from './slices';
 import { SOFTWARE_VERSION } from '../service/version';
 
 /** −3 dB bandwidth of the AC converter (a plausible bench-meter figure, invented). */
@@ -86,11 +87,7 @@ export class SimMeter extends SimInstrument {
     // Integrated as the aperture runs, slice by slice once each slice is past (as an integrating
     // converter does): the reply then follows the aperture's end by one slice's computation, not by
     // the whole simulation, and a generator change during the aperture enters the slices after it.
-    // The last slice is short, so little computation is left once the aperture ends.
-    const bounds = [0];
-    for (let at = SAMPLES_PER_SLICE; at < count - FINAL_SLICE_SAMPLES; at += SAMPLES_PER_SLICE) bounds.push(at);
-    if (count > FINAL_SLICE_SAMPLES) bounds.push(count - FINAL_SLICE_SAMPLES);
-    bounds.push(count);
+    const bounds = sliceBounds(count, SAMPLES_PER_SLICE, FINAL_SLICE_SAMPLES);
     let sum = 0;
     let sumSquares = 0;
     for (let k = 0; k + 1 < bounds.length; k++) {

@@ -13,12 +13,15 @@ import { booleanParam, expectParamCount, formatNr3, keywordParam, numberParam } 
 import { keywordIs } from './program-message';
 import { SimCommandError } from './scpi-errors';
 import { SimInstrument, SIMULATED_MANUFACTURER } from './sim-instrument';
+import { sliceBounds } from './slices';
 import { SOFTWARE_VERSION } from '../service/version';
 
 export const SIM_SCOPE_DIVISIONS = 10;
 /** Codes for ±5 vertical divisions; the 16-bit converter clips beyond ±32767. */
 const CODES_PER_FIVE_DIVISIONS = 32000;
 const CODE_LIMIT = 32767;
+const SAMPLES_PER_SLICE = 512;
+const LAST_SLICE_SAMPLES = 64;
 
 interface Capture {
   intervalS: number;
@@ -135,16 +138,29 @@ export class SimScope extends SimInstrument {
     const points = this.points;
     const voltsPerCode: [number, number] = [(5 * this.voltsPerDiv[0]) / CODES_PER_FIVE_DIVISIONS, (5 * this.voltsPerDiv[1]) / CODES_PER_FIVE_DIVISIONS];
     this.capture = undefined;
-    this.acquisition = this.clock.sleepS(recordS).then(() => {
-      const channels = ([1, 2] as const).map((channel) => {
-        const samples = this.model.sample(CHANNEL_NODE[channel], startS, intervalS, points);
+    const frequencyHz = this.model.generatorOutput.frequencyHz;
+    this.acquisition = this.record(startS, intervalS, points, voltsPerCode).then((channels) => {
+      this.capture = { intervalS, channels, voltsPerCode, frequencyHz };
+    });
+  }
+
+  /** Both channels, sampled slice by slice once each slice's time has passed; done when the record's time is over. */
+  private async record(startS: number, intervalS: number, points: number, voltsPerCode: [number, number]): Promise<[Float64Array, Float64Array]> {
+    const channels: [Float64Array, Float64Array] = [new Float64Array(points), new Float64Array(points)];
+    const bounds = sliceBounds(points, SAMPLES_PER_SLICE, LAST_SLICE_SAMPLES);
+    for (let k = 0; k + 1 < bounds.length; k++) {
+      const first = bounds[k];
+      const next = bounds[k + 1];
+      await this.clock.sleepS(startS + next * intervalS - this.clock.nowS());
+      for (const channel of [1, 2] as const) {
+        const samples = this.model.sample(CHANNEL_NODE[channel], startS + first * intervalS, intervalS, next - first);
         if (!this.channelOn[channel - 1]) samples.fill(0);
         const limitV = CODE_LIMIT * voltsPerCode[channel - 1];
         for (let i = 0; i < samples.length; i++) samples[i] = Math.max(-limitV, Math.min(limitV, samples[i]));
-        return samples;
-      }) as [Float64Array, Float64Array];
-      this.capture = { intervalS, channels, voltsPerCode, frequencyHz: this.model.generatorOutput.frequencyHz };
-    });
+        channels[channel - 1].set(samples, first);
+      }
+    }
+    return channels;
   }
 
   private requireCapture(): Capture {

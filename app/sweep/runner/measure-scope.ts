@@ -33,6 +33,8 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
   /** Per channel, how far the scale is widened beyond theory's expectation; kept for the rest of the sweep. */
   const boost = { 1: 1, 2: 1 };
   let crossChecked = false;
+  /** The generator's latest move to a step, until it has acknowledged the setting. */
+  let moving: Promise<void> | undefined;
 
   const setScale = async (scope: ScopeControl, wanted: { 1: number; 2: number }) => {
     if (!channelsOn) {
@@ -80,7 +82,7 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
       channelsOn = false;
     },
 
-    apply: (instruments, setting) => stimulus.apply(instruments, setting, 'sine'),
+    apply: (instruments, setting) => (moving = stimulus.apply(instruments, setting, 'sine')),
 
     async acquire(instruments: SweepInstruments, setting: StepSetting) {
       const scope = instruments.scope!;
@@ -112,6 +114,9 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
             })().catch(() => undefined)
           : undefined;
         try {
+          // The fits keep the event loop busy for a while: let the generator's acknowledgement of the next
+          // stimulus be taken first, since settling is counted from it.
+          await moving?.catch(() => undefined);
           const result = reduceRecords(splitRecord(record, setting.averages), setting);
           return crossChecking ? { ...result, ...(await crossChecking) } : result;
         } finally {

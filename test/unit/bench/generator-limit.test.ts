@@ -20,9 +20,14 @@ async function fakeGenerator(maxStimulusVpp: number): Promise<{ control: Generat
     while ((at = pending.indexOf('\n')) >= 0) {
       const line = pending.slice(0, at);
       pending = pending.slice(at + 1);
-      received.push(line);
-      const reply = line === '*IDN?' ? 'Test,Fake generator,1,1' : line === 'SYSTem:ERRor?' ? '0,"No error"' : line.endsWith('?') ? '+1.0E+03' : undefined;
-      if (reply !== undefined) void b.write(new TextEncoder().encode(`${reply}\n`));
+      // A program message may hold several units (';'), headers rooted with ':' (IEEE 488.2 §7, SCPI-1999 §6.2,
+      // recalled from memory); one response message answers its queries in order.
+      const units = line.split(';').map((unit) => unit.replace(/^:/, ''));
+      received.push(...units);
+      const replies = units
+        .filter((unit) => unit.split(' ')[0].endsWith('?'))
+        .map((unit) => (unit === '*IDN?' ? 'Test,Fake generator,1,1' : unit === 'SYSTem:ERRor?' ? '0,"No error"' : '+1.0E+03'));
+      if (replies.length > 0) void b.write(new TextEncoder().encode(`${replies.join(';')}\n`));
     }
   });
   const opened = await openInstrument('memory', 'generator', findProfile('scpi-generator', 'generator'), { maxStimulusVpp, transport: a });
