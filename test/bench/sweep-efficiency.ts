@@ -57,8 +57,10 @@ async function main(): Promise<void> {
       { name: 'scope, 10 Hz–100 kHz, 3 averages', request: { from: 10, to: 100e3, measurement: 'scope' as const, averages: 3 } },
       { name: 'meter, 10 Hz–100 kHz', request: { from: 10, to: 100e3, measurement: 'meter' as const, averages: 1 } },
     ];
-    if (process.argv.includes('--trace')) {
-      const t0 = performance.now();
+    const tracing = process.argv.includes('--trace');
+    const traceStart = performance.now();
+    if (tracing) {
+      const t0 = traceStart;
       service.on('traffic', (t) => process.stderr.write(`${(performance.now() - t0).toFixed(1).padStart(9)} ${t.role.padEnd(9)} ${t.direction.padEnd(8)} ${t.text.slice(0, 50)}\n`));
       service.on('point', (p) => process.stderr.write(`${(performance.now() - t0).toFixed(1).padStart(9)} POINT ${p.index}\n`));
     }
@@ -71,6 +73,7 @@ async function main(): Promise<void> {
       };
       const plan = await service.planSweep(request);
       const started = performance.now();
+      if (tracing) process.stderr.write(`${(started - traceStart).toFixed(1).padStart(9)} START ${c.name}\n`);
       const run = await service.startRun(request);
       await service.waitForRun(run.id);
       const wallS = (performance.now() - started) / 1000;
