@@ -60,25 +60,29 @@ export class OperationRunner {
   /** A query with a text reply. */
   async queryText(name: string, values: Record<string, number> = {}, timeoutS?: number): Promise<string> {
     await this.flush();
-    const commands = this.commands(name, values);
-    for (const command of commands.slice(0, -1)) await this.session.write(command);
-    return this.session.query(commands[commands.length - 1], { timeoutS: timeoutS ?? this.profile.timeoutS });
+    return this.session.query(this.queryMessage(name, values), { timeoutS: timeoutS ?? this.profile.timeoutS });
   }
 
   /** A query with a block reply. */
   async queryBlock(name: string, values: Record<string, number> = {}, timeoutS?: number): Promise<Uint8Array> {
     await this.flush();
-    const commands = this.commands(name, values);
-    for (const command of commands.slice(0, -1)) await this.session.write(command);
-    return this.session.queryBlock(commands[commands.length - 1], { timeoutS: timeoutS ?? this.profile.timeoutS });
+    return this.session.queryBlock(this.queryMessage(name, values), { timeoutS: timeoutS ?? this.profile.timeoutS });
   }
 
   /** A query whose one response message holds several units (text or block), e.g. `A?;B?`. */
   async queryUnits(name: string, values: Record<string, number> = {}, timeoutS?: number): Promise<ResponseUnit[]> {
     await this.flush();
+    return this.session.queryUnits(this.queryMessage(name, values), { timeoutS: timeoutS ?? this.profile.timeoutS });
+  }
+
+  /**
+   * A query operation's commands as one program message (e.g. `:INITiate;*OPC?`): one write, so the
+   * instrument gets the query together with the commands before it rather than a write turn later.
+   * A single command goes out as written.
+   */
+  private queryMessage(name: string, values: Record<string, number>): string {
     const commands = this.commands(name, values);
-    for (const command of commands.slice(0, -1)) await this.session.write(command);
-    return this.session.queryUnits(commands[commands.length - 1], { timeoutS: timeoutS ?? this.profile.timeoutS });
+    return commands.length === 1 ? commands[0] : commands.map(rooted).join(';');
   }
 
   /** The command text an operation would send (for messages). */

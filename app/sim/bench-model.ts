@@ -44,8 +44,10 @@ const SLEW_TABLE_POINTS = 1024;
 export type BenchNode = 'input' | 'output';
 
 export class BenchModel {
-  private current: SteadyState;
+  private settled: SteadyState;
   private previous: SteadyState;
+  /** A setting taken but whose steady state is not computed yet (see setGenerator). */
+  private pendingOutput: GeneratorOutput | undefined;
   private changedAtS = -Infinity;
   private readonly random: SeededRandom;
 
@@ -56,23 +58,41 @@ export class BenchModel {
     seed: number,
   ) {
     this.random = new SeededRandom(seed);
-    this.current = this.steadyState({ on: false, shape: 'sine', frequencyHz: 1000, emfAmplitudeVpk: 0, emfOffsetV: 0 });
-    this.previous = this.current;
+    this.settled = this.steadyState({ on: false, shape: 'sine', frequencyHz: 1000, emfAmplitudeVpk: 0, emfOffsetV: 0 });
+    this.previous = this.settled;
   }
 
   get generatorOutput(): GeneratorOutput {
-    return this.current.output;
+    return this.pendingOutput ?? this.settled.output;
+  }
+
+  /** The steady state of the present setting, computed now if the setting is new. */
+  private current(): SteadyState {
+    if (this.pendingOutput) {
+      this.settled = this.steadyState(this.pendingOutput);
+      this.pendingOutput = undefined;
+    }
+    return this.settled;
   }
 
   setNoise(noiseVrms: number): void {
     this.noiseVrms = noiseVrms;
   }
 
-  /** The generator changed: start a settling transient from the present state. */
+  /**
+   * The generator changed: start a settling transient from the present state.
+   * The new steady state (AC solves, slew table) is computed on the next turn
+   * of the event loop or when first sampled, whichever comes first, so the
+   * instrument's reply is not held up by it; the change itself is dated now.
+   * Several settings of one program message are one change from the state
+   * before the message.
+   */
   setGenerator(output: GeneratorOutput): void {
-    const next = this.steadyState(output);
-    this.previous = this.current;
-    this.current = next;
+    if (!this.pendingOutput) {
+      this.previous = this.current();
+      setImmediate(() => this.current());
+    }
+    this.pendingOutput = output;
     this.changedAtS = this.clock.nowS();
   }
 
@@ -98,7 +118,7 @@ export class BenchModel {
 
   /** Noise-free value of a node at bench time `timeS`. */
   valueAt(node: BenchNode, timeS: number): number {
-    const now = this.steadyValue(this.current, node, timeS);
+    const now = this.steadyValue(this.current(), node, timeS);
     let value = now;
     if (node === 'output' && timeS > this.changedAtS) {
       const decay = Math.exp(-(timeS - this.changedAtS) / this.circuit.timeConstantS);

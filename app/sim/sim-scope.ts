@@ -42,7 +42,11 @@ export class SimScope extends SimInstrument {
   private littleEndian = false;
   private source: 1 | 2 = 1;
   private capture: Capture | undefined;
+  /** Samples of the latest record, computed slice by slice; done a little after the record's time is over. */
   private acquisition: Promise<void> | undefined;
+  /** The latest record's time is over (what *OPC? waits for). */
+  private recordOver: Promise<void> | undefined;
+  private recordIsOver = false;
   /** Fault injection: replace measurement replies by SCPI overrange / not-a-number. */
   forcedReading: 'overrange' | 'nan' | undefined;
 
@@ -83,16 +87,16 @@ export class SimScope extends SimInstrument {
       if (!match) throw new SimCommandError('illegalParameterValue', params[0]);
       this.source = Number(match[1]) as 1 | 2;
     });
-    this.define('WAVeform:PREamble?', () => {
-      const capture = this.requireCapture();
+    this.define('WAVeform:PREamble?', async () => {
+      const capture = await this.completedCapture();
       const voltsPerCode = this.format === 'int16' ? capture.voltsPerCode[this.source - 1] : 1;
       // points, sample interval, x origin, volts per code, code offset, volts offset
       return [String(capture.channels[0].length), formatNr3(capture.intervalS), formatNr3(0), formatNr3(voltsPerCode), '0', formatNr3(0)].join(',');
     });
-    this.define('WAVeform:DATA?', () => encodeBlock(this.encode(this.requireCapture(), this.source)));
-    this.define('MEASure:VPP?', ({ params }) => {
+    this.define('WAVeform:DATA?', async () => encodeBlock(this.encode(await this.completedCapture(), this.source)));
+    this.define('MEASure:VPP?', async ({ params }) => {
       const channel = channelParam(params);
-      const capture = this.requireCapture();
+      const capture = await this.completedCapture();
       if (this.forcedReading) return this.forced();
       const samples = capture.channels[channel - 1];
       let min = Infinity;
@@ -105,9 +109,9 @@ export class SimScope extends SimInstrument {
       if (max >= limitV || min <= -limitV) return formatNr3(SCPI_INFINITY);
       return formatNr3(max - min);
     });
-    this.define('MEASure:PHASe?', ({ params }) => {
+    this.define('MEASure:PHASe?', async ({ params }) => {
       if (params.length !== 2) throw new SimCommandError('missingParameter', 'CHANnel1,CHANnel2');
-      const capture = this.requireCapture();
+      const capture = await this.completedCapture();
       if (this.forcedReading) return this.forced();
       const [a, b] = params.map((p) => channelParam([p]));
       const phaseA = phaseAtRad(capture.channels[a - 1], capture.intervalS, capture.frequencyHz);
@@ -125,10 +129,20 @@ export class SimScope extends SimInstrument {
     this.format = 'int16';
     this.littleEndian = false;
     this.capture = undefined;
+    this.recordOver = undefined;
+    this.recordIsOver = false;
   }
 
+  // The acquisition is complete when its time is over; the last slice's samples are computed while the
+  // reply travels (as a scope processes its record), and the data queries wait for them.
   protected override async pendingOperations(): Promise<void> {
-    await this.acquisition;
+    await this.recordOver;
+  }
+
+  /** The completed record, once its samples are all computed. */
+  private async completedCapture(): Promise<Capture> {
+    if (this.recordIsOver) await this.acquisition;
+    return this.requireCapture();
   }
 
   private startAcquisition(): void {
@@ -138,20 +152,37 @@ export class SimScope extends SimInstrument {
     const points = this.points;
     const voltsPerCode: [number, number] = [(5 * this.voltsPerDiv[0]) / CODES_PER_FIVE_DIVISIONS, (5 * this.voltsPerDiv[1]) / CODES_PER_FIVE_DIVISIONS];
     this.capture = undefined;
+    this.recordIsOver = false;
+    let over = () => {};
+    const recordOver = new Promise<void>((resolve) => (over = resolve)).then(() => {
+      if (this.recordOver === recordOver) this.recordIsOver = true;
+    });
+    this.recordOver = recordOver;
     const frequencyHz = this.model.generatorOutput.frequencyHz;
-    this.acquisition = this.record(startS, intervalS, points, voltsPerCode).then((channels) => {
+    this.acquisition = this.record(startS, intervalS, points, voltsPerCode, over).then((channels) => {
       this.capture = { intervalS, channels, voltsPerCode, frequencyHz };
     });
   }
 
-  /** Both channels, sampled slice by slice once each slice's time has passed; done when the record's time is over. */
-  private async record(startS: number, intervalS: number, points: number, voltsPerCode: [number, number]): Promise<[Float64Array, Float64Array]> {
+  /**
+   * Both channels, sampled slice by slice once each slice's time has passed. `over` is called as soon as
+   * the record's time is over, and the samples still to compute wait one turn of the event loop, so a
+   * waiting *OPC? has its reply under way first.
+   */
+  private async record(startS: number, intervalS: number, points: number, voltsPerCode: [number, number], over: () => void): Promise<[Float64Array, Float64Array]> {
     const channels: [Float64Array, Float64Array] = [new Float64Array(points), new Float64Array(points)];
     const bounds = sliceBounds(points, SAMPLES_PER_SLICE, LAST_SLICE_SAMPLES);
+    const endS = startS + points * intervalS;
+    let isOver = false;
     for (let k = 0; k + 1 < bounds.length; k++) {
       const first = bounds[k];
       const next = bounds[k + 1];
       await this.clock.sleepS(startS + next * intervalS - this.clock.nowS());
+      if (!isOver && (next === points || this.clock.nowS() >= endS)) {
+        isOver = true;
+        over();
+        await new Promise<void>((resolve) => setImmediate(resolve));
+      }
       for (const channel of [1, 2] as const) {
         const samples = this.model.sample(CHANNEL_NODE[channel], startS + first * intervalS, intervalS, next - first);
         if (!this.channelOn[channel - 1]) samples.fill(0);

@@ -59,10 +59,13 @@ async function main(): Promise<void> {
     ];
     const tracing = process.argv.includes('--trace');
     const traceStart = performance.now();
+    // Trace lines are kept in memory and written after each case, so writing them does not delay the sweep.
+    const traceLines: string[] = [];
+    const trace = (text: string) => traceLines.push(`${(performance.now() - traceStart).toFixed(1).padStart(9)} ${text}\n`);
+    const flushTrace = () => process.stderr.write(traceLines.splice(0).join(''));
     if (tracing) {
-      const t0 = traceStart;
-      service.on('traffic', (t) => process.stderr.write(`${(performance.now() - t0).toFixed(1).padStart(9)} ${t.role.padEnd(9)} ${t.direction.padEnd(8)} ${t.text.slice(0, 50)}\n`));
-      service.on('point', (p) => process.stderr.write(`${(performance.now() - t0).toFixed(1).padStart(9)} POINT ${p.index}\n`));
+      service.on('traffic', (t) => trace(`${t.role.padEnd(9)} ${t.direction.padEnd(8)} ${t.text.slice(0, 50)}`));
+      service.on('point', (p) => trace(`POINT ${p.index}`));
     }
     console.log(`sweep efficiency on the virtual bench: link latency ${latencyMs} ms per reply, ${perDecade} points/decade, real time`);
     console.log('case                                   points  physical min   wall time   ratio   overhead/point   2-reply floor');
@@ -73,10 +76,14 @@ async function main(): Promise<void> {
       };
       const plan = await service.planSweep(request);
       const started = performance.now();
-      if (tracing) process.stderr.write(`${(started - traceStart).toFixed(1).padStart(9)} START ${c.name}\n`);
+      if (tracing) trace(`START ${c.name}`);
       const run = await service.startRun(request);
       await service.waitForRun(run.id);
       const wallS = (performance.now() - started) / 1000;
+      if (tracing) {
+        trace(`END ${c.name}`);
+        flushTrace();
+      }
       const ratio = wallS / plan.estimatedDurationS;
       const overheadMs = ((wallS - plan.estimatedDurationS) / plan.steps.length) * 1000;
       const floorRatio = (plan.estimatedDurationS + plan.steps.length * 2 * (latencyMs / 1000)) / plan.estimatedDurationS;

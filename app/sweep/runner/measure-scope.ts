@@ -94,6 +94,10 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
       // generator on while this record is read back.
       await scope.acquire();
       return async (next?: StepSetting) => {
+        // The generator's setting for the next step (started by the runner just before this) goes out first:
+        // its acknowledgement starts that step's settling, so it should not queue behind this record's
+        // read-back in the instruments' process or be taken after decoding it here.
+        if (next) await new Promise<void>((resolve) => setImmediate(resolve));
         const record = await fetchBoth(scope);
         const clipped = record.input.clipped || record.output.clipped;
         if (clipped && widenFor(record)) throw new RemeasureStep('clipped record; scale widened');
