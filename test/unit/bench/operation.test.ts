@@ -1,0 +1,42 @@
+/**
+ * OperationRunner: a query operation's commands go out as one program message,
+ * headers rooted with ':' (SCPI-1999 Vol. 1 §6.2, recalled from memory), so the
+ * instrument gets the query with the commands before it in one write.
+ */
+import { describe, expect, it } from 'vitest';
+import { OperationRunner } from '../../../app/bench/operation';
+import { findProfile } from '../../../app/bench/profile-store';
+import type { ScpiSession } from '../../../app/scpi/session';
+
+/** Records what the runner sends; answers every query with `reply`. */
+function recordingSession(reply: string): { session: ScpiSession; sent: string[] } {
+  const sent: string[] = [];
+  const session = {
+    link: 'recording',
+    async write(command: string) {
+      sent.push(command);
+    },
+    async query(command: string) {
+      sent.push(command);
+      return reply;
+    },
+  } as unknown as ScpiSession;
+  return { session, sent };
+}
+
+describe('OperationRunner query operations', () => {
+  it('sends a several-command query operation as one rooted program message', async () => {
+    const { session, sent } = recordingSession('1');
+    const runner = new OperationRunner(session, findProfile('scpi-scope', 'scope'));
+    expect(await runner.queryText('acquire')).toBe('1');
+    // scpi-scope.json: "acquire": ["INITiate", "*OPC?"] — a common (*) command keeps its header as it is.
+    expect(sent).toEqual([':INITiate;*OPC?']);
+  });
+
+  it('sends a single-command query as written', async () => {
+    const { session, sent } = recordingSession('+1.0E+00');
+    const runner = new OperationRunner(session, findProfile('scpi-scope', 'scope'));
+    await runner.queryText('measureAmplitudeVpp', { channel: 2 });
+    expect(sent).toEqual(['MEASure:VPP? CHANnel2']);
+  });
+});
