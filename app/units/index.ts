@@ -1,3 +1,4 @@
 export * from './engineering';
 export * from './decibels';
 export * from './grid';
+export * from './duration';

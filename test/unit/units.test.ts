@@ -44,3 +44,16 @@ describe('decibels and phase', () => {
     expect(grid[40]).toBeCloseTo(100, 9);
   });
 });
+
+describe('durations', () => {
+  // Expected strings: our own display convention (common practice, no source).
+  it('shows tenths below 10 s, whole seconds, minutes and hours above', async () => {
+    const { formatDuration } = await import('../../app/units');
+    expect(formatDuration(0.44)).toBe('0.4 s');
+    expect(formatDuration(44.6)).toBe('45 s');
+    expect(formatDuration(185)).toBe('3 min 05 s');
+    expect(formatDuration(7_800)).toBe('2 h 10 min');
+    expect(formatDuration(undefined)).toBe('—');
+    expect(formatDuration(-1)).toBe('—');
+  });
+});

@@ -3,7 +3,7 @@ import { optionFlag } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../service/safety';
 import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, checkBenchOptions, connectBench, openService, requestFrom, resolveBuildId } from '../../sweep/cli/sweep-options';
 import { followRun } from '../../sweep/cli/follow-run';
-import { formatDuration } from '../../sweep/cli/progress-bar';
+import { formatDuration } from '../../units';
 import { runDetailText } from '../../sweep/cli/summary-text';
 import { diodeOfRun } from '../../service/run-detail';
 import { formatEngineering } from '../../units';

@@ -1,5 +1,6 @@
 /** A one-line progress bar on stderr, only when stderr is a terminal (pipes and logs stay clean). */
 import type { RunProgress } from '../../service/contract';
+import { formatDuration } from '../../units';
 
 export interface ProgressBar {
   update(progress: RunProgress): void;
@@ -26,9 +27,3 @@ export function terminalProgressBar(stream: NodeJS.WriteStream = process.stderr)
   };
 }
 
-export function formatDuration(seconds: number): string {
-  if (seconds < 60) return `${seconds.toFixed(seconds < 10 ? 1 : 0)} s`;
-  const minutes = Math.floor(seconds / 60);
-  if (minutes < 60) return `${minutes} min ${Math.round(seconds - minutes * 60)} s`;
-  return `${Math.floor(minutes / 60)} h ${minutes % 60} min`;
-}
