@@ -101,7 +101,7 @@ export function formatCommandHelp(spec: CommandSpec): string {
     lines.push('Options:');
     const rows = spec.options.map((o) => {
       const left = `  --${o.name}${o.kind === 'flag' ? '' : ' ' + (o.placeholder ?? o.kind.toUpperCase())}`;
-      const extra = o.defaultValue !== undefined && o.kind !== 'flag' ? ` (default ${o.defaultValue})` : '';
+      const extra = o.defaultValue !== undefined && o.defaultValue !== '' && o.kind !== 'flag' ? ` (default ${o.defaultValue})` : '';
       return [left, o.description + extra] as const;
     });
     const width = Math.max(...rows.map(([left]) => left.length)) + 2;
