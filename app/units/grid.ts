@@ -7,11 +7,11 @@ export function logGrid(from: number, to: number, perDecade: number): Float64Arr
   if (!(to >= from)) throw new ValidationError('grid', `end (${to}) is below start (${from})`);
   if (!(perDecade >= 1)) throw new ValidationError('grid', 'points per decade must be at least 1');
   const decades = Math.log10(to / from);
+  // At least two points, so a grid always spans from..to (equal limits give two equal points).
   const count = Math.max(1, Math.round(decades * perDecade)) + 1;
   const grid = new Float64Array(count);
   for (let i = 0; i < count; i++) grid[i] = from * 10 ** ((decades * i) / (count - 1));
-  grid[count - 1] = to;
-  if (count === 1) grid[0] = from;
+  grid[count - 1] = to; // exact end, free of rounding in the power
   return grid;
 }
 
