@@ -47,7 +47,7 @@ export function parseArgs(argv: string[], specs: OptionSpec[]): ParsedArgs {
       positionals.push(...argv.slice(i + 1));
       break;
     }
-    if (!token.startsWith('--') || token === '--') {
+    if (!token.startsWith('--')) {
       positionals.push(token);
       continue;
     }
