@@ -10,11 +10,10 @@ import { UserError, ValidationError } from '../../errors';
 import type { RecordFormat } from '../../service/contract';
 import { Store, resolveDatabasePath } from '../../store';
 import { exportRecordFor } from '../../service/export';
+import { RECORD_FORMATS } from '../../record';
 import { runDetail } from '../../service/run-detail';
 import { compareDetails } from '../../service/compare';
 import { optionFlag, optionString, type CommandSpec, type ParsedArgs } from '../args';
-
-const FORMATS: RecordFormat[] = ['pdf', 'html', 'csv', 'json'];
 
 /** A file that already exists and is not ours to replace. */
 export class ExportTargetExistsError extends UserError {}
@@ -33,7 +32,7 @@ function runIdsOf(parsed: ParsedArgs): number[] {
 }
 
 function formatOf(parsed: ParsedArgs): RecordFormat {
-  const chosen = FORMATS.filter((f) => optionFlag(parsed, f));
+  const chosen = RECORD_FORMATS.filter((f) => optionFlag(parsed, f));
   if (chosen.length === 1) return chosen[0];
   throw new ValidationError(
     chosen.length === 0 ? 'format' : chosen.map((f) => `--${f}`).join(' '),
