@@ -2,6 +2,7 @@
  * Pass-band gain and the −3 dB corners relative to it.
  */
 import { dbFromRatio } from '../units';
+import { medianOfSorted } from '../circuit/percentile';
 import { ascendingOrder, crossingsLogF } from './crossing';
 
 /** 20·log10(1/√2) ≈ −3.0103 dB: the half-power level. */
@@ -30,9 +31,7 @@ export function passbandGainDb(frequencyHz: ArrayLike<number>, gainDb: ArrayLike
 }
 
 function median(values: number[]): number {
-  const sorted = [...values].sort((a, b) => a - b);
-  const middle = sorted.length >> 1;
-  return sorted.length % 2 === 1 ? sorted[middle] : (sorted[middle - 1] + sorted[middle]) / 2;
+  return medianOfSorted([...values].sort((a, b) => a - b));
 }
 
 /** Frequencies where the gain crosses pass band − 3.01 dB, interpolated in log f. */

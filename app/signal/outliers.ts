@@ -5,6 +5,7 @@
  * memory). Median and MAD are not pulled by the outliers they are meant to find.
  */
 import { ValidationError } from '../errors';
+import { medianOfSorted } from '../circuit/percentile';
 
 export const MODIFIED_Z_LIMIT = 3.5;
 /** 0.6745 ≈ Φ⁻¹(0.75): makes MAD estimate σ for normal data. */
@@ -19,19 +20,14 @@ export interface RobustAverage {
   rejectedIndices: number[];
 }
 
-function median(sorted: Float64Array): number {
-  const mid = sorted.length >> 1;
-  return sorted.length % 2 === 1 ? sorted[mid] : 0.5 * (sorted[mid - 1] + sorted[mid]);
-}
-
 export function averageWithOutlierRejection(values: ArrayLike<number>, limit: number = MODIFIED_Z_LIMIT): RobustAverage {
   const count = values?.length ?? 0;
   if (count === 0) throw new ValidationError('values', 'is empty', 'Take at least one reading.');
   for (let i = 0; i < count; i++) if (!Number.isFinite(values[i])) throw new ValidationError(`values[${i}]`, `${values[i]} is not a finite reading`);
   const sorted = Float64Array.from(values).sort();
-  const center = median(sorted);
+  const center = medianOfSorted(sorted);
   const deviations = Float64Array.from(values, (v) => Math.abs(v - center)).sort();
-  const mad = median(deviations);
+  const mad = medianOfSorted(deviations);
   const rejectedIndices: number[] = [];
   let sum = 0;
   let kept = 0;
