@@ -3,11 +3,11 @@
  * It owns the store, the connected instruments, the virtual bench and the
  * running sweeps, and pushes ServiceEvents to whoever listens.
  */
-import { SerialPort } from 'serialport';
 import { UserError, ValidationError } from '../errors';
 import { Store, identityKey, type StoredRun } from '../store';
 import { openInstrument, builtInProfiles, loadProfiles, realClock, type BenchClock, type OpenedInstrument } from '../bench';
 import { TrafficLog } from '../scpi/traffic-log';
+import { listSerialPorts } from '../scpi/list-ports';
 import { type Design, parseDesign, solveAc, TEMPLATES, makeDesignFromTemplate } from '../circuit';
 import { planSweep, planStepsAt, refinementFrequencies, toPlanSummary, type PlanInput, type PlanInstruments } from '../sweep/plan';
 import { RunControl } from '../sweep/runner/control';
@@ -130,8 +130,7 @@ export class RolloffService implements RolloffApi {
   // ── Bench ──────────────────────────────────────────────────────────────
 
   async listPorts(): Promise<PortInfo[]> {
-    const ports = await SerialPort.list();
-    return ports.map((p) => ({ path: p.path, manufacturer: p.manufacturer, serialNumber: p.serialNumber, vendorId: p.vendorId, productId: p.productId }));
+    return listSerialPorts();
   }
 
   async listProfiles(): Promise<ProfileSummary[]> {
