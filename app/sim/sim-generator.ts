@@ -5,7 +5,7 @@
  * the circuit.
  */
 import type { BenchClock } from '../bench/clock';
-import { openCircuitFactor, vppFromVrms } from '../bench/stimulus';
+import { openCircuitFactor, vppFromVrms, vrmsFromVpp } from '../bench/stimulus';
 import type { LoadSetting } from '../bench/roles';
 import type { BenchModel } from './bench-model';
 import { formatNr3, booleanParam, keywordParam, numberParam } from './parameters';
@@ -55,7 +55,7 @@ export class SimGenerator extends SimInstrument {
       this.checkLevels(amplitudeVpp, this.settings.offsetV, this.settings.load);
       this.update({ amplitudeVpp });
     });
-    this.define('[SOURce]:VOLTage[:LEVel][:IMMediate][:AMPLitude]?', () => formatNr3(this.settings.unit === 'VRMS' ? this.settings.amplitudeVpp / (2 * Math.SQRT2) : this.settings.amplitudeVpp));
+    this.define('[SOURce]:VOLTage[:LEVel][:IMMediate][:AMPLitude]?', () => formatNr3(this.settings.unit === 'VRMS' ? vrmsFromVpp(this.settings.amplitudeVpp) : this.settings.amplitudeVpp));
     this.define('[SOURce]:VOLTage[:LEVel][:IMMediate]:OFFSet', ({ params }) => {
       const offsetV = numberParam(params, -Number.MAX_VALUE, Number.MAX_VALUE);
       this.checkLevels(this.settings.shape === 'dc' ? 0 : this.settings.amplitudeVpp, offsetV, this.settings.load);
