@@ -82,10 +82,7 @@ export class SimScope extends SimInstrument {
       this.startAcquisition();
     });
     this.define('WAVeform:SOURce', ({ params }) => {
-      expectParamCount(params, 1);
-      const match = /^CHAN(?:NEL)?([12])$/i.exec(params[0]);
-      if (!match) throw new SimCommandError('illegalParameterValue', params[0]);
-      this.source = Number(match[1]) as 1 | 2;
+      this.source = channelParam(params);
     });
     this.define('WAVeform:PREamble?', async () => {
       const capture = await this.completedCapture();
