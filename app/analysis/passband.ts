@@ -1,12 +1,12 @@
 /**
  * Pass-band gain and the −3 dB corners relative to it.
  */
-import { dbFromRatio } from '../units';
+import { HALF_POWER_DB } from '../units';
 import { medianOfSorted } from '../circuit/percentile';
 import { ascendingOrder, crossingsLogF } from './crossing';
 
-/** 20·log10(1/√2) ≈ −3.0103 dB: the half-power level. */
-export const HALF_POWER_DB = dbFromRatio(Math.SQRT1_2);
+// The theory summary (app/circuit) uses the same level, so both read −3 dB alike.
+export { HALF_POWER_DB };
 
 /**
  * Pass-band gain, defined as the theory engine's summary defines it (app/circuit

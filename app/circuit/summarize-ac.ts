@@ -2,7 +2,7 @@
  * Figures of an AC response: pass-band gain, −3 dB points, roll-off, peak and
  * the gain-limit point of the output op-amp.
  */
-import { dbFromRatio } from '../units';
+import { dbFromRatio, HALF_POWER_DB } from '../units';
 import { AcSolver } from './ac-solver';
 import type { AcResponse } from './solve-ac';
 import { outputOpAmpIndex } from './output-opamp';
@@ -28,9 +28,6 @@ export interface AcSummary {
   peakGainDb: number;
   peakFrequencyHz: number;
 }
-
-/** −3 dB in the half-power sense: 20·log10(1/√2). */
-const HALF_POWER_DB = dbFromRatio(Math.SQRT1_2);
 
 /**
  * `design` must be the one `response` was computed for: the −3 dB points and

@@ -5,6 +5,9 @@ export function dbFromRatio(ratio: number): number {
   return 20 * Math.log10(Math.abs(ratio));
 }
 
+/** 20·log10(1/√2) ≈ −3.0103 dB: the half-power level that defines a −3 dB point. */
+export const HALF_POWER_DB = dbFromRatio(Math.SQRT1_2);
+
 /** dB → voltage ratio. */
 export function ratioFromDb(gainDb: number): number {
   return 10 ** (gainDb / 20);
