@@ -19,7 +19,7 @@ export const SCPI_INFINITY = 9.9e37;
 export const SCPI_NOT_A_NUMBER = 9.91e37;
 
 /** NR1 (integer), NR2 (fixed point), NR3 (exponent) per IEEE 488.2 §8.7.2–8.7.4 (recalled from memory). */
-const DECIMAL_NUMERIC = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+export const DECIMAL_NUMERIC = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
 
 /** Parses one numeric reply into a Reading; `command` names the query in errors. */
 export function parseReading(text: string, command: string): Reading {

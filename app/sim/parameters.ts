@@ -1,8 +1,7 @@
 /** Parameter parsing for the simulated instruments' command handlers. */
+import { DECIMAL_NUMERIC } from '../scpi/reading';
 import { keywordIs } from './program-message';
 import { SimCommandError } from './scpi-errors';
-
-const DECIMAL = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
 
 export function expectParamCount(params: string[], count: number): void {
   if (params.length < count) throw new SimCommandError('missingParameter');
@@ -15,7 +14,7 @@ export function numberParam(params: string[], min: number, max: number): number 
   const text = params[0];
   if (keywordIs(text, 'MINimum')) return min;
   if (keywordIs(text, 'MAXimum')) return max;
-  if (!DECIMAL.test(text)) throw new SimCommandError('dataTypeError', text);
+  if (!DECIMAL_NUMERIC.test(text)) throw new SimCommandError('dataTypeError', text);
   const value = Number(text);
   if (!(value >= min && value <= max)) throw new SimCommandError('dataOutOfRange', text);
   return value;
