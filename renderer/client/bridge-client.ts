@@ -5,6 +5,7 @@
  */
 import type { RolloffClient, ServiceEventName } from '../../app/service/contract';
 import { errorFromWire, type WireError } from './remote-error';
+import { contractProxy } from './contract-proxy';
 
 /** What main/preload.ts exposes on window.rolloff. */
 export interface PreloadBridge {
@@ -18,11 +19,5 @@ export function createBridgeClient(bridge: PreloadBridge): RolloffClient {
     if (!reply.ok) throw errorFromWire(reply.error, `${method} failed.`);
     return reply.result;
   };
-  return new Proxy({} as RolloffClient, {
-    get(_target, name) {
-      if (name === 'on') return (event: ServiceEventName, listener: (payload: unknown) => void) => bridge.on(event, listener);
-      if (typeof name !== 'string' || name === 'then') return undefined;
-      return (...args: unknown[]) => call(name, args);
-    },
-  });
+  return contractProxy(call, (event, listener) => bridge.on(event, listener));
 }

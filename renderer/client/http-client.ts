@@ -1,12 +1,12 @@
 /**
  * The client in a plain browser: contract calls as POST /api/METHOD with a
  * JSON argument list, events over a WebSocket that reconnects after a drop.
- * A Proxy turns every method name into a call, so this file never repeats
- * the contract's method list (the host validates the name).
+ * contract-proxy.ts turns every method name into a call.
  */
 import type { RolloffClient, ServiceEventName, ServiceEvents } from '../../app/service/contract';
 import { errorFromWire, type WireError } from './remote-error';
 import { EventHub } from './event-hub';
+import { contractProxy } from './contract-proxy';
 
 /** `onConnection` hears when the event socket drops and comes back (events sent meanwhile are lost: views re-read). */
 export function createHttpClient(base: URL, onConnection?: (connected: boolean) => void): RolloffClient {
@@ -29,13 +29,7 @@ export function createHttpClient(base: URL, onConnection?: (connected: boolean) 
     if (!response.ok) throw errorFromWire(body.error, `The host refused ${method} (HTTP ${response.status}).`);
     return body.result;
   };
-  return new Proxy({} as RolloffClient, {
-    get(_target, name) {
-      if (name === 'on') return hub.on.bind(hub);
-      if (typeof name !== 'string' || name === 'then') return undefined;
-      return (...args: unknown[]) => call(name, args);
-    },
-  });
+  return contractProxy(call, (event, listener) => hub.on(event, listener));
 }
 
 function connectEvents(base: URL, hub: EventHub, retryMs = 500): void {
