@@ -23,9 +23,14 @@ export interface RunAnalysis {
 
 /** The circuit a run measured: the build, or for a through-calibration the through connection of it. */
 export function designForRun(store: Store, run: StoredRun): Design {
-  const build = store.getBuild(run.buildId);
+  return designForBuild(store, run.buildId, run.request.through);
+}
+
+/** The build's circuit (its actual part values), or its through connection when `through` is set. */
+export function designForBuild(store: Store, buildId: number, through: boolean | undefined): Design {
+  const build = store.getBuild(buildId);
   const design = buildDesign(store.getDesign(build.designId), build);
-  return run.request.through ? throughDesign(design) : design;
+  return through ? throughDesign(design) : design;
 }
 
 /** Figures, flags and verdict of a run from its stored points. */

@@ -26,7 +26,7 @@ import type {
 } from './contract';
 import { ServiceEventBus } from './events';
 import { buildDesign, designOf, planTheoryFor } from './theory';
-import { analyzeRun, designForRun, runDetail } from './run-detail';
+import { analyzeRun, designForBuild, designForRun, runDetail } from './run-detail';
 import { compareDetails } from './compare';
 import { SOFTWARE_VERSION } from './version';
 import { startVirtualBenchFor, type VirtualBenchHandle, type VirtualBenchSettings } from './virtual-bench';
@@ -508,10 +508,8 @@ export class RolloffService implements RolloffApi {
   }
 
   private planInput(request: SweepRequest, maxStimulusVpp: number): PlanInput {
-    const build = this.store.getBuild(request.buildId);
-    const design = buildDesign(this.store.getDesign(build.designId), build);
     // A through run measures the stage input: plan its amplitude for that node, not the stage output.
-    return this.planInputFor(request, maxStimulusVpp, request.through ? throughDesign(design) : design);
+    return this.planInputFor(request, maxStimulusVpp, designForBuild(this.store, request.buildId, request.through));
   }
 
   private planInputFor(request: SweepRequest, maxStimulusVpp: number, design: Design): PlanInput {
