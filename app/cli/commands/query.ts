@@ -33,8 +33,8 @@ Quote commands that contain spaces or semicolons:
     const session = await connect(address, { timeoutS });
     try {
       for (const command of commands) {
-        // "FREQ 1k;FREQ?" has a reply too: any unit of the message may be a query.
-        if (!command.split(';').some((unit) => isQuery(unit))) {
+        // "FREQ 1k;FREQ?" has a reply too: isQuery looks at every unit of the message.
+        if (!isQuery(command)) {
           await session.write(command);
           process.stdout.write(`> ${command}\n`);
           continue;
