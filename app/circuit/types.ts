@@ -80,7 +80,3 @@ export interface Design {
 export function isGroundNode(node: string): boolean {
   return node === '0' || node.toLowerCase() === 'gnd';
 }
-
-export function isPassive(part: Part): part is PassivePart {
-  return part.type === 'resistor' || part.type === 'capacitor' || part.type === 'inductor';
-}
