@@ -4,9 +4,9 @@
  */
 import type { BenchClock } from '../../bench/clock';
 import type { Reading } from '../../scpi/reading';
-import { PointFlag } from '../../service/contract';
 import { averageWithOutlierRejection } from '../../signal';
 import { AppliedStimulus, apertureChanged } from './applied-stimulus';
+import { splitReadings } from './reading-flags';
 import type { StepMeasurer, StepResult, StepSetting, SweepInstruments } from './types';
 
 export function dcMeasurer(options: { clock: BenchClock }): StepMeasurer {
@@ -37,11 +37,8 @@ export function dcMeasurer(options: { clock: BenchClock }): StepMeasurer {
   };
 }
 
-export function reduceDcReadings(readings: Reading[], inputV: number): StepResult {
-  const good = readings.filter((r) => r.flag === 'ok').map((r) => r.value);
-  let flags = 0;
-  if (readings.some((r) => r.flag === 'overrange')) flags |= PointFlag.overrange;
-  if (readings.some((r) => r.flag === 'nan')) flags |= PointFlag.notANumber;
+function reduceDcReadings(readings: Reading[], inputV: number): StepResult {
+  const { okValues: good, flags } = splitReadings(readings);
   const meanV = good.length > 0 ? averageWithOutlierRejection(good).mean : NaN;
   return { gainDb: NaN, gainUncertaintyDb: NaN, phaseDeg: NaN, phaseUncertaintyDeg: NaN, outputV: meanV, inputReading: inputV, outputReading: meanV, flags };
 }

@@ -7,10 +7,10 @@
 import type { BenchClock } from '../../bench/clock';
 import type { MeterControl } from '../../bench/roles';
 import type { Reading } from '../../scpi/reading';
-import { PointFlag } from '../../service/contract';
 import { dbFromRatio } from '../../units';
 import { averageWithOutlierRejection } from '../../signal';
 import { AppliedStimulus, apertureChanged } from './applied-stimulus';
+import { splitReadings } from './reading-flags';
 import type { StepMeasurer, StepResult, StepSetting, SweepInstruments } from './types';
 
 /** Through-calibration: gain of the bypassed path per frequency (dB). */
@@ -69,10 +69,7 @@ export function meterMeasurer(options: MeterMeasurerOptions): StepMeasurer {
 
 /** Turns RMS readings into a gain point; overrange/NaN readings flag the point instead of entering the mean. */
 export function reduceRmsReadings(readings: Reading[], setting: StepSetting, calibration?: ThroughCalibration): StepResult {
-  const good = readings.filter((r) => r.flag === 'ok').map((r) => r.value);
-  let flags = 0;
-  if (readings.some((r) => r.flag === 'overrange')) flags |= PointFlag.overrange;
-  if (readings.some((r) => r.flag === 'nan')) flags |= PointFlag.notANumber;
+  const { okValues: good, flags } = splitReadings(readings);
   const nominalInputRmsV = setting.amplitudeVpp / (2 * Math.SQRT2); // sine: Vrms = Vpp/(2√2) (handbook)
   if (good.length === 0) {
     return { gainDb: NaN, gainUncertaintyDb: NaN, phaseDeg: NaN, phaseUncertaintyDeg: NaN, outputV: NaN, inputReading: nominalInputRmsV, outputReading: NaN, flags };
