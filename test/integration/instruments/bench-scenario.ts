@@ -11,6 +11,8 @@ import { expect } from 'vitest';
 import { openInstrument, type OpenedInstrument } from '../../../app/bench';
 import { parseDesign, solveAc, type Design } from '../../../app/circuit';
 import type { VirtualBench } from '../../../app/sim';
+import { sineFit3 } from '../../../app/signal';
+import { degreesFromRadians } from '../../../app/units';
 
 export const TEST_DESIGN_JSON = {
   name: 'Integration test: inverting low-pass, gain −10, corner ≈ 1.06 kHz (invented)',
@@ -33,37 +35,22 @@ export function theoryFromEmf(design: Design, node: string, frequencyHz: number)
     parts: [...design.parts, { id: 'RS', type: 'resistor', nodes: ['emf', design.input], value: 50 }],
   };
   const response = solveAc(withSource, Float64Array.of(frequencyHz));
-  return { gain: Math.hypot(response.re[0], response.im[0]), phaseDeg: (Math.atan2(response.im[0], response.re[0]) * 180) / Math.PI };
+  return { gain: Math.hypot(response.re[0], response.im[0]), phaseDeg: degreesFromRadians(Math.atan2(response.im[0], response.re[0])) };
 }
 
-/** Least-squares amplitude and phase of a sine at a known frequency (IEEE Std 1057 three-parameter form). */
+/**
+ * Least-squares amplitude and phase of a sine at a known frequency (IEEE Std 1057 three-parameter
+ * form, app/signal sineFit3): phaseDeg is φ of A·cos(2πf·t + φ) (only differences are compared), with
+ * the largest residual from the fitted sine.
+ */
 export function fitSine(samplesV: Float64Array, intervalS: number, frequencyHz: number): { amplitudeV: number; phaseDeg: number; residualMaxV: number } {
-  // Normal equations for v ≈ a·cos + b·sin + c.
-  const n = samplesV.length;
-  let scc = 0, sss = 0, scs = 0, sc = 0, ss = 0, svc = 0, svs = 0, sv = 0;
-  for (let i = 0; i < n; i++) {
-    const w = 2 * Math.PI * frequencyHz * i * intervalS;
-    const c = Math.cos(w);
-    const s = Math.sin(w);
-    const v = samplesV[i];
-    scc += c * c; sss += s * s; scs += c * s; sc += c; ss += s; svc += v * c; svs += v * s; sv += v;
-  }
-  const m = [[scc, scs, sc], [scs, sss, ss], [sc, ss, n]];
-  const rhs = [svc, svs, sv];
-  const [a, b, offset] = solve3(m, rhs);
+  const fit = sineFit3({ samplesV, sampleIntervalS: intervalS, frequencyHz });
   let residualMaxV = 0;
-  for (let i = 0; i < n; i++) {
-    const w = 2 * Math.PI * frequencyHz * i * intervalS;
-    residualMaxV = Math.max(residualMaxV, Math.abs(samplesV[i] - (a * Math.cos(w) + b * Math.sin(w) + offset)));
+  for (let i = 0; i < samplesV.length; i++) {
+    const fittedV = fit.amplitudeV * Math.cos(2 * Math.PI * frequencyHz * i * intervalS + fit.phaseRad) + fit.offsetV;
+    residualMaxV = Math.max(residualMaxV, Math.abs(samplesV[i] - fittedV));
   }
-  // a·cos + b·sin = A·sin(w + φ) with A = √(a²+b²), φ = atan2(a, b).
-  return { amplitudeV: Math.hypot(a, b), phaseDeg: (Math.atan2(a, b) * 180) / Math.PI, residualMaxV };
-}
-
-function solve3(m: number[][], r: number[]): number[] {
-  const det = (x: number[][]) => x[0][0] * (x[1][1] * x[2][2] - x[1][2] * x[2][1]) - x[0][1] * (x[1][0] * x[2][2] - x[1][2] * x[2][0]) + x[0][2] * (x[1][0] * x[2][1] - x[1][1] * x[2][0]);
-  const d = det(m);
-  return [0, 1, 2].map((col) => det(m.map((row, i) => row.map((v, j) => (j === col ? r[i] : v)))) / d);
+  return { amplitudeV: fit.amplitudeV, phaseDeg: degreesFromRadians(fit.phaseRad), residualMaxV };
 }
 
 export interface OpenedBench {
