@@ -1,12 +1,13 @@
 /**
  * The contract over Electron IPC. One invoke channel carries (method, args);
- * every call is checked by validate-arguments.ts — the same check the web host
- * uses — and by the sender's URL, before anything reaches the service.
+ * every call is checked by the sender's URL, then goes through
+ * app/host/call-service.ts (validate-arguments.ts) as the web host's calls do,
+ * before anything reaches the service.
  * Replies are { ok, result } / { ok: false, error } because Electron turns a
  * thrown error into a bare string and would lose the hint.
  */
 import type { RolloffApi, ServiceEventName } from '../app/service/contract';
-import { validateCall } from '../app/service/validate-arguments';
+import { callService } from '../app/host/call-service';
 import { serializeError, type SerializedError } from '../app/host/wire-error';
 import { UserError } from '../app/errors';
 import { CALL_CHANNEL, EVENT_CHANNEL } from './channels';
@@ -49,19 +50,8 @@ export function registerIpc(options: {
     if (!options.isTrustedSender(senderUrl)) {
       return { ok: false, error: serializeError(new UserError(`Calls from ${senderUrl.slice(0, 80) || 'an unknown frame'} are refused.`, 'Only the Rolloff window may call the service.')) };
     }
-    let call: ReturnType<typeof validateCall>;
-    try {
-      call = validateCall(method, args);
-    } catch (error) {
-      return { ok: false, error: serializeError(error) };
-    }
-    try {
-      const fn = options.api[call.method] as (...values: unknown[]) => Promise<unknown>;
-      return { ok: true, result: (await fn.apply(options.api, call.args)) ?? null };
-    } catch (error) {
-      if (!(error instanceof UserError)) log(`rolloff: ${call.method} failed: ${(error as Error)?.stack ?? String(error)}`);
-      return { ok: false, error: serializeError(error) };
-    }
+    const outcome = await callService(options.api, method, args, (line) => log(`rolloff: ${line}`));
+    return outcome.ok ? outcome : { ok: false, error: serializeError(outcome.error) };
   });
   return {
     forward(event, payload) {

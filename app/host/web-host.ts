@@ -9,7 +9,7 @@ import type { AddressInfo } from 'node:net';
 import type { Duplex } from 'node:stream';
 import { WebSocketServer, type WebSocket } from 'ws';
 import type { RolloffApi, ServiceEventName } from '../service/contract';
-import { validateCall } from '../service/validate-arguments';
+import { callService } from './call-service';
 import { ValidationError } from '../errors';
 import { createAccessToken, isLoopbackHost, TOKEN_COOKIE, tokenFromRequest, tokenMatches } from './access-token';
 import { contentSecurityPolicy } from './content-security-policy';
@@ -123,21 +123,9 @@ export async function startWebHost(options: WebHostOptions): Promise<WebHost> {
       sendJson(response, 400, { error: wireValidation(`${methodName} request body`, `is not valid JSON (${(error as Error).message})`, 'Send the arguments as a JSON list, e.g. [42].') });
       return;
     }
-    let call: ReturnType<typeof validateCall>;
-    try {
-      call = validateCall(methodName, args);
-    } catch (error) {
-      sendJson(response, httpStatusFor(error), { error: serializeError(error) });
-      return;
-    }
-    try {
-      const method = options.api[call.method] as (...values: unknown[]) => Promise<unknown>;
-      const result = await method.apply(options.api, call.args);
-      sendJson(response, 200, { result: result ?? null });
-    } catch (error) {
-      if (httpStatusFor(error) === 500) log(`rolloff serve: ${call.method} failed: ${(error as Error)?.stack ?? String(error)}`);
-      sendJson(response, httpStatusFor(error), { error: serializeError(error) });
-    }
+    const outcome = await callService(options.api, methodName, args, (line) => log(`rolloff serve: ${line}`));
+    if (outcome.ok) sendJson(response, 200, { result: outcome.result });
+    else sendJson(response, httpStatusFor(outcome.error), { error: serializeError(outcome.error) });
   }
 
   /** Host and origin checks (DNS rebinding, foreign pages) and the token. */
