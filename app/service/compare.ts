@@ -10,14 +10,11 @@ export function compareDetails(runs: RunDetail[], reference: number | 'theory'):
   if (reference !== 'theory' && !referenceRun) {
     throw new ValidationError('reference', `run ${reference} is not among the compared runs`, 'Pick one of the compared runs, or "theory".');
   }
+  const referenceRunDbAt = referenceRun ? logFInterpolator(referenceRun.points.stimulus, referenceRun.points.gainDb) : undefined;
   const differences = runs.map((run) => {
     const stimulus = run.points.stimulus;
-    const deltaDb = stimulus.map((f, i) => {
-      const referenceDb = referenceRun
-        ? interpolateSorted(referenceRun.points.stimulus, referenceRun.points.gainDb, f)
-        : interpolateSorted(run.theory.frequencyHz, run.theory.gainDb, f);
-      return run.points.gainDb[i] - referenceDb;
-    });
+    const referenceDbAt = referenceRunDbAt ?? logFInterpolator(run.theory.frequencyHz, run.theory.gainDb);
+    const deltaDb = stimulus.map((f, i) => run.points.gainDb[i] - referenceDbAt(f));
     return { runId: run.id, stimulus, deltaDb };
   });
   const figureTable = runs.map((run) => {
@@ -41,19 +38,23 @@ function figureDeltas(figures: RunFigures, reference: RunFigures): Partial<Recor
   return deltas;
 }
 
-/** Value at f, linear in log f over points sorted here (refinement points arrive out of order); NaN outside the range. */
-export function interpolateSorted(frequencyHz: number[], values: number[], atHz: number): number {
+/**
+ * Value at f, linear in log f over the finite points, sorted once here (refinement points arrive out of
+ * order); NaN outside the range.
+ */
+function logFInterpolator(frequencyHz: number[], values: number[]): (atHz: number) => number {
   const order = frequencyHz.map((_, i) => i).filter((i) => Number.isFinite(values[i])).sort((a, b) => frequencyHz[a] - frequencyHz[b]);
-  if (order.length === 0) return NaN;
-  for (let k = 0; k < order.length; k++) {
-    const i = order[k];
-    if (frequencyHz[i] === atHz) return values[i];
-    if (frequencyHz[i] > atHz) {
-      if (k === 0) return NaN;
-      const j = order[k - 1];
-      const t = Math.log(atHz / frequencyHz[j]) / Math.log(frequencyHz[i] / frequencyHz[j]);
-      return values[j] + t * (values[i] - values[j]);
+  return (atHz) => {
+    for (let k = 0; k < order.length; k++) {
+      const i = order[k];
+      if (frequencyHz[i] === atHz) return values[i];
+      if (frequencyHz[i] > atHz) {
+        if (k === 0) return NaN;
+        const j = order[k - 1];
+        const t = Math.log(atHz / frequencyHz[j]) / Math.log(frequencyHz[i] / frequencyHz[j]);
+        return values[j] + t * (values[i] - values[j]);
+      }
     }
-  }
-  return NaN;
+    return NaN;
+  };
 }
