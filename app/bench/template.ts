@@ -40,25 +40,26 @@ export function fillTemplate(template: string, values: Record<string, number>): 
  * message then has a response.
  */
 export function isQuery(command: string): boolean {
-  return splitUnits(command).some((unit) => unit.trim().split(/\s+/)[0].endsWith('?'));
+  return splitOutsideQuotes(command, ';').some((unit) => unit.trim().split(/\s+/)[0].endsWith('?'));
 }
 
-function splitUnits(command: string): string[] {
-  const units: string[] = [];
+/** Splits at `separator` where it is not inside a '…' or "…" string; the quotes stay in the parts. */
+export function splitOutsideQuotes(text: string, separator: string): string[] {
+  const parts: string[] = [];
   let current = '';
   let quote: string | undefined;
-  for (const char of command) {
+  for (const char of text) {
     if (quote) {
       if (char === quote) quote = undefined;
     } else if (char === '"' || char === "'") {
       quote = char;
-    } else if (char === ';') {
-      units.push(current);
+    } else if (char === separator) {
+      parts.push(current);
       current = '';
       continue;
     }
     current += char;
   }
-  units.push(current);
-  return units;
+  parts.push(current);
+  return parts;
 }

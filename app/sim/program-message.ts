@@ -5,6 +5,7 @@
  * taken as rooted (no relative header paths), which the shipped profiles
  * never rely on.
  */
+import { splitOutsideQuotes } from '../bench/template';
 
 export interface ProgramUnit {
   header: string;
@@ -21,28 +22,6 @@ export function splitProgramMessage(message: string): ProgramUnit[] {
       const rest = unit.slice(space + 1).trim();
       return { header: unit.slice(0, space), params: rest === '' ? [] : splitOutsideQuotes(rest, ',').map((p) => p.trim()) };
     });
-}
-
-function splitOutsideQuotes(text: string, separator: string): string[] {
-  const parts: string[] = [];
-  let current = '';
-  let quote: string | undefined;
-  for (const char of text) {
-    if (quote) {
-      if (char === quote) quote = undefined;
-      current += char;
-    } else if (char === '"' || char === "'") {
-      quote = char;
-      current += char;
-    } else if (char === separator) {
-      parts.push(current);
-      current = '';
-    } else {
-      current += char;
-    }
-  }
-  parts.push(current);
-  return parts;
 }
 
 /**
