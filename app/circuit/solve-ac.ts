@@ -4,6 +4,7 @@
  */
 import { dbFromRatio } from '../units';
 import { AcSolver } from './ac-solver';
+import { bisectLogF } from './bisect-log-f';
 import { openLoopGainAt } from './opamp-gain';
 import { continuousPhaseDeg } from './phase';
 import type { Design, OpAmpModel } from './types';
@@ -124,14 +125,7 @@ function findGainLimitHz(solver: AcSolver, index: number, model: OpAmpModel): nu
     const frequencyHz = SCAN_FROM_HZ * (scanToHz / SCAN_FROM_HZ) ** (i / steps);
     const above = loopGainMagnitude(solver, index, model, frequencyHz, beta, a) > 1;
     if (previousAbove && !above) {
-      let lowHz = previousHz;
-      let highHz = frequencyHz;
-      for (let k = 0; k < BISECTION_STEPS; k++) {
-        const middleHz = Math.sqrt(lowHz * highHz);
-        if (loopGainMagnitude(solver, index, model, middleHz, beta, a) > 1) lowHz = middleHz;
-        else highHz = middleHz;
-      }
-      return Math.sqrt(lowHz * highHz);
+      return bisectLogF(previousHz, frequencyHz, BISECTION_STEPS, (middleHz) => loopGainMagnitude(solver, index, model, middleHz, beta, a) > 1);
     }
     previousHz = frequencyHz;
     previousAbove = above;

@@ -4,6 +4,7 @@
  */
 import { dbFromRatio, HALF_POWER_DB } from '../units';
 import { AcSolver } from './ac-solver';
+import { bisectLogF } from './bisect-log-f';
 import type { AcResponse } from './solve-ac';
 import { outputOpAmpIndex } from './output-opamp';
 import type { Design } from './types';
@@ -55,16 +56,8 @@ export function summarizeAc(design: Design, response: AcResponse): AcSummary {
     const a = gainDb[i - 1] - level;
     const b = gainDb[i] - level;
     if ((a > 0 && b <= 0) || (a <= 0 && b > 0)) {
-      const above = (frequency: number) => gainAtDb(frequency) > level;
-      let lowHz = frequencyHz[i - 1];
-      let highHz = frequencyHz[i];
       const lowAbove = a > 0;
-      for (let k = 0; k < BISECTION_STEPS; k++) {
-        const middleHz = Math.sqrt(lowHz * highHz);
-        if (above(middleHz) === lowAbove) lowHz = middleHz;
-        else highHz = middleHz;
-      }
-      minus3dbHz.push(Math.sqrt(lowHz * highHz));
+      minus3dbHz.push(bisectLogF(frequencyHz[i - 1], frequencyHz[i], BISECTION_STEPS, (frequency) => (gainAtDb(frequency) > level) === lowAbove));
     }
   }
   const opIndex = outputOpAmpIndex(design);
