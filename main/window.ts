@@ -28,8 +28,8 @@ export interface WebContentsSecurityLike {
 
 export type WindowConstructor = new (options: BrowserWindowConstructorOptions) => WindowLike;
 
-/** The webPreferences every Rolloff window gets; exported so a test can check each one. */
-export function secureWindowOptions(preloadPath: string): BrowserWindowConstructorOptions {
+/** The webPreferences every Rolloff window gets. */
+function secureWindowOptions(preloadPath: string): BrowserWindowConstructorOptions {
   return {
     width: 1280,
     height: 800,
@@ -62,7 +62,7 @@ export async function createMainWindow(Window: WindowConstructor, paths: { prelo
   return window;
 }
 
-export function hardenWebContents(contents: WebContentsSecurityLike, openExternal?: (url: string) => void): void {
+function hardenWebContents(contents: WebContentsSecurityLike, openExternal?: (url: string) => void): void {
   const block = (event: { preventDefault(): void }) => event.preventDefault();
   contents.on('will-navigate', block);
   contents.on('will-redirect', block);

@@ -5,7 +5,7 @@
  */
 import { ValidationError } from '../errors';
 
-export function csvField(value: string): string {
+function csvField(value: string): string {
   return /[",\r\n]/.test(value) ? `"${value.replace(/"/g, '""')}"` : value;
 }
 

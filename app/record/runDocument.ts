@@ -47,7 +47,7 @@ export function runDocument(record: RunRecord): RecordDocument {
   };
 }
 
-export function benchBlocks(record: RunRecord): Block[] {
+function benchBlocks(record: RunRecord): Block[] {
   return [
     { kind: 'heading', text: 'Bench' },
     {
@@ -108,7 +108,7 @@ function designParts(content: unknown): DesignPartView[] {
 }
 
 /** Design JSON with one part per line: complete, but short enough to print. */
-export function compactDesignJson(content: unknown): string {
+function compactDesignJson(content: unknown): string {
   if (!content || typeof content !== 'object' || Array.isArray(content)) return JSON.stringify(content, null, 2) ?? 'null';
   const lines = Object.entries(content as Record<string, unknown>).map(([key, value]) => {
     if (Array.isArray(value) && value.length > 0) return `  ${JSON.stringify(key)}: [\n${value.map((v) => `    ${JSON.stringify(v)}`).join(',\n')}\n  ]`;

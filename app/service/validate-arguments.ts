@@ -36,9 +36,9 @@ const MAX_POINTS_PER_DECADE = 1_000;
 const MAX_DESIGN_JSON_CHARS = 1_000_000;
 const MAX_COUNT = 10_000;
 
-export type ApiArguments<M extends RolloffMethodName> = Parameters<RolloffApi[M]>;
+type ApiArguments<M extends RolloffMethodName> = Parameters<RolloffApi[M]>;
 
-export function isApiMethodName(name: unknown): name is RolloffMethodName {
+function isApiMethodName(name: unknown): name is RolloffMethodName {
   return typeof name === 'string' && Object.prototype.hasOwnProperty.call(CHECKS, name);
 }
 
@@ -61,7 +61,7 @@ export function validateCall(method: unknown, args: unknown): { method: RolloffM
 }
 
 /** Validates the argument list of one known method. */
-export function validateArguments<M extends RolloffMethodName>(method: M, args: unknown[]): ApiArguments<M> {
+function validateArguments<M extends RolloffMethodName>(method: M, args: unknown[]): ApiArguments<M> {
   const check = CHECKS[method];
   return check(new ArgumentReader(method, args)) as ApiArguments<M>;
 }

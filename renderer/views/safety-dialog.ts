@@ -29,7 +29,7 @@ export function openSafetyDialogIfNew(root: HTMLElement): void {
   confirm.focus();
 }
 
-export function readAcknowledged(): boolean {
+function readAcknowledged(): boolean {
   try {
     return localStorage.getItem(ACKNOWLEDGED_KEY) === 'yes';
   } catch {
