@@ -61,11 +61,8 @@ export function frameResponseUnits(buffer: Uint8Array): UnitsFrameResult {
     if (buffer[at] === HASH && at + 1 < buffer.length && buffer[at + 1] > DIGIT_0 && buffer[at + 1] <= DIGIT_9) {
       const headerEnd = at + 2 + (buffer[at + 1] - DIGIT_0);
       if (buffer.length < headerEnd) return { kind: 'incomplete' };
-      let length = 0;
-      for (let i = at + 2; i < headerEnd; i++) {
-        if (buffer[i] < DIGIT_0 || buffer[i] > DIGIT_9) return malformedUpToLineEnd(buffer, 'a block header with a non-digit length');
-        length = length * 10 + (buffer[i] - DIGIT_0);
-      }
+      const length = blockLength(buffer, at + 2, headerEnd);
+      if (length === undefined) return malformedUpToLineEnd(buffer, NON_DIGIT_LENGTH);
       end = headerEnd + length;
       if (buffer.length <= end) return { kind: 'incomplete' };
       units.push({ kind: 'block', bytes: buffer.slice(headerEnd, end) });
@@ -84,9 +81,7 @@ export function frameResponseUnits(buffer: Uint8Array): UnitsFrameResult {
       }
       if (end >= buffer.length) return end - at > MAX_TEXT_REPLY_BYTES ? malformedAll(buffer) : { kind: 'incomplete' };
       const textEnd = buffer[end] === LF && end > at && buffer[end - 1] === CR ? end - 1 : end;
-      let text = '';
-      for (let i = at; i < textEnd; i++) text += String.fromCharCode(buffer[i]);
-      units.push({ kind: 'text', text });
+      units.push({ kind: 'text', text: asciiText(buffer, at, textEnd) });
     }
     // After a unit: ';' and the next unit, or the terminator (LF or CR LF).
     if (buffer[end] === SEMICOLON) {
@@ -105,12 +100,8 @@ export function frameResponseUnits(buffer: Uint8Array): UnitsFrameResult {
 function frameDefiniteBlock(buffer: Uint8Array, digitCount: number): FrameResult {
   const headerEnd = 2 + digitCount;
   if (buffer.length < headerEnd) return { kind: 'incomplete' };
-  let length = 0;
-  for (let i = 2; i < headerEnd; i++) {
-    const byte = buffer[i];
-    if (byte < DIGIT_0 || byte > DIGIT_9) return malformedUpToLineEnd(buffer, 'a block header with a non-digit length');
-    length = length * 10 + (byte - DIGIT_0);
-  }
+  const length = blockLength(buffer, 2, headerEnd);
+  if (length === undefined) return malformedUpToLineEnd(buffer, NON_DIGIT_LENGTH);
   const dataEnd = headerEnd + length;
   if (buffer.length < dataEnd + 1) return { kind: 'incomplete' };
   const bytes = buffer.slice(headerEnd, dataEnd);
@@ -140,9 +131,26 @@ function frameTextLine(buffer: Uint8Array): FrameResult {
       return { kind: 'malformed', description: 'a line of printable ASCII', preview: preview(buffer.subarray(0, Math.min(end, 80))), consumed: end + 1 };
     }
   }
+  return { kind: 'text', text: asciiText(buffer, 0, textEnd), consumed: end + 1 };
+}
+
+const NON_DIGIT_LENGTH = 'a block header with a non-digit length';
+
+/** The byte count written in a block header's digits buffer[from, to), or undefined if one is not a digit. */
+function blockLength(buffer: Uint8Array, from: number, to: number): number | undefined {
+  let length = 0;
+  for (let i = from; i < to; i++) {
+    if (buffer[i] < DIGIT_0 || buffer[i] > DIGIT_9) return undefined;
+    length = length * 10 + (buffer[i] - DIGIT_0);
+  }
+  return length;
+}
+
+/** buffer[from, to) as text, one character per byte (already checked to be printable ASCII). */
+function asciiText(buffer: Uint8Array, from: number, to: number): string {
   let text = '';
-  for (let i = 0; i < textEnd; i++) text += String.fromCharCode(buffer[i]);
-  return { kind: 'text', text, consumed: end + 1 };
+  for (let i = from; i < to; i++) text += String.fromCharCode(buffer[i]);
+  return text;
 }
 
 type Unframed = { kind: 'malformed'; description: string; preview: string; consumed: number } | { kind: 'incomplete' };
