@@ -1,7 +1,8 @@
 /**
  * The window-safe entry to app/record: everything except the PDF writer (which
- * needs pdfkit and Node). The Record view imports from here; the service and
- * the CLI use index.ts.
+ * needs pdfkit and Node). Nothing in the window imports it yet (the Record
+ * view asks the service for the file); recordLayering.test.ts keeps it
+ * bundleable for the browser. The service and the CLI use index.ts.
  */
 export { buildRunRecord, type RunRecordContext } from './buildRunRecord';
 export { buildComparisonRecord, type ComparisonRecordContext } from './buildComparisonRecord';
