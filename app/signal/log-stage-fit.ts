@@ -7,6 +7,7 @@
  */
 import { ValidationError } from '../errors';
 import { FitError } from './errors';
+import { finiteColumn } from './finite-column';
 import { levenbergMarquardt, type ConvergenceReason } from './levenberg-marquardt';
 import { thermalVoltageV } from '../circuit/thermal-voltage'; // CODATA 2018 constants, defined once in app/circuit
 
@@ -40,11 +41,7 @@ const MIN_POINTS = 4;
 
 function toArray(values: ArrayLike<number>, where: string): Float64Array {
   if (values === null || typeof values !== 'object' || typeof values.length !== 'number') throw new ValidationError(where, 'must be an array of numbers');
-  const out = Float64Array.from(values);
-  out.forEach((v, i) => {
-    if (!Number.isFinite(v)) throw new ValidationError(`${where}[${i}]`, `${v} is not a finite number`);
-  });
-  return out;
+  return finiteColumn(values, where);
 }
 
 /** Least-squares line through (x, y): returns [slope, intercept]. */

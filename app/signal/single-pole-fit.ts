@@ -12,6 +12,7 @@
 import { ValidationError } from '../errors';
 import { radiansFromDegrees, wrapPhaseDeg, degreesFromRadians } from '../units';
 import { FitError } from './errors';
+import { finiteColumn } from './finite-column';
 import { levenbergMarquardt, type ConvergenceReason } from './levenberg-marquardt';
 
 export interface ComplexColumns {
@@ -52,11 +53,7 @@ const NEPERS_PER_DB = Math.LN10 / 20;
 function column(values: ArrayLike<number> | undefined, length: number, where: string): Float64Array {
   if (!values || typeof values.length !== 'number') throw new ValidationError(where, 'is missing');
   if (values.length !== length) throw new ValidationError(where, `has ${values.length} values, expected ${length}`);
-  const out = Float64Array.from(values);
-  out.forEach((v, i) => {
-    if (!Number.isFinite(v)) throw new ValidationError(`${where}[${i}]`, `${v} is not a finite number`);
-  });
-  return out;
+  return finiteColumn(values, where);
 }
 
 export function fitSinglePoleOpAmp(request: SinglePoleFitRequest): SinglePoleFit {
