@@ -86,10 +86,11 @@ export async function resolveBuildId(service: RolloffService, parsed: ParsedArgs
   if (buildId !== undefined) return service.store.getBuild(buildId).id;
   if (designFile === undefined) throw new ValidationError('--build', 'is missing', 'Give --build ID (see rolloff build list) or --design FILE.json [--label TEXT] [--actual PART=VALUE …].');
   const design = readJsonFile(designFile, '--design');
+  const actualValues = actualValuesFrom(parsed);
   // Design, measured values and plan are all checked before anything is stored.
-  service.planForUnsavedBuild(requestFrom(parsed, 0), design, actualValuesFrom(parsed));
+  service.planForUnsavedBuild(requestFrom(parsed, 0), design, actualValues);
   const saved = await service.saveDesign(design);
-  const build = await service.createBuild({ designId: saved.id, label: optionString(parsed, 'label') ?? 'build', notes: '', actualValues: actualValuesFrom(parsed) });
+  const build = await service.createBuild({ designId: saved.id, label: optionString(parsed, 'label') ?? 'build', notes: '', actualValues });
   return build.id;
 }
 
