@@ -8,7 +8,6 @@ import { SAFETY_NOTICE_SHORT } from '../../service/safety';
 import { resolveDatabasePath } from '../../store';
 import { bundleRenderer } from '../../host/renderer-bundle';
 import { startWebHost } from '../../host/web-host';
-import { isLoopbackHost } from '../../host/access-token';
 import { openHostedService } from '../../host/hosted-service';
 
 /** Virtual bench seconds per wall second with --virtual: a 40-point sweep takes seconds, not minutes (common practice, no source). */
@@ -59,7 +58,8 @@ Examples:
         files,
         host,
         port,
-        requireToken: optionFlag(parsed, 'require-token') || !isLoopbackHost(host),
+        // Without the flag the web host applies its own rule: a token off loopback.
+        requireToken: optionFlag(parsed, 'require-token') || undefined,
       });
     } catch (error) {
       await hosted.close();
