@@ -23,7 +23,7 @@ export interface RunRecordContext {
   /** Store id of the design, when known. */
   designId?: number;
   build: BuildRecord;
-  /** DC log stage: fitted transfer curve to draw (see dcFitCurve.ts). */
+  /** DC log stage: fitted transfer curve to draw (made by dcFitCurve in app/service/export.ts). */
   dcFit?: RecordDcFit | null;
   /** ISO time the record is generated; defaults to now. Fixed in tests for reproducible output. */
   generatedAt?: string;
