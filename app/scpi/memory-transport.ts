@@ -4,23 +4,22 @@
  * process. Delivery is asynchronous (next macrotask) like a real link, so
  * ordering bugs show up here too.
  */
-import type { Transport } from './transport';
+import { TransportListeners, type Transport } from './transport';
 
-class MemoryEnd implements Transport {
+class MemoryEnd extends TransportListeners implements Transport {
   peer!: MemoryEnd;
-  private dataListeners: Array<(bytes: Uint8Array) => void> = [];
-  private closeListeners: Array<(reason: string) => void> = [];
   private open_ = false;
-  private closed = false;
 
-  constructor(readonly description: string) {}
+  constructor(readonly description: string) {
+    super();
+  }
 
   get isOpen(): boolean {
-    return this.open_ && !this.closed;
+    return this.open_ && !this.closeReported;
   }
 
   async open(): Promise<void> {
-    if (this.closed) throw new Error(`${this.description} was closed`);
+    if (this.closeReported) throw new Error(`${this.description} was closed`);
     this.open_ = true;
   }
 
@@ -30,28 +29,14 @@ class MemoryEnd implements Transport {
     setImmediate(() => this.peer.deliver(copy));
   }
 
-  onData(listener: (bytes: Uint8Array) => void): void {
-    this.dataListeners.push(listener);
-  }
-
-  onClose(listener: (reason: string) => void): void {
-    this.closeListeners.push(listener);
-  }
-
   async close(): Promise<void> {
-    this.shut('closed locally');
-    this.peer.shut('peer closed the link');
+    this.reportClose('closed locally');
+    this.peer.reportClose('peer closed the link');
   }
 
   private deliver(bytes: Uint8Array): void {
-    if (this.closed) return;
-    for (const listener of this.dataListeners) listener(bytes);
-  }
-
-  shut(reason: string): void {
-    if (this.closed) return;
-    this.closed = true;
-    for (const listener of this.closeListeners) listener(reason);
+    if (this.closeReported) return;
+    this.emitData(bytes);
   }
 }
 

@@ -3,7 +3,7 @@
  * the session frames replies itself so binary blocks pass through untouched.
  */
 import { SerialPort } from 'serialport';
-import type { Transport } from './transport';
+import { TransportListeners, type Transport } from './transport';
 
 export type Parity = 'none' | 'even' | 'odd' | 'mark' | 'space';
 export type FlowControl = 'none' | 'rtscts' | 'xonxoff';
@@ -24,14 +24,12 @@ export function describeSerial(settings: SerialSettings): string {
   return `serial ${settings.path} ${settings.baudRate} ${frame}${settings.flow === 'none' ? '' : ` ${settings.flow}`}`;
 }
 
-export class SerialTransport implements Transport {
+export class SerialTransport extends TransportListeners implements Transport {
   readonly description: string;
   private port: SerialPort | undefined;
-  private readonly dataListeners: Array<(bytes: Uint8Array) => void> = [];
-  private readonly closeListeners: Array<(reason: string) => void> = [];
-  private closeReported = false;
 
   constructor(private readonly settings: SerialSettings) {
+    super();
     this.description = describeSerial(settings);
   }
 
@@ -57,7 +55,7 @@ export class SerialTransport implements Transport {
         if (error) return reject(error);
         port.on('data', (chunk: Buffer) => {
           const bytes = new Uint8Array(chunk.buffer, chunk.byteOffset, chunk.byteLength);
-          for (const listener of this.dataListeners) listener(bytes);
+          this.emitData(bytes);
         });
         port.on('close', (closeError: (Error & { disconnected?: boolean }) | null) => {
           this.reportClose(closeError?.disconnected ? 'device disconnected' : closeError?.message ?? 'port closed');
@@ -80,23 +78,9 @@ export class SerialTransport implements Transport {
     });
   }
 
-  onData(listener: (bytes: Uint8Array) => void): void {
-    this.dataListeners.push(listener);
-  }
-
-  onClose(listener: (reason: string) => void): void {
-    this.closeListeners.push(listener);
-  }
-
   async close(): Promise<void> {
     const port = this.port;
     if (port?.isOpen) await new Promise<void>((resolve) => port.close(() => resolve()));
     this.reportClose('closed by the application');
-  }
-
-  private reportClose(reason: string): void {
-    if (this.closeReported) return;
-    this.closeReported = true;
-    for (const listener of this.closeListeners) listener(reason);
   }
 }

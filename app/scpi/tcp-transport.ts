@@ -1,6 +1,6 @@
 /** Raw TCP socket transport (SCPI over port 5025 is the common convention). */
 import { Socket } from 'node:net';
-import type { Transport } from './transport';
+import { TransportListeners, type Transport } from './transport';
 
 export interface TcpSettings {
   host: string;
@@ -9,14 +9,12 @@ export interface TcpSettings {
   connectTimeoutS?: number;
 }
 
-export class TcpTransport implements Transport {
+export class TcpTransport extends TransportListeners implements Transport {
   readonly description: string;
   private socket: Socket | undefined;
-  private readonly dataListeners: Array<(bytes: Uint8Array) => void> = [];
-  private readonly closeListeners: Array<(reason: string) => void> = [];
-  private closeReported = false;
 
   constructor(private readonly settings: TcpSettings) {
+    super();
     this.description = `tcp ${settings.host}:${settings.port}`;
   }
 
@@ -45,7 +43,7 @@ export class TcpTransport implements Transport {
         socket.on('end', () => this.reportClose('peer ended the connection'));
         socket.on('data', (chunk: Buffer) => {
           const bytes = new Uint8Array(chunk.buffer, chunk.byteOffset, chunk.byteLength);
-          for (const listener of this.dataListeners) listener(bytes);
+          this.emitData(bytes);
         });
         this.socket = socket;
         resolve();
@@ -61,14 +59,6 @@ export class TcpTransport implements Transport {
     });
   }
 
-  onData(listener: (bytes: Uint8Array) => void): void {
-    this.dataListeners.push(listener);
-  }
-
-  onClose(listener: (reason: string) => void): void {
-    this.closeListeners.push(listener);
-  }
-
   async close(): Promise<void> {
     const socket = this.socket;
     if (!socket) return;
@@ -79,11 +69,5 @@ export class TcpTransport implements Transport {
       socket.destroy();
     });
     this.reportClose('closed by the application');
-  }
-
-  private reportClose(reason: string): void {
-    if (this.closeReported) return;
-    this.closeReported = true;
-    for (const listener of this.closeListeners) listener(reason);
   }
 }

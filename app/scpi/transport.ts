@@ -16,3 +16,32 @@ export interface Transport {
   onClose(listener: (reason: string) => void): void;
   close(): Promise<void>;
 }
+
+/**
+ * The listener bookkeeping every Transport shares: bytes handed to each data
+ * listener in order, and the close reported once, whatever closes the link first.
+ */
+export abstract class TransportListeners {
+  private readonly dataListeners: Array<(bytes: Uint8Array) => void> = [];
+  private readonly closeListeners: Array<(reason: string) => void> = [];
+  /** The close has been reported: the link is closed for good. */
+  protected closeReported = false;
+
+  onData(listener: (bytes: Uint8Array) => void): void {
+    this.dataListeners.push(listener);
+  }
+
+  onClose(listener: (reason: string) => void): void {
+    this.closeListeners.push(listener);
+  }
+
+  protected emitData(bytes: Uint8Array): void {
+    for (const listener of this.dataListeners) listener(bytes);
+  }
+
+  protected reportClose(reason: string): void {
+    if (this.closeReported) return;
+    this.closeReported = true;
+    for (const listener of this.closeListeners) listener(reason);
+  }
+}
