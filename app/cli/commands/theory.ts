@@ -191,7 +191,8 @@ function alignColumns(rows: string[][]): string {
   return rows.map((row) => row.map((cell, c) => (c === 0 ? cell.padEnd(widths[c]) : cell.padStart(widths[c]))).join('  ').trimEnd()).join('\n') + '\n';
 }
 
-/** Reads and checks a design file; file and JSON errors name the file. */export function readDesignFile(path: string): Design {
+/** Reads and checks a design file; file and JSON errors name the file. */
+function readDesignFile(path: string): Design {
   let text: string;
   try {
     text = readFileSync(path, 'utf8');
