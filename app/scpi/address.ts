@@ -20,6 +20,11 @@ export const DEFAULT_TCP_PORT = 5025;
 const PARITIES: Parity[] = ['none', 'even', 'odd', 'mark', 'space'];
 const FLOWS: FlowControl[] = ['none', 'rtscts', 'xonxoff'];
 
+/** A serial speed we accept: a whole number of bits per second, 50–4000000. */
+export function isBaudRate(value: number): boolean {
+  return Number.isInteger(value) && value >= 50 && value <= 4_000_000;
+}
+
 export function parseAddress(text: string): InstrumentAddress {
   const address = text.trim();
   if (address === '') throw new AddressError(text, 'is empty');
@@ -52,7 +57,7 @@ function applySerialSetting(address: string, serial: SerialSettings, key: string
   const number = Number(value);
   switch (key) {
     case 'baud':
-      if (!Number.isInteger(number) || number < 50 || number > 4_000_000) throw new AddressError(address, `baud "${value}" is not a baud rate (50–4000000)`);
+      if (!isBaudRate(number)) throw new AddressError(address, `baud "${value}" is not a baud rate (50–4000000)`);
       serial.baudRate = number;
       return;
     case 'data':

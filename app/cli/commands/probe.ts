@@ -3,7 +3,7 @@
  * clear the error queue. For a serial address, --bauds tries each speed in turn.
  */
 import { ValidationError } from '../../errors';
-import { formatAddress, parseAddress, type InstrumentAddress } from '../../scpi/address';
+import { formatAddress, isBaudRate, parseAddress, type InstrumentAddress } from '../../scpi/address';
 import { connect } from '../../scpi/connect';
 import { ScpiError, ScpiMalformedReplyError, ScpiTimeoutError } from '../../scpi/errors';
 import type { ScpiSession } from '../../scpi/session';
@@ -58,7 +58,7 @@ function candidateAddresses(address: InstrumentAddress, bauds: string | undefine
   if (address.kind !== 'serial') throw new ValidationError('--bauds', 'applies only to serial addresses');
   return bauds.split(',').map((text) => {
     const baudRate = Number(text.trim());
-    if (!Number.isInteger(baudRate) || baudRate < 50 || baudRate > 4_000_000) throw new ValidationError('--bauds', `"${text}" is not a baud rate`);
+    if (!isBaudRate(baudRate)) throw new ValidationError('--bauds', `"${text}" is not a baud rate`);
     return { kind: 'serial', serial: { ...address.serial, baudRate } };
   });
 }
