@@ -42,14 +42,16 @@ export async function openInstrument<R extends InstrumentRole>(
   if (role === 'generator' && options.maxStimulusVpp === undefined) {
     throw new ValidationError('maxStimulusVpp', 'is required to open a generator', 'Set the maximum stimulus amplitude (Bench view, or --max-amplitude VPP).');
   }
-  const addressText = options.transport ? (typeof address === 'string' ? address : formatAddress(address)) : formatAddress(typeof address === 'string' ? parseAddress(address) : address);
+  // Parsed once here (connect takes the parsed form); an in-process transport's name is kept as given.
+  const parsed = options.transport || typeof address !== 'string' ? address : parseAddress(address);
+  const addressText = typeof parsed === 'string' ? parsed : formatAddress(parsed);
   const sessionOptions = { timeoutS: resolved.timeoutS, traffic: options.traffic };
   let session: ScpiSession;
   if (options.transport) {
     if (!options.transport.isOpen) await options.transport.open();
     session = new ScpiSession(options.transport, sessionOptions);
   } else {
-    session = await connect(address, sessionOptions);
+    session = await connect(parsed, sessionOptions);
   }
   try {
     const identity = await session.identify();
