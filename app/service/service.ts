@@ -8,7 +8,7 @@ import { Store, identityKey, type StoredRun } from '../store';
 import { openInstrument, builtInProfiles, loadProfiles, realClock, type BenchClock, type OpenedInstrument } from '../bench';
 import { TrafficLog } from '../scpi/traffic-log';
 import { listSerialPorts } from '../scpi/list-ports';
-import { type Design, parseDesign, solveAc, TEMPLATES, makeDesignFromTemplate } from '../circuit';
+import { type Design, parseDesign, solveAc, TEMPLATES, makeDesignFromTemplate, withActualValues } from '../circuit';
 import { planSweep, planStepsAt, refinementFrequencies, toPlanSummary, type PlanInput, type PlanInstruments } from '../sweep/plan';
 import { RunControl } from '../sweep/runner/control';
 import { runSweep } from '../sweep/runner/run-sweep';
@@ -218,7 +218,7 @@ export class RolloffService implements RolloffApi {
   async createBuild(build: { designId: number; label: string; notes: string; actualValues: Record<string, number> }): Promise<BuildRecord> {
     const design = this.store.getDesign(build.designId);
     // Refuses unknown part ids or bad values before anything is stored.
-    buildDesign(design, { id: 0, designId: build.designId, label: build.label, notes: build.notes, actualValues: build.actualValues, createdAt: '' });
+    withActualValues(designOf(design), build.actualValues);
     return this.store.createBuild(build);
   }
 
@@ -237,8 +237,7 @@ export class RolloffService implements RolloffApi {
    * lets a caller refuse a bad request before storing anything.
    */
   planForUnsavedBuild(request: SweepRequest, design: unknown, actualValues: Record<string, number>): SweepPlanSummary {
-    const record: DesignRecord = { id: 0, name: '', design, createdAt: '' };
-    const built = buildDesign(record, { id: 0, designId: 0, label: '', notes: '', actualValues, createdAt: '' });
+    const built = withActualValues(designOf({ id: 0, name: '', design, createdAt: '' }), actualValues);
     return toPlanSummary(planSweep(this.planInputFor(request, this.requireMaxStimulus(), request.through ? throughDesign(built) : built)));
   }
 
