@@ -13,7 +13,7 @@ export { maxUndistortedOutputVpk, stimulusLimitVpk } from './output-limits';
 export { solveDcTransfer, type DcTransfer } from './solve-dc';
 export { logStageIdeal } from './log-stage';
 export { thermalVoltageV, BOLTZMANN_J_PER_K, ELEMENTARY_CHARGE_C } from './thermal-voltage';
-export { monteCarloAc, type MonteCarloOptions, type MonteCarloBand, type ToleranceDistribution } from './monte-carlo';
+export { monteCarloAc, TOLERANCE_BAND_SETTINGS, type MonteCarloOptions, type MonteCarloBand, type ToleranceDistribution } from './monte-carlo';
 export { SeededRandom } from './random';
 export { slowestTimeConstantS, circuitPoles, type Poles } from './time-constant';
 export { TEMPLATES, makeDesignFromTemplate, type DesignFile } from './templates';

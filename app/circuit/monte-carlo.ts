@@ -29,6 +29,15 @@ export interface MonteCarloOptions {
   idealOpAmps?: boolean;
 }
 
+/**
+ * The tolerance band every surface draws (Design view, Sweep view, records):
+ * one sample count and one fixed seed, so the band a user sees while designing
+ * is the band the run's record shows. 300 samples keep the 2.5/97.5 %
+ * percentiles stable and fast enough to redraw while typing (common practice,
+ * no source).
+ */
+export const TOLERANCE_BAND_SETTINGS = { samples: 300, seed: 20_251_201 } as const;
+
 export interface MonteCarloBand {
   gainLowDb: Float64Array;
   gainHighDb: Float64Array;

@@ -3,7 +3,7 @@
  * it comes from the theory engine (app/circuit) applied to the build's actual
  * part values.
  */
-import { type Design, type OpAmpPart, parseDesign, withActualValues, solveAc, type AcResponse, stimulusLimitVpk, slowestTimeConstantS, monteCarloAc } from '../circuit';
+import { type Design, type OpAmpPart, parseDesign, withActualValues, solveAc, type AcResponse, stimulusLimitVpk, slowestTimeConstantS, monteCarloAc, TOLERANCE_BAND_SETTINGS } from '../circuit';
 import { openLoopGainAt } from '../circuit/opamp-gain';
 import { outputOpAmpIndex } from '../circuit/output-opamp';
 import type { BuildRecord, DesignRecord, TheoryColumns } from './contract';
@@ -13,9 +13,6 @@ import { fitSinglePoleOpAmp, FitError } from '../signal';
 import { logGrid, radiansFromDegrees, ratioFromDb } from '../units';
 import { ValidationError } from '../errors';
 
-/** Monte Carlo size for the tolerance band; fixed seed so a run's record is reproducible. */
-const BAND_SAMPLES = 300;
-const BAND_SEED = 20_251_201;
 
 export function designOf(record: DesignRecord): Design {
   return parseDesign(record.design, `design ${record.id} (${record.name})`);
@@ -43,7 +40,7 @@ export function theoryColumns(design: Design, frequenciesHz: number[]): TheoryCo
   const sorted = Float64Array.from(new Set(frequenciesHz.filter((f) => f > 0 && Number.isFinite(f)))).sort();
   if (sorted.length === 0) return { frequencyHz: [], gainDb: [], phaseDeg: [], idealGainDb: [], idealPhaseDeg: [] };
   const response = solveAc(design, sorted);
-  const band = monteCarloAc(design, sorted, { samples: BAND_SAMPLES, seed: BAND_SEED });
+  const band = monteCarloAc(design, sorted, TOLERANCE_BAND_SETTINGS);
   return {
     frequencyHz: Array.from(sorted),
     gainDb: Array.from(response.gainDb),
@@ -71,7 +68,7 @@ export function theoryFigures(design: Design, fromHz: number, toHz: number): { g
 export function theoryAtPoints(design: Design, stimulusHz: number[], figures: { gainLimitHz: number | undefined; minus3dbHz: number[] }): TheoryAtPoints & { response: AcResponse } {
   const frequencies = Float64Array.from(stimulusHz);
   const response = solveAc(design, frequencies);
-  const band = frequencies.length > 0 ? monteCarloAc(design, frequencies, { samples: BAND_SAMPLES, seed: BAND_SEED }) : undefined;
+  const band = frequencies.length > 0 ? monteCarloAc(design, frequencies, TOLERANCE_BAND_SETTINGS) : undefined;
   return {
     response,
     gainDb: response.gainDb,

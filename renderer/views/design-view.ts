@@ -7,7 +7,7 @@
 import { UserError } from '../../app/errors';
 import type { BuildRecord, DesignRecord, RolloffClient, TemplateInfo, TheoryColumns } from '../../app/service/contract';
 import { logGrid, parseEngineering, formatEngineering } from '../../app/units';
-import { monteCarloAc, parseDesign, solveAc, summarizeAc } from '../../app/circuit';
+import { monteCarloAc, parseDesign, solveAc, summarizeAc, TOLERANCE_BAND_SETTINGS } from '../../app/circuit';
 import { debounce, field, h, replaceChildren } from '../dom';
 import { formatDb, formatHz } from '../model/format';
 import { guarded, showError, showInfo } from '../notices';
@@ -19,9 +19,6 @@ import type { AppState } from '../state';
 const THEORY_FROM_HZ = 1;
 const THEORY_TO_HZ = 10e6;
 const THEORY_POINTS_PER_DECADE = 30;
-/** Monte Carlo size for the live band: enough for stable 2.5/97.5 % percentiles while typing (common practice, no source). */
-const BAND_SAMPLES = 300;
-const BAND_SEED = 1;
 
 type DraftPart = Record<string, unknown> & { id: string; type: string; nodes: string[] };
 type Draft = Record<string, unknown> & { name: string; parts: DraftPart[] };
@@ -261,7 +258,7 @@ export class DesignView implements View {
       const response = solveAc(design, frequencies);
       const summary = summarizeAc(design, response);
       const hasTolerances = design.parts.some((p) => 'tolerance' in p && p.tolerance !== undefined && p.tolerance > 0);
-      const band = hasTolerances ? monteCarloAc(design, frequencies, { samples: BAND_SAMPLES, seed: BAND_SEED, distribution: 'uniform' }) : undefined;
+      const band = hasTolerances ? monteCarloAc(design, frequencies, { ...TOLERANCE_BAND_SETTINGS, distribution: 'uniform' }) : undefined;
       const theory: TheoryColumns = {
         frequencyHz: Array.from(response.frequencyHz),
         gainDb: Array.from(response.gainDb),
@@ -279,7 +276,7 @@ export class DesignView implements View {
         h('dt', {}, '−3 dB points'), h('dd', { 'data-figure': 'minus3db' }, summary.minus3dbHz.length ? summary.minus3dbHz.map((f) => formatHz(f)).join(', ') : 'none in range'),
         h('dt', {}, 'Gain-limit point'), h('dd', { 'data-figure': 'gain-limit' }, formatHz(summary.gainLimitHz)),
         h('dt', {}, 'Roll-off'), h('dd', {}, summary.rolloffDbPerDecade === undefined ? '—' : `${summary.rolloffDbPerDecade.toFixed(1)} dB/decade`),
-        h('dt', {}, 'Tolerance band'), h('dd', {}, hasTolerances ? `2.5–97.5 % of ${BAND_SAMPLES} Monte Carlo samples` : 'no part tolerances given'),
+        h('dt', {}, 'Tolerance band'), h('dd', {}, hasTolerances ? `2.5–97.5 % of ${TOLERANCE_BAND_SETTINGS.samples} Monte Carlo samples` : 'no part tolerances given'),
       );
     } catch (error) {
       this.theoryError.hidden = false;
