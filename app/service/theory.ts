@@ -13,7 +13,6 @@ import { fitSinglePoleOpAmp, FitError } from '../signal';
 import { logGrid, radiansFromDegrees, ratioFromDb } from '../units';
 import { ValidationError } from '../errors';
 
-
 export function designOf(record: DesignRecord): Design {
   return parseDesign(record.design, `design ${record.id} (${record.name})`);
 }
