@@ -2,7 +2,7 @@ import type { CommandSpec } from '../args';
 import { optionNumber, optionString } from '../args';
 import { ValidationError } from '../../errors';
 import { SAFETY_NOTICE_SHORT } from '../../service/safety';
-import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, checkBenchOptions, connectBench, openService, requestFrom, resolveBuildId } from '../../sweep/cli/sweep-options';
+import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, openService, prepareSweep } from '../../sweep/cli/sweep-options';
 import { followRun } from '../../sweep/cli/follow-run';
 import { formatEngineering } from '../../units';
 
@@ -27,11 +27,7 @@ and ends the schedule.`,
     const until = untilTime(optionString(parsed, 'until'));
     const service = openService(parsed);
     try {
-      requestFrom(parsed, 0);
-      checkBenchOptions(service, parsed);
-      const buildId = await resolveBuildId(service, parsed);
-      const request = requestFrom(parsed, buildId);
-      await connectBench(service, parsed, buildId);
+      const { buildId, request } = await prepareSweep(service, parsed);
       const report = await service.runSchedule({ request, everyMinutes, count: optionNumber(parsed, 'count'), until }, (run, index) => {
         process.stderr.write(`schedule: run ${index + 1} is run ${run.id}\n`);
         void followRun(service, run.id);

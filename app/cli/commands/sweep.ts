@@ -1,7 +1,7 @@
 import type { CommandSpec } from '../args';
 import { optionFlag } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../service/safety';
-import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, checkBenchOptions, connectBench, openService, requestFrom, resolveBuildId } from '../../sweep/cli/sweep-options';
+import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, openService, prepareSweep } from '../../sweep/cli/sweep-options';
 import { followRun } from '../../sweep/cli/follow-run';
 import { formatDuration } from '../../units';
 import { runDetailText } from '../../sweep/cli/summary-text';
@@ -30,12 +30,7 @@ Every point is stored the moment it is measured. Ctrl-C pauses after the current
         process.stderr.write(`Note: run(s) ${interrupted.map((r) => r.id).join(', ')} were left running or paused by an earlier session; ` +
           `continue one with: rolloff resume RUN --db ${service.store.path}\n`);
       }
-      // Everything that can be checked is checked before a design or build is stored.
-      requestFrom(parsed, 0);
-      checkBenchOptions(service, parsed);
-      const buildId = await resolveBuildId(service, parsed);
-      const request = requestFrom(parsed, buildId);
-      await connectBench(service, parsed, buildId);
+      const { request } = await prepareSweep(service, parsed);
       const plan = await service.planSweep(request);
       process.stderr.write(
         `plan: ${plan.steps.length} points, physical minimum ${formatDuration(plan.estimatedDurationS)} of bench time` +

@@ -78,8 +78,21 @@ export function actualValuesFrom(parsed: ParsedArgs): Record<string, number> {
   return values;
 }
 
+/**
+ * The sweep a command (sweep, schedule) asks for, with its bench connected. Everything that can be
+ * checked is checked before a design or build is stored.
+ */
+export async function prepareSweep(service: RolloffService, parsed: ParsedArgs): Promise<{ buildId: number; request: SweepRequest }> {
+  requestFrom(parsed, 0);
+  checkBenchOptions(service, parsed);
+  const buildId = await resolveBuildId(service, parsed);
+  const request = requestFrom(parsed, buildId);
+  await connectBench(service, parsed, buildId);
+  return { buildId, request };
+}
+
 /** The build to sweep: --build ID, or a new build of --design FILE. */
-export async function resolveBuildId(service: RolloffService, parsed: ParsedArgs): Promise<number> {
+async function resolveBuildId(service: RolloffService, parsed: ParsedArgs): Promise<number> {
   const buildId = optionNumber(parsed, 'build');
   const designFile = optionString(parsed, 'design');
   if (buildId !== undefined && designFile !== undefined) throw new ValidationError('--build/--design', 'give one, not both');
@@ -109,7 +122,7 @@ export function readJsonFile(path: string, where: string): unknown {
 }
 
 /** Refuses a sweep that could not start (no ceiling, no instruments) before anything is stored. */
-export function checkBenchOptions(service: RolloffService, parsed: ParsedArgs): void {
+function checkBenchOptions(service: RolloffService, parsed: ParsedArgs): void {
   if (service.maxStimulus === undefined) {
     throw new ValidationError('--max-amplitude', 'is missing and no earlier run in this database recorded one', 'Give the largest peak-to-peak voltage the circuit may see, e.g. --max-amplitude 2.');
   }
