@@ -5,9 +5,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { SerialPort } from 'serialport';
-import { startVirtualBench, type VirtualBench } from '../../../app/sim';
+import { openPtyPair, startVirtualBench, type VirtualBench } from '../../../app/sim';
 import { connect, ScpiDisconnectedError, SerialTransport, ScpiSession } from '../../../app/scpi';
-import { openPtyPair } from '../../helpers/pty';
 import { runBenchScenario, TEST_DESIGN_JSON } from './bench-scenario';
 
 describe('virtual bench over a pseudo-terminal (serialport + socat)', () => {
