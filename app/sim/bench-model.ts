@@ -119,14 +119,16 @@ export class BenchModel {
   /** Noise-free value of a node at bench time `timeS`. */
   valueAt(node: BenchNode, timeS: number): number {
     const now = this.steadyValue(this.current(), node, timeS);
+    // Only the output settles and clips; the input node follows the generator at once.
+    if (node === 'input') return now;
     let value = now;
-    if (node === 'output' && timeS > this.changedAtS) {
+    if (timeS <= this.changedAtS) {
+      value = this.steadyValue(this.previous, node, timeS);
+    } else {
       const decay = Math.exp(-(timeS - this.changedAtS) / this.circuit.timeConstantS);
       if (decay > 1e-12) value = now + (this.steadyValue(this.previous, node, timeS) - now) * decay;
-    } else if (node === 'output' && timeS <= this.changedAtS) {
-      value = this.steadyValue(this.previous, node, timeS);
     }
-    if (node === 'output' && this.circuit.rails) value = Math.min(this.circuit.rails[1], Math.max(this.circuit.rails[0], value));
+    if (this.circuit.rails) value = Math.min(this.circuit.rails[1], Math.max(this.circuit.rails[0], value));
     return value;
   }
 
