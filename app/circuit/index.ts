@@ -18,3 +18,5 @@ export { SeededRandom } from './random';
 export { slowestTimeConstantS, circuitPoles, type Poles } from './time-constant';
 export { TEMPLATES, makeDesignFromTemplate, type DesignFile } from './templates';
 export { toSpiceNetlist, spiceNames, type SpiceAnalysis, type SpiceOptions, type SpiceNames } from './spice-netlist';
+export { openLoopGainAt } from './opamp-gain';
+export { outputOpAmpIndex } from './output-opamp';

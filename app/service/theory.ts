@@ -3,9 +3,7 @@
  * it comes from the theory engine (app/circuit) applied to the build's actual
  * part values.
  */
-import { type Design, type OpAmpPart, parseDesign, withActualValues, solveAc, type AcResponse, stimulusLimitVpk, slowestTimeConstantS, monteCarloAc, TOLERANCE_BAND_SETTINGS } from '../circuit';
-import { openLoopGainAt } from '../circuit/opamp-gain';
-import { outputOpAmpIndex } from '../circuit/output-opamp';
+import { type Design, type OpAmpPart, parseDesign, withActualValues, solveAc, type AcResponse, stimulusLimitVpk, slowestTimeConstantS, monteCarloAc, TOLERANCE_BAND_SETTINGS, openLoopGainAt, outputOpAmpIndex } from '../circuit';
 import type { BuildRecord, DesignRecord, TheoryColumns } from './contract';
 import type { PlanTheory } from '../sweep/plan';
 import { minus3dbFrequenciesHz, passbandGainDb, type GbwEstimate, type TheoryAtPoints } from '../analysis';

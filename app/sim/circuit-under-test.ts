@@ -5,9 +5,8 @@
  * impedance. Two views of it: the output node (scope ch2, meter) and the
  * design's input node (scope ch1).
  */
-import { slowestTimeConstantS, solveAc, solveDcTransfer, type Design, type OpAmpModel } from '../circuit';
+import { outputOpAmpIndex, slowestTimeConstantS, solveAc, solveDcTransfer, type Design, type OpAmpModel } from '../circuit';
 // Not re-exported by app/circuit/index.ts; the same rule the theory engine uses for output limits.
-import { outputOpAmpIndex } from '../circuit/output-opamp';
 
 const EMF_NODE = '__generator_emf';
 const SOURCE_RESISTOR_ID = '__generator_source_resistance';
