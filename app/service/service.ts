@@ -5,7 +5,7 @@
  */
 import { UserError, ValidationError } from '../errors';
 import { Store, identityKey, type StoredRun } from '../store';
-import { openInstrument, builtInProfiles, loadProfiles, realClock, type BenchClock, type OpenedInstrument } from '../bench';
+import { openInstrument, builtInProfiles, loadProfiles, realClock, DEFAULT_PROFILE_ID, type BenchClock, type OpenedInstrument } from '../bench';
 import { TrafficLog } from '../scpi/traffic-log';
 import { listSerialPorts } from '../scpi/list-ports';
 import { type Design, parseDesign, solveAc, TEMPLATES, makeDesignFromTemplate, withActualValues } from '../circuit';
@@ -483,8 +483,7 @@ export class RolloffService implements RolloffApi {
     this.virtual = undefined;
     const handle = await startVirtualBenchFor(design, this.options.virtualBench ?? {});
     this.virtual = { ...handle, designName: name, key };
-    const profiles: Record<InstrumentRole, string> = { generator: 'scpi-generator', meter: 'scpi-meter', scope: 'scpi-scope' };
-    for (const role of ROLES) await this.connectRole({ role, address: handle.addresses[role], profileId: profiles[role] }, true);
+    for (const role of ROLES) await this.connectRole({ role, address: handle.addresses[role], profileId: DEFAULT_PROFILE_ID[role] }, true);
     this.events.emit('bench', await this.benchStatus());
   }
 

@@ -10,6 +10,7 @@ import { ValidationError } from '../../errors';
 import { RolloffService } from '../../service/service';
 import type { SweepRequest, VerdictLimits } from '../../service/contract';
 import { resolveDatabasePath } from '../../store';
+import { DEFAULT_PROFILE_ID } from '../../bench';
 import { parseEngineering } from '../../units';
 
 export const DATABASE_OPTION: OptionSpec = { name: 'db', kind: 'string', placeholder: 'PATH', description: 'database file (default: ROLLOFF_DB or the user data folder)' };
@@ -21,9 +22,9 @@ export const BENCH_OPTIONS: OptionSpec[] = [
   { name: 'generator', kind: 'string', placeholder: 'ADDRESS', description: 'generator address, e.g. tcp://HOST:5025 or serial:///dev/ttyUSB0?baud=9600' },
   { name: 'scope', kind: 'string', placeholder: 'ADDRESS', description: 'scope address (scope measurement)' },
   { name: 'meter', kind: 'string', placeholder: 'ADDRESS', description: 'meter address (meter or DC measurement)' },
-  { name: 'generator-profile', kind: 'string', placeholder: 'ID', description: 'generator profile', defaultValue: 'scpi-generator' },
-  { name: 'scope-profile', kind: 'string', placeholder: 'ID', description: 'scope profile', defaultValue: 'scpi-scope' },
-  { name: 'meter-profile', kind: 'string', placeholder: 'ID', description: 'meter profile', defaultValue: 'scpi-meter' },
+  { name: 'generator-profile', kind: 'string', placeholder: 'ID', description: 'generator profile', defaultValue: DEFAULT_PROFILE_ID.generator },
+  { name: 'scope-profile', kind: 'string', placeholder: 'ID', description: 'scope profile', defaultValue: DEFAULT_PROFILE_ID.scope },
+  { name: 'meter-profile', kind: 'string', placeholder: 'ID', description: 'meter profile', defaultValue: DEFAULT_PROFILE_ID.meter },
   { name: 'give-up', kind: 'number', placeholder: 'S', description: 'mark the run failed (points kept) when the instruments stay unreachable this long', defaultValue: 120 },
   { name: 'max-amplitude', kind: 'number', placeholder: 'VPP', description: 'largest generator output ever used, peak-to-peak (required once; later runs reuse the last one recorded)' },
   DATABASE_OPTION,
