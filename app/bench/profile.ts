@@ -3,7 +3,7 @@
  * data a user can write from their instrument's programming manual. Validated
  * once when loaded; every problem names the file and the field.
  */
-import type { InstrumentRole } from '../service/contract';
+import { INSTRUMENT_ROLES, type InstrumentRole } from '../service/contract';
 import { ProfileError } from './errors';
 import type { GeneratorLimits } from './roles';
 import { isQuery, templatePlaceholders } from './template';
@@ -124,7 +124,7 @@ export function validateProfile(json: unknown, file: string, builtIn = false): P
   const operations = validateOperations(file, role, json.operations);
   const common = { id: id as string, description: description as string, init: init as string[], checkErrors: checkErrors as boolean, timeoutS: timeoutS as number, operations, source: file, builtIn };
 
-  for (const other of ['generator', 'meter', 'scope'] as const) {
+  for (const other of INSTRUMENT_ROLES) {
     if (other !== role && json[other] !== undefined) fail(other, `settings for a ${other} in a ${role} profile`);
   }
   if (role === 'generator') return { ...common, role, generator: validateGeneratorSettings(file, json.generator) };

@@ -15,6 +15,9 @@ export type RunKind = 'ac' | 'dc';
 export type RunStatus = 'planned' | 'running' | 'paused' | 'done' | 'stopped' | 'failed';
 export type InstrumentRole = 'generator' | 'meter' | 'scope';
 
+/** Every instrument role, in the order a bench lists them. */
+export const INSTRUMENT_ROLES: readonly InstrumentRole[] = ['generator', 'meter', 'scope'];
+
 export interface PortInfo {
   path: string;
   manufacturer?: string;

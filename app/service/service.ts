@@ -18,7 +18,7 @@ import { dcMeasurer } from '../sweep/runner/measure-dc';
 import { RunStateError } from '../sweep/runner/errors';
 import type { StepMeasurer, StepSetting, SweepInstruments } from '../sweep/runner/types';
 import { driftSummary, type DriftRow } from '../analysis';
-import { PointFlag } from './contract';
+import { INSTRUMENT_ROLES as ROLES, PointFlag } from './contract';
 import type {
   RunFigures, BenchStatus, BuildRecord, Comparison, ConnectRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
   PointColumns, PortInfo, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunStatus, RunSummary, ServiceEventName,
@@ -76,7 +76,6 @@ function genericGeneratorLimits(): PlanInstruments['generator'] {
   return { minFrequencyHz: 1e-3, maxFrequencyHz: 1e7, maxAmplitudeVpp: 20, minAmplitudeVpp: 0 };
 }
 
-const ROLES: InstrumentRole[] = ['generator', 'meter', 'scope'];
 
 export class RolloffService implements RolloffApi {
   readonly store: Store;

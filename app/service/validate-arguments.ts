@@ -9,6 +9,7 @@
  * circuit parser; here we check shape, types and ranges.
  */
 import { ValidationError } from '../errors';
+import { INSTRUMENT_ROLES as ROLES } from './contract';
 import type {
   ConnectRequest,
   InstrumentRole,
@@ -24,7 +25,6 @@ import type {
 /** Every event the service pushes to windows. */
 export const SERVICE_EVENT_NAMES: readonly ServiceEventName[] = ['progress', 'point', 'runEvent', 'traffic', 'bench'];
 
-const ROLES: readonly InstrumentRole[] = ['generator', 'meter', 'scope'];
 const RUN_STATUSES: readonly RunStatus[] = ['planned', 'running', 'paused', 'done', 'stopped', 'failed'];
 const RECORD_FORMATS: readonly RecordFormat[] = ['pdf', 'html', 'csv', 'json'];
 

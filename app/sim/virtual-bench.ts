@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseDesign, SeededRandom, type Design } from '../circuit';
 import { scaledClock, type BenchClock } from '../bench/clock';
-import type { InstrumentRole } from '../service/contract';
+import { INSTRUMENT_ROLES as ROLES, type InstrumentRole } from '../service/contract';
 import { ValidationError } from '../errors';
 import { BenchModel } from './bench-model';
 import { CircuitUnderTest } from './circuit-under-test';
@@ -56,7 +56,6 @@ export interface VirtualBench {
   stop(): Promise<void>;
 }
 
-const ROLES: InstrumentRole[] = ['generator', 'meter', 'scope'];
 
 export async function startVirtualBench(options: VirtualBenchOptions): Promise<VirtualBench> {
   const design = parseDesign(options.design, options.designSource ?? 'virtual bench design');

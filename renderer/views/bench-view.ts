@@ -3,7 +3,7 @@
  * identities, set the maximum stimulus amplitude, start the virtual bench
  * (always labelled simulated) and watch the SCPI traffic.
  */
-import type { BenchStatus, InstrumentRole, ProfileSummary, RolloffClient, TrafficLine } from '../../app/service/contract';
+import { INSTRUMENT_ROLES as ROLES, type BenchStatus, type InstrumentRole, type ProfileSummary, type RolloffClient, type TrafficLine } from '../../app/service/contract';
 import { parseEngineering } from '../../app/units';
 import { UserError } from '../../app/errors';
 import { field, h, replaceChildren, select } from '../dom';
@@ -11,7 +11,6 @@ import { guarded, showInfo } from '../notices';
 import type { View } from '../shell';
 import type { AppState } from '../state';
 
-const ROLES: InstrumentRole[] = ['generator', 'meter', 'scope'];
 /** Enough scroll-back to see a sweep's recent exchanges without the page growing without bound. */
 const TRAFFIC_LINES_KEPT = 400;
 

@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { UserError, ValidationError } from '../../errors';
 import { startVirtualBench, parseFaultSpec, type SimFault } from '../../sim';
-import type { InstrumentRole } from '../../service/contract';
+import { INSTRUMENT_ROLES, type InstrumentRole } from '../../service/contract';
 import { formatEngineering } from '../../units';
 import { optionNumber, optionString, type CommandSpec } from '../args';
 
@@ -51,7 +51,7 @@ Examples:
     for (const spec of (parsed.options.fault as string[] | undefined) ?? []) {
       const { role, fault } = parseFaultSpec(spec);
       if (fault.kind === 'drop-link') throw new ValidationError('--fault', 'drop-link is a one-shot event; use it from the in-process API');
-      for (const target of role === 'all' ? (['generator', 'meter', 'scope'] as const) : [role]) faults[target] = fault;
+      for (const target of role === 'all' ? INSTRUMENT_ROLES : [role]) faults[target] = fault;
     }
     const bench = await startVirtualBench({
       design,
