@@ -4,7 +4,8 @@
  */
 export { buildRunRecord, type RunRecordContext } from './buildRunRecord';
 export { buildComparisonRecord, type ComparisonRecordContext } from './buildComparisonRecord';
-export { renderRecord, recordFileName, RECORD_FORMATS, type RenderedRecord } from './renderRecord';
+export { renderRecord, recordFileName, type RenderedRecord } from './renderRecord';
+export { RECORD_FORMATS } from '../service/contract';
 export { recordFromJson, recordToJson, RECORD_SCHEMA } from './jsonRecord';
 export { readCsv, writeCsv } from './csv';
 export { runDigest, runDigestInput, comparisonDigest } from './digest';

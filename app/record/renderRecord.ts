@@ -1,6 +1,6 @@
 /** One entry point from a record to the bytes of a file in any of the four formats. */
 import { ValidationError } from '../errors';
-import type { RecordFormat } from '../service/contract';
+import { RECORD_FORMATS, type RecordFormat } from '../service/contract';
 import type { AnyRecord } from './model';
 import { pdfRecord, type PdfOptions } from './pdfRecord';
 import { recordDocument, renderTextRecord, TEXT_MIME_TYPES } from './textRecord';
@@ -13,8 +13,6 @@ export interface RenderedRecord {
   mimeType: string;
   bytes: Uint8Array;
 }
-
-export const RECORD_FORMATS: readonly RecordFormat[] = ['pdf', 'html', 'csv', 'json'];
 
 export async function renderRecord(record: AnyRecord, format: RecordFormat, options: PdfOptions = {}): Promise<RenderedRecord> {
   if (!RECORD_FORMATS.includes(format)) {

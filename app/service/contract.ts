@@ -238,6 +238,8 @@ export interface Comparison {
 
 export type RecordFormat = 'pdf' | 'html' | 'csv' | 'json';
 
+export const RECORD_FORMATS: readonly RecordFormat[] = ['pdf', 'html', 'csv', 'json'];
+
 export interface ExportedRecord {
   fileName: string;
   mimeType: string;

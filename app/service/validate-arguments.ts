@@ -9,7 +9,7 @@
  * circuit parser; here we check shape, types and ranges.
  */
 import { ValidationError } from '../errors';
-import { INSTRUMENT_ROLES as ROLES } from './contract';
+import { INSTRUMENT_ROLES as ROLES, RECORD_FORMATS } from './contract';
 import type {
   ConnectRequest,
   InstrumentRole,
@@ -26,7 +26,6 @@ import type {
 export const SERVICE_EVENT_NAMES: readonly ServiceEventName[] = ['progress', 'point', 'runEvent', 'traffic', 'bench'];
 
 const RUN_STATUSES: readonly RunStatus[] = ['planned', 'running', 'paused', 'done', 'stopped', 'failed'];
-const RECORD_FORMATS: readonly RecordFormat[] = ['pdf', 'html', 'csv', 'json'];
 
 /** Sizes beyond any real use; they keep a hostile caller from making the service work hard. */
 const MAX_TEXT_CHARS = 20_000;
