@@ -30,7 +30,7 @@ then npm start again.
 
 Everything the window does also works in a browser through the headless host:
     npx rolloff serve            (then open the address it prints)
-    npx rolloff serve --virtual  (with the simulated bench)
+    npx rolloff serve --simulated  (with the simulated bench)
 `;
 
 async function main() {

@@ -1,6 +1,6 @@
 /**
  * The window's frame: header with the bench status (always saying
- * "simulated" for the virtual bench), the view navigation with keyboard
+ * "simulated" for the simulated bench), the view navigation with keyboard
  * shortcuts, the notice area, and the safety notice on first start.
  */
 import type { BenchStatus, RolloffClient } from '../app/service/contract';
@@ -81,9 +81,9 @@ export function mountShell(root: HTMLElement, client: RolloffClient, state: AppS
   });
 
   const renderBench = (bench: BenchStatus | undefined) => {
-    const simulated = bench?.virtualBench !== undefined || (bench?.instruments ?? []).some((i) => i.simulated);
+    const simulated = bench?.simulatedBench !== undefined || (bench?.instruments ?? []).some((i) => i.simulated);
     const count = bench?.instruments.length ?? 0;
-    benchChip.textContent = count === 0 && !bench?.virtualBench ? 'Bench: not connected' : `Bench: ${count} instrument${count === 1 ? '' : 's'}${simulated ? ' — SIMULATED' : ''}`;
+    benchChip.textContent = count === 0 && !bench?.simulatedBench ? 'Bench: not connected' : `Bench: ${count} instrument${count === 1 ? '' : 's'}${simulated ? ' — SIMULATED' : ''}`;
     benchChip.classList.toggle('simulated', simulated);
   };
   state.subscribe((s, changed) => {

@@ -1,5 +1,5 @@
 /**
- * The bench's sense of time. The virtual bench and the sweep runner share one
+ * The bench's sense of time. The simulated bench and the sweep runner share one
  * clock so a test can run the physics (settling, integration, record length)
  * `timeScale` times faster than real time and both sides agree on it.
  */

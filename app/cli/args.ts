@@ -18,10 +18,14 @@ export interface OptionSpec {
   placeholder?: string;
   /** May be given more than once (values collected in order). */
   repeatable?: boolean;
+  /** Old names still accepted for one release; never shown in help. */
+  aliases?: string[];
 }
 
 export interface CommandSpec {
   name: string;
+  /** Old command names still accepted for one release; never listed in help. */
+  aliases?: string[];
   summary: string;
   /** Usage line after `rolloff NAME`, e.g. "DESIGN.json [options]". */
   usage: string;
@@ -38,7 +42,7 @@ export interface ParsedArgs {
 
 /** Parses argv for one command. Numbers accept engineering notation (`--from 1m`). */
 export function parseArgs(argv: string[], specs: OptionSpec[]): ParsedArgs {
-  const byName = new Map(specs.map((spec) => [spec.name, spec]));
+  const byName = new Map(specs.flatMap((spec) => [spec.name, ...(spec.aliases ?? [])].map((name) => [name, spec] as const)));
   const positionals: string[] = [];
   const options: ParsedArgs['options'] = {};
   for (let i = 0; i < argv.length; i++) {
@@ -111,6 +115,11 @@ export function formatCommandHelp(spec: CommandSpec): string {
   lines.push('  --help'.padEnd(10) + 'show this help');
   if (spec.details) lines.push('', spec.details.trim());
   return lines.join('\n') + '\n';
+}
+
+/** The command called NAME, or by one of its old names. */
+export function findCommand(commands: CommandSpec[], name: string | undefined): CommandSpec | undefined {
+  return commands.find((c) => c.name === name || (name !== undefined && c.aliases?.includes(name)));
 }
 
 /** Typed accessors so commands do not repeat casts. */

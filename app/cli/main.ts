@@ -3,7 +3,7 @@
  * stack trace and exit 2; unexpected errors keep their stack and exit 1.
  */
 import { isUserError } from '../errors';
-import { formatCommandHelp, parseArgs, type CommandSpec } from './args';
+import { findCommand, formatCommandHelp, parseArgs, type CommandSpec } from './args';
 import { COMMANDS } from './commands';
 import { SAFETY_NOTICE_SHORT } from '../service/safety';
 
@@ -28,7 +28,7 @@ function overallHelp(): string {
 export async function main(argv: string[]): Promise<number> {
   const [name, ...rest] = argv;
   if (name === undefined || name === '--help' || name === '-h' || name === 'help') {
-    const topic = name === 'help' ? COMMANDS.find((c) => c.name === rest[0]) : undefined;
+    const topic = name === 'help' ? findCommand(COMMANDS, rest[0]) : undefined;
     process.stdout.write(topic ? formatCommandHelp(topic) : overallHelp());
     return 0;
   }
@@ -36,7 +36,7 @@ export async function main(argv: string[]): Promise<number> {
     process.stdout.write(`${await softwareVersion()}\n`);
     return 0;
   }
-  const command: CommandSpec | undefined = COMMANDS.find((c) => c.name === name);
+  const command: CommandSpec | undefined = findCommand(COMMANDS, name);
   if (!command) {
     process.stderr.write(`rolloff: unknown command "${name}".\nRun "rolloff --help" for the list of commands.\n`);
     return EXIT_USER_ERROR;

@@ -5,7 +5,7 @@ import type { RecordDesign, RunRecord } from './model';
 import { runPlots } from './recordPlots';
 import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatUncertainty, formatVolts, idnText, verdictHeadline } from './recordFormatting';
 
-export const SIMULATED_BANNER = 'SIMULATED BENCH — these readings come from the virtual bench and describe a computed circuit, not a physical board.';
+export const SIMULATED_BANNER = 'SIMULATED BENCH — these readings come from the simulated bench and describe a computed circuit, not a physical board.';
 
 export function runDocument(record: RunRecord): RecordDocument {
   const { run } = record;
@@ -22,7 +22,7 @@ export function runDocument(record: RunRecord): RecordDocument {
         ['Ended', run.endedAt ?? '—'],
         ['Points', `${run.pointCount} of ${run.plannedCount} planned`],
         ['Measured with', `Rolloff ${run.softwareVersion}`],
-        ['Bench', run.simulated ? 'simulated (virtual bench)' : 'physical instruments'],
+        ['Bench', run.simulated ? 'simulated (simulated bench)' : 'physical instruments'],
         ['Data digest (SHA-256)', record.digest.hex],
       ],
     },

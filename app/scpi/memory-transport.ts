@@ -1,6 +1,6 @@
 /**
  * An in-process pair of connected transports: what one side writes, the other
- * receives. For unit tests and for running the virtual bench inside the same
+ * receives. For unit tests and for running the simulated bench inside the same
  * process. Delivery is asynchronous (next macrotask) like a real link, so
  * ordering bugs show up here too.
  */

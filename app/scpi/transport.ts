@@ -1,7 +1,7 @@
 /**
  * The byte pipe a SCPI session talks through. Serial, TCP and the in-process
  * pair all implement it; the session never knows which one it has, so the
- * virtual bench and unit tests exercise exactly the code real instruments do.
+ * simulated bench and unit tests exercise exactly the code real instruments do.
  */
 export interface Transport {
   /** Human-readable link name for messages and logs, e.g. "serial /dev/ttyUSB0 9600 8N1". */

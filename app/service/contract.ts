@@ -52,8 +52,8 @@ export interface BenchStatus {
   instruments: InstrumentInfo[];
   /** The user's ceiling on generator output, peak-to-peak volts; never exceeded. */
   maxStimulusVpp: number;
-  /** Set when a virtual bench is running, with the addresses it answers on. */
-  virtualBench?: { addresses: Partial<Record<InstrumentRole, string>>; designName: string };
+  /** Set when a simulated bench is running, with the addresses it answers on. */
+  simulatedBench?: { addresses: Partial<Record<InstrumentRole, string>>; designName: string };
 }
 
 export interface ConnectRequest {
@@ -282,7 +282,7 @@ export interface RolloffApi {
   benchStatus(): Promise<BenchStatus>;
   connect(request: ConnectRequest): Promise<InstrumentInfo>;
   disconnect(role: InstrumentRole): Promise<void>;
-  startVirtualBench(designId: number): Promise<BenchStatus>;
+  startSimulatedBench(designId: number): Promise<BenchStatus>;
   setMaxStimulus(maxStimulusVpp: number): Promise<BenchStatus>;
 
   // Designs and builds

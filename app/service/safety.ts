@@ -12,5 +12,5 @@ export const SAFETY_NOTICE_POINTS: readonly string[] = [
   'Respect the ratings of the instruments and of every part on the board. Keep supply rails and signal levels within the op-amp\'s absolute maximum ratings.',
   'Rolloff never drives the generator above the maximum stimulus amplitude you set on the Bench view (or with --max-amplitude). Set it below what the circuit and the parts can take.',
   'An overnight sweep leaves a circuit powered and unattended. Do this only where your lab\'s rules allow it, with current-limited supplies, away from flammable material.',
-  'The virtual bench is simulated: its readings describe a computed circuit, not your board.',
+  'The simulated bench is simulated: its readings describe a computed circuit, not your board.',
 ];

@@ -1,6 +1,6 @@
 /**
  * The one service: implements RolloffApi for the window hosts and the CLI.
- * It owns the store, the connected instruments, the virtual bench and the
+ * It owns the store, the connected instruments, the simulated bench and the
  * running sweeps, and pushes ServiceEvents to whoever listens.
  */
 import { UserError, ValidationError } from '../errors';
@@ -29,7 +29,7 @@ import { buildDesign, designOf, planTheoryFor } from './theory';
 import { analyzeRun, designForBuild, designForRun, runDetail } from './run-detail';
 import { compareDetails } from './compare';
 import { SOFTWARE_VERSION } from './version';
-import { startVirtualBenchFor, type VirtualBenchHandle, type VirtualBenchSettings } from './virtual-bench';
+import { startSimulatedBenchFor, type SimulatedBenchHandle, type SimulatedBenchSettings } from './simulated-bench';
 import { exportRecordFor } from './export';
 import { throughDesign } from './through';
 
@@ -39,8 +39,8 @@ export interface RolloffServiceOptions {
   maxStimulusVpp?: number;
   /** Folder of user instrument profiles (else ROLLOFF_PROFILE_DIR). */
   profileFolder?: string;
-  /** Virtual bench options: time scale (bench seconds per wall second), noise, link latency, seed. */
-  virtualBench?: Partial<VirtualBenchSettings>;
+  /** Simulated bench options: time scale (bench seconds per wall second), noise, link latency, seed. */
+  simulatedBench?: Partial<SimulatedBenchSettings>;
   /** Give up on a run when the link stays down this long (bench seconds). Default 120 s. */
   giveUpAfterS?: number;
   /** Time an instrument needs after a setting change (s). Default 10 ms (common practice, no source). */
@@ -85,7 +85,7 @@ export class RolloffService implements RolloffApi {
   /** What each role should be connected to, kept while a link is down so reconnecting knows where. */
   private readonly wanted = new Map<InstrumentRole, { request: ConnectRequest; simulated: boolean }>();
   private readonly active = new Map<number, ActiveRun>();
-  private virtual: (VirtualBenchHandle & { designName: string; key: string }) | undefined;
+  private simulatedBenchHandle: (SimulatedBenchHandle & { designName: string; key: string }) | undefined;
   private maxStimulusVpp: number | undefined;
 
   constructor(options: RolloffServiceOptions) {
@@ -104,16 +104,16 @@ export class RolloffService implements RolloffApi {
     return this as unknown as RolloffClient;
   }
 
-  /** The bench clock: scaled for a virtual bench so settling and integration run faster, real otherwise. */
+  /** The bench clock: scaled for a simulated bench so settling and integration run faster, real otherwise. */
   get clock(): BenchClock {
-    return this.virtual?.clock ?? realClock;
+    return this.simulatedBenchHandle?.clock ?? realClock;
   }
 
   get maxStimulus(): number | undefined {
     return this.maxStimulusVpp;
   }
 
-  /** Stops sweeps (paused, resumable), closes instruments, the virtual bench and the store. */
+  /** Stops sweeps (paused, resumable), closes instruments, the simulated bench and the store. */
   async close(): Promise<void> {
     for (const [runId, run] of this.active) {
       run.control.requestPause();
@@ -121,8 +121,8 @@ export class RolloffService implements RolloffApi {
       this.active.delete(runId);
     }
     for (const role of ROLES) await this.disconnect(role);
-    await this.virtual?.stop();
-    this.virtual = undefined;
+    await this.simulatedBenchHandle?.stop();
+    this.simulatedBenchHandle = undefined;
     this.store.close();
   }
 
@@ -141,7 +141,7 @@ export class RolloffService implements RolloffApi {
     return {
       instruments: this.instrumentInfos(),
       maxStimulusVpp: this.maxStimulusVpp ?? 0,
-      virtualBench: this.virtual ? { addresses: this.virtual.addresses, designName: this.virtual.designName } : undefined,
+      simulatedBench: this.simulatedBenchHandle ? { addresses: this.simulatedBenchHandle.addresses, designName: this.simulatedBenchHandle.designName } : undefined,
     };
   }
 
@@ -162,23 +162,23 @@ export class RolloffService implements RolloffApi {
     this.events.emit('bench', await this.benchStatus());
   }
 
-  async startVirtualBench(designId: number): Promise<BenchStatus> {
+  async startSimulatedBench(designId: number): Promise<BenchStatus> {
     const record = this.store.getDesign(designId);
-    await this.startVirtualBenchForDesign(designOf(record), record.name, `design:${designId}`);
+    await this.startSimulatedBenchForDesign(designOf(record), record.name, `design:${designId}`);
     return this.benchStatus();
   }
 
-  /** A virtual bench simulating one build's actual circuit (its measured part values), connected in all three roles. */
-  async startVirtualBenchForBuild(buildId: number): Promise<BenchStatus> {
+  /** A simulated bench simulating one build's actual circuit (its measured part values), connected in all three roles. */
+  async startSimulatedBenchForBuild(buildId: number): Promise<BenchStatus> {
     const build = this.store.getBuild(buildId);
     const designRecord = this.store.getDesign(build.designId);
-    await this.startVirtualBenchForDesign(buildDesign(designRecord, build), `${designRecord.name} — build ${build.label}`, `build:${buildId}`);
+    await this.startSimulatedBenchForDesign(buildDesign(designRecord, build), `${designRecord.name} — build ${build.label}`, `build:${buildId}`);
     return this.benchStatus();
   }
 
-  /** Fault injection on the running virtual bench (tests, demos). */
-  get virtualBench(): VirtualBenchHandle | undefined {
-    return this.virtual;
+  /** Fault injection on the running simulated bench (tests, demos). */
+  get simulatedBench(): SimulatedBenchHandle | undefined {
+    return this.simulatedBenchHandle;
   }
 
   async setMaxStimulus(maxStimulusVpp: number): Promise<BenchStatus> {
@@ -251,7 +251,7 @@ export class RolloffService implements RolloffApi {
     if (request.through && (request.kind !== 'ac' || request.measurement !== 'meter')) {
       throw new ValidationError('through', 'a through-calibration is an AC meter run', 'Use measurement "meter" (rolloff sweep --through sets it).');
     }
-    await this.matchVirtualBench(request);
+    await this.matchSimulatedBench(request);
     this.requireInstrumentsFor(request);
     const plan = planSweep(this.planInput(request, maxStimulusVpp));
     const run = this.store.createRun({
@@ -300,7 +300,7 @@ export class RolloffService implements RolloffApi {
   }
 
   /**
-   * Continues a run at its next step. A simulated run gets a fresh virtual
+   * Continues a run at its next step. A simulated run gets a fresh simulated
    * bench of its build; a real one reconnects to the addresses it was measured
    * with unless instruments are already connected.
    */
@@ -312,8 +312,8 @@ export class RolloffService implements RolloffApi {
     if (this.maxStimulusVpp === undefined && typeof run.request.maxStimulusVpp === 'number') this.maxStimulusVpp = run.request.maxStimulusVpp;
     const maxStimulusVpp = this.requireMaxStimulus();
     if (run.simulated) {
-      // A fresh virtual bench of the run's build: the one it ran on may be gone with the process that crashed.
-      await this.startVirtualBenchForBuild(run.buildId);
+      // A fresh simulated bench of the run's build: the one it ran on may be gone with the process that crashed.
+      await this.startSimulatedBenchForBuild(run.buildId);
     } else {
       for (const instrument of run.bench) {
         if (!this.instruments.has(instrument.role)) await this.connectRole({ role: instrument.role, address: instrument.address, profileId: instrument.profileId }, false);
@@ -360,7 +360,7 @@ export class RolloffService implements RolloffApi {
   // ── Schedules (CLI; each repetition is an ordinary run of the same build) ──
 
   /**
-   * Repeats a sweep every `everyMinutes` (bench time: scaled on a virtual bench),
+   * Repeats a sweep every `everyMinutes` (bench time: scaled on a simulated bench),
    * `count` times or until the wall-clock time `until`, whichever comes first.
    * Resolves with every run and the drift of the figures across them.
    */
@@ -434,7 +434,7 @@ export class RolloffService implements RolloffApi {
     if (missing.length > 0) {
       throw new UserError(
         `no ${missing.join(' or ')} connected for this ${request.kind === 'dc' ? 'DC transfer' : request.measurement} sweep`,
-        'Connect it on the Bench view (or give its address, e.g. --generator tcp://127.0.0.1:5025), or use the virtual bench (--virtual).',
+        'Connect it on the Bench view (or give its address, e.g. --generator tcp://127.0.0.1:5025), or use the simulated bench (--simulated).',
       );
     }
   }
@@ -468,7 +468,7 @@ export class RolloffService implements RolloffApi {
     return { role: request.role, address: opened.address, profileId: opened.profileId, identity: opened.identity, simulated: isSimulated };
   }
 
-  private async startVirtualBenchForDesign(design: Design, name: string, key: string): Promise<void> {
+  private async startSimulatedBenchForDesign(design: Design, name: string, key: string): Promise<void> {
     this.requireIdleBench();
     for (const role of ROLES) {
       this.wanted.delete(role);
@@ -478,30 +478,30 @@ export class RolloffService implements RolloffApi {
         await connected.opened.close().catch(() => undefined);
       }
     }
-    await this.virtual?.stop();
-    this.virtual = undefined;
-    const handle = await startVirtualBenchFor(design, this.options.virtualBench ?? {});
-    this.virtual = { ...handle, designName: name, key };
+    await this.simulatedBenchHandle?.stop();
+    this.simulatedBenchHandle = undefined;
+    const handle = await startSimulatedBenchFor(design, this.options.simulatedBench ?? {});
+    this.simulatedBenchHandle = { ...handle, designName: name, key };
     for (const role of ROLES) await this.connectRole({ role, address: handle.addresses[role], profileId: DEFAULT_PROFILE_ID[role] }, true);
     this.events.emit('bench', await this.benchStatus());
   }
 
   /**
-   * On an all-simulated bench the virtual circuit follows the run: the build
+   * On an all-simulated bench the simulated circuit follows the run: the build
    * being swept (its actual part values), or for a through-calibration the same
    * build with the meter moved to the stage input (app/service/through.ts).
    */
-  private async matchVirtualBench(request: SweepRequest): Promise<void> {
-    if (!this.virtual || ![...this.instruments.values()].every((i) => i.simulated)) return;
+  private async matchSimulatedBench(request: SweepRequest): Promise<void> {
+    if (!this.simulatedBenchHandle || ![...this.instruments.values()].every((i) => i.simulated)) return;
     const key = request.through ? `through:${request.buildId}` : `build:${request.buildId}`;
-    if (this.virtual.key === key) return;
+    if (this.simulatedBenchHandle.key === key) return;
     if (!request.through) {
-      await this.startVirtualBenchForBuild(request.buildId);
+      await this.startSimulatedBenchForBuild(request.buildId);
       return;
     }
     const build = this.store.getBuild(request.buildId);
     const designRecord = this.store.getDesign(build.designId);
-    await this.startVirtualBenchForDesign(throughDesign(buildDesign(designRecord, build)), `${designRecord.name} — through connection`, key);
+    await this.startSimulatedBenchForDesign(throughDesign(buildDesign(designRecord, build)), `${designRecord.name} — through connection`, key);
   }
 
   private planInput(request: SweepRequest, maxStimulusVpp: number): PlanInput {

@@ -1,5 +1,5 @@
 /**
- * The virtual bench's through connection for a through-calibration run: the
+ * The simulated bench's through connection for a through-calibration run: the
  * build's circuit stays connected (so the generator sees the same load), and
  * the meter reads the stage input instead of its output — through a 1 mΩ link
  * into a 1 GΩ meter input, both negligible (1e-3/1e9 relative).

@@ -1,5 +1,5 @@
 /**
- * The signals on the virtual bench as functions of bench time: what the
+ * The signals on the simulated bench as functions of bench time: what the
  * generator drives (EMF), what reaches the circuit input through the 50 Ω
  * source, and what the output does — linear response from the theory engine,
  * a settling transient after each change, slew limiting and clipping at the

@@ -1,5 +1,5 @@
 /**
- * The circuit as the virtual generator sees it: the design with the
+ * The circuit as the simulated generator sees it: the design with the
  * generator's source resistance in series with its input, so the theory
  * engine itself computes the loading of a 50 Ω source by the stage's input
  * impedance. Two views of it: the output node (scope ch2, meter) and the

@@ -17,7 +17,7 @@ export interface Endpoint {
   stop(): Promise<void>;
 }
 
-/** The only interface the virtual bench listens on: it is a local simulation. */
+/** The only interface the simulated bench listens on: it is a local simulation. */
 export const LOOPBACK_HOST = '127.0.0.1';
 
 export async function listenTcp(instrument: SimInstrument, port: number, options: LinkOptions): Promise<Endpoint> {

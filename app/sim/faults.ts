@@ -1,5 +1,5 @@
 /**
- * Faults the virtual bench can inject, per instrument, to exercise the
+ * Faults the simulated bench can inject, per instrument, to exercise the
  * recovery paths of the session and the sweep runner:
  * - drop-link: the link closes now (TCP sockets reset, the PTY pair torn down
  *   and remade at the same path); one-shot, reconnecting works afterwards;

@@ -1,5 +1,5 @@
-/** The virtual bench: simulated instruments around a computed circuit. */
-export * from './virtual-bench';
+/** The simulated bench: simulated instruments around a computed circuit. */
+export * from './simulated-bench';
 export * from './faults';
 export * from './pty-pair';
 export * from './bench-model';

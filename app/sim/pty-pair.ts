@@ -1,7 +1,7 @@
 /**
  * A pair of connected pseudo-terminals made by socat: bytes written to one
  * come out of the other, with the same termios behaviour as a real serial
- * port. Used by the virtual bench (one end is the simulated instrument, the
+ * port. Used by the simulated bench (one end is the simulated instrument, the
  * other the address users connect to) and by tests.
  */
 import { spawn, type ChildProcess } from 'node:child_process';

@@ -36,7 +36,7 @@ export class SimGenerator extends SimInstrument {
     private readonly model: BenchModel,
     clock: BenchClock,
   ) {
-    super({ manufacturer: SIMULATED_MANUFACTURER, model: 'virtual generator', serialNumber: 'SIM-GEN-0001', firmware: SOFTWARE_VERSION }, clock);
+    super({ manufacturer: SIMULATED_MANUFACTURER, model: 'simulated generator', serialNumber: 'SIM-GEN-0001', firmware: SOFTWARE_VERSION }, clock);
     const limits = SIM_GENERATOR_LIMITS;
     this.define('[SOURce]:FUNCtion[:SHAPe]', ({ params }) => {
       const shape = keywordParam(params, ['SINusoid', 'DC'] as const);

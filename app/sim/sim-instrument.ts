@@ -26,7 +26,7 @@ const ESR_QUERY_ERROR = 4;
 const ESR_EXECUTION_ERROR = 16;
 const ESR_COMMAND_ERROR = 32;
 
-export const SIMULATED_MANUFACTURER = 'Rolloff virtual bench (simulated)';
+export const SIMULATED_MANUFACTURER = 'Rolloff simulated bench (simulated)';
 
 export abstract class SimInstrument {
   readonly errors = new SimErrorQueue();

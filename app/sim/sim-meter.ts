@@ -35,7 +35,7 @@ export class SimMeter extends SimInstrument {
     private readonly model: BenchModel,
     clock: BenchClock,
   ) {
-    super({ manufacturer: SIMULATED_MANUFACTURER, model: 'virtual meter', serialNumber: 'SIM-MTR-0001', firmware: SOFTWARE_VERSION }, clock);
+    super({ manufacturer: SIMULATED_MANUFACTURER, model: 'simulated meter', serialNumber: 'SIM-MTR-0001', firmware: SOFTWARE_VERSION }, clock);
     this.define('[SENSe]:FUNCtion[:ON]', ({ params }) => {
       const name = stringParam(params).toUpperCase().replace(/^VOLT(AGE)?:/, 'VOLT:');
       if (name === 'VOLT:AC') this.meterFunction = 'ac';

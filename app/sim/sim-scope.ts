@@ -54,7 +54,7 @@ export class SimScope extends SimInstrument {
     private readonly model: BenchModel,
     clock: BenchClock,
   ) {
-    super({ manufacturer: SIMULATED_MANUFACTURER, model: 'virtual scope', serialNumber: 'SIM-SCP-0001', firmware: SOFTWARE_VERSION }, clock);
+    super({ manufacturer: SIMULATED_MANUFACTURER, model: 'simulated scope', serialNumber: 'SIM-SCP-0001', firmware: SOFTWARE_VERSION }, clock);
     this.define('CHANnel#[:STATe]', ({ params, suffixes }) => {
       this.channelOn[channelIndex(suffixes[0])] = booleanParam(params);
     });

@@ -3,7 +3,7 @@
 /** "0.4 s", "45 s", "3 min 05 s", "2 h 10 min"; "—" for an unknown duration. */
 export function formatDuration(seconds: number | undefined): string {
   if (seconds === undefined || !Number.isFinite(seconds) || seconds < 0) return '—';
-  // Below 10 s a tenth matters (fast virtual-bench sweeps); above it whole seconds do.
+  // Below 10 s a tenth matters (fast simulated-bench sweeps); above it whole seconds do.
   if (seconds < 9.95) return `${seconds.toFixed(1)} s`;
   const whole = Math.round(seconds);
   if (whole < 60) return `${whole} s`;

@@ -1,6 +1,6 @@
 /**
  * Bench: connect instruments by address or from the port list, see their
- * identities, set the maximum stimulus amplitude, start the virtual bench
+ * identities, set the maximum stimulus amplitude, start the simulated bench
  * (always labelled simulated) and watch the SCPI traffic.
  */
 import { INSTRUMENT_ROLES as ROLES, type BenchStatus, type InstrumentRole, type ProfileSummary, type RolloffClient, type TrafficLine } from '../../app/service/contract';
@@ -23,8 +23,8 @@ export class BenchView implements View {
   private readonly portList = h('datalist', { id: 'port-list' });
   private readonly profileSelect = h('select', { name: 'profile' });
   private readonly maxInput = h('input', { type: 'text', name: 'max-stimulus', inputmode: 'decimal', 'data-testid': 'max-stimulus' });
-  private readonly virtualDesignSelect = h('select', { name: 'virtual-design', 'data-testid': 'virtual-design' });
-  private readonly virtualStatus = h('p', { className: 'virtual-status', 'data-testid': 'virtual-status' });
+  private readonly simulatedDesignSelect = h('select', { name: 'simulated-design', 'data-testid': 'simulated-design' });
+  private readonly simulatedStatus = h('p', { className: 'simulated-status', 'data-testid': 'simulated-status' });
   private readonly traffic = h('ol', { className: 'traffic', 'aria-label': 'Instrument traffic', 'data-testid': 'traffic' });
   private profiles: ProfileSummary[] = [];
 
@@ -63,16 +63,16 @@ export class BenchView implements View {
       });
     });
 
-    const virtualButton = h('button', { type: 'submit', 'data-testid': 'start-virtual' }, 'Start the virtual bench');
-    const virtualForm = h('form', { className: 'stack-form', 'aria-label': 'Virtual bench' }, field('Simulated circuit', this.virtualDesignSelect, 'The virtual bench answers SCPI like real instruments; its readings are computed, not measured.'), virtualButton);
-    virtualForm.addEventListener('submit', (event) => {
+    const simulatedButton = h('button', { type: 'submit', 'data-testid': 'start-simulated' }, 'Start the simulated bench');
+    const simulatedForm = h('form', { className: 'stack-form', 'aria-label': 'Simulated bench' }, field('Simulated circuit', this.simulatedDesignSelect, 'The simulated bench answers SCPI like real instruments; its readings are computed, not measured.'), simulatedButton);
+    simulatedForm.addEventListener('submit', (event) => {
       event.preventDefault();
-      void guarded(virtualButton, 'Starting the virtual bench', async () => {
-        const designId = Number(this.virtualDesignSelect.value);
-        if (!(designId >= 1)) throw new UserError('No design picked for the virtual bench.', 'Save a design on the Design view (Alt+2), then pick it here.');
-        const bench = await client.startVirtualBench(designId);
+      void guarded(simulatedButton, 'Starting the simulated bench', async () => {
+        const designId = Number(this.simulatedDesignSelect.value);
+        if (!(designId >= 1)) throw new UserError('No design picked for the simulated bench.', 'Save a design on the Design view (Alt+2), then pick it here.');
+        const bench = await client.startSimulatedBench(designId);
         state.update({ bench });
-        showInfo('Virtual bench started — simulated instruments.');
+        showInfo('Simulated bench started — simulated instruments.');
       });
     });
 
@@ -90,7 +90,7 @@ export class BenchView implements View {
       h('div', { className: 'start-row' },
         h('div', { className: 'panel' }, h('h3', {}, 'Connect'), connectForm),
         h('div', { className: 'panel' }, h('h3', {}, 'Safety limit'), maxForm),
-        h('div', { className: 'panel' }, h('h3', {}, 'Virtual bench ', h('span', { className: 'badge simulated' }, 'simulated')), virtualForm, this.virtualStatus),
+        h('div', { className: 'panel' }, h('h3', {}, 'Simulated bench ', h('span', { className: 'badge simulated' }, 'simulated')), simulatedForm, this.simulatedStatus),
       ),
       h('div', { className: 'panel' }, h('h3', {}, 'Traffic ', clearTraffic), this.traffic),
     );
@@ -98,7 +98,7 @@ export class BenchView implements View {
     client.on('traffic', (line) => this.appendTraffic(line));
     state.subscribe((s, changed) => {
       if (changed.includes('bench')) this.renderBench(s.bench);
-      if (changed.includes('design') && s.design) this.virtualDesignSelect.value = String(s.design.id);
+      if (changed.includes('design') && s.design) this.simulatedDesignSelect.value = String(s.design.id);
     });
   }
 
@@ -108,10 +108,10 @@ export class BenchView implements View {
     this.profiles = profiles;
     this.renderProfiles();
     // Keep what the user picked here if it still exists; else the design open on the Design view; else the newest.
-    const previous = Number(this.virtualDesignSelect.value);
+    const previous = Number(this.simulatedDesignSelect.value);
     const chosen = designs.some((d) => d.id === previous) ? previous : this.state.current.design?.id ?? designs.at(-1)?.id;
-    replaceChildren(this.virtualDesignSelect, designs.length === 0 ? h('option', { value: '' }, 'Save a design first (Design view)') : designs.map((d) => h('option', { value: String(d.id) }, `${d.name} (#${d.id})`)));
-    if (chosen !== undefined) this.virtualDesignSelect.value = String(chosen);
+    replaceChildren(this.simulatedDesignSelect, designs.length === 0 ? h('option', { value: '' }, 'Save a design first (Design view)') : designs.map((d) => h('option', { value: String(d.id) }, `${d.name} (#${d.id})`)));
+    if (chosen !== undefined) this.simulatedDesignSelect.value = String(chosen);
     await this.refreshBench();
   }
 
@@ -150,9 +150,9 @@ export class BenchView implements View {
             );
           }),
     );
-    const virtual = bench.virtualBench;
-    this.virtualStatus.textContent = virtual
-      ? `Running (simulated): ${virtual.designName} — ${Object.entries(virtual.addresses).map(([role, address]) => `${role} at ${address}`).join(', ')}`
+    const simulated = bench.simulatedBench;
+    this.simulatedStatus.textContent = simulated
+      ? `Running (simulated): ${simulated.designName} — ${Object.entries(simulated.addresses).map(([role, address]) => `${role} at ${address}`).join(', ')}`
       : 'Not running.';
   }
 

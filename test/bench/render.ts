@@ -6,7 +6,7 @@
  *  2. Live sweep: time from a point being measured (the service emits its
  *     `point` event right after committing it to the store) to the Sweep
  *     view's gain chart having drawn it, through the real web host, WebSocket
- *     and renderer, with the virtual bench. Target < 100 ms.
+ *     and renderer, with the simulated bench. Target < 100 ms.
  * The Compare data are invented (single-pole responses with noise), not measured.
  *
  * Run: npx tsx test/bench/render.ts
@@ -127,12 +127,12 @@ async function benchmarkCompare(page: Page): Promise<{ firstRender: number[]; ne
 
 async function benchmarkLiveSweep(page: Page): Promise<number[]> {
   const dir = mkdtempSync(join(tmpdir(), 'rolloff-render-bench-'));
-  const hosted = openHostedService({ databasePath: join(dir, 'bench.sqlite'), maxStimulusVpp: 2, virtualBench: { timeScale: 2 } });
+  const hosted = openHostedService({ databasePath: join(dir, 'bench.sqlite'), maxStimulusVpp: 2, simulatedBench: { timeScale: 2 } });
   const host = await startWebHost({ api: hosted.api, subscribe: hosted.subscribe, files: await bundleRenderer(), host: '127.0.0.1', port: 0 });
   try {
     const design = await hosted.api.saveDesign(makeDesignFromTemplate('inverting-gain', { rf: 100_000 }));
     await hosted.api.createBuild({ designId: design.id, label: 'bench board', notes: 'invented', actualValues: {} });
-    await hosted.api.startVirtualBench(design.id);
+    await hosted.api.startSimulatedBench(design.id);
     const emittedAt: number[] = [];
     const unsubscribe = hosted.subscribe((event) => {
       if (event === 'point') emittedAt.push(Date.now());

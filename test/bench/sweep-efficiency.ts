@@ -1,11 +1,11 @@
 /**
- * Sweep efficiency: wall time of a sweep on the virtual bench with a realistic
+ * Sweep efficiency: wall time of a sweep on the simulated bench with a realistic
  * link (a few ms per reply), divided by the physical minimum the plan requires
  * (Σ settle + averages · integration). Target ≤ 1.10.
  *
  * Run: npx tsx test/bench/sweep-efficiency.ts [--latency-ms 3] [--per-decade 10]
  * Real time (time scale 1), so the figure is what a bench user would see. The
- * virtual bench runs in its own process (`rolloff sim`), as instruments do, so
+ * simulated bench runs in its own process (`rolloff sim`), as instruments do, so
  * its simulation work is not charged to the sweep.
  *
  * The ratio is measured as before. The "2-reply floor" column is for reading
@@ -67,7 +67,7 @@ async function main(): Promise<void> {
       service.on('traffic', (t) => trace(`${t.role.padEnd(9)} ${t.direction.padEnd(8)} ${t.text.slice(0, 50)}`));
       service.on('point', (p) => trace(`POINT ${p.index}`));
     }
-    console.log(`sweep efficiency on the virtual bench: link latency ${latencyMs} ms per reply, ${perDecade} points/decade, real time`);
+    console.log(`sweep efficiency on the simulated bench: link latency ${latencyMs} ms per reply, ${perDecade} points/decade, real time`);
     console.log('case                                   points  physical min   wall time   ratio   overhead/point   2-reply floor');
     for (const c of cases) {
       const request = {

@@ -1,6 +1,6 @@
 /**
- * End to end in Debian's Chromium against the real `rolloff serve --virtual`
- * (real service, real SQLite file in a temp dir, virtual bench over TCP on
+ * End to end in Debian's Chromium against the real `rolloff serve --simulated`
+ * (real service, real SQLite file in a temp dir, simulated bench over TCP on
  * 127.0.0.1): pick a design, sweep, watch points and the gain-limit marker
  * arrive, stop and resume, then compare two runs. Screenshots go to
  * test/artifacts/ for a person to look at.
@@ -18,7 +18,7 @@ import { startServe, type ServeProcess } from './helpers/serve-process';
 
 const ARTIFACTS = resolve(__dirname, '../artifacts');
 
-describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff serve --virtual', () => {
+describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff serve --simulated', () => {
   let serve: ServeProcess;
   let browser: Awaited<ReturnType<typeof launchChromium>>;
   let page: Page;
@@ -26,7 +26,7 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
 
   beforeAll(async () => {
     mkdirSync(ARTIFACTS, { recursive: true });
-    serve = await startServe(['--virtual', '--time-scale', '1']);
+    serve = await startServe(['--simulated', '--time-scale', '1']);
     browser = await launchChromium({ width: 1280, height: 800 });
     page = await browser.context.newPage();
     page.on('console', (message) => {
@@ -102,13 +102,13 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
     await shot('02-design');
   });
 
-  it('sets the maximum stimulus and starts the virtual bench, labelled simulated', async () => {
+  it('sets the maximum stimulus and starts the simulated bench, labelled simulated', async () => {
     await view('1');
     await page.getByTestId('max-stimulus').fill('2');
     await page.getByRole('button', { name: 'Apply' }).click();
     await expect.poll(() => page.locator('.notice-info').last().textContent()).toMatch(/Maximum stimulus set to 2 Vpp/);
-    await expect.poll(() => page.getByTestId('virtual-design').inputValue()).toBe('1');
-    await page.getByTestId('start-virtual').click();
+    await expect.poll(() => page.getByTestId('simulated-design').inputValue()).toBe('1');
+    await page.getByTestId('start-simulated').click();
     await expect.poll(() => page.getByTestId('bench-chip').textContent(), { timeout: 20_000 }).toMatch(/3 instruments — SIMULATED/);
     await expect.poll(() => page.getByTestId('instruments').locator('tbody tr').count()).toBe(3);
     await expect.poll(() => page.getByTestId('traffic').locator('li').count()).toBeGreaterThan(0);
@@ -201,10 +201,10 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
     await page.getByTestId('create-build').click();
     await expect.poll(() => page.locator('.notice-info').last().textContent()).toMatch(/Build "log board" created/);
     await view('1');
-    await expect.poll(() => page.getByTestId('virtual-design').locator('option').count()).toBe(2);
-    await page.getByTestId('virtual-design').selectOption({ label: 'Diode-feedback log stage (#2)' });
-    await page.getByTestId('start-virtual').click();
-    await expect.poll(() => page.getByTestId('virtual-status').textContent(), { timeout: 20_000 }).toMatch(/Diode-feedback log stage/);
+    await expect.poll(() => page.getByTestId('simulated-design').locator('option').count()).toBe(2);
+    await page.getByTestId('simulated-design').selectOption({ label: 'Diode-feedback log stage (#2)' });
+    await page.getByTestId('start-simulated').click();
+    await expect.poll(() => page.getByTestId('simulated-status').textContent(), { timeout: 20_000 }).toMatch(/Diode-feedback log stage/);
     await view('3');
     await page.getByTestId('sweep-build').selectOption({ label: 'Diode-feedback log stage — log board (#2)' });
     await page.locator('select[name="kind"]').selectOption('dc');
@@ -226,9 +226,9 @@ describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff se
 
   it('marks distorted points when a fixed stimulus drives the output into the rails', async () => {
     await view('1');
-    await page.getByTestId('virtual-design').selectOption({ label: 'Gain −100 stage (invented example) (#1)' });
-    await page.getByTestId('start-virtual').click();
-    await expect.poll(() => page.getByTestId('virtual-status').textContent(), { timeout: 20_000 }).toMatch(/Gain −100 stage/);
+    await page.getByTestId('simulated-design').selectOption({ label: 'Gain −100 stage (invented example) (#1)' });
+    await page.getByTestId('start-simulated').click();
+    await expect.poll(() => page.getByTestId('simulated-status').textContent(), { timeout: 20_000 }).toMatch(/Gain −100 stage/);
     await view('3');
     await page.getByTestId('sweep-build').selectOption({ label: 'Gain −100 stage (invented example) — board A (#1)' });
     await page.locator('select[name="kind"]').selectOption('ac');

@@ -32,10 +32,10 @@ describe.skipIf(!chromiumAvailable())('resume after a crash, from the History vi
   });
 
   it('offers the killed run for resume and completes it without losing or repeating a step', async () => {
-    const first = await startServe(['--virtual', '--time-scale', '1', '--max-amplitude', '2'], { dbPath });
+    const first = await startServe(['--simulated', '--time-scale', '1', '--max-amplitude', '2'], { dbPath });
     const design = await api<{ id: number }>(first, 'saveDesign', [makeDesignFromTemplate('inverting-gain', { rf: 100_000 })]);
     const build = await api<{ id: number }>(first, 'createBuild', [{ designId: design.id, label: 'crash board', notes: 'invented example', actualValues: {} }]);
-    await api(first, 'startVirtualBench', [design.id]);
+    await api(first, 'startSimulatedBench', [design.id]);
     const request = { buildId: build.id, kind: 'ac', from: 100, to: 200_000, pointsPerDecade: 8, spacing: 'log', amplitude: { mode: 'auto' }, measurement: 'scope', minCycles: 3, averages: 1, refine: false, operator: 'e2e', notes: '' };
     const run = await api<RunSummary>(first, 'startRun', [request]);
     let before: RunSummary | undefined;
@@ -48,7 +48,7 @@ describe.skipIf(!chromiumAvailable())('resume after a crash, from the History vi
     expect(before!.status).toBe('running');
     expect(before!.pointCount).toBeLessThan(before!.plannedCount);
 
-    second = await startServe(['--virtual', '--time-scale', '4'], { dbPath });
+    second = await startServe(['--simulated', '--time-scale', '4'], { dbPath });
     const browser = await launchChromium();
     try {
       const page = await browser.context.newPage();

@@ -13,7 +13,7 @@ import type { RunDetail, SweepRequest } from '../../service/contract';
 /**
  * The invented scenario. Nothing here is a measurement of a real board: the
  * workshop, the people and the parts are made up, and the instruments are the
- * virtual bench (simulated).
+ * simulated bench (simulated).
  */
 const SCENARIO = {
   lab: 'the Juniper Yard electronics workshop (an invented lab)',
@@ -26,11 +26,11 @@ const SCENARIO = {
 
 export const demoCommand: CommandSpec = {
   name: 'demo',
-  summary: 'Invented scenario on the virtual bench: one design, two builds that differ, swept and compared',
+  summary: 'Invented scenario on the simulated bench: one design, two builds that differ, swept and compared',
   usage: '[--db PATH] [--fast]',
-  options: [DATABASE_OPTION, { name: 'fast', kind: 'flag', description: 'run the virtual bench 20× faster than real time' }],
+  options: [DATABASE_OPTION, { name: 'fast', kind: 'flag', description: 'run the simulated bench 20× faster than real time' }],
   details: `
-Starts the virtual bench (simulated instruments on 127.0.0.1, ephemeral ports), stores an invented design
+Starts the simulated bench (simulated instruments on 127.0.0.1, ephemeral ports), stores an invented design
 and two builds of it in the database, sweeps both and prints how they differ. All data is simulated.`,
   async run(parsed) {
     process.stderr.write(`${SAFETY_NOTICE_SHORT}\n\n`);
@@ -38,12 +38,12 @@ and two builds of it in the database, sweeps both and prints how they differ. Al
     const service = new RolloffService({
       databasePath: resolveDatabasePath(optionString(parsed, 'db')),
       maxStimulusVpp: 1,
-      virtualBench: { timeScale: optionFlag(parsed, 'fast') ? 20 : 1, noiseVrms: 2e-4, latencyS: 0.001 },
+      simulatedBench: { timeScale: optionFlag(parsed, 'fast') ? 20 : 1, noiseVrms: 2e-4, latencyS: 0.001 },
     });
     try {
       out('Rolloff demo — INVENTED SCENARIO, SIMULATED DATA (no real board or instrument is involved).');
       out(`Setting: ${SCENARIO.lab} drew an inverting preamp (RN 1 kΩ, RF 100 kΩ, CF 100 pF across RF,`);
-      out('generic op-amp with 1 MHz gain-bandwidth) and built it twice. Both builds are swept on the virtual bench.');
+      out('generic op-amp with 1 MHz gain-bandwidth) and built it twice. Both builds are swept on the simulated bench.');
       out();
       const file = makeDesignFromTemplate('inverting-lowpass', SCENARIO.design) as { name: string; description?: string };
       file.name = 'Demo preamp (invented)';
@@ -52,10 +52,10 @@ and two builds of it in the database, sweeps both and prints how they differ. Al
       const details: RunDetail[] = [];
       for (const spec of SCENARIO.builds) {
         const build = await service.createBuild({ designId: design.id, label: spec.label, notes: spec.notes, actualValues: spec.actualValues });
-        await service.startVirtualBenchForBuild(build.id);
+        await service.startSimulatedBenchForBuild(build.id);
         const request: SweepRequest = {
           buildId: build.id, kind: 'ac', from: 100, to: 1e6, pointsPerDecade: 8, spacing: 'log', amplitude: { mode: 'auto' },
-          measurement: 'scope', minCycles: 5, averages: 1, refine: true, operator: 'demo', notes: 'Invented demo run on the virtual bench (simulated).',
+          measurement: 'scope', minCycles: 5, averages: 1, refine: true, operator: 'demo', notes: 'Invented demo run on the simulated bench (simulated).',
           limits: { maxDeviationDb: 0.5, cornerTolerance: 0.1 },
         };
         const run = await service.startRun(request);

@@ -16,7 +16,7 @@ import { scheduleCommand } from './schedule';
 import { designCommand } from './design';
 import { buildCommand } from './build';
 import { portsCommand } from './ports';
-import { probeCommand } from './probe';
+import { identifyCommand } from './identify';
 import { queryCommand } from './query';
 import { simCommand } from './sim';
 import { exportCommand } from './export';
@@ -30,7 +30,7 @@ export const COMMANDS: CommandSpec[] = [
   designCommand,
   buildCommand,
   portsCommand,
-  probeCommand,
+  identifyCommand,
   queryCommand,
   simCommand,
   sweepCommand,

@@ -17,7 +17,7 @@ Pseudo-terminals made by "rolloff sim --pty DIR" are not listed; use the address
       return 0;
     }
     if (ports.length === 0) {
-      process.stdout.write('No serial ports found. Check the cable and driver, or start a virtual bench with "rolloff sim".\n');
+      process.stdout.write('No serial ports found. Check the cable and driver, or start a simulated bench with "rolloff sim".\n');
       return 0;
     }
     const rows = [['PATH', 'USB VID:PID', 'SERIAL NUMBER', 'MANUFACTURER'], ...ports.map((p) => [p.path, p.vendorId ? `${p.vendorId}:${p.productId ?? '?'}` : '-', p.serialNumber ?? '-', p.manufacturer ?? '-'])];

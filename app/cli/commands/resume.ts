@@ -11,9 +11,9 @@ export const resumeCommand: CommandSpec = {
   name: 'resume',
   summary: 'Continue a paused, interrupted or failed run at its next step (no point lost or repeated)',
   usage: 'RUN [--db PATH] [--max-amplitude VPP] [--generator ADDR …]',
-  options: BENCH_OPTIONS.filter((o) => o.name !== 'virtual'),
+  options: BENCH_OPTIONS.filter((o) => o.name !== 'simulated'),
   details: `
-A simulated run continues on a fresh virtual bench of its build. A real run reconnects to the
+A simulated run continues on a fresh simulated bench of its build. A real run reconnects to the
 addresses it was measured with, unless other addresses are given. The maximum stimulus recorded
 with the run applies unless --max-amplitude is given.`,
   async run(parsed) {

@@ -9,7 +9,7 @@ import { formatEngineering } from '../../units';
 export const scheduleCommand: CommandSpec = {
   name: 'schedule',
   summary: 'Repeat a sweep of one build every M minutes, N times or until a time, and report the drift',
-  usage: '(--build ID | --design FILE.json …) --every MIN (--count N | --until TIME) (--virtual | --generator ADDR …) [plan options]',
+  usage: '(--build ID | --design FILE.json …) --every MIN (--count N | --until TIME) (--simulated | --generator ADDR …) [plan options]',
   options: [
     { name: 'every', kind: 'number', placeholder: 'MIN', description: 'minutes from the start of one run to the start of the next' },
     { name: 'count', kind: 'integer', placeholder: 'N', description: 'number of runs' },

@@ -10,8 +10,8 @@ import { bundleRenderer } from '../../host/renderer-bundle';
 import { startWebHost } from '../../host/web-host';
 import { openHostedService } from '../../host/hosted-service';
 
-/** Virtual bench seconds per wall second with --virtual: a 40-point sweep takes seconds, not minutes (common practice, no source). */
-const DEFAULT_VIRTUAL_TIME_SCALE = 10;
+/** Simulated bench seconds per wall second with --simulated: a 40-point sweep takes seconds, not minutes (common practice, no source). */
+const DEFAULT_SIMULATED_TIME_SCALE = 10;
 
 export const serveCommand: CommandSpec = {
   name: 'serve',
@@ -21,8 +21,8 @@ export const serveCommand: CommandSpec = {
     { name: 'host', kind: 'string', description: 'address to listen on; anything but loopback requires the printed access token', defaultValue: '127.0.0.1', placeholder: 'ADDRESS' },
     { name: 'port', kind: 'integer', description: 'TCP port (0 picks a free one)', defaultValue: 8765, placeholder: 'N' },
     { name: 'db', kind: 'string', description: 'database file (default: ROLLOFF_DB or the per-user data folder)', placeholder: 'PATH' },
-    { name: 'virtual', kind: 'flag', description: 'run the virtual bench on a fast clock (simulated instruments; start it on the Bench view)' },
-    { name: 'time-scale', kind: 'number', description: 'virtual bench seconds per wall-clock second, with --virtual', defaultValue: DEFAULT_VIRTUAL_TIME_SCALE, placeholder: 'N' },
+    { name: 'simulated', kind: 'flag', aliases: ['virtual'], description: 'run the simulated bench on a fast clock (simulated instruments; start it on the Bench view)' },
+    { name: 'time-scale', kind: 'number', description: 'simulated bench seconds per wall-clock second, with --simulated', defaultValue: DEFAULT_SIMULATED_TIME_SCALE, placeholder: 'N' },
     { name: 'max-amplitude', kind: 'number', description: 'maximum stimulus, V peak-to-peak (else set it on the Bench view)', placeholder: 'VPP' },
     { name: 'require-token', kind: 'flag', description: 'require the access token even on a loopback address' },
   ],
@@ -34,22 +34,22 @@ address and has the token can drive your instruments, so share it with care.
 Stop with Ctrl+C: running sweeps are paused (resumable), nothing is lost.
 
 Examples:
-  rolloff serve --virtual --max-amplitude 2
+  rolloff serve --simulated --max-amplitude 2
   rolloff serve --db bench.sqlite --port 9000`,
 
   async run(parsed) {
     const host = optionString(parsed, 'host') ?? '127.0.0.1';
     const port = optionNumber(parsed, 'port') ?? 8765;
     if (port < 0 || port > 65_535) throw new UserError(`--port ${port} is not a TCP port`, 'Use a number from 1 to 65535, or 0 for any free port.');
-    const virtual = optionFlag(parsed, 'virtual');
-    const timeScale = optionNumber(parsed, 'time-scale') ?? DEFAULT_VIRTUAL_TIME_SCALE;
+    const simulated = optionFlag(parsed, 'simulated');
+    const timeScale = optionNumber(parsed, 'time-scale') ?? DEFAULT_SIMULATED_TIME_SCALE;
     if (!(timeScale > 0)) throw new UserError(`--time-scale ${timeScale} must be above 0`, 'Use 1 for real time, 10 for ten times faster.');
     const maxStimulusVpp = optionNumber(parsed, 'max-amplitude');
     if (maxStimulusVpp !== undefined && !(maxStimulusVpp > 0)) throw new UserError(`--max-amplitude ${maxStimulusVpp} must be above 0 V`, 'Give the largest peak-to-peak voltage the circuit may see, e.g. 2.');
     const databasePath = resolveDatabasePath(optionString(parsed, 'db'));
 
     const files = await bundleRenderer();
-    const hosted = openHostedService({ databasePath, maxStimulusVpp, virtualBench: virtual ? { timeScale } : undefined });
+    const hosted = openHostedService({ databasePath, maxStimulusVpp, simulatedBench: simulated ? { timeScale } : undefined });
     let webHost: Awaited<ReturnType<typeof startWebHost>>;
     try {
       webHost = await startWebHost({
@@ -71,7 +71,7 @@ Examples:
     }
 
     const lines = [
-      `Rolloff is serving the window${virtual ? ' with the virtual bench (SIMULATED instruments)' : ''}.`,
+      `Rolloff is serving the window${simulated ? ' with the simulated bench (SIMULATED instruments)' : ''}.`,
       `Database: ${databasePath}`,
       `Open ${webHost.url}`,
     ];

@@ -1,17 +1,17 @@
 /**
- * `rolloff sim`: starts the virtual bench and prints the addresses it answers
+ * `rolloff sim`: starts the simulated bench and prints the addresses it answers
  * on; runs until Ctrl-C. Everything it reports is simulated.
  */
 import { readFileSync } from 'node:fs';
 import { UserError, ValidationError } from '../../errors';
-import { startVirtualBench, parseFaultSpec, type SimFault } from '../../sim';
+import { startSimulatedBench, parseFaultSpec, type SimFault } from '../../sim';
 import { INSTRUMENT_ROLES, type InstrumentRole } from '../../service/contract';
 import { formatEngineering } from '../../units';
 import { optionNumber, optionString, type CommandSpec } from '../args';
 
 export const simCommand: CommandSpec = {
   name: 'sim',
-  summary: 'Start the virtual bench (simulated generator, meter and scope around a design)',
+  summary: 'Start the simulated bench (simulated generator, meter and scope around a design)',
   usage: '--design DESIGN.json [--tcp PORT | --pty DIR] [options]',
   options: [
     { name: 'design', kind: 'string', placeholder: 'FILE', description: 'design file of the simulated circuit (required)' },
@@ -53,7 +53,7 @@ Examples:
       if (fault.kind === 'drop-link') throw new ValidationError('--fault', 'drop-link is a one-shot event; use it from the in-process API');
       for (const target of role === 'all' ? INSTRUMENT_ROLES : [role]) faults[target] = fault;
     }
-    const bench = await startVirtualBench({
+    const bench = await startSimulatedBench({
       design,
       designSource: designPath,
       ...(pty !== undefined ? { pty } : { tcpPort: tcpPort ?? 0 }),
@@ -69,7 +69,7 @@ Examples:
       throw error;
     });
     const lines = [
-      `Virtual bench running — SIMULATED instruments, design "${bench.design.name}"`,
+      `Simulated bench running — SIMULATED instruments, design "${bench.design.name}"`,
       `  generator  ${bench.addresses.generator}`,
       `  meter      ${bench.addresses.meter}`,
       `  scope      ${bench.addresses.scope}   (ch1 = circuit input, ch2 = output)`,
@@ -82,7 +82,7 @@ Examples:
       process.once('SIGTERM', () => resolve());
     });
     await bench.stop();
-    process.stdout.write('Virtual bench stopped.\n');
+    process.stdout.write('Simulated bench stopped.\n');
     return 0;
   },
 };

@@ -11,13 +11,13 @@ import { formatEngineering } from '../../units';
 export const sweepCommand: CommandSpec = {
   name: 'sweep',
   summary: 'Sweep a build (frequency or DC transfer), store every point, compare with theory',
-  usage: '(--build ID | --design FILE.json [--label TEXT] [--actual PART=VALUE …]) (--virtual | --generator ADDR --scope ADDR|--meter ADDR) [options]',
+  usage: '(--build ID | --design FILE.json [--label TEXT] [--actual PART=VALUE …]) (--simulated | --generator ADDR --scope ADDR|--meter ADDR) [options]',
   options: [...BUILD_OPTIONS, ...BENCH_OPTIONS, ...PLAN_OPTIONS, { name: 'json', kind: 'flag', description: 'print the finished run (RunDetail) as JSON on stdout' }],
   details: `
 Examples:
-  rolloff sweep --design lowpass.json --label "board A" --virtual --max-amplitude 2
+  rolloff sweep --design lowpass.json --label "board A" --simulated --max-amplitude 2
   rolloff sweep --build 3 --generator tcp://192.0.2.10:5025 --scope tcp://192.0.2.11:5025 --max-amplitude 1 --from 10 --to 1meg
-  rolloff sweep --build 4 --dc --from 1m --to 10 --per-decade 5 --virtual --max-amplitude 20
+  rolloff sweep --build 4 --dc --from 1m --to 10 --per-decade 5 --simulated --max-amplitude 20
 
 Every point is stored the moment it is measured. Ctrl-C pauses after the current point;
 "rolloff resume RUN" continues where it stopped.`,
@@ -34,14 +34,14 @@ Every point is stored the moment it is measured. Ctrl-C pauses after the current
       const plan = await service.planSweep(request);
       process.stderr.write(
         `plan: ${plan.steps.length} points, physical minimum ${formatDuration(plan.estimatedDurationS)} of bench time` +
-          `${service.clock.timeScale !== 1 ? ` (virtual bench ×${service.clock.timeScale})` : ''}; maximum stimulus ${service.maxStimulus} Vpp\n`,
+          `${service.clock.timeScale !== 1 ? ` (simulated bench ×${service.clock.timeScale})` : ''}; maximum stimulus ${service.maxStimulus} Vpp\n`,
       );
       for (const warning of plan.warnings) process.stderr.write(`plan warning: ${warning}\n`);
-      if (request.through && !optionFlag(parsed, 'virtual')) {
+      if (request.through && !optionFlag(parsed, 'simulated')) {
         process.stderr.write('through-calibration: the meter must read the generator output directly (stage bypassed); the result becomes this bench\'s calibration.\n');
       }
       const run = await service.startRun(request);
-      process.stderr.write(`run ${run.id} started${run.simulated ? ' on the virtual bench (simulated)' : ''}; database ${service.store.path}\n`);
+      process.stderr.write(`run ${run.id} started${run.simulated ? ' on the simulated bench (simulated)' : ''}; database ${service.store.path}\n`);
       const status = await followRun(service, run.id).catch((error) => {
         throw error;
       });

@@ -34,7 +34,7 @@ export interface DiodeTheory {
 
 export function runDetailText(detail: RunDetail, diode?: DiodeTheory): string {
   const lines = [
-    `run ${detail.id}  ${detail.kind.toUpperCase()}  ${detail.status}${detail.simulated ? '  (SIMULATED: virtual bench)' : ''}`,
+    `run ${detail.id}  ${detail.kind.toUpperCase()}  ${detail.status}${detail.simulated ? '  (SIMULATED: simulated bench)' : ''}`,
     `build "${detail.buildLabel}" of design "${detail.designName}"`,
     `points ${detail.pointCount}/${detail.plannedCount} planned   started ${detail.startedAt ?? '—'}   ended ${detail.endedAt ?? '—'}`,
     '',

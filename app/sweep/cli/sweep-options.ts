@@ -16,9 +16,9 @@ import { parseEngineering } from '../../units';
 export const DATABASE_OPTION: OptionSpec = { name: 'db', kind: 'string', placeholder: 'PATH', description: 'database file (default: ROLLOFF_DB or the user data folder)' };
 
 export const BENCH_OPTIONS: OptionSpec[] = [
-  { name: 'virtual', kind: 'flag', description: 'use the virtual bench (simulated instruments on 127.0.0.1) with the build\'s circuit' },
-  { name: 'time-scale', kind: 'number', placeholder: 'X', description: 'virtual bench: bench seconds per wall second', defaultValue: 1 },
-  { name: 'noise', kind: 'number', placeholder: 'VRMS', description: 'virtual bench: output noise in volts RMS', defaultValue: 1e-4 },
+  { name: 'simulated', kind: 'flag', aliases: ['virtual'], description: 'use the simulated bench (simulated instruments on 127.0.0.1) with the build\'s circuit' },
+  { name: 'time-scale', kind: 'number', placeholder: 'X', description: 'simulated bench: bench seconds per wall second', defaultValue: 1 },
+  { name: 'noise', kind: 'number', placeholder: 'VRMS', description: 'simulated bench: output noise in volts RMS', defaultValue: 1e-4 },
   { name: 'generator', kind: 'string', placeholder: 'ADDRESS', description: 'generator address, e.g. tcp://HOST:5025 or serial:///dev/ttyUSB0?baud=9600' },
   { name: 'scope', kind: 'string', placeholder: 'ADDRESS', description: 'scope address (scope measurement)' },
   { name: 'meter', kind: 'string', placeholder: 'ADDRESS', description: 'meter address (meter or DC measurement)' },
@@ -56,7 +56,7 @@ export const BUILD_OPTIONS: OptionSpec[] = [
   { name: 'actual', kind: 'string', placeholder: 'PART=VALUE', repeatable: true, description: 'measured part value of the new build, e.g. C1=16.2n' },
 ];
 
-/** Opens the service on --db; the virtual bench options apply when --virtual is used. */
+/** Opens the service on --db; the simulated bench options apply when --simulated is used. */
 export function openService(parsed: ParsedArgs, overrides: { timeScale?: number; latencyS?: number } = {}): RolloffService {
   const timeScale = overrides.timeScale ?? optionNumber(parsed, 'time-scale') ?? 1;
   if (!(timeScale > 0)) throw new ValidationError('--time-scale', `${timeScale} is not a positive number`);
@@ -64,7 +64,7 @@ export function openService(parsed: ParsedArgs, overrides: { timeScale?: number;
     databasePath: resolveDatabasePath(optionString(parsed, 'db')),
     maxStimulusVpp: optionNumber(parsed, 'max-amplitude'),
     giveUpAfterS: optionNumber(parsed, 'give-up') ?? 120,
-    virtualBench: { timeScale, noiseVrms: optionNumber(parsed, 'noise') ?? 1e-4, latencyS: overrides.latencyS ?? 0 },
+    simulatedBench: { timeScale, noiseVrms: optionNumber(parsed, 'noise') ?? 1e-4, latencyS: overrides.latencyS ?? 0 },
   });
 }
 
@@ -127,15 +127,15 @@ function checkBenchOptions(service: RolloffService, parsed: ParsedArgs): void {
   if (service.maxStimulus === undefined) {
     throw new ValidationError('--max-amplitude', 'is missing and no earlier run in this database recorded one', 'Give the largest peak-to-peak voltage the circuit may see, e.g. --max-amplitude 2.');
   }
-  if (!optionFlag(parsed, 'virtual') && !optionString(parsed, 'generator')) {
-    throw new ValidationError('--generator', 'no instruments given', 'Give --generator ADDRESS with --scope or --meter ADDRESS, or use --virtual for the simulated bench.');
+  if (!optionFlag(parsed, 'simulated') && !optionString(parsed, 'generator')) {
+    throw new ValidationError('--generator', 'no instruments given', 'Give --generator ADDRESS with --scope or --meter ADDRESS, or use --simulated for the simulated bench.');
   }
 }
 
-/** Connects what the options name: the virtual bench of the build, or the given addresses. */
+/** Connects what the options name: the simulated bench of the build, or the given addresses. */
 export async function connectBench(service: RolloffService, parsed: ParsedArgs, buildId: number): Promise<void> {
-  if (optionFlag(parsed, 'virtual')) {
-    await service.startVirtualBenchForBuild(buildId);
+  if (optionFlag(parsed, 'simulated')) {
+    await service.startSimulatedBenchForBuild(buildId);
     return;
   }
   for (const role of ['generator', 'scope', 'meter'] as const) {

@@ -1,5 +1,5 @@
 /**
- * One scenario run against the virtual bench over whichever link the test
+ * One scenario run against the simulated bench over whichever link the test
  * opened (PTY or TCP), so both transports are held to the same checks.
  *
  * Expected values come from the theory engine (app/circuit solveAc) applied
@@ -10,7 +10,7 @@
 import { expect } from 'vitest';
 import { openInstrument, type OpenedInstrument } from '../../../app/bench';
 import { parseDesign, solveAc, type Design } from '../../../app/circuit';
-import type { VirtualBench } from '../../../app/sim';
+import type { SimulatedBench } from '../../../app/sim';
 import { sineFit3 } from '../../../app/signal';
 import { degreesFromRadians } from '../../../app/units';
 
@@ -60,7 +60,7 @@ export interface OpenedBench {
   close(): Promise<void>;
 }
 
-export async function openBench(bench: VirtualBench): Promise<OpenedBench> {
+export async function openBench(bench: SimulatedBench): Promise<OpenedBench> {
   const generator = await openInstrument(bench.addresses.generator, 'generator', 'scpi-generator', { maxStimulusVpp: 2 });
   const meter = await openInstrument(bench.addresses.meter, 'meter', 'scpi-meter');
   const scope = await openInstrument(bench.addresses.scope, 'scope', 'scpi-scope');
@@ -75,7 +75,7 @@ export async function openBench(bench: VirtualBench): Promise<OpenedBench> {
 }
 
 /** The checks every transport must pass. */
-export async function runBenchScenario(bench: VirtualBench): Promise<void> {
+export async function runBenchScenario(bench: SimulatedBench): Promise<void> {
   const design = parseDesign(TEST_DESIGN_JSON);
   const opened = await openBench(bench);
   try {

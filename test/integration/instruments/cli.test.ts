@@ -1,6 +1,6 @@
 /**
  * The instrument commands as a user runs them: `rolloff sim` in its own
- * process (TCP on 127.0.0.1), then `probe` and `query` against it, and bad
+ * process (TCP on 127.0.0.1), then `identify` and `query` against it, and bad
  * input refused with a message and no stack trace (exit 2).
  */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
@@ -19,7 +19,7 @@ function rolloff(...args: string[]): { status: number | null; stdout: string; st
   return { status: result.status, stdout: result.stdout, stderr: result.stderr };
 }
 
-describe('rolloff sim / probe / query', () => {
+describe('rolloff sim / identify / query', () => {
   let dir: string;
   let sim: ChildProcess;
   let simOutput = '';
@@ -54,19 +54,19 @@ describe('rolloff sim / probe / query', () => {
     for (const address of Object.values(addresses)) expect(address).toMatch(/^tcp:\/\/127\.0\.0\.1:\d+$/);
   });
 
-  it('probe prints the *IDN? fields and reports then clears the error queue', async () => {
-    // Put an error in the queue first (and leave it there), so probe has something to report.
+  it('identify prints the *IDN? fields and reports then clears the error queue', async () => {
+    // Put an error in the queue first (and leave it there), so identify has something to report.
     const session = await connect(addresses.meter);
     await session.write('NOT:A:COMMAND');
     await session.operationComplete();
     await session.close();
-    const result = rolloff('probe', addresses.meter);
+    const result = rolloff('identify', addresses.meter);
     expect(result.status).toBe(0);
-    expect(result.stdout).toMatch(/Manufacturer:\s+Rolloff virtual bench \(simulated\)/);
-    expect(result.stdout).toMatch(/Model:\s+virtual meter/);
+    expect(result.stdout).toMatch(/Manufacturer:\s+Rolloff simulated bench \(simulated\)/);
+    expect(result.stdout).toMatch(/Model:\s+simulated meter/);
     expect(result.stdout).toMatch(/Error queue:\s+1 entry/);
     expect(result.stdout).toMatch(/-113,"Undefined header/);
-    expect(rolloff('probe', addresses.meter).stdout).toMatch(/Error queue:\s+empty/);
+    expect(rolloff('identify', addresses.meter).stdout).toMatch(/Error queue:\s+empty/);
   });
 
   it('query sends each command in order, prints replies and blocks, and exits 0 with an empty error queue', () => {
@@ -88,15 +88,15 @@ describe('rolloff sim / probe / query', () => {
   });
 
   it('bad addresses and unreachable instruments give a message and hint, no stack trace, exit 2', () => {
-    const bad = rolloff('probe', 'gpib0::7::INSTR');
+    const bad = rolloff('identify', 'gpib0::7::INSTR');
     expect(bad.status).toBe(2);
     expect(bad.stderr).toMatch(/not a recognised address form/);
     expect(bad.stderr).toMatch(/Accepted forms/);
     expect(bad.stderr).not.toMatch(/\bat .*\.ts:\d+/);
-    const refused = rolloff('probe', 'tcp://127.0.0.1:1');
+    const refused = rolloff('identify', 'tcp://127.0.0.1:1');
     expect(refused.status).toBe(2);
     expect(refused.stderr).toMatch(/cannot open tcp:\/\/127\.0\.0\.1:1/);
-    const noPort = rolloff('probe', 'serial:///dev/rolloff-no-such-port', '--bauds', '9600,19200');
+    const noPort = rolloff('identify', 'serial:///dev/rolloff-no-such-port', '--bauds', '9600,19200');
     expect(noPort.status).toBe(2);
     expect(noPort.stderr).toMatch(/cannot open serial/);
     const noDesign = rolloff('sim', '--tcp', '0');
@@ -114,6 +114,6 @@ describe('rolloff sim / probe / query', () => {
     sim.kill('SIGINT');
     const code = await new Promise((r) => sim.once('exit', r));
     expect(code).toBe(0);
-    expect(simOutput).toContain('Virtual bench stopped.');
+    expect(simOutput).toContain('Simulated bench stopped.');
   });
 });

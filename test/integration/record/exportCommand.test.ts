@@ -1,5 +1,5 @@
 /**
- * `rolloff export` end to end on real data: two builds swept on the virtual
+ * `rolloff export` end to end on real data: two builds swept on the simulated
  * bench over TCP on 127.0.0.1 (labelled simulated), stored in a real SQLite
  * file, then exported by the real CLI in a child process. Exporting must never
  * change the database: its bytes, modification time and row counts are compared
@@ -104,7 +104,7 @@ async function cliHere(...args: string[]): Promise<{ code: number; stdout: strin
 function request(buildId: number): SweepRequest {
   return {
     buildId, kind: 'ac', from: 100, to: 100e3, pointsPerDecade: 4, spacing: 'log', amplitude: { mode: 'auto' }, measurement: 'scope',
-    minCycles: 5, averages: 1, refine: false, operator: 'integration test', notes: 'Virtual bench run for the export test <b>&</b>.',
+    minCycles: 5, averages: 1, refine: false, operator: 'integration test', notes: 'Simulated bench run for the export test <b>&</b>.',
     limits: { maxDeviationDb: 1, cornerTolerance: 0.1 },
   };
 }
@@ -112,7 +112,7 @@ function request(buildId: number): SweepRequest {
 let before: DatabaseState;
 
 beforeAll(async () => {
-  const service = new RolloffService({ databasePath, maxStimulusVpp: 1, virtualBench: { timeScale: 50, noiseVrms: 1e-4, link: 'tcp' } });
+  const service = new RolloffService({ databasePath, maxStimulusVpp: 1, simulatedBench: { timeScale: 50, noiseVrms: 1e-4, link: 'tcp' } });
   try {
     // Inverting low-pass, gain −10, corner 1/(2π·10 kΩ·15 nF) ≈ 1.06 kHz (template defaults).
     const design = await service.saveDesign(makeDesignFromTemplate('inverting-lowpass', {}));
@@ -121,7 +121,7 @@ beforeAll(async () => {
       await service.createBuild({ designId: design.id, label: 'Board B', notes: 'second board, CF from another reel', actualValues: { CF: 16e-9 } }),
     ];
     for (const build of builds) {
-      await service.startVirtualBenchForBuild(build.id);
+      await service.startSimulatedBenchForBuild(build.id);
       const started = await service.startRun(request(build.id));
       expect(await service.waitForRun(started.id)).toBe('done');
       runIds.push(started.id);
@@ -130,7 +130,7 @@ beforeAll(async () => {
     // A DC transfer run of the log-stage template on the meter, for the log-stage record.
     const logDesign = await service.saveDesign(makeDesignFromTemplate('log-stage', {}));
     const logBuild = await service.createBuild({ designId: logDesign.id, label: 'Log board', notes: '', actualValues: {} });
-    await service.startVirtualBenchForBuild(logBuild.id);
+    await service.startSimulatedBenchForBuild(logBuild.id);
     await service.setMaxStimulus(12); // a 5 V DC level is a 10 Vpp excursion for the stimulus ceiling
     const dcRun = await service.startRun({
       buildId: logBuild.id, kind: 'dc', from: 1e-3, to: 5, pointsPerDecade: 3, spacing: 'log', amplitude: { mode: 'fixed', vpp: 0 },
@@ -147,7 +147,7 @@ beforeAll(async () => {
 
 afterAll(() => rmSync(folder, { recursive: true, force: true }));
 
-describe('rolloff export on a real virtual-bench run', () => {
+describe('rolloff export on a real simulated-bench run', () => {
   it('writes a PDF that names the build, the instruments, the digest and the verdict', async () => {
     const result = await cli('export', String(runIds[0]), '--pdf', '--db', databasePath, '--out', outFolder);
     expect(result.stderr).toBe('');

@@ -408,7 +408,7 @@ describe('designs, builds, runs and the rest', () => {
     expect(() => store.appendEvent(run.id, 'loud' as never, 'x')).toThrow(/event.level/);
     expect(() => store.appendEvent(555, 'info', 'x')).toThrow(RecordNotFoundError);
 
-    const identity = { manufacturer: 'Rolloff virtual bench', model: 'generator (simulated)', serialNumber: '0001', firmware: '1.0' };
+    const identity = { manufacturer: 'Rolloff simulated bench', model: 'generator (simulated)', serialNumber: '0001', firmware: '1.0' };
     const first = store.recordInstrument({ role: 'generator', identity, address: 'tcp://127.0.0.1:5025', at: '2026-01-01T00:00:00.000Z' });
     const later = store.recordInstrument({ role: 'generator', identity, address: 'tcp://127.0.0.1:5025', at: '2026-01-02T00:00:00.000Z' });
     expect(later.id).toBe(first.id);

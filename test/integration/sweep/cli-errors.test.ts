@@ -20,11 +20,11 @@ describe('sweep command errors', () => {
   const db = join(folder.path, 'errors.sqlite');
 
   it.each([
-    [['sweep', '--design', design, '--virtual'], /--max-amplitude: is missing/],
+    [['sweep', '--design', design, '--simulated'], /--max-amplitude: is missing/],
     [['sweep', '--design', design, '--max-amplitude', '1'], /--generator: no instruments given/],
-    [['sweep', '--design', design, '--virtual', '--max-amplitude', '1', '--measure', 'probe'], /--measure: "probe" is not scope or meter/],
-    [['sweep', '--design', design, '--virtual', '--max-amplitude', '1', '--from', '1k', '--to', '10'], /from\/to: the range/],
-    [['sweep', '--design', join(folder.path, 'missing.json'), '--virtual', '--max-amplitude', '1'], /--design: cannot read/],
+    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--measure', 'probe'], /--measure: "probe" is not scope or meter/],
+    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--from', '1k', '--to', '10'], /from\/to: the range/],
+    [['sweep', '--design', join(folder.path, 'missing.json'), '--simulated', '--max-amplitude', '1'], /--design: cannot read/],
     [['show', 'x1'], /RUN: "x1" is not a run number/],
   ])('%j is refused cleanly', (args, message) => {
     const result = spawnSync(process.execPath, [BIN, ...args, '--db', db], { encoding: 'utf8' });

@@ -15,11 +15,11 @@ describe('compareRuns', () => {
   const runIds: number[] = [];
 
   beforeAll(async () => {
-    service = new RolloffService({ databasePath: join(folder.path, 'cmp.sqlite'), maxStimulusVpp: 1, virtualBench: { timeScale: 50 } });
+    service = new RolloffService({ databasePath: join(folder.path, 'cmp.sqlite'), maxStimulusVpp: 1, simulatedBench: { timeScale: 50 } });
     const design = await service.saveDesign(makeDesignFromTemplate('inverting-lowpass', { cf: 15e-9 }));
     for (const [label, cf] of [['as drawn', 15e-9], ['double CF', 30e-9]] as const) {
       const build = await service.createBuild({ designId: design.id, label, notes: '', actualValues: { CF: cf } });
-      await service.startVirtualBenchForBuild(build.id);
+      await service.startSimulatedBenchForBuild(build.id);
       const run = await service.startRun(sweepRequest(build.id, { from: 30, to: 30e3, pointsPerDecade: 8 }));
       await service.waitForRun(run.id);
       runIds.push(run.id);

@@ -1,5 +1,5 @@
 /**
- * Recovery and control on the virtual bench over TCP (127.0.0.1): a pulled
+ * Recovery and control on the simulated bench over TCP (127.0.0.1): a pulled
  * link mid-sweep is reconnected and the step repeated; a bench that stays
  * gone makes the run fail after the give-up time with every point kept, and
  * resume finishes it; pause/resume/stop through the service API. The
@@ -20,10 +20,10 @@ describe('faults and run control', () => {
 
   beforeEach(async () => {
     folder = tempFolder();
-    service = new RolloffService({ databasePath: join(folder.path, 'runs.sqlite'), maxStimulusVpp: 1, giveUpAfterS: 20, virtualBench: { timeScale: 50 } });
+    service = new RolloffService({ databasePath: join(folder.path, 'runs.sqlite'), maxStimulusVpp: 1, giveUpAfterS: 20, simulatedBench: { timeScale: 50 } });
     const design = await service.saveDesign(makeDesignFromTemplate('inverting-lowpass', {}));
     buildId = (await service.createBuild({ designId: design.id, label: 'A', notes: '', actualValues: {} })).id;
-    await service.startVirtualBenchForBuild(buildId);
+    await service.startSimulatedBenchForBuild(buildId);
   });
 
   afterEach(async () => {
@@ -36,7 +36,7 @@ describe('faults and run control', () => {
     service.on('point', (p) => {
       if (p.index === 3 && !pulled) {
         pulled = true;
-        void service.virtualBench!.setFault('scope', { kind: 'drop-link' });
+        void service.simulatedBench!.setFault('scope', { kind: 'drop-link' });
       }
     });
     const run = await service.startRun(sweepRequest(buildId, { from: 100, to: 100e3, refine: false }));
@@ -54,7 +54,7 @@ describe('faults and run control', () => {
     service.on('point', (p) => {
       if (p.index === 4 && !killed) {
         killed = true;
-        void service.virtualBench!.stop();
+        void service.simulatedBench!.stop();
       }
     });
     const run = await service.startRun(sweepRequest(buildId, { from: 100, to: 100e3, refine: false }));
@@ -81,7 +81,7 @@ describe('faults and run control', () => {
     });
     const run = await service.startRun(sweepRequest(buildId, { from: 100, to: 100e3, refine: false }));
     expect(await service.waitForRun(run.id)).toBe('paused');
-    expect(service.virtualBench!.generatorOutputOn()).toBe(false);
+    expect(service.simulatedBench!.generatorOutputOn()).toBe(false);
     const atPause = (await service.getRun(run.id)).points.step.length;
     expect(atPause).toBe(3);
     expect((await service.listRuns({ status: 'paused' })).map((r) => r.id)).toEqual([run.id]);
@@ -97,7 +97,7 @@ describe('faults and run control', () => {
     expect(stopped.points.step).toEqual(stopped.points.step.map((_, i) => i));
     expect(stopped.points.step.length).toBe(stopAt + 1);
     // The generator output is off after the stop (the simulated generator's own state).
-    expect(service.virtualBench!.generatorOutputOn()).toBe(false);
+    expect(service.simulatedBench!.generatorOutputOn()).toBe(false);
     expect(stopped.events.map((e) => e.message)).toContain('stopped by the user');
   });
 

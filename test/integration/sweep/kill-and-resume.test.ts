@@ -1,6 +1,6 @@
 /**
  * Crash safety, end to end through the CLI: a `rolloff sweep` process is
- * SIGKILLed in the middle of a sweep on the virtual bench, then
+ * SIGKILLed in the middle of a sweep on the simulated bench, then
  * `rolloff resume` finishes the run. Every point stored before the kill is
  * still there unchanged, no step is stored twice, and the run completes.
  * (Durability of one committed point is the store's synchronous=FULL, tested
@@ -41,7 +41,7 @@ describe('SIGKILL in the middle of a sweep, then resume', () => {
     writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
 
     // 10 Hz–10 kHz at 10/decade: 31 points; at time scale 5 the low-frequency points take ~0.1 s of wall time each.
-    const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'crash test', '--virtual', '--time-scale', '5',
+    const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'crash test', '--simulated', '--time-scale', '5',
       '--max-amplitude', '1', '--db', dbPath, '--from', '10', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'pipe', 'pipe'] });
     let stderr = '';
     child.stderr.on('data', (chunk) => (stderr += chunk));

@@ -1,7 +1,7 @@
 /**
  * Meter-only sweeps with a through-calibration, and a DC transfer sweep of the
- * log stage with the Levenberg–Marquardt fit, on the virtual bench over TCP.
- * Expected values: theory from app/circuit; the virtual meter's own first-order
+ * log stage with the Levenberg–Marquardt fit, on the simulated bench over TCP.
+ * Expected values: theory from app/circuit; the simulated meter's own first-order
  * AC bandwidth (app/sim SIM_METER_AC_BANDWIDTH_HZ) and the generator's 50 Ω
  * source (SIM_SOURCE_IMPEDANCE_OHM) are what the calibration must remove.
  */
@@ -30,10 +30,10 @@ describe('meter sweeps with through-calibration', () => {
   let calibrated: RunDetail;
 
   beforeAll(async () => {
-    service = new RolloffService({ databasePath: join(folder.path, 'meter.sqlite'), maxStimulusVpp: 1, virtualBench: { timeScale: 50 } });
+    service = new RolloffService({ databasePath: join(folder.path, 'meter.sqlite'), maxStimulusVpp: 1, simulatedBench: { timeScale: 50 } });
     const design = await service.saveDesign(makeDesignFromTemplate('inverting-lowpass', {}));
     buildId = (await service.createBuild({ designId: design.id, label: 'meter', notes: '', actualValues: {} })).id;
-    await service.startVirtualBenchForBuild(buildId);
+    await service.startSimulatedBenchForBuild(buildId);
     const meterRequest = sweepRequest(buildId, { measurement: 'meter', from: 100, to: 200e3, pointsPerDecade: 3, refine: false, averages: 3 });
     const first = await service.startRun(meterRequest);
     await service.waitForRun(first.id);
@@ -78,10 +78,10 @@ describe('DC transfer sweep of the log stage', () => {
   const IS_A = 10e-15;
 
   beforeAll(async () => {
-    service = new RolloffService({ databasePath: join(folder.path, 'dc.sqlite'), maxStimulusVpp: 20, virtualBench: { timeScale: 50, noiseVrms: 1e-4 } });
+    service = new RolloffService({ databasePath: join(folder.path, 'dc.sqlite'), maxStimulusVpp: 20, simulatedBench: { timeScale: 50, noiseVrms: 1e-4 } });
     const design = await service.saveDesign(makeDesignFromTemplate('log-stage', { r: R_OHM, is: IS_A, n: 1, rs: 0 }));
     const buildId = (await service.createBuild({ designId: design.id, label: 'log', notes: '', actualValues: {} })).id;
-    await service.startVirtualBenchForBuild(buildId);
+    await service.startSimulatedBenchForBuild(buildId);
     const run = await service.startRun(sweepRequest(buildId, { kind: 'dc', from: 1e-3, to: 10, pointsPerDecade: 4, refine: false, averages: 2 }));
     expect(await service.waitForRun(run.id)).toBe('done');
     detail = await service.getRun(run.id);

@@ -1,6 +1,6 @@
 /**
  * A schedule repeats a sweep of one build at a fixed interval (bench time,
- * scaled on the virtual bench) and reports the drift of the figures; each
+ * scaled on the simulated bench) and reports the drift of the figures; each
  * repetition is an ordinary stored run tied to the schedule.
  */
 import { afterAll, describe, expect, it } from 'vitest';
@@ -15,11 +15,11 @@ describe('schedules', () => {
 
   it('runs N repetitions at the interval and summarises drift over them', async () => {
     // 60 bench seconds per wall second: a 1-minute interval takes 1 s.
-    const service = new RolloffService({ databasePath: join(folder.path, 'sched.sqlite'), maxStimulusVpp: 1, virtualBench: { timeScale: 60 } });
+    const service = new RolloffService({ databasePath: join(folder.path, 'sched.sqlite'), maxStimulusVpp: 1, simulatedBench: { timeScale: 60 } });
     try {
       const design = await service.saveDesign(makeDesignFromTemplate('inverting-lowpass', {}));
       const buildId = (await service.createBuild({ designId: design.id, label: 'overnight', notes: '', actualValues: {} })).id;
-      await service.startVirtualBenchForBuild(buildId);
+      await service.startSimulatedBenchForBuild(buildId);
       const startedAt: number[] = [];
       const report = await service.runSchedule({ request: sweepRequest(buildId, { from: 100, to: 10e3, pointsPerDecade: 3, refine: false }), everyMinutes: 1, count: 3 }, (_run, _index, slotS) => startedAt.push(slotS));
       expect(report.runs.map((r) => r.status)).toEqual(['done', 'done', 'done']);

@@ -2,7 +2,7 @@
  * Honest pipelining: the runner overlaps link traffic with settling, but the
  * instruments must never capture before the plan's settle time has passed
  * since the stimulus last changed, nor while it changes. Checked against the
- * virtual bench's own record (its clock) of when the generator changed and
+ * simulated bench's own record (its clock) of when the generator changed and
  * which time spans the scope and meter sampled — not against the runner's
  * bookkeeping. A realistic link (3 ms per reply) over TCP on 127.0.0.1, real
  * time, as in test/bench/sweep-efficiency.ts. Rule: settle = the plan's
@@ -13,7 +13,7 @@ import { join } from 'node:path';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { RolloffService } from '../../../app/service/service';
 import type { SweepRequest } from '../../../app/service/contract';
-import { startVirtualBench, type GeneratorOutput, type VirtualBench } from '../../../app/sim';
+import { startSimulatedBench, type GeneratorOutput, type SimulatedBench } from '../../../app/sim';
 import { tempFolder } from './helpers';
 
 interface Window {
@@ -23,7 +23,7 @@ interface Window {
 
 describe('the runner never acquires before the settle time since the last stimulus change', () => {
   const folder = tempFolder();
-  let bench: VirtualBench;
+  let bench: SimulatedBench;
   let service: RolloffService;
   let buildId: number;
   const changesS: number[] = [];
@@ -31,7 +31,7 @@ describe('the runner never acquires before the settle time since the last stimul
 
   beforeAll(async () => {
     const designFile = makeDesignFromTemplate('inverting-lowpass', {});
-    bench = await startVirtualBench({ design: designFile, tcpPort: 0, timeScale: 1, latencyS: 0.003, noiseVrms: 1e-4 });
+    bench = await startSimulatedBench({ design: designFile, tcpPort: 0, timeScale: 1, latencyS: 0.003, noiseVrms: 1e-4 });
     const { model, clock } = bench;
     // The bench's record, in its own clock: every generator change, every span the scope or meter sampled.
     const setGenerator = model.setGenerator.bind(model);

@@ -206,7 +206,7 @@ describe('web host on loopback: malformed calls', () => {
   });
 
   it('reports a refusal by the service (not a validation error) as 422 with its hint', async () => {
-    const reply = await call(base, 'startVirtualBench', [999]);
+    const reply = await call(base, 'startSimulatedBench', [999]);
     expect(reply.status).toBe(422);
     expect(errorOf(reply).message).toMatch(/999/);
   });

@@ -207,7 +207,7 @@ export function acRunDetail(options: AcFixtureOptions = {}): RunDetail {
     figures: analysis.figures,
     verdict: analysis.verdict,
     events: [
-      { at: '2026-11-30T10:00:00.000Z', level: 'info', message: 'Run started on the virtual bench.' },
+      { at: '2026-11-30T10:00:00.000Z', level: 'info', message: 'Run started on the simulated bench.' },
       { at: '2026-11-30T10:02:10.000Z', level: 'warning', message: 'Point 30 retried after a distorted reading.' },
     ],
     theoryGainLimitHz: gainLimitHz,

@@ -1,14 +1,14 @@
 /**
  * Shared view state: a bench-status read that was overtaken by a newer status
  * (a command's result or a bench event) must not overwrite it — the race seen
- * when the Bench view opens while the virtual bench starts. Common practice, no source.
+ * when the Bench view opens while the simulated bench starts. Common practice, no source.
  */
 import { describe, expect, it } from 'vitest';
 import { AppState } from '../../../renderer/state';
 import type { BenchStatus } from '../../../app/service/contract';
 
 const stale: BenchStatus = { instruments: [], maxStimulusVpp: 2 };
-const fresh: BenchStatus = { instruments: [], maxStimulusVpp: 2, virtualBench: { addresses: {}, designName: 'invented' } };
+const fresh: BenchStatus = { instruments: [], maxStimulusVpp: 2, simulatedBench: { addresses: {}, designName: 'invented' } };
 
 describe('AppState.refreshBench', () => {
   it('drops a read that a newer status overtook', async () => {

@@ -88,7 +88,7 @@ describe('simulated instrument errors', () => {
 
   it('identifies itself as simulated, and *CLS empties the queue', async () => {
     const gen = generator();
-    expect(await gen.execute('*IDN?')).toMatch(/^Rolloff virtual bench \(simulated\),/);
+    expect(await gen.execute('*IDN?')).toMatch(/^Rolloff simulated bench \(simulated\),/);
     await gen.execute('NOPE');
     await gen.execute('*CLS');
     expect(await gen.execute('SYST:ERR?')).toBe('0,"No error"');

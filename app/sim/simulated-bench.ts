@@ -1,5 +1,5 @@
 /**
- * The virtual bench: a simulated generator, meter and two-channel scope
+ * The simulated bench: a simulated generator, meter and two-channel scope
  * (ch1 = circuit input, ch2 = circuit output) around a circuit computed by
  * the theory engine, each answering SCPI on its own TCP port or PTY. Always
  * labelled simulated: every *IDN? manufacturer field says so.
@@ -24,7 +24,7 @@ import type { SimInstrument } from './sim-instrument';
 /** The generator's output resistance, ohms (the usual bench-generator figure). */
 export const SIM_SOURCE_IMPEDANCE_OHM = 50;
 
-export interface VirtualBenchOptions {
+export interface SimulatedBenchOptions {
   /** A design file's JSON or a parsed Design. */
   design: unknown;
   /** Where the design came from (file path), named in design errors. */
@@ -44,7 +44,7 @@ export interface VirtualBenchOptions {
   seed?: number;
 }
 
-export interface VirtualBench {
+export interface SimulatedBench {
   addresses: Record<InstrumentRole, string>;
   clock: BenchClock;
   design: Design;
@@ -57,15 +57,15 @@ export interface VirtualBench {
 }
 
 
-export async function startVirtualBench(options: VirtualBenchOptions): Promise<VirtualBench> {
-  const design = parseDesign(options.design, options.designSource ?? 'virtual bench design');
+export async function startSimulatedBench(options: SimulatedBenchOptions): Promise<SimulatedBench> {
+  const design = parseDesign(options.design, options.designSource ?? 'simulated bench design');
   const clock = options.clock ?? scaledClock(options.timeScale ?? 1);
   const noiseVrms = options.noiseVrms ?? 0;
   if (!(noiseVrms >= 0) || !Number.isFinite(noiseVrms)) throw new ValidationError('noiseVrms', `${noiseVrms} is not a non-negative number of volts`);
   const latencyS = options.latencyS ?? 0;
   if (!(latencyS >= 0) || !Number.isFinite(latencyS)) throw new ValidationError('latencyS', `${latencyS} is not a non-negative number of seconds`);
   const seed = options.seed ?? 1;
-  if (options.tcpPort !== undefined && options.pty !== undefined) throw new ValidationError('virtual bench', 'give either a TCP port or a PTY folder, not both');
+  if (options.tcpPort !== undefined && options.pty !== undefined) throw new ValidationError('simulated bench', 'give either a TCP port or a PTY folder, not both');
 
   const model = new BenchModel(new CircuitUnderTest(design, SIM_SOURCE_IMPEDANCE_OHM), clock, noiseVrms, seed);
   const meter = new SimMeter(model, clock);

@@ -1,20 +1,20 @@
 /**
- * The session over TCP on 127.0.0.1 against the virtual bench: the shared
+ * The session over TCP on 127.0.0.1 against the simulated bench: the shared
  * scenario, then error queue, overrange/NaN and every injected fault surfacing
  * as its named error. Sources: SCPI-1999 (error codes -113/-222, 9.9E37 and
  * 9.91E37 — recalled from memory), IEEE 488.2 (framing), else common practice.
  */
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
-import { startVirtualBench, type VirtualBench } from '../../../app/sim';
+import { startSimulatedBench, type SimulatedBench } from '../../../app/sim';
 import { connect, ScpiDisconnectedError, ScpiMalformedReplyError, ScpiTimeoutError, ScpiInstrumentError } from '../../../app/scpi';
 import { openInstrument } from '../../../app/bench';
 import { parseDesign, solveDcTransfer } from '../../../app/circuit';
 import { openBench, runBenchScenario, TEST_DESIGN_JSON } from './bench-scenario';
 
-describe('virtual bench over TCP on 127.0.0.1', () => {
-  let bench: VirtualBench;
+describe('simulated bench over TCP on 127.0.0.1', () => {
+  let bench: SimulatedBench;
   beforeAll(async () => {
-    bench = await startVirtualBench({ design: TEST_DESIGN_JSON, tcpPort: 0, timeScale: 10, seed: 5 });
+    bench = await startSimulatedBench({ design: TEST_DESIGN_JSON, tcpPort: 0, timeScale: 10, seed: 5 });
   });
   afterAll(async () => {
     await bench?.stop();
@@ -93,7 +93,7 @@ describe('virtual bench over TCP on 127.0.0.1', () => {
     expect(malformed).toBeGreaterThan(10);
     await bench.setFault('meter', null);
     await new Promise((resolve) => setTimeout(resolve, 50));
-    expect((await session.identify()).model).toBe('virtual meter');
+    expect((await session.identify()).model).toBe('simulated meter');
     await session.close();
   });
 
@@ -104,7 +104,7 @@ describe('virtual bench over TCP on 127.0.0.1', () => {
     await bench.setFault('scope', null);
     // The command queued during the hang is answered late; the session drops that stale reply.
     await new Promise((resolve) => setTimeout(resolve, 50));
-    expect((await session.identify()).model).toBe('virtual scope');
+    expect((await session.identify()).model).toBe('simulated scope');
     await session.close();
   });
 
@@ -114,7 +114,7 @@ describe('virtual bench over TCP on 127.0.0.1', () => {
     await expect(session.query('*IDN?')).rejects.toBeInstanceOf(ScpiTimeoutError);
     await bench.setFault('generator', { kind: 'slow', delayS: 0.15 });
     const started = performance.now();
-    expect((await session.identify()).model).toBe('virtual generator');
+    expect((await session.identify()).model).toBe('simulated generator');
     expect(performance.now() - started).toBeGreaterThanOrEqual(140);
     await session.close();
   });
@@ -145,7 +145,7 @@ describe('virtual bench over TCP on 127.0.0.1', () => {
         { id: 'U1', type: 'opamp', nodes: ['0', 'inv', 'out'], model: { openLoopGain: 1e5, gbw: 1e6, rails: [-12, 12] } },
       ],
     });
-    const dcBench = await startVirtualBench({ design: logStage, tcpPort: 0, timeScale: 100 });
+    const dcBench = await startSimulatedBench({ design: logStage, tcpPort: 0, timeScale: 100 });
     const generator = await openInstrument(dcBench.addresses.generator, 'generator', 'scpi-generator', { maxStimulusVpp: 20 });
     const meter = await openInstrument(dcBench.addresses.meter, 'meter', 'scpi-meter');
     try {
@@ -172,7 +172,7 @@ describe('virtual bench over TCP on 127.0.0.1', () => {
   });
 
   it('refuses to connect to a closed port with a clear ConnectError', async () => {
-    const probe = await startVirtualBench({ design: TEST_DESIGN_JSON, tcpPort: 0 });
+    const probe = await startSimulatedBench({ design: TEST_DESIGN_JSON, tcpPort: 0 });
     const address = probe.addresses.generator;
     await probe.stop();
     await expect(connect(address)).rejects.toThrow(/cannot open tcp:\/\/127\.0\.0\.1:\d+/);

@@ -1,5 +1,5 @@
 /**
- * `rolloff probe ADDRESS`: connect, print the *IDN? fields, then report and
+ * `rolloff identify ADDRESS`: connect, print the *IDN? fields, then report and
  * clear the error queue. For a serial address, --bauds tries each speed in turn.
  */
 import { ValidationError } from '../../errors';
@@ -10,8 +10,9 @@ import type { ScpiSession } from '../../scpi/session';
 import type { InstrumentIdentity } from '../../service/contract';
 import { optionNumber, optionString, requirePositional, type CommandSpec } from '../args';
 
-export const probeCommand: CommandSpec = {
-  name: 'probe',
+export const identifyCommand: CommandSpec = {
+  name: 'identify',
+  aliases: ['probe'],
   summary: 'Identify an instrument (*IDN?) and report and clear its error queue',
   usage: 'ADDRESS [--bauds 9600,19200,…] [--timeout S]',
   options: [
@@ -22,8 +23,8 @@ export const probeCommand: CommandSpec = {
 Addresses: serial:///dev/ttyUSB0?baud=9600&data=8&parity=none&stop=1&flow=none,
 tcp://HOST:5025, ASRL/dev/ttyUSB0::INSTR, ASRL3::INSTR, TCPIP::HOST::5025::SOCKET.
 Examples:
-  rolloff probe tcp://127.0.0.1:5025
-  rolloff probe serial:///dev/ttyUSB0 --bauds 9600,19200,115200`,
+  rolloff identify tcp://127.0.0.1:5025
+  rolloff identify serial:///dev/ttyUSB0 --bauds 9600,19200,115200`,
   async run(parsed) {
     const address = parseAddress(requirePositional(parsed, 0, 'ADDRESS'));
     const timeoutS = optionNumber(parsed, 'timeout')!;

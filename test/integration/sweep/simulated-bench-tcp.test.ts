@@ -1,5 +1,5 @@
 /**
- * End to end over real TCP on 127.0.0.1: the service drives the virtual bench
+ * End to end over real TCP on 127.0.0.1: the service drives the simulated bench
  * (app/sim) through the SCPI session, the sweep runner stores every point, the
  * analysis finds the gain-limit point. Expected values come from the theory
  * engine (app/circuit solveAc, checked against ngspice in its own tests) and
@@ -12,7 +12,7 @@ import type { RunDetail } from '../../../app/service/contract';
 import { PointFlag } from '../../../app/service/contract';
 import { invertingGain100, sweepRequest, tempFolder } from './helpers';
 
-describe('sweep on the virtual bench over TCP', () => {
+describe('sweep on the simulated bench over TCP', () => {
   const folder = tempFolder();
   let service: RolloffService;
   let detail: RunDetail;
@@ -21,13 +21,13 @@ describe('sweep on the virtual bench over TCP', () => {
   const progress: Array<{ step: number; total: number; etaS: number; status: string }> = [];
 
   beforeAll(async () => {
-    service = new RolloffService({ databasePath: join(folder.path, 'bench.sqlite'), maxStimulusVpp: 1, virtualBench: { timeScale: 50, noiseVrms: 1e-4, link: 'tcp' } });
+    service = new RolloffService({ databasePath: join(folder.path, 'bench.sqlite'), maxStimulusVpp: 1, simulatedBench: { timeScale: 50, noiseVrms: 1e-4, link: 'tcp' } });
     service.on('point', (p) => pointsSeen.push(p.index));
     service.on('traffic', (t) => trafficRoles.add(t.role));
     service.on('progress', (p) => progress.push(p));
     const design = await service.saveDesign(invertingGain100());
     const build = await service.createBuild({ designId: design.id, label: 'gain 100', notes: '', actualValues: {} });
-    await service.startVirtualBenchForBuild(build.id);
+    await service.startSimulatedBenchForBuild(build.id);
     const run = await service.startRun(sweepRequest(build.id));
     expect(await service.waitForRun(run.id)).toBe('done');
     detail = await service.getRun(run.id);
@@ -40,7 +40,7 @@ describe('sweep on the virtual bench over TCP', () => {
 
   it('answers on 127.0.0.1 only and is labelled simulated', async () => {
     const status = await service.benchStatus();
-    for (const address of Object.values(status.virtualBench!.addresses)) expect(address).toMatch(/^tcp:\/\/127\.0\.0\.1:\d+$/);
+    for (const address of Object.values(status.simulatedBench!.addresses)) expect(address).toMatch(/^tcp:\/\/127\.0\.0\.1:\d+$/);
     expect(detail.simulated).toBe(true);
     expect(detail.bench.every((i) => i.simulated)).toBe(true);
   });

@@ -1,18 +1,18 @@
 /**
  * The session over a real serial port: serialport on a socat pseudo-terminal
- * pair, against the virtual bench. See bench-scenario.ts for the sources of
+ * pair, against the simulated bench. See bench-scenario.ts for the sources of
  * the expected values.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { SerialPort } from 'serialport';
-import { openPtyPair, startVirtualBench, type VirtualBench } from '../../../app/sim';
+import { openPtyPair, startSimulatedBench, type SimulatedBench } from '../../../app/sim';
 import { connect, ScpiDisconnectedError, SerialTransport, ScpiSession } from '../../../app/scpi';
 import { runBenchScenario, TEST_DESIGN_JSON } from './bench-scenario';
 
-describe('virtual bench over a pseudo-terminal (serialport + socat)', () => {
-  let bench: VirtualBench;
+describe('simulated bench over a pseudo-terminal (serialport + socat)', () => {
+  let bench: SimulatedBench;
   beforeAll(async () => {
-    bench = await startVirtualBench({ design: TEST_DESIGN_JSON, pty: true, timeScale: 10, seed: 3 });
+    bench = await startSimulatedBench({ design: TEST_DESIGN_JSON, pty: true, timeScale: 10, seed: 3 });
   });
   afterAll(async () => {
     await bench?.stop();
@@ -28,14 +28,14 @@ describe('virtual bench over a pseudo-terminal (serialport + socat)', () => {
 
   it('a pulled link (PTY torn down) is ScpiDisconnectedError; reconnecting works', async () => {
     const session = await connect(bench.addresses.meter, { timeoutS: 5 });
-    expect((await session.identify()).model).toBe('virtual meter');
+    expect((await session.identify()).model).toBe('simulated meter');
     await session.write('SENSe:VOLTage:APERture 5');
     const inFlight = session.query('READ?', { timeoutS: 10 });
     await new Promise((resolve) => setTimeout(resolve, 50));
     await bench.setFault('meter', { kind: 'drop-link' });
     await expect(inFlight).rejects.toBeInstanceOf(ScpiDisconnectedError);
     const again = await connect(bench.addresses.meter, { timeoutS: 5 });
-    expect((await again.identify()).model).toBe('virtual meter');
+    expect((await again.identify()).model).toBe('simulated meter');
     await again.write('SENSe:VOLTage:APERture 0.1');
     await again.close();
   });

@@ -13,16 +13,16 @@ import { invertingGain100, sweepRequest, tempFolder } from './helpers';
 
 const hasSocat = spawnSync('socat', ['-V']).status === 0;
 
-describe.skipIf(!hasSocat)('sweep on the virtual bench over a pseudo-terminal (socat)', () => {
+describe.skipIf(!hasSocat)('sweep on the simulated bench over a pseudo-terminal (socat)', () => {
   const folder = tempFolder();
   let service: RolloffService;
   let detail: RunDetail;
 
   beforeAll(async () => {
-    service = new RolloffService({ databasePath: join(folder.path, 'pty.sqlite'), maxStimulusVpp: 1, virtualBench: { timeScale: 50, link: 'pty' } });
+    service = new RolloffService({ databasePath: join(folder.path, 'pty.sqlite'), maxStimulusVpp: 1, simulatedBench: { timeScale: 50, link: 'pty' } });
     const design = await service.saveDesign(invertingGain100());
     const build = await service.createBuild({ designId: design.id, label: 'serial', notes: '', actualValues: {} });
-    await service.startVirtualBenchForBuild(build.id);
+    await service.startSimulatedBenchForBuild(build.id);
     // Fewer points than the TCP test: a 115200-baud link moves a 4 kB waveform block in ~0.35 s.
     const run = await service.startRun(sweepRequest(build.id, { from: 1e3, to: 1e5, pointsPerDecade: 4 }));
     expect(await service.waitForRun(run.id)).toBe('done');

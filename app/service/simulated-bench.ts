@@ -1,5 +1,5 @@
 /**
- * The service's side of the virtual bench (app/sim): started on 127.0.0.1
+ * The service's side of the simulated bench (app/sim): started on 127.0.0.1
  * (ephemeral ports) or on pseudo-terminals, sharing one scaled clock with the
  * sweep runner so settling and integration run `timeScale` times faster than
  * real time on both sides alike. Always simulated, and labelled so.
@@ -7,9 +7,9 @@
 import type { Design } from '../circuit';
 import { scaledClock, type BenchClock } from '../bench/clock';
 import type { InstrumentRole } from './contract';
-import { startVirtualBench, type SimFault } from '../sim';
+import { startSimulatedBench, type SimFault } from '../sim';
 
-export interface VirtualBenchSettings {
+export interface SimulatedBenchSettings {
   /** Bench seconds per wall-clock second (1 = real time). */
   timeScale: number;
   /** Output noise, volts RMS. */
@@ -21,7 +21,7 @@ export interface VirtualBenchSettings {
   link: 'tcp' | 'pty';
 }
 
-export interface VirtualBenchHandle {
+export interface SimulatedBenchHandle {
   addresses: Record<InstrumentRole, string>;
   clock: BenchClock;
   /** Sets (or with null clears) a fault on one instrument or all of them. */
@@ -31,12 +31,12 @@ export interface VirtualBenchHandle {
   stop(): Promise<void>;
 }
 
-const DEFAULTS: VirtualBenchSettings = { timeScale: 1, noiseVrms: 1e-4, latencyS: 0, seed: 1, link: 'tcp' };
+const DEFAULTS: SimulatedBenchSettings = { timeScale: 1, noiseVrms: 1e-4, latencyS: 0, seed: 1, link: 'tcp' };
 
-export async function startVirtualBenchFor(design: Design, settings: Partial<VirtualBenchSettings>): Promise<VirtualBenchHandle> {
+export async function startSimulatedBenchFor(design: Design, settings: Partial<SimulatedBenchSettings>): Promise<SimulatedBenchHandle> {
   const chosen = { ...DEFAULTS, ...settings };
   const clock = scaledClock(chosen.timeScale);
-  const bench = await startVirtualBench({
+  const bench = await startSimulatedBench({
     design,
     clock,
     ...(chosen.link === 'pty' ? { pty: true as const } : { tcpPort: 0 }),
