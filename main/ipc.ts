@@ -6,7 +6,7 @@
  * Replies are { ok, result } / { ok: false, error } because Electron turns a
  * thrown error into a bare string and would lose the hint.
  */
-import type { RolloffApi, ServiceEventName } from '../app/service/contract';
+import type { RolloffApi, ServiceEventName } from '../app/contract/contract';
 import { callService } from '../app/host/call-service';
 import { serializeError, type SerializedError } from '../app/host/wire-error';
 import { UserError } from '../app/errors';

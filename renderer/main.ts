@@ -4,7 +4,7 @@
  */
 import 'uplot/dist/uPlot.min.css';
 import './styles.css';
-import type { RolloffClient } from '../app/service/contract';
+import type { RolloffClient } from '../app/contract/contract';
 import { createBridgeClient, type PreloadBridge } from './client/bridge-client';
 import { createHttpClient } from './client/http-client';
 import { mountShell } from './shell';

@@ -3,7 +3,7 @@
  * "simulated" for the simulated bench), the view navigation with keyboard
  * shortcuts, the notice area, and the safety notice on first start.
  */
-import type { BenchStatus, RolloffClient } from '../app/service/contract';
+import type { BenchStatus, RolloffClient } from '../app/contract/contract';
 import { h, replaceChildren } from './dom';
 import { VIEWS, viewForShortcut, type ViewId } from './model/views';
 import { noticeRegion, showError } from './notices';

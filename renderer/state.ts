@@ -3,7 +3,7 @@
  * view, the runs picked for Compare and Record, and the latest bench status.
  * Views subscribe and re-render the parts that depend on a change.
  */
-import type { BenchStatus, BuildRecord, DesignRecord } from '../app/service/contract';
+import type { BenchStatus, BuildRecord, DesignRecord } from '../app/contract/contract';
 import type { ViewId } from './model/views';
 
 export interface SharedState {

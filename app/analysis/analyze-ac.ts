@@ -2,8 +2,8 @@
  * Figures, per-point flags and the verdict of one AC run, from its measured
  * points and the theory evaluated at the same frequencies.
  */
-import type { RunFigures, Verdict, VerdictLimits } from '../service/contract';
-import { PointFlag } from '../service/contract';
+import type { RunFigures, Verdict, VerdictLimits } from '../contract/contract';
+import { PointFlag } from '../contract/contract';
 import { deviationDb, largestDeviation, outsideBand } from './deviation';
 import { loopGainLimitHz, magnitudeGainLimitHz, pastGainLimit } from './gain-limit';
 import { HALF_POWER_DB, minus3dbFrequenciesHz, passbandGainDb } from './passband';

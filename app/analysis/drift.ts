@@ -2,7 +2,7 @@
  * Drift across repeated runs of one build (a schedule): how each figure moved
  * from the first run to the last, and its spread.
  */
-import type { RunFigures } from '../service/contract';
+import type { RunFigures } from '../contract/contract';
 
 export interface DriftRow {
   figure: 'passbandGainDb' | 'minus3dbHz' | 'gainLimitHz' | 'rolloffDbPerDecade' | 'maxDeviationDb';

@@ -1,7 +1,7 @@
 /**
  * Pass/fail against the user's limits (VerdictLimits in the contract).
  */
-import type { Verdict, VerdictLimits } from '../service/contract';
+import type { Verdict, VerdictLimits } from '../contract/contract';
 import { formatEngineering } from '../units';
 
 export interface VerdictInputs {

@@ -4,7 +4,7 @@
  * is switched off and its load set before anything else, so a session never
  * starts with an unknown output live.
  */
-import type { InstrumentRole } from '../service/contract';
+import type { InstrumentRole } from '../contract/contract';
 import { connect } from '../scpi/connect';
 import type { InstrumentAddress } from '../scpi/address';
 import { formatAddress, parseAddress } from '../scpi/address';

@@ -4,7 +4,7 @@
  */
 import { readdirSync, readFileSync, existsSync, statSync } from 'node:fs';
 import { join } from 'node:path';
-import type { InstrumentRole } from '../service/contract';
+import type { InstrumentRole } from '../contract/contract';
 import { ProfileError } from './errors';
 import { validateProfile, type Profile, type ProfileFor } from './profile';
 import scpiGenerator from './profiles/scpi-generator.json';

@@ -3,7 +3,7 @@
  * data a user can write from their instrument's programming manual. Validated
  * once when loaded; every problem names the file and the field.
  */
-import { INSTRUMENT_ROLES, type InstrumentRole } from '../service/contract';
+import { INSTRUMENT_ROLES, type InstrumentRole } from '../contract/contract';
 import { ProfileError } from './errors';
 import type { GeneratorLimits } from './roles';
 import { isQuery, templatePlaceholders } from './template';

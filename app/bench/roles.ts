@@ -10,7 +10,7 @@
  * impedance is not 50 Ω sees neither exactly: V_in = V_emf · Z_in / (Z_in + R_source).
  * See app/bench/stimulus.ts for the conversions.
  */
-import type { InstrumentIdentity } from '../service/contract';
+import type { InstrumentIdentity } from '../contract/contract';
 import type { Reading } from '../scpi/reading';
 import type { ScpiSession } from '../scpi/session';
 

@@ -5,7 +5,7 @@
 import { isUserError } from '../errors';
 import { findCommand, formatCommandHelp, parseArgs, type CommandSpec } from './args';
 import { COMMANDS } from './commands';
-import { SAFETY_NOTICE_SHORT } from '../service/safety';
+import { SAFETY_NOTICE_SHORT } from '../contract/safety';
 
 const EXIT_USER_ERROR = 2;
 const EXIT_BUG = 1;
@@ -60,6 +60,6 @@ export async function main(argv: string[]): Promise<number> {
 }
 
 async function softwareVersion(): Promise<string> {
-  const { SOFTWARE_VERSION } = await import('../service/version');
+  const { SOFTWARE_VERSION } = await import('../contract/version');
   return SOFTWARE_VERSION;
 }

@@ -5,7 +5,7 @@
  * put in its own envelope; only failures that are not user errors (bugs) are
  * logged, with their stack, which never goes into a reply.
  */
-import type { RolloffApi } from '../service/contract';
+import type { RolloffApi } from '../contract/contract';
 import { validateCall } from '../service/validate-arguments';
 import { UserError } from '../errors';
 

@@ -3,7 +3,7 @@
  * the RolloffApi, one subscription for every event, and a clean close.
  */
 import { RolloffService, type RolloffServiceOptions } from '../service/service';
-import type { RolloffApi, ServiceEventName } from '../service/contract';
+import type { RolloffApi, ServiceEventName } from '../contract/contract';
 
 export interface HostedService {
   api: RolloffApi;

@@ -8,7 +8,7 @@ import { createServer, type IncomingMessage, type ServerResponse } from 'node:ht
 import type { AddressInfo } from 'node:net';
 import type { Duplex } from 'node:stream';
 import { WebSocketServer, type WebSocket } from 'ws';
-import type { RolloffApi, ServiceEventName } from '../service/contract';
+import type { RolloffApi, ServiceEventName } from '../contract/contract';
 import { callService } from './call-service';
 import { ValidationError } from '../errors';
 import { createAccessToken, isLoopbackHost, TOKEN_COOKIE, tokenFromRequest, tokenMatches } from './access-token';

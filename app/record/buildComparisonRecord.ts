@@ -4,9 +4,9 @@
  * number its plots and tables show and its JSON stands on its own.
  */
 import { ValidationError } from '../errors';
-import type { Comparison } from '../service/contract';
-import { SAFETY_NOTICE_POINTS } from '../service/safety';
-import { SOFTWARE_VERSION } from '../service/version';
+import type { Comparison } from '../contract/contract';
+import { SAFETY_NOTICE_POINTS } from '../contract/safety';
+import { SOFTWARE_VERSION } from '../contract/version';
 import { buildRunRecord, jsonSafe, type RunRecordContext } from './buildRunRecord';
 import { comparisonDigest } from './digest';
 import { RECORD_FORMAT_VERSION, type ComparisonRecord } from './model';

@@ -4,9 +4,9 @@
  * column lengths agree, identifiers are present, non-finite numbers become null.
  */
 import { ValidationError } from '../errors';
-import type { BuildRecord, PointColumns, RunDetail, TheoryColumns } from '../service/contract';
-import { SAFETY_NOTICE_POINTS } from '../service/safety';
-import { SOFTWARE_VERSION } from '../service/version';
+import type { BuildRecord, PointColumns, RunDetail, TheoryColumns } from '../contract/contract';
+import { SAFETY_NOTICE_POINTS } from '../contract/safety';
+import { SOFTWARE_VERSION } from '../contract/version';
 import { runDigest } from './digest';
 import {
   RECORD_FORMAT_VERSION,

@@ -1,5 +1,5 @@
 /** The content of a comparison record, in reading order (see recordDocument.ts). */
-import type { RunFigures } from '../service/contract';
+import type { RunFigures } from '../contract/contract';
 import type { Block, RecordDocument } from './recordDocument';
 import type { ComparisonRecord } from './model';
 import { comparisonPlots } from './recordPlots';

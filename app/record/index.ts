@@ -5,7 +5,7 @@
 export { buildRunRecord, type RunRecordContext } from './buildRunRecord';
 export { buildComparisonRecord, type ComparisonRecordContext } from './buildComparisonRecord';
 export { renderRecord, recordFileName, type RenderedRecord } from './renderRecord';
-export { RECORD_FORMATS } from '../service/contract';
+export { RECORD_FORMATS } from '../contract/contract';
 export { recordFromJson, recordToJson, RECORD_SCHEMA } from './jsonRecord';
 export { readCsv, writeCsv } from './csv';
 export { runDigest, runDigestInput, comparisonDigest } from './digest';

@@ -14,7 +14,7 @@ import type {
   RunStatus,
   SweepRequest,
   Verdict,
-} from '../service/contract';
+} from '../contract/contract';
 
 /** Bumped when the record layout changes; readers refuse versions they do not know. */
 export const RECORD_FORMAT_VERSION = 1;

@@ -1,4 +1,4 @@
-import type { RecordFormat } from '../service/contract';
+import type { RecordFormat } from '../contract/contract';
 import type { AnyRecord } from './model';
 
 /** A file name that is safe on every common file system, e.g. "rolloff-run-12-board-A.pdf". */

@@ -1,5 +1,5 @@
 /** Words and number formats a record uses, shared by every format so they say the same thing. */
-import { PointFlag, type InstrumentIdentity, type RunFigures, type Verdict } from '../service/contract';
+import { PointFlag, type InstrumentIdentity, type RunFigures, type Verdict } from '../contract/contract';
 import { formatEngineering } from '../units';
 import type { MaybeNumber } from './model';
 

@@ -1,6 +1,6 @@
 /** One entry point from a record to the bytes of a file in any of the four formats. */
 import { ValidationError } from '../errors';
-import { RECORD_FORMATS, type RecordFormat } from '../service/contract';
+import { RECORD_FORMATS, type RecordFormat } from '../contract/contract';
 import type { AnyRecord } from './model';
 import { pdfRecord, type PdfOptions } from './pdfRecord';
 import { recordDocument, renderTextRecord, TEXT_MIME_TYPES } from './textRecord';

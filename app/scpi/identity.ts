@@ -3,7 +3,7 @@
  * number, firmware — per IEEE 488.2 §10.14 (clause number recalled from memory).
  * A field the instrument does not report is "0".
  */
-import type { InstrumentIdentity } from '../service/contract';
+import type { InstrumentIdentity } from '../contract/contract';
 import { ScpiMalformedReplyError } from './errors';
 
 export function parseIdentity(reply: string): InstrumentIdentity {

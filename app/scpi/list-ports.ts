@@ -1,6 +1,6 @@
 /** Serial ports the OS reports, with USB identities where known (for the Bench view and `rolloff ports`). */
 import { SerialPort } from 'serialport';
-import type { PortInfo } from '../service/contract';
+import type { PortInfo } from '../contract/contract';
 
 export async function listSerialPorts(): Promise<PortInfo[]> {
   const ports = await SerialPort.list();

@@ -5,7 +5,7 @@
  * here, not by a line parser, so binary block data passes intact.
  */
 import { ValidationError } from '../errors';
-import type { InstrumentIdentity } from '../service/contract';
+import type { InstrumentIdentity } from '../contract/contract';
 import { parseErrorEntry, type InstrumentErrorEntry } from './error-entry';
 import { ScpiDisconnectedError, ScpiInstrumentError, ScpiMalformedReplyError, ScpiTimeoutError } from './errors';
 import { parseIdentity } from './identity';

@@ -2,7 +2,7 @@
  * Several runs side by side: each against theory or a reference run, with a
  * table of figures and their differences from the reference.
  */
-import type { Comparison, RunDetail, RunFigures } from './contract';
+import type { Comparison, RunDetail, RunFigures } from '../contract/contract';
 import { ValidationError } from '../errors';
 
 export function compareDetails(runs: RunDetail[], reference: number | 'theory'): Comparison {

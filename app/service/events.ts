@@ -1,5 +1,5 @@
 /** The service's event bus: typed, synchronous, a throwing listener cannot break a sweep. */
-import type { ServiceEventName, ServiceEvents } from './contract';
+import type { ServiceEventName, ServiceEvents } from '../contract/contract';
 
 type Listener<E extends ServiceEventName> = (payload: ServiceEvents[E]) => void;
 

@@ -1,6 +1,6 @@
 /** exportRecord: the run detail (or comparison) handed to the record module (app/record). */
 import { buildComparisonRecord, buildRunRecord, renderRecord, type RecordDcFit } from '../record';
-import type { ExportedRecord, RecordFormat, RunDetail } from './contract';
+import type { ExportedRecord, RecordFormat, RunDetail } from '../contract/contract';
 import type { RolloffService } from './service';
 import { logStageIdeal, type DiodePart, type PassivePart } from '../circuit';
 import { designOf } from './theory';

@@ -3,8 +3,8 @@
  * run's frequencies with the tolerance band, figures, flags and verdict.
  */
 import type { Store, StoredRun } from '../store';
-import type { PointColumns, RunDetail, RunFigures, Verdict } from './contract';
-import { PointFlag } from './contract';
+import type { PointColumns, RunDetail, RunFigures, Verdict } from '../contract/contract';
+import { PointFlag } from '../contract/contract';
 import { analyzeAcRun } from '../analysis';
 import type { Design, DiodePart, PassivePart } from '../circuit';
 import { fitLogStage, logFitFigures, FitError } from '../signal';

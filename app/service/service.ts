@@ -18,17 +18,17 @@ import { dcMeasurer } from '../sweep/runner/measure-dc';
 import { RunStateError } from '../sweep/runner/errors';
 import type { StepMeasurer, StepSetting, SweepInstruments } from '../sweep/runner/types';
 import { driftSummary, type DriftRow } from '../analysis';
-import { INSTRUMENT_ROLES as ROLES, PointFlag } from './contract';
+import { INSTRUMENT_ROLES as ROLES, PointFlag } from '../contract/contract';
 import type {
   RunFigures, BenchStatus, BuildRecord, Comparison, ConnectRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
   PointColumns, PortInfo, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunStatus, RunSummary, ServiceEventName,
   ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
-} from './contract';
+} from '../contract/contract';
 import { ServiceEventBus } from './events';
 import { buildDesign, designOf, planTheoryFor } from './theory';
 import { analyzeRun, designForBuild, designForRun, runDetail } from './run-detail';
 import { compareDetails } from './compare';
-import { SOFTWARE_VERSION } from './version';
+import { SOFTWARE_VERSION } from '../contract/version';
 import { startSimulatedBenchFor, type SimulatedBenchHandle, type SimulatedBenchSettings } from './simulated-bench';
 import { exportRecordFor } from './export';
 import { throughDesign } from './through';

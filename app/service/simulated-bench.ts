@@ -6,7 +6,7 @@
  */
 import type { Design } from '../circuit';
 import { scaledClock, type BenchClock } from '../bench/clock';
-import type { InstrumentRole } from './contract';
+import type { InstrumentRole } from '../contract/contract';
 import { startSimulatedBench, type SimFault } from '../sim';
 
 export interface SimulatedBenchSettings {

@@ -4,7 +4,7 @@
  * part values.
  */
 import { type Design, type OpAmpPart, parseDesign, withActualValues, solveAc, type AcResponse, stimulusLimitVpk, slowestTimeConstantS, monteCarloAc, TOLERANCE_BAND_SETTINGS, openLoopGainAt, outputOpAmpIndex } from '../circuit';
-import type { BuildRecord, DesignRecord, TheoryColumns } from './contract';
+import type { BuildRecord, DesignRecord, TheoryColumns } from '../contract/contract';
 import type { PlanTheory } from '../sweep/plan';
 import { minus3dbFrequenciesHz, passbandGainDb, type GbwEstimate, type TheoryAtPoints } from '../analysis';
 import { fitSinglePoleOpAmp, FitError } from '../signal';

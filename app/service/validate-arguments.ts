@@ -9,7 +9,7 @@
  * circuit parser; here we check shape, types and ranges.
  */
 import { ValidationError } from '../errors';
-import { INSTRUMENT_ROLES as ROLES, RECORD_FORMATS } from './contract';
+import { INSTRUMENT_ROLES as ROLES, RECORD_FORMATS } from '../contract/contract';
 import type {
   ConnectRequest,
   InstrumentRole,
@@ -20,7 +20,7 @@ import type {
   ServiceEventName,
   SweepRequest,
   VerdictLimits,
-} from './contract';
+} from '../contract/contract';
 
 /** Every event the service pushes to windows. */
 export const SERVICE_EVENT_NAMES: readonly ServiceEventName[] = ['progress', 'point', 'runEvent', 'traffic', 'bench'];

@@ -12,7 +12,7 @@ import { formatNr3, booleanParam, keywordParam, numberParam } from './parameters
 import { keywordIs } from './program-message';
 import { SimCommandError } from './scpi-errors';
 import { SimInstrument, SIMULATED_MANUFACTURER } from './sim-instrument';
-import { SOFTWARE_VERSION } from '../service/version';
+import { SOFTWARE_VERSION } from '../contract/version';
 
 export const SIM_GENERATOR_LIMITS = { minFrequencyHz: 0.001, maxFrequencyHz: 20e6, maxOpenCircuitVpp: 20 };
 

@@ -3,7 +3,7 @@
  * commands, an error queue and the standard event status register. Subclasses
  * add their subsystem commands. Transport-free: link-server.ts feeds it lines.
  */
-import type { InstrumentIdentity } from '../service/contract';
+import type { InstrumentIdentity } from '../contract/contract';
 import { formatErrorEntry } from '../scpi/error-entry';
 import { formatIdentity } from '../scpi/identity';
 import { HeaderPattern, splitProgramMessage, type ProgramUnit } from './program-message';

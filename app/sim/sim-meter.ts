@@ -11,7 +11,7 @@ import { booleanParam, formatNr3, numberParam, stringParam } from './parameters'
 import { SimCommandError } from './scpi-errors';
 import { SimInstrument, SIMULATED_MANUFACTURER } from './sim-instrument';
 import { sliceBounds } from './slices';
-import { SOFTWARE_VERSION } from '../service/version';
+import { SOFTWARE_VERSION } from '../contract/version';
 
 /** −3 dB bandwidth of the AC converter (a plausible bench-meter figure, invented). */
 export const SIM_METER_AC_BANDWIDTH_HZ = 300e3;

@@ -14,7 +14,7 @@ import { keywordIs } from './program-message';
 import { SimCommandError } from './scpi-errors';
 import { SimInstrument, SIMULATED_MANUFACTURER } from './sim-instrument';
 import { sliceBounds } from './slices';
-import { SOFTWARE_VERSION } from '../service/version';
+import { SOFTWARE_VERSION } from '../contract/version';
 
 export const SIM_SCOPE_DIVISIONS = 10;
 /** Codes for ±5 vertical divisions; the 16-bit converter clips beyond ±32767. */

@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseDesign, SeededRandom, type Design } from '../circuit';
 import { scaledClock, type BenchClock } from '../bench/clock';
-import { INSTRUMENT_ROLES as ROLES, type InstrumentRole } from '../service/contract';
+import { INSTRUMENT_ROLES as ROLES, type InstrumentRole } from '../contract/contract';
 import { ValidationError } from '../errors';
 import { BenchModel } from './bench-model';
 import { CircuitUnderTest } from './circuit-under-test';

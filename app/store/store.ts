@@ -18,8 +18,8 @@ import type {
   RunStatus,
   RunSummary,
   Verdict,
-} from '../service/contract';
-import { SOFTWARE_VERSION } from '../service/version';
+} from '../contract/contract';
+import { SOFTWARE_VERSION } from '../contract/version';
 import {
   DuplicateStepError,
   RecordNotFoundError,

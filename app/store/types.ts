@@ -1,5 +1,5 @@
 /**
- * Store-side record shapes. Where the contract (app/service/contract.ts) has a
+ * Store-side record shapes. Where the contract (app/contract/contract.ts) has a
  * type, the store returns it; these cover what only the service sees.
  */
 import type {
@@ -13,7 +13,7 @@ import type {
   SweepPlanSummary,
   SweepRequest,
   Verdict,
-} from '../service/contract';
+} from '../contract/contract';
 
 export interface NewRun {
   buildId: number;

@@ -3,7 +3,7 @@
  * and `rolloff.on` through contextBridge; this wraps them in the same shape
  * as the HTTP client.
  */
-import type { RolloffClient, ServiceEventName } from '../../app/service/contract';
+import type { RolloffClient, ServiceEventName } from '../../app/contract/contract';
 import { errorFromWire, type WireError } from './remote-error';
 import { contractProxy } from './contract-proxy';
 

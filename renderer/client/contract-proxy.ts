@@ -4,7 +4,7 @@
  * (the host validates the name). `then` stays undefined so awaiting a client
  * does not mistake it for a promise.
  */
-import type { RolloffClient, ServiceEventName } from '../../app/service/contract';
+import type { RolloffClient, ServiceEventName } from '../../app/contract/contract';
 
 export function contractProxy(
   call: (method: string, args: unknown[]) => Promise<unknown>,

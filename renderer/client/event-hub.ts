@@ -1,5 +1,5 @@
 /** Fans service events out to the views that subscribed. */
-import type { ServiceEventName, ServiceEvents } from '../../app/service/contract';
+import type { ServiceEventName, ServiceEvents } from '../../app/contract/contract';
 
 type AnyListener = (payload: never) => void;
 

@@ -3,7 +3,7 @@
  * JSON argument list, events over a WebSocket that reconnects after a drop.
  * contract-proxy.ts turns every method name into a call.
  */
-import type { RolloffClient, ServiceEventName, ServiceEvents } from '../../app/service/contract';
+import type { RolloffClient, ServiceEventName, ServiceEvents } from '../../app/contract/contract';
 import { errorFromWire, type WireError } from './remote-error';
 import { EventHub } from './event-hub';
 import { contractProxy } from './contract-proxy';

@@ -1,5 +1,5 @@
 /** Plot columns for the Compare view, built from the service's Comparison. */
-import type { Comparison } from '../../app/service/contract';
+import type { Comparison } from '../../app/contract/contract';
 import { alignSeries, type AlignedColumns } from './aligned-series';
 
 export function compareColumns(comparison: Comparison): { overlay: AlignedColumns; difference: AlignedColumns } {

@@ -3,7 +3,7 @@
  * they arrive (refinement points land between coarse ones). A point seen
  * twice (an event replayed after a reconnect) is kept once.
  */
-import type { ServiceEvents } from '../../app/service/contract';
+import type { ServiceEvents } from '../../app/contract/contract';
 
 export type PointEvent = ServiceEvents['point'];
 

@@ -4,8 +4,8 @@
  * they arrive; redraws are batched to the next animation frame so a burst of
  * points costs one draw.
  */
-import type { RunKind, TheoryColumns } from '../../app/service/contract';
-import { PointFlag } from '../../app/service/contract';
+import type { RunKind, TheoryColumns } from '../../app/contract/contract';
+import { PointFlag } from '../../app/contract/contract';
 import { alignSeries } from '../model/aligned-series';
 import { formatHz } from '../model/format';
 import { h } from '../dom';

@@ -1,5 +1,5 @@
 /** About: version, the safety cautions, and a way to see the first-start notice again. */
-import { SOFTWARE_VERSION } from '../../app/service/version';
+import { SOFTWARE_VERSION } from '../../app/contract/version';
 import { h } from '../dom';
 import { showInfo } from '../notices';
 import type { View } from '../shell';

@@ -3,7 +3,7 @@
  * identities, set the maximum stimulus amplitude, start the simulated bench
  * (always labelled simulated) and watch the SCPI traffic.
  */
-import { INSTRUMENT_ROLES as ROLES, type BenchStatus, type InstrumentRole, type ProfileSummary, type RolloffClient, type TrafficLine } from '../../app/service/contract';
+import { INSTRUMENT_ROLES as ROLES, type BenchStatus, type InstrumentRole, type ProfileSummary, type RolloffClient, type TrafficLine } from '../../app/contract/contract';
 import { parseEngineering } from '../../app/units';
 import { UserError } from '../../app/errors';
 import { field, h, replaceChildren, select } from '../dom';

@@ -4,7 +4,7 @@
  * with their deltas.
  */
 import { UserError } from '../../app/errors';
-import type { Comparison, RolloffClient, RunFigures, RunSummary } from '../../app/service/contract';
+import type { Comparison, RolloffClient, RunFigures, RunSummary } from '../../app/contract/contract';
 import { field, h, replaceChildren } from '../dom';
 import { formatDb, formatDelta, formatHz } from '../model/format';
 import { compareColumns, runColor } from '../model/compare-data';

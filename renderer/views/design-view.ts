@@ -5,7 +5,7 @@
  * the window with the pure circuit module — no round trip to the service.
  */
 import { UserError } from '../../app/errors';
-import type { BuildRecord, DesignRecord, RolloffClient, TemplateInfo, TheoryColumns } from '../../app/service/contract';
+import type { BuildRecord, DesignRecord, RolloffClient, TemplateInfo, TheoryColumns } from '../../app/contract/contract';
 import { logGrid, parseEngineering, formatEngineering } from '../../app/units';
 import { monteCarloAc, parseDesign, solveAc, summarizeAc, TOLERANCE_BAND_SETTINGS } from '../../app/circuit';
 import { debounce, field, h, replaceChildren } from '../dom';

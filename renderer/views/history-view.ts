@@ -3,7 +3,7 @@
  * by a crash or a stop are offered for resume; runs can be picked for
  * Compare and Record, or reopened on the Sweep view.
  */
-import type { RolloffClient, RunStatus, RunSummary } from '../../app/service/contract';
+import type { RolloffClient, RunStatus, RunSummary } from '../../app/contract/contract';
 import { debounce, field, h, replaceChildren, select } from '../dom';
 import { guarded } from '../notices';
 import type { View } from '../shell';

@@ -1,6 +1,6 @@
 /** Record: export the picked runs as PDF, HTML, CSV or JSON and download the file. */
 import { UserError } from '../../app/errors';
-import type { RecordFormat, RolloffClient } from '../../app/service/contract';
+import type { RecordFormat, RolloffClient } from '../../app/contract/contract';
 import { field, h, replaceChildren, select } from '../dom';
 import { guarded, showInfo } from '../notices';
 import type { View } from '../shell';

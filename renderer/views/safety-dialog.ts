@@ -1,5 +1,5 @@
 /** The safety cautions, shown once on first start until the user dismisses them; remembered per browser profile. */
-import { SAFETY_NOTICE_POINTS } from '../../app/service/safety';
+import { SAFETY_NOTICE_POINTS } from '../../app/contract/safety';
 import { h } from '../dom';
 
 const ACKNOWLEDGED_KEY = 'rolloff.safetyNotice.acknowledged.v1';

@@ -4,7 +4,7 @@
  * points, distorted points marked), progress with ETA, and the run's events.
  */
 import { UserError } from '../../app/errors';
-import type { BuildRecord, RolloffClient, RunDetail, RunFigures, RunProgress, RunStatus, RunSummary, SweepRequest, Verdict } from '../../app/service/contract';
+import type { BuildRecord, RolloffClient, RunDetail, RunFigures, RunProgress, RunStatus, RunSummary, SweepRequest, Verdict } from '../../app/contract/contract';
 import { formatEngineering, logGrid, parseEngineering } from '../../app/units';
 import { parseDesign, solveDcTransfer, withActualValues } from '../../app/circuit';
 import { debounce, field, h, replaceChildren, select } from '../dom';

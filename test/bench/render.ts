@@ -21,7 +21,7 @@ import { bundleRenderer } from '../../app/host/renderer-bundle';
 import { startWebHost } from '../../app/host/web-host';
 import { openHostedService } from '../../app/host/hosted-service';
 import { makeDesignFromTemplate } from '../../app/circuit';
-import type { Comparison, RunDetail } from '../../app/service/contract';
+import type { Comparison, RunDetail } from '../../app/contract/contract';
 import { CHROMIUM_ARGS, CHROMIUM_PATH } from '../e2e/helpers/chromium';
 
 const ROOT = resolve(fileURLToPath(new URL('.', import.meta.url)), '../..');

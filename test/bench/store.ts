@@ -10,8 +10,8 @@
 import { mkdtempSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import type { SweepPlanSummary, SweepRequest } from '../../app/service/contract';
-import { SOFTWARE_VERSION } from '../../app/service/version';
+import type { SweepPlanSummary, SweepRequest } from '../../app/contract/contract';
+import { SOFTWARE_VERSION } from '../../app/contract/version';
 import { Store, type NewPoint } from '../../app/store';
 
 const POINTS_PER_RUN = 1000;

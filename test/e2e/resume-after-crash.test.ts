@@ -11,7 +11,7 @@ import { join, resolve } from 'node:path';
 import { chromiumAvailable, launchChromium } from './helpers/chromium';
 import { startServe, type ServeProcess } from './helpers/serve-process';
 import { makeDesignFromTemplate } from '../../app/circuit';
-import type { RunDetail, RunSummary } from '../../app/service/contract';
+import type { RunDetail, RunSummary } from '../../app/contract/contract';
 
 const ARTIFACTS = resolve(__dirname, '../artifacts');
 

@@ -17,9 +17,9 @@ const PURE_ROOTS = [
   'app/sweep/plan',
   'app/analysis',
   'app/errors.ts',
-  'app/service/contract.ts',
-  'app/service/safety.ts',
-  'app/service/version.ts',
+  'app/contract/contract.ts',
+  'app/contract/safety.ts',
+  'app/contract/version.ts',
 ];
 
 const NODE_BUILTINS = new Set([

@@ -1,6 +1,6 @@
 /** The template catalogue and the one way to turn a template into a design file. */
 import { ValidationError } from '../../errors';
-import type { TemplateInfo } from '../../service/contract';
+import type { TemplateInfo } from '../../contract/contract';
 import { invertingBandPass, invertingGain, invertingHighPass, invertingLowPass, nonInverting, practicalDifferentiator, practicalIntegrator } from './first-order';
 import { logStage } from './log-stage';
 import { multipleFeedbackBandPass, sallenKeyHighPassEqual, sallenKeyHighPassUnity, sallenKeyLowPassEqual, sallenKeyLowPassUnity } from './second-order';

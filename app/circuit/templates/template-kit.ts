@@ -2,7 +2,7 @@
  * Shared pieces of the design templates: the parameter table type, the
  * generic op-amp model and part constructors producing design-file JSON.
  */
-import type { TemplateInfo } from '../../service/contract';
+import type { TemplateInfo } from '../../contract/contract';
 
 export type TemplateParameters = TemplateInfo['parameters'];
 

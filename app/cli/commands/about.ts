@@ -1,6 +1,6 @@
 import type { CommandSpec } from '../args';
-import { SAFETY_NOTICE_POINTS } from '../../service/safety';
-import { SOFTWARE_VERSION } from '../../service/version';
+import { SAFETY_NOTICE_POINTS } from '../../contract/safety';
+import { SOFTWARE_VERSION } from '../../contract/version';
 
 export const aboutCommand: CommandSpec = {
   name: 'about',

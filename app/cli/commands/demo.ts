@@ -1,6 +1,6 @@
 import type { CommandSpec } from '../args';
 import { optionFlag, optionString } from '../args';
-import { SAFETY_NOTICE_SHORT } from '../../service/safety';
+import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
 import { RolloffService } from '../../service/service';
 import { resolveDatabasePath } from '../../store';
 import { makeDesignFromTemplate } from '../../circuit';
@@ -8,7 +8,7 @@ import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';
 import { followRun } from '../../sweep/cli/follow-run';
 import { figureLines } from '../../sweep/cli/summary-text';
 import { formatEngineering } from '../../units';
-import type { RunDetail, SweepRequest } from '../../service/contract';
+import type { RunDetail, SweepRequest } from '../../contract/contract';
 
 /**
  * The invented scenario. Nothing here is a measurement of a real board: the

@@ -7,7 +7,7 @@
 import { existsSync, renameSync, statSync, unlinkSync, writeFileSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import { UserError, ValidationError } from '../../errors';
-import type { RecordFormat } from '../../service/contract';
+import type { RecordFormat } from '../../contract/contract';
 import { Store, resolveDatabasePath } from '../../store';
 import { exportRecordFor } from '../../service/export';
 import { RECORD_FORMATS } from '../../record';

@@ -7,7 +7,7 @@ import { formatAddress, isBaudRate, parseAddress, type InstrumentAddress } from 
 import { connect } from '../../scpi/connect';
 import { ScpiError, ScpiMalformedReplyError, ScpiTimeoutError } from '../../scpi/errors';
 import type { ScpiSession } from '../../scpi/session';
-import type { InstrumentIdentity } from '../../service/contract';
+import type { InstrumentIdentity } from '../../contract/contract';
 import { optionNumber, optionString, requirePositional, type CommandSpec } from '../args';
 
 export const identifyCommand: CommandSpec = {

@@ -1,6 +1,6 @@
 import type { CommandSpec } from '../args';
 import { requirePositional } from '../args';
-import { SAFETY_NOTICE_SHORT } from '../../service/safety';
+import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
 import { BENCH_OPTIONS, connectBench, openService } from '../../sweep/cli/sweep-options';
 import { followRun } from '../../sweep/cli/follow-run';
 import { runDetailText } from '../../sweep/cli/summary-text';

@@ -1,7 +1,7 @@
 import type { CommandSpec } from '../args';
 import { optionFlag, optionNumber, optionString } from '../args';
 import { ValidationError } from '../../errors';
-import type { RunStatus } from '../../service/contract';
+import type { RunStatus } from '../../contract/contract';
 import { RolloffService } from '../../service/service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';

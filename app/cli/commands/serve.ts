@@ -4,7 +4,7 @@
  */
 import { UserError } from '../../errors';
 import { optionFlag, optionNumber, optionString, type CommandSpec } from '../args';
-import { SAFETY_NOTICE_SHORT } from '../../service/safety';
+import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
 import { resolveDatabasePath } from '../../store';
 import { bundleRenderer } from '../../host/renderer-bundle';
 import { startWebHost } from '../../host/web-host';

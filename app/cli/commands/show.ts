@@ -2,7 +2,7 @@ import type { CommandSpec } from '../args';
 import { optionFlag, optionString, requirePositional } from '../args';
 import { formatEngineering } from '../../units';
 import { ValidationError } from '../../errors';
-import { PointFlag } from '../../service/contract';
+import { PointFlag } from '../../contract/contract';
 import { RolloffService } from '../../service/service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';

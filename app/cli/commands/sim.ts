@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { UserError, ValidationError } from '../../errors';
 import { startSimulatedBench, parseFaultSpec, type SimFault } from '../../sim';
-import { INSTRUMENT_ROLES, type InstrumentRole } from '../../service/contract';
+import { INSTRUMENT_ROLES, type InstrumentRole } from '../../contract/contract';
 import { formatEngineering } from '../../units';
 import { optionNumber, optionString, type CommandSpec } from '../args';
 

@@ -1,6 +1,6 @@
 import type { CommandSpec } from '../args';
 import { optionFlag } from '../args';
-import { SAFETY_NOTICE_SHORT } from '../../service/safety';
+import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
 import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, openService, prepareSweep } from '../../sweep/cli/sweep-options';
 import { followRun } from '../../sweep/cli/follow-run';
 import { formatDuration } from '../../units';

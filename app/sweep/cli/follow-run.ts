@@ -4,7 +4,7 @@
  * pauses the run (resumable) instead of killing it mid-point.
  */
 import type { RolloffService } from '../../service/service';
-import type { RunStatus } from '../../service/contract';
+import type { RunStatus } from '../../contract/contract';
 import { terminalProgressBar } from './progress-bar';
 
 export async function followRun(service: RolloffService, runId: number): Promise<RunStatus> {

@@ -1,5 +1,5 @@
 /** A one-line progress bar on stderr, only when stderr is a terminal (pipes and logs stay clean). */
-import type { RunProgress } from '../../service/contract';
+import type { RunProgress } from '../../contract/contract';
 import { formatDuration } from '../../units';
 
 export interface ProgressBar {

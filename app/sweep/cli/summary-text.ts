@@ -1,5 +1,5 @@
 /** Plain-text summaries of runs for the terminal. */
-import type { RunDetail, RunFigures, RunSummary } from '../../service/contract';
+import type { RunDetail, RunFigures, RunSummary } from '../../contract/contract';
 import { formatEngineering } from '../../units';
 
 export function figureLines(figures: RunFigures, theory?: { gainLimitHz?: number; minus3dbHz: number[] }): string[] {

@@ -8,7 +8,7 @@ import type { OptionSpec, ParsedArgs } from '../../cli/args';
 import { optionFlag, optionNumber, optionString } from '../../cli/args';
 import { ValidationError } from '../../errors';
 import { RolloffService } from '../../service/service';
-import type { SweepRequest, VerdictLimits } from '../../service/contract';
+import type { SweepRequest, VerdictLimits } from '../../contract/contract';
 import { resolveDatabasePath } from '../../store';
 import { DEFAULT_PROFILE_ID } from '../../bench';
 import { parseEngineering } from '../../units';

@@ -4,7 +4,7 @@
  * instrument is touched.
  */
 import { ValidationError } from '../../errors';
-import type { PlannedStep, SweepPlanSummary, SweepRequest } from '../../service/contract';
+import type { PlannedStep, SweepPlanSummary, SweepRequest } from '../../contract/contract';
 import { formatEngineering, linearGrid, logGrid } from '../../units';
 import { autoAmplitudeVpp, fixedAmplitudeDistorts, type AmplitudeLimits } from './amplitude';
 import { integrationTimeS, settleTimeS } from './settle';

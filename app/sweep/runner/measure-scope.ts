@@ -5,7 +5,7 @@
  */
 import type { BenchClock } from '../../bench/clock';
 import type { ScopeControl, Waveform } from '../../bench/roles';
-import { PointFlag } from '../../service/contract';
+import { PointFlag } from '../../contract/contract';
 import { distortionScore, DISTORTION_SCORE_LIMIT, responseFromFits, sineFit3, type StageResponse } from '../../signal';
 import { formatEngineering } from '../../units';
 import { combineAcquisitions } from './combine';

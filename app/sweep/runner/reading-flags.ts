@@ -1,6 +1,6 @@
 /** Meter readings of one step: the values to average and the point flags the others raise. */
 import type { Reading } from '../../scpi/reading';
-import { PointFlag } from '../../service/contract';
+import { PointFlag } from '../../contract/contract';
 
 export function splitReadings(readings: Reading[]): { okValues: number[]; flags: number } {
   const okValues = readings.filter((r) => r.flag === 'ok').map((r) => r.value);

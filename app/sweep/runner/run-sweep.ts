@@ -4,8 +4,8 @@
  * continues at the store's next step, so a crash loses no point and repeats none.
  */
 import type { BenchClock } from '../../bench/clock';
-import type { PointColumns, RunEvent, RunProgress, RunStatus, ServiceEvents } from '../../service/contract';
-import { PointFlag } from '../../service/contract';
+import type { PointColumns, RunEvent, RunProgress, RunStatus, ServiceEvents } from '../../contract/contract';
+import { PointFlag } from '../../contract/contract';
 import type { Store } from '../../store';
 import type { RunControl } from './control';
 import { withRecovery } from './recovery';

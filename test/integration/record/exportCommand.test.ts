@@ -16,7 +16,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { readCsv, recordFromJson, type ComparisonRecord, type RunRecord } from '../../../app/record';
 import { RolloffService } from '../../../app/service/service';
-import type { RunDetail, SweepRequest } from '../../../app/service/contract';
+import type { RunDetail, SweepRequest } from '../../../app/contract/contract';
 import { main } from '../../../app/cli/main';
 
 const run = promisify(execFile);

@@ -10,8 +10,8 @@ import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readFileSync, readdir
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import Database from 'better-sqlite3';
-import type { SweepPlanSummary, SweepRequest } from '../../../app/service/contract';
-import { SOFTWARE_VERSION } from '../../../app/service/version';
+import type { SweepPlanSummary, SweepRequest } from '../../../app/contract/contract';
+import { SOFTWARE_VERSION } from '../../../app/contract/version';
 import {
   DEFAULT_MIGRATIONS_DIR,
   DuplicateStepError,

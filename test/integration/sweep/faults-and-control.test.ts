@@ -9,7 +9,7 @@
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
 import { RolloffService } from '../../../app/service/service';
-import { PointFlag } from '../../../app/service/contract';
+import { PointFlag } from '../../../app/contract/contract';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { sweepRequest, tempFolder } from './helpers';
 

@@ -3,7 +3,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
-import type { SweepRequest } from '../../../app/service/contract';
+import type { SweepRequest } from '../../../app/contract/contract';
 
 export function tempFolder(): { path: string; remove(): void } {
   const path = mkdtempSync(join(tmpdir(), 'rolloff-sweep-'));

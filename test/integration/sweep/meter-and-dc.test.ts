@@ -8,7 +8,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
 import { RolloffService } from '../../../app/service/service';
-import type { RunDetail } from '../../../app/service/contract';
+import type { RunDetail } from '../../../app/contract/contract';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { SIM_SOURCE_IMPEDANCE_OHM } from '../../../app/sim';
 import { parseDesign } from '../../../app/circuit/parse-design';

@@ -12,7 +12,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { RolloffService } from '../../../app/service/service';
-import type { SweepRequest } from '../../../app/service/contract';
+import type { SweepRequest } from '../../../app/contract/contract';
 import { startSimulatedBench, type GeneratorOutput, type SimulatedBench } from '../../../app/sim';
 import { tempFolder } from './helpers';
 

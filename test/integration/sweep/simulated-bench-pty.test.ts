@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
 import { RolloffService } from '../../../app/service/service';
-import type { RunDetail } from '../../../app/service/contract';
+import type { RunDetail } from '../../../app/contract/contract';
 import { invertingGain100, sweepRequest, tempFolder } from './helpers';
 
 const hasSocat = spawnSync('socat', ['-V']).status === 0;

@@ -8,8 +8,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
 import { RolloffService } from '../../../app/service/service';
-import type { RunDetail } from '../../../app/service/contract';
-import { PointFlag } from '../../../app/service/contract';
+import type { RunDetail } from '../../../app/contract/contract';
+import { PointFlag } from '../../../app/contract/contract';
 import { invertingGain100, sweepRequest, tempFolder } from './helpers';
 
 describe('sweep on the simulated bench over TCP', () => {

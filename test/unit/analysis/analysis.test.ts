@@ -14,7 +14,7 @@ import {
   rolloffDbPerDecade,
   HALF_POWER_DB,
 } from '../../../app/analysis';
-import { PointFlag } from '../../../app/service/contract';
+import { PointFlag } from '../../../app/contract/contract';
 import { dbFromRatio, logGrid } from '../../../app/units';
 
 /** First-order low-pass K/(1 + j f/fc): |H| is 3.0103 dB down at fc (handbook: single-pole RC, f_c = 1/(2πRC)). */

@@ -1,6 +1,6 @@
 /**
  * The one boundary check for window calls. Expected outcomes follow the
- * contract's types (app/service/contract.ts) and the ranges documented in
+ * contract's types (app/contract/contract.ts) and the ranges documented in
  * validate-arguments.ts — common practice, no source.
  */
 import { describe, expect, it } from 'vitest';
@@ -8,7 +8,7 @@ import { readFileSync } from 'node:fs';
 import { resolve } from 'node:path';
 import { ValidationError } from '../../../app/errors';
 import { API_METHOD_NAMES, validateCall } from '../../../app/service/validate-arguments';
-import type { SweepRequest } from '../../../app/service/contract';
+import type { SweepRequest } from '../../../app/contract/contract';
 
 const GOOD_SWEEP: SweepRequest = {
   buildId: 3,
@@ -39,7 +39,7 @@ function rejection(method: unknown, args: unknown): ValidationError {
 describe('validateCall', () => {
   it('knows every method of the contract exactly once', () => {
     // The methods declared in RolloffApi, read from the contract's source.
-    const source = readFileSync(resolve(__dirname, '../../../app/service/contract.ts'), 'utf8');
+    const source = readFileSync(resolve(__dirname, '../../../app/contract/contract.ts'), 'utf8');
     const body = /export interface RolloffApi \{([\s\S]*?)\n\}/.exec(source)![1];
     const declared = [...body.matchAll(/^\s+(\w+)\(/gm)].map((m) => m[1]).sort();
     expect(declared.length).toBeGreaterThan(20);

@@ -2,13 +2,13 @@
  * IPC wiring with a fake ipcMain (Electron's binary is not available here):
  * every call is validated before the service sees it, errors keep message and
  * hint, untrusted frames are refused, events reach open windows only.
- * Expected behaviour: the contract (app/service/contract.ts) — common practice, no source.
+ * Expected behaviour: the contract (app/contract/contract.ts) — common practice, no source.
  */
 import { describe, expect, it } from 'vitest';
 import { registerIpc, type CallReply, type IpcInvokeEventLike, type IpcMainLike } from '../../../main/ipc';
 import { CALL_CHANNEL, EVENT_CHANNEL } from '../../../main/channels';
 import { UserError } from '../../../app/errors';
-import type { RolloffApi } from '../../../app/service/contract';
+import type { RolloffApi } from '../../../app/contract/contract';
 
 class FakeIpcMain implements IpcMainLike {
   readonly handlers = new Map<string, (event: IpcInvokeEventLike, ...args: unknown[]) => unknown>();

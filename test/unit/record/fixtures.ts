@@ -6,8 +6,8 @@
  * figures and verdict come from the real run analysis (app/analysis).
  * All of it is invented demo data and labelled simulated.
  */
-import type { BuildRecord, Comparison, InstrumentInfo, RunDetail } from '../../../app/service/contract';
-import { PointFlag } from '../../../app/service/contract';
+import type { BuildRecord, Comparison, InstrumentInfo, RunDetail } from '../../../app/contract/contract';
+import { PointFlag } from '../../../app/contract/contract';
 import { analyzeAcRun } from '../../../app/analysis';
 import { dbFromRatio, degreesFromRadians, logGrid } from '../../../app/units';
 import { logStageIdeal } from '../../../app/circuit/log-stage';

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { PointFlag } from '../../../app/service/contract';
+import { PointFlag } from '../../../app/contract/contract';
 import { flagWords, formatHz, formatUncertainty, idnText, verdictHeadline } from '../../../app/record/recordFormatting';
 import { logAxis, linearAxis, axisFraction } from '../../../app/record/plotAxes';
 

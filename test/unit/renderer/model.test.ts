@@ -9,7 +9,7 @@ import { LivePoints, type PointEvent } from '../../../renderer/model/live-points
 import { formatDelta, formatDuration, formatHz } from '../../../renderer/model/format';
 import { viewForShortcut } from '../../../renderer/model/views';
 import { compareColumns, runColor } from '../../../renderer/model/compare-data';
-import type { Comparison, RunDetail } from '../../../app/service/contract';
+import type { Comparison, RunDetail } from '../../../app/contract/contract';
 
 function point(index: number, stimulus: number, gainDb = -index): PointEvent {
   return { runId: 5, index, stimulus, gainDb, phaseDeg: 180, outputV: 0, flags: 0, gainUncertaintyDb: 0.01, phaseUncertaintyDeg: 0.1 };

@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { AppState } from '../../../renderer/state';
-import type { BenchStatus } from '../../../app/service/contract';
+import type { BenchStatus } from '../../../app/contract/contract';
 
 const stale: BenchStatus = { instruments: [], maxStimulusVpp: 2 };
 const fresh: BenchStatus = { instruments: [], maxStimulusVpp: 2, simulatedBench: { addresses: {}, designName: 'invented' } };

@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { planSweep, refinementFrequencies, settleTimeS, integrationTimeS, toPlanSummary, type PlanInput, type PlanTheory } from '../../../app/sweep/plan';
 import { minus3dbFrequenciesHz } from '../../../app/analysis';
 import { ValidationError } from '../../../app/errors';
-import type { SweepRequest } from '../../../app/service/contract';
+import type { SweepRequest } from '../../../app/contract/contract';
 import { dbFromRatio } from '../../../app/units';
 
 const GAIN = 10;

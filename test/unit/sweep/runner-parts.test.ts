@@ -16,7 +16,7 @@ import { combineAcquisitions } from '../../../app/sweep/runner/combine';
 import { niceScale, scopeMeasurer, splitRecord } from '../../../app/sweep/runner/measure-scope';
 import { sineFit3 } from '../../../app/signal';
 import { apertureChanged } from '../../../app/sweep/runner/applied-stimulus';
-import { PointFlag } from '../../../app/service/contract';
+import { PointFlag } from '../../../app/contract/contract';
 import type { StageResponse } from '../../../app/signal';
 import type { StepSetting, SweepInstruments } from '../../../app/sweep/runner/types';
 
