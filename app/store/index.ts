@@ -3,3 +3,4 @@ export * from './errors';
 export * from './types';
 export { defaultDatabasePath, resolveDatabasePath, userDataFolder, DATABASE_FILE_NAME } from './paths';
 export { loadMigrations, DEFAULT_MIGRATIONS_DIR, type Migration } from './migrations';
+export type * from './store-interface';

@@ -122,6 +122,41 @@ export interface ScheduleRecord {
   createdAt: string;
 }
 
+export interface NewDesign {
+  name: string;
+  /** The design file's JSON as given (see app/circuit for its schema). */
+  design: unknown;
+}
+
+export interface NewBuild {
+  designId: number;
+  label: string;
+  notes: string;
+  /** Measured part values by part id, SI units. */
+  actualValues: Record<string, number>;
+}
+
+/** One run's points for a bulk import (insertPointsOfRuns). */
+export interface PointBatch {
+  runId: number;
+  points: readonly NewPoint[];
+}
+
+/**
+ * Settings that belong to one bench (one set of instruments), keyed like
+ * calibrations by a stable bench key. null means "not set on this bench".
+ */
+export interface BenchSettingsInput {
+  /** The user's ceiling on generator output (Vpp) for this bench. */
+  maxStimulusVpp: number | null;
+}
+
+export interface BenchSettings extends BenchSettingsInput {
+  benchKey: string;
+  /** ISO 8601: when these settings were last saved. */
+  updatedAt: string;
+}
+
 export interface StoreOpenOptions {
   readonly?: boolean;
   /** Folder of NNNN_name.sql files; defaults to the repository's migrations/. */

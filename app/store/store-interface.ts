@@ -1,0 +1,167 @@
+/**
+ * What the service, the sweep runner, the read model and the exports need
+ * from a database, with no hint of which one it is. SQLite (app/store/sqlite-store.ts,
+ * one file, the embedded default) and PostgreSQL (one lab-wide database) implement it,
+ * and both pass the same conformance suite (test/store-conformance/).
+ *
+ * Every method is asynchronous, so a server database fits behind it; an
+ * implementation over a synchronous binding resolves at once.
+ *
+ * Guarantees every implementation keeps (the conformance suite checks them):
+ * - insertPoint is durable when its promise resolves (one transaction per point,
+ *   fully synchronous commit), so a power cut loses at most the point being written;
+ * - a run holds at most one point per step: a second one is refused with
+ *   DuplicateStepError and the stored one is kept;
+ * - loadPoints returns the points in step order, whatever order they were stored in;
+ * - bulk methods (insertPoints, insertPointsOfRuns, createRuns) are all or nothing;
+ * - the schema is migrated on open with the version recorded, and a database of a
+ *   newer schema (StoreVersionError) or a damaged one (StoreDamagedError) is refused
+ *   before anything is written;
+ * - unknown ids are RecordNotFoundError, bad values ValidationError naming the field,
+ *   and a read-only store refuses every write with StoreUnavailableError.
+ */
+import type {
+  BuildRecord,
+  DesignRecord,
+  PointColumns,
+  RunEvent,
+  RunFigures,
+  RunStatus,
+  RunSummary,
+  Verdict,
+} from '../service/contract';
+import type {
+  BenchSettings,
+  BenchSettingsInput,
+  CalibrationRecord,
+  InstrumentRecord,
+  InstrumentSighting,
+  NewBuild,
+  NewCalibration,
+  NewDesign,
+  NewPoint,
+  NewRun,
+  NewSchedule,
+  PointBatch,
+  RunFilter,
+  ScheduleRecord,
+  StoredRun,
+} from './types';
+
+/** Designs as drawn and the builds (physical realisations, with measured part values) of them. */
+export interface DesignAndBuildStore {
+  saveDesign(input: NewDesign): Promise<DesignRecord>;
+  getDesign(designId: number): Promise<DesignRecord>;
+  /** Oldest first. */
+  listDesigns(): Promise<DesignRecord[]>;
+  /** Refuses an unknown design id (RecordNotFoundError) and non-finite part values. */
+  createBuild(input: NewBuild): Promise<BuildRecord>;
+  getBuild(buildId: number): Promise<BuildRecord>;
+  /** Oldest first; all builds, or those of one design. */
+  listBuilds(designId?: number): Promise<BuildRecord[]>;
+}
+
+/** Runs: what was asked and planned, their status, and the figures found. */
+export interface RunStore {
+  /** A new run in status 'planned', with its plan stored beside it. */
+  createRun(input: NewRun): Promise<StoredRun>;
+  /** Many runs in one transaction (imports, benchmarks); all or nothing, in input order. */
+  createRuns(inputs: readonly NewRun[]): Promise<StoredRun[]>;
+  /** First 'running' stamps startedAt; a finished status (done, stopped, failed) stamps endedAt; 'running' again clears it. */
+  updateRunStatus(runId: number, status: RunStatus): Promise<StoredRun>;
+  setRunResults(runId: number, figures: RunFigures, verdict: Verdict | null): Promise<StoredRun>;
+  getRun(runId: number): Promise<StoredRun>;
+  /** Newest first, at most filter.limit (default 200). */
+  listRuns(filter?: RunFilter): Promise<RunSummary[]>;
+  /** Runs left running or paused (oldest first), e.g. by a crash or power cut. */
+  findInterruptedRuns(): Promise<StoredRun[]>;
+
+  // ── run ownership (owner, heartbeat, take-over) ──────────────────────────
+  // Added here by the run-ownership work: who drives a run (process, host,
+  // since), the heartbeat it renews while it runs, and the take-over of a run
+  // whose heartbeat is stale as ONE transaction in the store, so two processes
+  // can never both win it. findInterruptedRuns then means "running with a stale
+  // heartbeat", not merely "running".
+}
+
+/** The measured steps of a run. */
+export interface PointStore {
+  /** One point in its own transaction: durable when this resolves. A stored step is refused with DuplicateStepError. */
+  insertPoint(runId: number, point: NewPoint): Promise<void>;
+  /** Many points of one run in one transaction; all or nothing. */
+  insertPoints(runId: number, points: readonly NewPoint[]): Promise<void>;
+  /** Points of many runs in one transaction (bulk imports); all or nothing. */
+  insertPointsOfRuns(batches: readonly PointBatch[]): Promise<void>;
+  /** A run's points in step order, columnar (missing values NaN). RecordNotFoundError for an unknown run. */
+  loadPoints(runId: number): Promise<PointColumns>;
+  /** One past the highest stored step (0 for a run with no points): where a resumed sweep continues. */
+  nextStep(runId: number): Promise<number>;
+}
+
+/** The log lines of a run (info, warning, error), in the order they were appended. */
+export interface RunEventStore {
+  appendEvent(runId: number, level: RunEvent['level'], message: string, at?: string): Promise<RunEvent>;
+  listEvents(runId: number): Promise<RunEvent[]>;
+}
+
+/** Through-calibrations, per bench. */
+export interface CalibrationStore {
+  saveCalibration(input: NewCalibration): Promise<CalibrationRecord>;
+  /** The newest calibration of this bench, or undefined when it was never calibrated. */
+  latestCalibration(benchKey: string): Promise<CalibrationRecord | undefined>;
+}
+
+/** Repeated sweeps of one build. */
+export interface ScheduleStore {
+  createSchedule(input: NewSchedule): Promise<ScheduleRecord>;
+  getSchedule(scheduleId: number): Promise<ScheduleRecord>;
+}
+
+/** Every instrument identity seen at an address (the record's bench table). */
+export interface InstrumentStore {
+  /** First sighting is kept, last sighting and role are updated. */
+  recordInstrument(sighting: InstrumentSighting): Promise<InstrumentRecord>;
+  /** Most recently seen first. */
+  listInstruments(): Promise<InstrumentRecord[]>;
+}
+
+/** Settings that belong to one bench (e.g. its maximum stimulus), keyed like calibrations. */
+export interface BenchSettingsStore {
+  /** undefined when nothing was ever saved for this bench. */
+  getBenchSettings(benchKey: string): Promise<BenchSettings | undefined>;
+  /** Replaces this bench's settings. */
+  saveBenchSettings(benchKey: string, settings: BenchSettingsInput): Promise<BenchSettings>;
+}
+
+/** Where the store is, its schema, and its end. */
+export interface StoreLifecycle {
+  /** What the user named with --db: a file path, or a database URL without its password. */
+  readonly location: string;
+  readonly readonly: boolean;
+  /** Schema versions applied by this open (empty when the database was current). */
+  readonly appliedMigrations: readonly number[];
+  /** The schema version recorded in the database. */
+  schemaVersion(): Promise<number>;
+  /** The database's own consistency check; [] when sound (slow on big databases). */
+  integrityProblems(): Promise<string[]>;
+  /** Idempotent. */
+  close(): Promise<void>;
+}
+
+/** The whole store, as the service holds it. */
+export interface RolloffStore
+  extends DesignAndBuildStore,
+    RunStore,
+    PointStore,
+    RunEventStore,
+    CalibrationStore,
+    ScheduleStore,
+    InstrumentStore,
+    BenchSettingsStore,
+    StoreLifecycle {}
+
+/** The few methods the sweep runner uses: a fake of these is enough to drive it. */
+export type SweepStore = Pick<RolloffStore, 'nextStep' | 'updateRunStatus' | 'appendEvent' | 'insertPoint' | 'loadPoints'>;
+
+/** What the read model (run detail, analysis, exports) reads. */
+export type RunReadStore = Pick<RolloffStore, 'getRun' | 'loadPoints' | 'listEvents' | 'getBuild' | 'getDesign'>;
