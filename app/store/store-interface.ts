@@ -29,7 +29,7 @@ import type {
   RunStatus,
   RunSummary,
   Verdict,
-} from '../service/contract';
+} from '../contract/contract';
 import type {
   BenchSettings,
   BenchSettingsInput,
