@@ -58,6 +58,29 @@ export class AcSolver {
     }
   }
 
+  /**
+   * Adjoint solve for the output: y with Aᵀ·y = e_out (transpose, not the
+   * conjugate transpose), so the output voltage caused by any right-hand side
+   * b is yᵀ·b. One solve gives the output's transimpedance from every
+   * current or voltage injected anywhere (noise analysis). Fills yRe, yIm (length `layout.size`).
+   */
+  outputAdjointAt(frequencyHz: number, yRe: Float64Array, yIm: Float64Array): void {
+    const { g, c, size } = this.pencil;
+    const omega = 2 * Math.PI * frequencyHz;
+    for (let i = 0; i < size; i++) {
+      for (let j = 0; j < size; j++) {
+        this.aRe[i * size + j] = g[j * size + i];
+        this.aIm[i * size + j] = omega * c[j * size + i];
+      }
+    }
+    this.bRe.fill(0);
+    this.bIm.fill(0);
+    this.bRe[this.layout.output] = 1;
+    this.solve(frequencyHz);
+    yRe.set(this.bRe);
+    yIm.set(this.bIm);
+  }
+
   /** Output voltage for a 1 V input: out[0] real, out[1] imaginary. */
   transferAt(frequencyHz: number, out: Float64Array): void {
     this.load(frequencyHz, 1);
@@ -69,7 +92,10 @@ export class AcSolver {
   /**
    * Feedback fraction β of op-amp `index`: with the input grounded, its output
    * is forced to 1 V and β = −(V+ − V−) is read back (negative feedback gives
-   * a positive β at low frequency). Noise gain = 1/β, loop gain = A·β.
+   * a positive β at low frequency). Noise gain = 1/β, loop gain = A·β. With
+   * an output resistance the loop is broken behind it (the gain stage's own
+   * voltage is forced), so β includes Ro and the load it drives; at Ro = 0
+   * that is the output pin.
    */
   feedbackFractionAt(index: number, frequencyHz: number, out: Float64Array): void {
     const slot = this.layout.opamps[index];
@@ -81,6 +107,7 @@ export class AcSolver {
       this.aIm[row * n + j] = 0;
     }
     this.aRe[row * n + slot.out] = 1;
+    if (slot.model.ideal !== true) this.aRe[row * n + slot.outputCurrent] = slot.model.outputResistanceOhm ?? 0;
     this.bRe[row] = 1;
     this.solve(frequencyHz);
     const voltage = (node: number, part: Float64Array): number => (node === GROUND || node === INPUT ? 0 : part[node]);

@@ -1,6 +1,16 @@
 /**
  * The circuit theory engine (pure): design model, AC and DC solvers, op-amp
  * and diode models, tolerance analysis, templates and SPICE export.
+ *
+ * Noise and stability (columnar, per frequency):
+ * - solveNoise(design, frequenciesHz) → output density (V/√Hz), per-source
+ *   contributions (resistors 4kTR, op-amp en and in with 1/f corners), the
+ *   input-referred density and |gain|;
+ * - bandNoise(design, fromHz, toHz) → RMS output noise over a band, total and
+ *   per source; rmsFromDensity(f, density) integrates any density column;
+ * - analyzeStability(design) → per op-amp crossover, phase margin, gain
+ *   margin, closed-loop peaking; stabilityWarnings(result, limitDeg) → named
+ *   warnings ('low-phase-margin') with a plain message; loopGainColumns for plots.
  */
 export type { Design, Part, PartType, PassivePart, DiodePart, OpAmpPart, OpAmpModel, DiodeModel } from './types';
 export { isGroundNode } from './types';
@@ -20,3 +30,15 @@ export { TEMPLATES, makeDesignFromTemplate, type DesignFile } from './templates'
 export { toSpiceNetlist, spiceNames, type SpiceAnalysis, type SpiceOptions, type SpiceNames } from './spice-netlist';
 export { openLoopGainAt } from './opamp-gain';
 export { outputOpAmpIndex } from './output-opamp';
+export { solveNoise, fourKTJ, type NoiseResponse, type NoiseSource, type NoiseSourceKind, type NoiseOptions } from './solve-noise';
+export { bandNoise, rmsFromDensity, BAND_NOISE_POINTS_PER_DECADE, type BandNoise } from './noise-integral';
+export {
+  analyzeStability,
+  stabilityWarnings,
+  loopGainColumns,
+  DEFAULT_MIN_PHASE_MARGIN_DEG,
+  type OpAmpStability,
+  type LoopGainColumns,
+  type TheoryWarning,
+  type LowPhaseMarginWarning,
+} from './stability';

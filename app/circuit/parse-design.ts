@@ -187,6 +187,10 @@ function opAmpModel(raw: unknown, where: string, partId: string): OpAmpModel {
   if (raw.secondPoleHz !== undefined) model.secondPoleHz = positiveField(raw.secondPoleHz, `${where}.secondPoleHz`, partId);
   if (raw.inputOffsetV !== undefined) model.inputOffsetV = numberField(raw.inputOffsetV, `${where}.inputOffsetV`);
   if (raw.inputBiasA !== undefined) model.inputBiasA = numberField(raw.inputBiasA, `${where}.inputBiasA`);
+  // Noise densities and corners: zero is allowed (and is what an absent field means).
+  for (const field of ['outputResistanceOhm', 'voltageNoiseVPerRtHz', 'voltageNoiseCornerHz', 'currentNoiseAPerRtHz', 'currentNoiseCornerHz'] as const) {
+    if (raw[field] !== undefined) model[field] = nonNegative(raw[field], `${where}.${field}`, partId);
+  }
   if (ideal) model.ideal = true;
   return model;
 }

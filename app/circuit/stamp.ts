@@ -125,7 +125,8 @@ export function stampLinear(design: Design, layout: CircuitLayout, values: Float
       continue;
     }
     // Single-pole macro-model: x1·(1 + s·A0/(2π·GBW)) = A0·(V+ − V−); optional
-    // second pole x2·(1 + s/(2π·f2)) = x1; output voltage = last pole state.
+    // second pole x2·(1 + s/(2π·f2)) = x1; the last pole state drives the
+    // output pin through the output resistance.
     const a0 = slot.model.openLoopGain;
     addG(slot.pole1, slot.pole1, 1);
     addG(slot.pole1, slot.plus, -a0);
@@ -138,8 +139,10 @@ export function stampLinear(design: Design, layout: CircuitLayout, values: Float
       addC(slot.pole2, slot.pole2, 1 / (2 * Math.PI * (slot.model.secondPoleHz as number)));
       last = slot.pole2;
     }
+    // Output pin = pole state − Ro·I (Ro inside the loop; absent means 0 Ω).
     addG(slot.outputCurrent, slot.out, 1);
     addG(slot.outputCurrent, last, -1);
+    addG(slot.outputCurrent, slot.outputCurrent, slot.model.outputResistanceOhm ?? 0);
   }
 }
 

@@ -49,6 +49,21 @@ export interface OpAmpModel {
   inputOffsetV?: number;
   /** Input bias current, amperes, flowing into each input pin. */
   inputBiasA?: number;
+  /**
+   * Open-loop output resistance, ohms, between the gain stage and the output
+   * pin (inside the feedback loop). With a capacitive load on the output it
+   * adds a pole to the loop gain: the usual cause of ringing. Absent: 0 Ω.
+   * Treated as noiseless (its noise is part of the op-amp's en).
+   */
+  outputResistanceOhm?: number;
+  /** White input voltage noise density en, V/√Hz (in series with the non-inverting input). Absent: 0. */
+  voltageNoiseVPerRtHz?: number;
+  /** 1/f corner of en, Hz: en(f)² = en²·(1 + corner/f). Absent: 0 (white). */
+  voltageNoiseCornerHz?: number;
+  /** White input current noise density in, A/√Hz, at each input pin (uncorrelated between pins). Absent: 0. */
+  currentNoiseAPerRtHz?: number;
+  /** 1/f corner of in, Hz: in(f)² = in²·(1 + corner/f). Absent: 0 (white). */
+  currentNoiseCornerHz?: number;
   /** Treat as ideal (infinite gain, no poles) in every analysis. */
   ideal?: boolean;
 }
@@ -69,7 +84,7 @@ export interface Design {
   input: string;
   /** Node whose voltage is the response. */
   output: string;
-  /** Junction temperature for the diode model, °C. */
+  /** Temperature of the parts, °C: the diode model's junction and the resistors' thermal noise 4kTR. */
   temperatureC: number;
   parts: Part[];
   /** Free text carried through unchanged (e.g. "invented example"). */

@@ -24,7 +24,14 @@ export function withTempDir<T>(work: (dir: string) => T): T {
 }
 
 export function runNgspice(netlistPath: string): string {
-  return execFileSync('ngspice', ['-b', netlistPath], { encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'], timeout: 60_000 });
+  try {
+    return execFileSync('ngspice', ['-b', netlistPath], { encoding: 'utf8', stdio: ['ignore', 'pipe', 'pipe'], timeout: 60_000 });
+  } catch (error) {
+    if ((error as NodeJS.ErrnoException).code === 'ENOENT') {
+      throw new Error('ngspice is not installed: these checks need the reference simulator. Install the Debian package ngspice (bash test/install-debian-packages.sh).');
+    }
+    throw error;
+  }
 }
 
 /** AC analysis in ngspice; columns from `wrdata` (frequency, real, imaginary of the output node). */
@@ -55,5 +62,23 @@ export function ngspiceDc(design: Design, inputsV: Float64Array): Float64Array {
       .filter((line) => line.includes('='))
       .map((line) => Number(line.split('=')[1]));
     return Float64Array.from(values);
+  });
+}
+
+export interface NgspiceNoise {
+  frequencyHz: Float64Array;
+  /** ngspice's onoise_spectrum: total output noise density, V/√Hz. */
+  outputVPerRtHz: Float64Array;
+}
+
+/** ngspice's .noise analysis at the design's output, referred to the input source. */
+export function ngspiceNoise(design: Design, analysis: Extract<SpiceAnalysis, { kind: 'noise' }>): NgspiceNoise {
+  return withTempDir((dir) => {
+    const outputFile = join(dir, 'noise.txt');
+    const netlistPath = join(dir, 'circuit.cir');
+    writeFileSync(netlistPath, toSpiceNetlist(design, analysis, { outputFile }));
+    runNgspice(netlistPath);
+    const rows = readFileSync(outputFile, 'utf8').trim().split('\n').slice(1).map((line) => line.trim().split(/\s+/).map(Number));
+    return { frequencyHz: Float64Array.from(rows, (r) => r[0]), outputVPerRtHz: Float64Array.from(rows, (r) => r[1]) };
   });
 }
