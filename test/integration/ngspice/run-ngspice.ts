@@ -34,20 +34,25 @@ export function runNgspice(netlistPath: string): string {
   }
 }
 
-/** AC analysis in ngspice; columns from `wrdata` (frequency, real, imaginary of the output node). */
-export function ngspiceAc(design: Design, analysis: Extract<SpiceAnalysis, { kind: 'ac' }>): NgspiceAc {
+/** Runs one analysis whose .control block writes `wrdata` columns; returns the numeric rows (header dropped). */
+function wrdataRows(design: Design, analysis: SpiceAnalysis): number[][] {
   return withTempDir((dir) => {
-    const outputFile = join(dir, 'ac.txt');
+    const outputFile = join(dir, 'wrdata.txt');
     const netlistPath = join(dir, 'circuit.cir');
     writeFileSync(netlistPath, toSpiceNetlist(design, analysis, { outputFile }));
     runNgspice(netlistPath);
-    const rows = readFileSync(outputFile, 'utf8').trim().split('\n').slice(1).map((line) => line.trim().split(/\s+/).map(Number));
-    return {
-      frequencyHz: Float64Array.from(rows, (r) => r[0]),
-      re: Float64Array.from(rows, (r) => r[1]),
-      im: Float64Array.from(rows, (r) => r[2]),
-    };
+    return readFileSync(outputFile, 'utf8').trim().split('\n').slice(1).map((line) => line.trim().split(/\s+/).map(Number));
   });
+}
+
+/** AC analysis in ngspice; columns from `wrdata` (frequency, real, imaginary of the output node). */
+export function ngspiceAc(design: Design, analysis: Extract<SpiceAnalysis, { kind: 'ac' }>): NgspiceAc {
+  const rows = wrdataRows(design, analysis);
+  return {
+    frequencyHz: Float64Array.from(rows, (r) => r[0]),
+    re: Float64Array.from(rows, (r) => r[1]),
+    im: Float64Array.from(rows, (r) => r[2]),
+  };
 }
 
 /** DC operating points in ngspice, one per input level (a foreach/alter/op loop). */
@@ -73,12 +78,6 @@ export interface NgspiceNoise {
 
 /** ngspice's .noise analysis at the design's output, referred to the input source. */
 export function ngspiceNoise(design: Design, analysis: Extract<SpiceAnalysis, { kind: 'noise' }>): NgspiceNoise {
-  return withTempDir((dir) => {
-    const outputFile = join(dir, 'noise.txt');
-    const netlistPath = join(dir, 'circuit.cir');
-    writeFileSync(netlistPath, toSpiceNetlist(design, analysis, { outputFile }));
-    runNgspice(netlistPath);
-    const rows = readFileSync(outputFile, 'utf8').trim().split('\n').slice(1).map((line) => line.trim().split(/\s+/).map(Number));
-    return { frequencyHz: Float64Array.from(rows, (r) => r[0]), outputVPerRtHz: Float64Array.from(rows, (r) => r[1]) };
-  });
+  const rows = wrdataRows(design, analysis);
+  return { frequencyHz: Float64Array.from(rows, (r) => r[0]), outputVPerRtHz: Float64Array.from(rows, (r) => r[1]) };
 }
