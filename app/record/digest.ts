@@ -3,7 +3,7 @@
  * canonical JSON of the object built below. DIGEST.md documents the same
  * fields for a reader who wants to recompute it from a JSON record.
  */
-import { canonicalJson } from './canonicalJson';
+import { canonicalJson } from './canonical-json';
 import { sha256Hex } from './sha256';
 import type { RecordDigest, RunRecord } from './model';
 

@@ -6,7 +6,7 @@
 import { ValidationError } from '../errors';
 import { runDigest, comparisonDigest } from './digest';
 import type { AnyRecord, RunRecord } from './model';
-import { validateAgainstSchema, type JsonSchema } from './schemaValidator';
+import { validateAgainstSchema, type JsonSchema } from './schema-validator';
 import recordSchema from './record.schema.json';
 
 export const RECORD_SCHEMA = recordSchema as unknown as JsonSchema;

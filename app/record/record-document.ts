@@ -3,7 +3,7 @@
  * plots…). HTML and PDF render these same blocks, so both show the same content
  * in the same order; only the drawing differs.
  */
-import type { PlotSpec } from './plotSpec';
+import type { PlotSpec } from './plot-spec';
 
 export type Block =
   | { kind: 'heading'; text: string }

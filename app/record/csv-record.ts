@@ -7,7 +7,7 @@
  */
 import { writeCsv } from './csv';
 import type { ComparisonRecord, MaybeNumber, RunRecord } from './model';
-import { flagWords } from './recordFormatting';
+import { flagWords } from './record-formatting';
 
 const AC_COLUMNS = ['run_id', 'build_label', 'step', 'frequency_hz', 'amplitude_vpp', 'gain_db', 'gain_uncertainty_db', 'phase_deg', 'phase_uncertainty_deg', 'output_v', 'flags', 'flag_names', 'measured_at'];
 const DC_COLUMNS = ['run_id', 'build_label', 'step', 'input_v', 'amplitude_vpp', 'gain_db', 'gain_uncertainty_db', 'phase_deg', 'phase_uncertainty_deg', 'output_v', 'flags', 'flag_names', 'measured_at'];

@@ -3,7 +3,7 @@
  * (top-left origin, y downward, as both SVG and PDF pages use). The SVG and
  * PDF writers only draw these primitives, so the two formats cannot disagree.
  */
-import { axisFraction, type Axis } from './plotAxes';
+import { axisFraction, type Axis } from './plot-axes';
 import type { MaybeNumber } from './model';
 
 export type SeriesStyle = 'line' | 'dashed' | 'points';

@@ -2,8 +2,8 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { buildRunRecord, readCsv, recordFromJson, renderRecord } from '../../../app/record';
-import { runPlots } from '../../../app/record/recordPlots';
-import { validateAgainstSchema } from '../../../app/record/schemaValidator';
+import { runPlots } from '../../../app/record/record-plots';
+import { validateAgainstSchema } from '../../../app/record/schema-validator';
 import { dcRunDetail, LOG_STAGE_DESIGN } from './fixtures';
 
 const SCHEMA = JSON.parse(readFileSync(new URL('../../../app/record/record.schema.json', import.meta.url), 'utf8'));

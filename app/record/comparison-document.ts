@@ -1,10 +1,10 @@
-/** The content of a comparison record, in reading order (see recordDocument.ts). */
+/** The content of a comparison record, in reading order (see record-document.ts). */
 import type { RunFigures } from '../contract/contract';
-import type { Block, RecordDocument } from './recordDocument';
+import type { Block, RecordDocument } from './record-document';
 import type { ComparisonRecord } from './model';
-import { comparisonPlots } from './recordPlots';
-import { figureLines, formatDb, formatHz, formatMaybe, idnText, verdictHeadline } from './recordFormatting';
-import { SIMULATED_BANNER } from './runDocument';
+import { comparisonPlots } from './record-plots';
+import { figureLines, formatDb, formatHz, formatMaybe, idnText, verdictHeadline } from './record-formatting';
+import { SIMULATED_BANNER } from './run-document';
 
 /** Figures shown side by side, with how to print a value and its delta. */
 const COMPARED_FIGURES: Array<{ key: keyof RunFigures; label: string; format: (v: number) => string; formatDelta: (v: number) => string }> = [

@@ -3,9 +3,9 @@
  * scripts and no external resources (a Content-Security-Policy meta tag forbids
  * them as a second line of defence). Every string is escaped by escapeHtml.
  */
-import { escapeHtml } from './htmlEscape';
-import type { Block, RecordDocument } from './recordDocument';
-import { svgPlot } from './svgPlot';
+import { escapeHtml } from './html-escape';
+import type { Block, RecordDocument } from './record-document';
+import { svgPlot } from './svg-plot';
 
 const STYLE = `
 body{font-family:system-ui,-apple-system,"Segoe UI",sans-serif;margin:24px auto;max-width:1000px;color:#111;padding:0 16px}

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { PointFlag } from '../../../app/contract/contract';
-import { flagWords, formatHz, formatUncertainty, idnText, verdictHeadline } from '../../../app/record/recordFormatting';
-import { logAxis, linearAxis, axisFraction } from '../../../app/record/plotAxes';
+import { flagWords, formatHz, formatUncertainty, idnText, verdictHeadline } from '../../../app/record/record-formatting';
+import { logAxis, linearAxis, axisFraction } from '../../../app/record/plot-axes';
 
 describe('record wording and number formats', () => {
   it('names every flag bit and keeps unknown bits visible', () => {

@@ -1,6 +1,6 @@
-/** Renders a laid-out plot (plotSpec.ts) as inline SVG: vector paths, decade grid, legend. */
-import { escapeHtml } from './htmlEscape';
-import { layoutPlot, type PlotSpec, type XY } from './plotSpec';
+/** Renders a laid-out plot (plot-spec.ts) as inline SVG: vector paths, decade grid, legend. */
+import { escapeHtml } from './html-escape';
+import { layoutPlot, type PlotSpec, type XY } from './plot-spec';
 
 const WIDTH = 800;
 /** Legend entries longer than this are shortened; the full name is the entry's tooltip. */

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { UnsupportedSchemaError, validateAgainstSchema, type JsonSchema } from '../../../app/record/schemaValidator';
+import { UnsupportedSchemaError, validateAgainstSchema, type JsonSchema } from '../../../app/record/schema-validator';
 
 // Expected behaviour: JSON Schema Validation draft 2020-12, §6.1–6.5 (type, enum,
 // const, minimum, pattern, items, minItems/maxItems, required), Core §10.2 (oneOf/anyOf),

@@ -1,12 +1,12 @@
 /**
- * A record as a PDF (pdfkit): A4 pages, the blocks of recordDocument.ts laid
+ * A record as a PDF (pdfkit): A4 pages, the blocks of record-document.ts laid
  * out top to bottom, plots drawn as vector paths, tables split across pages
  * with their header repeated, and a footer with the digest on every page.
  */
 import PDFDocument from 'pdfkit';
-import type { Block, RecordDocument } from './recordDocument';
-import { choosePdfFonts, type PdfFontSet } from './pdfFonts';
-import { drawPdfPlot, PDF_PLOT_HEIGHT } from './pdfPlot';
+import type { Block, RecordDocument } from './record-document';
+import { choosePdfFonts, type PdfFontSet } from './pdf-fonts';
+import { drawPdfPlot, PDF_PLOT_HEIGHT } from './pdf-plot';
 
 type Doc = InstanceType<typeof PDFDocument>;
 

@@ -10,7 +10,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { buildComparisonRecord, buildRunRecord, renderRecord, type AnyRecord } from '../../../app/record';
-import { idnText } from '../../../app/record/recordFormatting';
+import { idnText } from '../../../app/record/record-formatting';
 import { acRunDetail, comparisonFixture, dcRunDetail, fixtureBuild, FIXTURE_DESIGN, LOG_STAGE_DESIGN } from '../../unit/record/fixtures';
 
 const dir = mkdtempSync(join(tmpdir(), 'rolloff-record-pdf-'));

@@ -10,7 +10,7 @@ import { describe, expect, it } from 'vitest';
 
 const RECORD_DIR = new URL('../../../app/record/', import.meta.url).pathname;
 /** Files allowed to need Node or npm packages: PDF writing and what imports it. */
-const NODE_SIDE = new Set(['pdfFonts.ts', 'pdfPlot.ts', 'pdfRecord.ts', 'renderRecord.ts', 'index.ts']);
+const NODE_SIDE = new Set(['pdf-fonts.ts', 'pdf-plot.ts', 'pdf-record.ts', 'render-record.ts', 'index.ts']);
 const PURE_OUTSIDE = ['../errors', '../units', '../contract/contract', '../contract/safety', '../contract/version'];
 
 function importsOf(source: string): string[] {
@@ -42,6 +42,6 @@ describe('app/record layering', () => {
   });
 
   it('the check sees the Node side (guards against a vacuous pass)', () => {
-    expect(importsOf(readFileSync(join(RECORD_DIR, 'pdfRecord.ts'), 'utf8'))).toContain('pdfkit');
+    expect(importsOf(readFileSync(join(RECORD_DIR, 'pdf-record.ts'), 'utf8'))).toContain('pdfkit');
   });
 });

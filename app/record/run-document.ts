@@ -1,9 +1,9 @@
-/** The content of a run record, in reading order (see recordDocument.ts). */
+/** The content of a run record, in reading order (see record-document.ts). */
 import { formatEngineering, parseEngineering } from '../units';
-import type { Block, RecordDocument } from './recordDocument';
+import type { Block, RecordDocument } from './record-document';
 import type { RecordDesign, RunRecord } from './model';
-import { runPlots } from './recordPlots';
-import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatUncertainty, formatVolts, idnText, verdictHeadline } from './recordFormatting';
+import { runPlots } from './record-plots';
+import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatUncertainty, formatVolts, idnText, verdictHeadline } from './record-formatting';
 
 export const SIMULATED_BANNER = 'SIMULATED BENCH — these readings come from the simulated bench and describe a computed circuit, not a physical board.';
 

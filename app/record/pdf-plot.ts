@@ -1,7 +1,7 @@
-/** Draws a laid-out plot (plotSpec.ts) on a PDF page as vector paths, with its legend. */
+/** Draws a laid-out plot (plot-spec.ts) on a PDF page as vector paths, with its legend. */
 import type PDFDocument from 'pdfkit';
-import { layoutPlot, type Frame, type PlotSpec, type XY } from './plotSpec';
-import type { PdfFontSet } from './pdfFonts';
+import { layoutPlot, type Frame, type PlotSpec, type XY } from './plot-spec';
+import type { PdfFontSet } from './pdf-fonts';
 
 type Doc = InstanceType<typeof PDFDocument>;
 

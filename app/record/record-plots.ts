@@ -6,9 +6,9 @@
  * comparison → overlay of all runs and their difference from the reference.
  */
 import { formatEngineering, unwrapPhaseDeg } from '../units';
-import { linearAxis, logAxis, type Axis } from './plotAxes';
+import { linearAxis, logAxis, type Axis } from './plot-axes';
 import type { ComparisonRecord, MaybeNumber, RunRecord } from './model';
-import type { PlotMarker, PlotSeries, PlotSpec } from './plotSpec';
+import type { PlotMarker, PlotSeries, PlotSpec } from './plot-spec';
 
 export const PLOT_COLORS = {
   measured: '#1f4fbf',

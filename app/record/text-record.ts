@@ -3,12 +3,12 @@
  * window can render them too: this file and everything it imports are pure.
  */
 import type { AnyRecord } from './model';
-import { comparisonCsv, runCsv } from './csvRecord';
-import { comparisonDocument } from './comparisonDocument';
-import { htmlRecord } from './htmlRecord';
-import { recordToJson } from './jsonRecord';
-import { runDocument } from './runDocument';
-import type { RecordDocument } from './recordDocument';
+import { comparisonCsv, runCsv } from './csv-record';
+import { comparisonDocument } from './comparison-document';
+import { htmlRecord } from './html-record';
+import { recordToJson } from './json-record';
+import { runDocument } from './run-document';
+import type { RecordDocument } from './record-document';
 
 export type TextRecordFormat = 'html' | 'csv' | 'json';
 

@@ -7,7 +7,7 @@ import { ValidationError } from '../errors';
 import type { Comparison } from '../contract/contract';
 import { SAFETY_NOTICE_POINTS } from '../contract/safety';
 import { SOFTWARE_VERSION } from '../contract/version';
-import { buildRunRecord, jsonSafe, type RunRecordContext } from './buildRunRecord';
+import { buildRunRecord, jsonSafe, type RunRecordContext } from './build-run-record';
 import { comparisonDigest } from './digest';
 import { RECORD_FORMAT_VERSION, type ComparisonRecord } from './model';
 

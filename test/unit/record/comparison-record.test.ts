@@ -3,7 +3,7 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { buildComparisonRecord, readCsv, recordFromJson, renderRecord, sha256Hex, canonicalJson } from '../../../app/record';
 import type { ComparisonRecord } from '../../../app/record';
-import { validateAgainstSchema } from '../../../app/record/schemaValidator';
+import { validateAgainstSchema } from '../../../app/record/schema-validator';
 import { comparisonFixture, dcRunDetail, LOG_STAGE_DESIGN } from './fixtures';
 
 const SCHEMA = JSON.parse(readFileSync(new URL('../../../app/record/record.schema.json', import.meta.url), 'utf8'));

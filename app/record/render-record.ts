@@ -2,9 +2,9 @@
 import { ValidationError } from '../errors';
 import { RECORD_FORMATS, type RecordFormat } from '../contract/contract';
 import type { AnyRecord } from './model';
-import { pdfRecord, type PdfOptions } from './pdfRecord';
-import { recordDocument, renderTextRecord, TEXT_MIME_TYPES } from './textRecord';
-import { recordFileName } from './recordFileName';
+import { pdfRecord, type PdfOptions } from './pdf-record';
+import { recordDocument, renderTextRecord, TEXT_MIME_TYPES } from './text-record';
+import { recordFileName } from './record-file-name';
 
 export { recordFileName };
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { canonicalJson } from '../../../app/record/canonicalJson';
+import { canonicalJson } from '../../../app/record/canonical-json';
 import { ValidationError } from '../../../app/errors';
 
 describe('canonical JSON (RFC 8785)', () => {

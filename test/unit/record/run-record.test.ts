@@ -7,7 +7,7 @@ import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { buildRunRecord, canonicalJson, readCsv, recordFromJson, renderRecord, runDigestInput } from '../../../app/record';
-import { validateAgainstSchema } from '../../../app/record/schemaValidator';
+import { validateAgainstSchema } from '../../../app/record/schema-validator';
 import { ValidationError } from '../../../app/errors';
 import type { RunRecord } from '../../../app/record';
 import { acRunDetail, fixtureBuild, FIXTURE_DESIGN } from './fixtures';
