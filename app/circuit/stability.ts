@@ -172,7 +172,7 @@ export function stabilityWarnings(stability: OpAmpStability[], minPhaseMarginDeg
       opAmpId: s.id,
       phaseMarginDeg: s.phaseMarginDeg,
       limitDeg: minPhaseMarginDeg,
-      message: `${s.id}: phase margin ${pm}° is below ${minPhaseMarginDeg}° — ${what}. Isolate a capacitive load with a series resistor, raise the noise gain, or use a slower op-amp.`,
+      message: `${s.id}: phase margin ${pm}° is below ${minPhaseMarginDeg}° — ${what}. Raise the noise gain near the crossover (e.g. a small capacitor across the feedback resistor), isolate a capacitive load with a series resistor, or use a slower op-amp.`,
     });
   }
   return warnings;

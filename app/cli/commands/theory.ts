@@ -1,13 +1,23 @@
 /**
  * `rolloff theory`: the computed response of a design — AC gain and phase
- * (with the ideal-op-amp curve and an optional tolerance band) or the DC
- * transfer — as a table, CSV or JSON.
+ * (with the ideal-op-amp curve and an optional tolerance band), the output
+ * noise density with each source's share, or the DC transfer — as a table,
+ * CSV or JSON, with each op-amp's stability figures and warnings.
  */
 import { readFileSync } from 'node:fs';
 import { UserError, ValidationError } from '../../errors';
-import { formatEngineering, logGrid } from '../../units';
+import { formatEngineering, logGrid, parseEngineering } from '../../units';
 import {
+  analyzeStability,
+  bandNoise,
+  DEFAULT_MIN_PHASE_MARGIN_DEG,
   parseDesign,
+  solveNoise,
+  stabilityWarnings,
+  type BandNoise,
+  type NoiseResponse,
+  type OpAmpStability,
+  type TheoryWarning,
   maxUndistortedOutputVpk,
   monteCarloAc,
   slowestTimeConstantS,
@@ -26,7 +36,7 @@ type Format = 'table' | 'csv' | 'json';
 
 export const theoryCommand: CommandSpec = {
   name: 'theory',
-  summary: 'Computed response of a design: AC gain/phase with op-amp limits, tolerance band, or DC transfer',
+  summary: 'Computed response of a design: AC gain/phase with op-amp limits, tolerance band, output noise, or DC transfer',
   usage: 'DESIGN.json [options]',
   options: [
     { name: 'from', kind: 'number', placeholder: 'HZ|V', description: 'start of the sweep (AC default 10 Hz, DC default 1m V)' },
@@ -34,7 +44,10 @@ export const theoryCommand: CommandSpec = {
     { name: 'per-decade', kind: 'integer', placeholder: 'N', description: 'log-spaced points per decade (AC default 20, DC default 10)' },
     { name: 'csv', kind: 'flag', description: 'print CSV (full precision) instead of a table' },
     { name: 'json', kind: 'flag', description: 'print JSON (columns plus summary) instead of a table' },
-    { name: 'summary', kind: 'flag', description: 'print only the figures: pass-band gain, −3 dB points, gain-limit point, roll-off' },
+    { name: 'summary', kind: 'flag', description: 'print only the figures: pass-band gain, −3 dB points, gain-limit point, roll-off, phase and gain margin (with --noise: margins, peaking and band noise)' },
+    { name: 'noise', kind: 'flag', description: 'output noise density (V/√Hz): total, input-referred and each resistor\'s and op-amp\'s share' },
+    { name: 'band', kind: 'string', placeholder: 'FROM:TO', description: 'with --noise: band for the RMS noise, Hz (default: the sweep, --from:--to)' },
+    { name: 'min-phase-margin', kind: 'number', placeholder: 'DEG', description: 'warn when an op-amp\'s phase margin is below this', defaultValue: DEFAULT_MIN_PHASE_MARGIN_DEG },
     { name: 'tolerance', kind: 'flag', description: 'add a Monte Carlo tolerance band from the parts\' tolerances' },
     { name: 'samples', kind: 'integer', placeholder: 'N', description: 'Monte Carlo samples', defaultValue: 1000 },
     { name: 'seed', kind: 'integer', placeholder: 'N', description: 'Monte Carlo seed (same seed, same band)', defaultValue: 1 },
@@ -44,16 +57,30 @@ export const theoryCommand: CommandSpec = {
   ],
   details: `
 Numbers accept engineering notation: --from 1m, --to 2meg.
-The band is the 2.5th–97.5th percentile of gain and phase over the samples
+The tolerance band is the 2.5th–97.5th percentile of gain and phase over the samples
 (xoshiro128** generator, so a seed always gives the same band).
+Noise (--noise): resistors' thermal noise 4kTR at the design's temperatureC,
+and each op-amp's voltageNoiseVPerRtHz / currentNoiseAPerRtHz with their 1/f
+corners (voltageNoiseCornerHz, currentNoiseCornerHz; absent means 0). The CSV
+columns are frequency_hz, noise_v_per_rthz (total at the output), one
+PART_v_per_rthz per source (U1_en, U1_in_plus, U1_in_minus for an op-amp),
+then input_referred_v_per_rthz (total ÷ |gain|). The RMS over --band is
+integrated on its own grid of 200 points per decade.
+Stability: per op-amp the loop-gain crossover, phase margin, gain margin and
+closed-loop peaking; a phase margin below --min-phase-margin is a warning
+(on stderr with --csv).
 Examples:
   rolloff theory app/circuit/examples/inverting-lowpass.json --summary
   rolloff theory design.json --csv --tolerance --samples 2000 --seed 7 > theory.csv
-  rolloff theory app/circuit/examples/log-stage.json --dc --from 1m --to 10 --per-decade 5`,
+  rolloff theory app/circuit/examples/log-stage.json --dc --from 1m --to 10 --per-decade 5
+  rolloff theory design.json --noise --band 10:100k --summary
+  rolloff theory design.json --noise --csv --from 1 --to 10meg > noise.csv`,
   async run(parsed) {
     const design = readDesignFile(requirePositional(parsed, 0, 'DESIGN.json'));
     const format = outputFormat(parsed);
-    const text = optionFlag(parsed, 'dc') ? dcTransfer(design, parsed, format) : acResponse(design, parsed, format);
+    if (optionFlag(parsed, 'noise') && optionFlag(parsed, 'dc')) throw new ValidationError('--noise/--dc', 'noise is computed for AC only', 'Drop --dc or --noise.');
+    if (optionString(parsed, 'band') !== undefined && !optionFlag(parsed, 'noise')) throw new ValidationError('--band', 'only applies with --noise', 'Add --noise to integrate the noise over a band.');
+    const text = optionFlag(parsed, 'dc') ? dcTransfer(design, parsed, format) : optionFlag(parsed, 'noise') ? noiseResponse(design, parsed, format) : acResponse(design, parsed, format);
     process.stdout.write(text);
     return 0;
   },
@@ -66,11 +93,16 @@ function outputFormat(parsed: ParsedArgs): Format {
   return csv ? 'csv' : json ? 'json' : 'table';
 }
 
-function acResponse(design: Design, parsed: ParsedArgs, format: Format): string {
+function sweepLimits(parsed: ParsedArgs): { fromHz: number; toHz: number } {
   const fromHz = optionNumber(parsed, 'from') ?? 10;
   const toHz = optionNumber(parsed, 'to') ?? 1e6;
   if (!(fromHz > 0)) throw new ValidationError('--from', `${fromHz} Hz: the AC sweep is log-spaced and must start above 0 Hz`, 'For example --from 10.');
   if (!(toHz > fromHz)) throw new ValidationError('--to', `${toHz} Hz is not above --from (${fromHz} Hz)`, 'Give an end frequency above the start, e.g. --to 1meg.');
+  return { fromHz, toHz };
+}
+
+function acResponse(design: Design, parsed: ParsedArgs, format: Format): string {
+  const { fromHz, toHz } = sweepLimits(parsed);
   const frequencies = logGrid(fromHz, toHz, optionNumber(parsed, 'per-decade') ?? 20);
   const ideal = optionFlag(parsed, 'ideal');
   const response = solveAc(design, frequencies, { idealOpAmps: ideal });
@@ -96,10 +128,139 @@ function acResponse(design: Design, parsed: ParsedArgs, format: Format): string 
     throw new ValidationError('--samples/--seed', 'only apply with --tolerance', 'Add --tolerance to compute the band.');
   }
   const tauS = slowestTimeConstantS(design, { idealOpAmps: ideal });
-  if (format === 'json') return JSON.stringify(acJson(design, response, summary, band, tauS), null, 2) + '\n';
-  if (summaryOnly) return summaryLines(design, summary, tauS).join('\n') + '\n';
-  if (format === 'csv') return acCsv(response, band);
-  return acTable(design, response, band) + '\n' + summaryLines(design, summary, tauS).join('\n') + '\n';
+  const stability = stabilityOf(design, parsed, ideal);
+  if (format === 'json') return JSON.stringify({ ...acJson(design, response, summary, band, tauS), ...stabilityJson(stability) }, null, 2) + '\n';
+  const lines = [...summaryLines(design, summary, tauS), ...stabilityLines(stability)];
+  if (summaryOnly) return lines.join('\n') + '\n';
+  if (format === 'csv') {
+    warnOnStderr(stability.warnings);
+    return acCsv(response, band);
+  }
+  return acTable(design, response, band) + '\n' + lines.join('\n') + '\n';
+}
+
+interface Stability {
+  opamps: OpAmpStability[];
+  warnings: TheoryWarning[];
+}
+
+/** Stability figures and warnings; none with --ideal (an ideal op-amp has no loop to judge). */
+function stabilityOf(design: Design, parsed: ParsedArgs, ideal: boolean): Stability {
+  const limitDeg = optionNumber(parsed, 'min-phase-margin') as number;
+  if (!(limitDeg > 0 && limitDeg < 180)) throw new ValidationError('--min-phase-margin', `${limitDeg}° is not a phase-margin limit`, 'Give degrees between 0 and 180, e.g. 45 or 60.');
+  if (ideal) return { opamps: [], warnings: [] };
+  const opamps = analyzeStability(design);
+  return { opamps, warnings: stabilityWarnings(opamps, limitDeg) };
+}
+
+function stabilityLines(stability: Stability): string[] {
+  const lines = stability.opamps.map((s) => {
+    const pm = s.phaseMarginDeg === undefined ? 'no loop-gain crossover' : `phase margin ${s.phaseMarginDeg.toFixed(1)}° at ${formatEngineering(s.crossoverHz as number, 'Hz')}`;
+    const gm = Number.isFinite(s.gainMarginDb) ? `gain margin ${s.gainMarginDb.toFixed(1)} dB at ${formatEngineering(s.phaseCrossoverHz as number, 'Hz')}` : 'gain margin infinite (phase never reaches −180°)';
+    const peaking = s.peakingHz === undefined ? 'no closed-loop peaking' : `closed-loop peaking ${s.peakingDb.toFixed(2)} dB at ${formatEngineering(s.peakingHz, 'Hz')}`;
+    return `Stability of ${s.id}: ${pm}, ${gm}, ${peaking}`;
+  });
+  return [...lines, ...stability.warnings.map((w) => `Warning: ${w.message}`)];
+}
+
+function stabilityJson(stability: Stability): { stability: unknown[]; warnings: TheoryWarning[] } {
+  return {
+    stability: stability.opamps.map((s) => ({
+      ...s,
+      crossoverHz: s.crossoverHz ?? null,
+      phaseMarginDeg: s.phaseMarginDeg ?? null,
+      phaseCrossoverHz: s.phaseCrossoverHz ?? null,
+      gainMarginDb: Number.isFinite(s.gainMarginDb) ? s.gainMarginDb : null,
+      peakingHz: s.peakingHz ?? null,
+    })),
+    warnings: stability.warnings,
+  };
+}
+
+/** CSV keeps stdout to the table; warnings still reach the user. */
+function warnOnStderr(warnings: TheoryWarning[]): void {
+  for (const w of warnings) process.stderr.write(`Warning: ${w.message}\n`);
+}
+
+function noiseResponse(design: Design, parsed: ParsedArgs, format: Format): string {
+  if (optionFlag(parsed, 'tolerance')) throw new ValidationError('--tolerance', 'the tolerance band is computed for the AC response only', 'Drop --noise or --tolerance.');
+  const { fromHz, toHz } = sweepLimits(parsed);
+  const frequencies = logGrid(fromHz, toHz, optionNumber(parsed, 'per-decade') ?? 20);
+  const ideal = optionFlag(parsed, 'ideal');
+  const noise = solveNoise(design, frequencies, { idealOpAmps: ideal });
+  const bandText = optionString(parsed, 'band');
+  const [bandFromHz, bandToHz] = bandText === undefined ? [fromHz, toHz] : parseBand(bandText);
+  const band = bandNoise(design, bandFromHz, bandToHz, { idealOpAmps: ideal });
+  const stability = stabilityOf(design, parsed, ideal);
+  if (format === 'json') return JSON.stringify({ ...noiseJson(design, noise, band), ...stabilityJson(stability) }, null, 2) + '\n';
+  const lines = [...noiseSummaryLines(design, noise, band), ...stabilityLines(stability)];
+  if (optionFlag(parsed, 'summary')) return lines.join('\n') + '\n';
+  if (format === 'csv') {
+    warnOnStderr(stability.warnings);
+    return noiseCsv(noise);
+  }
+  return noiseTable(design, noise) + '\n' + lines.join('\n') + '\n';
+}
+
+/** "10:100k" → [10, 100000], engineering notation on both sides. */
+function parseBand(text: string): [number, number] {
+  const parts = text.split(':');
+  if (parts.length !== 2) throw new ValidationError('--band', `"${text}" is not FROM:TO`, 'Give the band as two frequencies in Hz joined by a colon, e.g. --band 10:100k.');
+  const fromHz = parseEngineering(parts[0], '--band (from)');
+  const toHz = parseEngineering(parts[1], '--band (to)');
+  if (!(fromHz > 0) || !(toHz > fromHz)) throw new ValidationError('--band', `${fromHz} Hz to ${toHz} Hz is not a band`, 'The start must be above 0 Hz and the end above the start, e.g. --band 10:100k.');
+  return [fromHz, toHz];
+}
+
+/** One column name per source: the part id made CSV-safe, then the unit. */
+function sourceColumn(name: string): string {
+  return `${name.replace(/[^A-Za-z0-9_]/g, '_')}_v_per_rthz`;
+}
+
+function noiseCsv(n: NoiseResponse): string {
+  const header = ['frequency_hz', 'noise_v_per_rthz', ...n.sources.map((s) => sourceColumn(s.name)), 'input_referred_v_per_rthz'];
+  const lines = [header.join(',')];
+  for (let i = 0; i < n.frequencyHz.length; i++) {
+    lines.push([n.frequencyHz[i], n.outputVPerRtHz[i], ...n.contributionsVPerRtHz.map((c) => c[i]), n.inputReferredVPerRtHz[i]].map(String).join(','));
+  }
+  return lines.join('\n') + '\n';
+}
+
+function noiseTable(design: Design, n: NoiseResponse): string {
+  const density = (v: number) => formatEngineering(v, 'V/√Hz');
+  const rows = [['frequency', 'output', 'input-referred', ...n.sources.map((s) => s.name)]];
+  for (let i = 0; i < n.frequencyHz.length; i++) {
+    rows.push([formatEngineering(n.frequencyHz[i], 'Hz'), density(n.outputVPerRtHz[i]), density(n.inputReferredVPerRtHz[i]), ...n.contributionsVPerRtHz.map((c) => density(c[i]))]);
+  }
+  return `${design.name} — output noise density at ${(n.temperatureK - 273.15).toFixed(2)} °C\n\n${alignColumns(rows)}`;
+}
+
+function noiseSummaryLines(design: Design, n: NoiseResponse, band: BandNoise): string[] {
+  const range = `${formatEngineering(band.fromHz, 'Hz')} – ${formatEngineering(band.toHz, 'Hz')}`;
+  const largest = band.sourceRmsV.map((v, k) => [band.sourceNames[k], v] as const).sort((a, b) => b[1] - a[1]);
+  const lines = [
+    `Design: ${design.name}`,
+    `Output noise, ${range}: ${formatEngineering(band.outputRmsV, 'V')} RMS`,
+  ];
+  if (largest.length > 0) {
+    const share = largest.slice(0, 3).map(([name, v]) => `${name} ${((100 * v * v) / (band.outputRmsV * band.outputRmsV)).toFixed(1)} %`);
+    lines.push(`Largest sources (share of the noise power): ${share.join(', ')}`);
+  }
+  const last = n.frequencyHz.length - 1;
+  lines.push(`Output density: ${formatEngineering(n.outputVPerRtHz[0], 'V/√Hz')} at ${formatEngineering(n.frequencyHz[0], 'Hz')}, ${formatEngineering(n.outputVPerRtHz[last], 'V/√Hz')} at ${formatEngineering(n.frequencyHz[last], 'Hz')}`);
+  return lines;
+}
+
+function noiseJson(design: Design, n: NoiseResponse, band: BandNoise): Record<string, unknown> {
+  return {
+    design: design.name,
+    temperatureK: n.temperatureK,
+    frequencyHz: Array.from(n.frequencyHz),
+    noiseVPerRtHz: Array.from(n.outputVPerRtHz),
+    inputReferredVPerRtHz: Array.from(n.inputReferredVPerRtHz),
+    sources: n.sources.map((s, k) => ({ ...s, vPerRtHz: Array.from(n.contributionsVPerRtHz[k]) })),
+    band,
+  };
 }
 
 function acCsv(r: AcResponse, band: MonteCarloBand | undefined): string {
@@ -142,7 +303,7 @@ function summaryLines(design: Design, s: AcSummary, tauS: number): string[] {
   return lines;
 }
 
-function acJson(design: Design, r: AcResponse, summary: AcSummary, band: MonteCarloBand | undefined, tauS: number): unknown {
+function acJson(design: Design, r: AcResponse, summary: AcSummary, band: MonteCarloBand | undefined, tauS: number): Record<string, unknown> {
   return {
     design: design.name,
     frequencyHz: Array.from(r.frequencyHz),
