@@ -45,3 +45,23 @@ export async function guarded<T>(button: HTMLButtonElement | undefined, context:
     if (button) button.disabled = false;
   }
 }
+
+/**
+ * Shows, in a slot beside the part of a view it concerns, why that part could
+ * not be loaded (message and hint), or clears the slot when it loaded. A view
+ * that loads several things uses one slot per thing, so one failing source
+ * never hides the others.
+ */
+export function showPartResult(slot: HTMLElement, what: string, result: PromiseSettledResult<unknown>): void {
+  if (result.status === 'fulfilled') {
+    slot.replaceChildren();
+    slot.hidden = true;
+    return;
+  }
+  const error = result.reason;
+  const message = error instanceof Error ? error.message : String(error);
+  const hint = error instanceof UserError ? error.hint : undefined;
+  slot.replaceChildren(h('p', {}, `${what} could not be loaded: ${message}`), hint ? h('p', { className: 'hint' }, hint) : '');
+  slot.hidden = false;
+  if (!(error instanceof UserError)) console.error(error);
+}

@@ -26,6 +26,12 @@ export interface PortInfo {
   productId?: string;
 }
 
+/** The ports this machine offers; `incomplete` says in one line what the listing could not learn (no udev, an unreadable attribute). */
+export interface PortListing {
+  ports: PortInfo[];
+  incomplete?: string;
+}
+
 export interface InstrumentIdentity {
   manufacturer: string;
   model: string;
@@ -277,7 +283,7 @@ export type ServiceEventName = keyof ServiceEvents;
 /** Every method a window may call. Arguments are validated where they arrive. */
 export interface RolloffApi {
   // Bench
-  listPorts(): Promise<PortInfo[]>;
+  listPorts(): Promise<PortListing>;
   listProfiles(): Promise<ProfileSummary[]>;
   benchStatus(): Promise<BenchStatus>;
   connect(request: ConnectRequest): Promise<InstrumentInfo>;

@@ -14,4 +14,4 @@ export * from './tcp-transport';
 export * from './serial-transport';
 export * from './open-transport';
 export * from './connect';
-export * from './list-ports';
+export * from './ports';

@@ -5,9 +5,9 @@
  */
 import { UserError, ValidationError } from '../errors';
 import { Store, identityKey, type StoredRun } from '../store';
-import { openInstrument, builtInProfiles, loadProfiles, realClock, DEFAULT_PROFILE_ID, type BenchClock, type OpenedInstrument } from '../bench';
+import { openInstrument, builtInProfiles, loadProfiles, realClock, DEFAULT_PROFILE_ID, type BenchClock, type OpenedInstrument, type ProfileFor } from '../bench';
 import { TrafficLog } from '../scpi/traffic-log';
-import { listSerialPorts } from '../scpi/list-ports';
+import { listPorts } from '../scpi/ports';
 import { type Design, parseDesign, solveAc, TEMPLATES, makeDesignFromTemplate, withActualValues } from '../circuit';
 import { planSweep, planStepsAt, refinementFrequencies, toPlanSummary, type PlanInput, type PlanInstruments } from '../sweep/plan';
 import { RunControl } from '../sweep/runner/control';
@@ -21,7 +21,7 @@ import { driftSummary, type DriftRow } from '../analysis';
 import { INSTRUMENT_ROLES as ROLES, PointFlag } from '../contract/contract';
 import type {
   RunFigures, BenchStatus, BuildRecord, Comparison, ConnectRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
-  PointColumns, PortInfo, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunStatus, RunSummary, ServiceEventName,
+  PointColumns, PortListing, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunStatus, RunSummary, ServiceEventName,
   ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
 } from '../contract/contract';
 import { ServiceEventBus } from './events';
@@ -128,8 +128,8 @@ export class RolloffService implements RolloffApi {
 
   // ── Bench ──────────────────────────────────────────────────────────────
 
-  async listPorts(): Promise<PortInfo[]> {
-    return listSerialPorts();
+  async listPorts(): Promise<PortListing> {
+    return listPorts();
   }
 
   async listProfiles(): Promise<ProfileSummary[]> {
@@ -457,7 +457,9 @@ export class RolloffService implements RolloffApi {
     // One traffic log per role, so every line (the *IDN? at open included) reaches the window with its role.
     const traffic = new TrafficLog();
     traffic.subscribe((entry) => this.events.emit('traffic', { at: entry.at, role: request.role, direction: entry.direction, text: entry.text }));
-    const opened = await openInstrument(request.address, request.role, request.profileId, {
+    // Simulated instruments answer the shipped generic profiles: a user's profile folder (which may fail to load) plays no part.
+    const shipped = simulated ? builtInProfiles().find((p) => p.id === request.profileId && p.role === request.role) : undefined;
+    const opened = await openInstrument(request.address, request.role, (shipped as ProfileFor<typeof request.role> | undefined) ?? request.profileId, {
       maxStimulusVpp: this.maxStimulusVpp,
       traffic,
       profileFolder: this.options.profileFolder,

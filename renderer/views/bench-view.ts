@@ -3,11 +3,11 @@
  * identities, set the maximum stimulus amplitude, start the simulated bench
  * (always labelled simulated) and watch the SCPI traffic.
  */
-import { INSTRUMENT_ROLES as ROLES, type BenchStatus, type InstrumentRole, type ProfileSummary, type RolloffClient, type TrafficLine } from '../../app/contract/contract';
+import { INSTRUMENT_ROLES as ROLES, type BenchStatus, type DesignRecord, type InstrumentRole, type ProfileSummary, type RolloffClient, type TrafficLine } from '../../app/contract/contract';
 import { parseEngineering } from '../../app/units';
 import { UserError } from '../../app/errors';
 import { field, h, replaceChildren, select } from '../dom';
-import { guarded, showInfo } from '../notices';
+import { guarded, showInfo, showPartResult } from '../notices';
 import type { View } from '../shell';
 import type { AppState } from '../state';
 
@@ -27,6 +27,11 @@ export class BenchView implements View {
   private readonly simulatedStatus = h('p', { className: 'simulated-status', 'data-testid': 'simulated-status' });
   private readonly traffic = h('ol', { className: 'traffic', 'aria-label': 'Instrument traffic', 'data-testid': 'traffic' });
   private profiles: ProfileSummary[] = [];
+  /** One slot per thing the view loads: what failed is said beside it, the rest still works. */
+  private readonly portsNote = h('p', { className: 'hint', 'data-testid': 'ports-note', hidden: true });
+  private readonly portsFailure = partFailureSlot('ports-failure');
+  private readonly profilesFailure = partFailureSlot('profiles-failure');
+  private readonly designsFailure = partFailureSlot('designs-failure');
 
   constructor(
     private readonly client: RolloffClient,
@@ -38,7 +43,10 @@ export class BenchView implements View {
       { className: 'stack-form', 'aria-label': 'Connect an instrument' },
       field('Role', this.roleSelect),
       field('Address', this.addressInput, 'Pick a port from the list or type an address.'),
+      this.portsNote,
+      this.portsFailure,
       field('Profile', this.profileSelect),
+      this.profilesFailure,
       connectButton,
       this.portList,
     );
@@ -64,7 +72,7 @@ export class BenchView implements View {
     });
 
     const simulatedButton = h('button', { type: 'submit', 'data-testid': 'start-simulated' }, 'Start the simulated bench');
-    const simulatedForm = h('form', { className: 'stack-form', 'aria-label': 'Simulated bench' }, field('Simulated circuit', this.simulatedDesignSelect, 'The simulated bench answers SCPI like real instruments; its readings are computed, not measured.'), simulatedButton);
+    const simulatedForm = h('form', { className: 'stack-form', 'aria-label': 'Simulated bench' }, field('Simulated circuit', this.simulatedDesignSelect, 'The simulated bench answers SCPI like real instruments; its readings are computed, not measured.'), this.designsFailure, simulatedButton);
     simulatedForm.addEventListener('submit', (event) => {
       event.preventDefault();
       void guarded(simulatedButton, 'Starting the simulated bench', async () => {
@@ -103,16 +111,29 @@ export class BenchView implements View {
   }
 
   async activate(): Promise<void> {
-    const [ports, profiles, designs] = await Promise.all([this.client.listPorts(), this.client.listProfiles(), this.client.listDesigns()]);
-    replaceChildren(this.portList, ports.map((port) => h('option', { value: port.path }, [port.manufacturer, port.serialNumber].filter(Boolean).join(' '))));
-    this.profiles = profiles;
-    this.renderProfiles();
+    const [ports, profiles, designs] = await Promise.allSettled([this.client.listPorts(), this.client.listProfiles(), this.client.listDesigns()]);
+    showPartResult(this.portsFailure, 'The port list', ports);
+    showPartResult(this.profilesFailure, 'The instrument profiles', profiles);
+    showPartResult(this.designsFailure, 'The saved designs', designs);
+    if (ports.status === 'fulfilled') {
+      replaceChildren(this.portList, ports.value.ports.map((port) => h('option', { value: port.path }, [port.manufacturer, port.serialNumber].filter(Boolean).join(' '))));
+      this.portsNote.textContent = ports.value.incomplete ?? '';
+      this.portsNote.hidden = !ports.value.incomplete;
+    }
+    if (profiles.status === 'fulfilled') {
+      this.profiles = profiles.value;
+      this.renderProfiles();
+    }
+    if (designs.status === 'fulfilled') this.renderDesigns(designs.value);
+    await this.refreshBench();
+  }
+
+  private renderDesigns(designs: DesignRecord[]): void {
     // Keep what the user picked here if it still exists; else the design open on the Design view; else the newest.
     const previous = Number(this.simulatedDesignSelect.value);
     const chosen = designs.some((d) => d.id === previous) ? previous : this.state.current.design?.id ?? designs.at(-1)?.id;
     replaceChildren(this.simulatedDesignSelect, designs.length === 0 ? h('option', { value: '' }, 'Save a design first (Design view)') : designs.map((d) => h('option', { value: String(d.id) }, `${d.name} (#${d.id})`)));
     if (chosen !== undefined) this.simulatedDesignSelect.value = String(chosen);
-    await this.refreshBench();
   }
 
   private async refreshBench(): Promise<void> {
@@ -163,4 +184,8 @@ export class BenchView implements View {
     while (this.traffic.childElementCount > TRAFFIC_LINES_KEPT) this.traffic.firstElementChild?.remove();
     if (atBottom) this.traffic.scrollTop = this.traffic.scrollHeight;
   }
+}
+
+function partFailureSlot(testId: string): HTMLElement {
+  return h('div', { className: 'part-failure', role: 'alert', 'data-testid': testId, hidden: true });
 }

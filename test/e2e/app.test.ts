@@ -13,12 +13,13 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdirSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { Page } from 'playwright-core';
-import { chromiumAvailable, launchChromium } from './helpers/chromium';
+import { launchChromium } from './helpers/chromium';
+import { requireTool } from '../helpers/required-tool';
 import { startServe, type ServeProcess } from './helpers/serve-process';
 
 const ARTIFACTS = resolve(__dirname, '../artifacts');
 
-describe.skipIf(!chromiumAvailable())('the window in Chromium against rolloff serve --simulated', () => {
+describe.skipIf(!requireTool('chromium'))('the window in Chromium against rolloff serve --simulated', () => {
   let serve: ServeProcess;
   let browser: Awaited<ReturnType<typeof launchChromium>>;
   let page: Page;

@@ -8,21 +8,15 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
-import { chromiumAvailable, launchChromium } from './helpers/chromium';
-import { startServe, type ServeProcess } from './helpers/serve-process';
+import { launchChromium } from './helpers/chromium';
+import { requireTool } from '../helpers/required-tool';
+import { callService, startServe, type ServeProcess } from './helpers/serve-process';
 import { makeDesignFromTemplate } from '../../app/circuit';
 import type { RunDetail, RunSummary } from '../../app/contract/contract';
 
 const ARTIFACTS = resolve(__dirname, '../artifacts');
 
-async function api<T>(serve: ServeProcess, method: string, args: unknown[]): Promise<T> {
-  const response = await fetch(new URL(`api/${method}`, serve.url), { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify(args) });
-  const body = (await response.json()) as { result?: T; error?: { message: string } };
-  if (!response.ok) throw new Error(`${method}: ${body.error?.message}`);
-  return body.result as T;
-}
-
-describe.skipIf(!chromiumAvailable())('resume after a crash, from the History view', () => {
+describe.skipIf(!requireTool('chromium'))('resume after a crash, from the History view', () => {
   const dir = mkdtempSync(join(tmpdir(), 'rolloff-crash-'));
   const dbPath = join(dir, 'bench.sqlite');
   let second: ServeProcess | undefined;
@@ -33,14 +27,14 @@ describe.skipIf(!chromiumAvailable())('resume after a crash, from the History vi
 
   it('offers the killed run for resume and completes it without losing or repeating a step', async () => {
     const first = await startServe(['--simulated', '--time-scale', '1', '--max-amplitude', '2'], { dbPath });
-    const design = await api<{ id: number }>(first, 'saveDesign', [makeDesignFromTemplate('inverting-gain', { rf: 100_000 })]);
-    const build = await api<{ id: number }>(first, 'createBuild', [{ designId: design.id, label: 'crash board', notes: 'invented example', actualValues: {} }]);
-    await api(first, 'startSimulatedBench', [design.id]);
+    const design = await callService<{ id: number }>(first, 'saveDesign', [makeDesignFromTemplate('inverting-gain', { rf: 100_000 })]);
+    const build = await callService<{ id: number }>(first, 'createBuild', [{ designId: design.id, label: 'crash board', notes: 'invented example', actualValues: {} }]);
+    await callService(first, 'startSimulatedBench', [design.id]);
     const request = { buildId: build.id, kind: 'ac', from: 100, to: 200_000, pointsPerDecade: 8, spacing: 'log', amplitude: { mode: 'auto' }, measurement: 'scope', minCycles: 3, averages: 1, refine: false, operator: 'e2e', notes: '' };
-    const run = await api<RunSummary>(first, 'startRun', [request]);
+    const run = await callService<RunSummary>(first, 'startRun', [request]);
     let before: RunSummary | undefined;
     for (let i = 0; i < 200; i++) {
-      before = (await api<RunSummary[]>(first, 'listRuns', [])).find((r) => r.id === run.id);
+      before = (await callService<RunSummary[]>(first, 'listRuns', [])).find((r) => r.id === run.id);
       if ((before?.pointCount ?? 0) >= 4) break;
       await new Promise((r) => setTimeout(r, 50));
     }
@@ -61,7 +55,7 @@ describe.skipIf(!chromiumAvailable())('resume after a crash, from the History vi
       await offer.locator(`[data-resume-run="${run.id}"]`).click();
       await expect.poll(() => page.getByTestId('run-header').textContent(), { timeout: 20_000 }).toMatch(new RegExp(`^Run #${run.id}:`));
       await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 60_000 }).toBe('done');
-      const detail = await api<RunDetail>(second, 'getRun', [run.id]);
+      const detail = await callService<RunDetail>(second, 'getRun', [run.id]);
       const steps = detail.points.step;
       expect(new Set(steps).size).toBe(steps.length);
       expect([...steps].sort((a, b) => a - b)).toEqual(Array.from({ length: detail.plannedCount }, (_, i) => i));

@@ -4,11 +4,13 @@
  * so first-start behaviour (the safety notice) is seen every time.
  */
 import { chromium, type BrowserContext } from 'playwright-core';
-import { existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 
-export const CHROMIUM_PATH = '/usr/bin/chromium';
+import { REQUIRED_TOOLS } from '../../helpers/required-tool';
+
+export const CHROMIUM_PATH = REQUIRED_TOOLS.chromium.program;
 export const CHROMIUM_ARGS = [
   '--headless',
   '--no-sandbox',
@@ -18,10 +20,6 @@ export const CHROMIUM_ARGS = [
   '--disable-sync',
   '--no-first-run',
 ];
-
-export function chromiumAvailable(): boolean {
-  return existsSync(CHROMIUM_PATH);
-}
 
 export async function launchChromium(viewport = { width: 1280, height: 800 }): Promise<{ context: BrowserContext; close(): Promise<void> }> {
   const profileDir = mkdtempSync(join(tmpdir(), 'rolloff-chromium-'));

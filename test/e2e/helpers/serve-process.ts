@@ -20,13 +20,13 @@ export interface ServeProcess {
   kill(): Promise<void>;
 }
 
-export async function startServe(extraArgs: string[] = [], options: { dbPath?: string } = {}): Promise<ServeProcess> {
+export async function startServe(extraArgs: string[] = [], options: { dbPath?: string; env?: Record<string, string> } = {}): Promise<ServeProcess> {
   const dir = options.dbPath ? undefined : mkdtempSync(join(tmpdir(), 'rolloff-serve-'));
   const dbPath = options.dbPath ?? join(dir!, 'bench.sqlite');
   const child: ChildProcess = spawn(process.execPath, ['app/cli/bin.mjs', 'serve', '--port', '0', '--db', dbPath, ...extraArgs], {
     cwd: ROOT,
     stdio: ['ignore', 'pipe', 'pipe'],
-    env: { ...process.env, NO_COLOR: '1' },
+    env: { ...process.env, NO_COLOR: '1', ...options.env },
   });
   let output = '';
   child.stdout!.on('data', (chunk) => (output += chunk));
@@ -64,4 +64,12 @@ export async function startServe(extraArgs: string[] = [], options: { dbPath?: s
     },
     kill: () => end('SIGKILL'),
   };
+}
+
+/** Calls one service method over the host's HTTP API, as the window does; throws with the service's message on refusal. */
+export async function callService<T>(serve: ServeProcess, method: string, args: unknown[]): Promise<T> {
+  const response = await fetch(new URL(`api/${method}`, serve.url), { method: 'POST', headers: { 'Content-Type': 'application/json' }, body: JSON.stringify(args) });
+  const body = (await response.json()) as { result?: T; error?: { message: string } };
+  if (!response.ok) throw new Error(`${method}: ${body.error?.message}`);
+  return body.result as T;
 }

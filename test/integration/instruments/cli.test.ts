@@ -104,12 +104,6 @@ describe('rolloff sim / identify / query', () => {
     expect(noDesign.stderr).toMatch(/--design: is required/);
   });
 
-  it('ports runs and prints a table or says none were found', () => {
-    const result = rolloff('ports');
-    expect(result.status).toBe(0);
-    expect(result.stdout).toMatch(/PATH|No serial ports found/);
-  });
-
   it('sim stops cleanly on Ctrl-C (SIGINT)', async () => {
     sim.kill('SIGINT');
     const code = await new Promise((r) => sim.once('exit', r));

@@ -8,8 +8,9 @@ import { SerialPort } from 'serialport';
 import { openPtyPair, startSimulatedBench, type SimulatedBench } from '../../../app/sim';
 import { connect, ScpiDisconnectedError, SerialTransport, ScpiSession } from '../../../app/scpi';
 import { runBenchScenario, TEST_DESIGN_JSON } from './bench-scenario';
+import { requireTool } from '../../helpers/required-tool';
 
-describe('simulated bench over a pseudo-terminal (serialport + socat)', () => {
+describe.skipIf(!requireTool('socat'))('simulated bench over a pseudo-terminal (serialport + socat)', () => {
   let bench: SimulatedBench;
   beforeAll(async () => {
     bench = await startSimulatedBench({ design: TEST_DESIGN_JSON, pty: true, timeScale: 10, seed: 3 });

@@ -9,6 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { makeDesignFromTemplate, parseDesign, solveAc, type Design } from '../../../app/circuit';
 import { dbFromRatio, degreesFromRadians, wrapPhaseDeg } from '../../../app/units';
 import { ngspiceAc } from './run-ngspice';
+import { requireTool } from '../../helpers/required-tool';
 
 const MAX_GAIN_ERROR_DB = 0.01;
 const MAX_PHASE_ERROR_DEG = 0.1;
@@ -49,7 +50,7 @@ const CASES: Array<[string, Design]> = [
   ['RLC band-pass into a two-pole op-amp stage', rlcIntoTwoPoleStage],
 ];
 
-describe('AC response agrees with ngspice (same op-amp macro-model on both sides)', () => {
+describe.skipIf(!requireTool('ngspice'))('AC response agrees with ngspice (same op-amp macro-model on both sides)', () => {
   it.each(CASES)('%s: within 0.01 dB and 0.1° from 10 Hz to 1 MHz', (_label, design) => {
     const reference = ngspiceAc(design, { kind: 'ac', fromHz: 10, toHz: 1e6, pointsPerDecade: 20 });
     expect(reference.frequencyHz.length).toBe(101);

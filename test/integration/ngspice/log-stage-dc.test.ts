@@ -9,10 +9,11 @@ import { describe, expect, it } from 'vitest';
 import { makeDesignFromTemplate, parseDesign, solveDcTransfer } from '../../../app/circuit';
 import { logGrid } from '../../../app/units';
 import { ngspiceDc } from './run-ngspice';
+import { requireTool } from '../../helpers/required-tool';
 
 const MAX_ERROR_V = 1e-3;
 
-describe('log stage DC transfer agrees with ngspice', () => {
+describe.skipIf(!requireTool('ngspice'))('log stage DC transfer agrees with ngspice', () => {
   const inputsV = logGrid(1e-3, 10, 5);
 
   it.each([

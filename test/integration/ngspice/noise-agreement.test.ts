@@ -15,6 +15,7 @@
 import { describe, expect, it } from 'vitest';
 import { makeDesignFromTemplate, parseDesign, solveNoise, type Design, type DesignFile, type OpAmpModel } from '../../../app/circuit';
 import { ngspiceNoise } from './run-ngspice';
+import { requireTool } from '../../helpers/required-tool';
 
 const MAX_ERROR_DB = 0.1;
 
@@ -75,7 +76,7 @@ function worstErrorDb(d: Design): number {
   return worst;
 }
 
-describe('output noise density agrees with ngspice .noise (same sources on both sides)', () => {
+describe.skipIf(!requireTool('ngspice'))('output noise density agrees with ngspice .noise (same sources on both sides)', () => {
   it.each(CASES)('%s: within 0.1 dB from 10 Hz to 1 MHz', (_label, d) => {
     expect(worstErrorDb(d)).toBeLessThan(MAX_ERROR_DB);
   });

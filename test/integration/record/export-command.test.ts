@@ -18,8 +18,10 @@ import { readCsv, recordFromJson, type ComparisonRecord, type RunRecord } from '
 import { RolloffService } from '../../../app/service/service';
 import type { RunDetail, SweepRequest } from '../../../app/contract/contract';
 import { main } from '../../../app/cli/main';
+import { requireTool } from '../../helpers/required-tool';
 
 const run = promisify(execFile);
+const hasPdftotext = requireTool('pdftotext');
 const ROOT = resolve(__dirname, '../../..');
 const CLI = join(ROOT, 'app/cli/bin.mjs');
 
@@ -148,7 +150,7 @@ beforeAll(async () => {
 afterAll(() => rmSync(folder, { recursive: true, force: true }));
 
 describe('rolloff export on a real simulated-bench run', () => {
-  it('writes a PDF that names the build, the instruments, the digest and the verdict', async () => {
+  it.skipIf(!hasPdftotext)('writes a PDF that names the build, the instruments, the digest and the verdict', async () => {
     const result = await cli('export', String(runIds[0]), '--pdf', '--db', databasePath, '--out', outFolder);
     expect(result.stderr).toBe('');
     expect(result.code).toBe(0);
@@ -175,7 +177,7 @@ describe('rolloff export on a real simulated-bench run', () => {
     expect(rows.map((r) => Number(r[header.indexOf('gain_db')]))).toEqual(details[1].points.gainDb);
   });
 
-  it('a DC log-stage run gives a record with the fitted curve and the fit figures', async () => {
+  it.skipIf(!hasPdftotext)('a DC log-stage run gives a record with the fitted curve and the fit figures', async () => {
     const result = await cliHere('export', String(dcRunId), '--json', '--db', databasePath, '--out', '-');
     expect(result.code).toBe(0);
     const record = recordFromJson(result.stdout) as RunRecord;

@@ -9,6 +9,10 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { chromium, type Browser } from 'playwright-core';
 import { buildRunRecord, buildComparisonRecord, renderRecord } from '../../../app/record';
 import { acRunDetail, comparisonFixture, fixtureBuild, FIXTURE_DESIGN } from '../../unit/record/fixtures';
+import { CHROMIUM_ARGS, CHROMIUM_PATH } from '../../e2e/helpers/chromium';
+import { requireTool } from '../../helpers/required-tool';
+
+const hasChromium = requireTool('chromium');
 
 const HOSTILE = [
   '<script>alert(1)</script>',
@@ -23,10 +27,7 @@ const HOSTILE = [
 let browser: Browser;
 
 beforeAll(async () => {
-  browser = await chromium.launch({
-    executablePath: '/usr/bin/chromium',
-    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'],
-  });
+  if (hasChromium) browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
 });
 
 afterAll(async () => {
@@ -82,7 +83,7 @@ async function inspect(html: string): Promise<DomFindings> {
   return { ...findings, externalUrls: [...findings.externalUrls, ...requests], dialogs };
 }
 
-describe('HTML record escaping (parsed by Chromium)', () => {
+describe.skipIf(!hasChromium)('HTML record escaping (parsed by Chromium)', () => {
   it('hostile store text stays text: no script, no handlers, no external URLs, no dialogs', async () => {
     const html = new TextDecoder().decode((await renderRecord(hostileRecord(), 'html')).bytes);
     const found = await inspect(html);

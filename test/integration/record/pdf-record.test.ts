@@ -9,10 +9,12 @@ import { mkdtempSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
+import { requireTool } from '../../helpers/required-tool';
 import { buildComparisonRecord, buildRunRecord, renderRecord, type AnyRecord } from '../../../app/record';
 import { idnText } from '../../../app/record/record-formatting';
 import { acRunDetail, comparisonFixture, dcRunDetail, fixtureBuild, FIXTURE_DESIGN, LOG_STAGE_DESIGN } from '../../unit/record/fixtures';
 
+const hasPoppler = requireTool('pdftoppm', 'pdftotext');
 const dir = mkdtempSync(join(tmpdir(), 'rolloff-record-pdf-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
@@ -47,7 +49,7 @@ function hostileFreeRunRecord() {
   return buildRunRecord(detail, { design: FIXTURE_DESIGN, build: fixtureBuild({ label: 'Board A – Ω test µ 25 °C' }), generatedAt: '2026-12-01T12:00:00.000Z' });
 }
 
-describe('PDF run record', () => {
+describe.skipIf(!hasPoppler)('PDF run record', () => {
   it.each([
     ['embedded Unicode font', false],
     ['PDF standard fonts', true],
@@ -97,7 +99,7 @@ describe('PDF run record', () => {
   });
 });
 
-describe('PDF DC (log stage) record', () => {
+describe.skipIf(!hasPoppler)('PDF DC (log stage) record', () => {
   it('opens and shows the transfer plot, the fitted figures and no verdict', async () => {
     const { detail, build, dcFit } = dcRunDetail();
     const record = buildRunRecord(detail, { design: LOG_STAGE_DESIGN, build, dcFit, generatedAt: '2026-12-01T12:00:00.000Z' });
@@ -112,7 +114,7 @@ describe('PDF DC (log stage) record', () => {
   });
 });
 
-describe('PDF comparison record', () => {
+describe.skipIf(!hasPoppler)('PDF comparison record', () => {
   it('opens and lists every run, its label and identities, the digests and the verdict', async () => {
     const { comparison, contexts } = comparisonFixture('theory');
     const record = buildComparisonRecord(comparison, { runs: contexts, generatedAt: '2026-12-01T12:00:00.000Z' });

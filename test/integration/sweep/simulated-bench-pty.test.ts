@@ -5,13 +5,13 @@
  * (loop gain 1 where |A| = noise gain 101, DESIGN.md "Theory").
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
 import { RolloffService } from '../../../app/service/service';
 import type { RunDetail } from '../../../app/contract/contract';
 import { invertingGain100, sweepRequest, tempFolder } from './helpers';
+import { requireTool } from '../../helpers/required-tool';
 
-const hasSocat = spawnSync('socat', ['-V']).status === 0;
+const hasSocat = requireTool('socat');
 
 describe.skipIf(!hasSocat)('sweep on the simulated bench over a pseudo-terminal (socat)', () => {
   const folder = tempFolder();

@@ -10,6 +10,7 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fitLogStage } from '../../../app/signal';
+import { requireTool } from '../../helpers/required-tool';
 
 const diode = { isA: 2.5e-9, n: 1.9, rsOhm: 8 };
 const resistorOhm = 10e3;
@@ -53,7 +54,7 @@ function ngspiceTransfer(): { inputV: number[]; outputV: number[] } {
   }
 }
 
-describe('fitLogStage against ngspice', () => {
+describe.skipIf(!requireTool('ngspice'))('fitLogStage against ngspice', () => {
   it('returns the SPICE diode parameters from the simulated transfer curve', () => {
     const { inputV, outputV } = ngspiceTransfer();
     const fit = fitLogStage(inputV, outputV, resistorOhm, temperatureC);

@@ -1,0 +1,81 @@
+/**
+ * The one check for a program a test needs (ngspice, socat, Chromium, poppler,
+ * python3, rpcbind, …). Under CI=true a missing program fails the test file,
+ * naming the Debian package to install (test/install-debian-packages.sh holds
+ * the list CI installs); elsewhere the file is skipped and the same message is
+ * printed, so a skipped check is never silent.
+ *
+ *   const hasSocat = requireTool('socat');
+ *   describe.skipIf(!hasSocat)('…', () => { … });
+ */
+import { accessSync, constants } from 'node:fs';
+import { delimiter, isAbsolute, join } from 'node:path';
+
+interface Tool {
+  /** Program name looked up on PATH, or an absolute path. */
+  program: string;
+  debianPackage: string;
+}
+
+/** Programs the tests use, with the Debian package that ships each. */
+export const REQUIRED_TOOLS = {
+  ngspice: { program: 'ngspice', debianPackage: 'ngspice' },
+  socat: { program: 'socat', debianPackage: 'socat' },
+  chromium: { program: '/usr/bin/chromium', debianPackage: 'chromium' },
+  pdftoppm: { program: 'pdftoppm', debianPackage: 'poppler-utils' },
+  pdftotext: { program: 'pdftotext', debianPackage: 'poppler-utils' },
+  python3: { program: 'python3', debianPackage: 'python3' },
+  rpcbind: { program: 'rpcbind', debianPackage: 'rpcbind' },
+  xvfb: { program: 'xvfb-run', debianPackage: 'xvfb' },
+} satisfies Record<string, Tool>;
+
+export type ToolName = keyof typeof REQUIRED_TOOLS;
+
+export class MissingToolError extends Error {}
+
+/** True when every named program is there. When one is missing: throws under CI=true, else prints why and returns false. */
+export function requireTool(...names: ToolName[]): boolean {
+  const missing = names.filter((name) => !toolPath(name));
+  if (missing.length === 0) return true;
+  const message = missingToolMessage(missing);
+  if (isCi()) throw new MissingToolError(message);
+  console.warn(`SKIPPED (not under CI): ${message}`);
+  return false;
+}
+
+/** Where the program is, or undefined. */
+export function toolPath(name: ToolName): string | undefined {
+  const { program } = REQUIRED_TOOLS[name];
+  if (isAbsolute(program)) return isExecutable(program) ? program : undefined;
+  for (const folder of (process.env.PATH ?? '').split(delimiter)) {
+    if (folder && isExecutable(join(folder, program))) return join(folder, program);
+  }
+  return undefined;
+}
+
+export function missingToolMessage(names: ToolName[]): string {
+  const packages = [...new Set(names.map((name) => REQUIRED_TOOLS[name].debianPackage))];
+  return `${names.map((name) => REQUIRED_TOOLS[name].program).join(', ')} not found; this test needs it. Install it with: apt-get install ${packages.join(' ')} (or run bash test/install-debian-packages.sh).`;
+}
+
+function isCi(): boolean {
+  const value = process.env.CI;
+  return value !== undefined && value !== '' && value !== '0' && value.toLowerCase() !== 'false';
+}
+
+function isExecutable(path: string): boolean {
+  try {
+    accessSync(path, constants.X_OK);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+/** PATH with every folder that holds one of `programs` left out: runs a command as on a machine that lacks them (udevadm on minimal installs). */
+export function pathWithout(programs: string[], path = process.env.PATH ?? ''): string {
+  return path
+    .split(delimiter)
+    .filter((folder) => folder && !programs.some((program) => isExecutable(join(folder, program))))
+    .join(delimiter);
+}
