@@ -8,3 +8,11 @@ export * from './levenberg-marquardt';
 export * from './log-stage-fit';
 export * from './single-pole-fit';
 export * from './outliers';
+/**
+ * Noise and stability from measurements: welchPsd(samples, fs, { segmentLength })
+ * → one-sided density (V/√Hz) with its degrees of freedom, relative standard
+ * errors and 95 % interval; phaseMarginFromPeakingDb(measured peaking) → phase
+ * margin of the equivalent second-order loop.
+ */
+export * from './welch';
+export * from './peaking-phase-margin';
