@@ -58,7 +58,7 @@ try {
   const rolloffMs: number[] = [];
   const ngspiceMs: number[] = [];
   const startupMs: number[] = [];
-  let density = new Float64Array(0);
+  let density: Float64Array = new Float64Array(0);
   for (let i = 0; i < REPEATS; i++) {
     const run = timeRolloff();
     rolloffMs.push(run.ms);
