@@ -29,7 +29,7 @@ async function start(): Promise<void> {
     contents.setWindowOpenHandler(() => ({ action: 'deny' }));
   });
   await app.whenReady();
-  const hosted = openHostedService({ databasePath: resolveDatabasePath(databaseFromArgs(process.argv)) });
+  const hosted = await openHostedService(resolveDatabasePath(databaseFromArgs(process.argv)));
   const wiring = registerIpc({
     ipcMain,
     api: hosted.api,

@@ -2,7 +2,8 @@
  * The real service as the window hosts (web host, Electron main) use it:
  * the RolloffApi, one subscription for every event, and a clean close.
  */
-import { RolloffService, type RolloffServiceOptions } from '../service/service';
+import type { RolloffService, RolloffServiceOptions } from '../service/service';
+import { openServiceAt } from '../service/open-service';
 import type { RolloffApi, ServiceEventName } from '../contract/contract';
 
 export interface HostedService {
@@ -12,8 +13,9 @@ export interface HostedService {
   service: RolloffService;
 }
 
-export function openHostedService(options: RolloffServiceOptions): HostedService {
-  const service = new RolloffService(options);
+/** The service over the store at databaseLocation (a SQLite path or a database URL). */
+export async function openHostedService(databaseLocation: string, options: RolloffServiceOptions = {}): Promise<HostedService> {
+  const service = await openServiceAt(databaseLocation, options);
   return {
     api: service,
     subscribe: (listener) => service.events.onAny(listener),

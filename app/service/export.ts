@@ -11,18 +11,18 @@ export type RecordSource = Pick<RolloffService, 'store' | 'getRun' | 'compareRun
 
 export async function exportRecordFor(service: RecordSource, runIds: number[], format: RecordFormat, reference: number | 'theory'): Promise<ExportedRecord> {
   const store = service.store;
-  const contextOf = (detail: RunDetail) => {
-    const build = store.getBuild(detail.buildId);
-    const design = store.getDesign(build.designId);
+  const contextOf = async (detail: RunDetail) => {
+    const build = await store.getBuild(detail.buildId);
+    const design = await store.getDesign(build.designId);
     return { design: design.design, designId: design.id, build, dcFit: dcFitCurve(detail, design) };
   };
   let rendered;
   if (runIds.length === 1) {
     const detail = await service.getRun(runIds[0]);
-    rendered = await renderRecord(buildRunRecord(detail, contextOf(detail)), format);
+    rendered = await renderRecord(buildRunRecord(detail, await contextOf(detail)), format);
   } else {
     const comparison = await service.compareRuns(runIds, reference);
-    const runs = new Map(comparison.runs.map((detail) => [detail.id, contextOf(detail)]));
+    const runs = new Map(await Promise.all(comparison.runs.map(async (detail) => [detail.id, await contextOf(detail)] as const)));
     rendered = await renderRecord(buildComparisonRecord(comparison, { runs }), format);
   }
   const binary = format === 'pdf';

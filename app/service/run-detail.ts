@@ -2,7 +2,7 @@
  * A run with everything a view or a record needs: points, theory over the
  * run's frequencies with the tolerance band, figures, flags and verdict.
  */
-import type { Store, StoredRun } from '../store';
+import type { RunReadStore, StoredRun } from '../store';
 import type { PointColumns, RunDetail, RunFigures, Verdict } from '../contract/contract';
 import { PointFlag } from '../contract/contract';
 import { analyzeAcRun } from '../analysis';
@@ -22,20 +22,23 @@ export interface RunAnalysis {
 }
 
 /** The circuit a run measured: the build, or for a through-calibration the through connection of it. */
-export function designForRun(store: Store, run: StoredRun): Design {
+export function designForRun(store: RunReadStore, run: StoredRun): Promise<Design> {
   return designForBuild(store, run.buildId, run.request.through);
 }
 
 /** The build's circuit (its actual part values), or its through connection when `through` is set. */
-export function designForBuild(store: Store, buildId: number, through: boolean | undefined): Design {
-  const build = store.getBuild(buildId);
-  const design = buildDesign(store.getDesign(build.designId), build);
+export async function designForBuild(store: RunReadStore, buildId: number, through: boolean | undefined): Promise<Design> {
+  const build = await store.getBuild(buildId);
+  const design = buildDesign(await store.getDesign(build.designId), build);
   return through ? throughDesign(design) : design;
 }
 
 /** Figures, flags and verdict of a run from its stored points. */
-export function analyzeRun(store: Store, run: StoredRun, points: PointColumns = store.loadPoints(run.id)): RunAnalysis {
-  const design = designForRun(store, run);
+export async function analyzeRun(store: RunReadStore, run: StoredRun, points?: PointColumns): Promise<RunAnalysis> {
+  return analyzeRunOf(await designForRun(store, run), run, points ?? (await store.loadPoints(run.id)));
+}
+
+function analyzeRunOf(design: Design, run: StoredRun, points: PointColumns): RunAnalysis {
   if (run.kind === 'dc') return analyzeDcRun(design, points);
   const from = Math.min(run.request.from, ...points.stimulus);
   const to = Math.max(run.request.to, ...points.stimulus);
@@ -88,16 +91,16 @@ function resistorAtInput(design: Design): PassivePart | undefined {
 }
 
 /** The build's diode model (log stage), for comparing a DC fit with theory. */
-export function diodeOfRun(store: Store, runId: number): { n: number; isA: number; rsOhm: number } | undefined {
-  const diode = designForRun(store, store.getRun(runId)).parts.find((p): p is DiodePart => p.type === 'diode');
+export async function diodeOfRun(store: RunReadStore, runId: number): Promise<{ n: number; isA: number; rsOhm: number } | undefined> {
+  const diode = (await designForRun(store, await store.getRun(runId))).parts.find((p): p is DiodePart => p.type === 'diode');
   return diode ? { n: diode.model.n, isA: diode.model.is, rsOhm: diode.model.rs } : undefined;
 }
 
-export function runDetail(store: Store, runId: number): RunDetail {
-  const run = store.getRun(runId);
-  const points = store.loadPoints(runId);
-  const design = designForRun(store, run);
-  const analysis = analyzeRun(store, run, points);
+export async function runDetail(store: RunReadStore, runId: number): Promise<RunDetail> {
+  const run = await store.getRun(runId);
+  const points = await store.loadPoints(runId);
+  const design = await designForRun(store, run);
+  const analysis = analyzeRunOf(design, run, points);
   let theory: RunDetail['theory'] = { frequencyHz: [], gainDb: [], phaseDeg: [], idealGainDb: [], idealPhaseDeg: [] };
   if (run.kind === 'ac') {
     const frequencies = [...run.plan.steps.map((s) => s.stimulus), ...points.stimulus];
@@ -117,7 +120,7 @@ export function runDetail(store: Store, runId: number): RunDetail {
     theory,
     figures: analysis.figures,
     verdict: analysis.verdict,
-    events: store.listEvents(runId),
+    events: await store.listEvents(runId),
     theoryGainLimitHz: analysis.theoryGainLimitHz,
     theoryMinus3dbHz: analysis.theoryMinus3dbHz,
   };

@@ -4,7 +4,7 @@
  * running sweeps, and pushes ServiceEvents to whoever listens.
  */
 import { UserError, ValidationError } from '../errors';
-import { Store, identityKey, type StoredRun } from '../store';
+import { identityKey, type RolloffStore, type StoredRun } from '../store';
 import { openInstrument, builtInProfiles, loadProfiles, realClock, DEFAULT_PROFILE_ID, type BenchClock, type OpenedInstrument, type ProfileFor } from '../bench';
 import { TrafficLog } from '../scpi/traffic-log';
 import { listPorts } from '../scpi/ports';
@@ -34,7 +34,6 @@ import { exportRecordFor } from './export';
 import { throughDesign } from './through';
 
 export interface RolloffServiceOptions {
-  databasePath: string;
   /** The user's ceiling on generator output; otherwise the one recorded with the latest run, else unset. */
   maxStimulusVpp?: number;
   /** Folder of user instrument profiles (else ROLLOFF_PROFILE_DIR). */
@@ -78,7 +77,7 @@ function genericGeneratorLimits(): PlanInstruments['generator'] {
 
 
 export class RolloffService implements RolloffApi {
-  readonly store: Store;
+  readonly store: RolloffStore;
   readonly events = new ServiceEventBus();
   private readonly options: RolloffServiceOptions;
   private readonly instruments = new Map<InstrumentRole, ConnectedInstrument>();
@@ -88,10 +87,15 @@ export class RolloffService implements RolloffApi {
   private simulatedBenchHandle: (SimulatedBenchHandle & { designName: string; key: string }) | undefined;
   private maxStimulusVpp: number | undefined;
 
-  constructor(options: RolloffServiceOptions) {
+  private constructor(store: RolloffStore, options: RolloffServiceOptions, maxStimulusVpp: number | undefined) {
+    this.store = store;
     this.options = options;
-    this.store = Store.open(options.databasePath);
-    this.maxStimulusVpp = options.maxStimulusVpp ?? this.lastRecordedMaxStimulus();
+    this.maxStimulusVpp = maxStimulusVpp;
+  }
+
+  /** The service over an open store, which it owns from now on (close() closes it). */
+  static async open(store: RolloffStore, options: RolloffServiceOptions = {}): Promise<RolloffService> {
+    return new RolloffService(store, options, options.maxStimulusVpp ?? (await lastRecordedMaxStimulus(store)));
   }
 
   /** Subscribe to one event; returns the unsubscribe function (RolloffClient.on). */
@@ -123,7 +127,7 @@ export class RolloffService implements RolloffApi {
     for (const role of ROLES) await this.disconnect(role);
     await this.simulatedBenchHandle?.stop();
     this.simulatedBenchHandle = undefined;
-    this.store.close();
+    await this.store.close();
   }
 
   // ── Bench ──────────────────────────────────────────────────────────────
@@ -163,15 +167,15 @@ export class RolloffService implements RolloffApi {
   }
 
   async startSimulatedBench(designId: number): Promise<BenchStatus> {
-    const record = this.store.getDesign(designId);
+    const record = await this.store.getDesign(designId);
     await this.startSimulatedBenchForDesign(designOf(record), record.name, `design:${designId}`);
     return this.benchStatus();
   }
 
   /** A simulated bench simulating one build's actual circuit (its measured part values), connected in all three roles. */
   async startSimulatedBenchForBuild(buildId: number): Promise<BenchStatus> {
-    const build = this.store.getBuild(buildId);
-    const designRecord = this.store.getDesign(build.designId);
+    const build = await this.store.getBuild(buildId);
+    const designRecord = await this.store.getDesign(build.designId);
     await this.startSimulatedBenchForDesign(buildDesign(designRecord, build), `${designRecord.name} — build ${build.label}`, `build:${buildId}`);
     return this.benchStatus();
   }
@@ -215,7 +219,7 @@ export class RolloffService implements RolloffApi {
   }
 
   async createBuild(build: { designId: number; label: string; notes: string; actualValues: Record<string, number> }): Promise<BuildRecord> {
-    const design = this.store.getDesign(build.designId);
+    const design = await this.store.getDesign(build.designId);
     // Refuses unknown part ids or bad values before anything is stored.
     withActualValues(designOf(design), build.actualValues);
     return this.store.createBuild(build);
@@ -228,7 +232,7 @@ export class RolloffService implements RolloffApi {
   // ── Sweeps ─────────────────────────────────────────────────────────────
 
   async planSweep(request: SweepRequest): Promise<SweepPlanSummary> {
-    return toPlanSummary(planSweep(this.planInput(request, this.requireMaxStimulus())));
+    return toPlanSummary(planSweep(await this.planInput(request, this.requireMaxStimulus())));
   }
 
   /**
@@ -253,8 +257,8 @@ export class RolloffService implements RolloffApi {
     }
     await this.matchSimulatedBench(request);
     this.requireInstrumentsFor(request);
-    const plan = planSweep(this.planInput(request, maxStimulusVpp));
-    const run = this.store.createRun({
+    const plan = planSweep(await this.planInput(request, maxStimulusVpp));
+    const run = await this.store.createRun({
       buildId: request.buildId,
       kind: request.kind,
       request: { ...request, maxStimulusVpp },
@@ -266,8 +270,8 @@ export class RolloffService implements RolloffApi {
       simulated: this.instrumentInfos().some((i) => i.simulated),
       scheduleId: extra.scheduleId ?? null,
     });
-    for (const warning of plan.warnings) this.logRunEvent(run.id, 'warning', `plan: ${warning}`);
-    this.launch(run.id);
+    for (const warning of plan.warnings) await this.logRunEvent(run.id, 'warning', `plan: ${warning}`);
+    await this.launch(run.id);
     return this.summaryOf(run.id);
   }
 
@@ -276,9 +280,9 @@ export class RolloffService implements RolloffApi {
     if (active) {
       active.control.requestPause();
       await active.finished.catch(() => undefined);
-    } else if (this.store.getRun(runId).status === 'running') {
+    } else if ((await this.store.getRun(runId)).status === 'running') {
       // Left running by a crash: nothing is measuring it, so it is in effect paused.
-      this.store.updateRunStatus(runId, 'paused');
+      await this.store.updateRunStatus(runId, 'paused');
     }
     return this.summaryOf(runId);
   }
@@ -289,11 +293,11 @@ export class RolloffService implements RolloffApi {
       active.control.requestStop();
       await active.finished.catch(() => undefined);
     } else {
-      const run = this.store.getRun(runId);
+      const run = await this.store.getRun(runId);
       if (run.status === 'running' || run.status === 'paused' || run.status === 'planned') {
-        this.store.updateRunStatus(runId, 'stopped');
-        this.logRunEvent(runId, 'info', 'stopped by the user');
-        this.finalize(runId);
+        await this.store.updateRunStatus(runId, 'stopped');
+        await this.logRunEvent(runId, 'info', 'stopped by the user');
+        await this.finalize(runId);
       }
     }
     return this.summaryOf(runId);
@@ -305,7 +309,7 @@ export class RolloffService implements RolloffApi {
    * with unless instruments are already connected.
    */
   async resumeRun(runId: number): Promise<RunSummary> {
-    const run = this.store.getRun(runId);
+    const run = await this.store.getRun(runId);
     if (this.active.has(runId)) throw new RunStateError(runId, 'is already running');
     this.requireIdleBench();
     if (run.status === 'done') throw new RunStateError(runId, 'is finished; nothing to resume', 'Start a new run of the same build instead.');
@@ -320,21 +324,21 @@ export class RolloffService implements RolloffApi {
       }
     }
     this.requireInstrumentsFor(run.request);
-    this.logRunEvent(runId, 'info', `resumed (maximum stimulus ${maxStimulusVpp} Vpp)`);
-    this.launch(runId);
+    await this.logRunEvent(runId, 'info', `resumed (maximum stimulus ${maxStimulusVpp} Vpp)`);
+    await this.launch(runId);
     return this.summaryOf(runId);
   }
 
   /** Resolves when a run started or resumed by this service leaves the running state. */
   async waitForRun(runId: number): Promise<RunStatus> {
     const active = this.active.get(runId);
-    if (!active) return this.store.getRun(runId).status;
+    if (!active) return (await this.store.getRun(runId)).status;
     return active.finished;
   }
 
   /** Runs a crash left running or paused: offered for resume at start. */
-  interruptedRuns(): RunSummary[] {
-    return this.store.findInterruptedRuns().filter((r) => !this.active.has(r.id)).map((r) => this.summaryOf(r.id));
+  async interruptedRuns(): Promise<RunSummary[]> {
+    return (await this.store.findInterruptedRuns()).filter((r) => !this.active.has(r.id)).map(summaryOf);
   }
 
   // ── History, Compare, Record ───────────────────────────────────────────
@@ -349,7 +353,7 @@ export class RolloffService implements RolloffApi {
 
   async compareRuns(runIds: number[], reference: number | 'theory'): Promise<Comparison> {
     if (runIds.length === 0) throw new ValidationError('runIds', 'is empty', 'Give at least one run.');
-    return compareDetails(runIds.map((id) => runDetail(this.store, id)), reference);
+    return compareDetails(await Promise.all(runIds.map((id) => runDetail(this.store, id))), reference);
   }
 
   async exportRecord(runIds: number[], format: RecordFormat, reference: number | 'theory' = 'theory'): Promise<ExportedRecord> {
@@ -376,7 +380,7 @@ export class RolloffService implements RolloffApi {
     const untilMs = input.until === undefined ? Infinity : Date.parse(input.until);
     if (Number.isNaN(untilMs)) throw new ValidationError('until', `"${input.until}" is not a time`, 'Give an ISO 8601 time, e.g. 2026-12-02T07:30.');
     if (untilMs <= Date.now()) throw new ValidationError('until', `${input.until} is already past`);
-    const schedule = this.store.createSchedule({ buildId: request.buildId, request, everyMinutes, count: input.count ?? null, until: input.until === undefined ? null : new Date(untilMs).toISOString() });
+    const schedule = await this.store.createSchedule({ buildId: request.buildId, request, everyMinutes, count: input.count ?? null, until: input.until === undefined ? null : new Date(untilMs).toISOString() });
     const runIds: number[] = [];
     const clock = this.clock;
     for (let index = 0; ; index++) {
@@ -391,7 +395,7 @@ export class RolloffService implements RolloffApi {
       if (Date.now() + ((nextSlotS - clock.nowS()) / clock.timeScale) * 1000 > untilMs) break;
       await clock.sleepS(Math.max(0, nextSlotS - clock.nowS()));
     }
-    const runs = runIds.map((id) => this.store.getRun(id));
+    const runs = await Promise.all(runIds.map((id) => this.store.getRun(id)));
     return {
       scheduleId: schedule.id,
       runs: runs.map((r) => ({ runId: r.id, status: r.status, startedAt: r.startedAt, figures: r.figures })),
@@ -401,16 +405,8 @@ export class RolloffService implements RolloffApi {
 
   // ── internals ──────────────────────────────────────────────────────────
 
-  private summaryOf(runId: number): RunSummary {
-    const { request: _r, plan: _p, softwareVersion: _s, bench: _b, operator: _o, notes: _n, scheduleId: _sc, createdAt: _c, figures: _f, verdict: _v, ...summary } = this.store.getRun(runId);
-    return summary;
-  }
-
-  private lastRecordedMaxStimulus(): number | undefined {
-    const latest = this.store.listRuns({ limit: 1 })[0];
-    if (!latest) return undefined;
-    const value = this.store.getRun(latest.id).request.maxStimulusVpp;
-    return typeof value === 'number' && value > 0 ? value : undefined;
+  private async summaryOf(runId: number): Promise<RunSummary> {
+    return summaryOf(await this.store.getRun(runId));
   }
 
   /** One sweep at a time: the instruments are shared. */
@@ -466,7 +462,7 @@ export class RolloffService implements RolloffApi {
     });
     const isSimulated = simulated || /\(simulated\)/i.test(opened.identity.manufacturer);
     this.instruments.set(request.role, { opened: opened as OpenedInstrument, request, simulated: isSimulated });
-    this.store.recordInstrument({ role: request.role, identity: opened.identity, address: opened.address });
+    await this.store.recordInstrument({ role: request.role, identity: opened.identity, address: opened.address });
     return { role: request.role, address: opened.address, profileId: opened.profileId, identity: opened.identity, simulated: isSimulated };
   }
 
@@ -501,14 +497,14 @@ export class RolloffService implements RolloffApi {
       await this.startSimulatedBenchForBuild(request.buildId);
       return;
     }
-    const build = this.store.getBuild(request.buildId);
-    const designRecord = this.store.getDesign(build.designId);
+    const build = await this.store.getBuild(request.buildId);
+    const designRecord = await this.store.getDesign(build.designId);
     await this.startSimulatedBenchForDesign(throughDesign(buildDesign(designRecord, build)), `${designRecord.name} — through connection`, key);
   }
 
-  private planInput(request: SweepRequest, maxStimulusVpp: number): PlanInput {
+  private async planInput(request: SweepRequest, maxStimulusVpp: number): Promise<PlanInput> {
     // A through run measures the stage input: plan its amplitude for that node, not the stage output.
-    return this.planInputFor(request, maxStimulusVpp, designForBuild(this.store, request.buildId, request.through));
+    return this.planInputFor(request, maxStimulusVpp, await designForBuild(this.store, request.buildId, request.through));
   }
 
   private planInputFor(request: SweepRequest, maxStimulusVpp: number, design: Design): PlanInput {
@@ -543,9 +539,9 @@ export class RolloffService implements RolloffApi {
     return this.currentInstruments();
   }
 
-  private launch(runId: number): void {
-    const run = this.store.getRun(runId);
-    const design = designForRun(this.store, run);
+  private async launch(runId: number): Promise<void> {
+    const run = await this.store.getRun(runId);
+    const design = await designForRun(this.store, run);
     const request = run.request;
     const maxStimulusVpp = this.requireMaxStimulus();
     const clock = this.clock;
@@ -572,7 +568,7 @@ export class RolloffService implements RolloffApi {
         }
       : undefined;
 
-    const measurer = this.measurerFor(run, clock, ideal?.gainRatioAt);
+    const measurer = await this.measurerFor(run, clock, ideal?.gainRatioAt);
     const control = new RunControl();
     let first = true;
     const finished = runSweep({
@@ -592,21 +588,21 @@ export class RolloffService implements RolloffApi {
         }
         return this.reconnectAll();
       },
-    }).finally(() => {
+    }).finally(async () => {
       this.active.delete(runId);
-      this.finalize(runId);
+      await this.finalize(runId);
     });
     // The caller learns the outcome through waitForRun/events; an unobserved rejection must not crash the process.
     finished.catch(() => undefined);
     this.active.set(runId, { control, finished });
   }
 
-  private measurerFor(run: StoredRun, clock: BenchClock, gainRatioAt: ((f: number) => number) | undefined): StepMeasurer {
+  private async measurerFor(run: StoredRun, clock: BenchClock, gainRatioAt: ((f: number) => number) | undefined): Promise<StepMeasurer> {
     if (run.kind === 'dc') return dcMeasurer({ clock });
     if (run.request.measurement === 'meter') {
-      const calibration = run.request.through ? undefined : this.store.latestCalibration(this.benchKey());
-      if (calibration) this.logRunEvent(run.id, 'info', `through-calibration ${calibration.id} of ${calibration.createdAt} applied`);
-      else if (!run.request.through) this.logRunEvent(run.id, 'warning', 'no through-calibration for this bench: gains include the generator\'s and meter\'s own response');
+      const calibration = run.request.through ? undefined : await this.store.latestCalibration(this.benchKey());
+      if (calibration) await this.logRunEvent(run.id, 'info', `through-calibration ${calibration.id} of ${calibration.createdAt} applied`);
+      else if (!run.request.through) await this.logRunEvent(run.id, 'warning', 'no through-calibration for this bench: gains include the generator\'s and meter\'s own response');
       return meterMeasurer({ clock, calibration });
     }
     return scopeMeasurer({ clock, expectedGainRatioAt: gainRatioAt ?? (() => 1) });
@@ -621,29 +617,43 @@ export class RolloffService implements RolloffApi {
   }
 
   /** Figures and verdict stored with the run; a through-calibration run becomes the bench's calibration. */
-  private finalize(runId: number): void {
+  private async finalize(runId: number): Promise<void> {
     try {
-      const run = this.store.getRun(runId);
-      const points = this.store.loadPoints(runId);
+      const run = await this.store.getRun(runId);
+      const points = await this.store.loadPoints(runId);
       if (points.step.length === 0) return;
-      const analysis = analyzeRun(this.store, run, points);
-      this.store.setRunResults(runId, analysis.figures, analysis.verdict);
+      const analysis = await analyzeRun(this.store, run, points);
+      await this.store.setRunResults(runId, analysis.figures, analysis.verdict);
       if (run.request.through && run.status === 'done') {
-        const calibration = this.store.saveCalibration({
+        const calibration = await this.store.saveCalibration({
           benchKey: this.benchKey(), bench: run.bench, frequencyHz: points.stimulus, gainDb: points.gainDb,
           phaseDeg: points.phaseDeg.map((p) => (Number.isFinite(p) ? p : 0)), notes: `through-calibration from run ${runId}`,
         });
-        this.logRunEvent(runId, 'info', `stored as through-calibration ${calibration.id} for this bench`);
+        await this.logRunEvent(runId, 'info', `stored as through-calibration ${calibration.id} for this bench`);
       }
     } catch (error) {
-      this.logRunEvent(runId, 'error', `analysis failed: ${(error as Error).message}`);
+      await this.logRunEvent(runId, 'error', `analysis failed: ${(error as Error).message}`);
     }
   }
 
-  private logRunEvent(runId: number, level: 'info' | 'warning' | 'error', message: string): void {
-    const event = this.store.appendEvent(runId, level, message);
+  private async logRunEvent(runId: number, level: 'info' | 'warning' | 'error', message: string): Promise<void> {
+    const event = await this.store.appendEvent(runId, level, message);
     this.events.emit('runEvent', { runId, ...event });
   }
+}
+
+/** The summary part of a stored run (what lists and events carry). */
+function summaryOf(run: StoredRun): RunSummary {
+  const { request: _r, plan: _p, softwareVersion: _s, bench: _b, operator: _o, notes: _n, scheduleId: _sc, createdAt: _c, figures: _f, verdict: _v, ...summary } = run;
+  return summary;
+}
+
+/** The ceiling recorded with the newest run, if any. */
+async function lastRecordedMaxStimulus(store: RolloffStore): Promise<number | undefined> {
+  const [latest] = await store.listRuns({ limit: 1 });
+  if (!latest) return undefined;
+  const value = (await store.getRun(latest.id)).request.maxStimulusVpp;
+  return typeof value === 'number' && value > 0 ? value : undefined;
 }
 
 /** Ideal-op-amp response of the build at the measured frequencies (refinement targets). */

@@ -1,4 +1,6 @@
-export { Store, identityKey } from './store';
+export { SqliteStore } from './sqlite-store';
+export { identityKey } from './identity-key';
+export { openStore, databaseUrlScheme, type StoreOpener } from './open-store';
 export * from './errors';
 export * from './types';
 export { defaultDatabasePath, resolveDatabasePath, userDataFolder, DATABASE_FILE_NAME } from './paths';

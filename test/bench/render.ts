@@ -127,7 +127,7 @@ async function benchmarkCompare(page: Page): Promise<{ firstRender: number[]; ne
 
 async function benchmarkLiveSweep(page: Page): Promise<number[]> {
   const dir = mkdtempSync(join(tmpdir(), 'rolloff-render-bench-'));
-  const hosted = openHostedService({ databasePath: join(dir, 'bench.sqlite'), maxStimulusVpp: 2, simulatedBench: { timeScale: 2 } });
+  const hosted = await openHostedService(join(dir, 'bench.sqlite'), { maxStimulusVpp: 2, simulatedBench: { timeScale: 2 } });
   const host = await startWebHost({ api: hosted.api, subscribe: hosted.subscribe, files: await bundleRenderer(), host: '127.0.0.1', port: 0 });
   try {
     const design = await hosted.api.saveDesign(makeDesignFromTemplate('inverting-gain', { rf: 100_000 }));

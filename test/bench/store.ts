@@ -12,7 +12,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { SweepPlanSummary, SweepRequest } from '../../app/contract/contract';
 import { SOFTWARE_VERSION } from '../../app/contract/version';
-import { Store, type NewPoint } from '../../app/store';
+import { SqliteStore, type NewPoint } from '../../app/store';
 
 const POINTS_PER_RUN = 1000;
 const BULK_POINTS = 1_000_000;
@@ -21,7 +21,7 @@ const SINGLE_COMMITS = 300;
 
 const folder = mkdtempSync(join(tmpdir(), 'rolloff-bench-store-'));
 const path = join(folder, 'bench.sqlite');
-const store = Store.open(path);
+const store = SqliteStore.open(path);
 
 const request: SweepRequest = {
   buildId: 1, kind: 'ac', from: 10, to: 1e6, pointsPerDecade: 200, spacing: 'log', amplitude: { mode: 'fixed', vpp: 1 },
@@ -38,27 +38,24 @@ const points: NewPoint[] = plan.steps.map((s) => ({
   outputV: Number.NaN, flags: 0, measuredAt: '2026-01-01T00:00:00.000Z',
 }));
 
-const design = store.saveDesign({ name: 'benchmark stage (invented)', design: { parts: [] } });
-const builds = Array.from({ length: 20 }, (_, i) => store.createBuild({ designId: design.id, label: `bench board ${i}`, notes: '', actualValues: {} }));
+const design = await store.saveDesign({ name: 'benchmark stage (invented)', design: { parts: [] } });
+const builds = await Promise.all(Array.from({ length: 20 }, (_, i) => store.createBuild({ designId: design.id, label: `bench board ${i}`, notes: '', actualValues: {} })));
 
-function createRuns(count: number): number[] {
-  return store.transaction(() =>
-    Array.from({ length: count }, (_, i) =>
-      store.createRun({
-        buildId: builds[i % builds.length].id, kind: 'ac', request, plan, softwareVersion: SOFTWARE_VERSION, bench: [],
-        operator: 'benchmark', notes: `run ${i}`, simulated: true,
-      }).id,
-    ),
+async function createRuns(count: number): Promise<number[]> {
+  const runs = await store.createRuns(
+    Array.from({ length: count }, (_, i) => ({
+      buildId: builds[i % builds.length].id, kind: 'ac' as const, request, plan, softwareVersion: SOFTWARE_VERSION, bench: [],
+      operator: 'benchmark', notes: `run ${i}`, simulated: true,
+    })),
   );
+  return runs.map((run) => run.id);
 }
 
 const RUNS_PER_TRANSACTION = 100; // 100,000 points per commit
 
-function fill(runIds: number[]): void {
+async function fill(runIds: number[]): Promise<void> {
   for (let i = 0; i < runIds.length; i += RUNS_PER_TRANSACTION) {
-    store.transaction(() => {
-      for (const runId of runIds.slice(i, i + RUNS_PER_TRANSACTION)) store.insertPoints(runId, points);
-    });
+    await store.insertPointsOfRuns(runIds.slice(i, i + RUNS_PER_TRANSACTION).map((runId) => ({ runId, points })));
   }
 }
 
@@ -67,16 +64,16 @@ function median(values: number[]): number {
   return sorted[Math.floor(sorted.length / 2)];
 }
 
-function timeMs(work: () => void): number {
+async function timeMs(work: () => unknown): Promise<number> {
   const start = performance.now();
-  work();
+  await work();
   return performance.now() - start;
 }
 
 /** CPU time of this process, ms: a fairer figure than wall time on a shared machine. */
-function cpuMs(work: () => void): number {
+async function cpuMs(work: () => unknown): Promise<number> {
   const start = process.cpuUsage();
-  work();
+  await work();
   const used = process.cpuUsage(start);
   return (used.user + used.system) / 1000;
 }
@@ -84,44 +81,44 @@ function cpuMs(work: () => void): number {
 const verdict = (value: number, limit: number) => (value < limit ? 'meets target' : 'MISSES target');
 
 // 1. Bulk insert of 1,000,000 points.
-const bulkRuns = createRuns(BULK_POINTS / POINTS_PER_RUN);
+const bulkRuns = await createRuns(BULK_POINTS / POINTS_PER_RUN);
 let bulkCpuMs = 0;
-const bulkMs = timeMs(() => (bulkCpuMs = cpuMs(() => fill(bulkRuns))));
+const bulkMs = await timeMs(async () => (bulkCpuMs = await cpuMs(() => fill(bulkRuns))));
 const load = (await import('node:os')).loadavg()[0];
 console.log(`store: ${path} (machine load average ${load.toFixed(1)} on ${(await import('node:os')).cpus().length} cores: wall times include waiting for the CPU)`);
 console.log(`bulk insert: ${BULK_POINTS.toLocaleString('en')} points in ${(bulkMs / 1000).toFixed(2)} s = ${Math.round(BULK_POINTS / (bulkMs / 1000)).toLocaleString('en')} points/s (${(RUNS_PER_TRANSACTION * POINTS_PER_RUN).toLocaleString('en')} per transaction) — target < 3 s: ${verdict(bulkMs, 3000)} (CPU ${(bulkCpuMs / 1000).toFixed(2)} s)`);
 
 // 2. Single-point commits (each its own synchronous=FULL transaction, as during a sweep).
-const [singleRun] = createRuns(1);
+const [singleRun] = await createRuns(1);
 const singleTimes: number[] = [];
-for (let step = 0; step < SINGLE_COMMITS; step++) singleTimes.push(timeMs(() => store.insertPoint(singleRun, points[step])));
+for (let step = 0; step < SINGLE_COMMITS; step++) singleTimes.push(await timeMs(() => store.insertPoint(singleRun, points[step])));
 const singleTotalMs = singleTimes.reduce((a, b) => a + b, 0);
 console.log(`single-point commits: ${SINGLE_COMMITS} in ${(singleTotalMs / 1000).toFixed(2)} s = ${Math.round(SINGLE_COMMITS / (singleTotalMs / 1000)).toLocaleString('en')} commits/s (median ${median(singleTimes).toFixed(2)} ms, worst ${Math.max(...singleTimes).toFixed(2)} ms)`);
 
 // 3. Grow to TOTAL_POINTS.
 const remainingRuns = Math.max(0, (TOTAL_POINTS - BULK_POINTS) / POINTS_PER_RUN);
-const growMs = timeMs(() => {
-  for (let done = 0; done < remainingRuns; done += 500) fill(createRuns(Math.min(500, remainingRuns - done)));
+const growMs = await timeMs(async () => {
+  for (let done = 0; done < remainingRuns; done += 500) await fill(await createRuns(Math.min(500, remainingRuns - done)));
 });
-const totalRuns = store.listRuns({ limit: 1 })[0].id;
+const totalRuns = (await store.listRuns({ limit: 1 }))[0].id;
 console.log(`built ${(TOTAL_POINTS + SINGLE_COMMITS).toLocaleString('en')} points in ${totalRuns.toLocaleString('en')} runs: the last ${(TOTAL_POINTS - BULK_POINTS).toLocaleString('en')} took ${(growMs / 1000).toFixed(1)} s; file ${(statSync(path).size / 1e6).toFixed(0)} MB (+ WAL)`);
 
 // 4. Listing and loading with the big table in place (median of repeats, after one warm-up).
 const listTimes: number[] = [];
-for (let i = 0; i < 21; i++) listTimes.push(timeMs(() => store.listRuns()));
+for (let i = 0; i < 21; i++) listTimes.push(await timeMs(() => store.listRuns()));
 const searchTimes: number[] = [];
-for (let i = 0; i < 21; i++) searchTimes.push(timeMs(() => store.listRuns({ search: 'board 7' })));
+for (let i = 0; i < 21; i++) searchTimes.push(await timeMs(() => store.listRuns({ search: 'board 7' })));
 const statusTimes: number[] = [];
-for (let i = 0; i < 21; i++) statusTimes.push(timeMs(() => store.listRuns({ status: 'running' })));
+for (let i = 0; i < 21; i++) statusTimes.push(await timeMs(() => store.listRuns({ status: 'running' })));
 const loadTimes: number[] = [];
 let loaded = 0;
 for (let i = 0; i < 51; i++) {
   const runId = 1 + Math.floor(((i * 7919) % totalRuns)); // spread over the file, not one cached run
-  loadTimes.push(timeMs(() => (loaded = store.loadPoints(runId).step.length)));
+  loadTimes.push(await timeMs(async () => (loaded = (await store.loadPoints(runId)).step.length)));
 }
 console.log(`listRuns (newest 200): median ${median(listTimes).toFixed(2)} ms — target < 50 ms: ${verdict(median(listTimes), 50)}`);
 console.log(`listRuns search "board 7": median ${median(searchTimes).toFixed(2)} ms; status filter: median ${median(statusTimes).toFixed(2)} ms`);
 console.log(`loadPoints of a ${loaded}-point run: median ${median(loadTimes).toFixed(2)} ms, worst ${Math.max(...loadTimes).toFixed(2)} ms — target < 20 ms: ${verdict(median(loadTimes), 20)}`);
 
-store.close();
+await store.close();
 rmSync(folder, { recursive: true, force: true });

@@ -22,7 +22,7 @@ import { spawn } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { RolloffService } from '../../app/service/service';
+import { openServiceAt } from '../../app/service/open-service';
 import { makeDesignFromTemplate } from '../../app/circuit/templates';
 
 function argument(name: string, fallback: number): number {
@@ -47,7 +47,7 @@ async function main(): Promise<void> {
     });
     sim.on('exit', () => reject(new Error(`rolloff sim exited: ${text}`)));
   });
-  const service = new RolloffService({ databasePath: join(folder, 'bench.sqlite'), maxStimulusVpp: 1 });
+  const service = await openServiceAt(join(folder, 'bench.sqlite'), { maxStimulusVpp: 1 });
   try {
     const design = await service.saveDesign(designFile);
     const build = await service.createBuild({ designId: design.id, label: 'bench', notes: '', actualValues: {} });

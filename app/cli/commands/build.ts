@@ -1,7 +1,7 @@
 import type { CommandSpec } from '../args';
 import { optionNumber, optionString, requirePositional } from '../args';
 import { ValidationError } from '../../errors';
-import { RolloffService } from '../../service/service';
+import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION, actualValuesFrom } from '../../sweep/cli/sweep-options';
 import { formatEngineering } from '../../units';
@@ -19,7 +19,7 @@ export const buildCommand: CommandSpec = {
   ],
   async run(parsed) {
     const action = requirePositional(parsed, 0, 'ACTION (add or list)');
-    const service = new RolloffService({ databasePath: resolveDatabasePath(optionString(parsed, 'db')) });
+    const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
     try {
       if (action === 'add') {
         const designId = optionNumber(parsed, 'design');

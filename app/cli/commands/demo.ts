@@ -1,7 +1,7 @@
 import type { CommandSpec } from '../args';
 import { optionFlag, optionString } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
-import { RolloffService } from '../../service/service';
+import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { makeDesignFromTemplate } from '../../circuit';
 import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';
@@ -35,8 +35,7 @@ and two builds of it in the database, sweeps both and prints how they differ. Al
   async run(parsed) {
     process.stderr.write(`${SAFETY_NOTICE_SHORT}\n\n`);
     const out = (line = '') => process.stdout.write(line + '\n');
-    const service = new RolloffService({
-      databasePath: resolveDatabasePath(optionString(parsed, 'db')),
+    const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')), {
       maxStimulusVpp: 1,
       simulatedBench: { timeScale: optionFlag(parsed, 'fast') ? 20 : 1, noiseVrms: 2e-4, latencyS: 0.001 },
     });
@@ -86,8 +85,8 @@ and two builds of it in the database, sweeps both and prints how they differ. Al
       out('op-amp\'s limit far higher up. Unit 1 follows its design up to the gain-limit point, where the op-amp\'s');
       out('open-loop gain takes over from the feedback network.');
       out();
-      out(`Stored in ${service.store.path}. Look closer with: rolloff show ${a.id} --points --db ${service.store.path}`);
-      out(`Export a record with: rolloff export ${a.id} ${b.id} --pdf --db ${service.store.path}`);
+      out(`Stored in ${service.store.location}. Look closer with: rolloff show ${a.id} --points --db ${service.store.location}`);
+      out(`Export a record with: rolloff export ${a.id} ${b.id} --pdf --db ${service.store.location}`);
       return 0;
     } finally {
       await service.close();

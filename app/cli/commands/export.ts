@@ -8,7 +8,7 @@ import { existsSync, renameSync, statSync, unlinkSync, writeFileSync } from 'nod
 import { basename, dirname, join, resolve } from 'node:path';
 import { UserError, ValidationError } from '../../errors';
 import type { RecordFormat } from '../../contract/contract';
-import { Store, resolveDatabasePath } from '../../store';
+import { openStore, resolveDatabasePath } from '../../store';
 import { exportRecordFor } from '../../service/export';
 import { RECORD_FORMATS } from '../../record';
 import { runDetail } from '../../service/run-detail';
@@ -60,19 +60,19 @@ export interface ExportedBytes {
  * path (app/service/export.ts) over a read-only store, so the CLI, the window
  * and the web host write the same records.
  */
-export async function exportFromDatabase(databasePath: string, runIds: number[], format: RecordFormat, reference: number | 'theory'): Promise<ExportedBytes> {
-  const store = Store.open(databasePath, { readonly: true });
+export async function exportFromDatabase(databaseLocation: string, runIds: number[], format: RecordFormat, reference: number | 'theory'): Promise<ExportedBytes> {
+  const store = await openStore(databaseLocation, { readonly: true });
   try {
     const source = {
       store,
       getRun: async (runId: number) => runDetail(store, runId),
-      compareRuns: async (ids: number[], ref: number | 'theory') => compareDetails(ids.map((id) => runDetail(store, id)), ref),
+      compareRuns: async (ids: number[], ref: number | 'theory') => compareDetails(await Promise.all(ids.map((id) => runDetail(store, id))), ref),
     };
     const exported = await exportRecordFor(source, runIds, format, reference);
     const bytes = exported.encoding === 'base64' ? new Uint8Array(Buffer.from(exported.content, 'base64')) : new TextEncoder().encode(exported.content);
     return { fileName: exported.fileName, mimeType: exported.mimeType, bytes };
   } finally {
-    store.close();
+    await store.close();
   }
 }
 

@@ -19,14 +19,14 @@ with the run applies unless --max-amplitude is given.`,
   async run(parsed) {
     process.stderr.write(`${SAFETY_NOTICE_SHORT}\n\n`);
     const runId = parseRunId(requirePositional(parsed, 0, 'RUN'));
-    const service = openService(parsed);
+    const service = await openService(parsed);
     try {
-      const stored = service.store.getRun(runId);
+      const stored = await service.store.getRun(runId);
       if (!stored.simulated) await connectBench(service, parsed, stored.buildId);
       await service.resumeRun(runId);
-      process.stderr.write(`run ${runId} continues at step ${service.store.nextStep(runId)}\n`);
+      process.stderr.write(`run ${runId} continues at step ${await service.store.nextStep(runId)}\n`);
       const status = await followRun(service, runId);
-      process.stdout.write(runDetailText(await service.getRun(runId), diodeOfRun(service.store, runId)));
+      process.stdout.write(runDetailText(await service.getRun(runId), await diodeOfRun(service.store, runId)));
       return status === 'done' || status === 'paused' ? 0 : 1;
     } finally {
       await service.close();

@@ -2,7 +2,7 @@ import type { CommandSpec } from '../args';
 import { optionFlag, optionNumber, optionString } from '../args';
 import { ValidationError } from '../../errors';
 import type { RunStatus } from '../../contract/contract';
-import { RolloffService } from '../../service/service';
+import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';
 import { runTable } from '../../sweep/cli/summary-text';
@@ -23,7 +23,7 @@ export const runsCommand: CommandSpec = {
   async run(parsed) {
     const status = optionString(parsed, 'status');
     if (status !== undefined && !STATUSES.includes(status as RunStatus)) throw new ValidationError('--status', `"${status}" is not a run status`, `Use one of: ${STATUSES.join(', ')}.`);
-    const service = new RolloffService({ databasePath: resolveDatabasePath(optionString(parsed, 'db')) });
+    const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
     try {
       const runs = await service.listRuns({ search: optionString(parsed, 'search'), status: status as RunStatus | undefined, buildId: optionNumber(parsed, 'build') });
       if (optionFlag(parsed, 'json')) {
@@ -31,7 +31,7 @@ export const runsCommand: CommandSpec = {
         return 0;
       }
       process.stdout.write(runTable(runs));
-      const interrupted = service.interruptedRuns();
+      const interrupted = await service.interruptedRuns();
       if (interrupted.length > 0) {
         process.stderr.write(`\n${interrupted.length} run(s) were left running or paused: ${interrupted.map((r) => r.id).join(', ')}.\n`);
         process.stderr.write(`Continue one with: rolloff resume RUN${optionString(parsed, 'db') ? ` --db ${optionString(parsed, 'db')}` : ''}\n`);

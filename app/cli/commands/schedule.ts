@@ -25,7 +25,7 @@ and ends the schedule.`,
     const everyMinutes = optionNumber(parsed, 'every');
     if (everyMinutes === undefined) throw new ValidationError('--every', 'is missing', 'Give the interval in minutes, e.g. --every 30.');
     const until = untilTime(optionString(parsed, 'until'));
-    const service = openService(parsed);
+    const service = await openService(parsed);
     try {
       const { buildId, request } = await prepareSweep(service, parsed);
       const report = await service.runSchedule({ request, everyMinutes, count: optionNumber(parsed, 'count'), until }, (run, index) => {

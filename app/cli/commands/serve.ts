@@ -49,7 +49,7 @@ Examples:
     const databasePath = resolveDatabasePath(optionString(parsed, 'db'));
 
     const files = await bundleRenderer();
-    const hosted = openHostedService({ databasePath, maxStimulusVpp, simulatedBench: simulated ? { timeScale } : undefined });
+    const hosted = await openHostedService(databasePath, { maxStimulusVpp, simulatedBench: simulated ? { timeScale } : undefined });
     let webHost: Awaited<ReturnType<typeof startWebHost>>;
     try {
       webHost = await startWebHost({

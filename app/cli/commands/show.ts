@@ -3,7 +3,7 @@ import { optionFlag, optionString, requirePositional } from '../args';
 import { formatEngineering } from '../../units';
 import { ValidationError } from '../../errors';
 import { PointFlag } from '../../contract/contract';
-import { RolloffService } from '../../service/service';
+import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';
 import { runDetailText } from '../../sweep/cli/summary-text';
@@ -23,14 +23,14 @@ export const showCommand: CommandSpec = {
   ],
   async run(parsed) {
     const runId = parseRunId(requirePositional(parsed, 0, 'RUN'));
-    const service = new RolloffService({ databasePath: resolveDatabasePath(optionString(parsed, 'db')) });
+    const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
     try {
       const detail = await service.getRun(runId);
       if (optionFlag(parsed, 'json')) {
         process.stdout.write(JSON.stringify(detail) + '\n');
         return 0;
       }
-      process.stdout.write(runDetailText(detail, diodeOfRun(service.store, runId)));
+      process.stdout.write(runDetailText(detail, await diodeOfRun(service.store, runId)));
       if (optionFlag(parsed, 'points')) {
         const p = detail.points;
         process.stdout.write(`\n${'step'.padEnd(5)} ${(detail.kind === 'ac' ? 'frequency' : 'input').padEnd(12)} ${'amplitude'.padEnd(11)} ${(detail.kind === 'ac' ? 'gain dB' : 'output V').padEnd(16)} ${'phase °'.padEnd(16)} flags\n`);

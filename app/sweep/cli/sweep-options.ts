@@ -7,7 +7,8 @@ import { readFileSync } from 'node:fs';
 import type { OptionSpec, ParsedArgs } from '../../cli/args';
 import { optionFlag, optionNumber, optionString } from '../../cli/args';
 import { ValidationError } from '../../errors';
-import { RolloffService } from '../../service/service';
+import type { RolloffService } from '../../service/service';
+import { openServiceAt } from '../../service/open-service';
 import type { SweepRequest, VerdictLimits } from '../../contract/contract';
 import { resolveDatabasePath } from '../../store';
 import { DEFAULT_PROFILE_ID } from '../../bench';
@@ -57,11 +58,10 @@ export const BUILD_OPTIONS: OptionSpec[] = [
 ];
 
 /** Opens the service on --db; the simulated bench options apply when --simulated is used. */
-export function openService(parsed: ParsedArgs, overrides: { timeScale?: number; latencyS?: number } = {}): RolloffService {
+export async function openService(parsed: ParsedArgs, overrides: { timeScale?: number; latencyS?: number } = {}): Promise<RolloffService> {
   const timeScale = overrides.timeScale ?? optionNumber(parsed, 'time-scale') ?? 1;
   if (!(timeScale > 0)) throw new ValidationError('--time-scale', `${timeScale} is not a positive number`);
-  return new RolloffService({
-    databasePath: resolveDatabasePath(optionString(parsed, 'db')),
+  return openServiceAt(resolveDatabasePath(optionString(parsed, 'db')), {
     maxStimulusVpp: optionNumber(parsed, 'max-amplitude'),
     giveUpAfterS: optionNumber(parsed, 'give-up') ?? 120,
     simulatedBench: { timeScale, noiseVrms: optionNumber(parsed, 'noise') ?? 1e-4, latencyS: overrides.latencyS ?? 0 },
@@ -97,7 +97,7 @@ async function resolveBuildId(service: RolloffService, parsed: ParsedArgs): Prom
   const buildId = optionNumber(parsed, 'build');
   const designFile = optionString(parsed, 'design');
   if (buildId !== undefined && designFile !== undefined) throw new ValidationError('--build/--design', 'give one, not both');
-  if (buildId !== undefined) return service.store.getBuild(buildId).id;
+  if (buildId !== undefined) return (await service.store.getBuild(buildId)).id;
   if (designFile === undefined) throw new ValidationError('--build', 'is missing', 'Give --build ID (see rolloff build list) or --design FILE.json [--label TEXT] [--actual PART=VALUE …].');
   const design = readJsonFile(designFile, '--design');
   const actualValues = actualValuesFrom(parsed);

@@ -16,7 +16,8 @@ export interface RecoveryOptions {
   firstBackoffS?: number;
   maxBackoffS?: number;
   reconnect(): Promise<void>;
-  log(level: 'info' | 'warning' | 'error', message: string): void;
+  /** Stores and announces a run event; awaited so events keep their order. */
+  log(level: 'info' | 'warning' | 'error', message: string): void | Promise<void>;
 }
 
 export function isRecoverable(error: unknown): boolean {
@@ -37,15 +38,15 @@ export async function withRecovery<T>(attempt: () => Promise<T>, options: Recove
       firstFailureS ??= nowS;
       const problem = (error as Error).message;
       if (nowS - firstFailureS >= options.giveUpAfterS) throw new SweepGaveUpError(options.runId, options.giveUpAfterS, problem);
-      options.log('warning', `${problem}; reconnecting in ${backoffS.toFixed(1)} s`);
+      await options.log('warning', `${problem}; reconnecting in ${backoffS.toFixed(1)} s`);
       await options.clock.sleepS(backoffS);
       backoffS = Math.min(maxBackoffS, backoffS * 2);
       try {
         await options.reconnect();
-        options.log('info', 'reconnected; repeating the step');
+        await options.log('info', 'reconnected; repeating the step');
       } catch (reconnectError) {
         if (!isRecoverable(reconnectError) && !isConnectFailure(reconnectError)) throw reconnectError;
-        options.log('warning', `reconnect failed: ${(reconnectError as Error).message}`);
+        await options.log('warning', `reconnect failed: ${(reconnectError as Error).message}`);
       }
     }
   }

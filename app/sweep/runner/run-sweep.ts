@@ -6,7 +6,7 @@
 import type { BenchClock } from '../../bench/clock';
 import type { PointColumns, RunEvent, RunProgress, RunStatus, ServiceEvents } from '../../contract/contract';
 import { PointFlag } from '../../contract/contract';
-import type { Store } from '../../store';
+import type { SweepStore } from '../../store';
 import type { RunControl } from './control';
 import { withRecovery } from './recovery';
 import { RemeasureStep } from './errors';
@@ -16,7 +16,8 @@ const MAX_REMEASURE = 8;
 import type { StepMeasurer, StepSetting, SweepInstruments } from './types';
 
 export interface SweepRunOptions {
-  store: Store;
+  /** Only the few store methods a sweep uses: a fake of them drives the runner in tests. */
+  store: SweepStore;
   runId: number;
   clock: BenchClock;
   control: RunControl;
@@ -33,13 +34,13 @@ export interface SweepRunOptions {
 
 export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
   const { store, runId, clock, control } = options;
-  const log = (level: RunEvent['level'], message: string) => {
-    const event = store.appendEvent(runId, level, message);
+  const log = async (level: RunEvent['level'], message: string) => {
+    const event = await store.appendEvent(runId, level, message);
     options.emit('runEvent', { runId, ...event });
   };
-  const firstStep = store.nextStep(runId);
-  store.updateRunStatus(runId, 'running');
-  log('info', firstStep === 0 ? 'sweep started' : `sweep continued at step ${firstStep}`);
+  const firstStep = await store.nextStep(runId);
+  await store.updateRunStatus(runId, 'running');
+  await log('info', firstStep === 0 ? 'sweep started' : `sweep continued at step ${firstStep}`);
 
   let instruments: SweepInstruments | undefined;
   const reconnect = async () => {
@@ -50,7 +51,7 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
 
   let queue = options.plannedSteps.filter((s) => s.step >= firstStep);
   // Steps stored so far plus steps still queued (refinement may add more later).
-  const total = () => store.nextStep(runId) + queue.length;
+  const total = async () => (await store.nextStep(runId)) + queue.length;
   const startedS = clock.nowS();
   let physicalDoneS = 0;
 
@@ -58,8 +59,8 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
     await withRecovery(reconnect, recovery);
     for (;;) {
       if (queue.length === 0 && options.nextExtraSteps) {
-        queue = options.nextExtraSteps(store.loadPoints(runId), store.nextStep(runId));
-        if (queue.length > 0) log('info', `refinement: ${queue.length} extra point(s) near the −3 dB and gain-limit points`);
+        queue = options.nextExtraSteps(await store.loadPoints(runId), await store.nextStep(runId));
+        if (queue.length > 0) await log('info', `refinement: ${queue.length} extra point(s) near the −3 dB and gain-limit points`);
       }
       const setting = queue[0];
       if (!setting) break;
@@ -78,13 +79,13 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
             return value;
           } catch (error) {
             if (!(error instanceof RemeasureStep) || tries >= MAX_REMEASURE) throw error;
-            log('info', `step ${setting.step}: ${error.message}; measuring it again`);
+            await log('info', `step ${setting.step}: ${error.message}; measuring it again`);
           }
         }
       };
       const { value: result, retried } = await withRecovery(attempt, recovery);
       const flags = result.flags | (retried ? PointFlag.retried : 0) | (setting.refinement ? PointFlag.refinement : 0);
-      store.insertPoint(runId, {
+      await store.insertPoint(runId, {
         step: setting.step,
         stimulus: setting.stimulus,
         amplitudeVpp: setting.amplitudeVpp,
@@ -98,33 +99,35 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
         flags,
       });
       queue.shift();
-      if (result.advice) log('warning', result.advice);
-      if (result.note) log('info', result.note);
+      if (result.advice) await log('warning', result.advice);
+      if (result.note) await log('info', result.note);
       options.emit('point', {
         runId, index: setting.step, stimulus: setting.stimulus, gainDb: result.gainDb, phaseDeg: result.phaseDeg,
         outputV: result.outputV, flags, gainUncertaintyDb: result.gainUncertaintyDb, phaseUncertaintyDeg: result.phaseUncertaintyDeg,
       });
       physicalDoneS += setting.settleS + setting.averages * setting.integrateS;
-      options.emit('progress', progress(runId, setting.step + 1, total(), etaS(queue, clock.nowS() - startedS, physicalDoneS) / clock.timeScale, 'running'));
+      options.emit('progress', progress(runId, setting.step + 1, await total(), etaS(queue, clock.nowS() - startedS, physicalDoneS) / clock.timeScale, 'running'));
     }
     await outputOff(instruments, log);
-    store.updateRunStatus(runId, 'done');
-    log('info', 'sweep finished');
-    options.emit('progress', progress(runId, total(), total(), 0, 'done'));
+    await store.updateRunStatus(runId, 'done');
+    await log('info', 'sweep finished');
+    const done = await total();
+    options.emit('progress', progress(runId, done, done, 0, 'done'));
     return 'done';
   } catch (error) {
     await outputOff(instruments, log);
-    store.updateRunStatus(runId, 'failed');
-    log('error', `sweep failed: ${(error as Error).message}`);
-    options.emit('progress', progress(runId, store.nextStep(runId), total(), 0, 'failed'));
+    await store.updateRunStatus(runId, 'failed');
+    await log('error', `sweep failed: ${(error as Error).message}`);
+    options.emit('progress', progress(runId, await store.nextStep(runId), await total(), 0, 'failed'));
     throw error;
   }
 
   async function halt(status: 'stopped' | 'paused'): Promise<RunStatus> {
     await outputOff(instruments, log);
-    store.updateRunStatus(runId, status);
-    log('info', status === 'paused' ? `paused before step ${store.nextStep(runId)}` : 'stopped by the user');
-    options.emit('progress', progress(runId, store.nextStep(runId), total(), 0, status));
+    await store.updateRunStatus(runId, status);
+    const nextStep = await store.nextStep(runId);
+    await log('info', status === 'paused' ? `paused before step ${nextStep}` : 'stopped by the user');
+    options.emit('progress', progress(runId, nextStep, await total(), 0, status));
     return status;
   }
 }
@@ -141,11 +144,11 @@ function etaS(queue: StepSetting[], elapsedS: number, physicalDoneS: number): nu
 }
 
 /** The generator is switched off whenever a sweep leaves the running state: nothing stays driven unattended. */
-async function outputOff(instruments: SweepInstruments | undefined, log: (level: RunEvent['level'], message: string) => void): Promise<void> {
+async function outputOff(instruments: SweepInstruments | undefined, log: (level: RunEvent['level'], message: string) => Promise<void>): Promise<void> {
   if (!instruments) return;
   try {
     await instruments.generator.setOutput(false);
   } catch (error) {
-    log('warning', `could not switch the generator output off: ${(error as Error).message}`);
+    await log('warning', `could not switch the generator output off: ${(error as Error).message}`);
   }
 }

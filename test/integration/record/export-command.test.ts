@@ -15,7 +15,7 @@ import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { readCsv, recordFromJson, type ComparisonRecord, type RunRecord } from '../../../app/record';
-import { RolloffService } from '../../../app/service/service';
+import { openServiceAt } from '../../../app/service/open-service';
 import type { RunDetail, SweepRequest } from '../../../app/contract/contract';
 import { main } from '../../../app/cli/main';
 import { requireTool } from '../../helpers/required-tool';
@@ -114,7 +114,7 @@ function request(buildId: number): SweepRequest {
 let before: DatabaseState;
 
 beforeAll(async () => {
-  const service = new RolloffService({ databasePath, maxStimulusVpp: 1, simulatedBench: { timeScale: 50, noiseVrms: 1e-4, link: 'tcp' } });
+  const service = await openServiceAt(databasePath, { maxStimulusVpp: 1, simulatedBench: { timeScale: 50, noiseVrms: 1e-4, link: 'tcp' } });
   try {
     // Inverting low-pass, gain −10, corner 1/(2π·10 kΩ·15 nF) ≈ 1.06 kHz (template defaults).
     const design = await service.saveDesign(makeDesignFromTemplate('inverting-lowpass', {}));
@@ -258,7 +258,7 @@ describe('rolloff export on a real simulated-bench run', () => {
 
 describe('the unchanged-database check', () => {
   it('does notice a write (guards against a vacuous pass)', async () => {
-    const service = new RolloffService({ databasePath });
+    const service = await openServiceAt(databasePath);
     try {
       await service.createBuild({ designId: details[0].request.buildId ? (await service.listBuilds())[0].designId : 1, label: 'written after the exports', notes: '', actualValues: {} });
     } finally {

@@ -1,17 +1,17 @@
 /**
  * Child process for the durability test: stores points one at a time, then
- * kills itself with SIGKILL right after the last insertPoint returns — no
+ * kills itself with SIGKILL right after the last insertPoint resolves — no
  * close(), no exit handlers, no chance to flush anything.
  * Usage: node --import tsx kill-after-insert.ts DB_PATH RUN_ID COUNT
  */
-import { Store } from '../../../app/store';
+import { SqliteStore } from '../../../app/store';
 
 const [path, runIdText, countText] = process.argv.slice(2);
-const store = Store.open(path);
+const store = SqliteStore.open(path);
 const runId = Number(runIdText);
 const count = Number(countText);
 for (let step = 0; step < count; step++) {
-  store.insertPoint(runId, {
+  await store.insertPoint(runId, {
     step,
     stimulus: 100 * (step + 1),
     amplitudeVpp: 1,

@@ -3,8 +3,8 @@
  * the database and prints the migrations this process applied as JSON.
  * Usage: node --import tsx open-and-report.ts DB_PATH
  */
-import { Store } from '../../../app/store';
+import { SqliteStore } from '../../../app/store';
 
-const store = Store.open(process.argv[2]);
+const store = SqliteStore.open(process.argv[2]);
 process.stdout.write(JSON.stringify(store.appliedMigrations) + '\n');
-store.close();
+await store.close();

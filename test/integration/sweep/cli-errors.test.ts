@@ -6,7 +6,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
 import { existsSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
-import { Store } from '../../../app/store';
+import { SqliteStore } from '../../../app/store';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { tempFolder } from './helpers';
 
@@ -33,14 +33,14 @@ describe('sweep command errors', () => {
     expect(result.stderr).not.toMatch(/\n\s+at /); // no stack trace
   });
 
-  it('left no design, build or run behind', () => {
+  it('left no design, build or run behind', async () => {
     if (!existsSync(db)) return expect(existsSync(db)).toBe(false);
-    const store = Store.open(db, { readonly: true });
+    const store = SqliteStore.open(db, { readonly: true });
     try {
-      expect(store.listRuns()).toEqual([]);
-      expect(store.listBuilds()).toEqual([]);
+      expect(await store.listRuns()).toEqual([]);
+      expect(await store.listBuilds()).toEqual([]);
     } finally {
-      store.close();
+      await store.close();
     }
   });
 });

@@ -5,7 +5,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
-import { RolloffService } from '../../../app/service/service';
+import type { RolloffService } from '../../../app/service/service';
+import { openServiceAt } from '../../../app/service/open-service';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { sweepRequest, tempFolder } from './helpers';
 
@@ -15,7 +16,7 @@ describe('compareRuns', () => {
   const runIds: number[] = [];
 
   beforeAll(async () => {
-    service = new RolloffService({ databasePath: join(folder.path, 'cmp.sqlite'), maxStimulusVpp: 1, simulatedBench: { timeScale: 50 } });
+    service = await openServiceAt(join(folder.path, 'cmp.sqlite'), { maxStimulusVpp: 1, simulatedBench: { timeScale: 50 } });
     const design = await service.saveDesign(makeDesignFromTemplate('inverting-lowpass', { cf: 15e-9 }));
     for (const [label, cf] of [['as drawn', 15e-9], ['double CF', 30e-9]] as const) {
       const build = await service.createBuild({ designId: design.id, label, notes: '', actualValues: { CF: cf } });

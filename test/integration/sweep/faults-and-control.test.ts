@@ -8,7 +8,8 @@
  */
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
-import { RolloffService } from '../../../app/service/service';
+import type { RolloffService } from '../../../app/service/service';
+import { openServiceAt } from '../../../app/service/open-service';
 import { PointFlag } from '../../../app/contract/contract';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { sweepRequest, tempFolder } from './helpers';
@@ -20,7 +21,7 @@ describe('faults and run control', () => {
 
   beforeEach(async () => {
     folder = tempFolder();
-    service = new RolloffService({ databasePath: join(folder.path, 'runs.sqlite'), maxStimulusVpp: 1, giveUpAfterS: 20, simulatedBench: { timeScale: 50 } });
+    service = await openServiceAt(join(folder.path, 'runs.sqlite'), { maxStimulusVpp: 1, giveUpAfterS: 20, simulatedBench: { timeScale: 50 } });
     const design = await service.saveDesign(makeDesignFromTemplate('inverting-lowpass', {}));
     buildId = (await service.createBuild({ designId: design.id, label: 'A', notes: '', actualValues: {} })).id;
     await service.startSimulatedBenchForBuild(buildId);

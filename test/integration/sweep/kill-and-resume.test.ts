@@ -10,21 +10,21 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { spawn, spawnSync } from 'node:child_process';
 import { writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
-import { Store } from '../../../app/store';
+import { SqliteStore } from '../../../app/store';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { tempFolder } from './helpers';
 
 const ROOT = resolve(__dirname, '../../..');
 const BIN = join(ROOT, 'app/cli/bin.mjs');
 
-function countPoints(dbPath: string): number {
+async function countPoints(dbPath: string): Promise<number> {
   try {
-    const store = Store.open(dbPath, { readonly: true });
+    const store = SqliteStore.open(dbPath, { readonly: true });
     try {
-      const run = store.listRuns({ limit: 1 })[0];
-      return run ? store.loadPoints(run.id).step.length : 0;
+      const [run] = await store.listRuns({ limit: 1 });
+      return run ? (await store.loadPoints(run.id)).step.length : 0;
     } finally {
-      store.close();
+      await store.close();
     }
   } catch {
     return 0; // not created yet
@@ -48,19 +48,19 @@ describe('SIGKILL in the middle of a sweep, then resume', () => {
     const exited = new Promise<NodeJS.Signals | null>((done) => child.on('exit', (_code, signal) => done(signal)));
 
     const deadline = Date.now() + 30_000;
-    while (countPoints(dbPath) < 4) {
+    while ((await countPoints(dbPath)) < 4) {
       if (Date.now() > deadline) throw new Error(`sweep made no progress: ${stderr}`);
       await new Promise((r) => setTimeout(r, 50));
     }
     child.kill('SIGKILL');
     expect(await exited).toBe('SIGKILL');
 
-    const before = Store.open(dbPath, { readonly: true });
-    const run = before.listRuns({ limit: 1 })[0];
-    const pointsBefore = before.loadPoints(run.id);
+    const before = SqliteStore.open(dbPath, { readonly: true });
+    const [run] = await before.listRuns({ limit: 1 });
+    const pointsBefore = await before.loadPoints(run.id);
     expect(run.status).toBe('running'); // nobody marked it: the process died
-    expect(before.findInterruptedRuns().map((r) => r.id)).toContain(run.id);
-    before.close();
+    expect((await before.findInterruptedRuns()).map((r) => r.id)).toContain(run.id);
+    await before.close();
     expect(pointsBefore.step.length).toBeGreaterThanOrEqual(4);
     expect(pointsBefore.step.length).toBeLessThan(run.plannedCount);
 
@@ -71,10 +71,10 @@ describe('SIGKILL in the middle of a sweep, then resume', () => {
     expect(resumed.status, resumed.stderr).toBe(0);
     expect(resumed.stderr).toMatch(new RegExp(`run ${run.id} continues at step ${pointsBefore.step.length}`));
 
-    const after = Store.open(dbPath, { readonly: true });
-    const finished = after.getRun(run.id);
-    const pointsAfter = after.loadPoints(run.id);
-    after.close();
+    const after = SqliteStore.open(dbPath, { readonly: true });
+    const finished = await after.getRun(run.id);
+    const pointsAfter = await after.loadPoints(run.id);
+    await after.close();
     expect(finished.status).toBe('done');
     // Steps 0..n−1 exactly once each: nothing lost, nothing repeated.
     expect(pointsAfter.step).toEqual(pointsAfter.step.map((_, i) => i));

@@ -7,7 +7,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
-import { RolloffService } from '../../../app/service/service';
+import type { RolloffService } from '../../../app/service/service';
+import { openServiceAt } from '../../../app/service/open-service';
 import type { RunDetail } from '../../../app/contract/contract';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { SIM_SOURCE_IMPEDANCE_OHM } from '../../../app/sim';
@@ -30,7 +31,7 @@ describe('meter sweeps with through-calibration', () => {
   let calibrated: RunDetail;
 
   beforeAll(async () => {
-    service = new RolloffService({ databasePath: join(folder.path, 'meter.sqlite'), maxStimulusVpp: 1, simulatedBench: { timeScale: 50 } });
+    service = await openServiceAt(join(folder.path, 'meter.sqlite'), { maxStimulusVpp: 1, simulatedBench: { timeScale: 50 } });
     const design = await service.saveDesign(makeDesignFromTemplate('inverting-lowpass', {}));
     buildId = (await service.createBuild({ designId: design.id, label: 'meter', notes: '', actualValues: {} })).id;
     await service.startSimulatedBenchForBuild(buildId);
@@ -78,7 +79,7 @@ describe('DC transfer sweep of the log stage', () => {
   const IS_A = 10e-15;
 
   beforeAll(async () => {
-    service = new RolloffService({ databasePath: join(folder.path, 'dc.sqlite'), maxStimulusVpp: 20, simulatedBench: { timeScale: 50, noiseVrms: 1e-4 } });
+    service = await openServiceAt(join(folder.path, 'dc.sqlite'), { maxStimulusVpp: 20, simulatedBench: { timeScale: 50, noiseVrms: 1e-4 } });
     const design = await service.saveDesign(makeDesignFromTemplate('log-stage', { r: R_OHM, is: IS_A, n: 1, rs: 0 }));
     const buildId = (await service.createBuild({ designId: design.id, label: 'log', notes: '', actualValues: {} })).id;
     await service.startSimulatedBenchForBuild(buildId);

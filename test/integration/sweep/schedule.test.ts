@@ -5,7 +5,7 @@
  */
 import { afterAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
-import { RolloffService } from '../../../app/service/service';
+import { openServiceAt } from '../../../app/service/open-service';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { sweepRequest, tempFolder } from './helpers';
 
@@ -15,7 +15,7 @@ describe('schedules', () => {
 
   it('runs N repetitions at the interval and summarises drift over them', async () => {
     // 60 bench seconds per wall second: a 1-minute interval takes 1 s.
-    const service = new RolloffService({ databasePath: join(folder.path, 'sched.sqlite'), maxStimulusVpp: 1, simulatedBench: { timeScale: 60 } });
+    const service = await openServiceAt(join(folder.path, 'sched.sqlite'), { maxStimulusVpp: 1, simulatedBench: { timeScale: 60 } });
     try {
       const design = await service.saveDesign(makeDesignFromTemplate('inverting-lowpass', {}));
       const buildId = (await service.createBuild({ designId: design.id, label: 'overnight', notes: '', actualValues: {} })).id;
@@ -23,7 +23,7 @@ describe('schedules', () => {
       const startedAt: number[] = [];
       const report = await service.runSchedule({ request: sweepRequest(buildId, { from: 100, to: 10e3, pointsPerDecade: 3, refine: false }), everyMinutes: 1, count: 3 }, (_run, _index, slotS) => startedAt.push(slotS));
       expect(report.runs.map((r) => r.status)).toEqual(['done', 'done', 'done']);
-      for (const run of report.runs) expect(service.store.getRun(run.runId).scheduleId).toBe(report.scheduleId);
+      for (const run of report.runs) expect((await service.store.getRun(run.runId)).scheduleId).toBe(report.scheduleId);
       // Slots one interval (60 bench seconds) apart: not early (beyond timer rounding); late only by timer slack. CI runs this
       // beside Chromium on two cores, so allow up to ~0.8 s of wall time (50 bench seconds) — still far from a wrong unit
       // (seconds for minutes) or a doubled interval.

@@ -11,7 +11,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
-import { RolloffService } from '../../../app/service/service';
+import type { RolloffService } from '../../../app/service/service';
+import { openServiceAt } from '../../../app/service/open-service';
 import type { SweepRequest } from '../../../app/contract/contract';
 import { startSimulatedBench, type GeneratorOutput, type SimulatedBench } from '../../../app/sim';
 import { tempFolder } from './helpers';
@@ -49,7 +50,7 @@ describe('the runner never acquires before the settle time since the last stimul
       windows.push({ startS, endS: startS + durationS });
       return sampleStratified(node, startS, durationS, count);
     };
-    service = new RolloffService({ databasePath: join(folder.path, 'settle.sqlite'), maxStimulusVpp: 1 });
+    service = await openServiceAt(join(folder.path, 'settle.sqlite'), { maxStimulusVpp: 1 });
     const design = await service.saveDesign(designFile);
     buildId = (await service.createBuild({ designId: design.id, label: 'settle check', notes: '', actualValues: {} })).id;
     for (const role of ['generator', 'meter', 'scope'] as const) await service.connect({ role, address: bench.addresses[role], profileId: `scpi-${role}` });

@@ -6,7 +6,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
-import { RolloffService } from '../../../app/service/service';
+import type { RolloffService } from '../../../app/service/service';
+import { openServiceAt } from '../../../app/service/open-service';
 import type { RunDetail } from '../../../app/contract/contract';
 import { invertingGain100, sweepRequest, tempFolder } from './helpers';
 import { requireTool } from '../../helpers/required-tool';
@@ -19,7 +20,7 @@ describe.skipIf(!hasSocat)('sweep on the simulated bench over a pseudo-terminal 
   let detail: RunDetail;
 
   beforeAll(async () => {
-    service = new RolloffService({ databasePath: join(folder.path, 'pty.sqlite'), maxStimulusVpp: 1, simulatedBench: { timeScale: 50, link: 'pty' } });
+    service = await openServiceAt(join(folder.path, 'pty.sqlite'), { maxStimulusVpp: 1, simulatedBench: { timeScale: 50, link: 'pty' } });
     const design = await service.saveDesign(invertingGain100());
     const build = await service.createBuild({ designId: design.id, label: 'serial', notes: '', actualValues: {} });
     await service.startSimulatedBenchForBuild(build.id);

@@ -7,7 +7,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
-import { RolloffService } from '../../../app/service/service';
+import type { RolloffService } from '../../../app/service/service';
+import { openServiceAt } from '../../../app/service/open-service';
 import type { RunDetail } from '../../../app/contract/contract';
 import { PointFlag } from '../../../app/contract/contract';
 import { invertingGain100, sweepRequest, tempFolder } from './helpers';
@@ -21,7 +22,7 @@ describe('sweep on the simulated bench over TCP', () => {
   const progress: Array<{ step: number; total: number; etaS: number; status: string }> = [];
 
   beforeAll(async () => {
-    service = new RolloffService({ databasePath: join(folder.path, 'bench.sqlite'), maxStimulusVpp: 1, simulatedBench: { timeScale: 50, noiseVrms: 1e-4, link: 'tcp' } });
+    service = await openServiceAt(join(folder.path, 'bench.sqlite'), { maxStimulusVpp: 1, simulatedBench: { timeScale: 50, noiseVrms: 1e-4, link: 'tcp' } });
     service.on('point', (p) => pointsSeen.push(p.index));
     service.on('traffic', (t) => trafficRoles.add(t.role));
     service.on('progress', (p) => progress.push(p));

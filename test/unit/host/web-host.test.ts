@@ -85,7 +85,7 @@ describe('web host in token mode (127.0.0.2, token forced)', () => {
 
   beforeAll(async () => {
     dir = mkdtempSync(join(tmpdir(), 'rolloff-host-'));
-    hosted = openHostedService({ databasePath: join(dir, 'bench.sqlite') });
+    hosted = await openHostedService(join(dir, 'bench.sqlite'));
     host = await startWebHost({ api: hosted.api, subscribe: hosted.subscribe, files: FILES, host: '127.0.0.2', port: 0, requireToken: true, log: () => {} });
     base = `http://127.0.0.2:${host.port}/`;
   });
@@ -154,7 +154,7 @@ describe('web host on loopback: malformed calls', () => {
   beforeAll(async () => {
     dir = mkdtempSync(join(tmpdir(), 'rolloff-host-'));
     dbPath = join(dir, 'bench.sqlite');
-    hosted = openHostedService({ databasePath: dbPath });
+    hosted = await openHostedService(dbPath);
     host = await startWebHost({ api: hosted.api, subscribe: hosted.subscribe, files: FILES, host: '127.0.0.1', port: 0, log: () => {} });
     base = host.url;
   });

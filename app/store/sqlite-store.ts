@@ -1,5 +1,6 @@
 /**
- * The SQLite store (better-sqlite3, synchronous). One Store per database file;
+ * The SQLite store (better-sqlite3, synchronous), one implementation of
+ * RolloffStore: its promises resolve at once. One SqliteStore per database file;
  * statements are prepared once; each measured point commits on its own with
  * synchronous=FULL so a power cut loses at most the point being written.
  * Rows become contract types here and nowhere else.
@@ -11,7 +12,6 @@ import { ValidationError } from '../errors';
 import type {
   BuildRecord,
   DesignRecord,
-  InstrumentIdentity,
   PointColumns,
   RunEvent,
   RunFigures,
@@ -28,15 +28,22 @@ import {
   StoreVersionError,
 } from './errors';
 import { describeFileDamage } from './file-check';
+import { identityKey } from './identity-key';
 import { applyMigrations, latestVersion, loadMigrations, schemaVersionOf, writerAppVersion } from './migrations';
+import type { RolloffStore } from './store-interface';
 import type {
+  BenchSettings,
+  BenchSettingsInput,
   CalibrationRecord,
   InstrumentRecord,
   InstrumentSighting,
+  NewBuild,
   NewCalibration,
+  NewDesign,
   NewPoint,
   NewRun,
   NewSchedule,
+  PointBatch,
   RunFilter,
   ScheduleRecord,
   StoreOpenOptions,
@@ -97,19 +104,20 @@ function likePattern(search: string): string {
   return `%${search.replace(/[\\%_]/g, (c) => '\\' + c)}%`;
 }
 
-export class Store {
-  readonly path: string;
+export class SqliteStore implements RolloffStore {
+  /** The database file (or ':memory:'). */
+  readonly location: string;
   readonly readonly: boolean;
   /** Schema versions applied by this open (empty when the file was current). */
-  readonly appliedMigrations: number[];
+  readonly appliedMigrations: readonly number[];
   private readonly db: Database.Database;
   private readonly now: () => string;
-  private readonly statements: ReturnType<Store['prepareStatements']>;
+  private readonly statements: ReturnType<SqliteStore['prepareStatements']>;
   private readonly insertPointTransaction: (runId: number, point: NewPoint) => void;
-  private readonly insertPointsTransaction: (runId: number, points: readonly NewPoint[]) => void;
+  private readonly insertPointsTransaction: (batches: readonly PointBatch[]) => void;
 
   private constructor(path: string, db: Database.Database, readonly_: boolean, applied: number[], now: () => string) {
-    this.path = path;
+    this.location = path;
     this.db = db;
     this.readonly = readonly_;
     this.appliedMigrations = applied;
@@ -119,9 +127,11 @@ export class Store {
       this.bindPoint(runId, point);
       this.statements.countPoints.run(1, runId);
     });
-    this.insertPointsTransaction = db.transaction((runId: number, points: readonly NewPoint[]) => {
-      for (const point of points) this.bindPoint(runId, point);
-      this.statements.countPoints.run(points.length, runId);
+    this.insertPointsTransaction = db.transaction((batches: readonly PointBatch[]) => {
+      for (const { runId, points } of batches) {
+        for (const point of points) this.bindPoint(runId, point);
+        this.statements.countPoints.run(points.length, runId);
+      }
     });
   }
 
@@ -129,7 +139,7 @@ export class Store {
    * Opens (creating if needed) and migrates a database. A damaged or foreign
    * file, or one from a newer Rolloff, is refused before anything is written.
    */
-  static open(path: string, options: StoreOpenOptions = {}): Store {
+  static open(path: string, options: StoreOpenOptions = {}): SqliteStore {
     const readonly = options.readonly === true;
     const now = options.now ?? isoNow;
     const migrations = loadMigrations(options.migrationsDir);
@@ -190,10 +200,10 @@ export class Store {
         }
       } else {
         if (!inMemory) db.pragma('journal_mode = WAL');
-        db.pragma('synchronous = FULL'); // DESIGN.md: each point committed with full durability
+        db.pragma('synchronous = FULL'); // each point committed with full durability (store-interface.ts)
         applied = applyMigrations(db, migrations, SOFTWARE_VERSION, now);
       }
-      return new Store(path, db, readonly, applied, now);
+      return new SqliteStore(path, db, readonly, applied, now);
     } catch (error) {
       db.close();
       if (isDamageCode(sqliteCode(error))) throw new StoreDamagedError(path, (error as Error).message);
@@ -201,11 +211,11 @@ export class Store {
     }
   }
 
-  get schemaVersion(): number {
-    return schemaVersionOf(this.db);
+  async schemaVersion(): Promise<number> {
+    return this.guard(() => schemaVersionOf(this.db));
   }
 
-  close(): void {
+  async close(): Promise<void> {
     if (this.db.open) this.db.close();
   }
 
@@ -259,6 +269,9 @@ export class Store {
       insertSchedule: db.prepare(`INSERT INTO schedules (build_id, request_json, every_minutes, run_count, until_at, created_at)
         VALUES (?, ?, ?, ?, ?, ?)`),
       getSchedule: db.prepare('SELECT * FROM schedules WHERE id = ?'),
+      getBenchSettings: db.prepare('SELECT * FROM bench_settings WHERE bench_key = ?'),
+      saveBenchSettings: db.prepare(`INSERT INTO bench_settings (bench_key, max_stimulus_vpp, updated_at) VALUES (?, ?, ?)
+        ON CONFLICT (bench_key) DO UPDATE SET max_stimulus_vpp = excluded.max_stimulus_vpp, updated_at = excluded.updated_at`),
     };
   }
 
@@ -268,58 +281,66 @@ export class Store {
       return operation();
     } catch (error) {
       const code = sqliteCode(error);
-      if (isDamageCode(code)) throw new StoreDamagedError(this.path, (error as Error).message);
+      if (isDamageCode(code)) throw new StoreDamagedError(this.location, (error as Error).message);
       if (code === 'SQLITE_READONLY') {
-        throw new StoreUnavailableError(this.path, 'is open read-only', 'Open the database without read-only to change it.');
+        throw new StoreUnavailableError(this.location, 'is open read-only', 'Open the database without read-only to change it.');
       }
       throw error;
     }
   }
 
   private requireWritable(): void {
-    if (this.readonly) throw new StoreUnavailableError(this.path, 'is open read-only', 'Open the database without read-only to change it.');
+    if (this.readonly) throw new StoreUnavailableError(this.location, 'is open read-only', 'Open the database without read-only to change it.');
   }
 
   // ── designs and builds ─────────────────────────────────────────────────
 
-  saveDesign(input: { name: string; design: unknown }): DesignRecord {
+  async saveDesign(input: NewDesign): Promise<DesignRecord> {
     this.requireWritable();
     const name = requireText(input.name, 'design.name').trim();
     if (name.length === 0) throw new ValidationError('design.name', 'is empty', 'Give the design a name.');
     const createdAt = this.now();
     const result = this.guard(() => this.statements.insertDesign.run(name, toJson(input.design, 'design'), createdAt));
-    return this.getDesign(Number(result.lastInsertRowid));
+    return this.designById(Number(result.lastInsertRowid));
   }
 
-  getDesign(designId: number): DesignRecord {
+  async getDesign(designId: number): Promise<DesignRecord> {
+    return this.designById(designId);
+  }
+
+  private designById(designId: number): DesignRecord {
     const row = this.guard(() => this.statements.getDesign.get(requireId(designId, 'designId'))) as Row | undefined;
     if (!row) throw new RecordNotFoundError('design', designId);
     return designFromRow(row);
   }
 
-  listDesigns(): DesignRecord[] {
+  async listDesigns(): Promise<DesignRecord[]> {
     return this.guard(() => this.statements.listDesigns.all() as Row[]).map(designFromRow);
   }
 
-  createBuild(input: { designId: number; label: string; notes: string; actualValues: Record<string, number> }): BuildRecord {
+  async createBuild(input: NewBuild): Promise<BuildRecord> {
     this.requireWritable();
-    this.getDesign(input.designId);
+    this.designById(input.designId);
     const label = requireText(input.label, 'build.label').trim();
     if (label.length === 0) throw new ValidationError('build.label', 'is empty', 'Give the build a label, e.g. "board 3".');
     for (const [partId, value] of Object.entries(input.actualValues ?? {})) requireFinite(value, `build.actualValues.${partId}`);
     const result = this.guard(() =>
       this.statements.insertBuild.run(input.designId, label, requireText(input.notes ?? '', 'build.notes'), toJson(input.actualValues ?? {}, 'build.actualValues'), this.now()),
     );
-    return this.getBuild(Number(result.lastInsertRowid));
+    return this.buildById(Number(result.lastInsertRowid));
   }
 
-  getBuild(buildId: number): BuildRecord {
+  async getBuild(buildId: number): Promise<BuildRecord> {
+    return this.buildById(buildId);
+  }
+
+  private buildById(buildId: number): BuildRecord {
     const row = this.guard(() => this.statements.getBuild.get(requireId(buildId, 'buildId'))) as Row | undefined;
     if (!row) throw new RecordNotFoundError('build', buildId);
     return buildFromRow(row);
   }
 
-  listBuilds(designId?: number): BuildRecord[] {
+  async listBuilds(designId?: number): Promise<BuildRecord[]> {
     const id = designId === undefined ? null : requireId(designId, 'designId');
     return this.guard(() => this.statements.listBuilds.all({ designId: id }) as Row[]).map(buildFromRow);
   }
@@ -327,7 +348,7 @@ export class Store {
   // ── instruments ────────────────────────────────────────────────────────
 
   /** Notes that an identity answered at an address; first sighting is kept, last is updated. */
-  recordInstrument(sighting: InstrumentSighting): InstrumentRecord {
+  async recordInstrument(sighting: InstrumentSighting): Promise<InstrumentRecord> {
     this.requireWritable();
     const identityText = identityKey(sighting.identity);
     const address = requireText(sighting.address, 'instrument.address');
@@ -338,68 +359,80 @@ export class Store {
     return instrumentFromRow(this.statements.getInstrument.get(identityText, address) as Row);
   }
 
-  listInstruments(): InstrumentRecord[] {
+  async listInstruments(): Promise<InstrumentRecord[]> {
     return this.guard(() => this.statements.listInstruments.all() as Row[]).map(instrumentFromRow);
   }
 
   // ── runs ───────────────────────────────────────────────────────────────
 
-  createRun(input: NewRun): StoredRun {
+  async createRun(input: NewRun): Promise<StoredRun> {
     this.requireWritable();
-    this.getBuild(input.buildId);
+    return this.runById(this.guard(() => this.db.transaction(() => this.insertRun(input))()));
+  }
+
+  async createRuns(inputs: readonly NewRun[]): Promise<StoredRun[]> {
+    this.requireWritable();
+    const runIds = this.guard(() => this.db.transaction(() => inputs.map((input) => this.insertRun(input)))());
+    return runIds.map((runId) => this.runById(runId));
+  }
+
+  /** Checks and inserts one run with its plan; the caller holds the transaction. */
+  private insertRun(input: NewRun): number {
+    this.buildById(input.buildId);
     if (input.kind !== 'ac' && input.kind !== 'dc') throw new ValidationError('run.kind', `"${String(input.kind)}" is not ac or dc`);
-    if (input.scheduleId != null) this.getSchedule(input.scheduleId);
+    if (input.scheduleId != null) this.scheduleById(input.scheduleId);
     const plannedCount = Array.isArray(input.plan?.steps) ? input.plan.steps.length : 0;
     const planJson = toJson(input.plan, 'run.plan');
-    const runId = this.transaction(() => {
-      const result = this.statements.insertRun.run(
-        input.buildId,
-        input.kind,
-        toJson(input.request, 'run.request'),
-        plannedCount,
-        this.now(),
-        requireText(input.softwareVersion, 'run.softwareVersion'),
-        toJson(input.bench ?? [], 'run.bench'),
-        requireText(input.operator ?? '', 'run.operator'),
-        requireText(input.notes ?? '', 'run.notes'),
-        input.simulated ? 1 : 0,
-        input.scheduleId ?? null,
-      );
-      const id = Number(result.lastInsertRowid);
-      this.statements.insertPlan.run(id, planJson);
-      return id;
-    });
-    return this.getRun(runId);
+    const result = this.statements.insertRun.run(
+      input.buildId,
+      input.kind,
+      toJson(input.request, 'run.request'),
+      plannedCount,
+      this.now(),
+      requireText(input.softwareVersion, 'run.softwareVersion'),
+      toJson(input.bench ?? [], 'run.bench'),
+      requireText(input.operator ?? '', 'run.operator'),
+      requireText(input.notes ?? '', 'run.notes'),
+      input.simulated ? 1 : 0,
+      input.scheduleId ?? null,
+    );
+    const id = Number(result.lastInsertRowid);
+    this.statements.insertPlan.run(id, planJson);
+    return id;
   }
 
   /** Moves a run to a status; first 'running' stamps the start, a finished status stamps the end. */
-  updateRunStatus(runId: number, status: RunStatus): StoredRun {
+  async updateRunStatus(runId: number, status: RunStatus): Promise<StoredRun> {
     this.requireWritable();
     if (!RUN_STATUSES.includes(status)) {
       throw new ValidationError('run.status', `"${String(status)}" is not a run status`, `Use one of: ${RUN_STATUSES.join(', ')}.`);
     }
     const result = this.guard(() => this.statements.setStatus.run({ status, at: this.now(), finished: FINISHED_STATUSES.has(status) ? 1 : 0, runId: requireId(runId, 'runId') }));
     if (result.changes === 0) throw new RecordNotFoundError('run', runId);
-    return this.getRun(runId);
+    return this.runById(runId);
   }
 
-  setRunResults(runId: number, figures: RunFigures, verdict: Verdict | null): StoredRun {
+  async setRunResults(runId: number, figures: RunFigures, verdict: Verdict | null): Promise<StoredRun> {
     this.requireWritable();
     const result = this.guard(() =>
       this.statements.setResults.run(toJson(figures, 'run.figures'), verdict === null ? null : toJson(verdict, 'run.verdict'), requireId(runId, 'runId')),
     );
     if (result.changes === 0) throw new RecordNotFoundError('run', runId);
-    return this.getRun(runId);
+    return this.runById(runId);
   }
 
-  getRun(runId: number): StoredRun {
+  async getRun(runId: number): Promise<StoredRun> {
+    return this.runById(runId);
+  }
+
+  private runById(runId: number): StoredRun {
     const row = this.guard(() => this.statements.getRun.get(requireId(runId, 'runId'))) as Row | undefined;
     if (!row) throw new RecordNotFoundError('run', runId);
     return storedRunFromRow(row);
   }
 
   /** Newest first. */
-  listRuns(filter: RunFilter = {}): RunSummary[] {
+  async listRuns(filter: RunFilter = {}): Promise<RunSummary[]> {
     if (filter.status !== undefined && !RUN_STATUSES.includes(filter.status)) {
       throw new ValidationError('filter.status', `"${String(filter.status)}" is not a run status`, `Use one of: ${RUN_STATUSES.join(', ')}.`);
     }
@@ -412,9 +445,9 @@ export class Store {
   }
 
   /** Runs left running or paused, e.g. by a crash or power cut; the service offers to resume them. */
-  findInterruptedRuns(): StoredRun[] {
+  async findInterruptedRuns(): Promise<StoredRun[]> {
     const rows = this.guard(() => this.statements.interruptedRuns.all() as Array<{ id: number }>);
-    return rows.map((row) => this.getRun(row.id));
+    return rows.map((row) => this.runById(row.id));
   }
 
   // ── points ─────────────────────────────────────────────────────────────
@@ -460,7 +493,7 @@ export class Store {
   }
 
   /** Stores one point in its own transaction (durable when this returns). A stored step is refused with DuplicateStepError. */
-  insertPoint(runId: number, point: NewPoint): void {
+  async insertPoint(runId: number, point: NewPoint): Promise<void> {
     this.requireWritable();
     requireId(runId, 'runId');
     this.validatePoint(point, 'point');
@@ -468,15 +501,24 @@ export class Store {
   }
 
   /** Stores many points in one transaction (imports, benchmarks); all or nothing. */
-  insertPoints(runId: number, points: readonly NewPoint[]): void {
+  async insertPoints(runId: number, points: readonly NewPoint[]): Promise<void> {
     this.requireWritable();
     requireId(runId, 'runId');
     points.forEach((point, index) => this.validatePoint(point, `points[${index}]`));
-    this.guard(() => this.insertPointsTransaction(runId, points));
+    this.guard(() => this.insertPointsTransaction([{ runId, points }]));
+  }
+
+  async insertPointsOfRuns(batches: readonly PointBatch[]): Promise<void> {
+    this.requireWritable();
+    batches.forEach(({ runId, points }, b) => {
+      requireId(runId, `batches[${b}].runId`);
+      points.forEach((point, index) => this.validatePoint(point, `batches[${b}].points[${index}]`));
+    });
+    this.guard(() => this.insertPointsTransaction(batches));
   }
 
   /** A run's points in step order, columnar as the contract and the charts want them. */
-  loadPoints(runId: number): PointColumns {
+  async loadPoints(runId: number): Promise<PointColumns> {
     requireId(runId, 'runId');
     const rows = this.guard(() => this.statements.loadPoints.all(runId) as unknown[][]);
     if (rows.length === 0 && !this.statements.runExists.get(runId)) throw new RecordNotFoundError('run', runId);
@@ -510,7 +552,7 @@ export class Store {
   }
 
   /** The step a resumed sweep measures next: one past the highest stored step (0 for a fresh run). */
-  nextStep(runId: number): number {
+  async nextStep(runId: number): Promise<number> {
     requireId(runId, 'runId');
     if (!this.statements.runExists.get(runId)) throw new RecordNotFoundError('run', runId);
     return (this.guard(() => this.statements.nextStep.get(runId)) as { next: number }).next;
@@ -518,7 +560,7 @@ export class Store {
 
   // ── events ─────────────────────────────────────────────────────────────
 
-  appendEvent(runId: number, level: RunEvent['level'], message: string, at?: string): RunEvent {
+  async appendEvent(runId: number, level: RunEvent['level'], message: string, at?: string): Promise<RunEvent> {
     this.requireWritable();
     if (!EVENT_LEVELS.has(level)) throw new ValidationError('event.level', `"${String(level)}" is not info, warning or error`);
     const event: RunEvent = { at: at ?? this.now(), level, message: requireText(message, 'event.message') };
@@ -531,13 +573,13 @@ export class Store {
     return event;
   }
 
-  listEvents(runId: number): RunEvent[] {
+  async listEvents(runId: number): Promise<RunEvent[]> {
     return this.guard(() => this.statements.listEvents.all(requireId(runId, 'runId')) as RunEvent[]);
   }
 
   // ── calibrations ───────────────────────────────────────────────────────
 
-  saveCalibration(input: NewCalibration): CalibrationRecord {
+  async saveCalibration(input: NewCalibration): Promise<CalibrationRecord> {
     this.requireWritable();
     const benchKey = requireText(input.benchKey, 'calibration.benchKey');
     if (benchKey.length === 0) throw new ValidationError('calibration.benchKey', 'is empty');
@@ -565,7 +607,7 @@ export class Store {
   }
 
   /** The newest calibration of this bench, or undefined when it was never calibrated. */
-  latestCalibration(benchKey: string): CalibrationRecord | undefined {
+  async latestCalibration(benchKey: string): Promise<CalibrationRecord | undefined> {
     const row = this.guard(() => this.statements.latestCalibration.get(benchKey)) as Row | undefined;
     if (!row) return undefined;
     return {
@@ -582,9 +624,9 @@ export class Store {
 
   // ── schedules ──────────────────────────────────────────────────────────
 
-  createSchedule(input: NewSchedule): ScheduleRecord {
+  async createSchedule(input: NewSchedule): Promise<ScheduleRecord> {
     this.requireWritable();
-    this.getBuild(input.buildId);
+    this.buildById(input.buildId);
     if (!(Number.isFinite(input.everyMinutes) && input.everyMinutes > 0)) {
       throw new ValidationError('schedule.everyMinutes', `${input.everyMinutes} is not a positive number of minutes`);
     }
@@ -598,10 +640,14 @@ export class Store {
     const result = this.guard(() =>
       this.statements.insertSchedule.run(input.buildId, toJson(input.request, 'schedule.request'), input.everyMinutes, count, until, this.now()),
     );
-    return this.getSchedule(Number(result.lastInsertRowid));
+    return this.scheduleById(Number(result.lastInsertRowid));
   }
 
-  getSchedule(scheduleId: number): ScheduleRecord {
+  async getSchedule(scheduleId: number): Promise<ScheduleRecord> {
+    return this.scheduleById(scheduleId);
+  }
+
+  private scheduleById(scheduleId: number): ScheduleRecord {
     const row = this.guard(() => this.statements.getSchedule.get(requireId(scheduleId, 'scheduleId'))) as Row | undefined;
     if (!row) throw new RecordNotFoundError('schedule', scheduleId);
     return {
@@ -616,20 +662,29 @@ export class Store {
   }
 
   /** For maintenance and the benchmark: the database's own consistency check (slow on big files). */
-  integrityProblems(): string[] {
+  async integrityProblems(): Promise<string[]> {
     const rows = this.guard(() => this.db.pragma('quick_check') as Array<{ quick_check: string }>);
     return rows.map((r) => r.quick_check).filter((text) => text !== 'ok');
   }
 
-  /** Runs several store calls in one transaction (bulk work). Nested calls join it. */
-  transaction<T>(work: () => T): T {
-    return this.guard(() => this.db.transaction(work)());
-  }
-}
+  // ── per-bench settings ─────────────────────────────────────────────────
 
-/** One text per identity, so the same instrument at the same address is one row. */
-export function identityKey(identity: InstrumentIdentity): string {
-  return [identity.manufacturer, identity.model, identity.serialNumber, identity.firmware].map((part) => String(part ?? '').trim()).join(',');
+  async getBenchSettings(benchKey: string): Promise<BenchSettings | undefined> {
+    const row = this.guard(() => this.statements.getBenchSettings.get(requireText(benchKey, 'benchKey'))) as Row | undefined;
+    return row ? benchSettingsFromRow(row) : undefined;
+  }
+
+  async saveBenchSettings(benchKey: string, settings: BenchSettingsInput): Promise<BenchSettings> {
+    this.requireWritable();
+    const key = requireText(benchKey, 'benchKey');
+    if (key.length === 0) throw new ValidationError('benchKey', 'is empty');
+    const maxStimulusVpp = settings.maxStimulusVpp;
+    if (maxStimulusVpp !== null && !(typeof maxStimulusVpp === 'number' && Number.isFinite(maxStimulusVpp) && maxStimulusVpp > 0)) {
+      throw new ValidationError('benchSettings.maxStimulusVpp', `${maxStimulusVpp} is not a positive amplitude`, 'Give the largest peak-to-peak voltage the circuit may see, e.g. 2, or null to clear it.');
+    }
+    this.guard(() => this.statements.saveBenchSettings.run(key, maxStimulusVpp, this.now()));
+    return benchSettingsFromRow(this.statements.getBenchSettings.get(key) as Row);
+  }
 }
 
 function designFromRow(row: Row): DesignRecord {
@@ -672,6 +727,10 @@ function summaryFromRow(row: Row): RunSummary {
     plannedCount: row.planned_count as number,
     simulated: row.simulated === 1,
   };
+}
+
+function benchSettingsFromRow(row: Row): BenchSettings {
+  return { benchKey: row.bench_key as string, maxStimulusVpp: (row.max_stimulus_vpp as number | null) ?? null, updatedAt: row.updated_at as string };
 }
 
 function storedRunFromRow(row: Row): StoredRun {
