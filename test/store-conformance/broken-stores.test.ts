@@ -1,0 +1,36 @@
+/**
+ * The conformance suite can fail: each deliberately broken store fails the
+ * checks of the guarantee it breaks, while the same wrapper around a correct
+ * store passes every check.
+ */
+import { describe, expect, it } from 'vitest';
+import { STORE_CONFORMANCE_CHECKS, failingChecks } from './store-conformance';
+import { dropsStepOrder, halfAppliesBatches, storesPointTwice, unbrokenStore } from './broken-stores';
+
+const names = STORE_CONFORMANCE_CHECKS.map((check) => check.name);
+const ROUND_TRIP = names[0];
+const STEP_ORDER = names[1];
+const DUPLICATE = names[2];
+const BULK = names[3];
+
+describe('the store conformance suite fails broken stores', () => {
+  it('passes a correct store behind the same wrapper (the wrapper alone breaks nothing)', async () => {
+    expect(await failingChecks(unbrokenStore)).toEqual([]);
+  });
+
+  it('fails a store that stores a point twice', async () => {
+    expect(await failingChecks(storesPointTwice)).toEqual([DUPLICATE]);
+  });
+
+  it('fails a store that loses the step order', async () => {
+    const failed = await failingChecks(dropsStepOrder);
+    expect(failed).toContain(ROUND_TRIP);
+    expect(failed).toContain(STEP_ORDER);
+  });
+
+  it('fails a store that applies half a batch', async () => {
+    const failed = await failingChecks(halfAppliesBatches);
+    expect(failed).toContain(DUPLICATE);
+    expect(failed).toContain(BULK);
+  });
+});

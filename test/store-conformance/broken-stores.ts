@@ -1,0 +1,91 @@
+/**
+ * Deliberately broken in-memory stores, to show the conformance suite can fail:
+ * each wraps a correct SQLite ':memory:' store and breaks one guarantee.
+ */
+import { DuplicateStepError, SqliteStore, type NewPoint, type RolloffStore, type StoreOpenOptions } from '../../app/store';
+import type { PointColumns } from '../../app/contract/contract';
+
+type Overrides = (inner: RolloffStore) => Partial<RolloffStore>;
+
+function broken(overrides: Overrides): (options?: Pick<StoreOpenOptions, 'now'>) => Promise<RolloffStore> {
+  return async (options) => {
+    const inner = SqliteStore.open(':memory:', options);
+    const replaced = overrides(inner) as Record<PropertyKey, unknown>;
+    return new Proxy(inner, {
+      get(target, property) {
+        if (property in replaced) return replaced[property];
+        const value = Reflect.get(target, property, target);
+        return typeof value === 'function' ? value.bind(target) : value;
+      },
+    });
+  };
+}
+
+const COLUMNS = ['step', 'stimulus', 'amplitudeVpp', 'gainDb', 'gainUncertaintyDb', 'phaseDeg', 'phaseUncertaintyDeg', 'outputV', 'flags', 'measuredAt'] as const;
+
+function reorder(columns: PointColumns, order: number[]): PointColumns {
+  const result = {} as Record<string, unknown[]>;
+  for (const name of COLUMNS) result[name] = order.map((i) => (columns[name] as unknown[])[i]);
+  return result as unknown as PointColumns;
+}
+
+/** A correct store behind the same wrapper: the wrapper alone must not fail a check. */
+export const unbrokenStore = broken(() => ({}));
+
+/** Accepts a second point for a stored step and returns both. */
+export const storesPointTwice = broken((inner) => {
+  const extra = new Map<number, NewPoint[]>();
+  return {
+    async insertPoint(runId, point) {
+      try {
+        await inner.insertPoint(runId, point);
+      } catch (error) {
+        if (!(error instanceof DuplicateStepError)) throw error;
+        extra.set(runId, [...(extra.get(runId) ?? []), point]);
+      }
+    },
+    async loadPoints(runId) {
+      const columns = await inner.loadPoints(runId);
+      for (const point of extra.get(runId) ?? []) {
+        const at = columns.step.findIndex((step) => step > point.step);
+        const index = at < 0 ? columns.step.length : at;
+        for (const name of COLUMNS) {
+          const value = name === 'measuredAt' ? new Date(point.measuredAt ?? 0).toISOString() : (point[name] as number);
+          (columns[name] as unknown[]).splice(index, 0, value);
+        }
+      }
+      return columns;
+    },
+  };
+});
+
+/** Returns points in the order they were stored, not in step order. */
+export const dropsStepOrder = broken((inner) => {
+  const stored = new Map<number, number[]>();
+  const note = (runId: number, steps: number[]) => stored.set(runId, [...(stored.get(runId) ?? []), ...steps]);
+  return {
+    async insertPoint(runId, point) {
+      await inner.insertPoint(runId, point);
+      note(runId, [point.step]);
+    },
+    async insertPoints(runId, points) {
+      await inner.insertPoints(runId, points);
+      note(runId, points.map((p) => p.step));
+    },
+    async loadPoints(runId) {
+      const columns = await inner.loadPoints(runId);
+      const order = (stored.get(runId) ?? []).map((step) => columns.step.indexOf(step));
+      return order.length === columns.step.length ? reorder(columns, order) : columns;
+    },
+  };
+});
+
+/** Stores a batch point by point, so a refused point leaves the ones before it stored. */
+export const halfAppliesBatches = broken((inner) => ({
+  async insertPoints(runId, points) {
+    for (const point of points) await inner.insertPoint(runId, point);
+  },
+  async insertPointsOfRuns(batches) {
+    for (const { runId, points } of batches) for (const point of points) await inner.insertPoint(runId, point);
+  },
+}));

@@ -1,0 +1,299 @@
+/**
+ * The store conformance suite: what every RolloffStore implementation must do,
+ * written against the interface only (app/store/store-interface.ts). SQLite runs
+ * it in test/store-conformance/sqlite.test.ts; the PostgreSQL store runs the same
+ * checks unchanged. broken-stores.test.ts shows the checks fail a store that
+ * stores a point twice, loses the step order, or half-applies a batch.
+ *
+ * Use: describeStoreConformance('my store', (options) => openAnEmptyStore(options)).
+ */
+import { afterEach, describe, expect, it } from 'vitest';
+import { ValidationError } from '../../app/errors';
+import { DuplicateStepError, RecordNotFoundError, type RolloffStore, type StoreOpenOptions } from '../../app/store';
+import { newRun, plan, point, request, seedRun } from './fixtures';
+
+/** Opens a new, empty store; `now` (when given) is the clock for every timestamp the store writes. */
+export type OpenFreshStore = (options?: Pick<StoreOpenOptions, 'now'>) => Promise<RolloffStore>;
+
+export interface ConformanceCheck {
+  name: string;
+  run(open: OpenFreshStore): Promise<void>;
+}
+
+/** Every check, in order. Each opens its own fresh store(s). */
+export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
+  {
+    name: 'round-trips points as columns in step order, with NaN for missing values',
+    async run(open) {
+      const store = await open();
+      const { run } = await seedRun(store);
+      for (const step of [2, 0, 1]) await store.insertPoint(run.id, point(step, step === 1 ? { gainDb: Number.NaN, flags: 1 | 4 } : {}));
+      const columns = await store.loadPoints(run.id);
+      expect(columns.step).toEqual([0, 1, 2]);
+      expect(columns.stimulus[2]).toBeCloseTo(10 * 10 ** 0.2, 12);
+      expect(Number.isNaN(columns.gainDb[1])).toBe(true);
+      expect(columns.gainDb[2]).toBeCloseTo(19.8, 12);
+      expect(columns.flags).toEqual([0, 5, 0]);
+      expect(columns.outputV.every(Number.isNaN)).toBe(true);
+      expect(columns.measuredAt[1]).toBe('2026-01-01T00:00:01.000Z');
+      // Times are kept as UTC instants: an offset given on the way in comes back as Z (ISO 8601 equivalence).
+      await store.insertPoint(run.id, point(3, { measuredAt: '2026-01-01T02:00:00+02:00' }));
+      expect((await store.loadPoints(run.id)).measuredAt[3]).toBe('2026-01-01T00:00:00.000Z');
+      expect((await store.listRuns())[0].pointCount).toBe(4);
+      expect(await store.nextStep(run.id)).toBe(4);
+    },
+  },
+  {
+    name: 'returns points in step order whatever order they were stored in, each column aligned with its step',
+    async run(open) {
+      const store = await open();
+      const { run } = await seedRun(store);
+      // A fixed permutation of 0..40 (multiplying by 17 modulo 41, a prime, visits every step once).
+      const order = Array.from({ length: 41 }, (_, i) => (i * 17) % 41);
+      for (const step of order.slice(0, 20)) await store.insertPoint(run.id, point(step));
+      await store.insertPoints(run.id, order.slice(20).map((step) => point(step)));
+      const columns = await store.loadPoints(run.id);
+      expect(columns.step).toEqual(Array.from({ length: 41 }, (_, i) => i));
+      for (let i = 0; i < 41; i++) {
+        expect(columns.gainDb[i]).toBeCloseTo(point(i).gainDb, 12);
+        expect(columns.phaseDeg[i]).toBeCloseTo(point(i).phaseDeg, 12);
+      }
+      expect(await store.nextStep(run.id)).toBe(41);
+    },
+  },
+  {
+    name: 'refuses a duplicate step with DuplicateStepError and stores it only once',
+    async run(open) {
+      const store = await open();
+      const { run } = await seedRun(store);
+      expect(await store.nextStep(run.id)).toBe(0);
+      await store.insertPoint(run.id, point(0));
+      await store.insertPoint(run.id, point(1));
+      await expect(store.insertPoint(run.id, point(1, { gainDb: 99 }))).rejects.toThrow(DuplicateStepError);
+      const columns = await store.loadPoints(run.id);
+      expect(columns.step).toEqual([0, 1]);
+      expect(columns.gainDb[1]).toBeCloseTo(19.9, 12);
+      expect((await store.getRun(run.id)).pointCount).toBe(2);
+      expect(await store.nextStep(run.id)).toBe(2);
+      // A batch containing a stored step is refused whole.
+      await expect(store.insertPoints(run.id, [point(2), point(1)])).rejects.toThrow(DuplicateStepError);
+      expect((await store.loadPoints(run.id)).step).toEqual([0, 1]);
+      expect((await store.getRun(run.id)).pointCount).toBe(2);
+    },
+  },
+  {
+    name: 'applies bulk work all or nothing: createRuns and insertPointsOfRuns',
+    async run(open) {
+      const store = await open();
+      const { build } = await seedRun(store);
+      const runs = await store.createRuns([newRun(build.id, { notes: 'bulk a' }), newRun(build.id, { notes: 'bulk b' })]);
+      expect(runs.map((r) => r.notes)).toEqual(['bulk a', 'bulk b']);
+      expect(runs[1].id).toBeGreaterThan(runs[0].id);
+      await expect(store.createRuns([newRun(build.id, { notes: 'never' }), newRun(999)])).rejects.toThrow(RecordNotFoundError);
+      expect((await store.listRuns({ search: 'never' }))).toEqual([]);
+
+      const [a, b] = runs;
+      await store.insertPointsOfRuns([
+        { runId: a.id, points: [point(0), point(1)] },
+        { runId: b.id, points: [point(0)] },
+      ]);
+      // The second batch repeats a stored step: nothing of the call is stored, the first batch included.
+      await expect(store.insertPointsOfRuns([
+        { runId: b.id, points: [point(1), point(2)] },
+        { runId: a.id, points: [point(1)] },
+      ])).rejects.toThrow(DuplicateStepError);
+      expect((await store.loadPoints(a.id)).step).toEqual([0, 1]);
+      expect((await store.loadPoints(b.id)).step).toEqual([0]);
+      expect((await store.getRun(a.id)).pointCount).toBe(2);
+      expect((await store.getRun(b.id)).pointCount).toBe(1);
+    },
+  },
+  {
+    name: 'refuses bad points and unknown runs with the place named',
+    async run(open) {
+      const store = await open();
+      const { run } = await seedRun(store);
+      await expect(store.insertPoint(run.id, point(-1))).rejects.toThrow(/point.step/);
+      await expect(store.insertPoint(run.id, point(0, { stimulus: Number.NaN }))).rejects.toThrow(/point.stimulus/);
+      await expect(store.insertPoint(run.id, point(0, { flags: 1.5 }))).rejects.toThrow(ValidationError);
+      await expect(store.insertPoint(run.id, point(0, { measuredAt: 'yesterday' }))).rejects.toThrow(/point.measuredAt/);
+      await expect(store.insertPoint(999, point(0))).rejects.toThrow(RecordNotFoundError);
+      await expect(store.loadPoints(999)).rejects.toThrow(/run 999 does not exist/);
+      await expect(store.nextStep(999)).rejects.toThrow(RecordNotFoundError);
+      await expect(store.nextStep(0)).rejects.toThrow(/runId/);
+      expect((await store.loadPoints(run.id)).step).toEqual([]);
+    },
+  },
+  {
+    name: 'stores designs and builds and converts rows to contract records',
+    async run(open) {
+      const store = await open({ now: () => '2026-02-03T04:05:06.000Z' });
+      const { design, build } = await seedRun(store);
+      expect(design).toEqual({ id: design.id, name: 'inverting ×10 (demo, invented)', design: { parts: [{ id: 'R1', value: 1e3 }] }, createdAt: '2026-02-03T04:05:06.000Z' });
+      expect(await store.getDesign(design.id)).toEqual(design);
+      expect(await store.getBuild(build.id)).toEqual(build);
+      expect(await store.listBuilds(design.id)).toEqual([build]);
+      expect(build).toMatchObject({ designId: design.id, label: 'board 1', notes: 'hand soldered', actualValues: { R1: 998.2 } });
+      expect(await store.listDesigns()).toHaveLength(1);
+      await expect(store.getDesign(42)).rejects.toThrow(RecordNotFoundError);
+      await expect(store.getBuild(42)).rejects.toThrow(RecordNotFoundError);
+      await expect(store.createBuild({ designId: 42, label: 'x', notes: '', actualValues: {} })).rejects.toThrow(/design 42/);
+      await expect(store.createBuild({ designId: design.id, label: '  ', notes: '', actualValues: {} })).rejects.toThrow(/build.label/);
+      await expect(store.createBuild({ designId: design.id, label: 'x', notes: '', actualValues: { R1: Number.NaN } })).rejects.toThrow(/build.actualValues.R1/);
+      await expect(store.saveDesign({ name: '', design: {} })).rejects.toThrow(/design.name/);
+    },
+  },
+  {
+    name: 'moves runs through their statuses with start and end times, and stores results',
+    async run(open) {
+      let clock = 0;
+      const store = await open({ now: () => new Date(Date.UTC(2026, 0, 1, 0, 0, clock++)).toISOString() });
+      const { run } = await seedRun(store);
+      expect(run.status).toBe('planned');
+      expect(run.plannedCount).toBe(41);
+      expect(run.simulated).toBe(true);
+      expect(run.plan).toEqual(plan);
+      expect(run.startedAt).toBeNull();
+      const started = await store.updateRunStatus(run.id, 'running');
+      expect(started.startedAt).not.toBeNull();
+      const paused = await store.updateRunStatus(run.id, 'paused');
+      expect(paused.startedAt).toBe(started.startedAt);
+      expect((await store.findInterruptedRuns()).map((r) => r.id)).toEqual([run.id]);
+      await store.updateRunStatus(run.id, 'running');
+      const done = await store.updateRunStatus(run.id, 'done');
+      expect(done.startedAt).toBe(started.startedAt);
+      expect(done.endedAt).not.toBeNull();
+      expect(await store.findInterruptedRuns()).toEqual([]);
+      const withResults = await store.setRunResults(run.id, { minus3dbHz: [15.9e3], passbandGainDb: 19.98 }, { pass: true, reasons: [] });
+      expect(withResults.figures).toEqual({ minus3dbHz: [15.9e3], passbandGainDb: 19.98 });
+      expect(withResults.verdict).toEqual({ pass: true, reasons: [] });
+      expect(withResults.request.from).toBe(10);
+      expect(await store.getRun(run.id)).toEqual(withResults);
+      await expect(store.updateRunStatus(run.id, 'exploded' as never)).rejects.toThrow(/not a run status/);
+      await expect(store.updateRunStatus(77, 'done')).rejects.toThrow(RecordNotFoundError);
+      await expect(store.getRun(77)).rejects.toThrow(RecordNotFoundError);
+    },
+  },
+  {
+    name: 'lists runs newest first, filtered by text, status and build',
+    async run(open) {
+      const store = await open();
+      const a = await seedRun(store, 'board 1', 'first light');
+      const b = await seedRun(store, 'board 2 (100% reflowed)', 'after rework');
+      await store.updateRunStatus(b.run.id, 'running');
+      expect((await store.listRuns()).map((r) => r.id)).toEqual([b.run.id, a.run.id]);
+      expect((await store.listRuns({ search: 'rework' })).map((r) => r.id)).toEqual([b.run.id]);
+      expect((await store.listRuns({ search: 'BOARD 1' })).map((r) => r.id)).toEqual([a.run.id]);
+      expect(await store.listRuns({ search: 'inverting' })).toHaveLength(2);
+      expect((await store.listRuns({ search: '100%' })).map((r) => r.id)).toEqual([b.run.id]); // % is literal, not a wildcard
+      expect(await store.listRuns({ search: '1%' })).toHaveLength(0);
+      expect((await store.listRuns({ status: 'running' })).map((r) => r.id)).toEqual([b.run.id]);
+      expect((await store.listRuns({ buildId: a.build.id })).map((r) => r.id)).toEqual([a.run.id]);
+      expect(await store.listRuns({ limit: 1 })).toHaveLength(1);
+      expect((await store.listRuns())[0]).toMatchObject({ buildLabel: 'board 2 (100% reflowed)', designName: 'inverting ×10 (demo, invented)', kind: 'ac' });
+      await expect(store.listRuns({ limit: 0 })).rejects.toThrow(/filter.limit/);
+    },
+  },
+  {
+    name: 'appends and lists run events in order, records instruments, calibrations and schedules',
+    async run(open) {
+      const store = await open();
+      const { run, build } = await seedRun(store);
+      await store.appendEvent(run.id, 'info', 'sweep started', '2026-01-01T00:00:00.000Z');
+      await store.appendEvent(run.id, 'warning', 'step 3 retried');
+      await store.appendEvent(run.id, 'info', 'sweep finished', '2025-12-31T00:00:00.000Z'); // an earlier stamp still lists last: append order
+      expect((await store.listEvents(run.id)).map((e) => e.message)).toEqual(['sweep started', 'step 3 retried', 'sweep finished']);
+      expect((await store.listEvents(run.id)).map((e) => e.level)).toEqual(['info', 'warning', 'info']);
+      await expect(store.appendEvent(run.id, 'loud' as never, 'x')).rejects.toThrow(/event.level/);
+      await expect(store.appendEvent(555, 'info', 'x')).rejects.toThrow(RecordNotFoundError);
+
+      const identity = { manufacturer: 'Rolloff simulated bench', model: 'generator (simulated)', serialNumber: '0001', firmware: '1.0' };
+      const first = await store.recordInstrument({ role: 'generator', identity, address: 'tcp://127.0.0.1:5025', at: '2026-01-01T00:00:00.000Z' });
+      const later = await store.recordInstrument({ role: 'generator', identity, address: 'tcp://127.0.0.1:5025', at: '2026-01-02T00:00:00.000Z' });
+      expect(later.id).toBe(first.id);
+      expect(later.firstSeenAt).toBe('2026-01-01T00:00:00.000Z');
+      expect(later.lastSeenAt).toBe('2026-01-02T00:00:00.000Z');
+      expect(await store.listInstruments()).toHaveLength(1);
+
+      expect(await store.latestCalibration('bench-a')).toBeUndefined();
+      await store.saveCalibration({ benchKey: 'bench-a', bench: [], frequencyHz: [10, 100], gainDb: [0.01, 0.02], phaseDeg: [0, -0.1] });
+      const newest = await store.saveCalibration({ benchKey: 'bench-a', bench: [], frequencyHz: [10, 100], gainDb: [0.03, 0.04], phaseDeg: [0, -0.2] });
+      expect(await store.latestCalibration('bench-a')).toEqual(newest);
+      expect(await store.latestCalibration('bench-b')).toBeUndefined();
+      await expect(store.saveCalibration({ benchKey: 'b', bench: [], frequencyHz: [10, 100], gainDb: [0], phaseDeg: [0, 0] })).rejects.toThrow(/gainDb has 1/);
+
+      const schedule = await store.createSchedule({ buildId: build.id, request, everyMinutes: 30, count: 16 });
+      expect(await store.getSchedule(schedule.id)).toMatchObject({ buildId: build.id, everyMinutes: 30, count: 16, until: null });
+      await expect(store.getSchedule(999)).rejects.toThrow(RecordNotFoundError);
+      await expect(store.createSchedule({ buildId: build.id, request, everyMinutes: 30 })).rejects.toThrow(/neither a run count nor an end time/);
+      await expect(store.createSchedule({ buildId: build.id, request, everyMinutes: 0, count: 1 })).rejects.toThrow(/everyMinutes/);
+      await expect(store.createSchedule({ buildId: build.id, request, everyMinutes: 5, until: 'tomorrow-ish' })).rejects.toThrow(/schedule.until/);
+      const scheduled = await store.createRun(newRun(build.id, { kind: 'dc', request, scheduleId: schedule.id, simulated: false }));
+      expect(scheduled.scheduleId).toBe(schedule.id);
+      expect(scheduled.simulated).toBe(false);
+      await expect(store.createRun(newRun(build.id, { kind: 'xx' as never }))).rejects.toThrow(/run.kind/);
+    },
+  },
+  {
+    name: 'keeps settings per bench, replaced whole on save',
+    async run(open) {
+      const store = await open({ now: () => '2026-03-04T05:06:07.000Z' });
+      expect(await store.getBenchSettings('generator=a;meter=b')).toBeUndefined();
+      const saved = await store.saveBenchSettings('generator=a;meter=b', { maxStimulusVpp: 2 });
+      expect(saved).toEqual({ benchKey: 'generator=a;meter=b', maxStimulusVpp: 2, updatedAt: '2026-03-04T05:06:07.000Z' });
+      expect(await store.getBenchSettings('generator=a;meter=b')).toEqual(saved);
+      expect(await store.getBenchSettings('generator=c;meter=b')).toBeUndefined(); // another bench inherits nothing
+      expect((await store.saveBenchSettings('generator=a;meter=b', { maxStimulusVpp: null })).maxStimulusVpp).toBeNull();
+      await expect(store.saveBenchSettings('generator=a;meter=b', { maxStimulusVpp: -1 })).rejects.toThrow(/maxStimulusVpp/);
+      await expect(store.saveBenchSettings('', { maxStimulusVpp: 1 })).rejects.toThrow(/benchKey/);
+      expect((await store.getBenchSettings('generator=a;meter=b'))?.maxStimulusVpp).toBeNull();
+    },
+  },
+  {
+    name: 'reports its schema version and a clean integrity check, and closes idempotently',
+    async run(open) {
+      const store = await open();
+      expect(await store.schemaVersion()).toBeGreaterThan(0);
+      expect(await store.integrityProblems()).toEqual([]);
+      expect(typeof store.location).toBe('string');
+      await store.close();
+      await store.close();
+    },
+  },
+];
+
+/** Registers every check as a test of this implementation. */
+export function describeStoreConformance(name: string, openFreshStore: OpenFreshStore): void {
+  describe(`store conformance: ${name}`, () => {
+    const opened: RolloffStore[] = [];
+    const open: OpenFreshStore = async (options) => {
+      const store = await openFreshStore(options);
+      opened.push(store);
+      return store;
+    };
+    afterEach(async () => {
+      for (const store of opened.splice(0)) await store.close();
+    });
+    for (const check of STORE_CONFORMANCE_CHECKS) it(check.name, () => check.run(open));
+  });
+}
+
+/** Runs every check outside the test runner and names those that failed (for testing the suite itself). */
+export async function failingChecks(openFreshStore: OpenFreshStore): Promise<string[]> {
+  const failed: string[] = [];
+  for (const check of STORE_CONFORMANCE_CHECKS) {
+    const opened: RolloffStore[] = [];
+    try {
+      await check.run(async (options) => {
+        const store = await openFreshStore(options);
+        opened.push(store);
+        return store;
+      });
+    } catch {
+      failed.push(check.name);
+    } finally {
+      for (const store of opened) await store.close();
+    }
+  }
+  return failed;
+}
