@@ -2,7 +2,12 @@
  * GeneratorControl over a profile. This is the single place the user's
  * maximum stimulus is enforced: every setting is checked before any byte is
  * sent, and amplitude/offset changes are ordered so no intermediate state
- * exceeds the limit either.
+ * exceeds the limit either. Each level change is confirmed by the instrument
+ * (its error queue) before the next goes out, and the state counts as applied
+ * only for what was confirmed: an instrument that refuses the first of two
+ * changes never receives the second. After any refusal the generator is
+ * driven to a safe state — output off, then the smallest amplitude and no
+ * offset — before anything else is sent, and must be configured afresh.
  */
 import { ValidationError } from '../errors';
 import type { ScpiSession } from '../scpi/session';
@@ -57,7 +62,9 @@ export class ProfileGenerator implements GeneratorControl {
     if (frequencyHz < this.limits.minFrequencyHz || frequencyHz > this.limits.maxFrequencyHz) {
       throw new ValidationError('frequencyHz', `${frequencyHz} Hz is outside the generator's range ${this.limits.minFrequencyHz}–${this.limits.maxFrequencyHz} Hz (profile ${this.profile.id})`);
     }
-    if (amplitudeVpp < 0) throw new ValidationError('amplitudeVpp', 'must not be negative');
+    if (amplitudeVpp < this.limits.minAmplitudeVpp) {
+      throw new ValidationError('amplitudeVpp', `${amplitudeVpp} Vpp is below the generator's ${this.limits.minAmplitudeVpp} Vpp (profile ${this.profile.id})`);
+    }
     if (amplitudeVpp > this.limits.maxAmplitudeVpp) {
       throw new ValidationError('amplitudeVpp', `${amplitudeVpp} Vpp is above the generator's ${this.limits.maxAmplitudeVpp} Vpp (profile ${this.profile.id})`);
     }
@@ -66,11 +73,10 @@ export class ProfileGenerator implements GeneratorControl {
     await this.withOutputOffForShapeChange('sine', async () => {
       if (this.state.frequencyHz !== frequencyHz) {
         await this.runner.set('frequency', { frequencyHz });
-        this.state.frequencyHz = frequencyHz;
+        await this.confirm({ frequencyHz });
       }
       await this.applyLevels(amplitudeVpp, offsetV);
     });
-    await this.runner.flush();
   }
 
   async configureDc(levelV: number): Promise<void> {
@@ -80,10 +86,9 @@ export class ProfileGenerator implements GeneratorControl {
     await this.withOutputOffForShapeChange('dc', async () => {
       if (this.state.offsetV !== levelV) {
         await this.runner.set('offset', { offsetV: levelV });
-        this.state.offsetV = levelV;
+        await this.confirm({ offsetV: levelV });
       }
     });
-    await this.runner.flush();
   }
 
   async setOutput(on: boolean): Promise<void> {
@@ -92,8 +97,7 @@ export class ProfileGenerator implements GeneratorControl {
       throw new ValidationError('setOutput', 'the generator has not been configured in this session', 'Call configureSine or configureDc before switching the output on.');
     }
     await this.runner.set(on ? 'outputOn' : 'outputOff');
-    this.state.outputOn = on;
-    await this.runner.flush();
+    await this.confirm({ outputOn: on });
   }
 
   async setLoad(load: LoadSetting): Promise<void> {
@@ -101,7 +105,7 @@ export class ProfileGenerator implements GeneratorControl {
     const amplitudeVpp = this.state.shape === 'sine' ? this.state.amplitudeVpp ?? 0 : 0;
     this.checkLimit(`switching the load setting to ${load}`, amplitudeVpp, this.state.offsetV ?? 0, load);
     await this.runner.set(load === '50-ohm' ? 'load50Ohm' : 'loadHighZ');
-    await this.runner.flush();
+    await this.confirm({});
     this.load = load;
   }
 
@@ -124,7 +128,7 @@ export class ProfileGenerator implements GeneratorControl {
     const wasOn = this.state.outputOn;
     if (wasOn) await this.setOutput(false);
     await this.runner.set(shape === 'sine' ? 'sineFunction' : 'dcFunction');
-    this.state.shape = shape;
+    await this.confirm({ shape });
     await configure();
     if (wasOn) await this.setOutput(true);
   }
@@ -135,12 +139,12 @@ export class ProfileGenerator implements GeneratorControl {
       if (this.state.amplitudeVpp === amplitudeVpp) return;
       const amplitude = this.profile.generator.amplitudeUnit === 'Vrms' ? vrmsFromVpp(amplitudeVpp) : amplitudeVpp;
       await this.runner.set('amplitude', { amplitude });
-      this.state.amplitudeVpp = amplitudeVpp;
+      await this.confirm({ amplitudeVpp });
     };
     const setOffset = async () => {
       if (this.state.offsetV === offsetV) return;
       await this.runner.set('offset', { offsetV });
-      this.state.offsetV = offsetV;
+      await this.confirm({ offsetV });
     };
     const offsetGrows = Math.abs(offsetV) > Math.abs(this.state.offsetV ?? 0);
     if (offsetGrows) {
@@ -150,6 +154,45 @@ export class ProfileGenerator implements GeneratorControl {
       await setOffset();
       await setAmplitude();
     }
+  }
+
+  /**
+   * Sends what is collected and waits for the instrument's confirmation; only
+   * then does `applied` count as the instrument's state. On a refusal (or a
+   * lost reply) the state is unknown: drive to the safe state, then report.
+   */
+  private async confirm(applied: Partial<OutputState>): Promise<void> {
+    try {
+      await this.runner.flush();
+    } catch (error) {
+      await this.driveToSafeState();
+      throw error;
+    }
+    this.state = { ...this.state, ...applied };
+  }
+
+  /**
+   * Output off first (whatever the levels are, nothing then reaches the
+   * circuit), then the smallest amplitude and no offset, each confirmed. What
+   * could not be confirmed stays unknown, and the output cannot be switched on
+   * again until the generator is configured afresh.
+   */
+  private async driveToSafeState(): Promise<void> {
+    this.state = { shape: undefined, frequencyHz: undefined, amplitudeVpp: undefined, offsetV: undefined, outputOn: true };
+    const attempt = async (send: () => Promise<void>, applied: Partial<OutputState>) => {
+      try {
+        await send();
+        await this.runner.flush();
+        this.state = { ...this.state, ...applied };
+      } catch {
+        // Left unknown; the next configure sets it with the output off.
+      }
+    };
+    await attempt(() => this.runner.set('outputOff'), { outputOn: false });
+    const smallestVpp = this.limits.minAmplitudeVpp;
+    const amplitude = this.profile.generator.amplitudeUnit === 'Vrms' ? vrmsFromVpp(smallestVpp) : smallestVpp;
+    await attempt(() => this.runner.set('amplitude', { amplitude }), { amplitudeVpp: smallestVpp });
+    await attempt(() => this.runner.set('offset', { offsetV: 0 }), { offsetV: 0 });
   }
 
   private checkLimit(what: string, amplitudeVpp: number, offsetV: number, load: LoadSetting): void {

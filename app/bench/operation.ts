@@ -6,13 +6,15 @@
  * calls it at its end) or query, as one program message — units joined by ';',
  * each header rooted with ':' so none is read relative to the one before
  * (SCPI-1999 Vol 1 §6.2, recalled from memory) — with, under profile
- * checkErrors, the first error-queue read as its last unit. A rejected
+ * checkErrors, the first error-queue read as its last unit; without it,
+ * `*OPC?` (IEEE 488.2 §10.19), so a flush always ends at a moment the
+ * instrument confirmed — settling is counted from there. A rejected
  * setting surfaces as ScpiInstrumentError naming the commands of the batch,
  * before any measurement is taken with it, at one write and one round trip
  * per batch (each reply costs the link's latency, each write a turn).
  */
 import { parseErrorEntry } from '../scpi/error-entry';
-import { ScpiInstrumentError } from '../scpi/errors';
+import { ScpiInstrumentError, ScpiMalformedReplyError } from '../scpi/errors';
 import type { ResponseUnit } from '../scpi/reply-framer';
 import type { ScpiSession } from '../scpi/session';
 import type { Profile } from './profile';
@@ -49,7 +51,11 @@ export class OperationRunner {
     const commands = this.unsent;
     this.unsent = [];
     const message = commands.map(rooted).join(';');
-    if (!this.profile.checkErrors) return this.session.write(message);
+    if (!this.profile.checkErrors) {
+      const done = await this.session.query(`${message};*OPC?`);
+      if (done.trim() !== '1') throw new ScpiMalformedReplyError(`${message};*OPC?`, done, 'the operation-complete reply 1');
+      return;
+    }
     const reply = await this.session.query(`${message};${ERROR_QUERY}`);
     const first = parseErrorEntry(reply, ERROR_QUERY);
     if (first.code === 0) return;

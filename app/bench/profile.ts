@@ -118,6 +118,8 @@ export function validateProfile(json: unknown, file: string, builtIn = false): P
   (init as string[]).forEach((command, i) => checkTemplate(file, `init[${i}]`, command, []));
   const checkErrors = json.checkErrors ?? true;
   if (typeof checkErrors !== 'boolean') fail('checkErrors', 'must be true or false');
+  // Without the error queue a refused amplitude or offset goes unseen, and the stimulus limit could not be held.
+  if (role === 'generator' && checkErrors === false) fail('checkErrors', 'must be true for a generator: a refused amplitude or offset must be seen to keep the maximum stimulus');
   const timeoutS = json.timeoutS ?? 5;
   if (typeof timeoutS !== 'number' || !(timeoutS > 0 && timeoutS <= 600)) fail('timeoutS', 'must be a number of seconds between 0 and 600');
 
@@ -179,10 +181,14 @@ function validateGeneratorSettings(file: string, raw: unknown): GeneratorProfile
   const maxFrequencyHz = positiveNumber(file, 'generator.maxFrequencyHz', raw.maxFrequencyHz);
   if (!(maxFrequencyHz > minFrequencyHz)) throw new ProfileError(file, 'generator.maxFrequencyHz', 'must be above minFrequencyHz');
   const maxAmplitudeVpp = positiveNumber(file, 'generator.maxAmplitudeVpp', raw.maxAmplitudeVpp);
+  const minAmplitudeVpp = raw.minAmplitudeVpp ?? 0;
+  if (typeof minAmplitudeVpp !== 'number' || !Number.isFinite(minAmplitudeVpp) || minAmplitudeVpp < 0 || minAmplitudeVpp >= maxAmplitudeVpp) {
+    throw new ProfileError(file, 'generator.minAmplitudeVpp', 'must be a number from 0 up to below maxAmplitudeVpp');
+  }
   const amplitudeUnit = raw.amplitudeUnit ?? 'Vpp';
   if (amplitudeUnit !== 'Vpp' && amplitudeUnit !== 'Vrms') throw new ProfileError(file, 'generator.amplitudeUnit', 'must be "Vpp" or "Vrms"');
   const sourceImpedanceOhm = positiveNumber(file, 'generator.sourceImpedanceOhm', raw.sourceImpedanceOhm, 50);
-  return { limits: { minFrequencyHz, maxFrequencyHz, maxAmplitudeVpp }, amplitudeUnit, sourceImpedanceOhm };
+  return { limits: { minFrequencyHz, maxFrequencyHz, maxAmplitudeVpp, minAmplitudeVpp }, amplitudeUnit, sourceImpedanceOhm };
 }
 
 function validateMeterSettings(file: string, raw: unknown): MeterProfile['meter'] {

@@ -28,6 +28,8 @@ export interface GeneratorLimits {
   maxFrequencyHz: number;
   /** The instrument's own ceiling (profile); the user's ceiling is maxStimulusVpp. */
   maxAmplitudeVpp: number;
+  /** The smallest sine amplitude the instrument sets (profile; 0 when it gives none). Also the amplitude of the safe state. */
+  minAmplitudeVpp: number;
 }
 
 export interface GeneratorControl {

@@ -71,7 +71,7 @@ interface ActiveRun {
 /** Fixed default when no generator is connected yet (planning preview): the generic profile's limits. */
 function genericGeneratorLimits(): PlanInstruments['generator'] {
   const profile = builtInProfiles().find((p) => p.role === 'generator');
-  if (profile?.role === 'generator') return { ...profile.generator.limits, minAmplitudeVpp: 0 };
+  if (profile?.role === 'generator') return profile.generator.limits;
   return { minFrequencyHz: 1e-3, maxFrequencyHz: 1e7, maxAmplitudeVpp: 20, minAmplitudeVpp: 0 };
 }
 
@@ -514,7 +514,7 @@ export class RolloffService implements RolloffApi {
       request,
       maxStimulusVpp,
       instruments: {
-        generator: generator ? { ...generator.limits, minAmplitudeVpp: 0 } : genericGeneratorLimits(),
+        generator: generator ? generator.limits : genericGeneratorLimits(),
         instrumentSettleS: this.options.instrumentSettleS ?? 0.01,
         minIntegrationS: usesMeter ? (this.options.meterIntegrationS ?? 0.1) : 0,
       },

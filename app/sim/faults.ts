@@ -8,7 +8,10 @@
  * - no-reply: queries get no reply (with `probability`, default 1);
  * - hang: the instrument stops processing commands until the fault is cleared
  *   (a command that never completes);
- * - overrange / nan: meter and scope measurements read 9.9E37 / 9.91E37.
+ * - overrange / nan: meter and scope measurements read 9.9E37 / 9.91E37;
+ * - refuse: commands with one header (e.g. SOURce:VOLTage) are refused with
+ *   -222 "Data out of range" and not applied, the rest are taken — an
+ *   instrument that refuses part of a settings message.
  */
 import { ValidationError } from '../errors';
 
@@ -19,9 +22,10 @@ export type SimFault =
   | { kind: 'no-reply'; probability?: number }
   | { kind: 'hang' }
   | { kind: 'overrange' }
-  | { kind: 'nan' };
+  | { kind: 'nan' }
+  | { kind: 'refuse'; header: string };
 
-export const FAULT_KINDS = ['drop-link', 'garbage', 'slow', 'no-reply', 'hang', 'overrange', 'nan'] as const;
+export const FAULT_KINDS = ['drop-link', 'garbage', 'slow', 'no-reply', 'hang', 'overrange', 'nan', 'refuse'] as const;
 
 /** Parses the CLI form: "KIND", "KIND:VALUE" (probability or delay), optionally "ROLE=" first. */
 export function parseFaultSpec(text: string): { role: 'generator' | 'meter' | 'scope' | 'all'; fault: SimFault } {
@@ -32,6 +36,11 @@ export function parseFaultSpec(text: string): { role: 'generator' | 'meter' | 's
   if (roleMatch) {
     role = roleMatch[1] as typeof role;
     rest = roleMatch[2];
+  }
+  if (rest.startsWith('refuse:')) {
+    const header = rest.slice('refuse:'.length).trim();
+    if (!/^[A-Za-z*:\[\]#]+$/.test(header)) throw new ValidationError(where, `"${header}" is not a command header`, 'Give the header to refuse, e.g. generator=refuse:SOURce:VOLTage.');
+    return { role, fault: { kind: 'refuse', header } };
   }
   const [kind, valueText] = rest.split(':');
   const value = valueText === undefined ? undefined : Number(valueText);
@@ -53,7 +62,7 @@ export function parseFaultSpec(text: string): { role: 'generator' | 'meter' | 's
       if (value === undefined || !(value >= 0)) throw new ValidationError(where, 'slow needs a delay in seconds, e.g. slow:0.5');
       return { role, fault: { kind, delayS: value } };
     default:
-      throw new ValidationError(where, `unknown fault "${kind}"`, `Faults: ${FAULT_KINDS.join(', ')}; optionally ROLE=KIND[:VALUE], e.g. meter=garbage:0.1.`);
+      throw new ValidationError(where, `unknown fault "${kind}"`, `Faults: ${FAULT_KINDS.join(', ')}; optionally ROLE=KIND[:VALUE], e.g. meter=garbage:0.1 or generator=refuse:SOURce:VOLTage.`);
   }
 }
 

@@ -14,9 +14,9 @@ import { SimCommandError } from './scpi-errors';
 import { SimInstrument, SIMULATED_MANUFACTURER } from './sim-instrument';
 import { SOFTWARE_VERSION } from '../contract/version';
 
-export const SIM_GENERATOR_LIMITS = { minFrequencyHz: 0.001, maxFrequencyHz: 20e6, maxOpenCircuitVpp: 20 };
+export const SIM_GENERATOR_LIMITS = { minFrequencyHz: 0.001, maxFrequencyHz: 20e6, maxOpenCircuitVpp: 20, minAmplitudeVpp: 0.001 };
 
-interface GeneratorSettings {
+export interface GeneratorSettings {
   shape: 'sine' | 'dc';
   frequencyHz: number;
   /** Displayed amplitude, Vpp (converted from Vrms on entry when the unit is VRMS). */
@@ -52,6 +52,7 @@ export class SimGenerator extends SimInstrument {
     this.define('[SOURce]:VOLTage[:LEVel][:IMMediate][:AMPLitude]', ({ params }) => {
       const value = numberParam(params, 0, Number.MAX_VALUE);
       const amplitudeVpp = this.settings.unit === 'VRMS' ? vppFromVrms(value) : value;
+      if (amplitudeVpp < SIM_GENERATOR_LIMITS.minAmplitudeVpp * (1 - 1e-9)) throw new SimCommandError('dataOutOfRange', `below ${SIM_GENERATOR_LIMITS.minAmplitudeVpp} Vpp`);
       this.checkLevels(amplitudeVpp, this.settings.offsetV, this.settings.load);
       this.update({ amplitudeVpp });
     });
@@ -90,6 +91,20 @@ export class SimGenerator extends SimInstrument {
   private update(change: Partial<GeneratorSettings>): void {
     this.settings = { ...this.settings, ...change };
     this.push();
+    for (const listener of this.listeners) listener(this.settings);
+  }
+
+  private readonly listeners = new Set<(held: Readonly<GeneratorSettings>) => void>();
+
+  /** What the instrument holds now (display values, as its own queries would report). */
+  get held(): Readonly<GeneratorSettings> {
+    return this.settings;
+  }
+
+  /** Calls `listener` with every state the instrument takes, in order (tests check each against the limit). */
+  onChange(listener: (held: Readonly<GeneratorSettings>) => void): () => void {
+    this.listeners.add(listener);
+    return () => this.listeners.delete(listener);
   }
 
   private push(): void {

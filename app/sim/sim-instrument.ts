@@ -32,6 +32,8 @@ export abstract class SimInstrument {
   readonly errors = new SimErrorQueue();
   private readonly commands: Array<{ pattern: HeaderPattern; handler: CommandHandler }> = [];
   private eventStatus = 0;
+  /** Commands with this header are refused (-222) and not applied: the `refuse` fault. */
+  refusing: HeaderPattern | undefined;
 
   constructor(
     readonly identity: InstrumentIdentity,
@@ -105,6 +107,10 @@ export abstract class SimInstrument {
   }
 
   private async executeUnit(unit: ProgramUnit): Promise<SimReply | undefined> {
+    if (this.refusing?.match(unit.header)) {
+      this.queue(new SimCommandError('dataOutOfRange', `${unit.header} refused (simulated fault)`));
+      return undefined;
+    }
     for (const { pattern, handler } of this.commands) {
       const suffixes = pattern.match(unit.header);
       if (!suffixes) continue;

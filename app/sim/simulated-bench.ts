@@ -17,6 +17,7 @@ import { listenPty, listenTcp, type Endpoint } from './endpoints';
 import { FaultState, type SimFault } from './faults';
 import type { LinkOptions } from './link-server';
 import { SimGenerator } from './sim-generator';
+import { HeaderPattern } from './program-message';
 import { SimMeter } from './sim-meter';
 import { SimScope } from './sim-scope';
 import type { SimInstrument } from './sim-instrument';
@@ -50,6 +51,8 @@ export interface SimulatedBench {
   design: Design;
   /** The signal model, for tests that compare readings with theory. */
   model: BenchModel;
+  /** The simulated generator, for tests that read what it actually holds. */
+  generator: SimGenerator;
   readonly simulated: true;
   /** Sets (or with null clears) a fault on one instrument or all of them. */
   setFault(role: InstrumentRole | 'all', fault: SimFault | null): Promise<void>;
@@ -70,7 +73,8 @@ export async function startSimulatedBench(options: SimulatedBenchOptions): Promi
   const model = new BenchModel(new CircuitUnderTest(design, SIM_SOURCE_IMPEDANCE_OHM), clock, noiseVrms, seed);
   const meter = new SimMeter(model, clock);
   const scope = new SimScope(model, clock);
-  const instruments: Record<InstrumentRole, SimInstrument> = { generator: new SimGenerator(model, clock), meter, scope };
+  const generator = new SimGenerator(model, clock);
+  const instruments: Record<InstrumentRole, SimInstrument> = { generator, meter, scope };
   const faults: Record<InstrumentRole, FaultState> = { generator: new FaultState(), meter: new FaultState(), scope: new FaultState() };
   const linkRandom = new SeededRandom(seed ^ 0x5eed);
 
@@ -110,6 +114,7 @@ export async function startSimulatedBench(options: SimulatedBenchOptions): Promi
         continue;
       }
       faults[target].set(fault ?? undefined);
+      instruments[target].refusing = fault?.kind === 'refuse' ? new HeaderPattern(fault.header) : undefined;
       const forced = fault?.kind === 'overrange' || fault?.kind === 'nan' ? fault.kind : undefined;
       if (target === 'meter') meter.forcedReading = forced;
       if (target === 'scope') scope.forcedReading = forced;
@@ -126,6 +131,7 @@ export async function startSimulatedBench(options: SimulatedBenchOptions): Promi
     clock,
     design,
     model,
+    generator,
     simulated: true,
     setFault,
     stop: async () => {

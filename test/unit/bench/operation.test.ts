@@ -40,3 +40,28 @@ describe('OperationRunner query operations', () => {
     expect(sent).toEqual(['MEASure:VPP? CHANnel2']);
   });
 });
+
+describe('OperationRunner settings end at a confirmed moment', () => {
+  it('with error checks on, the settings carry the error-queue read (SCPI-1999 SYSTem:ERRor?)', async () => {
+    const { session, sent } = recordingSession('0,"No error"');
+    const runner = new OperationRunner(session, findProfile('scpi-meter', 'meter'));
+    await runner.set('acRangeAuto');
+    await runner.flush();
+    expect(sent).toHaveLength(1);
+    expect(sent[0]).toMatch(/;:SYSTem:ERRor\?$/);
+  });
+
+  it('with error checks off, the settings end with *OPC? and the reply 1 is required (IEEE 488.2 §10.19, recalled)', async () => {
+    const profile = { ...findProfile('scpi-meter', 'meter'), checkErrors: false };
+    const { session, sent } = recordingSession('1');
+    const runner = new OperationRunner(session, profile);
+    await runner.set('acRangeAuto');
+    await runner.flush();
+    expect(sent).toHaveLength(1);
+    expect(sent[0]).toMatch(/;\*OPC\?$/);
+    const wrong = recordingSession('0');
+    const refused = new OperationRunner(wrong.session, profile);
+    await refused.set('acRangeAuto');
+    await expect(refused.flush()).rejects.toThrow(/not the operation-complete reply 1/);
+  });
+});

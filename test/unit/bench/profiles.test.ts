@@ -37,6 +37,19 @@ describe('shipped profiles', () => {
 });
 
 describe('broken profiles are refused naming the field', () => {
+  it('a generator without error checks (a refused amplitude would go unseen)', () => {
+    const json = { ...clone(scpiGenerator), checkErrors: false };
+    expect(refusal(json).field).toBe('checkErrors');
+  });
+
+  it('a minimum amplitude that is negative or not below the maximum', () => {
+    for (const minAmplitudeVpp of [-0.1, 20, 25, 'small']) {
+      const json = clone(scpiGenerator) as Record<string, any>;
+      json.generator.minAmplitudeVpp = minAmplitudeVpp;
+      expect(refusal(json).field).toBe('generator.minAmplitudeVpp');
+    }
+  });
+
   it('missing operation', () => {
     const json = clone(scpiGenerator) as Record<string, any>;
     delete json.operations.frequency;
