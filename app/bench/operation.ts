@@ -69,6 +69,16 @@ export class OperationRunner {
     return this.session.query(this.queryMessage(name, values), { timeoutS: timeoutS ?? this.profile.timeoutS });
   }
 
+  /**
+   * A setting operation followed by `query` (e.g. `*OPC?`) in one program message, as one write: the
+   * query's reply says when the instrument has done what the commands started. Returns that reply.
+   */
+  async setThenQuery(name: string, query: string, values: Record<string, number> = {}, timeoutS?: number): Promise<string> {
+    await this.flush();
+    const message = [...this.commands(name, values), query].map(rooted).join(';');
+    return this.session.query(message, { timeoutS: timeoutS ?? this.profile.timeoutS });
+  }
+
   /** A query with a block reply. */
   async queryBlock(name: string, values: Record<string, number> = {}, timeoutS?: number): Promise<Uint8Array> {
     await this.flush();

@@ -44,24 +44,49 @@ export const OPERATION_RULES: Record<InstrumentRole, Record<string, OperationRul
   },
   scope: {
     channelOn: op('turn a channel on', ['channel']),
-    verticalScale: op('volts per division', ['channel', 'voltsPerDiv']),
+    verticalScale: op('vertical scale of a channel', ['channel', 'voltsPerDiv', 'rangeV', 'rangeVpp']),
     timebase: op('horizontal scale', ['secondsPerDiv', 'secondsPerRecord']),
-    acquire: op('capture one record of both channels and wait for it', [], true),
-    waveformPreamble: op('waveform scaling of a channel', ['channel'], true),
-    waveformData: op('waveform data block of a channel', ['channel'], true),
-    // One program message, one response message: channel 1 preamble; channel 1 data; channel 2 preamble; channel 2 data.
-    waveformBoth: op('preamble and data of channel 1, then of channel 2, in one response message', [], true, false),
+    // Completion (scope.acquisitionComplete) is added by the control: *OPC? in the same message, or a status poll.
+    acquire: op('start one record of both channels'),
+    waveformScaling: op('the numbers that scale a channel\'s data (scope.scaling.fields)', ['channel'], true, false),
+    waveformData: op('waveform data of a channel', ['channel'], true),
+    // One program message, one response message: per channel 1 then 2, its scaling reply (when scope.scaling.fields has any) and its data.
+    waveformBoth: op('scaling and data of channel 1, then of channel 2, in one response message', [], true, false),
     measureAmplitudeVpp: op('peak-to-peak of a channel', ['channel'], true, false),
     measurePhaseDeg: op('phase of channel 2 relative to channel 1', [], true, false),
   },
 };
 
-export type WaveformEncoding = 'int8' | 'int16-le' | 'int16-be' | 'float32-le' | 'float32-be';
-export const WAVEFORM_ENCODINGS: readonly WaveformEncoding[] = ['int8', 'int16-le', 'int16-be', 'float32-le', 'float32-be'];
+/** Binary sample types: two's complement (int), offset-free unsigned (uint) or IEEE 754 (float). */
+export const SAMPLE_TYPES = ['int8', 'uint8', 'int16', 'uint16', 'int32', 'float32', 'float64'] as const;
+export type SampleType = (typeof SAMPLE_TYPES)[number];
+export const BYTE_ORDERS = ['big', 'little'] as const;
+export type ByteOrder = (typeof BYTE_ORDERS)[number];
 
-/** Names a preamble field may take; volts = (code − codeOffset) · voltsPerCode + voltsOffset. */
-export const PREAMBLE_FIELDS = ['points', 'sampleIntervalS', 'xOriginS', 'voltsPerCode', 'codeOffset', 'voltsOffset', 'ignore'] as const;
-export type PreambleField = (typeof PREAMBLE_FIELDS)[number];
+/**
+ * How a channel's data arrives: a comma-separated list of numbers (ASCII), or
+ * a definite-length block (IEEE 488.2 §8.7.9, recalled from memory) of samples.
+ */
+export type WaveformData = { format: 'ascii' } | { format: 'binary'; sample: SampleType; byteOrder: ByteOrder };
+
+/** Quantities that scale data; volts = (code − codeOffset) · voltsPerCode + voltsOffset. */
+export const SCALING_QUANTITIES = ['points', 'sampleIntervalS', 'xOriginS', 'voltsPerCode', 'codeOffset', 'voltsOffset'] as const;
+export type ScalingQuantity = (typeof SCALING_QUANTITIES)[number];
+/** Names a field of the scaling reply may take ('ignore' skips one). */
+export type ScalingField = ScalingQuantity | 'ignore';
+
+export interface WaveformScalingSource {
+  /** The numbers of the waveformScaling reply, in order; empty when there is no such query. */
+  fields: ScalingField[];
+  /** Quantities that do not change, e.g. volts per code of a converter with a fixed range. */
+  fixed: Partial<Record<ScalingQuantity, number>>;
+}
+
+/** A status value the poll waits for: equal to a number, or with all bits of a mask clear or set. */
+export type PollCondition = { equals: number } | { bitsClear: number } | { bitsSet: number };
+
+/** How the control learns an acquisition is complete. */
+export type AcquisitionComplete = { method: 'opc' } | { method: 'poll'; query: string; until: PollCondition; intervalS: number };
 
 interface ProfileCommon {
   id: string;
@@ -73,6 +98,8 @@ interface ProfileCommon {
   timeoutS: number;
   /** Operation name → commands, in order. */
   operations: Record<string, string[]>;
+  /** Where each command comes from (a standard's volume and chapter, or "our own"): field path → text. Shown, never sent. */
+  references: Record<string, string>;
   /** File it came from ("built-in: NAME.json" for shipped ones). */
   source: string;
   builtIn: boolean;
@@ -90,14 +117,22 @@ export interface MeterProfile extends ProfileCommon {
 
 export interface ScopeProfile extends ProfileCommon {
   role: 'scope';
-  scope: { divisions: number; encoding: WaveformEncoding; preambleFields: PreambleField[] };
+  scope: {
+    /** Horizontal divisions ({secondsPerDiv} = record ÷ divisions). */
+    divisions: number;
+    /** Vertical divisions on screen: {rangeVpp} = voltsPerDiv · verticalDivisions, {rangeV} half that. */
+    verticalDivisions: number;
+    data: WaveformData;
+    scaling: WaveformScalingSource;
+    acquisitionComplete: AcquisitionComplete;
+  };
 }
 
 export type Profile = GeneratorProfile | MeterProfile | ScopeProfile;
 export type ProfileFor<R extends InstrumentRole> = Extract<Profile, { role: R }>;
 
 const ID_PATTERN = /^[a-z0-9][a-z0-9._-]{0,63}$/;
-const TOP_LEVEL_FIELDS = new Set(['id', 'role', 'description', 'init', 'checkErrors', 'timeoutS', 'operations', 'generator', 'meter', 'scope']);
+const TOP_LEVEL_FIELDS = new Set(['id', 'role', 'description', 'init', 'checkErrors', 'timeoutS', 'operations', 'references', 'generator', 'meter', 'scope']);
 
 /** Validates parsed JSON as a profile. `file` names it in every error. */
 export function validateProfile(json: unknown, file: string, builtIn = false): Profile {
@@ -125,13 +160,23 @@ export function validateProfile(json: unknown, file: string, builtIn = false): P
 
   const operations = validateOperations(file, role, json.operations);
   const common = { id: id as string, description: description as string, init: init as string[], checkErrors: checkErrors as boolean, timeoutS: timeoutS as number, operations, source: file, builtIn };
+  // Checked last: a reference to a missing operation is a smaller problem than the missing operation.
+  const references = () => validateReferences(file, json.references, operations, init as string[]);
 
   for (const other of INSTRUMENT_ROLES) {
     if (other !== role && json[other] !== undefined) fail(other, `settings for a ${other} in a ${role} profile`);
   }
-  if (role === 'generator') return { ...common, role, generator: validateGeneratorSettings(file, json.generator) };
-  if (role === 'meter') return { ...common, role, meter: validateMeterSettings(file, json.meter) };
-  return { ...common, role, scope: validateScopeSettings(file, json.scope) };
+  if (role === 'generator') {
+    const generator = validateGeneratorSettings(file, json.generator);
+    return { ...common, references: references(), role, generator };
+  }
+  if (role === 'meter') {
+    const meter = validateMeterSettings(file, json.meter);
+    return { ...common, references: references(), role, meter };
+  }
+  const scope = validateScopeSettings(file, json.scope);
+  checkScopeOperations(file, scope, operations);
+  return { ...common, references: references(), role, scope };
 }
 
 function validateOperations(file: string, role: InstrumentRole, raw: unknown): Record<string, string[]> {
@@ -200,19 +245,111 @@ function validateMeterSettings(file: string, raw: unknown): MeterProfile['meter'
 }
 
 function validateScopeSettings(file: string, raw: unknown): ScopeProfile['scope'] {
-  if (!isRecord(raw)) throw new ProfileError(file, 'scope', 'must be an object with divisions, encoding, preambleFields');
-  const divisions = positiveNumber(file, 'scope.divisions', raw.divisions, 10);
-  if (!Number.isInteger(divisions)) throw new ProfileError(file, 'scope.divisions', 'must be a whole number');
-  const encoding = raw.encoding;
-  if (!WAVEFORM_ENCODINGS.includes(encoding as WaveformEncoding)) throw new ProfileError(file, 'scope.encoding', `must be one of ${WAVEFORM_ENCODINGS.join(', ')}`);
-  const fields = raw.preambleFields;
-  if (!Array.isArray(fields)) throw new ProfileError(file, 'scope.preambleFields', 'must be a list of field names');
-  fields.forEach((f, i) => {
-    if (!PREAMBLE_FIELDS.includes(f)) throw new ProfileError(file, `scope.preambleFields[${i}]`, `"${f}" is not one of ${PREAMBLE_FIELDS.join(', ')}`);
+  if (!isRecord(raw)) throw new ProfileError(file, 'scope', 'must be an object with divisions, data, scaling and acquisitionComplete');
+  for (const old of ['encoding', 'preambleFields']) {
+    if (raw[old] !== undefined) throw new ProfileError(file, `scope.${old}`, 'is an older form: describe the data with scope.data and scope.scaling (see app/bench/profiles/README.md)');
+  }
+  const known = ['divisions', 'verticalDivisions', 'data', 'scaling', 'acquisitionComplete'];
+  for (const key of Object.keys(raw)) if (!known.includes(key)) throw new ProfileError(file, `scope.${key}`, `is not a scope field (known: ${known.join(', ')})`);
+  const divisions = wholeNumber(file, 'scope.divisions', raw.divisions, 10);
+  const verticalDivisions = wholeNumber(file, 'scope.verticalDivisions', raw.verticalDivisions, 10);
+  const data = validateWaveformData(file, raw.data);
+  const scaling = validateScaling(file, raw.scaling, data);
+  const acquisitionComplete = validateAcquisitionComplete(file, raw.acquisitionComplete);
+  return { divisions, verticalDivisions, data, scaling, acquisitionComplete };
+}
+
+function wholeNumber(file: string, field: string, value: unknown, fallback: number): number {
+  const v = positiveNumber(file, field, value, fallback);
+  if (!Number.isInteger(v)) throw new ProfileError(file, field, 'must be a whole number');
+  return v;
+}
+
+function validateWaveformData(file: string, raw: unknown): WaveformData {
+  if (!isRecord(raw)) throw new ProfileError(file, 'scope.data', 'must be {"format": "ascii"} or {"format": "binary", "sample": …, "byteOrder": …}');
+  if (raw.format === 'ascii') {
+    for (const key of Object.keys(raw)) if (key !== 'format') throw new ProfileError(file, `scope.data.${key}`, 'does not apply to ASCII data');
+    return { format: 'ascii' };
+  }
+  if (raw.format !== 'binary') throw new ProfileError(file, 'scope.data.format', 'must be "ascii" or "binary"');
+  if (!SAMPLE_TYPES.includes(raw.sample as SampleType)) throw new ProfileError(file, 'scope.data.sample', `must be one of ${SAMPLE_TYPES.join(', ')}`);
+  const sample = raw.sample as SampleType;
+  const single = sample === 'int8' || sample === 'uint8';
+  const byteOrder = raw.byteOrder ?? (single ? 'big' : undefined);
+  if (!BYTE_ORDERS.includes(byteOrder as ByteOrder)) throw new ProfileError(file, 'scope.data.byteOrder', `must be "big" (most significant byte first) or "little"`);
+  for (const key of Object.keys(raw)) if (!['format', 'sample', 'byteOrder'].includes(key)) throw new ProfileError(file, `scope.data.${key}`, 'is not a data field (known: format, sample, byteOrder)');
+  return { format: 'binary', sample, byteOrder: byteOrder as ByteOrder };
+}
+
+function validateScaling(file: string, raw: unknown, data: WaveformData): WaveformScalingSource {
+  if (!isRecord(raw)) throw new ProfileError(file, 'scope.scaling', 'must be an object with "fields" (the scaling reply\'s numbers, in order) and/or "fixed" values');
+  for (const key of Object.keys(raw)) if (key !== 'fields' && key !== 'fixed') throw new ProfileError(file, `scope.scaling.${key}`, 'is not a scaling field (known: fields, fixed)');
+  const fieldsRaw = raw.fields ?? [];
+  if (!Array.isArray(fieldsRaw)) throw new ProfileError(file, 'scope.scaling.fields', 'must be a list of field names');
+  const fields: ScalingField[] = [];
+  fieldsRaw.forEach((f, i) => {
+    if (f !== 'ignore' && !SCALING_QUANTITIES.includes(f)) throw new ProfileError(file, `scope.scaling.fields[${i}]`, `"${f}" is not one of ${[...SCALING_QUANTITIES, 'ignore'].join(', ')}`);
+    if (f !== 'ignore' && fields.includes(f)) throw new ProfileError(file, `scope.scaling.fields[${i}]`, `"${f}" appears twice`);
+    fields.push(f);
   });
-  if (!fields.includes('sampleIntervalS')) throw new ProfileError(file, 'scope.preambleFields', 'must include sampleIntervalS');
-  if (String(encoding).startsWith('int') && !fields.includes('voltsPerCode')) throw new ProfileError(file, 'scope.preambleFields', 'must include voltsPerCode for an integer encoding');
-  return { divisions, encoding: encoding as WaveformEncoding, preambleFields: fields as PreambleField[] };
+  const fixedRaw = raw.fixed ?? {};
+  if (!isRecord(fixedRaw)) throw new ProfileError(file, 'scope.scaling.fixed', 'must map quantities to numbers');
+  const fixed: Partial<Record<ScalingQuantity, number>> = {};
+  for (const [name, value] of Object.entries(fixedRaw)) {
+    const field = `scope.scaling.fixed.${name}`;
+    if (!SCALING_QUANTITIES.includes(name as ScalingQuantity)) throw new ProfileError(file, field, `is not one of ${SCALING_QUANTITIES.join(', ')}`);
+    if (fields.includes(name as ScalingField)) throw new ProfileError(file, field, 'is also read from the scaling reply: give it one source');
+    if (typeof value !== 'number' || !Number.isFinite(value)) throw new ProfileError(file, field, 'must be a number');
+    if ((name === 'sampleIntervalS' || name === 'voltsPerCode') && !(value > 0)) throw new ProfileError(file, field, 'must be positive');
+    if (name === 'points' && !(Number.isInteger(value) && value > 0)) throw new ProfileError(file, field, 'must be a positive whole number');
+    fixed[name as ScalingQuantity] = value;
+  }
+  const given = (q: ScalingQuantity) => fields.includes(q) || fixed[q] !== undefined;
+  if (!given('sampleIntervalS')) throw new ProfileError(file, 'scope.scaling', 'must give sampleIntervalS (a field of the scaling reply, or fixed)');
+  const integer = data.format === 'binary' && !data.sample.startsWith('float');
+  if (integer && !given('voltsPerCode')) throw new ProfileError(file, 'scope.scaling', `must give voltsPerCode for ${data.format === 'binary' ? data.sample : ''} samples (a field of the scaling reply, or fixed)`);
+  return { fields, fixed };
+}
+
+function validateAcquisitionComplete(file: string, raw: unknown): AcquisitionComplete {
+  const field = 'scope.acquisitionComplete';
+  if (raw === undefined || raw === 'opc' || (isRecord(raw) && raw.method === 'opc' && Object.keys(raw).length === 1)) return { method: 'opc' };
+  if (!isRecord(raw) || raw.method !== 'poll') throw new ProfileError(file, field, 'must be "opc" (*OPC? after the start) or {"method": "poll", "query": …, "until": …}');
+  for (const key of Object.keys(raw)) if (!['method', 'query', 'until', 'intervalS'].includes(key)) throw new ProfileError(file, `${field}.${key}`, 'is not a poll field (known: method, query, until, intervalS)');
+  if (typeof raw.query !== 'string') throw new ProfileError(file, `${field}.query`, 'must be a query, e.g. "STATus:OPERation:CONDition?"');
+  checkTemplate(file, `${field}.query`, raw.query, []);
+  if (!isQuery(raw.query)) throw new ProfileError(file, `${field}.query`, 'must be a query (a header ending in "?")');
+  const until = raw.until;
+  const conditions = ['equals', 'bitsClear', 'bitsSet'];
+  if (!isRecord(until) || Object.keys(until).length !== 1 || !conditions.includes(Object.keys(until)[0])) {
+    throw new ProfileError(file, `${field}.until`, 'must be one of {"equals": N}, {"bitsClear": MASK}, {"bitsSet": MASK}');
+  }
+  const [kind, value] = Object.entries(until)[0];
+  if (typeof value !== 'number' || !Number.isFinite(value) || (kind !== 'equals' && !(Number.isInteger(value) && value > 0))) {
+    throw new ProfileError(file, `${field}.until.${kind}`, kind === 'equals' ? 'must be a number' : 'must be a positive whole number (a bit mask)');
+  }
+  const intervalS = positiveNumber(file, `${field}.intervalS`, raw.intervalS, 0.01);
+  return { method: 'poll', query: raw.query, until: { [kind]: value } as PollCondition, intervalS };
+}
+
+/** The scaling query exists exactly when the scaling reads fields from it. */
+function checkScopeOperations(file: string, scope: ScopeProfile['scope'], operations: Record<string, string[]>): void {
+  const needsQuery = scope.scaling.fields.length > 0;
+  if (needsQuery && !operations.waveformScaling) throw new ProfileError(file, 'operations.waveformScaling', 'is missing (scope.scaling.fields names the numbers of its reply)');
+  if (!needsQuery && operations.waveformScaling) throw new ProfileError(file, 'operations.waveformScaling', 'has no fields to read: list them in scope.scaling.fields, or remove the operation');
+}
+
+function validateReferences(file: string, raw: unknown, operations: Record<string, string[]>, init: string[]): Record<string, string> {
+  if (raw === undefined) return {};
+  if (!isRecord(raw)) throw new ProfileError(file, 'references', 'must map fields (e.g. "operations.frequency") to text');
+  for (const [key, value] of Object.entries(raw)) {
+    if (typeof value !== 'string') throw new ProfileError(file, `references.${key}`, 'must be text');
+    const operation = /^operations\.(\w+)$/.exec(key);
+    const initIndex = /^init\[(\d+)\]$/.exec(key);
+    const known = (operation && operations[operation[1]]) || (initIndex && Number(initIndex[1]) < init.length) || /^(scope|generator|meter)\./.test(key);
+    if (!known) throw new ProfileError(file, `references.${key}`, 'names no operation or init command of this profile');
+  }
+  return raw as Record<string, string>;
 }
 
 function isRecord(value: unknown): value is Record<string, unknown> {

@@ -8,10 +8,12 @@
  * - no-reply: queries get no reply (with `probability`, default 1);
  * - hang: the instrument stops processing commands until the fault is cleared
  *   (a command that never completes);
- * - overrange / nan: meter and scope measurements read 9.9E37 / 9.91E37;
+ * - overrange / nan: meter measurements read 9.9E37 / 9.91E37, scope samples sit at the converter's limit;
  * - refuse: commands with one header (e.g. SOURce:VOLTage) are refused with
  *   -222 "Data out of range" and not applied, the rest are taken — an
- *   instrument that refuses part of a settings message.
+ *   instrument that refuses part of a settings message;
+ * - unknown-headers: the listed headers (SCPI pattern form, e.g. "INPut#[:STATe]", "TRACe:SCALing?") are not
+ *   understood: each queues −113 "Undefined header", as an instrument without that command does.
  */
 import { ValidationError } from '../errors';
 
@@ -23,11 +25,15 @@ export type SimFault =
   | { kind: 'hang' }
   | { kind: 'overrange' }
   | { kind: 'nan' }
-  | { kind: 'refuse'; header: string };
+  | { kind: 'refuse'; header: string }
+  | { kind: 'unknown-headers'; headers: string[] };
 
-export const FAULT_KINDS = ['drop-link', 'garbage', 'slow', 'no-reply', 'hang', 'overrange', 'nan', 'refuse'] as const;
+export const FAULT_KINDS = ['drop-link', 'garbage', 'slow', 'no-reply', 'hang', 'overrange', 'nan', 'refuse', 'unknown-headers'] as const;
 
-/** Parses the CLI form: "KIND", "KIND:VALUE" (probability or delay), optionally "ROLE=" first. */
+/**
+ * Parses the CLI form: "KIND", "KIND:VALUE" (probability or delay), "refuse:HEADER" or
+ * "unknown-headers:HEADER,HEADER" (SCPI patterns, which contain ':' themselves), optionally "ROLE=" first.
+ */
 export function parseFaultSpec(text: string): { role: 'generator' | 'meter' | 'scope' | 'all'; fault: SimFault } {
   const where = `--fault ${text}`;
   let rest = text.trim();
@@ -41,6 +47,11 @@ export function parseFaultSpec(text: string): { role: 'generator' | 'meter' | 's
     const header = rest.slice('refuse:'.length).trim();
     if (!/^[A-Za-z*:\[\]#]+$/.test(header)) throw new ValidationError(where, `"${header}" is not a command header`, 'Give the header to refuse, e.g. generator=refuse:SOURce:VOLTage.');
     return { role, fault: { kind: 'refuse', header } };
+  }
+  if (rest.startsWith('unknown-headers:')) {
+    const headers = rest.slice('unknown-headers:'.length).split(',').map((h) => h.trim()).filter((h) => h !== '');
+    if (headers.length === 0) throw new ValidationError(where, 'unknown-headers needs the headers to refuse, e.g. unknown-headers:INPut#[:STATe],TRACe:SCALing?');
+    return { role, fault: { kind: 'unknown-headers', headers } };
   }
   const [kind, valueText] = rest.split(':');
   const value = valueText === undefined ? undefined : Number(valueText);
@@ -62,7 +73,7 @@ export function parseFaultSpec(text: string): { role: 'generator' | 'meter' | 's
       if (value === undefined || !(value >= 0)) throw new ValidationError(where, 'slow needs a delay in seconds, e.g. slow:0.5');
       return { role, fault: { kind, delayS: value } };
     default:
-      throw new ValidationError(where, `unknown fault "${kind}"`, `Faults: ${FAULT_KINDS.join(', ')}; optionally ROLE=KIND[:VALUE], e.g. meter=garbage:0.1 or generator=refuse:SOURce:VOLTage.`);
+      throw new ValidationError(where, `unknown fault "${kind}"`, `Faults: ${FAULT_KINDS.join(', ')}; optionally ROLE=KIND[:VALUE], e.g. meter=garbage:0.1, generator=refuse:SOURce:VOLTage or scope=unknown-headers:INPut#[:STATe],TRACe:SCALing?.`);
   }
 }
 

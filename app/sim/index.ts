@@ -7,5 +7,4 @@ export * from './circuit-under-test';
 export { SIMULATED_MANUFACTURER } from './sim-instrument';
 export { SIM_METER_AC_BANDWIDTH_HZ } from './sim-meter';
 export { SIM_GENERATOR_LIMITS } from './sim-generator';
-export { SIM_SCOPE_DIVISIONS } from './sim-scope';
 export { LOOPBACK_HOST, SIM_SERIAL_BAUD } from './endpoints';

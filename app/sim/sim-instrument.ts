@@ -31,6 +31,8 @@ export const SIMULATED_MANUFACTURER = 'Rolloff simulated bench (simulated)';
 export abstract class SimInstrument {
   readonly errors = new SimErrorQueue();
   private readonly commands: Array<{ pattern: HeaderPattern; handler: CommandHandler }> = [];
+  /** Headers this instrument behaves as if it did not have (the unknown-headers fault). */
+  private refused: HeaderPattern[] = [];
   private eventStatus = 0;
   /** Commands with this header are refused (-222) and not applied: the `refuse` fault. */
   refusing: HeaderPattern | undefined;
@@ -106,9 +108,18 @@ export abstract class SimInstrument {
     return joined;
   }
 
+  /** From now on, headers matching these SCPI patterns queue −113 "Undefined header" (empty: none). */
+  refuseHeaders(patterns: readonly string[]): void {
+    this.refused = patterns.map((p) => new HeaderPattern(p));
+  }
+
   private async executeUnit(unit: ProgramUnit): Promise<SimReply | undefined> {
     if (this.refusing?.match(unit.header)) {
       this.queue(new SimCommandError('dataOutOfRange', `${unit.header} refused (simulated fault)`));
+      return undefined;
+    }
+    if (this.refused.some((pattern) => pattern.match(unit.header))) {
+      this.queue(new SimCommandError('undefinedHeader', unit.header));
       return undefined;
     }
     for (const { pattern, handler } of this.commands) {

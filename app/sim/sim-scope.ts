@@ -1,13 +1,16 @@
 /**
- * Simulated two-channel digitizing scope: channel 1 on the circuit input,
- * channel 2 on the output. INITiate captures one record of both channels on
- * one time base; *OPC? answers when the record is complete; WAVeform:DATA?
- * returns it as a definite-length block (16-bit integers or 32-bit floats).
+ * Simulated two-channel digitizer, spoken to in SCPI-1999 terms (what the
+ * shipped scope profile sends): INPut<n>:STATe, SENSe<n>:VOLTage:RANGe,
+ * SENSe:SWEep:TIME / :POINts, INITiate, *OPC?, STATus:OPERation:CONDition?,
+ * FORMat[:DATA] / :BORDer, TRACe[:DATA]? CH<n>. Channel 1 is on the circuit
+ * input, channel 2 on the output; INITiate captures one record of both on one
+ * time base. TRACe:SCALing? CH<n> is this instrument's own query (SCPI-1999 has
+ * none for waveform scaling): points, sample interval s, first-sample time s,
+ * volts per code, code offset, volts offset.
  */
 import type { BenchClock } from '../bench/clock';
 import { encodeBlock } from '../scpi/block';
-import { SCPI_INFINITY, SCPI_NOT_A_NUMBER } from '../scpi/reading';
-import { degreesFromRadians, wrapPhaseDeg } from '../units';
+import { SCPI_INFINITY } from '../scpi/reading';
 import type { BenchModel, BenchNode } from './bench-model';
 import { booleanParam, expectParamCount, formatNr3, keywordParam, numberParam } from './parameters';
 import { keywordIs } from './program-message';
@@ -16,38 +19,42 @@ import { SimInstrument, SIMULATED_MANUFACTURER } from './sim-instrument';
 import { sliceBounds } from './slices';
 import { SOFTWARE_VERSION } from '../contract/version';
 
-export const SIM_SCOPE_DIVISIONS = 10;
-/** Codes for ±5 vertical divisions; the 16-bit converter clips beyond ±32767. */
-const CODES_PER_FIVE_DIVISIONS = 32000;
-const CODE_LIMIT = 32767;
+/** Codes for the full range (SENSe:VOLTage:RANGe) per integer width; the converter reaches a little beyond it. */
+const CODES_PER_RANGE: Record<8 | 16, number> = { 8: 125, 16: 32000 };
+/** The converter's input limit as a multiple of the range: the 16-bit code 32767 (a simulated figure). */
+const LIMIT_PER_RANGE = 32767 / 32000;
 const SAMPLES_PER_SLICE = 512;
 const LAST_SLICE_SAMPLES = 64;
+/** STATus:OPERation condition bit 4, MEASuring (SCPI-1999 Vol. 1 status reporting, bit recalled from memory). */
+const OPERATION_MEASURING = 16;
+
+type DataFormat = { kind: 'ascii' } | { kind: 'integer'; bits: 8 | 16; unsigned: boolean } | { kind: 'real32' };
 
 interface Capture {
   intervalS: number;
-  /** Volts as seen by the converter (clipped to its range). */
+  /** Volts as seen by the converter (clipped to its input limit). */
   channels: [Float64Array, Float64Array];
-  voltsPerCode: [number, number];
-  frequencyHz: number;
+  rangeV: [number, number];
 }
 
 const CHANNEL_NODE: Record<1 | 2, BenchNode> = { 1: 'input', 2: 'output' };
+const POWER_ON = { rangeV: 5, recordS: 0.01, points: 2000 };
 
 export class SimScope extends SimInstrument {
-  private voltsPerDiv: [number, number] = [1, 1];
+  private rangeV: [number, number] = [POWER_ON.rangeV, POWER_ON.rangeV];
   private channelOn: [boolean, boolean] = [true, true];
-  private secondsPerDiv = 1e-3;
-  private points = 2000;
-  private format: 'int16' | 'real32' = 'int16';
+  private recordS = POWER_ON.recordS;
+  private points = POWER_ON.points;
+  private format: DataFormat = { kind: 'integer', bits: 16, unsigned: false };
   private littleEndian = false;
-  private source: 1 | 2 = 1;
   private capture: Capture | undefined;
   /** Samples of the latest record, computed slice by slice; done a little after the record's time is over. */
   private acquisition: Promise<void> | undefined;
   /** The latest record's time is over (what *OPC? waits for). */
   private recordOver: Promise<void> | undefined;
   private recordIsOver = false;
-  /** Fault injection: replace measurement replies by SCPI overrange / not-a-number. */
+  private measuring = false;
+  /** Fault injection: every sample at the converter's limit (an overdriven input). */
   forcedReading: 'overrange' | 'nan' | undefined;
 
   constructor(
@@ -55,76 +62,57 @@ export class SimScope extends SimInstrument {
     clock: BenchClock,
   ) {
     super({ manufacturer: SIMULATED_MANUFACTURER, model: 'simulated scope', serialNumber: 'SIM-SCP-0001', firmware: SOFTWARE_VERSION }, clock);
-    this.define('CHANnel#[:STATe]', ({ params, suffixes }) => {
+    this.define('INPut#[:STATe]', ({ params, suffixes }) => {
       this.channelOn[channelIndex(suffixes[0])] = booleanParam(params);
     });
-    this.define('CHANnel#:SCALe', ({ params, suffixes }) => {
-      this.voltsPerDiv[channelIndex(suffixes[0])] = numberParam(params, 1e-3, 100);
+    this.define('INPut#[:STATe]?', ({ suffixes }) => (this.channelOn[channelIndex(suffixes[0])] ? '1' : '0'));
+    this.define('[SENSe#]:VOLTage[:DC]:RANGe[:UPPer]', ({ params, suffixes }) => {
+      this.rangeV[channelIndex(suffixes[0])] = numberParam(params, 5e-3, 500);
     });
-    this.define('CHANnel#:SCALe?', ({ suffixes }) => formatNr3(this.voltsPerDiv[channelIndex(suffixes[0])]));
-    this.define('TIMebase:SCALe', ({ params }) => {
-      this.secondsPerDiv = numberParam(params, 1e-9, 50);
+    this.define('[SENSe#]:VOLTage[:DC]:RANGe[:UPPer]?', ({ suffixes }) => formatNr3(this.rangeV[channelIndex(suffixes[0])]));
+    this.define('[SENSe]:SWEep:TIME', ({ params }) => {
+      this.recordS = numberParam(params, 1e-8, 500);
     });
-    this.define('TIMebase:SCALe?', () => formatNr3(this.secondsPerDiv));
-    this.define('ACQuire:POINts', ({ params }) => {
+    this.define('[SENSe]:SWEep:TIME?', () => formatNr3(this.recordS));
+    this.define('[SENSe]:SWEep:POINts', ({ params }) => {
       this.points = Math.round(numberParam(params, 100, 100_000));
     });
-    this.define('ACQuire:POINts?', () => String(this.points));
+    this.define('[SENSe]:SWEep:POINts?', () => String(this.points));
+    this.define('[SENSe]:SWEep:TINTerval?', () => formatNr3(this.recordS / this.points));
     this.define('FORMat[:DATA]', ({ params }) => {
-      if (params.length === 2 && keywordIs(params[0], 'INTeger') && params[1] === '16') this.format = 'int16';
-      else if (params.length === 2 && keywordIs(params[0], 'REAL') && params[1] === '32') this.format = 'real32';
-      else throw new SimCommandError('illegalParameterValue', 'INTeger,16 or REAL,32');
+      this.format = dataFormatParam(params);
     });
+    this.define('FORMat[:DATA]?', () => formatName(this.format));
     this.define('FORMat:BORDer', ({ params }) => {
       this.littleEndian = keywordParam(params, ['NORMal', 'SWAPped'] as const) === 'SWAPped';
     });
+    this.define('FORMat:BORDer?', () => (this.littleEndian ? 'SWAP' : 'NORM'));
     this.define('INITiate[:IMMediate]', () => {
       this.startAcquisition();
     });
-    this.define('WAVeform:SOURce', ({ params }) => {
-      this.source = channelParam(params);
-    });
-    this.define('WAVeform:PREamble?', async () => {
+    this.define('STATus:OPERation:CONDition?', () => String(this.measuring ? OPERATION_MEASURING : 0));
+    this.define('TRACe:SCALing?', async ({ params }) => {
+      const channel = traceParam(params);
       const capture = await this.completedCapture();
-      const voltsPerCode = this.format === 'int16' ? capture.voltsPerCode[this.source - 1] : 1;
-      // points, sample interval, x origin, volts per code, code offset, volts offset
-      return [String(capture.channels[0].length), formatNr3(capture.intervalS), formatNr3(0), formatNr3(voltsPerCode), '0', formatNr3(0)].join(',');
+      const { voltsPerCode, codeOffset } = this.codeScaling(capture.rangeV[channel - 1]);
+      return [String(capture.channels[0].length), formatNr3(capture.intervalS), formatNr3(0), formatNr3(voltsPerCode), String(codeOffset), formatNr3(0)].join(',');
     });
-    this.define('WAVeform:DATA?', async () => encodeBlock(this.encode(await this.completedCapture(), this.source)));
-    this.define('MEASure:VPP?', async ({ params }) => {
-      const channel = channelParam(params);
+    this.define('TRACe[:DATA]?', async ({ params }) => {
+      const channel = traceParam(params);
       const capture = await this.completedCapture();
-      if (this.forcedReading) return this.forced();
-      const samples = capture.channels[channel - 1];
-      let min = Infinity;
-      let max = -Infinity;
-      for (const v of samples) {
-        min = Math.min(min, v);
-        max = Math.max(max, v);
-      }
-      const limitV = CODE_LIMIT * capture.voltsPerCode[channel - 1];
-      if (max >= limitV || min <= -limitV) return formatNr3(SCPI_INFINITY);
-      return formatNr3(max - min);
-    });
-    this.define('MEASure:PHASe?', async ({ params }) => {
-      if (params.length !== 2) throw new SimCommandError('missingParameter', 'CHANnel1,CHANnel2');
-      const capture = await this.completedCapture();
-      if (this.forcedReading) return this.forced();
-      const [a, b] = params.map((p) => channelParam([p]));
-      const phaseA = phaseAtRad(capture.channels[a - 1], capture.intervalS, capture.frequencyHz);
-      const phaseB = phaseAtRad(capture.channels[b - 1], capture.intervalS, capture.frequencyHz);
-      if (phaseA === undefined || phaseB === undefined) return formatNr3(SCPI_NOT_A_NUMBER);
-      return formatNr3(wrapPhaseDeg(degreesFromRadians(phaseB - phaseA)));
+      const encoded = this.encode(capture, channel);
+      return typeof encoded === 'string' ? encoded : encodeBlock(encoded);
     });
   }
 
   protected reset(): void {
-    this.voltsPerDiv = [1, 1];
+    this.rangeV = [POWER_ON.rangeV, POWER_ON.rangeV];
     this.channelOn = [true, true];
-    this.secondsPerDiv = 1e-3;
-    this.points = 2000;
-    this.format = 'int16';
+    this.recordS = POWER_ON.recordS;
+    this.points = POWER_ON.points;
+    this.format = { kind: 'integer', bits: 16, unsigned: false };
     this.littleEndian = false;
+    this.measuring = false;
     this.capture = undefined;
     this.recordOver = undefined;
     this.recordIsOver = false;
@@ -144,20 +132,22 @@ export class SimScope extends SimInstrument {
 
   private startAcquisition(): void {
     const startS = this.clock.nowS();
-    const recordS = this.secondsPerDiv * SIM_SCOPE_DIVISIONS;
-    const intervalS = recordS / this.points;
+    const intervalS = this.recordS / this.points;
     const points = this.points;
-    const voltsPerCode: [number, number] = [(5 * this.voltsPerDiv[0]) / CODES_PER_FIVE_DIVISIONS, (5 * this.voltsPerDiv[1]) / CODES_PER_FIVE_DIVISIONS];
+    const rangeV: [number, number] = [this.rangeV[0], this.rangeV[1]];
     this.capture = undefined;
     this.recordIsOver = false;
+    this.measuring = true;
     let over = () => {};
     const recordOver = new Promise<void>((resolve) => (over = resolve)).then(() => {
-      if (this.recordOver === recordOver) this.recordIsOver = true;
+      if (this.recordOver === recordOver) {
+        this.recordIsOver = true;
+        this.measuring = false;
+      }
     });
     this.recordOver = recordOver;
-    const frequencyHz = this.model.generatorOutput.frequencyHz;
-    this.acquisition = this.record(startS, intervalS, points, voltsPerCode, over).then((channels) => {
-      this.capture = { intervalS, channels, voltsPerCode, frequencyHz };
+    this.acquisition = this.record(startS, intervalS, points, rangeV, over).then((channels) => {
+      this.capture = { intervalS, channels, rangeV };
     });
   }
 
@@ -166,7 +156,7 @@ export class SimScope extends SimInstrument {
    * the record's time is over, and the samples still to compute wait one turn of the event loop, so a
    * waiting *OPC? has its reply under way first.
    */
-  private async record(startS: number, intervalS: number, points: number, voltsPerCode: [number, number], over: () => void): Promise<[Float64Array, Float64Array]> {
+  private async record(startS: number, intervalS: number, points: number, rangeV: [number, number], over: () => void): Promise<[Float64Array, Float64Array]> {
     const channels: [Float64Array, Float64Array] = [new Float64Array(points), new Float64Array(points)];
     const bounds = sliceBounds(points, SAMPLES_PER_SLICE, LAST_SLICE_SAMPLES);
     const endS = startS + points * intervalS;
@@ -183,7 +173,7 @@ export class SimScope extends SimInstrument {
       for (const channel of [1, 2] as const) {
         const samples = this.model.sample(CHANNEL_NODE[channel], startS + first * intervalS, intervalS, next - first);
         if (!this.channelOn[channel - 1]) samples.fill(0);
-        const limitV = CODE_LIMIT * voltsPerCode[channel - 1];
+        const limitV = LIMIT_PER_RANGE * rangeV[channel - 1];
         for (let i = 0; i < samples.length; i++) samples[i] = Math.max(-limitV, Math.min(limitV, samples[i]));
         channels[channel - 1].set(samples, first);
       }
@@ -196,18 +186,41 @@ export class SimScope extends SimInstrument {
     return this.capture;
   }
 
-  private forced(): string {
-    return formatNr3(this.forcedReading === 'nan' ? SCPI_NOT_A_NUMBER : SCPI_INFINITY);
+  /** Volts per code and the code of 0 V for the present data format and a channel's range. */
+  private codeScaling(rangeV: number): { voltsPerCode: number; codeOffset: number } {
+    if (this.format.kind !== 'integer') return { voltsPerCode: 1, codeOffset: 0 };
+    return { voltsPerCode: rangeV / CODES_PER_RANGE[this.format.bits], codeOffset: this.format.unsigned ? 2 ** (this.format.bits - 1) : 0 };
   }
 
-  private encode(capture: Capture, channel: 1 | 2): Uint8Array {
-    const samples = capture.channels[channel - 1];
-    const bytes = new Uint8Array(samples.length * (this.format === 'int16' ? 2 : 4));
+  /** A channel of the capture in the present format: bytes for a block, text for ASCII. */
+  private encode(capture: Capture, channel: 1 | 2): Uint8Array | string {
+    const rangeV = capture.rangeV[channel - 1];
+    const limitV = LIMIT_PER_RANGE * rangeV;
+    const samples = this.forcedReading ? new Float64Array(capture.channels[channel - 1].length).fill(limitV) : capture.channels[channel - 1];
+    const format = this.format;
+    // At the converter's limit a real or ASCII sample reads SCPI overrange, 9.9E37 (SCPI-1999 Vol. 1 §7.2.1.4, recalled from memory).
+    const real = (v: number) => (Math.abs(v) >= limitV ? Math.sign(v) * SCPI_INFINITY : v);
+    if (format.kind === 'ascii') return Array.from(samples, (v) => formatNr3(real(v))).join(',');
+    if (format.kind === 'real32') {
+      const bytes = new Uint8Array(samples.length * 4);
+      const view = new DataView(bytes.buffer);
+      for (let i = 0; i < samples.length; i++) view.setFloat32(i * 4, real(samples[i]), this.littleEndian);
+      return bytes;
+    }
+    const { voltsPerCode, codeOffset } = this.codeScaling(rangeV);
+    const size = format.bits / 8;
+    const [low, high] = format.unsigned ? [0, 2 ** format.bits - 1] : [-(2 ** (format.bits - 1)), 2 ** (format.bits - 1) - 1];
+    const bytes = new Uint8Array(samples.length * size);
     const view = new DataView(bytes.buffer);
-    const voltsPerCode = capture.voltsPerCode[channel - 1];
     for (let i = 0; i < samples.length; i++) {
-      if (this.format === 'int16') view.setInt16(i * 2, Math.max(-CODE_LIMIT, Math.min(CODE_LIMIT, Math.round(samples[i] / voltsPerCode))), this.littleEndian);
-      else view.setFloat32(i * 4, samples[i], this.littleEndian);
+      // A sample at the input limit reads the extreme code, as a saturated converter does.
+      const atLimit = Math.abs(samples[i]) >= limitV;
+      const code = atLimit ? (samples[i] > 0 ? high : low) : Math.max(low, Math.min(high, Math.round(samples[i] / voltsPerCode) + codeOffset));
+      if (size === 1) {
+        if (format.unsigned) view.setUint8(i, code);
+        else view.setInt8(i, code);
+      } else if (format.unsigned) view.setUint16(i * 2, code, this.littleEndian);
+      else view.setInt16(i * 2, code, this.littleEndian);
     }
     return bytes;
   }
@@ -218,22 +231,26 @@ function channelIndex(suffix: number): 0 | 1 {
   return (suffix - 1) as 0 | 1;
 }
 
-function channelParam(params: string[]): 1 | 2 {
+/** The trace name of a channel: CH1 or CH2 (this instrument's names). */
+function traceParam(params: string[]): 1 | 2 {
   expectParamCount(params, 1);
-  const match = /^CHAN(?:NEL)?([12])$/i.exec(params[0]);
-  if (!match) throw new SimCommandError('illegalParameterValue', params[0]);
+  const match = /^CH([12])$/i.exec(params[0]);
+  if (!match) throw new SimCommandError('illegalParameterValue', `${params[0]} (traces are CH1, CH2)`);
   return Number(match[1]) as 1 | 2;
 }
 
-/** Phase of the component at `frequencyHz` (single-bin DFT), radians; undefined without signal. */
-function phaseAtRad(samples: Float64Array, intervalS: number, frequencyHz: number): number | undefined {
-  let re = 0;
-  let im = 0;
-  for (let i = 0; i < samples.length; i++) {
-    const angle = 2 * Math.PI * frequencyHz * i * intervalS;
-    re += samples[i] * Math.cos(angle);
-    im -= samples[i] * Math.sin(angle);
+/** FORMat[:DATA] ASCii | INTeger,8|16 | UINTeger,8|16 | REAL,32 (SCPI-1999 Vol. 2 FORMat; UINTeger recalled from memory). */
+function dataFormatParam(params: string[]): DataFormat {
+  if (params.length === 1 && keywordIs(params[0], 'ASCii')) return { kind: 'ascii' };
+  if (params.length === 2 && keywordIs(params[0], 'REAL') && params[1] === '32') return { kind: 'real32' };
+  if (params.length === 2 && (keywordIs(params[0], 'INTeger') || keywordIs(params[0], 'UINTeger')) && (params[1] === '8' || params[1] === '16')) {
+    return { kind: 'integer', bits: Number(params[1]) as 8 | 16, unsigned: keywordIs(params[0], 'UINTeger') };
   }
-  if (Math.hypot(re, im) === 0) return undefined;
-  return Math.atan2(im, re);
+  throw new SimCommandError('illegalParameterValue', 'ASCii, INTeger,8|16, UINTeger,8|16 or REAL,32');
+}
+
+function formatName(format: DataFormat): string {
+  if (format.kind === 'ascii') return 'ASC';
+  if (format.kind === 'real32') return 'REAL,32';
+  return `${format.unsigned ? 'UINT' : 'INT'},${format.bits}`;
 }

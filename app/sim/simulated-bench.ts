@@ -118,6 +118,7 @@ export async function startSimulatedBench(options: SimulatedBenchOptions): Promi
       const forced = fault?.kind === 'overrange' || fault?.kind === 'nan' ? fault.kind : undefined;
       if (target === 'meter') meter.forcedReading = forced;
       if (target === 'scope') scope.forcedReading = forced;
+      instruments[target].refuseHeaders(fault?.kind === 'unknown-headers' ? fault.headers : []);
     }
   };
   for (const role of ROLES) {

@@ -133,18 +133,14 @@ export async function runBenchScenario(bench: SimulatedBench): Promise<void> {
     expect([both[1].sampleIntervalS, both[2].sampleIntervalS]).toEqual([ch1.sampleIntervalS, ch2.sampleIntervalS]);
 
     // The raw block: binary, containing bytes equal to LF and CR, delivered whole and identical on refetch.
-    await scope.session.write('WAVeform:SOURce CHANnel2');
-    const raw1 = await scope.session.queryBlock('WAVeform:DATA?');
-    const raw2 = await scope.session.queryBlock('WAVeform:DATA?');
+    const raw1 = await scope.session.queryBlock('TRACe:DATA? CH2');
+    const raw2 = await scope.session.queryBlock('TRACe:DATA? CH2');
     expect(raw1.length).toBe(4000);
     expect(raw1.includes(0x0a) || raw1.includes(0x0d)).toBe(true);
     expect(Buffer.from(raw1).equals(Buffer.from(raw2))).toBe(true);
 
-    // Profile measurements agree with the waveform.
-    const vpp = await scope.control.measureAmplitudeVpp!(2);
-    expect(Math.abs(vpp.value / (2 * fit2.amplitudeV) - 1)).toBeLessThan(2e-3);
-    const phase = await scope.control.measurePhaseDeg!();
-    expect(Math.abs(phase.value - theoryPhaseDeg)).toBeLessThan(0.1);
+    // The shipped profile has no scope-side measurements: SCPI-1999 has no peak-to-peak or phase query for a digitizer.
+    expect(scope.control.measureAmplitudeVpp).toBeUndefined();
 
     // Nothing went wrong on the way.
     for (const instrument of [generator, meter, scope]) expect(await instrument.session.drainErrors()).toEqual([]);

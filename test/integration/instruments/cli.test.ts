@@ -76,7 +76,7 @@ describe('rolloff sim / identify / query', () => {
     expect(result.stdout).toContain('+2.50000000E+03');
     expect(result.stdout).toMatch(/> SOURce:FUNCtion DC;FUNCtion\?\nDC\n/);
     expect(result.stdout).toContain('Error queue: empty');
-    const block = rolloff('query', addresses.scope, 'INITiate', '*OPC?', 'WAVeform:DATA?');
+    const block = rolloff('query', addresses.scope, 'INITiate', '*OPC?', 'TRACe:DATA? CH1');
     expect(block.stdout).toMatch(/<block of 4000 bytes>/);
   });
 

@@ -46,11 +46,11 @@ describe('simulated bench over TCP on 127.0.0.1', () => {
   it('a setting the instrument rejects surfaces as ScpiInstrumentError naming it, before the next measurement', async () => {
     const scope = await openInstrument(bench.addresses.scope, 'scope', 'scpi-scope');
     try {
-      // The simulated scope's range ends at 100 V/div; the setting call itself reads the error queue.
+      // The simulated scope's range ends at 500 V (100 V/div over 10 divisions is ±2500 V); the setting call itself reads the error queue.
       const error = await scope.control.setVerticalScale(1, 500).catch((e) => e);
       expect(error).toBeInstanceOf(ScpiInstrumentError);
       expect(error).toMatchObject({ code: -222 });
-      expect((error as ScpiInstrumentError).command).toContain('CHANnel1:SCALe 500');
+      expect((error as ScpiInstrumentError).command).toContain('SENSe1:VOLTage:RANGe 2500');
       await expect(scope.control.acquire()).resolves.toBeUndefined();
     } finally {
       await scope.close();

@@ -28,16 +28,16 @@ describe('OperationRunner query operations', () => {
   it('sends a several-command query operation as one rooted program message', async () => {
     const { session, sent } = recordingSession('1');
     const runner = new OperationRunner(session, findProfile('scpi-scope', 'scope'));
-    expect(await runner.queryText('acquire')).toBe('1');
-    // scpi-scope.json: "acquire": ["INITiate", "*OPC?"] — a common (*) command keeps its header as it is.
+    expect(await runner.setThenQuery('acquire', '*OPC?')).toBe('1');
+    // scpi-scope.json: "acquire": "INITiate", completed by *OPC? — a common (*) command keeps its header as it is.
     expect(sent).toEqual([':INITiate;*OPC?']);
   });
 
   it('sends a single-command query as written', async () => {
     const { session, sent } = recordingSession('+1.0E+00');
     const runner = new OperationRunner(session, findProfile('scpi-scope', 'scope'));
-    await runner.queryText('measureAmplitudeVpp', { channel: 2 });
-    expect(sent).toEqual(['MEASure:VPP? CHANnel2']);
+    await runner.queryText('waveformScaling', { channel: 2 });
+    expect(sent).toEqual(['TRACe:SCALing? CH2']);
   });
 });
 

@@ -2,12 +2,13 @@
  * Profiles: the shipped ones validate; broken ones are refused with the file
  * and field named (common practice: validate data files at the boundary).
  */
-import { mkdtempSync, writeFileSync, rmSync } from 'node:fs';
+import { mkdtempSync, readFileSync, writeFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
 import { builtInProfiles, findProfile, loadProfiles, ProfileError, validateProfile, OPERATION_RULES } from '../../../app/bench';
 import scpiGenerator from '../../../app/bench/profiles/scpi-generator.json';
+import scpiScope from '../../../app/bench/profiles/scpi-scope.json';
 
 const clone = <T>(value: T): T => JSON.parse(JSON.stringify(value));
 
@@ -33,6 +34,19 @@ describe('shipped profiles', () => {
 
   it('carry no maker or model names: ids are generic', () => {
     for (const profile of builtInProfiles()) expect(profile.id).toMatch(/^scpi-(generator|meter|scope)$/);
+  });
+
+  it('name where each scope and meter command comes from', () => {
+    for (const profile of builtInProfiles().filter((p) => p.role !== 'generator')) {
+      for (const name of Object.keys(profile.operations)) expect(profile.references[`operations.${name}`], `${profile.id} ${name}`).toMatch(/SCPI-1999 Vol\. \d|IEEE 488\.2|our own/);
+      profile.init.forEach((_, i) => expect(profile.references[`init[${i}]`], `${profile.id} init[${i}]`).toBeDefined());
+    }
+  });
+
+  it('the scope profile sends none of the old dialect headers', () => {
+    const scope = builtInProfiles().find((p) => p.id === 'scpi-scope')!;
+    const sent = [...scope.init, ...Object.values(scope.operations).flat()].join(' ');
+    for (const word of ['CHANnel', 'TIMebase', 'WAVeform', 'MEASure', 'PREamble', 'ACQuire']) expect(sent).not.toContain(word);
   });
 });
 
@@ -96,12 +110,38 @@ describe('broken profiles are refused naming the field', () => {
     expect(refusal(badLimits).field).toBe('generator.maxFrequencyHz');
   });
 
-  it('a scope profile with an integer encoding but no volts-per-code field', () => {
-    const scope = clone(builtInProfiles().find((p) => p.role === 'scope')!) as Record<string, any>;
-    delete scope.source;
-    delete scope.builtIn;
-    scope.scope.preambleFields = ['points', 'sampleIntervalS'];
-    expect(refusal(scope).field).toBe('scope.preambleFields');
+  it('scope data and scaling: integer samples without volts per code, a quantity with two sources, a missing scaling query, a bad poll', () => {
+    const noVoltsPerCode = clone(scpiScope) as Record<string, any>;
+    noVoltsPerCode.scope.scaling.fields = ['points', 'sampleIntervalS'];
+    expect(refusal(noVoltsPerCode)).toMatchObject({ field: 'scope.scaling' });
+    expect(refusal(noVoltsPerCode).message).toMatch(/voltsPerCode for int16/);
+    const twice = clone(scpiScope) as Record<string, any>;
+    twice.scope.scaling.fixed = { voltsPerCode: 0.001 };
+    expect(refusal(twice).field).toBe('scope.scaling.fixed.voltsPerCode');
+    const noQuery = clone(scpiScope) as Record<string, any>;
+    delete noQuery.operations.waveformScaling;
+    expect(refusal(noQuery).field).toBe('operations.waveformScaling');
+    const badSample = clone(scpiScope) as Record<string, any>;
+    badSample.scope.data.sample = 'int12';
+    expect(refusal(badSample).field).toBe('scope.data.sample');
+    const noOrder = clone(scpiScope) as Record<string, any>;
+    delete noOrder.scope.data.byteOrder;
+    expect(refusal(noOrder).field).toBe('scope.data.byteOrder');
+    const badPoll = clone(scpiScope) as Record<string, any>;
+    badPoll.scope.acquisitionComplete = { method: 'poll', query: 'STATus:OPERation:CONDition', until: { bitsClear: 16 } };
+    expect(refusal(badPoll).field).toBe('scope.acquisitionComplete.query');
+    const badUntil = clone(scpiScope) as Record<string, any>;
+    badUntil.scope.acquisitionComplete = { method: 'poll', query: 'STATus:OPERation:CONDition?', until: { bitsClear: -1 } };
+    expect(refusal(badUntil).field).toBe('scope.acquisitionComplete.until.bitsClear');
+    const older = clone(scpiScope) as Record<string, any>;
+    older.scope.encoding = 'int16-le';
+    expect(refusal(older).message).toMatch(/older form/);
+  });
+
+  it('references must name a field of the profile', () => {
+    const json = clone(scpiScope) as Record<string, any>;
+    json.references['operations.measurePhaseDeg'] = 'nowhere';
+    expect(refusal(json).field).toBe('references.operations.measurePhaseDeg');
   });
 });
 
@@ -135,5 +175,14 @@ describe('user profile folder', () => {
     } catch (error) {
       expect((error as ProfileError).hint).toContain('scpi-meter');
     }
+  });
+});
+
+describe('the worked examples of app/bench/profiles/README.md', () => {
+  it('each is a valid profile, one per role', () => {
+    const readme = readFileSync(join(__dirname, '../../../app/bench/profiles/README.md'), 'utf8');
+    const examples = [...readme.matchAll(/```json\n([\s\S]*?)```/g)].map((m) => JSON.parse(m[1]));
+    const roles = examples.map((json, i) => validateProfile(json, `README example ${i + 1}`).role);
+    expect(new Set(roles)).toEqual(new Set(['generator', 'meter', 'scope']));
   });
 });

@@ -30,7 +30,7 @@ async function benchWithSine(): Promise<SimScope> {
   const generator = new SimGenerator(model, clock);
   await generator.execute('FUNC SIN;FREQ 1000;VOLT 2;OUTP ON');
   const scope = new SimScope(model, clock);
-  await scope.execute('FORM:DATA INT,16;CHAN2:SCAL 0.5');
+  await scope.execute('FORM:DATA INT,16;SENS2:VOLT:RANG 2.5');
   return scope;
 }
 
@@ -45,7 +45,7 @@ function codes(block: Uint8Array): Int16Array {
 describe('simulated scope acquisition', () => {
   it('answers *OPC? when the record time is over, never before', async () => {
     const scope = await benchWithSine();
-    await scope.execute('TIM:SCAL 0.002'); // 20 ms record
+    await scope.execute('SWE:TIME 0.02'); // 20 ms record
     const startedMs = performance.now();
     expect(await scope.execute('INIT;*OPC?')).toBe('1');
     // Lower bound only: a loaded machine may answer later, never earlier (timer granularity allowance 0.5 ms, common practice).
@@ -54,13 +54,13 @@ describe('simulated scope acquisition', () => {
 
   it('gives the whole record, last samples included, to a data query right after *OPC?', async () => {
     const scope = await benchWithSine();
-    await scope.execute('TIM:SCAL 0.000001'); // 10 µs record: every sample is computed after its time is over
+    await scope.execute('SWE:TIME 0.00001'); // 10 µs record: every sample is computed after its time is over
     expect(await scope.execute('INIT;*OPC?')).toBe('1');
-    const reply = await scope.execute('WAV:SOUR CHAN2;WAV:DATA?');
+    const reply = await scope.execute('TRAC:DATA? CH2');
     expect(reply).toBeInstanceOf(Uint8Array);
     const samples = codes(reply as Uint8Array);
     expect(samples.length).toBe(2000);
-    // 2 Vpp through a gain of −1 (R2/R1) on 0.5 V/div: the output is far from 0 V for most of a 1 kHz cycle, but a
+    // 2 Vpp through a gain of −1 (R2/R1) on a 2.5 V range: the output is far from 0 V for most of a 1 kHz cycle, but a
     // 10 µs record spans 1 % of it, so its level is whatever the phase is: check the record is not left empty
     // instead — unset samples would read exactly 0 (an uncomputed Float64Array).
     const lastSlice = samples.subarray(samples.length - 64);
@@ -70,10 +70,37 @@ describe('simulated scope acquisition', () => {
 
   it('refuses a data query while the record is still running (-230)', async () => {
     const scope = await benchWithSine();
-    await scope.execute('TIM:SCAL 0.01'); // 100 ms record
+    await scope.execute('SWE:TIME 0.1'); // 100 ms record
     await scope.execute('INIT');
-    expect(await scope.execute('WAV:DATA?')).toBeUndefined();
+    expect(await scope.execute('TRAC? CH1')).toBeUndefined();
     expect(await scope.execute('SYST:ERR?')).toMatch(/^-230,/);
     expect(await scope.execute('*OPC?')).toBe('1');
+  });
+
+  it('reports the record as measuring in STATus:OPERation:CONDition? (bit 4) until its time is over', async () => {
+    const scope = await benchWithSine();
+    await scope.execute('SWE:TIME 0.03');
+    expect(await scope.execute('STAT:OPER:COND?')).toBe('0');
+    await scope.execute('INIT');
+    expect(await scope.execute('STAT:OPER:COND?')).toBe('16');
+    await scope.execute('*OPC?');
+    expect(await scope.execute('STAT:OPER:COND?')).toBe('0');
+  });
+
+  it('speaks no maker dialect: the old channel, time-base, waveform and measure headers are undefined (-113)', async () => {
+    const scope = await benchWithSine();
+    for (const header of ['CHAN1:SCAL 1', 'TIM:SCAL 0.001', 'WAV:SOUR CHAN1', 'WAV:DATA?', 'WAV:PRE?', 'MEAS:VPP? CHAN1', 'MEAS:PHAS? CHAN1,CHAN2', 'ACQ:POIN 1000']) {
+      await scope.execute(header);
+      expect(await scope.execute('SYST:ERR?'), header).toMatch(/^-113,/);
+    }
+  });
+
+  it('refuses named headers with -113 when told to (the unknown-headers fault), and only those', async () => {
+    const scope = await benchWithSine();
+    scope.refuseHeaders(['INPut#[:STATe]']);
+    await scope.execute('INP2:STAT ON');
+    expect(await scope.execute('SYST:ERR?')).toBe('-113,"Undefined header; INP2:STAT"');
+    await scope.execute('SENS2:VOLT:RANG 1');
+    expect(await scope.execute('SYST:ERR?')).toBe('0,"No error"');
   });
 });

@@ -38,9 +38,9 @@ describe('HeaderPattern (SCPI-1999 Vol. 1 §6, recalled)', () => {
     for (const header of ['SOURC:VOLT:OFFS', 'VOLTA:OFFS', 'VOLT:OFFSET?']) expect(pattern.match(header), header).toBeUndefined();
   });
   it('captures numeric suffixes, 1 when omitted', () => {
-    const channel = new HeaderPattern('CHANnel#:SCALe');
-    expect(channel.match('CHAN2:SCAL')).toEqual([2]);
-    expect(channel.match('CHANNEL:SCALE')).toEqual([1]);
+    const channel = new HeaderPattern('SENSe#:VOLTage:RANGe');
+    expect(channel.match('SENS2:VOLT:RANG')).toEqual([2]);
+    expect(channel.match('SENSE:VOLTAGE:RANGE')).toEqual([1]);
   });
   it('splits program message units on ";" outside quotes', () => {
     expect(splitProgramMessage('FUNC "VOLT:AC;X";READ?')).toEqual([
