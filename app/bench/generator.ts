@@ -17,7 +17,7 @@ import { StimulusLimitError } from './errors';
 import { OperationRunner } from './operation';
 import type { GeneratorProfile } from './profile';
 import type { GeneratorControl, GeneratorLimits, LoadSetting, SineSetting } from './roles';
-import { vrmsFromVpp, worstCaseStimulusVpp } from './stimulus';
+import { amplitudeInUnit, worstCaseStimulusVpp } from './stimulus';
 
 export interface GeneratorOptions {
   /** The user's ceiling, peak-to-peak volts (open circuit, |offset| counted as peak). */
@@ -101,6 +101,14 @@ export class ProfileGenerator implements GeneratorControl {
   }
 
   async setLoad(load: LoadSetting): Promise<void> {
+    if (this.profile.generator.load === 'none') {
+      // No load setting: the amplitude is the open-circuit voltage, which is what 'high-z' means.
+      if (load === '50-ohm') {
+        throw new ValidationError('load', `profile ${this.profile.id} has no load setting (generator.load "none"): its amplitude is the open-circuit voltage`, 'Use the high-impedance load setting, or a profile whose generator.load is "calibrated".');
+      }
+      this.load = load;
+      return;
+    }
     // '50-ohm' doubles the open-circuit voltage of the present setting: check first.
     const amplitudeVpp = this.state.shape === 'sine' ? this.state.amplitudeVpp ?? 0 : 0;
     this.checkLimit(`switching the load setting to ${load}`, amplitudeVpp, this.state.offsetV ?? 0, load);
@@ -137,7 +145,7 @@ export class ProfileGenerator implements GeneratorControl {
   private async applyLevels(amplitudeVpp: number, offsetV: number): Promise<void> {
     const setAmplitude = async () => {
       if (this.state.amplitudeVpp === amplitudeVpp) return;
-      const amplitude = this.profile.generator.amplitudeUnit === 'Vrms' ? vrmsFromVpp(amplitudeVpp) : amplitudeVpp;
+      const amplitude = amplitudeInUnit(amplitudeVpp, this.profile.generator.amplitudeUnit);
       await this.runner.set('amplitude', { amplitude });
       await this.confirm({ amplitudeVpp });
     };
@@ -190,7 +198,7 @@ export class ProfileGenerator implements GeneratorControl {
     };
     await attempt(() => this.runner.set('outputOff'), { outputOn: false });
     const smallestVpp = this.limits.minAmplitudeVpp;
-    const amplitude = this.profile.generator.amplitudeUnit === 'Vrms' ? vrmsFromVpp(smallestVpp) : smallestVpp;
+    const amplitude = amplitudeInUnit(smallestVpp, this.profile.generator.amplitudeUnit);
     await attempt(() => this.runner.set('amplitude', { amplitude }), { amplitudeVpp: smallestVpp });
     await attempt(() => this.runner.set('offset', { offsetV: 0 }), { offsetV: 0 });
   }

@@ -29,8 +29,9 @@ export const OPERATION_RULES: Record<InstrumentRole, Record<string, OperationRul
     offset: op('set DC offset (also the DC level)', ['offsetV']),
     outputOn: op('output on'),
     outputOff: op('output off'),
-    loadHighZ: op('amplitude calibrated for a high-impedance load'),
-    load50Ohm: op('amplitude calibrated for a 50 Ω load'),
+    // Only with generator.load "calibrated": the instrument scales its amplitude for the load it is told of.
+    loadHighZ: op('amplitude calibrated for a high-impedance load', [], false, false),
+    load50Ohm: op('amplitude calibrated for a 50 Ω load', [], false, false),
     readFrequency: op('read the frequency back', [], true),
   },
   meter: {
@@ -88,6 +89,11 @@ export type PollCondition = { equals: number } | { bitsClear: number } | { bitsS
 /** How the control learns an acquisition is complete. */
 export type AcquisitionComplete = { method: 'opc' } | { method: 'poll'; query: string; until: PollCondition; intervalS: number };
 
+export const AMPLITUDE_UNITS = ['Vpp', 'Vrms', 'Vpk'] as const;
+export type AmplitudeUnit = (typeof AMPLITUDE_UNITS)[number];
+export const LOAD_MEANINGS = ['none', 'calibrated'] as const;
+export type LoadMeaning = (typeof LOAD_MEANINGS)[number];
+
 interface ProfileCommon {
   id: string;
   description: string;
@@ -107,7 +113,18 @@ interface ProfileCommon {
 
 export interface GeneratorProfile extends ProfileCommon {
   role: 'generator';
-  generator: { limits: GeneratorLimits; amplitudeUnit: 'Vpp' | 'Vrms'; sourceImpedanceOhm: number };
+  generator: {
+    limits: GeneratorLimits;
+    /** What the number of the amplitude command means for a sine: peak-to-peak, RMS or peak volts. */
+    amplitudeUnit: AmplitudeUnit;
+    /**
+     * What the instrument's load setting means: "none" — it has none, its amplitude is the open-circuit
+     * voltage; "calibrated" — its amplitude is what it delivers into the load it is told of (loadHighZ /
+     * load50Ohm), so at 50 Ω the open-circuit voltage is twice the setting.
+     */
+    load: LoadMeaning;
+    sourceImpedanceOhm: number;
+  };
 }
 
 export interface MeterProfile extends ProfileCommon {
@@ -168,6 +185,7 @@ export function validateProfile(json: unknown, file: string, builtIn = false): P
   }
   if (role === 'generator') {
     const generator = validateGeneratorSettings(file, json.generator);
+    checkGeneratorOperations(file, generator, operations);
     return { ...common, references: references(), role, generator };
   }
   if (role === 'meter') {
@@ -231,9 +249,19 @@ function validateGeneratorSettings(file: string, raw: unknown): GeneratorProfile
     throw new ProfileError(file, 'generator.minAmplitudeVpp', 'must be a number from 0 up to below maxAmplitudeVpp');
   }
   const amplitudeUnit = raw.amplitudeUnit ?? 'Vpp';
-  if (amplitudeUnit !== 'Vpp' && amplitudeUnit !== 'Vrms') throw new ProfileError(file, 'generator.amplitudeUnit', 'must be "Vpp" or "Vrms"');
+  if (!AMPLITUDE_UNITS.includes(amplitudeUnit as AmplitudeUnit)) throw new ProfileError(file, 'generator.amplitudeUnit', `must be one of ${AMPLITUDE_UNITS.map((u) => `"${u}"`).join(', ')}`);
+  const load = raw.load ?? 'none';
+  if (!LOAD_MEANINGS.includes(load as LoadMeaning)) throw new ProfileError(file, 'generator.load', '"none" (no load setting: the amplitude is the open-circuit voltage) or "calibrated" (the amplitude is into the load set by loadHighZ / load50Ohm)');
   const sourceImpedanceOhm = positiveNumber(file, 'generator.sourceImpedanceOhm', raw.sourceImpedanceOhm, 50);
-  return { limits: { minFrequencyHz, maxFrequencyHz, maxAmplitudeVpp, minAmplitudeVpp }, amplitudeUnit, sourceImpedanceOhm };
+  return { limits: { minFrequencyHz, maxFrequencyHz, maxAmplitudeVpp, minAmplitudeVpp }, amplitudeUnit: amplitudeUnit as AmplitudeUnit, load: load as LoadMeaning, sourceImpedanceOhm };
+}
+
+/** The load operations exist exactly when the load setting means something. */
+function checkGeneratorOperations(file: string, generator: GeneratorProfile['generator'], operations: Record<string, string[]>): void {
+  for (const name of ['loadHighZ', 'load50Ohm']) {
+    if (generator.load === 'calibrated' && !operations[name]) throw new ProfileError(file, `operations.${name}`, 'is missing (generator.load is "calibrated")');
+    if (generator.load === 'none' && operations[name]) throw new ProfileError(file, `operations.${name}`, 'has no meaning with generator.load "none": set generator.load to "calibrated" if the instrument scales its amplitude for the load, or remove it');
+  }
 }
 
 function validateMeterSettings(file: string, raw: unknown): MeterProfile['meter'] {

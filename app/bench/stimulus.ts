@@ -16,6 +16,13 @@ export function vrmsFromVpp(vpp: number): number {
   return vpp / (2 * Math.SQRT2);
 }
 
+/** A sine's peak-to-peak volts in the unit a profile's amplitude command takes. */
+export function amplitudeInUnit(amplitudeVpp: number, unit: 'Vpp' | 'Vrms' | 'Vpk'): number {
+  if (unit === 'Vrms') return vrmsFromVpp(amplitudeVpp);
+  if (unit === 'Vpk') return amplitudeVpp / 2;
+  return amplitudeVpp;
+}
+
 /** Open-circuit voltage per displayed volt for a load setting. */
 export function openCircuitFactor(load: LoadSetting): number {
   return load === '50-ohm' ? 2 : 1;

@@ -1,15 +1,13 @@
 /**
- * Simulated function generator. Its displayed amplitude is calibrated for the
- * load setting (see app/bench/stimulus.ts): EMF = display × 2 for a 50 Ω load
- * setting, × 1 for high-Z; a 50 Ω source resistance sits between the EMF and
- * the circuit.
+ * Simulated function generator, spoken to in SCPI-1999 terms (what the shipped
+ * generator profile sends): SOURce:FUNCtion, :FREQuency, :VOLTage (a sine's
+ * amplitude in peak-to-peak volts) and :VOLTage:OFFSet, OUTPut:STATe. It has
+ * no load setting: the amplitude is the open-circuit voltage (EMF), behind a
+ * 50 Ω source resistance between the EMF and the circuit.
  */
 import type { BenchClock } from '../bench/clock';
-import { openCircuitFactor, vppFromVrms, vrmsFromVpp } from '../bench/stimulus';
-import type { LoadSetting } from '../bench/roles';
 import type { BenchModel } from './bench-model';
 import { formatNr3, booleanParam, keywordParam, numberParam } from './parameters';
-import { keywordIs } from './program-message';
 import { SimCommandError } from './scpi-errors';
 import { SimInstrument, SIMULATED_MANUFACTURER } from './sim-instrument';
 import { SOFTWARE_VERSION } from '../contract/version';
@@ -19,15 +17,13 @@ export const SIM_GENERATOR_LIMITS = { minFrequencyHz: 0.001, maxFrequencyHz: 20e
 export interface GeneratorSettings {
   shape: 'sine' | 'dc';
   frequencyHz: number;
-  /** Displayed amplitude, Vpp (converted from Vrms on entry when the unit is VRMS). */
+  /** Sine amplitude, open-circuit Vpp. */
   amplitudeVpp: number;
   offsetV: number;
   on: boolean;
-  load: LoadSetting;
-  unit: 'VPP' | 'VRMS';
 }
 
-const POWER_ON: GeneratorSettings = { shape: 'sine', frequencyHz: 1000, amplitudeVpp: 0.1, offsetV: 0, on: false, load: 'high-z', unit: 'VPP' };
+const POWER_ON: GeneratorSettings = { shape: 'sine', frequencyHz: 1000, amplitudeVpp: 0.1, offsetV: 0, on: false };
 
 export class SimGenerator extends SimInstrument {
   private settings: GeneratorSettings = { ...POWER_ON };
@@ -45,35 +41,22 @@ export class SimGenerator extends SimInstrument {
     this.define('[SOURce]:FUNCtion[:SHAPe]?', () => (this.settings.shape === 'dc' ? 'DC' : 'SIN'));
     this.define('[SOURce]:FREQuency[:CW]', ({ params }) => this.update({ frequencyHz: numberParam(params, limits.minFrequencyHz, limits.maxFrequencyHz) }));
     this.define('[SOURce]:FREQuency[:CW]?', () => formatNr3(this.settings.frequencyHz));
-    this.define('UNIT:VOLTage', ({ params }) => {
-      this.settings.unit = keywordParam(params, ['VPP', 'VRMS'] as const);
-    });
-    this.define('UNIT:VOLTage?', () => this.settings.unit);
     this.define('[SOURce]:VOLTage[:LEVel][:IMMediate][:AMPLitude]', ({ params }) => {
       const value = numberParam(params, 0, Number.MAX_VALUE);
-      const amplitudeVpp = this.settings.unit === 'VRMS' ? vppFromVrms(value) : value;
+      const amplitudeVpp = value;
       if (amplitudeVpp < SIM_GENERATOR_LIMITS.minAmplitudeVpp * (1 - 1e-9)) throw new SimCommandError('dataOutOfRange', `below ${SIM_GENERATOR_LIMITS.minAmplitudeVpp} Vpp`);
-      this.checkLevels(amplitudeVpp, this.settings.offsetV, this.settings.load);
+      this.checkLevels(amplitudeVpp, this.settings.offsetV);
       this.update({ amplitudeVpp });
     });
-    this.define('[SOURce]:VOLTage[:LEVel][:IMMediate][:AMPLitude]?', () => formatNr3(this.settings.unit === 'VRMS' ? vrmsFromVpp(this.settings.amplitudeVpp) : this.settings.amplitudeVpp));
+    this.define('[SOURce]:VOLTage[:LEVel][:IMMediate][:AMPLitude]?', () => formatNr3(this.settings.amplitudeVpp));
     this.define('[SOURce]:VOLTage[:LEVel][:IMMediate]:OFFSet', ({ params }) => {
       const offsetV = numberParam(params, -Number.MAX_VALUE, Number.MAX_VALUE);
-      this.checkLevels(this.settings.shape === 'dc' ? 0 : this.settings.amplitudeVpp, offsetV, this.settings.load);
+      this.checkLevels(this.settings.shape === 'dc' ? 0 : this.settings.amplitudeVpp, offsetV);
       this.update({ offsetV });
     });
     this.define('[SOURce]:VOLTage[:LEVel][:IMMediate]:OFFSet?', () => formatNr3(this.settings.offsetV));
     this.define('OUTPut[:STATe]', ({ params }) => this.update({ on: booleanParam(params) }));
     this.define('OUTPut[:STATe]?', () => (this.settings.on ? '1' : '0'));
-    this.define('OUTPut:LOAD', ({ params }) => {
-      let load: LoadSetting;
-      if (params.length === 1 && (keywordIs(params[0], 'INFinity') || keywordIs(params[0], 'HIGHZ'))) load = 'high-z';
-      else if (numberParam(params, 1, 10_000) === 50) load = '50-ohm';
-      else throw new SimCommandError('illegalParameterValue', 'only 50 or INFinity');
-      this.checkLevels(this.settings.amplitudeVpp, this.settings.offsetV, load);
-      this.update({ load });
-    });
-    this.define('OUTPut:LOAD?', () => (this.settings.load === '50-ohm' ? '+5.00000000E+01' : '+9.90000000E+37'));
   }
 
   protected reset(): void {
@@ -82,9 +65,8 @@ export class SimGenerator extends SimInstrument {
   }
 
   /** The instrument's own ceiling: open-circuit peak of sine plus offset within ±10 V. */
-  private checkLevels(amplitudeVpp: number, offsetV: number, load: LoadSetting): void {
-    const factor = openCircuitFactor(load);
-    const peakV = factor * (amplitudeVpp / 2 + Math.abs(offsetV));
+  private checkLevels(amplitudeVpp: number, offsetV: number): void {
+    const peakV = amplitudeVpp / 2 + Math.abs(offsetV);
     if (peakV > SIM_GENERATOR_LIMITS.maxOpenCircuitVpp / 2 + 1e-12) throw new SimCommandError('dataOutOfRange', `output would reach ${peakV.toPrecision(4)} V peak`);
   }
 
@@ -109,13 +91,12 @@ export class SimGenerator extends SimInstrument {
 
   private push(): void {
     const s = this.settings;
-    const factor = openCircuitFactor(s.load);
     this.model.setGenerator({
       on: s.on,
       shape: s.shape,
       frequencyHz: s.frequencyHz,
-      emfAmplitudeVpk: s.shape === 'sine' ? (factor * s.amplitudeVpp) / 2 : 0,
-      emfOffsetV: factor * s.offsetV,
+      emfAmplitudeVpk: s.shape === 'sine' ? s.amplitudeVpp / 2 : 0,
+      emfOffsetV: s.offsetV,
     });
   }
 }

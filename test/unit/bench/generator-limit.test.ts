@@ -6,11 +6,24 @@
  */
 import { describe, expect, it } from 'vitest';
 import { memoryTransportPair } from '../../../app/scpi';
-import { findProfile, openInstrument, StimulusLimitError, type GeneratorControl } from '../../../app/bench';
+import { findProfile, openInstrument, StimulusLimitError, validateProfile, type GeneratorControl, type GeneratorProfile } from '../../../app/bench';
 import { ValidationError } from '../../../app/errors';
+import scpiGenerator from '../../../app/bench/profiles/scpi-generator.json';
+
+/** An invented generator whose amplitude is calibrated for the load it is told of, in `amplitudeUnit`. */
+function calibratedProfile(amplitudeUnit = 'Vpp'): GeneratorProfile {
+  const json = JSON.parse(JSON.stringify(scpiGenerator));
+  json.id = 'calibrated-generator';
+  json.generator.load = 'calibrated';
+  json.generator.amplitudeUnit = amplitudeUnit;
+  json.operations.loadHighZ = 'LOADcal HIGH';
+  json.operations.load50Ohm = 'LOADcal 50';
+  delete json.references;
+  return validateProfile(json, 'calibrated-generator.json') as GeneratorProfile;
+}
 
 /** A fake generator that accepts everything and records what it got. */
-async function fakeGenerator(maxStimulusVpp: number): Promise<{ control: GeneratorControl; received: string[] }> {
+async function fakeGenerator(maxStimulusVpp: number, profile: GeneratorProfile = findProfile('scpi-generator', 'generator')): Promise<{ control: GeneratorControl; received: string[] }> {
   const { a, b } = memoryTransportPair('fake generator');
   const received: string[] = [];
   let pending = '';
@@ -30,18 +43,33 @@ async function fakeGenerator(maxStimulusVpp: number): Promise<{ control: Generat
       if (replies.length > 0) void b.write(new TextEncoder().encode(`${replies.join(';')}\n`));
     }
   });
-  const opened = await openInstrument('memory', 'generator', findProfile('scpi-generator', 'generator'), { maxStimulusVpp, transport: a });
+  const opened = await openInstrument('memory', 'generator', profile, { maxStimulusVpp, transport: a });
   return { control: opened.control, received };
 }
 
 const settings = (received: string[]) => received.filter((line) => !line.endsWith('?'));
 
 describe('GeneratorControl stimulus limit', () => {
-  it('opens with the output off and a known load before anything else', async () => {
-    const { received } = await fakeGenerator(2);
+  it('opens with the output off and, where the profile has a load setting, a known load before anything else', async () => {
+    const { received } = await fakeGenerator(2, calibratedProfile());
     const outputOff = received.indexOf('OUTPut:STATe OFF');
     expect(outputOff).toBeGreaterThan(0);
-    expect(received.indexOf('OUTPut:LOAD INFinity')).toBeGreaterThan(outputOff);
+    expect(received.indexOf('LOADcal HIGH')).toBeGreaterThan(outputOff);
+  });
+
+  it('with no load setting (the shipped profile) sends none, and refuses the 50 Ω setting as meaningless', async () => {
+    const { control, received } = await fakeGenerator(2);
+    expect(received.some((unit) => /LOAD|IMPedance/i.test(unit))).toBe(false);
+    await expect(control.setLoad('50-ohm')).rejects.toThrow(/has no load setting/);
+    await expect(control.setLoad('high-z')).resolves.toBeUndefined();
+  });
+
+  it('sends the amplitude in the profile\'s unit: Vpp as is, Vrms = Vpp/(2√2), Vpk = Vpp/2 (sine)', async () => {
+    for (const [unit, expected] of [['Vrms', 'SOURce:VOLTage 0.353553390593'], ['Vpk', 'SOURce:VOLTage 0.5']] as const) {
+      const { control, received } = await fakeGenerator(2, calibratedProfile(unit));
+      await control.configureSine({ frequencyHz: 1000, amplitudeVpp: 1, offsetV: 0 });
+      expect(settings(received), unit).toContain(expected);
+    }
   });
 
   it('sends a setting within the limit', async () => {
@@ -73,7 +101,7 @@ describe('GeneratorControl stimulus limit', () => {
   });
 
   it('doubles the open-circuit figure for a 50 Ω load setting, and refuses a load change that would exceed the limit', async () => {
-    const { control, received } = await fakeGenerator(2);
+    const { control, received } = await fakeGenerator(2, calibratedProfile());
     await control.configureSine({ frequencyHz: 1000, amplitudeVpp: 1.5, offsetV: 0 });
     const before = received.length;
     await expect(control.setLoad('50-ohm')).rejects.toBeInstanceOf(StimulusLimitError);
