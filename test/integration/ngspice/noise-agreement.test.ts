@@ -49,6 +49,24 @@ const loadedFollower = parseDesign(
   'loaded-follower',
 );
 
+/** An invented inverting stage with input capacitance (noise-gain peaking), bias-compensation RP and an ideal op-amp with offset and noise. */
+const shapedIdealStage = parseDesign(
+  {
+    name: 'inverting stage with input capacitance, ideal op-amp (invented test circuit)',
+    input: 'in',
+    output: 'out',
+    parts: [
+      { id: 'RN', type: 'resistor', nodes: ['in', 'inv'], value: '10k' },
+      { id: 'CN', type: 'capacitor', nodes: ['inv', '0'], value: '1n' },
+      { id: 'RF', type: 'resistor', nodes: ['inv', 'out'], value: '100k' },
+      { id: 'CF', type: 'capacitor', nodes: ['inv', 'out'], value: '10p' },
+      { id: 'RP', type: 'resistor', nodes: ['p', '0'], value: '9.1k' },
+      { id: 'U1', type: 'opamp', nodes: ['p', 'inv', 'out'], model: { ideal: true, inputOffsetV: '1m', ...OPAMP_NOISE } },
+    ],
+  },
+  'shaped-ideal',
+);
+
 const TOPOLOGIES: Array<[string, string]> = [
   ['first-order inverting low-pass', 'inverting-lowpass'],
   ['non-inverting gain stage (gain 10)', 'non-inverting'],
@@ -63,6 +81,7 @@ const CASES: Array<[string, Design]> = [
   ...TOPOLOGIES.map(([label, id]): [string, Design] => [`${label}, resistors + op-amp en/in with 1/f corners`, design(id, {}, OPAMP_NOISE)]),
   ['Sallen–Key low-pass at 85 °C (the temperature enters 4kTR)', parseDesign({ ...makeDesignFromTemplate('sallen-key-lowpass-unity'), temperatureC: 85 }, 'hot')],
   ['two-pole follower with output resistance and capacitive load', loadedFollower],
+  ['inverting stage with input capacitance, ideal op-amp with offset, en and in on both pins', shapedIdealStage],
 ];
 
 function worstErrorDb(d: Design): number {

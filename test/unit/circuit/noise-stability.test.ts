@@ -23,6 +23,7 @@ import { describe, expect, it } from 'vitest';
 import {
   analyzeStability,
   bandNoise,
+  loopGainColumns,
   BOLTZMANN_J_PER_K,
   makeDesignFromTemplate,
   parseDesign,
@@ -230,6 +231,19 @@ describe('stability of a follower [BODE]', () => {
     expect(expected.phaseMarginDeg).toBeGreaterThan(40);
     expect(expected.phaseMarginDeg).toBeLessThan(60);
     expect(s.gainMarginDb).toBe(Infinity);
+  });
+
+  it('loop gain columns: |T| and continuous ∠T of the two-pole follower in closed form', () => {
+    const frequencies = logGrid(1, 1e8, 5);
+    const [columns] = loopGainColumns(follower({ openLoopGain: 1e5, gbw: 1e6, secondPoleHz: 2e6 }), frequencies);
+    expect(columns.id).toBe('U1');
+    for (let i = 0; i < frequencies.length; i++) {
+      const x1 = frequencies[i] / 10;
+      const x2 = frequencies[i] / 2e6;
+      expect(columns.loopGainDb[i]).toBeCloseTo(20 * Math.log10(1e5 / Math.sqrt((1 + x1 * x1) * (1 + x2 * x2))), 9);
+      // Continuous phase: tends to −180° above both poles, never wraps to +180°.
+      expect(columns.loopPhaseDeg[i]).toBeCloseTo(-(Math.atan(x1) + Math.atan(x2)) * (180 / Math.PI), 9);
+    }
   });
 
   it('output resistance into a capacitive load is the second pole: 100 Ω, 10 nF at 159 kHz', () => {
