@@ -1,7 +1,7 @@
 /**
  * The contract over Electron IPC. One invoke channel carries (method, args);
  * every call is checked by the sender's URL, then goes through
- * app/host/call-service.ts (validate-arguments.ts) as the web host's calls do,
+ * app/host/call-service.ts (the contract's schemas) as the web host's calls do,
  * before anything reaches the service.
  * Replies are { ok, result } / { ok: false, error } because Electron turns a
  * thrown error into a bare string and would lose the hint.

@@ -5,7 +5,7 @@
  */
 import { contextBridge, ipcRenderer, type IpcRendererEvent } from 'electron';
 import { CALL_CHANNEL, EVENT_CHANNEL } from './channels';
-import { SERVICE_EVENT_NAMES } from '../app/service/validate-arguments';
+import { SERVICE_EVENT_NAMES } from '../app/contract/events';
 
 const EVENT_NAMES = new Set<string>(SERVICE_EVENT_NAMES);
 

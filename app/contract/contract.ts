@@ -3,20 +3,57 @@
  * Electron preload bridge and the headless web host both carry exactly these
  * methods and events, so the renderer never knows which one it talks to.
  *
- * Pure types only: no imports from node:*, Electron or the DOM. Data crossing
- * the boundary is plain JSON; numeric series are arrays of numbers in columnar
+ * Schema-first: what a caller sends (the arguments of every method) is a
+ * valibot schema here, and its TypeScript type is inferred from it, so the
+ * type and the check at every boundary are one text (check-call.ts applies
+ * them; field-schemas.ts says why valibot). What the service sends back is
+ * typed below and produced by our own code, so it is not checked again.
+ *
+ * Pure: imports only valibot (no node:*, Electron or DOM). Data crossing the
+ * boundary is plain JSON; numeric series are arrays of numbers in columnar
  * form ([xs, ys, …]) so they go straight into uPlot.
  *
- * Owner: app/service. Extend it when a view needs something new; every method
- * must also be reachable from the CLI.
+ * Extend it when a view needs something new; every method must also be
+ * reachable from the CLI.
  */
+import * as v from 'valibot';
+import {
+  LIMITS,
+  checkFirst,
+  fieldFirst,
+  fieldRule,
+  fields,
+  finiteNumber,
+  numberRecord,
+  oneOf,
+  optional,
+  describeValue,
+  plainObject,
+  positiveNumber,
+  shortText,
+  storeId,
+  text,
+  trueOrFalse,
+  wholeNumber,
+  withDefault,
+  withHint,
+} from './field-schemas';
+import type { ServiceEventName, ServiceEvents } from './events';
 
-export type RunKind = 'ac' | 'dc';
-export type RunStatus = 'planned' | 'running' | 'paused' | 'done' | 'stopped' | 'failed';
-export type InstrumentRole = 'generator' | 'meter' | 'scope';
+export const RUN_KINDS = ['ac', 'dc'] as const;
+export type RunKind = (typeof RUN_KINDS)[number];
+
+/** Every state a run can be in, in the order a run passes through them. */
+export const RUN_STATUSES = ['planned', 'running', 'paused', 'done', 'stopped', 'failed'] as const;
+export type RunStatus = (typeof RUN_STATUSES)[number];
 
 /** Every instrument role, in the order a bench lists them. */
-export const INSTRUMENT_ROLES: readonly InstrumentRole[] = ['generator', 'meter', 'scope'];
+export const INSTRUMENT_ROLES = ['generator', 'meter', 'scope'] as const;
+export type InstrumentRole = (typeof INSTRUMENT_ROLES)[number];
+
+export const RunKindSchema = oneOf(RUN_KINDS);
+export const RunStatusSchema = oneOf(RUN_STATUSES);
+export const InstrumentRoleSchema = oneOf(INSTRUMENT_ROLES);
 
 export interface PortInfo {
   path: string;
@@ -62,11 +99,12 @@ export interface BenchStatus {
   simulatedBench?: { addresses: Partial<Record<InstrumentRole, string>>; designName: string };
 }
 
-export interface ConnectRequest {
-  role: InstrumentRole;
-  address: string;
-  profileId: string;
-}
+export const ConnectRequestSchema = fields({
+  role: InstrumentRoleSchema,
+  address: v.pipe(shortText(false), v.transform((address) => address.trim())),
+  profileId: shortText(false),
+});
+export type ConnectRequest = v.InferOutput<typeof ConnectRequestSchema>;
 
 export interface TemplateInfo {
   id: string;
@@ -95,42 +133,138 @@ export interface BuildRecord {
   createdAt: string;
 }
 
-export interface SweepRequest {
-  buildId: number;
-  kind: RunKind;
-  /** AC: frequency limits in Hz; DC: input level limits in volts. */
-  from: number;
-  to: number;
-  pointsPerDecade: number;
-  spacing: 'log' | 'linear';
-  /** Fixed stimulus, or chosen per point from theory to stay linear. */
-  amplitude: { mode: 'fixed'; vpp: number } | { mode: 'auto'; targetOutputVpp?: number };
-  measurement: 'scope' | 'meter';
-  minCycles: number;
-  averages: number;
-  refine: boolean;
-  operator: string;
-  notes: string;
-  /** Optional pass/fail limits. */
-  limits?: VerdictLimits;
-  /**
-   * Through-calibration (meter runs): the stage is bypassed and the generator
-   * measured directly; the result is stored as the bench's calibration and
-   * applied to later meter runs.
-   */
-  through?: boolean;
-  /** The maximum stimulus in force when the run was made (Vpp); the service fills it in and records it. */
-  maxStimulusVpp?: number;
-}
+/** The new build a caller describes (createBuild). */
+export const NewBuildSchema = fields({
+  designId: storeId,
+  label: v.pipe(shortText(false), v.transform((label) => label.trim())),
+  notes: withDefault(text(LIMITS.textChars, true), ''),
+  /** Measured part values by part id, SI units. */
+  actualValues: withDefault(numberRecord(positiveNumber('SI units')), {}),
+});
+export type NewBuild = v.InferOutput<typeof NewBuildSchema>;
 
-export interface VerdictLimits {
+export const VerdictLimitsSchema = fields({
   /** Largest allowed |measured − theory| in dB over the pass band. */
-  maxDeviationDb?: number;
+  maxDeviationDb: optional(positiveNumber('dB')),
   /** Allowed relative error of each −3 dB frequency. */
-  cornerTolerance?: number;
-  /** Pass-band gain window in dB. */
-  passbandGainDb?: [number, number];
-}
+  cornerTolerance: optional(positiveNumber('relative')),
+  /** Pass-band gain window in dB: [low, high]. */
+  passbandGainDb: optional(
+    v.pipe(
+      v.custom<unknown[]>((value) => Array.isArray(value) && value.length === 2, 'must be [lowDb, highDb]'),
+      v.tuple([finiteNumber, finiteNumber]),
+      v.check(([low, high]) => high >= low, (issue) => `low limit ${issue.input[0]} dB is above high limit ${issue.input[1]} dB`),
+    ),
+  ),
+});
+export type VerdictLimits = v.InferOutput<typeof VerdictLimitsSchema>;
+
+/** Fixed stimulus, or chosen per point from theory to stay linear. */
+export const AmplitudeSchema = v.pipe(
+  plainObject,
+  checkFirst(fieldFirst('mode', oneOf(['fixed', 'auto'] as const))),
+  v.lazy((input) =>
+    (input as { mode: string }).mode === 'fixed'
+      ? fields({ mode: v.literal('fixed'), vpp: positiveNumber('V peak-to-peak') })
+      : fields({ mode: v.literal('auto'), targetOutputVpp: optional(positiveNumber('V peak-to-peak')) }),
+  ),
+);
+
+const SPACINGS = ['log', 'linear'] as const;
+
+export const SweepRequestSchema = fields(
+  {
+    buildId: storeId,
+    kind: RunKindSchema,
+    /** AC: frequency limits in Hz; DC: input level limits in volts. */
+    from: finiteNumber,
+    to: finiteNumber,
+    pointsPerDecade: wholeNumber(1, LIMITS.pointsPerDecade),
+    spacing: oneOf(SPACINGS),
+    amplitude: AmplitudeSchema,
+    measurement: oneOf(['scope', 'meter'] as const),
+    minCycles: wholeNumber(1, LIMITS.count),
+    averages: wholeNumber(1, LIMITS.count),
+    refine: trueOrFalse,
+    operator: withDefault(shortText(true), ''),
+    notes: withDefault(text(LIMITS.textChars, true), ''),
+    /** Optional pass/fail limits. */
+    limits: optional(VerdictLimitsSchema),
+    /**
+     * Through-calibration (meter runs): the stage is bypassed and the generator
+     * measured directly; the result is stored as the bench's calibration and
+     * applied to later meter runs.
+     */
+    through: optional(trueOrFalse),
+    /**
+     * The maximum stimulus in force when the run was made (Vpp). The ceiling is
+     * the bench's setting: the service fills it in and records it, and a
+     * caller may not pass its own.
+     */
+    maxStimulusVpp: optional(
+      v.custom<number>(
+        () => false,
+        withHint('is set by the service from the bench setting, not by the caller', 'Set the maximum stimulus on the Bench view (setMaxStimulus).'),
+      ),
+    ),
+  },
+  [
+    // The range is checked before the other fields, as a reader scans a request.
+    fieldFirst('kind', RunKindSchema),
+    fieldFirst('from', finiteNumber),
+    fieldFirst('to', finiteNumber),
+    fieldRule<{ kind: RunKind; from: number; to: number }>(({ kind, from, to }) => {
+      if (kind === 'ac') {
+        if (from <= 0) return { key: 'from', message: `must be a frequency above 0 Hz, got ${from}` };
+        if (to <= from) return { key: 'to', message: withHint(`must be above the start frequency (${from} Hz), got ${to}`, 'Sweeps run from low to high frequency.') };
+      } else if (from === to) {
+        return { key: 'to', message: withHint('must differ from the start level', 'A DC transfer sweep needs a range of input levels.') };
+      }
+      return undefined;
+    }),
+    fieldFirst('spacing', oneOf(SPACINGS)),
+    fieldRule<{ kind: RunKind; from: number; to: number; spacing: string }>(({ kind, from, to, spacing }) =>
+      kind === 'dc' && spacing === 'log' && (from <= 0 || to <= 0)
+        ? { key: 'from', message: withHint('log-spaced input levels must be above 0 V', 'Use linear spacing for ranges that cross zero.') }
+        : undefined,
+    ),
+  ],
+);
+export type SweepRequest = v.InferOutput<typeof SweepRequestSchema>;
+
+/** The History view's filter (listRuns). */
+export const RunFilterSchema = fields({
+  search: optional(shortText(true)),
+  status: optional(RunStatusSchema),
+  buildId: optional(storeId),
+});
+export type RunFilter = v.InferOutput<typeof RunFilterSchema>;
+
+/** A design file as saved; its circuit (nodes, values) is checked by the circuit parser. */
+export const DesignSchema = v.pipe(
+  plainObject,
+  checkFirst((input) =>
+    Array.isArray(input.parts)
+      ? undefined
+      : { key: 'parts', message: withHint('must be a list of parts', 'A design file lists its parts by nodes; see the templates for examples.') },
+  ),
+  v.check(
+    (design) => JSON.stringify(design).length <= LIMITS.designJsonChars,
+    (issue) => `is ${JSON.stringify(issue.input).length} characters of JSON; at most ${LIMITS.designJsonChars} are accepted`,
+  ),
+);
+
+/** A list of distinct runs (compare, export). */
+export const RunIdListSchema = v.pipe(
+  v.array(v.unknown(), (issue) => `must be a list of run ids, got ${describeValue(issue.input)}`),
+  v.minLength(1, withHint('must name at least one run', 'Pick one or more runs first.')),
+  v.maxLength(LIMITS.runsPerCall, (issue) => `names ${issue.input.length} runs; at most ${LIMITS.runsPerCall} are accepted`),
+  v.array(storeId),
+  v.check((ids) => new Set(ids).size === ids.length, 'names the same run more than once'),
+);
+
+/** What a comparison is measured against: one of the runs, or the theory. */
+export const ComparisonReferenceSchema = v.lazy((input) => (input === 'theory' ? v.literal('theory') : storeId));
 
 export interface PlannedStep {
   index: number;
@@ -242,9 +376,8 @@ export interface Comparison {
   figureTable: Array<{ runId: number; label: string; figures: RunFigures; deltas: Partial<Record<keyof RunFigures, number>>; verdict: Verdict | null }>;
 }
 
-export type RecordFormat = 'pdf' | 'html' | 'csv' | 'json';
-
-export const RECORD_FORMATS: readonly RecordFormat[] = ['pdf', 'html', 'csv', 'json'];
+export const RECORD_FORMATS = ['pdf', 'html', 'csv', 'json'] as const;
+export type RecordFormat = (typeof RECORD_FORMATS)[number];
 
 export interface ExportedRecord {
   fileName: string;
@@ -269,16 +402,8 @@ export interface TrafficLine {
   text: string;
 }
 
-/** Events pushed from the service to every connected window. */
-export interface ServiceEvents {
-  progress: RunProgress;
-  point: { runId: number; index: number; stimulus: number; gainDb: number; phaseDeg: number; outputV: number; flags: number; gainUncertaintyDb: number; phaseUncertaintyDeg: number };
-  runEvent: { runId: number } & RunEvent;
-  traffic: TrafficLine;
-  bench: BenchStatus;
-}
-
-export type ServiceEventName = keyof ServiceEvents;
+export type { ServiceEventName, ServiceEvents } from './events';
+export { SERVICE_EVENT_NAMES } from './events';
 
 /** Every method a window may call. Arguments are validated where they arrive. */
 export interface RolloffApi {
@@ -296,7 +421,7 @@ export interface RolloffApi {
   makeTemplate(templateId: string, parameters: Record<string, number>): Promise<unknown>;
   saveDesign(design: unknown): Promise<DesignRecord>;
   listDesigns(): Promise<DesignRecord[]>;
-  createBuild(build: { designId: number; label: string; notes: string; actualValues: Record<string, number> }): Promise<BuildRecord>;
+  createBuild(build: NewBuild): Promise<BuildRecord>;
   listBuilds(designId?: number): Promise<BuildRecord[]>;
 
   // Sweeps
@@ -307,7 +432,7 @@ export interface RolloffApi {
   stopRun(runId: number): Promise<RunSummary>;
 
   // History, Compare, Record
-  listRuns(filter?: { search?: string; status?: RunStatus; buildId?: number }): Promise<RunSummary[]>;
+  listRuns(filter?: RunFilter): Promise<RunSummary[]>;
   getRun(runId: number): Promise<RunDetail>;
   compareRuns(runIds: number[], reference: number | 'theory'): Promise<Comparison>;
   exportRecord(runIds: number[], format: RecordFormat): Promise<ExportedRecord>;
@@ -319,3 +444,44 @@ export type RolloffMethodName = keyof RolloffApi;
 export interface RolloffClient extends RolloffApi {
   on<E extends ServiceEventName>(event: E, listener: (payload: ServiceEvents[E]) => void): () => void;
 }
+
+/** One positional argument of a method: its name (for messages), its schema, and whether it may be left out. */
+export interface ArgumentSpec {
+  name: string;
+  schema: v.GenericSchema;
+  /** 'required': absent or null is refused; 'optional': left out when absent; else the default used when absent. */
+  presence: 'required' | 'optional' | { default: unknown };
+}
+
+const required = (name: string, schema: v.GenericSchema): ArgumentSpec => ({ name, schema, presence: 'required' });
+const optionalArgument = (name: string, schema: v.GenericSchema): ArgumentSpec => ({ name, schema, presence: 'optional' });
+
+/**
+ * The arguments of every method, as schemas. Its type requires one entry per
+ * method of RolloffApi, so a method added to the contract cannot be called
+ * before its arguments are checked.
+ */
+export const API_ARGUMENTS: { readonly [M in RolloffMethodName]: readonly ArgumentSpec[] } = {
+  listPorts: [],
+  listProfiles: [],
+  benchStatus: [],
+  connect: [required('request', ConnectRequestSchema)],
+  disconnect: [required('role', InstrumentRoleSchema)],
+  startSimulatedBench: [required('designId', storeId)],
+  setMaxStimulus: [required('maxStimulusVpp', positiveNumber('V peak-to-peak'))],
+  listTemplates: [],
+  makeTemplate: [required('templateId', shortText(false)), { name: 'parameters', schema: numberRecord(finiteNumber), presence: { default: {} } }],
+  saveDesign: [required('design', DesignSchema)],
+  listDesigns: [],
+  createBuild: [required('build', NewBuildSchema)],
+  listBuilds: [optionalArgument('designId', storeId)],
+  planSweep: [required('request', SweepRequestSchema)],
+  startRun: [required('request', SweepRequestSchema)],
+  pauseRun: [required('runId', storeId)],
+  resumeRun: [required('runId', storeId)],
+  stopRun: [required('runId', storeId)],
+  listRuns: [optionalArgument('filter', RunFilterSchema)],
+  getRun: [required('runId', storeId)],
+  compareRuns: [required('runIds', RunIdListSchema), required('reference', ComparisonReferenceSchema)],
+  exportRecord: [required('runIds', RunIdListSchema), required('format', oneOf(RECORD_FORMATS))],
+};

@@ -1,12 +1,12 @@
 /**
  * One call from a window into the service, as both hosts (Electron IPC, web
- * host) make it: validate-arguments.ts checks the untrusted (method, args)
+ * host) make it: app/contract/check-call.ts checks the untrusted (method, args)
  * first, then the method runs. Failures come back as values for the host to
  * put in its own envelope; only failures that are not user errors (bugs) are
  * logged, with their stack, which never goes into a reply.
  */
 import type { RolloffApi } from '../contract/contract';
-import { validateCall } from '../service/validate-arguments';
+import { validateCall } from '../contract/check-call';
 import { UserError } from '../errors';
 
 export type ServiceCallOutcome = { ok: true; result: unknown } | { ok: false; error: unknown };

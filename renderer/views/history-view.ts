@@ -3,13 +3,13 @@
  * by a crash or a stop are offered for resume; runs can be picked for
  * Compare and Record, or reopened on the Sweep view.
  */
-import type { RolloffClient, RunStatus, RunSummary } from '../../app/contract/contract';
+import { RUN_STATUSES, type RolloffClient, type RunStatus, type RunSummary } from '../../app/contract/contract';
 import { debounce, field, h, replaceChildren, select } from '../dom';
 import { guarded } from '../notices';
 import type { View } from '../shell';
 import type { AppState } from '../state';
 
-const STATUSES: Array<RunStatus | ''> = ['', 'planned', 'running', 'paused', 'done', 'stopped', 'failed'];
+const STATUSES: Array<RunStatus | ''> = ['', ...RUN_STATUSES];
 
 export class HistoryView implements View {
   readonly id = 'history' as const;

@@ -1,13 +1,12 @@
 import type { CommandSpec } from '../args';
 import { optionFlag, optionNumber, optionString } from '../args';
 import { ValidationError } from '../../errors';
-import type { RunStatus } from '../../contract/contract';
+import { RUN_STATUSES as STATUSES, type RunStatus } from '../../contract/contract';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';
 import { runTable } from '../../sweep/cli/summary-text';
 
-const STATUSES: RunStatus[] = ['planned', 'running', 'paused', 'done', 'stopped', 'failed'];
 
 export const runsCommand: CommandSpec = {
   name: 'runs',

@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { resolve } from 'node:path';
 import { ValidationError } from '../../../app/errors';
-import { API_METHOD_NAMES, validateCall } from '../../../app/service/validate-arguments';
+import { API_METHOD_NAMES, validateCall } from '../../../app/contract/check-call';
 import type { SweepRequest } from '../../../app/contract/contract';
 
 const GOOD_SWEEP: SweepRequest = {
