@@ -50,6 +50,27 @@ describe('JSON Schema subset validator', () => {
     expect(validateAgainstSchema(3, both)[0].message).toMatch(/exactly one/);
   });
 
+  // Core §10.3.2.3 and Validation §6.5.3 speak of the instance's own members; a
+  // name the object only inherits (constructor, toString) is not a property of it.
+  it('treats inherited names such as "constructor" as absent: additionalProperties false refuses them, required is not met by them', () => {
+    expect(paths(JSON.parse('{"kind":"ac","values":[1],"constructor":1}'))).toContain('/constructor no value is allowed here');
+    expect(paths(JSON.parse('{"kind":"ac","values":[1],"toString":{}}'))).toContain('/toString no value is allowed here');
+    const needsNames: JsonSchema = { type: 'object', required: ['constructor', 'toString'] };
+    expect(validateAgainstSchema({}, needsNames).map((p) => p.message)).toEqual([
+      'is missing required property "constructor"',
+      'is missing required property "toString"',
+    ]);
+  });
+
+  // Validation §6.1.2–6.1.3 with Core §4.2.2: two objects are equal when they
+  // have the same members, whatever the order their keys were written in.
+  it('compares enum and const by JSON equality, not by key order', () => {
+    expect(validateAgainstSchema({ b: 2, a: 1 }, { const: { a: 1, b: 2 } })).toEqual([]);
+    expect(validateAgainstSchema({ b: 2, a: 1 }, { enum: [{ a: 1, b: 2 }, 'other'] })).toEqual([]);
+    expect(validateAgainstSchema({ a: 1, b: 3 }, { const: { a: 1, b: 2 } })).toHaveLength(1);
+    expect(validateAgainstSchema([{ y: [1, { q: 1, p: 2 }], x: 0 }], { const: [{ x: 0, y: [1, { p: 2, q: 1 }] }] })).toEqual([]);
+  });
+
   it('refuses keywords it does not implement instead of ignoring them', () => {
     expect(() => validateAgainstSchema('x', { type: 'string', maxLength: 3 })).toThrow(UnsupportedSchemaError);
   });
