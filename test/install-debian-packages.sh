@@ -6,8 +6,9 @@
 #   poppler-utils  pdftoppm/pdftotext to open exported PDF records
 #   xvfb           a display for the Electron shell test where the binary exists
 #   fonts-dejavu-core  a Unicode font embedded in PDF records (standard PDF fonts otherwise)
+#   postgresql     the server programs (initdb, pg_ctl, postgres) for a throw-away cluster the store tests start themselves
 set -euo pipefail
-PACKAGES=(ngspice socat chromium poppler-utils xvfb fonts-dejavu-core)
+PACKAGES=(ngspice socat chromium poppler-utils xvfb fonts-dejavu-core postgresql)
 missing=()
 for package in "${PACKAGES[@]}"; do
   dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed" || missing+=("$package")

@@ -1,17 +1,29 @@
 /**
  * Chooses the store implementation from what the user gave as --db (or
  * ROLLOFF_DB): a database URL (scheme://…) goes to the server store of that
- * scheme, anything else is a SQLite file path, as it always was.
+ * scheme, file:PATH and anything else is a SQLite file path, as it always was.
  */
+import { fileURLToPath } from 'node:url';
 import { SqliteStore } from './sqlite-store';
 import { StoreUnavailableError } from './errors';
+import { PostgresStore } from './postgres/postgres-store';
+import { POSTGRES_SCHEMES } from './postgres/connection';
 import type { RolloffStore } from './store-interface';
 import type { StoreOpenOptions } from './types';
 
 export type StoreOpener = (location: string, options: StoreOpenOptions) => Promise<RolloffStore>;
 
-/** Server stores by URL scheme. The PostgreSQL store registers 'postgres' and 'postgresql' here. */
-const SERVER_STORES: Record<string, StoreOpener> = {};
+/** Server stores by URL scheme. */
+const SERVER_STORES: Record<string, StoreOpener> = Object.fromEntries(POSTGRES_SCHEMES.map((scheme) => [scheme, PostgresStore.open]));
+
+/** What --db accepts, for the message that refuses anything else. */
+export const ACCEPTED_DATABASE_FORMS = 'a SQLite file path (./bench.sqlite, or file:./bench.sqlite), or a PostgreSQL address postgres://USER@HOST:PORT/DATABASE (postgresql:// also)';
+
+/** file:PATH and file:///ABSOLUTE/PATH name a SQLite file; a plain path is one already. */
+function sqlitePathOf(location: string): string {
+  if (/^file:\/\//i.test(location)) return fileURLToPath(location);
+  return location.replace(/^file:/i, '');
+}
 
 /** "postgres" for postgres://…; undefined for a file path (Windows drive letters included: C:\… has no "//"). */
 export function databaseUrlScheme(location: string): string | undefined {
@@ -19,17 +31,17 @@ export function databaseUrlScheme(location: string): string | undefined {
 }
 
 export async function openStore(location: string, options: StoreOpenOptions = {}): Promise<RolloffStore> {
+  if (/^file:/i.test(location)) return SqliteStore.open(sqlitePathOf(location), options);
   const scheme = databaseUrlScheme(location);
-  if (scheme === undefined) return SqliteStore.open(location, options);
-  const opener = SERVER_STORES[scheme];
+  // "postgres:lab" (no //) is a typo for an address far more often than a file name; C:\… (one letter) is a drive.
+  const bareScheme = scheme === undefined ? /^([a-z][a-z0-9+.-]+):/i.exec(location)?.[1] : undefined;
+  if (scheme === undefined && bareScheme === undefined) return SqliteStore.open(location, options);
+  const opener = scheme === undefined ? undefined : SERVER_STORES[scheme];
   if (!opener) {
-    const known = Object.keys(SERVER_STORES);
     throw new StoreUnavailableError(
-      `${scheme}://…`,
-      `no store for "${scheme}" database addresses`,
-      known.length > 0
-        ? `Use a SQLite file path, or an address starting with ${known.map((k) => `${k}://`).join(' or ')}.`
-        : 'Give the path of a SQLite file, e.g. --db ./bench.sqlite.',
+      `${scheme ?? bareScheme}:…`,
+      scheme === undefined ? 'looks like a database address but has no "//" after the scheme' : `no store for "${scheme}" database addresses`,
+      `Give ${ACCEPTED_DATABASE_FORMS}.`,
     );
   }
   return opener(location, options);

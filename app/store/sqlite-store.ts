@@ -8,7 +8,6 @@
 import { existsSync, mkdirSync, statSync } from 'node:fs';
 import { dirname } from 'node:path';
 import Database from 'better-sqlite3';
-import { ValidationError } from '../errors';
 import type {
   BuildRecord,
   DesignRecord,
@@ -30,6 +29,26 @@ import {
 import { describeFileDamage } from './file-check';
 import { identityKey } from './identity-key';
 import { applyMigrations, latestVersion, loadMigrations, schemaVersionOf, writerAppVersion } from './migrations';
+import {
+  FINISHED_STATUSES,
+  checkActualValues,
+  checkBenchKey,
+  checkBenchSettings,
+  checkBuildLabel,
+  checkCalibration,
+  checkDesignName,
+  checkEventLevel,
+  checkPoint,
+  checkRunFilter,
+  checkRunKind,
+  checkRunStatus,
+  checkSchedule,
+  nullable,
+  numberOrNaN,
+  requireId,
+  requireText,
+  toJson,
+} from './record-checks';
 import type { RolloffStore } from './store-interface';
 import type {
   BenchSettings,
@@ -50,11 +69,6 @@ import type {
   StoredRun,
 } from './types';
 
-const RUN_STATUSES: readonly RunStatus[] = ['planned', 'running', 'paused', 'done', 'stopped', 'failed'];
-const FINISHED_STATUSES: ReadonlySet<RunStatus> = new Set(['done', 'stopped', 'failed']);
-const EVENT_LEVELS: ReadonlySet<RunEvent['level']> = new Set(['info', 'warning', 'error']);
-const DEFAULT_LIST_LIMIT = 200;
-
 type Row = Record<string, unknown>;
 
 function isoNow(): string {
@@ -69,40 +83,12 @@ function isDamageCode(code: string | undefined): boolean {
   return code === 'SQLITE_CORRUPT' || code === 'SQLITE_NOTADB' || code === 'SQLITE_CORRUPT_VTAB' || code === 'SQLITE_CORRUPT_INDEX';
 }
 
-/** NaN (a missing value) is stored as NULL and read back as NaN. */
-function nullable(value: number | undefined): number | null {
-  return value === undefined || Number.isNaN(value) ? null : value;
-}
 
-function numberOrNaN(value: unknown): number {
-  return value === null || value === undefined ? Number.NaN : (value as number);
-}
 
-function requireId(value: number, where: string): number {
-  if (!Number.isInteger(value) || value <= 0) throw new ValidationError(where, `${value} is not a valid id (a positive whole number)`);
-  return value;
-}
 
-function requireFinite(value: number, where: string): number {
-  if (typeof value !== 'number' || !Number.isFinite(value)) throw new ValidationError(where, `${value} is not a finite number`);
-  return value;
-}
 
-function requireText(value: unknown, where: string): string {
-  if (typeof value !== 'string') throw new ValidationError(where, 'must be text');
-  return value;
-}
 
-function toJson(value: unknown, where: string): string {
-  const text = JSON.stringify(value);
-  if (text === undefined) throw new ValidationError(where, 'cannot be stored as JSON');
-  return text;
-}
 
-/** Escapes LIKE wildcards so a search for "10%" finds the text "10%". */
-function likePattern(search: string): string {
-  return `%${search.replace(/[\\%_]/g, (c) => '\\' + c)}%`;
-}
 
 export class SqliteStore implements RolloffStore {
   /** The database file (or ':memory:'). */
@@ -297,8 +283,7 @@ export class SqliteStore implements RolloffStore {
 
   async saveDesign(input: NewDesign): Promise<DesignRecord> {
     this.requireWritable();
-    const name = requireText(input.name, 'design.name').trim();
-    if (name.length === 0) throw new ValidationError('design.name', 'is empty', 'Give the design a name.');
+    const name = checkDesignName(input.name);
     const createdAt = this.now();
     const result = this.guard(() => this.statements.insertDesign.run(name, toJson(input.design, 'design'), createdAt));
     return this.designById(Number(result.lastInsertRowid));
@@ -321,9 +306,8 @@ export class SqliteStore implements RolloffStore {
   async createBuild(input: NewBuild): Promise<BuildRecord> {
     this.requireWritable();
     this.designById(input.designId);
-    const label = requireText(input.label, 'build.label').trim();
-    if (label.length === 0) throw new ValidationError('build.label', 'is empty', 'Give the build a label, e.g. "board 3".');
-    for (const [partId, value] of Object.entries(input.actualValues ?? {})) requireFinite(value, `build.actualValues.${partId}`);
+    const label = checkBuildLabel(input.label);
+    checkActualValues(input.actualValues);
     const result = this.guard(() =>
       this.statements.insertBuild.run(input.designId, label, requireText(input.notes ?? '', 'build.notes'), toJson(input.actualValues ?? {}, 'build.actualValues'), this.now()),
     );
@@ -379,7 +363,7 @@ export class SqliteStore implements RolloffStore {
   /** Checks and inserts one run with its plan; the caller holds the transaction. */
   private insertRun(input: NewRun): number {
     this.buildById(input.buildId);
-    if (input.kind !== 'ac' && input.kind !== 'dc') throw new ValidationError('run.kind', `"${String(input.kind)}" is not ac or dc`);
+    checkRunKind(input.kind);
     if (input.scheduleId != null) this.scheduleById(input.scheduleId);
     const plannedCount = Array.isArray(input.plan?.steps) ? input.plan.steps.length : 0;
     const planJson = toJson(input.plan, 'run.plan');
@@ -404,9 +388,7 @@ export class SqliteStore implements RolloffStore {
   /** Moves a run to a status; first 'running' stamps the start, a finished status stamps the end. */
   async updateRunStatus(runId: number, status: RunStatus): Promise<StoredRun> {
     this.requireWritable();
-    if (!RUN_STATUSES.includes(status)) {
-      throw new ValidationError('run.status', `"${String(status)}" is not a run status`, `Use one of: ${RUN_STATUSES.join(', ')}.`);
-    }
+    checkRunStatus(status);
     const result = this.guard(() => this.statements.setStatus.run({ status, at: this.now(), finished: FINISHED_STATUSES.has(status) ? 1 : 0, runId: requireId(runId, 'runId') }));
     if (result.changes === 0) throw new RecordNotFoundError('run', runId);
     return this.runById(runId);
@@ -433,14 +415,8 @@ export class SqliteStore implements RolloffStore {
 
   /** Newest first. */
   async listRuns(filter: RunFilter = {}): Promise<RunSummary[]> {
-    if (filter.status !== undefined && !RUN_STATUSES.includes(filter.status)) {
-      throw new ValidationError('filter.status', `"${String(filter.status)}" is not a run status`, `Use one of: ${RUN_STATUSES.join(', ')}.`);
-    }
-    const limit = filter.limit ?? DEFAULT_LIST_LIMIT;
-    if (!Number.isInteger(limit) || limit <= 0) throw new ValidationError('filter.limit', `${limit} is not a positive whole number`);
-    const search = filter.search?.trim() ? likePattern(filter.search.trim()) : null;
-    const buildId = filter.buildId === undefined ? null : requireId(filter.buildId, 'filter.buildId');
-    const rows = this.guard(() => this.statements.listRuns.all({ status: filter.status ?? null, buildId, search, limit }) as Row[]);
+    const { status, buildId, search, limit } = checkRunFilter(filter);
+    const rows = this.guard(() => this.statements.listRuns.all({ status, buildId, search, limit }) as Row[]);
     return rows.map(summaryFromRow);
   }
 
@@ -477,16 +453,6 @@ export class SqliteStore implements RolloffStore {
     }
   }
 
-  private validatePoint(point: NewPoint, where: string): void {
-    if (!Number.isInteger(point.step) || point.step < 0) throw new ValidationError(`${where}.step`, `${point.step} is not a whole number ≥ 0`);
-    requireFinite(point.stimulus, `${where}.stimulus`);
-    requireFinite(point.amplitudeVpp, `${where}.amplitudeVpp`);
-    if (!Number.isInteger(point.flags) || point.flags < 0) throw new ValidationError(`${where}.flags`, `${point.flags} is not a flag set`);
-    if (point.measuredAt !== undefined && !Number.isFinite(Date.parse(point.measuredAt))) {
-      throw new ValidationError(`${where}.measuredAt`, `"${point.measuredAt}" is not a date and time`, 'Use ISO 8601, e.g. 2026-12-01T16:45:00.000Z.');
-    }
-  }
-
   /** Points store their time as UTC milliseconds; ISO text comes back out in loadPoints. */
   private pointTimeMs(measuredAt: string | undefined): number {
     return Date.parse(measuredAt ?? this.now());
@@ -496,7 +462,7 @@ export class SqliteStore implements RolloffStore {
   async insertPoint(runId: number, point: NewPoint): Promise<void> {
     this.requireWritable();
     requireId(runId, 'runId');
-    this.validatePoint(point, 'point');
+    checkPoint(point, 'point');
     this.guard(() => this.insertPointTransaction(runId, point));
   }
 
@@ -504,7 +470,7 @@ export class SqliteStore implements RolloffStore {
   async insertPoints(runId: number, points: readonly NewPoint[]): Promise<void> {
     this.requireWritable();
     requireId(runId, 'runId');
-    points.forEach((point, index) => this.validatePoint(point, `points[${index}]`));
+    points.forEach((point, index) => checkPoint(point, `points[${index}]`));
     this.guard(() => this.insertPointsTransaction([{ runId, points }]));
   }
 
@@ -512,7 +478,7 @@ export class SqliteStore implements RolloffStore {
     this.requireWritable();
     batches.forEach(({ runId, points }, b) => {
       requireId(runId, `batches[${b}].runId`);
-      points.forEach((point, index) => this.validatePoint(point, `batches[${b}].points[${index}]`));
+      points.forEach((point, index) => checkPoint(point, `batches[${b}].points[${index}]`));
     });
     this.guard(() => this.insertPointsTransaction(batches));
   }
@@ -562,7 +528,7 @@ export class SqliteStore implements RolloffStore {
 
   async appendEvent(runId: number, level: RunEvent['level'], message: string, at?: string): Promise<RunEvent> {
     this.requireWritable();
-    if (!EVENT_LEVELS.has(level)) throw new ValidationError('event.level', `"${String(level)}" is not info, warning or error`);
+    checkEventLevel(level);
     const event: RunEvent = { at: at ?? this.now(), level, message: requireText(message, 'event.message') };
     try {
       this.guard(() => this.statements.insertEvent.run(requireId(runId, 'runId'), event.at, event.level, event.message));
@@ -581,16 +547,7 @@ export class SqliteStore implements RolloffStore {
 
   async saveCalibration(input: NewCalibration): Promise<CalibrationRecord> {
     this.requireWritable();
-    const benchKey = requireText(input.benchKey, 'calibration.benchKey');
-    if (benchKey.length === 0) throw new ValidationError('calibration.benchKey', 'is empty');
-    const n = input.frequencyHz?.length ?? 0;
-    if (n === 0) throw new ValidationError('calibration.frequencyHz', 'is empty', 'A calibration needs at least one frequency.');
-    if (input.gainDb?.length !== n || input.phaseDeg?.length !== n) {
-      throw new ValidationError('calibration', `frequencyHz has ${n} entries but gainDb has ${input.gainDb?.length} and phaseDeg ${input.phaseDeg?.length}`);
-    }
-    input.frequencyHz.forEach((f, i) => requireFinite(f, `calibration.frequencyHz[${i}]`));
-    input.gainDb.forEach((g, i) => requireFinite(g, `calibration.gainDb[${i}]`));
-    input.phaseDeg.forEach((p, i) => requireFinite(p, `calibration.phaseDeg[${i}]`));
+    const benchKey = checkCalibration(input);
     const createdAt = this.now();
     const result = this.guard(() =>
       this.statements.insertCalibration.run(
@@ -627,16 +584,7 @@ export class SqliteStore implements RolloffStore {
   async createSchedule(input: NewSchedule): Promise<ScheduleRecord> {
     this.requireWritable();
     this.buildById(input.buildId);
-    if (!(Number.isFinite(input.everyMinutes) && input.everyMinutes > 0)) {
-      throw new ValidationError('schedule.everyMinutes', `${input.everyMinutes} is not a positive number of minutes`);
-    }
-    const count = input.count ?? null;
-    const until = input.until ?? null;
-    if (count === null && until === null) {
-      throw new ValidationError('schedule', 'has neither a run count nor an end time', 'Give a count of runs, an end time, or both.');
-    }
-    if (count !== null && !(Number.isInteger(count) && count > 0)) throw new ValidationError('schedule.count', `${count} is not a positive whole number`);
-    if (until !== null && Number.isNaN(Date.parse(until))) throw new ValidationError('schedule.until', `"${until}" is not a date and time`, 'Use ISO 8601, e.g. 2026-12-02T06:00:00Z.');
+    const { count, until } = checkSchedule(input);
     const result = this.guard(() =>
       this.statements.insertSchedule.run(input.buildId, toJson(input.request, 'schedule.request'), input.everyMinutes, count, until, this.now()),
     );
@@ -676,12 +624,8 @@ export class SqliteStore implements RolloffStore {
 
   async saveBenchSettings(benchKey: string, settings: BenchSettingsInput): Promise<BenchSettings> {
     this.requireWritable();
-    const key = requireText(benchKey, 'benchKey');
-    if (key.length === 0) throw new ValidationError('benchKey', 'is empty');
-    const maxStimulusVpp = settings.maxStimulusVpp;
-    if (maxStimulusVpp !== null && !(typeof maxStimulusVpp === 'number' && Number.isFinite(maxStimulusVpp) && maxStimulusVpp > 0)) {
-      throw new ValidationError('benchSettings.maxStimulusVpp', `${maxStimulusVpp} is not a positive amplitude`, 'Give the largest peak-to-peak voltage the circuit may see, e.g. 2, or null to clear it.');
-    }
+    const key = checkBenchKey(benchKey);
+    const { maxStimulusVpp } = checkBenchSettings(settings);
     this.guard(() => this.statements.saveBenchSettings.run(key, maxStimulusVpp, this.now()));
     return benchSettingsFromRow(this.statements.getBenchSettings.get(key) as Row);
   }

@@ -27,6 +27,8 @@ export const REQUIRED_TOOLS = {
   python3: { program: 'python3', debianPackage: 'python3' },
   rpcbind: { program: 'rpcbind', debianPackage: 'rpcbind' },
   xvfb: { program: 'xvfb-run', debianPackage: 'xvfb' },
+  // Debian keeps it off PATH, in /usr/lib/postgresql/N/bin: test/helpers/postgres-cluster.ts looks there first.
+  initdb: { program: 'initdb', debianPackage: 'postgresql' },
 } satisfies Record<string, Tool>;
 
 export type ToolName = keyof typeof REQUIRED_TOOLS;

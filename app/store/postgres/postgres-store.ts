@@ -1,0 +1,738 @@
+/**
+ * The PostgreSQL store: one lab-wide database for many benches, behind the
+ * same RolloffStore interface as the SQLite file and passing the same
+ * conformance suite. A small pool of connections (node-postgres); each point
+ * is one statement (its insert and the run's point count together), committed
+ * with synchronous_commit=on, so it is on the server's disk when insertPoint
+ * resolves. Bulk work runs in one transaction on one connection.
+ * Rows become contract types here and nowhere else.
+ */
+import pg from 'pg';
+import type { PoolClient, QueryConfig, QueryResultRow } from 'pg';
+import type {
+  BuildRecord,
+  DesignRecord,
+  PointColumns,
+  RunEvent,
+  RunFigures,
+  RunStatus,
+  RunSummary,
+  Verdict,
+} from '../../contract/contract';
+import { DuplicateStepError, RecordNotFoundError, StoreUnavailableError } from '../errors';
+import { identityKey } from '../identity-key';
+import {
+  FINISHED_STATUSES,
+  checkActualValues,
+  checkBenchKey,
+  checkBenchSettings,
+  checkBuildLabel,
+  checkCalibration,
+  checkDesignName,
+  checkEventLevel,
+  checkPoint,
+  checkRunFilter,
+  checkRunKind,
+  checkRunStatus,
+  checkSchedule,
+  nullable,
+  numberOrNaN,
+  requireId,
+  requireText,
+  toJson,
+} from '../record-checks';
+import type { RolloffStore } from '../store-interface';
+import type {
+  BenchSettings,
+  BenchSettingsInput,
+  CalibrationRecord,
+  InstrumentRecord,
+  InstrumentSighting,
+  NewBuild,
+  NewCalibration,
+  NewDesign,
+  NewPoint,
+  NewRun,
+  NewSchedule,
+  PointBatch,
+  RunFilter,
+  ScheduleRecord,
+  StoreOpenOptions,
+  StoredRun,
+} from '../types';
+import { connectionFailure, isUnreachable, poolConfigFor, redactDatabaseUrl, sqlState } from './connection';
+import { loadPostgresMigrations, migratePostgres, schemaVersionIn } from './migrations';
+
+type Row = Record<string, unknown>;
+type Queryable = Pick<PoolClient, 'query'>;
+
+/** Type OIDs (pg_type.oid, stable across PostgreSQL versions). */
+const INT8_OID = 20;
+const TIMESTAMPTZ_OID = 1184;
+
+/** Ids are bigint in the schema but far below 2^53; timestamps come back as the contract's ISO 8601 UTC text. */
+const typeParsers = {
+  getTypeParser(oid: number, format?: 'text' | 'binary') {
+    if (oid === INT8_OID) return (text: string) => Number(text);
+    if (oid === TIMESTAMPTZ_OID) return (text: string) => new Date(text.replace(' ', 'T').replace(/([+-]\d\d)$/, '$1:00')).toISOString();
+    return pg.types.getTypeParser(oid, format as 'text');
+  },
+} as pg.CustomTypesConfig;
+
+function isoNow(): string {
+  return new Date().toISOString();
+}
+
+/** Any ISO 8601 form the checks accepted (offsets included), as one UTC instant for timestamptz. */
+function instant(text: string): string {
+  return new Date(Date.parse(text)).toISOString();
+}
+
+/** SQLSTATEs (PostgreSQL documentation, appendix A "Error Codes"). */
+const UNIQUE_VIOLATION = '23505';
+const FOREIGN_KEY_VIOLATION = '23503';
+const READ_ONLY_TRANSACTION = '25006';
+
+const POINT_COLUMNS = `run_id, step, stimulus, amplitude_vpp, input_reading, output_reading,
+  gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at`;
+
+const RUN_SUMMARY_COLUMNS = `r.id, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
+  r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated`;
+
+export class PostgresStore implements RolloffStore {
+  readonly location: string;
+  readonly readonly: boolean;
+  readonly appliedMigrations: readonly number[];
+  private readonly pool: pg.Pool;
+  private readonly now: () => string;
+  private closed = false;
+
+  private constructor(location: string, pool: pg.Pool, readonly_: boolean, applied: number[], now: () => string) {
+    this.location = location;
+    this.pool = pool;
+    this.readonly = readonly_;
+    this.appliedMigrations = applied;
+    this.now = now;
+  }
+
+  /**
+   * Connects and migrates. A database of a newer schema or of another program
+   * is refused before anything is written; an unreachable server, a refused
+   * login or a missing database is a StoreUnavailableError saying which.
+   */
+  static async open(databaseUrl: string, options: StoreOpenOptions = {}): Promise<PostgresStore> {
+    const shown = redactDatabaseUrl(databaseUrl);
+    const readonly = options.readonly === true;
+    const now = options.now ?? isoNow;
+    const migrations = loadPostgresMigrations(options.migrationsDir);
+    const config = poolConfigFor(databaseUrl, 'rolloff');
+    if (readonly) config.options = `${config.options} -c default_transaction_read_only=on`;
+    const pool = new pg.Pool({ ...config, types: typeParsers });
+    // An idle connection dropped by the server (restart, network) must not crash the process; the next query reconnects.
+    pool.on('error', () => {});
+    let client: PoolClient;
+    try {
+      client = await pool.connect();
+    } catch (error) {
+      await pool.end().catch(() => {});
+      throw connectionFailure(shown, error);
+    }
+    try {
+      const applied = await migratePostgres(client, shown, migrations, { readonly, now });
+      client.release();
+      return new PostgresStore(shown, pool, readonly, applied, now);
+    } catch (error) {
+      client.release();
+      await pool.end().catch(() => {});
+      if (isUnreachable(error)) throw connectionFailure(shown, error);
+      throw error;
+    }
+  }
+
+  async schemaVersion(): Promise<number> {
+    return this.withClient((client) => schemaVersionIn(client));
+  }
+
+  async close(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    await this.pool.end();
+  }
+
+  // ── plumbing ───────────────────────────────────────────────────────────
+
+  /** Turns the server's failures into the store's named errors. */
+  private translate(error: unknown): unknown {
+    if (sqlState(error) === READ_ONLY_TRANSACTION) {
+      return new StoreUnavailableError(this.location, 'is open read-only', 'Open the database without read-only to change it.');
+    }
+    if (isUnreachable(error)) return connectionFailure(this.location, error);
+    return error;
+  }
+
+  private async query<R extends QueryResultRow = Row>(text: string | QueryConfig, values?: unknown[], on: Queryable = this.pool): Promise<pg.QueryResult<R>> {
+    if (this.closed) throw new StoreUnavailableError(this.location, 'is closed', 'Open the store again.');
+    try {
+      return await (on.query as (q: string | QueryConfig, v?: unknown[]) => Promise<pg.QueryResult<R>>)(text, values);
+    } catch (error) {
+      throw this.translate(error);
+    }
+  }
+
+  private async withClient<T>(work: (client: PoolClient) => Promise<T>): Promise<T> {
+    if (this.closed) throw new StoreUnavailableError(this.location, 'is closed', 'Open the store again.');
+    let client: PoolClient;
+    try {
+      client = await this.pool.connect();
+    } catch (error) {
+      throw connectionFailure(this.location, error);
+    }
+    try {
+      return await work(client);
+    } finally {
+      client.release();
+    }
+  }
+
+  /** One transaction on one connection; all or nothing. */
+  private async transaction<T>(work: (client: PoolClient) => Promise<T>): Promise<T> {
+    return this.withClient(async (client) => {
+      await this.query('BEGIN', [], client);
+      try {
+        const result = await work(client);
+        await this.query('COMMIT', [], client);
+        return result;
+      } catch (error) {
+        await client.query('ROLLBACK').catch(() => {});
+        throw this.translate(error);
+      }
+    });
+  }
+
+  private requireWritable(): void {
+    if (this.readonly) throw new StoreUnavailableError(this.location, 'is open read-only', 'Open the database without read-only to change it.');
+  }
+
+  // ── designs and builds ─────────────────────────────────────────────────
+
+  async saveDesign(input: NewDesign): Promise<DesignRecord> {
+    this.requireWritable();
+    const name = checkDesignName(input.name);
+    const { rows } = await this.query('INSERT INTO designs (name, design_json, created_at) VALUES ($1, $2, $3) RETURNING *', [
+      name,
+      toJson(input.design, 'design'),
+      instant(this.now()),
+    ]);
+    return designFromRow(rows[0]);
+  }
+
+  async getDesign(designId: number): Promise<DesignRecord> {
+    const { rows } = await this.query('SELECT * FROM designs WHERE id = $1', [requireId(designId, 'designId')]);
+    if (rows.length === 0) throw new RecordNotFoundError('design', designId);
+    return designFromRow(rows[0]);
+  }
+
+  async listDesigns(): Promise<DesignRecord[]> {
+    return (await this.query('SELECT * FROM designs ORDER BY id')).rows.map(designFromRow);
+  }
+
+  async createBuild(input: NewBuild): Promise<BuildRecord> {
+    this.requireWritable();
+    await this.getDesign(input.designId);
+    const label = checkBuildLabel(input.label);
+    const actualValues = checkActualValues(input.actualValues);
+    try {
+      const { rows } = await this.query(
+        'INSERT INTO builds (design_id, label, notes, actual_values_json, created_at) VALUES ($1, $2, $3, $4, $5) RETURNING *',
+        [input.designId, label, requireText(input.notes ?? '', 'build.notes'), toJson(actualValues, 'build.actualValues'), instant(this.now())],
+      );
+      return buildFromRow(rows[0]);
+    } catch (error) {
+      if (sqlState(error) === FOREIGN_KEY_VIOLATION) throw new RecordNotFoundError('design', input.designId);
+      throw error;
+    }
+  }
+
+  async getBuild(buildId: number): Promise<BuildRecord> {
+    const { rows } = await this.query('SELECT * FROM builds WHERE id = $1', [requireId(buildId, 'buildId')]);
+    if (rows.length === 0) throw new RecordNotFoundError('build', buildId);
+    return buildFromRow(rows[0]);
+  }
+
+  async listBuilds(designId?: number): Promise<BuildRecord[]> {
+    const id = designId === undefined ? null : requireId(designId, 'designId');
+    return (await this.query('SELECT * FROM builds WHERE ($1::bigint IS NULL OR design_id = $1) ORDER BY id', [id])).rows.map(buildFromRow);
+  }
+
+  // ── instruments ────────────────────────────────────────────────────────
+
+  async recordInstrument(sighting: InstrumentSighting): Promise<InstrumentRecord> {
+    this.requireWritable();
+    const identityText = identityKey(sighting.identity);
+    const address = requireText(sighting.address, 'instrument.address');
+    const at = instant(sighting.at ?? this.now());
+    const { rows } = await this.query(
+      `INSERT INTO instruments (role, identity_text, identity_json, address, first_seen_at, last_seen_at)
+       VALUES ($1, $2, $3, $4, $5, $5)
+       ON CONFLICT (identity_text, address) DO UPDATE SET last_seen_at = excluded.last_seen_at, role = excluded.role
+       RETURNING *`,
+      [sighting.role, identityText, toJson(sighting.identity, 'instrument.identity'), address, at],
+    );
+    return instrumentFromRow(rows[0]);
+  }
+
+  async listInstruments(): Promise<InstrumentRecord[]> {
+    return (await this.query('SELECT * FROM instruments ORDER BY last_seen_at DESC, id DESC')).rows.map(instrumentFromRow);
+  }
+
+  // ── runs ───────────────────────────────────────────────────────────────
+
+  async createRun(input: NewRun): Promise<StoredRun> {
+    const [run] = await this.createRuns([input]);
+    return run;
+  }
+
+  async createRuns(inputs: readonly NewRun[]): Promise<StoredRun[]> {
+    this.requireWritable();
+    const ids = await this.transaction(async (client) => {
+      const created: number[] = [];
+      for (const input of inputs) created.push(await this.insertRun(input, client));
+      return created;
+    });
+    const stored: StoredRun[] = [];
+    for (const id of ids) stored.push(await this.getRun(id));
+    return stored;
+  }
+
+  private async insertRun(input: NewRun, client: PoolClient): Promise<number> {
+    const buildId = requireId(input.buildId, 'run.buildId');
+    const kind = checkRunKind(input.kind);
+    if ((await this.query('SELECT 1 FROM builds WHERE id = $1', [buildId], client)).rowCount === 0) throw new RecordNotFoundError('build', buildId);
+    const scheduleId = input.scheduleId ?? null;
+    if (scheduleId !== null && (await this.query('SELECT 1 FROM schedules WHERE id = $1', [requireId(scheduleId, 'run.scheduleId')], client)).rowCount === 0) {
+      throw new RecordNotFoundError('schedule', scheduleId);
+    }
+    const plannedCount = Array.isArray(input.plan?.steps) ? input.plan.steps.length : 0;
+    const { rows } = await this.query<{ id: number }>(
+      `WITH run AS (
+         INSERT INTO runs (build_id, kind, request_json, planned_count, status, created_at, software_version, bench_json, operator, notes, simulated, schedule_id)
+         VALUES ($1, $2, $3, $4, 'planned', $5, $6, $7, $8, $9, $10, $11) RETURNING id)
+       INSERT INTO run_plans (run_id, plan_json) SELECT id, $12 FROM run RETURNING run_id AS id`,
+      [
+        buildId,
+        kind,
+        toJson(input.request, 'run.request'),
+        plannedCount,
+        instant(this.now()),
+        requireText(input.softwareVersion, 'run.softwareVersion'),
+        toJson(input.bench ?? [], 'run.bench'),
+        requireText(input.operator ?? '', 'run.operator'),
+        requireText(input.notes ?? '', 'run.notes'),
+        input.simulated === true,
+        scheduleId,
+        toJson(input.plan, 'run.plan'),
+      ],
+      client,
+    );
+    return rows[0].id;
+  }
+
+  async updateRunStatus(runId: number, status: RunStatus): Promise<StoredRun> {
+    this.requireWritable();
+    checkRunStatus(status);
+    const result = await this.query(
+      `UPDATE runs SET status = $1,
+         started_at = CASE WHEN $1 = 'running' THEN COALESCE(started_at, $2) ELSE started_at END,
+         ended_at = CASE WHEN $3 THEN $2 WHEN $1 = 'running' THEN NULL ELSE ended_at END
+       WHERE id = $4`,
+      [status, instant(this.now()), FINISHED_STATUSES.has(status), requireId(runId, 'runId')],
+    );
+    if (result.rowCount === 0) throw new RecordNotFoundError('run', runId);
+    return this.getRun(runId);
+  }
+
+  async setRunResults(runId: number, figures: RunFigures, verdict: Verdict | null): Promise<StoredRun> {
+    this.requireWritable();
+    const result = await this.query('UPDATE runs SET figures_json = $1, verdict_json = $2 WHERE id = $3', [
+      toJson(figures, 'run.figures'),
+      verdict === null ? null : toJson(verdict, 'run.verdict'),
+      requireId(runId, 'runId'),
+    ]);
+    if (result.rowCount === 0) throw new RecordNotFoundError('run', runId);
+    return this.getRun(runId);
+  }
+
+  async getRun(runId: number): Promise<StoredRun> {
+    const { rows } = await this.query(
+      `SELECT r.*, p.plan_json, b.label AS build_label, d.name AS design_name FROM runs r
+       JOIN run_plans p ON p.run_id = r.id JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id
+       WHERE r.id = $1`,
+      [requireId(runId, 'runId')],
+    );
+    if (rows.length === 0) throw new RecordNotFoundError('run', runId);
+    return storedRunFromRow(rows[0]);
+  }
+
+  async listRuns(filter: RunFilter = {}): Promise<RunSummary[]> {
+    const { status, buildId, search, limit } = checkRunFilter(filter);
+    const { rows } = await this.query(
+      `SELECT ${RUN_SUMMARY_COLUMNS}
+       FROM runs r JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id
+       WHERE ($1::text IS NULL OR r.status = $1) AND ($2::bigint IS NULL OR r.build_id = $2)
+         AND ($3::text IS NULL OR b.label ILIKE $3 ESCAPE '\\' OR d.name ILIKE $3 ESCAPE '\\' OR r.notes ILIKE $3 ESCAPE '\\')
+       ORDER BY r.id DESC LIMIT $4`,
+      [status, buildId, search, limit],
+    );
+    return rows.map(summaryFromRow);
+  }
+
+  async findInterruptedRuns(): Promise<StoredRun[]> {
+    const { rows } = await this.query<{ id: number }>(`SELECT id FROM runs WHERE status IN ('running', 'paused') ORDER BY id`);
+    const runs: StoredRun[] = [];
+    for (const row of rows) runs.push(await this.getRun(row.id));
+    return runs;
+  }
+
+  // ── points ─────────────────────────────────────────────────────────────
+
+  async insertPoint(runId: number, point: NewPoint): Promise<void> {
+    this.requireWritable();
+    requireId(runId, 'runId');
+    checkPoint(point, 'point');
+    try {
+      // One statement is one transaction: the point and the run's count commit together, durably (synchronous_commit=on).
+      await this.query(
+        {
+          name: 'rolloff-insert-point',
+          text: `WITH point AS (INSERT INTO points (${POINT_COLUMNS}) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13) RETURNING run_id)
+                 UPDATE runs SET point_count = point_count + 1 WHERE id = (SELECT run_id FROM point)`,
+        },
+        [runId, ...this.pointValues(point)],
+      );
+    } catch (error) {
+      throw this.pointFailure(error, runId, [point]);
+    }
+  }
+
+  async insertPoints(runId: number, points: readonly NewPoint[]): Promise<void> {
+    requireId(runId, 'runId');
+    points.forEach((point, index) => checkPoint(point, `points[${index}]`));
+    await this.insertPointsOfRuns([{ runId, points }]);
+  }
+
+  async insertPointsOfRuns(batches: readonly PointBatch[]): Promise<void> {
+    this.requireWritable();
+    batches.forEach(({ runId, points }, b) => {
+      requireId(runId, `batches[${b}].runId`);
+      points.forEach((point, index) => checkPoint(point, `batches[${b}].points[${index}]`));
+    });
+    await this.transaction(async (client) => {
+      for (const batch of batches) {
+        // Arrays through unnest: one statement per few thousand points instead of one per point.
+        for (let start = 0; start < batch.points.length; start += POINTS_PER_STATEMENT) {
+          const slice = batch.points.slice(start, start + POINTS_PER_STATEMENT);
+          try {
+            await this.insertPointArrays(client, batch.runId, slice);
+          } catch (error) {
+            throw this.pointFailure(error, batch.runId, slice);
+          }
+        }
+        if (batch.points.length > 0) {
+          const updated = await this.query('UPDATE runs SET point_count = point_count + $1 WHERE id = $2', [batch.points.length, batch.runId], client);
+          if (updated.rowCount === 0) throw new RecordNotFoundError('run', batch.runId);
+        }
+      }
+    });
+  }
+
+  private async insertPointArrays(client: PoolClient, runId: number, points: readonly NewPoint[]): Promise<void> {
+    const columns: unknown[][] = Array.from({ length: 12 }, () => new Array(points.length));
+    points.forEach((point, i) => {
+      const values = this.pointValues(point);
+      for (let c = 0; c < 12; c++) columns[c][i] = values[c];
+    });
+    await this.query(
+      {
+        name: 'rolloff-insert-points',
+        text: `INSERT INTO points (${POINT_COLUMNS})
+               SELECT $1::bigint, * FROM unnest($2::integer[], $3::float8[], $4::float8[], $5::float8[], $6::float8[], $7::float8[],
+                 $8::float8[], $9::float8[], $10::float8[], $11::float8[], $12::integer[], $13::timestamptz[])`,
+      },
+      [runId, ...columns],
+      client,
+    );
+  }
+
+  /** The twelve values after run_id, in POINT_COLUMNS order. */
+  private pointValues(point: NewPoint): unknown[] {
+    return [
+      point.step,
+      point.stimulus,
+      point.amplitudeVpp,
+      nullable(point.inputReading),
+      nullable(point.outputReading),
+      nullable(point.gainDb),
+      nullable(point.gainUncertaintyDb),
+      nullable(point.phaseDeg),
+      nullable(point.phaseUncertaintyDeg),
+      nullable(point.outputV),
+      point.flags,
+      instant(point.measuredAt ?? this.now()),
+    ];
+  }
+
+  private pointFailure(error: unknown, runId: number, points: readonly NewPoint[]): unknown {
+    const state = sqlState(error);
+    if (state === FOREIGN_KEY_VIOLATION) return new RecordNotFoundError('run', runId);
+    if (state === UNIQUE_VIOLATION) {
+      // "Key (run_id, step)=(7, 3) already exists." names the step; fall back to the first point given.
+      const detail = (error as { detail?: string }).detail ?? '';
+      const step = /=\(\d+, (\d+)\)/.exec(detail)?.[1];
+      return new DuplicateStepError(runId, step !== undefined ? Number(step) : points[0].step);
+    }
+    return error;
+  }
+
+  async loadPoints(runId: number): Promise<PointColumns> {
+    requireId(runId, 'runId');
+    const { rows } = await this.query<unknown[] & QueryResultRow>(
+      {
+        name: 'rolloff-load-points',
+        text: `SELECT step, stimulus, amplitude_vpp, gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags,
+                 (extract(epoch FROM measured_at) * 1000)::float8 AS measured_at_ms
+               FROM points WHERE run_id = $1 ORDER BY step`,
+        rowMode: 'array',
+      } as QueryConfig,
+      [runId],
+    );
+    if (rows.length === 0 && (await this.query('SELECT 1 FROM runs WHERE id = $1', [runId])).rowCount === 0) throw new RecordNotFoundError('run', runId);
+    const n = rows.length;
+    const columns: PointColumns = {
+      step: new Array<number>(n),
+      stimulus: new Array<number>(n),
+      amplitudeVpp: new Array<number>(n),
+      gainDb: new Array<number>(n),
+      gainUncertaintyDb: new Array<number>(n),
+      phaseDeg: new Array<number>(n),
+      phaseUncertaintyDeg: new Array<number>(n),
+      outputV: new Array<number>(n),
+      flags: new Array<number>(n),
+      measuredAt: new Array<string>(n),
+    };
+    for (let i = 0; i < n; i++) {
+      const row = rows[i] as unknown[];
+      columns.step[i] = row[0] as number;
+      columns.stimulus[i] = row[1] as number;
+      columns.amplitudeVpp[i] = row[2] as number;
+      columns.gainDb[i] = numberOrNaN(row[3]);
+      columns.gainUncertaintyDb[i] = numberOrNaN(row[4]);
+      columns.phaseDeg[i] = numberOrNaN(row[5]);
+      columns.phaseUncertaintyDeg[i] = numberOrNaN(row[6]);
+      columns.outputV[i] = numberOrNaN(row[7]);
+      columns.flags[i] = row[8] as number;
+      columns.measuredAt[i] = new Date(Math.round(row[9] as number)).toISOString();
+    }
+    return columns;
+  }
+
+  async nextStep(runId: number): Promise<number> {
+    requireId(runId, 'runId');
+    const { rows } = await this.query<{ exists: boolean; next: number }>(
+      `SELECT EXISTS (SELECT 1 FROM runs WHERE id = $1) AS exists, COALESCE((SELECT MAX(step) FROM points WHERE run_id = $1), -1) + 1 AS next`,
+      [runId],
+    );
+    if (!rows[0].exists) throw new RecordNotFoundError('run', runId);
+    return rows[0].next;
+  }
+
+  // ── events ─────────────────────────────────────────────────────────────
+
+  async appendEvent(runId: number, level: RunEvent['level'], message: string, at?: string): Promise<RunEvent> {
+    this.requireWritable();
+    const event: RunEvent = { at: at ?? this.now(), level: checkEventLevel(level), message: requireText(message, 'event.message') };
+    try {
+      await this.query('INSERT INTO run_events (run_id, at, level, message) VALUES ($1, $2, $3, $4)', [requireId(runId, 'runId'), event.at, event.level, event.message]);
+    } catch (error) {
+      if (sqlState(error) === FOREIGN_KEY_VIOLATION) throw new RecordNotFoundError('run', runId);
+      throw error;
+    }
+    return event;
+  }
+
+  async listEvents(runId: number): Promise<RunEvent[]> {
+    return (await this.query<RunEvent>('SELECT at, level, message FROM run_events WHERE run_id = $1 ORDER BY id', [requireId(runId, 'runId')])).rows;
+  }
+
+  // ── calibrations ───────────────────────────────────────────────────────
+
+  async saveCalibration(input: NewCalibration): Promise<CalibrationRecord> {
+    this.requireWritable();
+    const benchKey = checkCalibration(input);
+    const { rows } = await this.query(
+      `INSERT INTO calibrations (bench_key, bench_json, frequencies_hz_json, gain_db_json, phase_deg_json, notes, created_at)
+       VALUES ($1, $2, $3, $4, $5, $6, $7) RETURNING *`,
+      [
+        benchKey,
+        toJson(input.bench ?? [], 'calibration.bench'),
+        JSON.stringify(Array.from(input.frequencyHz)),
+        JSON.stringify(Array.from(input.gainDb)),
+        JSON.stringify(Array.from(input.phaseDeg)),
+        input.notes ?? '',
+        instant(this.now()),
+      ],
+    );
+    return calibrationFromRow(rows[0]);
+  }
+
+  async latestCalibration(benchKey: string): Promise<CalibrationRecord | undefined> {
+    const { rows } = await this.query('SELECT * FROM calibrations WHERE bench_key = $1 ORDER BY id DESC LIMIT 1', [requireText(benchKey, 'benchKey')]);
+    return rows.length === 0 ? undefined : calibrationFromRow(rows[0]);
+  }
+
+  // ── schedules ──────────────────────────────────────────────────────────
+
+  async createSchedule(input: NewSchedule): Promise<ScheduleRecord> {
+    this.requireWritable();
+    await this.getBuild(input.buildId);
+    const { count, until } = checkSchedule(input);
+    const { rows } = await this.query(
+      `INSERT INTO schedules (build_id, request_json, every_minutes, run_count, until_at, created_at) VALUES ($1, $2, $3, $4, $5, $6) RETURNING *`,
+      [input.buildId, toJson(input.request, 'schedule.request'), input.everyMinutes, count, until === null ? null : instant(until), instant(this.now())],
+    );
+    return scheduleFromRow(rows[0]);
+  }
+
+  async getSchedule(scheduleId: number): Promise<ScheduleRecord> {
+    const { rows } = await this.query('SELECT * FROM schedules WHERE id = $1', [requireId(scheduleId, 'scheduleId')]);
+    if (rows.length === 0) throw new RecordNotFoundError('schedule', scheduleId);
+    return scheduleFromRow(rows[0]);
+  }
+
+  // ── per-bench settings ─────────────────────────────────────────────────
+
+  async getBenchSettings(benchKey: string): Promise<BenchSettings | undefined> {
+    const { rows } = await this.query('SELECT * FROM bench_settings WHERE bench_key = $1', [requireText(benchKey, 'benchKey')]);
+    return rows.length === 0 ? undefined : benchSettingsFromRow(rows[0]);
+  }
+
+  async saveBenchSettings(benchKey: string, settings: BenchSettingsInput): Promise<BenchSettings> {
+    this.requireWritable();
+    const key = checkBenchKey(benchKey);
+    const { maxStimulusVpp } = checkBenchSettings(settings);
+    const { rows } = await this.query(
+      `INSERT INTO bench_settings (bench_key, max_stimulus_vpp, updated_at) VALUES ($1, $2, $3)
+       ON CONFLICT (bench_key) DO UPDATE SET max_stimulus_vpp = excluded.max_stimulus_vpp, updated_at = excluded.updated_at
+       RETURNING *`,
+      [key, maxStimulusVpp, instant(this.now())],
+    );
+    return benchSettingsFromRow(rows[0]);
+  }
+
+  // ── maintenance ────────────────────────────────────────────────────────
+
+  /**
+   * What the server's constraints cannot hold by themselves: each run's kept
+   * point count against its points, and every run with its plan. (Page-level
+   * checks need the amcheck extension and a superuser; the lab's administrator runs those.)
+   */
+  async integrityProblems(): Promise<string[]> {
+    const { rows } = await this.query<{ problem: string }>(
+      `SELECT format('run %s: point count %s but %s points stored', r.id, r.point_count, coalesce(p.n, 0)) AS problem
+         FROM runs r LEFT JOIN (SELECT run_id, count(*) AS n FROM points GROUP BY run_id) p ON p.run_id = r.id
+        WHERE r.point_count <> coalesce(p.n, 0)
+       UNION ALL
+       SELECT format('run %s: no plan stored', r.id) FROM runs r WHERE NOT EXISTS (SELECT 1 FROM run_plans p WHERE p.run_id = r.id)`,
+    );
+    return rows.map((row) => row.problem);
+  }
+}
+
+/** Points per INSERT … unnest statement in bulk work: large enough to amortise a round trip, small enough for one message. */
+const POINTS_PER_STATEMENT = 5000;
+
+function designFromRow(row: Row): DesignRecord {
+  return { id: row.id as number, name: row.name as string, design: row.design_json, createdAt: row.created_at as string };
+}
+
+function buildFromRow(row: Row): BuildRecord {
+  return {
+    id: row.id as number,
+    designId: row.design_id as number,
+    label: row.label as string,
+    notes: row.notes as string,
+    actualValues: row.actual_values_json as Record<string, number>,
+    createdAt: row.created_at as string,
+  };
+}
+
+function instrumentFromRow(row: Row): InstrumentRecord {
+  return {
+    id: row.id as number,
+    role: row.role as InstrumentRecord['role'],
+    identity: row.identity_json as InstrumentRecord['identity'],
+    address: row.address as string,
+    firstSeenAt: row.first_seen_at as string,
+    lastSeenAt: row.last_seen_at as string,
+  };
+}
+
+function calibrationFromRow(row: Row): CalibrationRecord {
+  return {
+    id: row.id as number,
+    benchKey: row.bench_key as string,
+    bench: row.bench_json as CalibrationRecord['bench'],
+    frequencyHz: row.frequencies_hz_json as number[],
+    gainDb: row.gain_db_json as number[],
+    phaseDeg: row.phase_deg_json as number[],
+    notes: row.notes as string,
+    createdAt: row.created_at as string,
+  };
+}
+
+function scheduleFromRow(row: Row): ScheduleRecord {
+  return {
+    id: row.id as number,
+    buildId: row.build_id as number,
+    request: row.request_json as ScheduleRecord['request'],
+    everyMinutes: row.every_minutes as number,
+    count: (row.run_count as number | null) ?? null,
+    until: (row.until_at as string | null) ?? null,
+    createdAt: row.created_at as string,
+  };
+}
+
+function benchSettingsFromRow(row: Row): BenchSettings {
+  return { benchKey: row.bench_key as string, maxStimulusVpp: (row.max_stimulus_vpp as number | null) ?? null, updatedAt: row.updated_at as string };
+}
+
+function summaryFromRow(row: Row): RunSummary {
+  return {
+    id: row.id as number,
+    buildId: row.build_id as number,
+    buildLabel: row.build_label as string,
+    designName: row.design_name as string,
+    kind: row.kind as RunSummary['kind'],
+    status: row.status as RunStatus,
+    startedAt: (row.started_at as string | null) ?? null,
+    endedAt: (row.ended_at as string | null) ?? null,
+    pointCount: row.point_count as number,
+    plannedCount: row.planned_count as number,
+    simulated: row.simulated === true,
+  };
+}
+
+function storedRunFromRow(row: Row): StoredRun {
+  return {
+    ...summaryFromRow(row),
+    request: row.request_json as StoredRun['request'],
+    plan: row.plan_json as StoredRun['plan'],
+    softwareVersion: row.software_version as string,
+    bench: row.bench_json as StoredRun['bench'],
+    operator: row.operator as string,
+    notes: row.notes as string,
+    scheduleId: (row.schedule_id as number | null) ?? null,
+    createdAt: row.created_at as string,
+    figures: (row.figures_json as RunFigures | null) ?? null,
+    verdict: (row.verdict_json as Verdict | null) ?? null,
+  };
+}

@@ -1,0 +1,151 @@
+/**
+ * The checks every store applies to what it is asked to write, before any
+ * database sees it, so SQLite and PostgreSQL refuse the same values with the
+ * same ValidationError naming the same field.
+ */
+import { ValidationError } from '../errors';
+import type { RunEvent, RunStatus } from '../contract/contract';
+import type { BenchSettingsInput, NewCalibration, NewPoint, NewSchedule, RunFilter } from './types';
+
+export const RUN_STATUSES: readonly RunStatus[] = ['planned', 'running', 'paused', 'done', 'stopped', 'failed'];
+export const FINISHED_STATUSES: ReadonlySet<RunStatus> = new Set(['done', 'stopped', 'failed']);
+const EVENT_LEVELS: ReadonlySet<RunEvent['level']> = new Set(['info', 'warning', 'error']);
+export const DEFAULT_LIST_LIMIT = 200;
+
+export function requireId(value: number, where: string): number {
+  if (!Number.isInteger(value) || value <= 0) throw new ValidationError(where, `${value} is not a valid id (a positive whole number)`);
+  return value;
+}
+
+export function requireFinite(value: number, where: string): number {
+  if (typeof value !== 'number' || !Number.isFinite(value)) throw new ValidationError(where, `${value} is not a finite number`);
+  return value;
+}
+
+export function requireText(value: unknown, where: string): string {
+  if (typeof value !== 'string') throw new ValidationError(where, 'must be text');
+  return value;
+}
+
+export function toJson(value: unknown, where: string): string {
+  const text = JSON.stringify(value);
+  if (text === undefined) throw new ValidationError(where, 'cannot be stored as JSON');
+  return text;
+}
+
+/** A LIKE pattern matching the text anywhere, with LIKE's wildcards escaped by \ so "10%" finds the text "10%". */
+export function likePattern(search: string): string {
+  return `%${search.replace(/[\\%_]/g, (c) => '\\' + c)}%`;
+}
+
+/** NaN (a missing value) is stored as NULL and read back as NaN. */
+export function nullable(value: number | undefined): number | null {
+  return value === undefined || Number.isNaN(value) ? null : value;
+}
+
+export function numberOrNaN(value: unknown): number {
+  return value === null || value === undefined ? Number.NaN : (value as number);
+}
+
+export function checkDesignName(name: unknown): string {
+  const trimmed = requireText(name, 'design.name').trim();
+  if (trimmed.length === 0) throw new ValidationError('design.name', 'is empty', 'Give the design a name.');
+  return trimmed;
+}
+
+export function checkBuildLabel(label: unknown): string {
+  const trimmed = requireText(label, 'build.label').trim();
+  if (trimmed.length === 0) throw new ValidationError('build.label', 'is empty', 'Give the build a label, e.g. "board 3".');
+  return trimmed;
+}
+
+export function checkActualValues(actualValues: Record<string, number> | undefined): Record<string, number> {
+  for (const [partId, value] of Object.entries(actualValues ?? {})) requireFinite(value, `build.actualValues.${partId}`);
+  return actualValues ?? {};
+}
+
+export function checkRunKind(kind: unknown): 'ac' | 'dc' {
+  if (kind !== 'ac' && kind !== 'dc') throw new ValidationError('run.kind', `"${String(kind)}" is not ac or dc`);
+  return kind;
+}
+
+export function checkRunStatus(status: unknown, where = 'run.status'): RunStatus {
+  if (!RUN_STATUSES.includes(status as RunStatus)) {
+    throw new ValidationError(where, `"${String(status)}" is not a run status`, `Use one of: ${RUN_STATUSES.join(', ')}.`);
+  }
+  return status as RunStatus;
+}
+
+export interface CheckedRunFilter {
+  status: RunStatus | null;
+  buildId: number | null;
+  /** A LIKE pattern (see likePattern), or null for no text filter. */
+  search: string | null;
+  limit: number;
+}
+
+export function checkRunFilter(filter: RunFilter): CheckedRunFilter {
+  const status = filter.status === undefined ? null : checkRunStatus(filter.status, 'filter.status');
+  const limit = filter.limit ?? DEFAULT_LIST_LIMIT;
+  if (!Number.isInteger(limit) || limit <= 0) throw new ValidationError('filter.limit', `${limit} is not a positive whole number`);
+  const search = filter.search?.trim() ? likePattern(filter.search.trim()) : null;
+  const buildId = filter.buildId === undefined ? null : requireId(filter.buildId, 'filter.buildId');
+  return { status, buildId, search, limit };
+}
+
+export function checkPoint(point: NewPoint, where: string): void {
+  if (!Number.isInteger(point.step) || point.step < 0) throw new ValidationError(`${where}.step`, `${point.step} is not a whole number ≥ 0`);
+  requireFinite(point.stimulus, `${where}.stimulus`);
+  requireFinite(point.amplitudeVpp, `${where}.amplitudeVpp`);
+  if (!Number.isInteger(point.flags) || point.flags < 0) throw new ValidationError(`${where}.flags`, `${point.flags} is not a flag set`);
+  if (point.measuredAt !== undefined && !Number.isFinite(Date.parse(point.measuredAt))) {
+    throw new ValidationError(`${where}.measuredAt`, `"${point.measuredAt}" is not a date and time`, 'Use ISO 8601, e.g. 2026-12-01T16:45:00.000Z.');
+  }
+}
+
+export function checkEventLevel(level: unknown): RunEvent['level'] {
+  if (!EVENT_LEVELS.has(level as RunEvent['level'])) throw new ValidationError('event.level', `"${String(level)}" is not info, warning or error`);
+  return level as RunEvent['level'];
+}
+
+export function checkCalibration(input: NewCalibration): string {
+  const benchKey = requireText(input.benchKey, 'calibration.benchKey');
+  if (benchKey.length === 0) throw new ValidationError('calibration.benchKey', 'is empty');
+  const n = input.frequencyHz?.length ?? 0;
+  if (n === 0) throw new ValidationError('calibration.frequencyHz', 'is empty', 'A calibration needs at least one frequency.');
+  if (input.gainDb?.length !== n || input.phaseDeg?.length !== n) {
+    throw new ValidationError('calibration', `frequencyHz has ${n} entries but gainDb has ${input.gainDb?.length} and phaseDeg ${input.phaseDeg?.length}`);
+  }
+  input.frequencyHz.forEach((f, i) => requireFinite(f, `calibration.frequencyHz[${i}]`));
+  input.gainDb.forEach((g, i) => requireFinite(g, `calibration.gainDb[${i}]`));
+  input.phaseDeg.forEach((p, i) => requireFinite(p, `calibration.phaseDeg[${i}]`));
+  return benchKey;
+}
+
+export function checkSchedule(input: NewSchedule): { count: number | null; until: string | null } {
+  if (!(Number.isFinite(input.everyMinutes) && input.everyMinutes > 0)) {
+    throw new ValidationError('schedule.everyMinutes', `${input.everyMinutes} is not a positive number of minutes`);
+  }
+  const count = input.count ?? null;
+  const until = input.until ?? null;
+  if (count === null && until === null) {
+    throw new ValidationError('schedule', 'has neither a run count nor an end time', 'Give a count of runs, an end time, or both.');
+  }
+  if (count !== null && !(Number.isInteger(count) && count > 0)) throw new ValidationError('schedule.count', `${count} is not a positive whole number`);
+  if (until !== null && Number.isNaN(Date.parse(until))) throw new ValidationError('schedule.until', `"${until}" is not a date and time`, 'Use ISO 8601, e.g. 2026-12-02T06:00:00Z.');
+  return { count, until };
+}
+
+export function checkBenchKey(benchKey: unknown): string {
+  const key = requireText(benchKey, 'benchKey');
+  if (key.length === 0) throw new ValidationError('benchKey', 'is empty');
+  return key;
+}
+
+export function checkBenchSettings(settings: BenchSettingsInput): BenchSettingsInput {
+  const maxStimulusVpp = settings.maxStimulusVpp;
+  if (maxStimulusVpp !== null && !(typeof maxStimulusVpp === 'number' && Number.isFinite(maxStimulusVpp) && maxStimulusVpp > 0)) {
+    throw new ValidationError('benchSettings.maxStimulusVpp', `${maxStimulusVpp} is not a positive amplitude`, 'Give the largest peak-to-peak voltage the circuit may see, e.g. 2, or null to clear it.');
+  }
+  return { maxStimulusVpp };
+}
