@@ -2,7 +2,7 @@
  * Pass-band gain and the −3 dB corners relative to it.
  */
 import { HALF_POWER_DB } from '../units';
-import { medianOfSorted } from '../circuit/percentile';
+import { medianOfSorted } from '../numeric/percentile';
 import { ascendingOrder, crossingsLogF } from './crossing';
 
 // The theory summary (app/circuit) uses the same level, so both read −3 dB alike.

@@ -4,7 +4,7 @@
  */
 import { buildLayout, GROUND, INPUT, type CircuitLayout } from './layout';
 import { allocatePencil, nominalValues, stampLinear, type OpAmpMode, type Pencil } from './stamp';
-import { solveComplexInPlace } from './dense-solve';
+import { solveComplexInPlace } from '../numeric/dense-solve';
 import { SingularCircuitError } from './design-error';
 import type { Design } from './types';
 

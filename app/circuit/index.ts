@@ -24,7 +24,6 @@ export { solveDcTransfer, type DcTransfer } from './solve-dc';
 export { logStageIdeal } from './log-stage';
 export { thermalVoltageV, BOLTZMANN_J_PER_K, ELEMENTARY_CHARGE_C } from './thermal-voltage';
 export { monteCarloAc, TOLERANCE_BAND_SETTINGS, type MonteCarloOptions, type MonteCarloBand, type ToleranceDistribution } from './monte-carlo';
-export { SeededRandom } from './random';
 export { slowestTimeConstantS, circuitPoles, type Poles } from './time-constant';
 export { TEMPLATES, makeDesignFromTemplate, type DesignFile } from './templates';
 export { toSpiceNetlist, spiceNames, type SpiceAnalysis, type SpiceOptions, type SpiceNames } from './spice-netlist';

@@ -12,8 +12,8 @@ import { ValidationError } from '../errors';
 import { dbFromRatio } from '../units';
 import { AcSolver } from './ac-solver';
 import { continuousPhaseDeg } from './phase';
-import { percentileOfSorted } from './percentile';
-import { SeededRandom } from './random';
+import { percentileOfSorted } from '../numeric/percentile';
+import { SeededRandom } from '../numeric/random';
 import { nominalValues } from './stamp';
 import type { Design } from './types';
 

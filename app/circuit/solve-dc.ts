@@ -10,7 +10,7 @@
  * Each level starts from the previous solution (continuation along the sweep).
  */
 import { DcConvergenceError, SingularCircuitError } from './design-error';
-import { solveRealInPlace } from './dense-solve';
+import { solveRealInPlace } from '../numeric/dense-solve';
 import { buildLayout, GROUND, INPUT } from './layout';
 import { allocatePencil, JUNCTION_GMIN_S, nominalValues, stampLinear } from './stamp';
 import { thermalVoltageV } from './thermal-voltage';

@@ -16,7 +16,7 @@
  * does at DC), which shows up as a very slow, honest pole.
  */
 import { SingularCircuitError } from './design-error';
-import { solveRealInPlace } from './dense-solve';
+import { solveRealInPlace } from '../numeric/dense-solve';
 import { eigenvalues } from './eigenvalues';
 import { buildLayout, type CircuitLayout } from './layout';
 import { allocatePencil, nominalValues, stampLinear } from './stamp';

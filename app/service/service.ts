@@ -24,7 +24,7 @@ import type {
   PointColumns, PortListing, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunStatus, RunSummary, ServiceEventName,
   ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
 } from '../contract/contract';
-import { ServiceEventBus } from './events';
+import { ServiceEventBus } from '../contract/event-bus';
 import { buildDesign, designOf, planTheoryFor } from './theory';
 import { analyzeRun, designForBuild, designForRun, runDetail } from './run-detail';
 import { compareDetails } from './compare';

@@ -1,7 +1,9 @@
 /**
  * Small dense linear algebra for fits (n ≤ ~10 parameters): row-major
- * Float64Array matrices. Gauss–Jordan with partial pivoting is plenty at this size.
+ * Float64Array matrices. The inverse (for covariances) by Gauss–Jordan with
+ * partial pivoting, which is plenty at this size; solves go to app/numeric.
  */
+import { solveRealInPlace } from '../numeric/dense-solve';
 
 /** Inverts an n×n matrix; returns undefined when it is singular to working precision. */
 export function invertMatrix(matrix: Float64Array, n: number): Float64Array | undefined {
@@ -39,15 +41,13 @@ export function invertMatrix(matrix: Float64Array, n: number): Float64Array | un
   return inverse;
 }
 
-/** Solves A·x = b (n×n); undefined when A is singular. */
+/**
+ * Solves A·x = b (n×n); undefined when A is singular. The one dense real
+ * solver (Gaussian elimination with partial pivoting, app/numeric), on copies:
+ * better conditioned than multiplying by the inverse.
+ */
 export function solveLinear(matrix: Float64Array, rhs: Float64Array, n: number): Float64Array | undefined {
-  const inverse = invertMatrix(matrix, n);
-  if (!inverse) return undefined;
-  const x = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    let sum = 0;
-    for (let k = 0; k < n; k++) sum += inverse[i * n + k] * rhs[k];
-    x[i] = sum;
-  }
-  return x;
+  const a = Float64Array.from(matrix);
+  const x = Float64Array.from(rhs);
+  return solveRealInPlace(n, a, x, new Float64Array(n)) === -1 ? x : undefined;
 }

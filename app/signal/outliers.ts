@@ -5,7 +5,7 @@
  * memory). Median and MAD are not pulled by the outliers they are meant to find.
  */
 import { ValidationError } from '../errors';
-import { medianOfSorted } from '../circuit/percentile';
+import { medianOfSorted } from '../numeric/percentile';
 
 export const MODIFIED_Z_LIMIT = 3.5;
 /** 0.6745 ≈ Φ⁻¹(0.75): makes MAD estimate σ for normal data. */

@@ -15,7 +15,7 @@
  *   slowest time constant;
  * - then clipping at the rails and additive Gaussian noise (noiseVrms).
  */
-import { SeededRandom } from '../circuit';
+import { SeededRandom } from '../numeric';
 import type { BenchClock } from '../bench/clock';
 import { CircuitUnderTest, type Phasor } from './circuit-under-test';
 

@@ -4,7 +4,7 @@
  * at LF (CR LF accepted), executes them in order, writes each response
  * message with an LF terminator, and applies link latency and faults.
  */
-import { SeededRandom } from '../circuit';
+import { SeededRandom } from '../numeric';
 import { realClock } from '../bench/clock';
 import type { FaultState } from './faults';
 import type { SimInstrument, SimReply } from './sim-instrument';

@@ -7,7 +7,8 @@
 import { mkdtempSync, rmSync, existsSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { parseDesign, SeededRandom, type Design } from '../circuit';
+import { parseDesign, type Design } from '../circuit';
+import { SeededRandom } from '../numeric';
 import { scaledClock, type BenchClock } from '../bench/clock';
 import { INSTRUMENT_ROLES as ROLES, type InstrumentRole } from '../contract/contract';
 import { ValidationError } from '../errors';

@@ -18,6 +18,7 @@ const PURE_ROOTS = [
   'app/analysis',
   'app/errors.ts',
   'app/contract',
+  'app/numeric',
 ];
 
 /**

@@ -5,7 +5,8 @@
  * accepts must solve (common practice, no source).
  */
 import { describe, expect, it } from 'vitest';
-import { makeDesignFromTemplate, parseDesign, SeededRandom, solveAc, TEMPLATES } from '../../../app/circuit';
+import { makeDesignFromTemplate, parseDesign, solveAc, TEMPLATES } from '../../../app/circuit';
+import { SeededRandom } from '../../../app/numeric';
 import { isUserError } from '../../../app/errors';
 
 const JUNK: unknown[] = [null, undefined, 0, -1, 1e308, NaN, '', ' ', 'x', '1k', '-5', '1e999', [], [1, 2], {}, { a: 1 }, true, 'gnd', '0', 'in', 'out', '10%'];

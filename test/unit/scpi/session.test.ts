@@ -15,7 +15,7 @@ import {
   ScpiTimeoutError,
   type Transport,
 } from '../../../app/scpi';
-import { SeededRandom } from '../../../app/circuit';
+import { SeededRandom } from '../../../app/numeric';
 
 type Responder = (line: string) => Uint8Array | string | undefined;
 

@@ -1,11 +1,18 @@
-/** The service's event bus: typed, synchronous, a throwing listener cannot break a sweep. */
-import type { ServiceEventName, ServiceEvents } from '../contract/contract';
+/**
+ * The one typed event bus for service events, used by the service (to push
+ * them to every host) and by the window (to fan them out to its views).
+ * Synchronous; a throwing listener cannot break the others, nor a sweep.
+ */
+import type { ServiceEventName, ServiceEvents } from './events';
 
 type Listener<E extends ServiceEventName> = (payload: ServiceEvents[E]) => void;
 
 export class ServiceEventBus {
   private readonly listeners = new Map<ServiceEventName, Set<Listener<ServiceEventName>>>();
   private readonly anyListeners = new Set<(event: ServiceEventName, payload: unknown) => void>();
+
+  /** `onListenerError` hears what a listener threw; by default it is dropped (a broken window must not stop a measurement). */
+  constructor(private readonly onListenerError: (event: ServiceEventName, error: unknown) => void = () => {}) {}
 
   on<E extends ServiceEventName>(event: E, listener: Listener<E>): () => void {
     let set = this.listeners.get(event);
@@ -21,15 +28,15 @@ export class ServiceEventBus {
   }
 
   emit<E extends ServiceEventName>(event: E, payload: ServiceEvents[E]): void {
-    for (const listener of this.listeners.get(event) ?? []) safely(() => listener(payload));
-    for (const listener of this.anyListeners) safely(() => listener(event, payload));
+    for (const listener of this.listeners.get(event) ?? []) this.safely(event, () => listener(payload));
+    for (const listener of this.anyListeners) this.safely(event, () => listener(event, payload));
   }
-}
 
-function safely(call: () => void): void {
-  try {
-    call();
-  } catch {
-    // A broken window must not stop a measurement.
+  private safely(event: ServiceEventName, call: () => void): void {
+    try {
+      call();
+    } catch (error) {
+      this.onListenerError(event, error);
+    }
   }
 }

@@ -1,0 +1,8 @@
+/**
+ * General numerical helpers shared by the pure engines (circuit, signal,
+ * analysis), the simulated bench and the tests: seeded random numbers,
+ * percentiles, dense linear solves. Pure: no imports at all.
+ */
+export { SeededRandom } from './random';
+export { medianOfSorted, percentileOfSorted } from './percentile';
+export { solveComplexInPlace, solveRealInPlace } from './dense-solve';
