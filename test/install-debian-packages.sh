@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# Debian packages the tests use (see DESIGN.md "Machines here"):
+# Debian packages the tests use (see DEVELOPERS.md "Tools the tests use"):
 #   ngspice        reference circuit simulator for the theory checks
 #   socat          pseudo-terminal pairs for real serial-port tests
 #   chromium       end-to-end tests of the window through playwright-core

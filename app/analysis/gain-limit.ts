@@ -3,7 +3,7 @@
  * gain takes over from the design, i.e. where the loop gain T = A/NG falls to 1.
  *
  * From the feedback relation H = H_ideal / (1 + NG/A) = H_ideal · T/(1 + T)
- * (DESIGN.md "Theory"), the loop gain follows from the measured complex H and
+ * (DEVELOPERS.md "Theory"), the loop gain follows from the measured complex H and
  * the ideal-op-amp response of the same circuit: T = 1/(H_ideal/H − 1). Its
  * magnitude crossing 0 dB is the gain-limit point, with no op-amp model assumed.
  *

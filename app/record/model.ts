@@ -45,7 +45,7 @@ export interface RecordTheory {
   idealPhaseDeg: MaybeNumber[];
   bandLowDb: MaybeNumber[] | null;
   bandHighDb: MaybeNumber[] | null;
-  /** Frequency where the loop gain falls to 1 (DESIGN.md "Theory"), if the theory found one. */
+  /** Frequency where the loop gain falls to 1 (DEVELOPERS.md "Theory"), if the theory found one. */
   gainLimitHz: number | null;
   minus3dbHz: number[];
 }

@@ -81,7 +81,7 @@ export function theoryAtPoints(design: Design, stimulusHz: number[], figures: { 
 /**
  * GBW from the single-pole fit (app/signal fitSinglePoleOpAmp). Its noise-gain
  * input is derived from the theory engine itself: with H = H_ideal/(1 + NG/A),
- * NG = A·(H_ideal/H − 1), exact for the model (DESIGN.md "Theory"). Needs phase,
+ * NG = A·(H_ideal/H − 1), exact for the model (DEVELOPERS.md "Theory"). Needs phase,
  * so scope runs only; undefined when the circuit has no op-amp or the fit fails.
  */
 export function estimateGbw(

@@ -5,7 +5,7 @@
  *
  *   H = H_ideal / (1 + NG/A),   1/A = 1/A0 + j·f/GBW
  *
- * (the feedback relation in DESIGN.md "Theory"). Residuals are taken on ln H:
+ * (the feedback relation in DEVELOPERS.md "Theory"). Residuals are taken on ln H:
  * ln|H| in nepers and ∠H in radians weigh gain and phase comparably; given
  * uncertainties turn them into standardized residuals.
  */

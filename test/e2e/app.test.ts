@@ -6,7 +6,7 @@
  * test/artifacts/ for a person to look at.
  *
  * The stage: inverting gain −RF/RN = −100 with a 1 MHz GBW op-amp; its
- * gain-limit point is near GBW/noise gain = 1 MHz/101 ≈ 9.9 kHz (DESIGN.md,
+ * gain-limit point is near GBW/noise gain = 1 MHz/101 ≈ 9.9 kHz (DEVELOPERS.md "Theory",
  * "Theory the tool must get right"), inside the 100 Hz – 200 kHz sweep.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -86,7 +86,7 @@ describe.skipIf(!requireTool('chromium'))('the window in Chromium against rollof
     await page.getByTestId('make-template').click();
     await expect.poll(() => page.getByTestId('design-name').inputValue()).toBe('Inverting gain stage');
     const gainLimit = page.locator('[data-figure="gain-limit"]');
-    // GBW / noise gain = 1 MHz / (1 + 100k/1k) ≈ 9.9 kHz (DESIGN.md theory notes).
+    // GBW / noise gain = 1 MHz / (1 + 100k/1k) ≈ 9.9 kHz (DEVELOPERS.md "Theory").
     await expect.poll(() => gainLimit.textContent()).toBe('9.9 kHz');
     const before = await gainLimit.textContent();
     // Editing a value re-computes theory in the window: RF 100k → 47k moves the gain-limit point up.

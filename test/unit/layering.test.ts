@@ -1,5 +1,5 @@
 /**
- * Layer rule (DESIGN.md "The shape"): pure modules import nothing from node:*,
+ * Layer rule (DEVELOPERS.md "Where things live"): pure modules import nothing from node:*,
  * Electron or the DOM, and the renderer imports only pure modules and the
  * contract types. This walks the real import graph of the source files.
  */

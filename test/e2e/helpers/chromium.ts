@@ -1,6 +1,6 @@
 /**
  * Debian's Chromium driven by playwright-core, with the flags the project
- * uses everywhere (DESIGN.md "Machines here") and a fresh profile per launch
+ * uses everywhere (DEVELOPERS.md "Tools the tests use") and a fresh profile per launch
  * so first-start behaviour (the safety notice) is seen every time.
  */
 import { chromium, type BrowserContext } from 'playwright-core';

@@ -3,7 +3,7 @@
  * same op-amp macro-model: single pole A(s) = A0/(1 + s·A0/(2π·GBW))
  * (optionally a second pole), realised in the netlist as a 1 S
  * transconductance into A0 ohms ∥ 1/(2π·GBW) farads and a unity VCVS
- * (see app/circuit/spice-netlist.ts). Tolerance from the brief: 0.01 dB, 0.1°.
+ * (see app/circuit/spice-netlist.ts). Tolerance (DEVELOPERS.md "Agreement targets"): 0.01 dB, 0.1°.
  */
 import { describe, expect, it } from 'vitest';
 import { makeDesignFromTemplate, parseDesign, solveAc, type Design } from '../../../app/circuit';

@@ -3,7 +3,7 @@
  * diode (IS, N, RS; ngspice adds GMIN across the junction as we do), same
  * op-amp macro-model at DC (finite A0, offset source, bias current sources),
  * TEMP = TNOM = the design temperature so ngspice does not rescale IS.
- * Tolerance from the brief: 1 mV over 1 mV–10 V input.
+ * Tolerance (DEVELOPERS.md "Agreement targets"): 1 mV over 1 mV–10 V input.
  */
 import { describe, expect, it } from 'vitest';
 import { makeDesignFromTemplate, parseDesign, solveDcTransfer } from '../../../app/circuit';
@@ -36,7 +36,7 @@ describe.skipIf(!requireTool('ngspice'))('log stage DC transfer agrees with ngsp
     const reference = ngspiceDc(design, inputsV);
     const ours = solveDcTransfer(design, inputsV);
     for (let i = 0; i < inputsV.length; i++) expect(Math.abs(ours.outputV[i] - reference[i])).toBeLessThan(MAX_ERROR_V);
-    // The offset and bias visibly move the low end (DESIGN.md: deviation at low input).
+    // The offset and bias visibly move the low end (DEVELOPERS.md "Theory": deviation at low input).
     const clean = solveDcTransfer(parseDesign(makeDesignFromTemplate('log-stage', { rs: 0.5 })), inputsV);
     expect(Math.abs(ours.outputV[0] - clean.outputV[0])).toBeGreaterThan(5e-3);
   });

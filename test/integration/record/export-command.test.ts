@@ -183,7 +183,7 @@ describe('rolloff export on a real simulated-bench run', () => {
     const record = recordFromJson(result.stdout) as RunRecord;
     expect(record.run.kind).toBe('dc');
     expect(record.dcFit?.inputV.length).toBeGreaterThan(10);
-    // Log stage: the output falls by about n·V_T·ln 10 ≈ 59 mV per decade of input at 25 °C (DESIGN.md formula).
+    // Log stage: the output falls by about n·V_T·ln 10 ≈ 59 mV per decade of input at 25 °C (DEVELOPERS.md "Theory").
     const fit = record.dcFit!;
     const perDecadeV = (fit.outputV[0] - fit.outputV.at(-1)!) / Math.log10(fit.inputV.at(-1)! / fit.inputV[0]);
     expect(perDecadeV).toBeGreaterThan(0.05);

@@ -1,7 +1,7 @@
 /**
  * `rolloff demo --fast` as a user runs it: completes well within a minute,
  * says the data is invented and simulated, and reports both builds'
- * gain-limit points within 10 % of their theory (loop gain 1, DESIGN.md).
+ * gain-limit points within 10 % of their theory (loop gain 1, DEVELOPERS.md "Theory").
  */
 import { afterAll, describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';

@@ -93,7 +93,7 @@ describe('DC transfer sweep of the log stage', () => {
     folder.remove();
   });
 
-  it('measures log-spaced levels with outputs following −n·VT·ln(I/IS + 1) (Shockley, DESIGN.md)', () => {
+  it('measures log-spaced levels with outputs following −n·VT·ln(I/IS + 1) (Shockley 1949, DEVELOPERS.md "Theory")', () => {
     expect(detail.points.stimulus.length).toBe(17);
     // Slope per decade of input: −n·VT·ln 10 ≈ −59.2 mV at 25 °C (VT = kT/q, CODATA 2018).
     const perDecadeV = (detail.points.outputV[12] - detail.points.outputV[8]) / 1; // 4 points per decade
@@ -103,7 +103,7 @@ describe('DC transfer sweep of the log stage', () => {
   it('fits n and IS by Levenberg–Marquardt; the values the circuit implies lie within its intervals', () => {
     const fit = detail.figures.logFit!;
     // The fit assumes an ideal op-amp and I = Vin/R. The bench has the generator's 50 Ω in series with R and an
-    // op-amp with A0 = 1e5, whose −Vout/A0 at the inverting node shifts low-input points (DESIGN.md: deviation at low
+    // op-amp with A0 = 1e5, whose −Vout/A0 at the inverting node shifts low-input points (DEVELOPERS.md "Theory": deviation at low
     // input). Expected values: the same fit applied to the theory engine's noise-free DC transfer of that circuit.
     const benchCircuit = parseDesign(makeDesignFromTemplate('log-stage', { r: R_OHM + SIM_SOURCE_IMPEDANCE_OHM, is: IS_A, n: 1, rs: 0 }));
     const levels = Float64Array.from(detail.points.stimulus);

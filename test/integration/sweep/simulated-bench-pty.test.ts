@@ -2,7 +2,7 @@
  * The same sweep path over a real pseudo-terminal pair (socat, opened with
  * serialport, as a USB-serial instrument would be): the gain-limit point of an
  * inverting −100 stage with GBW 1 MHz is found within 10 % of theory
- * (loop gain 1 where |A| = noise gain 101, DESIGN.md "Theory").
+ * (loop gain 1 where |A| = noise gain 101, DEVELOPERS.md "Theory").
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';

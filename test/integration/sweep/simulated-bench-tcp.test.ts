@@ -3,7 +3,7 @@
  * (app/sim) through the SCPI session, the sweep runner stores every point, the
  * analysis finds the gain-limit point. Expected values come from the theory
  * engine (app/circuit solveAc, checked against ngspice in its own tests) and
- * from the DESIGN.md formula for the loop-gain-1 point.
+ * from the formula in DEVELOPERS.md "Theory" for the loop-gain-1 point.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
@@ -82,7 +82,7 @@ describe('sweep on the simulated bench over TCP', () => {
     expect(compared).toBeGreaterThan(15);
   });
 
-  it('finds the gain-limit point within 10 % of theory (|A| = noise gain 101: ≈ GBW/101 ≈ 9.9 kHz, DESIGN.md)', () => {
+  it('finds the gain-limit point within 10 % of theory (|A| = noise gain 101: ≈ GBW/101 ≈ 9.9 kHz, DEVELOPERS.md "Theory")', () => {
     const measured = detail.figures.gainLimitHz!;
     const theory = detail.theoryGainLimitHz!;
     expect(theory).toBeGreaterThan(9.0e3);

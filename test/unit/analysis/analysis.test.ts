@@ -23,7 +23,7 @@ function firstOrderLowPassDb(frequencyHz: Float64Array, gain: number, cornerHz: 
 }
 
 /**
- * Inverting stage with a single-pole op-amp (DESIGN.md "Theory"):
+ * Inverting stage with a single-pole op-amp (DEVELOPERS.md "Theory"):
  * H = −G/(1 + (1 + G)/A), A = A0/(1 + j f·A0/GBW). Returns |H| in dB.
  */
 function invertingWithOpAmpDb(frequencyHz: Float64Array, gain: number, a0: number, gbwHz: number): Float64Array {
@@ -99,7 +99,7 @@ describe('measured gain-limit point of an inverting −100 stage, GBW 1 MHz', ()
   const measuredDb = invertingWithOpAmpDb(f, 100, 1e5, 1e6);
   const idealDb = new Float64Array(f.length).fill(40);
 
-  it('falls within 2 % of the loop-gain-1 point (|A| = noise gain 101, DESIGN.md theory)', () => {
+  it('falls within 2 % of the loop-gain-1 point (|A| = noise gain 101, DEVELOPERS.md "Theory")', () => {
     const expected = loopGainOneHz(101, 1e5, 1e6); // ≈ 9.9 kHz
     const found = magnitudeGainLimitHz(f, measuredDb, idealDb)!;
     expect(Math.abs(found / expected - 1)).toBeLessThan(0.02);
@@ -118,7 +118,7 @@ describe('gain-limit point from the measured loop gain, reactive feedback', () =
   const div = (a: C, b: C): C => { const d = b[0] ** 2 + b[1] ** 2; return [(a[0] * b[0] + a[1] * b[1]) / d, (a[1] * b[0] - a[0] * b[1]) / d]; };
   const zf = (f: number): C => div([RF, 0], [1, 2 * Math.PI * f * RF * CF]);
   const ng = (f: number): C => { const r = div(zf(f), [RN, 0]); return [1 + r[0], r[1]]; };
-  const openLoop = (f: number): C => div([A0, 0], [1, (f * A0) / GBW]); // single pole, DESIGN.md
+  const openLoop = (f: number): C => div([A0, 0], [1, (f * A0) / GBW]); // single pole, DEVELOPERS.md "Theory"
   const idealH = (f: number): C => { const r = div(zf(f), [RN, 0]); return [-r[0], -r[1]]; };
   const realH = (f: number): C => { const q = div(ng(f), openLoop(f)); return div(idealH(f), [1 + q[0], q[1]]); };
   const db = (c: C) => dbFromRatio(Math.hypot(c[0], c[1]));

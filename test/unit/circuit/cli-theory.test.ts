@@ -49,7 +49,7 @@ describe('rolloff template + theory', () => {
     await rolloff('template', 'non-inverting', '--out', path);
     const summary = await rolloff('theory', path, '--summary');
     expect(summary.code).toBe(0);
-    // 1 + RF/RG = 10 → 20 dB, less 0.0009 dB for A0 = 1e5 (finite-gain error, DESIGN.md).
+    // 1 + RF/RG = 10 → 20 dB, less 0.0009 dB for A0 = 1e5 (finite-gain error, DEVELOPERS.md "Theory").
     expect(summary.stdout).toMatch(/Pass-band gain: +19\.999 dB/);
     expect(summary.stdout).toMatch(/Gain-limit point: +100 kHz/);
     expect(summary.stdout).toMatch(/−3 dB points: +100 kHz/);

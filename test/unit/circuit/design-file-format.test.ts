@@ -1,13 +1,13 @@
 /**
- * The design-file format of the brief, loaded field by field. The brief's
- * listing shows one part of each type on unconnected nodes, so as a circuit
+ * The design-file format (app/circuit/types.ts), loaded field by field. The
+ * example shows one part of each type on unconnected nodes, so as a circuit
  * it is refused (floating nodes); its fields must still read exactly.
  * Expected values: SI prefixes per the SI Brochure (BIPM, 9th ed.).
  */
 import { describe, expect, it } from 'vitest';
 import { DesignError, parseDesign } from '../../../app/circuit';
 
-const BRIEF_EXAMPLE = {
+const FORMAT_EXAMPLE = {
   name: 'format example',
   input: 'in',
   output: 'out',
@@ -23,7 +23,7 @@ const BRIEF_EXAMPLE = {
 
 describe('design-file format', () => {
   it('reads every field of the format', () => {
-    const design = parseDesign(BRIEF_EXAMPLE, 'example.json', { checkCircuit: false });
+    const design = parseDesign(FORMAT_EXAMPLE, 'example.json', { checkCircuit: false });
     expect(design.temperatureC).toBe(25);
     expect(design.parts.map((p) => p.type)).toEqual(['resistor', 'capacitor', 'inductor', 'diode', 'opamp']);
     const [r1, c1, l1, d1, u1] = design.parts as any[];
@@ -37,8 +37,8 @@ describe('design-file format', () => {
   });
 
   it('as a circuit the listing is refused, naming a floating node', () => {
-    expect(() => parseDesign(BRIEF_EXAMPLE, 'example.json')).toThrow(DesignError);
-    expect(() => parseDesign(BRIEF_EXAMPLE, 'example.json')).toThrow(/node "(a|b|anode|cathode|noninverting|inverting|output)"/);
+    expect(() => parseDesign(FORMAT_EXAMPLE, 'example.json')).toThrow(DesignError);
+    expect(() => parseDesign(FORMAT_EXAMPLE, 'example.json')).toThrow(/node "(a|b|anode|cathode|noninverting|inverting|output)"/);
   });
 
   it('defaults: temperature 25 °C, SPICE diode defaults, "gnd" is ground, "meg" and "µ" prefixes', () => {

@@ -9,7 +9,7 @@
  * - [GTH] J. G. Graeme, G. E. Tobey, L. P. Huelsman, "Operational Amplifiers:
  *   Design and Applications" (1971): inverting gain −RF/RN, non-inverting gain
  *   1 + RF/RG, closed-loop bandwidth ≈ GBW/noise gain, finite-gain error
- *   H = Hideal/(1 + NG/A) (recalled from memory; also DESIGN.md "Theory").
+ *   H = Hideal/(1 + NG/A) (recalled from memory; also DEVELOPERS.md "Theory").
  * - [SH] W. Shockley (1949): diode law I = IS·(exp(V/(n·VT)) − 1), giving the
  *   log-stage slope n·VT·ln 10 per decade of input current.
  * - [CODATA] CODATA 2018 / SI 2019: k = 1.380649e-23 J/K, q = 1.602176634e-19 C (exact).
@@ -66,7 +66,7 @@ describe('first-order stages', () => {
     expect(Math.abs(r.im[0])).toBeLessThan(1e-12);
   });
 
-  it('with finite A0 the inverting gain is (RF/RN)/(1 + (1 + RF/RN)/A0) at low frequency [GTH, DESIGN.md]', () => {
+  it('with finite A0 the inverting gain is (RF/RN)/(1 + (1 + RF/RN)/A0) at low frequency [GTH, DEVELOPERS.md "Theory"]', () => {
     const a0 = 2e4;
     const r = at(design('inverting-gain', { rn: 1e3, rf: 100e3, openLoopGain: a0 }), [0.01], false);
     const expected = 100 / (1 + 101 / a0);
@@ -183,7 +183,7 @@ describe('log stage and thermal voltage', () => {
     expect(Math.abs(out.outputV[1] - out.outputV[2] - slopeV)).toBeLessThan(1e-7);
   });
 
-  it('the DC solver with an ideal op-amp matches −(n·VT·ln(I/IS + 1) + I·RS) [SH, DESIGN.md]', () => {
+  it('the DC solver with an ideal op-amp matches −(n·VT·ln(I/IS + 1) + I·RS) [SH, DEVELOPERS.md "Theory"]', () => {
     const diode = { is: 3e-12, n: 1.3, rs: 4 };
     const file = makeDesignFromTemplate('log-stage', { ...diode, r: 4.7e3 });
     (file.parts[2].model as Record<string, unknown>).ideal = true;

@@ -10,7 +10,7 @@
  *   inverting-stage sum of squares
  *   e_out² = en²·(1 + RF/RN)² + in²·RF² + 4kT·RF + 4kT·RN·(RF/RN)²
  *   + (in²·RP² + 4kT·RP)·(1 + RF/RN)² (recalled from memory; each term re-derived by superposition).
- * - [NG] Noise gain 1 + Z_F/Z_N shapes en to the output (also DESIGN.md "Theory").
+ * - [NG] Noise gain 1 + Z_F/Z_N shapes en to the output (also DEVELOPERS.md "Theory").
  * - [BODE] H. W. Bode, "Network Analysis and Feedback Amplifier Design" (1945):
  *   phase margin = 180° + ∠T at |T| = 1. For a follower (β = 1) on a two-pole
  *   op-amp T = A0/((1 + jf/f1)(1 + jf/f2)), |T| = 1 solves the quadratic

@@ -15,7 +15,7 @@ import {
 import { dbFromRatio, logGrid } from '../../../app/units';
 
 describe('op-amp loop quantities', () => {
-  it('noise gain of a non-inverting stage is 1 + RF/RG and loop gain = |A|/noise gain (DESIGN.md "Theory")', () => {
+  it('noise gain of a non-inverting stage is 1 + RF/RG and loop gain = |A|/noise gain (DEVELOPERS.md "Theory")', () => {
     const design = parseDesign(makeDesignFromTemplate('non-inverting', { rg: 1e3, rf: 4e3 }));
     const response = solveAc(design, Float64Array.from([1, 1e3, 1e5]));
     const op = response.opamps[0];

@@ -7,7 +7,7 @@ import { makeDesignFromTemplate, parseDesign, TEMPLATES, toSpiceNetlist } from '
 import { ValidationError } from '../../../app/errors';
 
 describe('templates', () => {
-  it('cover the stages the brief lists', () => {
+  it('cover the stages DEVELOPERS.md "Agreement targets" lists', () => {
     const ids = TEMPLATES.map((t) => t.id);
     for (const id of ['inverting-gain', 'inverting-lowpass', 'inverting-highpass', 'inverting-bandpass', 'non-inverting', 'integrator', 'differentiator',
       'sallen-key-lowpass-unity', 'sallen-key-highpass-unity', 'sallen-key-lowpass-equal', 'sallen-key-highpass-equal', 'mfb-bandpass', 'log-stage']) {

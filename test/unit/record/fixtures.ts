@@ -1,7 +1,7 @@
 /**
  * Run data for record tests, made without a bench: the theory is the handbook
  * closed form of an inverting RC low-pass stage with a single-pole op-amp
- * (DESIGN.md "Theory": H = −(Z_F/Z_N) / (1 + (1 + Z_F/Z_N)/A), A = A0/(1 + s/ω_p)),
+ * (DEVELOPERS.md "Theory": H = −(Z_F/Z_N) / (1 + (1 + Z_F/Z_N)/A), A = A0/(1 + s/ω_p)),
  * the "measurement" is that theory plus seeded pseudo-random noise, and the
  * figures and verdict come from the real run analysis (app/analysis).
  * All of it is invented demo data and labelled simulated.
@@ -54,7 +54,7 @@ export function invertingLowPass(values: StageValues, frequencyHz: number, ideal
   return [-h[0], -h[1]];
 }
 
-/** Where |A| meets |noise gain 1 + Z_F/Z_N| (loop gain 1, DESIGN.md "Theory"), by bisection on log f. */
+/** Where |A| meets |noise gain 1 + Z_F/Z_N| (loop gain 1, DEVELOPERS.md "Theory"), by bisection on log f. */
 export function gainLimitPointHz(values: StageValues): number {
   const loopGainExcess = (f: number) => {
     const fp = values.gbwHz / values.openLoopGain;
@@ -278,7 +278,7 @@ export const LOG_STAGE_DESIGN = {
 
 /**
  * A DC log-stage run: output from the log-stage equation (app/circuit logStageIdeal,
- * DESIGN.md "Theory") plus seeded noise, fitted with app/signal's fitLogStage, and the
+ * DEVELOPERS.md "Theory") plus seeded noise, fitted with app/signal's fitLogStage, and the
  * fitted curve drawn as the service does.
  */
 export function dcRunDetail(): { detail: RunDetail; build: BuildRecord; dcFit: RecordDcFit } {

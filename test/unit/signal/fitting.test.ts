@@ -134,7 +134,7 @@ describe('fitLogStage', () => {
   const vt = thermalVoltageV(temperatureC);
   const ideal = inputV.map((v) => {
     const current = v / resistorOhm;
-    return -(truth.n * vt * Math.log(current / truth.isA + 1) + current * truth.rsOhm); // DESIGN.md log-stage equation
+    return -(truth.n * vt * Math.log(current / truth.isA + 1) + current * truth.rsOhm); // log-stage equation, DEVELOPERS.md "Theory"
   });
 
   it('uses V_T = kT/q from the exact SI constants', () => {
@@ -188,7 +188,7 @@ describe('fitLogStage', () => {
 });
 
 describe('fitSinglePoleOpAmp', () => {
-  // Inverting stage, gain −10: H_ideal = −10, noise gain 11 (DESIGN.md "Theory"). GBW and A0 invented.
+  // Inverting stage, gain −10: H_ideal = −10, noise gain 11 (DEVELOPERS.md "Theory"). GBW and A0 invented.
   const frequenciesHz = Float64Array.from({ length: 25 }, (_, i) => 1e3 * 10 ** (i / 8)); // 1 kHz … 1 MHz
   function stage(gbwHz: number, a0: number) {
     const re: number[] = [], im: number[] = [];

@@ -20,7 +20,7 @@ const gainRatioAt = (f: number) => GAIN / Math.hypot(1, f / CORNER_HZ);
 const theory: PlanTheory = {
   slowestTimeConstantS: TAU_S,
   gainRatioAt,
-  // Full-power bandwidth: output peak ≤ min(rail, SR/(2πf)) (DESIGN.md "Theory"), divided by |H| for the input.
+  // Full-power bandwidth: output peak ≤ min(rail, SR/(2πf)) (DEVELOPERS.md "Theory"), divided by |H| for the input.
   stimulusLimitVpkAt: (f) => Math.min(RAIL_V, SLEW_V_PER_S / (2 * Math.PI * f)) / gainRatioAt(f),
 };
 
