@@ -1,12 +1,16 @@
 /**
- * Fonts for PDF records. A Unicode TrueType font is embedded (subset) when one
- * of the usual system fonts is present, so notes in any Latin, Greek or Cyrillic
- * script and signs such as − Ω Δ ≤ print as typed. Otherwise the PDF standard
+ * Fonts for PDF records. A Unicode TrueType font (DejaVu) is embedded (subset),
+ * so notes in any Latin, Greek or Cyrillic script and signs such as − Ω µ Δ ≤
+ * print as typed on any OS. It comes from the npm package dejavu-fonts-ttf
+ * (a dependency, so every install has it); only if that package is missing
+ * are the usual system font folders tried. Without either the PDF standard
  * fonts are used, which only cover the WinAnsi character set (PDF 32000-1:2008
  * Annex D.2), and other characters are spelled out or replaced by "?"; the HTML
  * and JSON records always keep the full text.
  */
 import { existsSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { dirname, join } from 'node:path';
 
 export interface PdfFontSet {
   regular: string;
@@ -17,7 +21,16 @@ export interface PdfFontSet {
   embedded: boolean;
 }
 
-const FONT_DIRECTORIES = ['/usr/share/fonts/truetype/dejavu', '/usr/share/fonts/dejavu', '/usr/share/fonts/TTF'];
+const SYSTEM_FONT_DIRECTORIES = ['/usr/share/fonts/truetype/dejavu', '/usr/share/fonts/dejavu', '/usr/share/fonts/TTF'];
+
+/** The ttf folder of the dejavu-fonts-ttf package, or undefined when it is not installed. */
+export function packagedFontDirectory(): string | undefined {
+  try {
+    return join(dirname(createRequire(import.meta.url).resolve('dejavu-fonts-ttf/package.json')), 'ttf');
+  } catch {
+    return undefined;
+  }
+}
 const FONT_FILES = { regular: 'DejaVuSans.ttf', bold: 'DejaVuSans-Bold.ttf', mono: 'DejaVuSansMono.ttf' };
 
 /** Characters outside WinAnsi that records use, spelled in WinAnsi. */
@@ -46,7 +59,8 @@ function withoutControls(text: string): string {
 
 export function choosePdfFonts(preferEmbedded = true): PdfFontSet {
   if (preferEmbedded) {
-    for (const directory of FONT_DIRECTORIES) {
+    const packaged = packagedFontDirectory();
+    for (const directory of packaged ? [packaged, ...SYSTEM_FONT_DIRECTORIES] : SYSTEM_FONT_DIRECTORIES) {
       const paths = Object.fromEntries(Object.entries(FONT_FILES).map(([k, f]) => [k, `${directory}/${f}`])) as typeof FONT_FILES;
       if (Object.values(paths).every((p) => existsSync(p))) {
         return { ...paths, embedded: true, printable: (text) => withoutControls(text) };
