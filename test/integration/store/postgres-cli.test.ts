@@ -1,0 +1,54 @@
+/**
+ * The command line over a lab store: `rolloff demo --fast` sweeps into a
+ * PostgreSQL database named with --db, `rolloff runs` on another process lists
+ * what it stored, and the password (in the address) appears in no output.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import { join, resolve } from 'node:path';
+import { PostgresStore } from '../../../app/store/postgres/postgres-store';
+import { postgresAvailable, startPostgresCluster, type PostgresCluster } from '../../helpers/postgres-cluster';
+
+const BIN = join(resolve(__dirname, '../../..'), 'app/cli/bin.mjs');
+const hasPostgres = postgresAvailable();
+
+describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () => {
+  let cluster: PostgresCluster;
+  beforeAll(async () => {
+    cluster = await startPostgresCluster();
+  });
+  afterAll(() => cluster?.remove());
+
+  const rolloff = (...args: string[]) => spawnSync(process.execPath, [BIN, ...args], { encoding: 'utf8', timeout: 90_000 });
+
+  it('sweeps into the lab store and lists the runs from another process, never printing the password', async () => {
+    const demo = rolloff('demo', '--fast', '--db', cluster.urlWithPassword);
+    expect(demo.status, demo.stderr).toBe(0);
+    expect(demo.stdout).toMatch(/gain-limit point/);
+    const runs = rolloff('runs', '--db', cluster.urlWithPassword);
+    expect(runs.status, runs.stderr).toBe(0);
+    for (const output of [demo.stdout, demo.stderr, runs.stdout, runs.stderr]) expect(output).not.toContain(cluster.password);
+
+    const store = await PostgresStore.open(cluster.urlWithPassword);
+    try {
+      const stored = await store.listRuns();
+      expect(stored.length).toBeGreaterThanOrEqual(2);
+      for (const run of stored) {
+        expect(run.status).toBe('done');
+        expect(run.pointCount).toBe((await store.loadPoints(run.id)).step.length);
+        expect(runs.stdout).toContain(run.buildLabel);
+      }
+      expect(await store.integrityProblems()).toEqual([]);
+    } finally {
+      await store.close();
+    }
+  });
+
+  it('refuses an unreachable lab store with a plain message and exit code 2, password hidden', () => {
+    const url = cluster.urlWithPassword.replace(`:${cluster.port}/`, ':1/');
+    const result = rolloff('runs', '--db', url);
+    expect(result.status).toBe(2);
+    expect(result.stderr).toMatch(/cannot be reached/);
+    expect(result.stderr).not.toContain(cluster.password);
+  });
+});
