@@ -12,3 +12,4 @@ export * from './meter';
 export * from './scope';
 export * from './waveform-decode';
 export * from './open-instrument';
+export * from './profile-check';

@@ -42,17 +42,7 @@ export async function openInstrument<R extends InstrumentRole>(
   if (role === 'generator' && options.maxStimulusVpp === undefined) {
     throw new ValidationError('maxStimulusVpp', 'is required to open a generator', 'Set the maximum stimulus amplitude (Bench view, or --max-amplitude VPP).');
   }
-  // Parsed once here (connect takes the parsed form); an in-process transport's name is kept as given.
-  const parsed = options.transport || typeof address !== 'string' ? address : parseAddress(address);
-  const addressText = typeof parsed === 'string' ? parsed : formatAddress(parsed);
-  const sessionOptions = { timeoutS: resolved.timeoutS, traffic: options.traffic };
-  let session: ScpiSession;
-  if (options.transport) {
-    if (!options.transport.isOpen) await options.transport.open();
-    session = new ScpiSession(options.transport, sessionOptions);
-  } else {
-    session = await connect(parsed, sessionOptions);
-  }
+  const { session, addressText } = await openProfileSession(address, resolved.timeoutS, options);
   try {
     const identity = await session.identify();
     for (const command of resolved.init) await session.write(command);
@@ -63,6 +53,23 @@ export async function openInstrument<R extends InstrumentRole>(
     await session.close().catch(() => undefined);
     throw error;
   }
+}
+
+/** Opens the link for a profile: its timeout, the traffic log, or the given in-process transport. */
+export async function openProfileSession(
+  address: string | InstrumentAddress,
+  timeoutS: number,
+  options: Pick<OpenInstrumentOptions, 'traffic' | 'transport'>,
+): Promise<{ session: ScpiSession; addressText: string }> {
+  // Parsed once here (connect takes the parsed form); an in-process transport's name is kept as given.
+  const parsed = options.transport || typeof address !== 'string' ? address : parseAddress(address);
+  const addressText = typeof parsed === 'string' ? parsed : formatAddress(parsed);
+  const sessionOptions = { timeoutS, traffic: options.traffic };
+  if (options.transport) {
+    if (!options.transport.isOpen) await options.transport.open();
+    return { session: new ScpiSession(options.transport, sessionOptions), addressText };
+  }
+  return { session: await connect(parsed, sessionOptions), addressText };
 }
 
 async function makeControl(session: ScpiSession, role: InstrumentRole, profile: ProfileFor<InstrumentRole>, options: OpenInstrumentOptions): Promise<RoleControls[InstrumentRole]> {

@@ -27,7 +27,7 @@ export function builtInProfiles(): Profile[] {
 /** Profiles from a folder of *.json files; every file must be valid. */
 export function profilesInFolder(folder: string): Profile[] {
   if (!existsSync(folder) || !statSync(folder).isDirectory()) {
-    throw new ProfileError(folder, '(folder)', 'is not a folder', `Create it, or point ${PROFILE_DIR_ENV} at an existing folder of profile files.`);
+    throw new ProfileError(folder, '(folder)', 'is not a folder', `Create it, or point --profile-dir or ${PROFILE_DIR_ENV} at an existing folder of profile files.`);
   }
   return readdirSync(folder)
     .filter((name) => name.toLowerCase().endsWith('.json'))

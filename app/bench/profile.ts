@@ -89,6 +89,9 @@ export type PollCondition = { equals: number } | { bitsClear: number } | { bitsS
 /** How the control learns an acquisition is complete. */
 export type AcquisitionComplete = { method: 'opc' } | { method: 'poll'; query: string; until: PollCondition; intervalS: number };
 
+export const PROGRAM_MESSAGE_POLICIES = ['joined', 'separate'] as const;
+export type ProgramMessagePolicy = (typeof PROGRAM_MESSAGE_POLICIES)[number];
+
 export const AMPLITUDE_UNITS = ['Vpp', 'Vrms', 'Vpk'] as const;
 export type AmplitudeUnit = (typeof AMPLITUDE_UNITS)[number];
 export const LOAD_MEANINGS = ['none', 'calibrated'] as const;
@@ -104,6 +107,13 @@ interface ProfileCommon {
   timeoutS: number;
   /** Operation name → commands, in order. */
   operations: Record<string, string[]>;
+  /** Operation name → seconds to wait after each of its commands (only operations that have a wait). */
+  waitsS: Record<string, number[]>;
+  /**
+   * How several commands go out: "joined" — one program message, units separated by ';' (IEEE 488.2
+   * §7.1, recalled from memory); "separate" — one write per command, for instruments that refuse ';'.
+   */
+  programMessages: ProgramMessagePolicy;
   /** Where each command comes from (a standard's volume and chapter, or "our own"): field path → text. Shown, never sent. */
   references: Record<string, string>;
   /** File it came from ("built-in: NAME.json" for shipped ones). */
@@ -149,7 +159,7 @@ export type Profile = GeneratorProfile | MeterProfile | ScopeProfile;
 export type ProfileFor<R extends InstrumentRole> = Extract<Profile, { role: R }>;
 
 const ID_PATTERN = /^[a-z0-9][a-z0-9._-]{0,63}$/;
-const TOP_LEVEL_FIELDS = new Set(['id', 'role', 'description', 'init', 'checkErrors', 'timeoutS', 'operations', 'references', 'generator', 'meter', 'scope']);
+const TOP_LEVEL_FIELDS = new Set(['id', 'role', 'description', 'init', 'checkErrors', 'timeoutS', 'operations', 'programMessages', 'references', 'generator', 'meter', 'scope']);
 
 /** Validates parsed JSON as a profile. `file` names it in every error. */
 export function validateProfile(json: unknown, file: string, builtIn = false): Profile {
@@ -175,8 +185,13 @@ export function validateProfile(json: unknown, file: string, builtIn = false): P
   const timeoutS = json.timeoutS ?? 5;
   if (typeof timeoutS !== 'number' || !(timeoutS > 0 && timeoutS <= 600)) fail('timeoutS', 'must be a number of seconds between 0 and 600');
 
-  const operations = validateOperations(file, role, json.operations);
-  const common = { id: id as string, description: description as string, init: init as string[], checkErrors: checkErrors as boolean, timeoutS: timeoutS as number, operations, source: file, builtIn };
+  const { operations, waitsS } = validateOperations(file, role, json.operations);
+  const programMessages = json.programMessages ?? 'joined';
+  if (!PROGRAM_MESSAGE_POLICIES.includes(programMessages as ProgramMessagePolicy)) fail('programMessages', 'must be "joined" (one program message, units separated by ";") or "separate" (one write per command)');
+  const common = {
+    id: id as string, description: description as string, init: init as string[], checkErrors: checkErrors as boolean, timeoutS: timeoutS as number,
+    operations, waitsS, programMessages: programMessages as ProgramMessagePolicy, source: file, builtIn,
+  };
   // Checked last: a reference to a missing operation is a smaller problem than the missing operation.
   const references = () => validateReferences(file, json.references, operations, init as string[]);
 
@@ -197,29 +212,45 @@ export function validateProfile(json: unknown, file: string, builtIn = false): P
   return { ...common, references: references(), role, scope };
 }
 
-function validateOperations(file: string, role: InstrumentRole, raw: unknown): Record<string, string[]> {
+function validateOperations(file: string, role: InstrumentRole, raw: unknown): { operations: Record<string, string[]>; waitsS: Record<string, number[]> } {
   if (!isRecord(raw)) throw new ProfileError(file, 'operations', 'must be an object mapping operation names to commands');
   const rules = OPERATION_RULES[role];
   const operations: Record<string, string[]> = {};
+  const waitsS: Record<string, number[]> = {};
   for (const [name, value] of Object.entries(raw)) {
     const rule = rules[name];
     const field = `operations.${name}`;
     if (!rule) throw new ProfileError(file, field, `is not a ${role} operation (known: ${Object.keys(rules).join(', ')})`);
-    const commands = typeof value === 'string' ? [value] : value;
-    if (!Array.isArray(commands) || commands.length === 0 || commands.some((c) => typeof c !== 'string')) {
-      throw new ProfileError(file, field, 'must be a command or a non-empty list of commands');
-    }
+    const entries: unknown[] = typeof value === 'string' || isRecord(value) ? [value] : Array.isArray(value) ? value : [];
+    if (entries.length === 0) throw new ProfileError(file, field, 'must be a command or a non-empty list of commands');
+    // A command is text, or {"send": text, "waitS": seconds} to wait after it (an instrument that needs time to settle a setting).
+    const waits: number[] = [];
+    const commands = entries.map((entry, i) => {
+      const where = entries.length > 1 ? `${field}[${i}]` : field;
+      if (typeof entry === 'string') {
+        waits.push(0);
+        return entry;
+      }
+      if (!isRecord(entry) || typeof entry.send !== 'string' || Object.keys(entry).some((k) => k !== 'send' && k !== 'waitS')) {
+        throw new ProfileError(file, where, 'must be a command, or {"send": COMMAND, "waitS": SECONDS}');
+      }
+      const waitS = entry.waitS ?? 0;
+      if (typeof waitS !== 'number' || !(waitS >= 0 && waitS <= 60)) throw new ProfileError(file, `${where}.waitS`, 'must be a number of seconds from 0 to 60');
+      waits.push(waitS);
+      return entry.send;
+    });
+    if (waits.some((w) => w > 0)) waitsS[name] = waits;
     commands.forEach((command: string, i: number) => checkTemplate(file, commands.length > 1 ? `${field}[${i}]` : field, command, rule.placeholders));
     const queries = commands.map((c: string) => isQuery(c));
     if (rule.query && !queries[queries.length - 1]) throw new ProfileError(file, field, `must end with a query (a header ending in "?") — it ${rule.description}`);
     const strayQuery = queries.findIndex((q: boolean, i: number) => q && (!rule.query || i < queries.length - 1));
     if (strayQuery >= 0) throw new ProfileError(file, field, `command "${commands[strayQuery]}" is a query in a place where its reply would not be read`);
-    operations[name] = commands as string[];
+    operations[name] = commands;
   }
   for (const [name, rule] of Object.entries(rules)) {
     if (rule.required && !operations[name]) throw new ProfileError(file, `operations.${name}`, `is missing (needed to ${rule.description})`);
   }
-  return operations;
+  return { operations, waitsS };
 }
 
 function checkTemplate(file: string, field: string, command: string, allowed: readonly string[]): void {

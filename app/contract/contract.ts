@@ -91,6 +91,32 @@ export interface ProfileSummary {
   builtIn: boolean;
 }
 
+/** One operation of a profile check: what the instrument made of it. */
+export interface OperationCheck {
+  /** Operation name (e.g. "frequency", "init[1]", "channelOn (channel 2)"). */
+  operation: string;
+  /** The commands sent, as text. */
+  commands: string;
+  /** accepted; refused (with the instrument's SCPI error); timed-out; unparsed (reply not in the form the profile expects); not-checked (not sent). */
+  outcome: 'accepted' | 'refused' | 'timed-out' | 'unparsed' | 'not-checked';
+  errorCode?: number;
+  errorMessage?: string;
+  /** A short summary of a query's reply, or for an unparsed reply the bytes received. */
+  received?: string;
+  detail?: string;
+  /** Wall time of the exchange, milliseconds. */
+  replyMs: number;
+}
+
+export interface ProfileCheckReport {
+  address: string;
+  profileId: string;
+  role: InstrumentRole;
+  identity: InstrumentIdentity;
+  checks: OperationCheck[];
+}
+
+
 export interface BenchStatus {
   instruments: InstrumentInfo[];
   /** The user's ceiling on generator output, peak-to-peak volts; never exceeded. */
@@ -105,6 +131,12 @@ export const ConnectRequestSchema = fields({
   profileId: shortText(false),
 });
 export type ConnectRequest = v.InferOutput<typeof ConnectRequestSchema>;
+
+export const ProfileCheckRequestSchema = fields({
+  address: v.pipe(shortText(false), v.transform((address) => address.trim())),
+  profileId: shortText(false),
+});
+export type ProfileCheckRequest = v.InferOutput<typeof ProfileCheckRequestSchema>;
 
 export interface TemplateInfo {
   id: string;
@@ -415,6 +447,8 @@ export interface RolloffApi {
   disconnect(role: InstrumentRole): Promise<void>;
   startSimulatedBench(designId: number): Promise<BenchStatus>;
   setMaxStimulus(maxStimulusVpp: number): Promise<BenchStatus>;
+  /** Sends each operation of a profile to the instrument at an address (output never left on) and reports per operation. */
+  checkProfile(request: ProfileCheckRequest): Promise<ProfileCheckReport>;
 
   // Designs and builds
   listTemplates(): Promise<TemplateInfo[]>;
@@ -469,6 +503,7 @@ export const API_ARGUMENTS: { readonly [M in RolloffMethodName]: readonly Argume
   disconnect: [required('role', InstrumentRoleSchema)],
   startSimulatedBench: [required('designId', storeId)],
   setMaxStimulus: [required('maxStimulusVpp', positiveNumber('V peak-to-peak'))],
+  checkProfile: [required('request', ProfileCheckRequestSchema)],
   listTemplates: [],
   makeTemplate: [required('templateId', shortText(false)), { name: 'parameters', schema: numberRecord(finiteNumber), presence: { default: {} } }],
   saveDesign: [required('design', DesignSchema)],

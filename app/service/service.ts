@@ -5,7 +5,7 @@
  */
 import { UserError, ValidationError } from '../errors';
 import { identityKey, type RolloffStore, type StoredRun } from '../store';
-import { openInstrument, builtInProfiles, loadProfiles, realClock, DEFAULT_PROFILE_ID, type BenchClock, type OpenedInstrument, type ProfileFor } from '../bench';
+import { openInstrument, builtInProfiles, checkProfile, loadProfiles, realClock, DEFAULT_PROFILE_ID, type BenchClock, type OpenedInstrument, type ProfileFor } from '../bench';
 import { TrafficLog } from '../scpi/traffic-log';
 import { listPorts } from '../scpi/ports';
 import { type Design, parseDesign, solveAc, TEMPLATES, makeDesignFromTemplate, withActualValues } from '../circuit';
@@ -20,7 +20,7 @@ import type { StepMeasurer, StepSetting, SweepInstruments } from '../sweep/runne
 import { driftSummary, type DriftRow } from '../analysis';
 import { INSTRUMENT_ROLES as ROLES, PointFlag } from '../contract/contract';
 import type {
-  RunFigures, BenchStatus, BuildRecord, Comparison, ConnectRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
+  RunFigures, BenchStatus, BuildRecord, Comparison, ConnectRequest, ProfileCheckReport, ProfileCheckRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
   PointColumns, PortListing, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunStatus, RunSummary, ServiceEventName,
   ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
 } from '../contract/contract';
@@ -154,6 +154,15 @@ export class RolloffService implements RolloffApi {
     const info = await this.connectRole(request, false);
     this.events.emit('bench', await this.benchStatus());
     return info;
+  }
+
+  async checkProfile(request: ProfileCheckRequest): Promise<ProfileCheckReport> {
+    this.requireIdleBench();
+    const profile = loadProfiles(this.options.profileFolder).find((p) => p.id === request.profileId);
+    if (!profile) throw new ValidationError('profileId', `no profile "${request.profileId}"`, 'Pick one of the profiles listed for the role.');
+    const busy = [...this.instruments.values()].find((c) => c.opened.address === request.address);
+    if (busy) throw new ValidationError('address', `${request.address} is connected now`, 'Disconnect it first: the check opens its own link and switches a generator\'s output off.');
+    return checkProfile(request.address, profile, { maxStimulusVpp: this.maxStimulusVpp });
   }
 
   async disconnect(role: InstrumentRole): Promise<void> {

@@ -13,7 +13,9 @@
  *   -222 "Data out of range" and not applied, the rest are taken — an
  *   instrument that refuses part of a settings message;
  * - unknown-headers: the listed headers (SCPI pattern form, e.g. "INPut#[:STATe]", "TRACe:SCALing?") are not
- *   understood: each queues −113 "Undefined header", as an instrument without that command does.
+ *   understood: each queues −113 "Undefined header", as an instrument without that command does;
+ * - no-joined-messages: a program message of several units (joined by ';') is refused whole with −100
+ *   "Command error", as an instrument that takes one command per message does.
  */
 import { ValidationError } from '../errors';
 
@@ -26,9 +28,10 @@ export type SimFault =
   | { kind: 'overrange' }
   | { kind: 'nan' }
   | { kind: 'refuse'; header: string }
-  | { kind: 'unknown-headers'; headers: string[] };
+  | { kind: 'unknown-headers'; headers: string[] }
+  | { kind: 'no-joined-messages' };
 
-export const FAULT_KINDS = ['drop-link', 'garbage', 'slow', 'no-reply', 'hang', 'overrange', 'nan', 'refuse', 'unknown-headers'] as const;
+export const FAULT_KINDS = ['drop-link', 'garbage', 'slow', 'no-reply', 'hang', 'overrange', 'nan', 'refuse', 'unknown-headers', 'no-joined-messages'] as const;
 
 /**
  * Parses the CLI form: "KIND", "KIND:VALUE" (probability or delay), "refuse:HEADER" or
@@ -65,6 +68,7 @@ export function parseFaultSpec(text: string): { role: 'generator' | 'meter' | 's
     case 'hang':
     case 'overrange':
     case 'nan':
+    case 'no-joined-messages':
       return { role, fault: { kind } };
     case 'garbage':
     case 'no-reply':

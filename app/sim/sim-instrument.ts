@@ -84,6 +84,7 @@ export abstract class SimInstrument {
     try {
       if (/[^\x20-\x7e\t]/.test(message)) throw new SimCommandError('invalidCharacter');
       units = splitProgramMessage(message);
+      if (this.oneUnitPerMessage && units.length > 1) throw new SimCommandError('commandError', 'one command per message (no ";")');
     } catch (error) {
       this.queue(error);
       return undefined;
@@ -107,6 +108,9 @@ export abstract class SimInstrument {
     });
     return joined;
   }
+
+  /** The no-joined-messages fault: only one program message unit per message. */
+  oneUnitPerMessage = false;
 
   /** From now on, headers matching these SCPI patterns queue −113 "Undefined header" (empty: none). */
   refuseHeaders(patterns: readonly string[]): void {

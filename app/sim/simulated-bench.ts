@@ -120,6 +120,7 @@ export async function startSimulatedBench(options: SimulatedBenchOptions): Promi
       if (target === 'meter') meter.forcedReading = forced;
       if (target === 'scope') scope.forcedReading = forced;
       instruments[target].refuseHeaders(fault?.kind === 'unknown-headers' ? fault.headers : []);
+      instruments[target].oneUnitPerMessage = fault?.kind === 'no-joined-messages';
     }
   };
   for (const role of ROLES) {

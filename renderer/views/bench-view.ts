@@ -3,7 +3,7 @@
  * identities, set the maximum stimulus amplitude, start the simulated bench
  * (always labelled simulated) and watch the SCPI traffic.
  */
-import { INSTRUMENT_ROLES as ROLES, type BenchStatus, type DesignRecord, type InstrumentRole, type ProfileSummary, type RolloffClient, type TrafficLine } from '../../app/contract/contract';
+import { INSTRUMENT_ROLES as ROLES, type BenchStatus, type DesignRecord, type InstrumentRole, type ProfileCheckReport, type ProfileSummary, type RolloffClient, type TrafficLine } from '../../app/contract/contract';
 import { parseEngineering } from '../../app/units';
 import { UserError } from '../../app/errors';
 import { field, h, replaceChildren, select } from '../dom';
@@ -25,6 +25,8 @@ export class BenchView implements View {
   private readonly maxInput = h('input', { type: 'text', name: 'max-stimulus', inputmode: 'decimal', 'data-testid': 'max-stimulus' });
   private readonly simulatedDesignSelect = h('select', { name: 'simulated-design', 'data-testid': 'simulated-design' });
   private readonly simulatedStatus = h('p', { className: 'simulated-status', 'data-testid': 'simulated-status' });
+  private readonly checkTitle = h('p', { 'data-testid': 'profile-check-title' }, 'Check a profile against an instrument: pick the role, address and profile above and press Check profile.');
+  private readonly checkBody = h('tbody', { 'data-testid': 'profile-check' });
   private readonly traffic = h('ol', { className: 'traffic', 'aria-label': 'Instrument traffic', 'data-testid': 'traffic' });
   private profiles: ProfileSummary[] = [];
   /** One slot per thing the view loads: what failed is said beside it, the rest still works. */
@@ -38,6 +40,15 @@ export class BenchView implements View {
     private readonly state: AppState,
   ) {
     const connectButton = h('button', { type: 'submit', className: 'primary' }, 'Connect');
+    const checkButton = h('button', { type: 'button', 'data-testid': 'check-profile' }, 'Check profile');
+    checkButton.addEventListener('click', () => {
+      void guarded(checkButton, 'Checking the profile', async () => {
+        const report = await client.checkProfile({ address: this.addressInput.value, profileId: this.profileSelect.value });
+        this.renderCheck(report);
+        const notAccepted = report.checks.filter((c) => c.outcome !== 'accepted').length;
+        showInfo(notAccepted === 0 ? `Profile ${report.profileId}: every operation accepted.` : `Profile ${report.profileId}: ${notAccepted} of ${report.checks.length} operations not accepted — see the table.`);
+      });
+    });
     const connectForm = h(
       'form',
       { className: 'stack-form', 'aria-label': 'Connect an instrument' },
@@ -47,7 +58,7 @@ export class BenchView implements View {
       this.portsFailure,
       field('Profile', this.profileSelect),
       this.profilesFailure,
-      connectButton,
+      h('div', { className: 'button-row' }, connectButton, checkButton),
       this.portList,
     );
     this.roleSelect.addEventListener('change', () => this.renderProfiles());
@@ -99,6 +110,11 @@ export class BenchView implements View {
         h('div', { className: 'panel' }, h('h3', {}, 'Connect'), connectForm),
         h('div', { className: 'panel' }, h('h3', {}, 'Safety limit'), maxForm),
         h('div', { className: 'panel' }, h('h3', {}, 'Simulated bench ', h('span', { className: 'badge simulated' }, 'simulated')), simulatedForm, this.simulatedStatus),
+      ),
+      h('div', { className: 'panel' },
+        h('h3', {}, 'Profile check'),
+        this.checkTitle,
+        h('table', { className: 'data-table' }, h('thead', {}, h('tr', {}, ['Operation', 'Outcome', 'Instrument said / received', 'Reply', 'Commands sent'].map((t) => h('th', { scope: 'col' }, t)))), this.checkBody),
       ),
       h('div', { className: 'panel' }, h('h3', {}, 'Traffic ', clearTraffic), this.traffic),
     );
@@ -175,6 +191,19 @@ export class BenchView implements View {
     this.simulatedStatus.textContent = simulated
       ? `Running (simulated): ${simulated.designName} — ${Object.entries(simulated.addresses).map(([role, address]) => `${role} at ${address}`).join(', ')}`
       : 'Not running.';
+  }
+
+  /** The per-operation table of a profile check (the output is never left on by a check). */
+  private renderCheck(report: ProfileCheckReport): void {
+    this.checkTitle.textContent = `${report.profileId} (${report.role}) at ${report.address}: ${report.identity.manufacturer} ${report.identity.model}`;
+    const said = (c: ProfileCheckReport['checks'][number]) =>
+      c.outcome === 'refused' ? `${c.errorCode}, "${c.errorMessage}"` : c.outcome === 'unparsed' ? `${c.detail ?? ''} — received ${c.received ?? ''}` : c.received ?? c.detail ?? '';
+    replaceChildren(
+      this.checkBody,
+      report.checks.map((c) =>
+        h('tr', { className: `check-${c.outcome}` }, h('th', { scope: 'row' }, c.operation), h('td', {}, c.outcome), h('td', {}, said(c)), h('td', {}, `${c.replyMs.toFixed(1)} ms`), h('td', {}, h('code', {}, c.commands))),
+      ),
+    );
   }
 
   private appendTraffic(line: TrafficLine): void {

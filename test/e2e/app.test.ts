@@ -271,6 +271,22 @@ describe.skipIf(!requireTool('chromium'))('the window in Chromium against rollof
     await page.getByRole('button', { name: 'Connect', exact: true }).click();
     await expect.poll(() => page.locator('.notice-error').last().textContent(), { timeout: 20_000 }).toMatch(/^Connecting: .*127\.0\.0\.1:1/);
     expect(await page.locator('.notice-error').last().textContent()).not.toMatch(/\bat \w+ \(/);
+    // The profile checker from the Bench view: the simulated scope, disconnected first (a check opens its own link).
+    const status = (await page.getByTestId('simulated-status').textContent()) ?? '';
+    const scopeAddress = /scope at (tcp:\/\/\S+?)(,|$)/.exec(status)?.[1];
+    expect(scopeAddress, status).toBeDefined();
+    const scopeRow = page.getByTestId('instruments').locator('tr', { hasText: scopeAddress! });
+    if ((await scopeRow.count()) > 0) await scopeRow.getByRole('button', { name: 'Disconnect' }).click();
+    await expect.poll(() => page.getByTestId('instruments').locator('tr', { hasText: scopeAddress! }).count()).toBe(0);
+    await page.locator('select[name="role"]').selectOption('scope');
+    await page.locator('input[name="address"]').fill(scopeAddress!);
+    await page.getByTestId('check-profile').click();
+    await expect.poll(() => page.getByTestId('profile-check').locator('tr').count(), { timeout: 30_000 }).toBeGreaterThan(5);
+    expect(await page.getByTestId('profile-check-title').textContent()).toMatch(/scpi-scope \(scope\)/);
+    // The simulated scope speaks the shipped profile: every operation accepted (outcome column).
+    const outcomes = await page.getByTestId('profile-check').locator('tr td:nth-child(2)').allTextContents();
+    expect(new Set(outcomes)).toEqual(new Set(['accepted']));
+    await shot('08b-profile-check');
     // Every view fits 1280×800 without sideways scrolling.
     for (const key of ['1', '2', '3', '4', '5', '6', '0']) {
       await view(key);

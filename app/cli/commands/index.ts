@@ -20,6 +20,7 @@ import { identifyCommand } from './identify';
 import { queryCommand } from './query';
 import { simCommand } from './sim';
 import { exportCommand } from './export';
+import { profileCommand } from './profile';
 
 // Listed in the order of a bench session: try the demo, compute what the
 // design should do, find the instruments, sweep, look back, file the record.
@@ -31,6 +32,7 @@ export const COMMANDS: CommandSpec[] = [
   buildCommand,
   portsCommand,
   identifyCommand,
+  profileCommand,
   queryCommand,
   simCommand,
   sweepCommand,
