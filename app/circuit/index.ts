@@ -41,3 +41,4 @@ export {
   type TheoryWarning,
   type LowPhaseMarginWarning,
 } from './stability';
+export { throughDesign, THROUGH_NODE } from './through';

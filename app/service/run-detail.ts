@@ -3,14 +3,13 @@
  * run's frequencies with the tolerance band, figures, flags and verdict.
  */
 import type { RunReadStore, StoredRun } from '../store';
-import type { PointColumns, RunDetail, RunFigures, Verdict } from '../contract/contract';
+import type { PointColumns, RunDetail, RunFigures, TheoryColumns, Verdict } from '../contract/contract';
 import { PointFlag } from '../contract/contract';
 import { analyzeAcRun } from '../analysis';
-import type { Design, DiodePart, PassivePart } from '../circuit';
+import { throughDesign, type AcResponse, type Design, type DiodePart, type PassivePart } from '../circuit';
 import { fitLogStage, logFitFigures, FitError } from '../signal';
 import { ValidationError } from '../errors';
 import { buildDesign, estimateGbw, theoryAtPoints, theoryColumns, theoryFigures } from './theory';
-import { throughDesign } from './through';
 
 export interface RunAnalysis {
   figures: RunFigures;
@@ -38,12 +37,13 @@ export async function analyzeRun(store: RunReadStore, run: StoredRun, points?: P
   return analyzeRunOf(await designForRun(store, run), run, points ?? (await store.loadPoints(run.id)));
 }
 
-function analyzeRunOf(design: Design, run: StoredRun, points: PointColumns): RunAnalysis {
+/** `columns`, when given, supply the tolerance band at the points (see theoryAtPoints). */
+function analyzeRunOf(design: Design, run: StoredRun, points: PointColumns, columns?: TheoryColumns): RunAnalysis & { theoryResponse?: AcResponse } {
   if (run.kind === 'dc') return analyzeDcRun(design, points);
   const from = Math.min(run.request.from, ...points.stimulus);
   const to = Math.max(run.request.to, ...points.stimulus);
   const figuresOfTheory = theoryFigures(design, from, to);
-  const theory = theoryAtPoints(design, points.stimulus, figuresOfTheory);
+  const theory = theoryAtPoints(design, points.stimulus, figuresOfTheory, columns);
   const gbw = run.request.measurement === 'scope' ? estimateGbw(design, {
     frequencyHz: points.stimulus, gainDb: points.gainDb, phaseDeg: points.phaseDeg,
     gainUncertaintyDb: points.gainUncertaintyDb, phaseUncertaintyDeg: points.phaseUncertaintyDeg,
@@ -60,6 +60,7 @@ function analyzeRunOf(design: Design, run: StoredRun, points: PointColumns): Run
     flags: Array.from(result.flags),
     theoryGainLimitHz: figuresOfTheory.gainLimitHz,
     theoryMinus3dbHz: figuresOfTheory.minus3dbHz,
+    theoryResponse: theory.response,
   };
 }
 
@@ -100,14 +101,15 @@ export async function runDetail(store: RunReadStore, runId: number): Promise<Run
   const run = await store.getRun(runId);
   const points = await store.loadPoints(runId);
   const design = await designForRun(store, run);
-  const analysis = analyzeRunOf(design, run, points);
-  let theory: RunDetail['theory'] = { frequencyHz: [], gainDb: [], phaseDeg: [], idealGainDb: [], idealPhaseDeg: [] };
-  if (run.kind === 'ac') {
-    const frequencies = [...run.plan.steps.map((s) => s.stimulus), ...points.stimulus];
-    theory = theoryColumns(design, frequencies);
+  // One Monte Carlo run for the whole detail: the theory columns cover every measured frequency.
+  const theory: RunDetail['theory'] = run.kind === 'ac'
+    ? theoryColumns(design, [...run.plan.steps.map((s) => s.stimulus), ...points.stimulus])
+    : { frequencyHz: [], gainDb: [], phaseDeg: [], idealGainDb: [], idealPhaseDeg: [] };
+  const analysis = analyzeRunOf(design, run, points, run.kind === 'ac' ? theory : undefined);
+  const response = analysis.theoryResponse;
+  if (response) {
     // Measured phases are wrapped to (−180°, 180°]; shift each by whole turns to sit on the theory's continuous curve.
-    const atPoints = theoryAtPoints(design, points.stimulus, { gainLimitHz: undefined, minus3dbHz: [] });
-    points.phaseDeg = points.phaseDeg.map((p, i) => (Number.isFinite(p) ? p + 360 * Math.round((atPoints.response.phaseDeg[i] - p) / 360) : p));
+    points.phaseDeg = points.phaseDeg.map((p, i) => (Number.isFinite(p) ? p + 360 * Math.round((response.phaseDeg[i] - p) / 360) : p));
   }
   points.flags = analysis.flags;
   const { request, plan: _plan, operator: _operator, notes: _notes, scheduleId: _scheduleId, createdAt: _createdAt, figures: _f, verdict: _v, ...summary } = run;

@@ -8,7 +8,7 @@ import { identityKey, type RolloffStore, type StoredRun } from '../store';
 import { openInstrument, builtInProfiles, checkProfile, loadProfiles, realClock, DEFAULT_PROFILE_ID, type BenchClock, type OpenedInstrument, type ProfileFor } from '../bench';
 import { TrafficLog } from '../scpi/traffic-log';
 import { listPorts } from '../scpi/ports';
-import { type Design, parseDesign, solveAc, TEMPLATES, makeDesignFromTemplate, withActualValues } from '../circuit';
+import { type Design, parseDesign, solveAc, TEMPLATES, makeDesignFromTemplate, withActualValues, throughDesign } from '../circuit';
 import { planSweep, planStepsAt, refinementFrequencies, toPlanSummary, type PlanInput, type PlanInstruments } from '../sweep/plan';
 import { RunControl } from '../sweep/runner/control';
 import { runSweep } from '../sweep/runner/run-sweep';
@@ -26,12 +26,11 @@ import type {
 } from '../contract/contract';
 import { ServiceEventBus } from '../contract/event-bus';
 import { buildDesign, designOf, planTheoryFor } from './theory';
-import { analyzeRun, designForBuild, designForRun, runDetail } from './run-detail';
+import { analyzeRun, designForBuild, designForRun, diodeOfRun, runDetail } from './run-detail';
 import { compareDetails } from './compare';
 import { SOFTWARE_VERSION } from '../contract/version';
 import { startSimulatedBenchFor, type SimulatedBenchHandle, type SimulatedBenchSettings } from './simulated-bench';
 import { exportRecordFor } from './export';
-import { throughDesign } from './through';
 
 export interface RolloffServiceOptions {
   /** The user's ceiling on generator output; otherwise the one recorded with the latest run, else unset. */
@@ -238,6 +237,15 @@ export class RolloffService implements RolloffApi {
     return this.store.listBuilds(designId);
   }
 
+  async getBuild(buildId: number): Promise<BuildRecord> {
+    return this.store.getBuild(buildId);
+  }
+
+  /** Where the runs are stored (the --db value: a file path or a database URL). */
+  get databaseLocation(): string {
+    return this.store.location;
+  }
+
   // ── Sweeps ─────────────────────────────────────────────────────────────
 
   async planSweep(request: SweepRequest): Promise<SweepPlanSummary> {
@@ -358,6 +366,21 @@ export class RolloffService implements RolloffApi {
 
   async getRun(runId: number) {
     return runDetail(this.store, runId);
+  }
+
+  /** A run's summary, without the analysis getRun does. */
+  async getRunSummary(runId: number): Promise<RunSummary> {
+    return this.summaryOf(runId);
+  }
+
+  /** The step a resumed run continues at. */
+  async nextStep(runId: number): Promise<number> {
+    return this.store.nextStep(runId);
+  }
+
+  /** The build's diode model (log stage), for comparing a DC fit with theory. */
+  async diodeOfRun(runId: number): Promise<{ n: number; isA: number; rsOhm: number } | undefined> {
+    return diodeOfRun(this.store, runId);
   }
 
   async compareRuns(runIds: number[], reference: number | 'theory'): Promise<Comparison> {
@@ -496,7 +519,7 @@ export class RolloffService implements RolloffApi {
   /**
    * On an all-simulated bench the simulated circuit follows the run: the build
    * being swept (its actual part values), or for a through-calibration the same
-   * build with the meter moved to the stage input (app/service/through.ts).
+   * build with the meter moved to the stage input (app/circuit/through.ts).
    */
   private async matchSimulatedBench(request: SweepRequest): Promise<void> {
     if (!this.simulatedBenchHandle || ![...this.instruments.values()].every((i) => i.simulated)) return;

@@ -61,11 +61,21 @@ export function theoryFigures(design: Design, fromHz: number, toHz: number): { g
   };
 }
 
-/** Theory at the measured frequencies, in point order, for the analysis. */
-export function theoryAtPoints(design: Design, stimulusHz: number[], figures: { gainLimitHz: number | undefined; minus3dbHz: number[] }): TheoryAtPoints & { response: AcResponse } {
+/**
+ * Theory at the measured frequencies, in point order, for the analysis. The
+ * tolerance band comes from `columns` when they cover every point (the band at a
+ * frequency does not depend on the other frequencies solved with it: each Monte
+ * Carlo sample draws its part values once), else from its own Monte Carlo run.
+ */
+export function theoryAtPoints(
+  design: Design,
+  stimulusHz: number[],
+  figures: { gainLimitHz: number | undefined; minus3dbHz: number[] },
+  columns?: TheoryColumns,
+): TheoryAtPoints & { response: AcResponse } {
   const frequencies = Float64Array.from(stimulusHz);
   const response = solveAc(design, frequencies);
-  const band = frequencies.length > 0 ? monteCarloAc(design, frequencies, TOLERANCE_BAND_SETTINGS) : undefined;
+  const band = frequencies.length === 0 ? undefined : (columns && bandAt(columns, stimulusHz)) ?? monteCarloAc(design, frequencies, TOLERANCE_BAND_SETTINGS);
   return {
     response,
     gainDb: response.gainDb,
@@ -76,6 +86,21 @@ export function theoryAtPoints(design: Design, stimulusHz: number[], figures: { 
     gainLimitHz: figures.gainLimitHz,
     minus3dbHz: figures.minus3dbHz,
   };
+}
+
+/** The band of theory columns at the given frequencies, or undefined when one is not among them. */
+function bandAt(columns: TheoryColumns, frequencyHz: number[]): { gainLowDb: Float64Array; gainHighDb: Float64Array } | undefined {
+  if (!columns.bandLowDb || !columns.bandHighDb) return undefined;
+  const indexOf = new Map(columns.frequencyHz.map((f, i) => [f, i]));
+  const gainLowDb = new Float64Array(frequencyHz.length);
+  const gainHighDb = new Float64Array(frequencyHz.length);
+  for (let k = 0; k < frequencyHz.length; k++) {
+    const i = indexOf.get(frequencyHz[k]);
+    if (i === undefined) return undefined;
+    gainLowDb[k] = columns.bandLowDb[i];
+    gainHighDb[k] = columns.bandHighDb[i];
+  }
+  return { gainLowDb, gainHighDb };
 }
 
 /**

@@ -3,7 +3,7 @@ import { optionNumber, optionString, requirePositional } from '../args';
 import { ValidationError } from '../../errors';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
-import { DATABASE_OPTION, actualValuesFrom } from '../../sweep/cli/sweep-options';
+import { DATABASE_OPTION, actualValuesFrom } from '../sweep/sweep-options';
 import { formatEngineering } from '../../units';
 
 export const buildCommand: CommandSpec = {

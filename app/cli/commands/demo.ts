@@ -4,9 +4,9 @@ import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { makeDesignFromTemplate } from '../../circuit';
-import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';
-import { followRun } from '../../sweep/cli/follow-run';
-import { figureLines } from '../../sweep/cli/summary-text';
+import { DATABASE_OPTION } from '../sweep/sweep-options';
+import { followRun } from '../sweep/follow-run';
+import { figureLines } from '../sweep/summary-text';
 import { formatEngineering } from '../../units';
 import type { RunDetail, SweepRequest } from '../../contract/contract';
 
@@ -85,8 +85,8 @@ and two builds of it in the database, sweeps both and prints how they differ. Al
       out('op-amp\'s limit far higher up. Unit 1 follows its design up to the gain-limit point, where the op-amp\'s');
       out('open-loop gain takes over from the feedback network.');
       out();
-      out(`Stored in ${service.store.location}. Look closer with: rolloff show ${a.id} --points --db ${service.store.location}`);
-      out(`Export a record with: rolloff export ${a.id} ${b.id} --pdf --db ${service.store.location}`);
+      out(`Stored in ${service.databaseLocation}. Look closer with: rolloff show ${a.id} --points --db ${service.databaseLocation}`);
+      out(`Export a record with: rolloff export ${a.id} ${b.id} --pdf --db ${service.databaseLocation}`);
       return 0;
     } finally {
       await service.close();

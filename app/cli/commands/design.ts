@@ -3,7 +3,7 @@ import { optionString, requirePositional } from '../args';
 import { ValidationError } from '../../errors';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
-import { DATABASE_OPTION, readJsonFile } from '../../sweep/cli/sweep-options';
+import { DATABASE_OPTION, readJsonFile } from '../sweep/sweep-options';
 
 export const designCommand: CommandSpec = {
   name: 'design',

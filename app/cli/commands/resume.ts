@@ -1,10 +1,9 @@
 import type { CommandSpec } from '../args';
 import { requirePositional } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
-import { BENCH_OPTIONS, connectBench, openService } from '../../sweep/cli/sweep-options';
-import { followRun } from '../../sweep/cli/follow-run';
-import { runDetailText } from '../../sweep/cli/summary-text';
-import { diodeOfRun } from '../../service/run-detail';
+import { BENCH_OPTIONS, connectBench, openService } from '../sweep/sweep-options';
+import { followRun } from '../sweep/follow-run';
+import { runDetailText } from '../sweep/summary-text';
 import { parseRunId } from './show';
 
 export const resumeCommand: CommandSpec = {
@@ -21,12 +20,12 @@ with the run applies unless --max-amplitude is given.`,
     const runId = parseRunId(requirePositional(parsed, 0, 'RUN'));
     const service = await openService(parsed);
     try {
-      const stored = await service.store.getRun(runId);
+      const stored = await service.getRunSummary(runId);
       if (!stored.simulated) await connectBench(service, parsed, stored.buildId);
       await service.resumeRun(runId);
-      process.stderr.write(`run ${runId} continues at step ${await service.store.nextStep(runId)}\n`);
+      process.stderr.write(`run ${runId} continues at step ${await service.nextStep(runId)}\n`);
       const status = await followRun(service, runId);
-      process.stdout.write(runDetailText(await service.getRun(runId), await diodeOfRun(service.store, runId)));
+      process.stdout.write(runDetailText(await service.getRun(runId), await service.diodeOfRun(runId)));
       return status === 'done' || status === 'paused' ? 0 : 1;
     } finally {
       await service.close();

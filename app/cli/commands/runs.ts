@@ -4,8 +4,8 @@ import { ValidationError } from '../../errors';
 import { RUN_STATUSES as STATUSES, type RunStatus } from '../../contract/contract';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
-import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';
-import { runTable } from '../../sweep/cli/summary-text';
+import { DATABASE_OPTION } from '../sweep/sweep-options';
+import { runTable } from '../sweep/summary-text';
 
 
 export const runsCommand: CommandSpec = {

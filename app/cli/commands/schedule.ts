@@ -2,8 +2,8 @@ import type { CommandSpec } from '../args';
 import { optionNumber, optionString } from '../args';
 import { ValidationError } from '../../errors';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
-import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, openService, prepareSweep } from '../../sweep/cli/sweep-options';
-import { followRun } from '../../sweep/cli/follow-run';
+import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, openService, prepareSweep } from '../sweep/sweep-options';
+import { followRun } from '../sweep/follow-run';
 import { formatEngineering } from '../../units';
 
 export const scheduleCommand: CommandSpec = {

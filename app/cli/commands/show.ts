@@ -5,9 +5,8 @@ import { ValidationError } from '../../errors';
 import { PointFlag } from '../../contract/contract';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
-import { DATABASE_OPTION } from '../../sweep/cli/sweep-options';
-import { runDetailText } from '../../sweep/cli/summary-text';
-import { diodeOfRun } from '../../service/run-detail';
+import { DATABASE_OPTION } from '../sweep/sweep-options';
+import { runDetailText } from '../sweep/summary-text';
 
 const FLAG_NAMES = Object.entries(PointFlag) as Array<[string, number]>;
 
@@ -30,7 +29,7 @@ export const showCommand: CommandSpec = {
         process.stdout.write(JSON.stringify(detail) + '\n');
         return 0;
       }
-      process.stdout.write(runDetailText(detail, await diodeOfRun(service.store, runId)));
+      process.stdout.write(runDetailText(detail, await service.diodeOfRun(runId)));
       if (optionFlag(parsed, 'points')) {
         const p = detail.points;
         process.stdout.write(`\n${'step'.padEnd(5)} ${(detail.kind === 'ac' ? 'frequency' : 'input').padEnd(12)} ${'amplitude'.padEnd(11)} ${(detail.kind === 'ac' ? 'gain dB' : 'output V').padEnd(16)} ${'phase °'.padEnd(16)} flags\n`);

@@ -1,11 +1,10 @@
 import type { CommandSpec } from '../args';
 import { optionFlag } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
-import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, openService, prepareSweep } from '../../sweep/cli/sweep-options';
-import { followRun } from '../../sweep/cli/follow-run';
+import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, openService, prepareSweep } from '../sweep/sweep-options';
+import { followRun } from '../sweep/follow-run';
 import { formatDuration } from '../../units';
-import { runDetailText } from '../../sweep/cli/summary-text';
-import { diodeOfRun } from '../../service/run-detail';
+import { runDetailText } from '../sweep/summary-text';
 import { formatEngineering } from '../../units';
 
 export const sweepCommand: CommandSpec = {
@@ -28,7 +27,7 @@ Every point is stored the moment it is measured. Ctrl-C pauses after the current
       const interrupted = await service.interruptedRuns();
       if (interrupted.length > 0) {
         process.stderr.write(`Note: run(s) ${interrupted.map((r) => r.id).join(', ')} were left running or paused by an earlier session; ` +
-          `continue one with: rolloff resume RUN --db ${service.store.location}\n`);
+          `continue one with: rolloff resume RUN --db ${service.databaseLocation}\n`);
       }
       const { request } = await prepareSweep(service, parsed);
       const plan = await service.planSweep(request);
@@ -41,14 +40,14 @@ Every point is stored the moment it is measured. Ctrl-C pauses after the current
         process.stderr.write('through-calibration: the meter must read the generator output directly (stage bypassed); the result becomes this bench\'s calibration.\n');
       }
       const run = await service.startRun(request);
-      process.stderr.write(`run ${run.id} started${run.simulated ? ' on the simulated bench (simulated)' : ''}; database ${service.store.location}\n`);
+      process.stderr.write(`run ${run.id} started${run.simulated ? ' on the simulated bench (simulated)' : ''}; database ${service.databaseLocation}\n`);
       const status = await followRun(service, run.id).catch((error) => {
         throw error;
       });
       const detail = await service.getRun(run.id);
       if (optionFlag(parsed, 'json')) process.stdout.write(JSON.stringify(detail) + '\n');
-      else process.stdout.write(runDetailText(detail, await diodeOfRun(service.store, run.id)));
-      if (status === 'paused') process.stderr.write(`run ${run.id} paused; continue with: rolloff resume ${run.id} --db ${service.store.location}\n`);
+      else process.stdout.write(runDetailText(detail, await service.diodeOfRun(run.id)));
+      if (status === 'paused') process.stderr.write(`run ${run.id} paused; continue with: rolloff resume ${run.id} --db ${service.databaseLocation}\n`);
       if (detail.kind === 'ac' && detail.figures.gainLimitHz !== undefined && detail.theoryGainLimitHz !== undefined) {
         const ratio = detail.figures.gainLimitHz / detail.theoryGainLimitHz - 1;
         process.stderr.write(`gain-limit point ${formatEngineering(detail.figures.gainLimitHz, 'Hz')} measured, ${(ratio * 100).toFixed(1)} % from theory\n`);

@@ -4,7 +4,7 @@
  * the meter reads the stage input instead of its output — through a 1 mΩ link
  * into a 1 GΩ meter input, both negligible (1e-3/1e9 relative).
  */
-import type { Design } from '../circuit';
+import type { Design } from './types';
 
 export const THROUGH_NODE = 'through_meter';
 

@@ -97,7 +97,7 @@ async function resolveBuildId(service: RolloffService, parsed: ParsedArgs): Prom
   const buildId = optionNumber(parsed, 'build');
   const designFile = optionString(parsed, 'design');
   if (buildId !== undefined && designFile !== undefined) throw new ValidationError('--build/--design', 'give one, not both');
-  if (buildId !== undefined) return (await service.store.getBuild(buildId)).id;
+  if (buildId !== undefined) return (await service.getBuild(buildId)).id;
   if (designFile === undefined) throw new ValidationError('--build', 'is missing', 'Give --build ID (see rolloff build list) or --design FILE.json [--label TEXT] [--actual PART=VALUE …].');
   const design = readJsonFile(designFile, '--design');
   const actualValues = actualValuesFrom(parsed);
