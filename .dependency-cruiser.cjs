@@ -16,14 +16,6 @@ const PURE_PACKAGES = [
   { folder: '^app/contract/', packages: 'valibot' },
 ];
 const HOSTS = '^(app/cli|app/host|main|renderer)/';
-/**
- * Known violations, to be removed by the move of app/sweep/cli under app/cli
- * (issue 11): that folder and app/cli import each other. Its one file-level
- * import is in .dependency-cruiser-known-violations.json (the baseline,
- * `--ignore-known`); the folder cycle is excepted here because
- * dependency-cruiser's baseline covers module-level rules only.
- */
-const KNOWN_FOLDER_CYCLE = '^app/sweep/cli$';
 
 module.exports = {
   forbidden: [
@@ -87,8 +79,8 @@ module.exports = {
       comment: 'Folders depend one way: no import cycle between folders.',
       severity: 'error',
       scope: 'folder',
-      from: { pathNot: KNOWN_FOLDER_CYCLE },
-      to: { circular: true, pathNot: KNOWN_FOLDER_CYCLE },
+      from: {},
+      to: { circular: true },
     },
   ],
   options: {
