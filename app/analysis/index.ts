@@ -7,3 +7,4 @@ export * from './deviation';
 export * from './verdict';
 export * from './analyze-ac';
 export * from './drift';
+export * from './usable-points';

@@ -29,6 +29,7 @@ export { TEMPLATES, makeDesignFromTemplate, type DesignFile } from './templates'
 export { toSpiceNetlist, spiceNames, type SpiceAnalysis, type SpiceOptions, type SpiceNames } from './spice-netlist';
 export { openLoopGainAt } from './opamp-gain';
 export { outputOpAmpIndex } from './output-opamp';
+export { inputResistor } from './input-resistor';
 export { solveNoise, fourKTJ, type NoiseResponse, type NoiseSource, type NoiseSourceKind, type NoiseOptions } from './solve-noise';
 export { bandNoise, rmsFromDensity, BAND_NOISE_POINTS_PER_DECADE, type BandNoise } from './noise-integral';
 export {

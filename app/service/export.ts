@@ -2,7 +2,7 @@
 import { buildComparisonRecord, buildRunRecord, renderRecord, type RecordDcFit } from '../record';
 import type { ExportedRecord, RecordFormat, RunDetail } from '../contract/contract';
 import type { RolloffService } from './service';
-import { logStageIdeal, type DiodePart, type PassivePart } from '../circuit';
+import { inputResistor, logStageIdeal, type DiodePart } from '../circuit';
 import { designOf } from './theory';
 import { logGrid } from '../units';
 
@@ -39,7 +39,7 @@ function dcFitCurve(detail: RunDetail, designRecord: { id: number; name: string;
   const fit = detail.figures.logFit;
   if (detail.kind !== 'dc' || !fit || detail.points.stimulus.length === 0) return null;
   const design = designOf(designRecord);
-  const resistor = design.parts.find((p): p is PassivePart => p.type === 'resistor' && (p.nodes as string[]).includes(design.input));
+  const resistor = inputResistor(design);
   const diode = design.parts.find((p): p is DiodePart => p.type === 'diode');
   if (!resistor || !diode) return null;
   const magnitudes = detail.points.stimulus.map(Math.abs);

@@ -4,9 +4,8 @@
  */
 import type { RunReadStore, StoredRun } from '../store';
 import type { PointColumns, RunDetail, RunFigures, TheoryColumns, Verdict } from '../contract/contract';
-import { PointFlag } from '../contract/contract';
-import { analyzeAcRun } from '../analysis';
-import { throughDesign, type AcResponse, type Design, type DiodePart, type PassivePart } from '../circuit';
+import { analyzeAcRun, usablePointIndexes } from '../analysis';
+import { inputResistor, throughDesign, type AcResponse, type Design, type DiodePart } from '../circuit';
 import { fitLogStage, logFitFigures, FitError } from '../signal';
 import { ValidationError } from '../errors';
 import { buildDesign, estimateGbw, theoryAtPoints, theoryColumns, theoryFigures } from './theory';
@@ -66,15 +65,15 @@ function analyzeRunOf(design: Design, run: StoredRun, points: PointColumns, colu
 
 function analyzeDcRun(design: Design, points: PointColumns): RunAnalysis {
   const figures: RunFigures = { minus3dbHz: [] };
-  const usable = points.stimulus.map((_, i) => i).filter((i) => Number.isFinite(points.outputV[i]) && (points.flags[i] & (PointFlag.overrange | PointFlag.notANumber)) === 0);
-  const inputResistor = resistorAtInput(design);
-  if (inputResistor && usable.length >= 4) {
+  const usable = usablePointIndexes(points.flags, points.outputV);
+  const resistor = inputResistor(design);
+  if (resistor && usable.length >= 4) {
     try {
       const diode = design.parts.find((p): p is DiodePart => p.type === 'diode');
       const fit = fitLogStage(
         usable.map((i) => points.stimulus[i]),
         usable.map((i) => points.outputV[i]),
-        inputResistor.value,
+        resistor.value,
         design.temperatureC,
         diode ? { n: diode.model.n, isA: diode.model.is, rsOhm: diode.model.rs } : {},
       );
@@ -84,11 +83,6 @@ function analyzeDcRun(design: Design, points: PointColumns): RunAnalysis {
     }
   }
   return { figures, verdict: null, flags: [...points.flags], theoryMinus3dbHz: [] };
-}
-
-/** The log stage's input resistor: the resistor with one end on the design's input node. */
-function resistorAtInput(design: Design): PassivePart | undefined {
-  return design.parts.find((p): p is PassivePart => p.type === 'resistor' && (p.nodes as string[]).includes(design.input));
 }
 
 /** The build's diode model (log stage), for comparing a DC fit with theory. */
