@@ -9,6 +9,7 @@ import { loopGainLimitHz, magnitudeGainLimitHz, pastGainLimit } from './gain-lim
 import { HALF_POWER_DB, minus3dbFrequenciesHz, passbandGainDb } from './passband';
 import { rolloffDbPerDecade } from './rolloff';
 import { judge } from './verdict';
+import { isUsablePoint } from './usable-points';
 
 export interface MeasuredAcColumns {
   frequencyHz: ArrayLike<number>;
@@ -53,7 +54,7 @@ export function analyzeAcRun(
   gbw?: GbwEstimate,
 ): AcAnalysis {
   const count = measured.frequencyHz.length;
-  const usable = (i: number) => (measured.flags[i] & (PointFlag.overrange | PointFlag.notANumber)) === 0 && Number.isFinite(measured.gainDb[i]);
+  const usable = (i: number) => isUsablePoint(measured.flags, measured.gainDb, i);
   const freq: number[] = [];
   const gain: number[] = [];
   const phase: number[] = [];

@@ -1,10 +1,13 @@
 import { PointFlag } from '../contract/contract';
 
-/** Indexes of the points whose `values` can enter a fit: finite, and not flagged overrange or not-a-number. */
+/** Whether point i's value can enter a fit or a figure: finite, and not flagged overrange or not-a-number. */
+export function isUsablePoint(flags: ArrayLike<number>, values: ArrayLike<number>, i: number): boolean {
+  return (flags[i] & (PointFlag.overrange | PointFlag.notANumber)) === 0 && Number.isFinite(values[i]);
+}
+
+/** Indexes of the usable points (see isUsablePoint). */
 export function usablePointIndexes(flags: ArrayLike<number>, values: ArrayLike<number>): number[] {
   const usable: number[] = [];
-  for (let i = 0; i < values.length; i++) {
-    if (Number.isFinite(values[i]) && (flags[i] & (PointFlag.overrange | PointFlag.notANumber)) === 0) usable.push(i);
-  }
+  for (let i = 0; i < values.length; i++) if (isUsablePoint(flags, values, i)) usable.push(i);
   return usable;
 }
