@@ -7,8 +7,11 @@
 #   xvfb           a display for the Electron shell test where the binary exists
 #   fonts-dejavu-core  a Unicode font embedded in PDF records (standard PDF fonts otherwise)
 #   postgresql     the server programs (initdb, pg_ctl, postgres) for a throw-away cluster the store tests start themselves
+#   rpcbind        the portmapper VXI-11 clients find the simulated bench's LAN instruments through
+#   python3-pyvisa-py  an independent VISA client of the simulated bench (VXI-11 and raw socket)
+#   lxi-tools      a second independent VXI-11 client
 set -euo pipefail
-PACKAGES=(ngspice socat chromium poppler-utils xvfb fonts-dejavu-core postgresql)
+PACKAGES=(ngspice socat chromium poppler-utils xvfb fonts-dejavu-core postgresql rpcbind python3-pyvisa-py lxi-tools)
 missing=()
 for package in "${PACKAGES[@]}"; do
   dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed" || missing+=("$package")

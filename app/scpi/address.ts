@@ -7,15 +7,22 @@
  *   ASRL/dev/ttyUSB0::INSTR         (serial device path)
  *   ASRL3::INSTR                    (serial port number: COM3 on Windows, /dev/ttyS2 elsewhere)
  *   TCPIP::HOST::5025::SOCKET, TCPIP0::HOST::PORT::SOCKET
+ *   TCPIP::HOST::INSTR, TCPIP0::HOST::inst1::INSTR   (VXI-11; device name inst0 when absent)
+ *   /dev/ttyUSB0, COM3              (short form: a serial device with 9600 8N1)
+ *   HOST:PORT                       (short form: a raw socket)
  */
 import { AddressError } from './errors';
 import { DEFAULT_SERIAL, type FlowControl, type Parity, type SerialSettings } from './serial-transport';
 
 export type InstrumentAddress =
   | { kind: 'serial'; serial: SerialSettings }
-  | { kind: 'tcp'; host: string; port: number };
+  | { kind: 'tcp'; host: string; port: number }
+  /** VXI-11 core channel, found through the host's portmapper; `device` is the link's device name (inst0, …). */
+  | { kind: 'vxi11'; host: string; device: string };
 
 export const DEFAULT_TCP_PORT = 5025;
+/** The device name a VISA TCPIP…::INSTR resource means when it names none. */
+export const DEFAULT_VXI11_DEVICE = 'inst0';
 
 const PARITIES: Parity[] = ['none', 'even', 'odd', 'mark', 'space'];
 const FLOWS: FlowControl[] = ['none', 'rtscts', 'xonxoff'];
@@ -32,11 +39,15 @@ export function parseAddress(text: string): InstrumentAddress {
   if (/^tcp:/i.test(address)) return parseTcpUrl(address);
   if (/^ASRL/i.test(address)) return parseVisaSerial(address);
   if (/^TCPIP\d*::/i.test(address)) return parseVisaTcp(address);
+  if (/^\/dev\/\S+$/.test(address) || /^COM\d+$/i.test(address)) return { kind: 'serial', serial: { path: address, ...DEFAULT_SERIAL } };
+  const hostPort = /^(\[[^\]]+\]|[A-Za-z0-9][A-Za-z0-9.-]*):(\d+)$/.exec(address);
+  if (hostPort) return { kind: 'tcp', host: hostPort[1].replace(/^\[|\]$/g, ''), port: parsePort(address, hostPort[2]) };
   throw new AddressError(text, 'is not a recognised address form');
 }
 
 /** Canonical URL form, used in logs, the store and the traffic console. */
 export function formatAddress(address: InstrumentAddress): string {
+  if (address.kind === 'vxi11') return `TCPIP::${address.host}::${address.device}::INSTR`;
   if (address.kind === 'tcp') return `tcp://${address.host.includes(':') ? `[${address.host}]` : address.host}:${address.port}`;
   const s = address.serial;
   return `serial://${s.path}?baud=${s.baudRate}&data=${s.dataBits}&parity=${s.parity}&stop=${s.stopBits}&flow=${s.flow}`;
@@ -109,10 +120,14 @@ function parseVisaTcp(address: string): InstrumentAddress {
   if (parts.length === 4 && /^SOCKET$/i.test(parts[3]) && parts[1] !== '') {
     return { kind: 'tcp', host: parts[1], port: parsePort(address, parts[2]) };
   }
-  if (parts.length >= 2 && /^INSTR$/i.test(parts[parts.length - 1])) {
-    throw new AddressError(address, 'only raw-socket VISA resources (…::PORT::SOCKET) are supported, not INSTR (VXI-11/HiSLIP)');
+  if ((parts.length === 3 || parts.length === 4) && /^INSTR$/i.test(parts[parts.length - 1]) && parts[1] !== '') {
+    const device = parts.length === 4 ? parts[2] : DEFAULT_VXI11_DEVICE;
+    // HiSLIP resources name a hislipN device; they speak another protocol on port 4880.
+    if (/^hislip\d*$/i.test(device)) throw new AddressError(address, 'HiSLIP resources (…::hislip0::INSTR) are not supported; use the instrument\'s VXI-11 device (inst0) or its raw socket');
+    if (!/^[A-Za-z][A-Za-z0-9_,.-]*$/.test(device)) throw new AddressError(address, `"${device}" is not a VXI-11 device name (e.g. inst0, gpib0,5)`);
+    return { kind: 'vxi11', host: parts[1], device };
   }
-  throw new AddressError(address, 'a VISA TCP resource looks like TCPIP::HOST::5025::SOCKET');
+  throw new AddressError(address, 'a VISA TCP resource looks like TCPIP::HOST::INSTR, TCPIP::HOST::inst0::INSTR or TCPIP::HOST::5025::SOCKET');
 }
 
 function parsePort(address: string, text: string | undefined): number {

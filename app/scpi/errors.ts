@@ -71,9 +71,36 @@ export class AddressError extends ScpiError {
   constructor(address: string, problem: string) {
     super(
       `address "${address}": ${problem}`,
-      'Accepted forms: serial:///dev/ttyUSB0?baud=9600&data=8&parity=none&stop=1&flow=none, ' +
-        'tcp://HOST:5025, ASRL/dev/ttyUSB0::INSTR, ASRL3::INSTR, TCPIP::HOST::5025::SOCKET, TCPIP0::HOST::PORT::SOCKET.',
+      'Accepted forms: serial:///dev/ttyUSB0?baud=9600&data=8&parity=none&stop=1&flow=none, /dev/ttyUSB0, ' +
+        'tcp://HOST:5025, HOST:PORT, ASRL/dev/ttyUSB0::INSTR, ASRL3::INSTR, TCPIP::HOST::5025::SOCKET, TCPIP0::HOST::PORT::SOCKET, ' +
+        'TCPIP::HOST::INSTR, TCPIP0::HOST::inst0::INSTR (VXI-11).',
     );
     this.address = address;
+  }
+}
+
+/** Another client holds the instrument's lock (VXI-11 error 11): retry once it lets go. */
+export class ScpiLockedError extends ScpiError {
+  readonly lockTimeoutS: number;
+  constructor(link: string, lockTimeoutS: number, operation: string) {
+    super(
+      `${link}: the instrument is locked by another connection (${operation}${lockTimeoutS > 0 ? `, waited ${lockTimeoutS} s` : ''})`,
+      'Another program holds the instrument\'s lock. Close it (or let its run finish) and try again, or allow a longer lock wait.',
+    );
+    this.lockTimeoutS = lockTimeoutS;
+  }
+}
+
+/** A message-based link (VXI-11, USBTMC) refused an operation for a reason of its own, named by its code. */
+export class ScpiLinkError extends ScpiError {
+  readonly protocol: string;
+  readonly code: number;
+  constructor(link: string, protocol: string, code: number, meaning: string, operation: string) {
+    super(
+      `${link}: ${operation} failed: ${protocol} error ${code} (${meaning})`,
+      'The instrument refused the link operation. Check the address (device name, e.g. inst0), then power-cycle or reconnect the instrument if it persists.',
+    );
+    this.protocol = protocol;
+    this.code = code;
   }
 }

@@ -12,6 +12,7 @@ export * from './session';
 export * from './memory-transport';
 export * from './tcp-transport';
 export * from './serial-transport';
+export * from './vxi11/vxi11-transport';
 export * from './open-transport';
 export * from './connect';
 export * from './ports';

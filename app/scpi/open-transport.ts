@@ -3,7 +3,15 @@ import type { InstrumentAddress } from './address';
 import { SerialTransport } from './serial-transport';
 import { TcpTransport } from './tcp-transport';
 import type { Transport } from './transport';
+import { Vxi11Transport } from './vxi11/vxi11-transport';
 
 export function transportFor(address: InstrumentAddress): Transport {
-  return address.kind === 'serial' ? new SerialTransport(address.serial) : new TcpTransport({ host: address.host, port: address.port });
+  switch (address.kind) {
+    case 'serial':
+      return new SerialTransport(address.serial);
+    case 'tcp':
+      return new TcpTransport({ host: address.host, port: address.port });
+    case 'vxi11':
+      return new Vxi11Transport({ host: address.host, device: address.device });
+  }
 }

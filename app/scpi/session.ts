@@ -7,7 +7,7 @@
 import { ValidationError } from '../errors';
 import type { InstrumentIdentity } from '../contract/contract';
 import { parseErrorEntry, type InstrumentErrorEntry } from './error-entry';
-import { ScpiDisconnectedError, ScpiInstrumentError, ScpiMalformedReplyError, ScpiTimeoutError } from './errors';
+import { ScpiDisconnectedError, ScpiError, ScpiInstrumentError, ScpiMalformedReplyError, ScpiTimeoutError } from './errors';
 import { parseIdentity } from './identity';
 import { parseReading, type Reading } from './reading';
 import { frameReply, frameResponseUnits, preview, type ResponseUnit } from './reply-framer';
@@ -61,6 +61,7 @@ export class ScpiSession {
     this.traffic = options.traffic ?? new TrafficLog();
     transport.onData((bytes) => this.receive(bytes));
     transport.onClose((reason) => this.linkClosed(reason));
+    transport.onFailure((error) => this.requestFailed(error));
     if (!transport.isOpen) this.closedReason = 'not opened';
   }
 
@@ -190,14 +191,16 @@ export class ScpiSession {
     return result;
   }
 
-  private async send(command: string): Promise<void> {
+  /** `reply`: the command is a query; a message-based transport then reads its response within timeoutS. */
+  private async send(command: string, reply?: { timeoutS: number }): Promise<void> {
     if (/[\r\n]/.test(command)) throw new ValidationError('command', `"${command.replace(/[\r\n]/g, '⏎')}" contains a line break`, 'Send one command per line.');
     if (this.closedReason !== undefined) throw new ScpiDisconnectedError(this.link, this.closedReason, command);
     this.discardStaleInput();
     this.traffic.add('sent', command, this.link);
     try {
-      await this.transport.write(encoder.encode(`${command}\n`));
+      await this.transport.write(encoder.encode(`${command}\n`), reply ? { replyExpected: true, timeoutS: reply.timeoutS } : undefined);
     } catch (error) {
+      if (error instanceof ScpiError) throw error; // already named by the transport (a VXI-11 lock or timeout, say)
       throw new ScpiDisconnectedError(this.link, (error as Error).message ?? String(error), command);
     }
   }
@@ -223,7 +226,7 @@ export class ScpiSession {
         },
       };
       this.pending = pending;
-      this.send(command).then(
+      this.send(command, { timeoutS }).then(
         () => this.deliver(),
         (error: Error) => {
           if (this.pending === pending) this.pending = undefined;
@@ -285,6 +288,14 @@ export class ScpiSession {
     if (this.buffer.length === 0) return;
     this.traffic.add('received', `<discarded ${this.buffer.length} stale bytes> ${preview(this.buffer.subarray(0, 60))}`, this.link);
     this.buffer = new Uint8Array(0);
+  }
+
+  /** A message-based transport could not get the response (its own timeout, a lock): the waiting query fails with that error. */
+  private requestFailed(error: Error): void {
+    const pending = this.pending;
+    if (!pending) return; // the query already timed out here
+    this.pending = undefined;
+    pending.reject(error);
   }
 
   private linkClosed(reason: string): void {

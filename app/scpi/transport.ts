@@ -8,13 +8,27 @@ export interface Transport {
   readonly description: string;
   readonly isOpen: boolean;
   open(): Promise<void>;
-  /** Resolves once the bytes are handed to the OS (or peer). */
-  write(bytes: Uint8Array): Promise<void>;
+  /**
+   * Resolves once the bytes are handed to the OS (or peer). One call carries
+   * one whole program message. A message-based link (VXI-11, USBTMC) must ask
+   * the instrument for a response, so it is told when one is expected; a
+   * byte stream ignores the options.
+   */
+  write(bytes: Uint8Array, options?: WriteOptions): Promise<void>;
   /** Bytes as they arrive, in order, with no framing applied. */
   onData(listener: (bytes: Uint8Array) => void): void;
   /** Called once when the link closes for any reason, including close(). */
   onClose(listener: (reason: string) => void): void;
+  /** A message-based link's request for a response failed without closing the link (a timeout, a lock held elsewhere). */
+  onFailure(listener: (error: Error) => void): void;
   close(): Promise<void>;
+}
+
+export interface WriteOptions {
+  /** The message holds a query: its response is to be read (IEEE 488.2 §6, recalled from memory). */
+  replyExpected?: boolean;
+  /** How long the instrument may take to respond, seconds (the command's time limit). */
+  timeoutS?: number;
 }
 
 /**
@@ -24,6 +38,7 @@ export interface Transport {
 export abstract class TransportListeners {
   private readonly dataListeners: Array<(bytes: Uint8Array) => void> = [];
   private readonly closeListeners: Array<(reason: string) => void> = [];
+  private readonly failureListeners: Array<(error: Error) => void> = [];
   /** The close has been reported: the link is closed for good. */
   protected closeReported = false;
 
@@ -33,6 +48,14 @@ export abstract class TransportListeners {
 
   onClose(listener: (reason: string) => void): void {
     this.closeListeners.push(listener);
+  }
+
+  onFailure(listener: (error: Error) => void): void {
+    this.failureListeners.push(listener);
+  }
+
+  protected emitFailure(error: Error): void {
+    for (const listener of this.failureListeners) listener(error);
   }
 
   protected emitData(bytes: Uint8Array): void {

@@ -17,8 +17,8 @@ export interface SimulatedBenchSettings {
   /** Extra delay per reply (wall seconds): a realistic link. */
   latencyS: number;
   seed: number;
-  /** TCP on 127.0.0.1 (default) or pseudo-terminals (serial path). */
-  link: 'tcp' | 'pty';
+  /** TCP on 127.0.0.1 (default), pseudo-terminals (serial path), or VXI-11 through the portmapper (LAN instruments). */
+  link: 'tcp' | 'pty' | 'vxi11';
 }
 
 export interface SimulatedBenchHandle {
@@ -40,12 +40,13 @@ export async function startSimulatedBenchFor(design: Design, settings: Partial<S
     design,
     clock,
     ...(chosen.link === 'pty' ? { pty: true as const } : { tcpPort: 0 }),
+    vxi11: chosen.link === 'vxi11',
     noiseVrms: chosen.noiseVrms,
     latencyS: chosen.latencyS,
     seed: chosen.seed,
   });
   return {
-    addresses: bench.addresses,
+    addresses: chosen.link === 'vxi11' ? bench.vxi11Addresses! : bench.addresses,
     clock,
     setFault: (role, fault) => bench.setFault(role, fault),
     generatorOutputOn: () => bench.model.generatorOutput.on,

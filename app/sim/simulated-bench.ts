@@ -14,7 +14,8 @@ import { INSTRUMENT_ROLES as ROLES, type InstrumentRole } from '../contract/cont
 import { ValidationError } from '../errors';
 import { BenchModel } from './bench-model';
 import { CircuitUnderTest } from './circuit-under-test';
-import { listenPty, listenTcp, type Endpoint } from './endpoints';
+import { listenPty, listenTcp, LOOPBACK_HOST, type Endpoint } from './endpoints';
+import { DEFAULT_VXI11_DEVICE } from '../scpi/address';
 import { FaultState, type SimFault } from './faults';
 import type { LinkOptions } from './link-server';
 import { SimGenerator } from './sim-generator';
@@ -22,6 +23,7 @@ import { HeaderPattern } from './program-message';
 import { SimMeter } from './sim-meter';
 import { SimScope } from './sim-scope';
 import type { SimInstrument } from './sim-instrument';
+import { startVxi11Server, type Vxi11Server } from './vxi11-server';
 
 /** The generator's output resistance, ohms (the usual bench-generator figure). */
 export const SIM_SOURCE_IMPEDANCE_OHM = 50;
@@ -44,10 +46,23 @@ export interface SimulatedBenchOptions {
   latencyS?: number;
   faults?: Partial<Record<InstrumentRole, SimFault>>;
   seed?: number;
+  /**
+   * Also serve the instruments over VXI-11, registered with the portmapper on
+   * 127.0.0.1 (see vxi11-server.ts): device inst0 generator, inst1 meter,
+   * inst2 scope. Only one process at a time can hold the registration.
+   */
+  vxi11?: boolean | { port?: number; maxRecvSizeBytes?: number };
 }
+
+/** Device names on the simulated bench's VXI-11 server, one per instrument. */
+export const VXI11_DEVICE_NAMES: Record<InstrumentRole, string> = { generator: 'inst0', meter: 'inst1', scope: 'inst2' };
 
 export interface SimulatedBench {
   addresses: Record<InstrumentRole, string>;
+  /** VISA resource strings of the same instruments over VXI-11, when served (`vxi11` option). */
+  vxi11Addresses?: Record<InstrumentRole, string>;
+  /** The VXI-11 server, when served: its ports and device_read counts. */
+  vxi11Server?: Vxi11Server;
   clock: BenchClock;
   design: Design;
   /** The signal model, for tests that compare readings with theory. */
@@ -92,7 +107,9 @@ export async function startSimulatedBench(options: SimulatedBenchOptions): Promi
   }
 
   const endpoints: Partial<Record<InstrumentRole, Endpoint>> = {};
+  let vxi11Server: Vxi11Server | undefined;
   const stopAll = async () => {
+    await vxi11Server?.stop().catch(() => undefined);
     for (const endpoint of Object.values(endpoints)) await endpoint?.stop().catch(() => undefined);
     if (ownPtyDir && ptyDir) rmSync(ptyDir, { recursive: true, force: true });
   };
@@ -103,6 +120,14 @@ export async function startSimulatedBench(options: SimulatedBenchOptions): Promi
         ? await listenPty(instruments[role], join(ptyDir, role), linkOptions)
         : await listenTcp(instruments[role], options.tcpPort ? options.tcpPort + index : 0, linkOptions);
     }
+    if (options.vxi11) {
+      const settings = options.vxi11 === true ? {} : options.vxi11;
+      vxi11Server = await startVxi11Server({
+        devices: ROLES.map((role) => ({ name: VXI11_DEVICE_NAMES[role], instrument: instruments[role], linkOptions: { latencyS, faults: faults[role], random: linkRandom } })),
+        port: settings.port,
+        maxRecvSizeBytes: settings.maxRecvSizeBytes,
+      });
+    }
   } catch (error) {
     await stopAll();
     throw error;
@@ -112,6 +137,7 @@ export async function startSimulatedBench(options: SimulatedBenchOptions): Promi
     for (const target of role === 'all' ? ROLES : [role]) {
       if (fault?.kind === 'drop-link') {
         await endpoints[target]!.dropLinks();
+        vxi11Server?.dropLinks(VXI11_DEVICE_NAMES[target]);
         continue;
       }
       faults[target].set(fault ?? undefined);
@@ -131,6 +157,8 @@ export async function startSimulatedBench(options: SimulatedBenchOptions): Promi
   let stopped = false;
   return {
     addresses: { generator: endpoints.generator!.address, meter: endpoints.meter!.address, scope: endpoints.scope!.address },
+    vxi11Addresses: vxi11Server ? vxi11AddressesOf(VXI11_DEVICE_NAMES) : undefined,
+    vxi11Server,
     clock,
     design,
     model,
@@ -144,4 +172,10 @@ export async function startSimulatedBench(options: SimulatedBenchOptions): Promi
       await stopAll();
     },
   };
+}
+
+/** `TCPIP::127.0.0.1::INSTR` for inst0 (the VISA default device), `TCPIP::127.0.0.1::instN::INSTR` for the others. */
+function vxi11AddressesOf(names: Record<InstrumentRole, string>): Record<InstrumentRole, string> {
+  const resource = (name: string) => (name === DEFAULT_VXI11_DEVICE ? `TCPIP::${LOOPBACK_HOST}::INSTR` : `TCPIP::${LOOPBACK_HOST}::${name}::INSTR`);
+  return { generator: resource(names.generator), meter: resource(names.meter), scope: resource(names.scope) };
 }

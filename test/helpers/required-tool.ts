@@ -8,13 +8,15 @@
  *   const hasSocat = requireTool('socat');
  *   describe.skipIf(!hasSocat)('…', () => { … });
  */
-import { accessSync, constants } from 'node:fs';
+import { accessSync, constants, existsSync } from 'node:fs';
 import { delimiter, isAbsolute, join } from 'node:path';
 
 interface Tool {
   /** Program name looked up on PATH, or an absolute path. */
   program: string;
   debianPackage: string;
+  /** A file the package installs, for a package that adds no program of its own (a Python module). */
+  alsoNeeds?: string;
 }
 
 /** Programs the tests use, with the Debian package that ships each. */
@@ -26,6 +28,9 @@ export const REQUIRED_TOOLS = {
   pdftotext: { program: 'pdftotext', debianPackage: 'poppler-utils' },
   python3: { program: 'python3', debianPackage: 'python3' },
   rpcbind: { program: 'rpcbind', debianPackage: 'rpcbind' },
+  /** Debian's own python3 with its pyvisa-py package (a pyenv python on PATH lacks it). */
+  pyvisaPy: { program: '/usr/bin/python3', debianPackage: 'python3-pyvisa-py', alsoNeeds: '/usr/lib/python3/dist-packages/pyvisa_py/__init__.py' },
+  lxi: { program: 'lxi', debianPackage: 'lxi-tools' },
   xvfb: { program: 'xvfb-run', debianPackage: 'xvfb' },
   // Debian keeps it off PATH, in /usr/lib/postgresql/N/bin: test/helpers/postgres-cluster.ts looks there first.
   initdb: { program: 'initdb', debianPackage: 'postgresql' },
@@ -47,7 +52,9 @@ export function requireTool(...names: ToolName[]): boolean {
 
 /** Where the program is, or undefined. */
 export function toolPath(name: ToolName): string | undefined {
-  const { program } = REQUIRED_TOOLS[name];
+  const tool: Tool = REQUIRED_TOOLS[name];
+  const { program } = tool;
+  if (tool.alsoNeeds !== undefined && !existsSync(tool.alsoNeeds)) return undefined;
   if (isAbsolute(program)) return isExecutable(program) ? program : undefined;
   for (const folder of (process.env.PATH ?? '').split(delimiter)) {
     if (folder && isExecutable(join(folder, program))) return join(folder, program);

@@ -7,16 +7,17 @@ import { UserError, ValidationError } from '../../errors';
 import { startSimulatedBench, parseFaultSpec, type SimFault } from '../../sim';
 import { INSTRUMENT_ROLES, type InstrumentRole } from '../../contract/contract';
 import { formatEngineering } from '../../units';
-import { optionNumber, optionString, type CommandSpec } from '../args';
+import { optionFlag, optionNumber, optionString, type CommandSpec } from '../args';
 
 export const simCommand: CommandSpec = {
   name: 'sim',
   summary: 'Start the simulated bench (simulated generator, meter and scope around a design)',
-  usage: '--design DESIGN.json [--tcp PORT | --pty DIR] [options]',
+  usage: '--design DESIGN.json [--tcp PORT | --pty DIR] [--vxi11] [options]',
   options: [
     { name: 'design', kind: 'string', placeholder: 'FILE', description: 'design file of the simulated circuit (required)' },
     { name: 'tcp', kind: 'integer', placeholder: 'PORT', description: 'TCP on 127.0.0.1: generator on PORT, meter PORT+1, scope PORT+2 (0: any free ports)' },
     { name: 'pty', kind: 'string', placeholder: 'DIR', description: 'serial pseudo-terminals DIR/generator, DIR/meter, DIR/scope (needs socat)' },
+    { name: 'vxi11', kind: 'flag', description: 'also serve the instruments over VXI-11 (LAN instruments inst0 generator, inst1 meter, inst2 scope), registered with the portmapper on 127.0.0.1 (needs rpcbind)' },
     { name: 'time-scale', kind: 'number', placeholder: 'X', description: 'simulated seconds per real second', defaultValue: 1 },
     { name: 'noise', kind: 'number', placeholder: 'VRMS', description: 'white noise on every simulated voltage', defaultValue: 0 },
     { name: 'latency', kind: 'number', placeholder: 'S', description: 'delay before each reply', defaultValue: 0 },
@@ -29,7 +30,8 @@ generator has a 50 Ω output resistance; its amplitude is calibrated for its
 load setting. Every *IDN? reply says "simulated".
 Examples:
   rolloff sim --design app/circuit/examples/inverting-lowpass.json --tcp 5025
-  rolloff sim --design d.json --pty /tmp/bench --noise 1m --fault meter=garbage:0.05`,
+  rolloff sim --design d.json --pty /tmp/bench --noise 1m --fault meter=garbage:0.05
+  rolloff sim --design d.json --vxi11      (then e.g. TCPIP::127.0.0.1::inst2::INSTR is the scope)`,
   async run(parsed) {
     const designPath = optionString(parsed, 'design');
     if (!designPath) throw new ValidationError('--design', 'is required', 'Give the design file of the circuit to simulate, e.g. --design app/circuit/examples/inverting-lowpass.json.');
@@ -62,6 +64,7 @@ Examples:
       latencyS: optionNumber(parsed, 'latency')!,
       seed: optionNumber(parsed, 'seed')!,
       faults,
+      vxi11: optionFlag(parsed, 'vxi11'),
     }).catch((error: unknown) => {
       if (error instanceof UserError) throw error;
       const code = (error as NodeJS.ErrnoException)?.code;
@@ -73,6 +76,14 @@ Examples:
       `  generator  ${bench.addresses.generator}`,
       `  meter      ${bench.addresses.meter}`,
       `  scope      ${bench.addresses.scope}   (ch1 = circuit input, ch2 = output)`,
+      ...(bench.vxi11Addresses
+        ? [
+            `  over VXI-11 (core channel port ${bench.vxi11Server!.corePort}, registered with the portmapper on 127.0.0.1):`,
+            `  generator  ${bench.vxi11Addresses.generator}`,
+            `  meter      ${bench.vxi11Addresses.meter}`,
+            `  scope      ${bench.vxi11Addresses.scope}`,
+          ]
+        : []),
       `  time scale ×${timeScale}, noise ${formatEngineering(optionNumber(parsed, 'noise')!, 'Vrms')}${Object.keys(faults).length ? `, faults: ${Object.entries(faults).map(([r, f]) => `${r}=${f!.kind}`).join(', ')}` : ''}`,
       'Press Ctrl-C to stop.',
     ];

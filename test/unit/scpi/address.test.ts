@@ -34,8 +34,20 @@ describe('parseAddress', () => {
     expect(parseAddress('tcpip0::localhost::7000::socket')).toEqual({ kind: 'tcp', host: 'localhost', port: 7000 });
   });
 
+  it('reads VISA VXI-11 resources, the device name inst0 when none is given (VISA resource syntax, common practice)', () => {
+    expect(parseAddress('TCPIP::127.0.0.1::INSTR')).toEqual({ kind: 'vxi11', host: '127.0.0.1', device: 'inst0' });
+    expect(parseAddress('TCPIP0::127.0.0.1::inst2::INSTR')).toEqual({ kind: 'vxi11', host: '127.0.0.1', device: 'inst2' });
+    expect(parseAddress('tcpip::localhost::gpib0,5::instr')).toEqual({ kind: 'vxi11', host: 'localhost', device: 'gpib0,5' });
+  });
+
+  it('reads the short forms the Bench view suggests: a device path and HOST:PORT', () => {
+    expect(parseAddress('/dev/ttyUSB0')).toEqual({ kind: 'serial', serial: { path: '/dev/ttyUSB0', baudRate: 9600, dataBits: 8, parity: 'none', stopBits: 1, flow: 'none' } });
+    expect(parseAddress('127.0.0.1:5025')).toEqual({ kind: 'tcp', host: '127.0.0.1', port: 5025 });
+    expect(parseAddress('[::1]:6000')).toEqual({ kind: 'tcp', host: '::1', port: 6000 });
+  });
+
   it('round-trips through the canonical form', () => {
-    for (const text of ['serial:///dev/ttyUSB0?baud=115200', 'tcp://127.0.0.1:5025']) {
+    for (const text of ['serial:///dev/ttyUSB0?baud=115200', 'tcp://127.0.0.1:5025', 'TCPIP::127.0.0.1::inst1::INSTR']) {
       const parsed = parseAddress(text);
       expect(parseAddress(formatAddress(parsed))).toEqual(parsed);
     }
@@ -48,7 +60,10 @@ describe('parseAddress', () => {
     ['serial:///dev/ttyUSB0?baud=fast', /baud/],
     ['serial:///dev/ttyUSB0?parity=sometimes', /parity/],
     ['serial:///dev/ttyUSB0?speed=9600', /unknown serial setting/],
-    ['TCPIP::127.0.0.1::INSTR', /only raw-socket/],
+    ['TCPIP::127.0.0.1::hislip0::INSTR', /HiSLIP/],
+    ['TCPIP::127.0.0.1::in st0::INSTR', /not a VXI-11 device name/],
+    ['TCPIP::127.0.0.1', /TCPIP::HOST::INSTR/],
+    ['127.0.0.1:70000', /port/],
     ['ASRL0::INSTR', /start at 1/],
   ])('refuses %j with an AddressError listing the accepted forms', (text, pattern) => {
     let caught: unknown;
@@ -60,5 +75,6 @@ describe('parseAddress', () => {
     expect(caught).toBeInstanceOf(AddressError);
     expect((caught as AddressError).message).toMatch(pattern);
     expect((caught as AddressError).hint).toMatch(/TCPIP::HOST::5025::SOCKET/);
+    expect((caught as AddressError).hint).toMatch(/TCPIP::HOST::INSTR/);
   });
 });

@@ -1,0 +1,185 @@
+/**
+ * VXI-11 end to end: the simulated bench's server registered with the system
+ * portmapper (rpcbind), reached by Rolloff's client, by Debian's
+ * python3-pyvisa-py (an independent VISA implementation) and by lxi-tools (an
+ * independent VXI-11 client built on the C library's ONC RPC). Expected
+ * values come from those independent clients and from the same instruments
+ * over a raw TCP socket, never from this file.
+ *
+ * Every test that registers with the portmapper is in this file: only one
+ * process at a time can hold the VXI-11 registration on a machine.
+ */
+import { execFile } from 'node:child_process';
+import { join } from 'node:path';
+import { promisify } from 'node:util';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { connect, ConnectError, ScpiDisconnectedError, ScpiLinkError, ScpiLockedError, ScpiSession, ScpiTimeoutError, Vxi11Transport } from '../../../app/scpi';
+import { Vxi11Link } from '../../../app/scpi/vxi11/vxi11-client';
+import { getPort } from '../../../app/scpi/vxi11/portmapper';
+import { DEVICE_CORE_PROGRAM, DEVICE_CORE_VERSION } from '../../../app/scpi/vxi11/protocol';
+import { startSimulatedBench, type SimulatedBench } from '../../../app/sim';
+import { Vxi11RegistrationError } from '../../../app/sim/vxi11-server';
+import { TEST_DESIGN_JSON } from '../instruments/bench-scenario';
+import { ensurePortmapper } from '../../helpers/portmapper';
+import { requireTool, toolPath } from '../../helpers/required-tool';
+
+const run = promisify(execFile);
+const PYVISA_CLIENT = join(__dirname, 'pyvisa-client.py');
+/** Small on purpose: a 10,000-point record (20,000 bytes) then needs several device_write/device_read calls. */
+const SMALL_MAX_RECV_SIZE_BYTES = 16;
+
+const tools = requireTool('rpcbind', 'pyvisaPy', 'lxi');
+
+describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () => {
+  let bench: SimulatedBench;
+  /** The same scope record as read over the raw socket, big-endian int16 codes (the power-on format). */
+  let socketTrace: number[];
+
+  beforeAll(async () => {
+    await ensurePortmapper();
+    bench = await startSimulatedBench({ design: TEST_DESIGN_JSON, tcpPort: 0, timeScale: 10, seed: 5, vxi11: { maxRecvSizeBytes: SMALL_MAX_RECV_SIZE_BYTES } });
+    const scope = await connect(bench.addresses.scope);
+    await scope.write('SENSe:SWEep:POINts 10000');
+    await scope.write('INITiate');
+    await scope.operationComplete({ timeoutS: 10 });
+    const block = await scope.queryBlock('TRACe:DATA? CH1');
+    const view = new DataView(block.buffer, block.byteOffset, block.byteLength);
+    socketTrace = Array.from({ length: block.length / 2 }, (_, i) => view.getInt16(2 * i, false));
+    await scope.close();
+  }, 30_000);
+
+  afterAll(async () => {
+    await bench?.stop();
+  });
+
+  it('registers its core channel with the portmapper, one server for three device names', async () => {
+    expect(await getPort('127.0.0.1', DEVICE_CORE_PROGRAM, DEVICE_CORE_VERSION, 2000)).toBe(bench.vxi11Server!.corePort);
+    // rpcinfo (rpcbind's own client) lists the same mapping: program 395183 = 0x0607AF, VXI-11 §B.6.
+    const { stdout } = await run('rpcinfo', ['-p', '127.0.0.1']);
+    expect(stdout).toMatch(new RegExp(`395183\\s+1\\s+tcp\\s+${bench.vxi11Server!.corePort}`));
+    expect(bench.vxi11Addresses).toEqual({ generator: 'TCPIP::127.0.0.1::INSTR', meter: 'TCPIP::127.0.0.1::inst1::INSTR', scope: 'TCPIP::127.0.0.1::inst2::INSTR' });
+  });
+
+  it('refuses a second registration while the first server lives', async () => {
+    await expect(startSimulatedBench({ design: TEST_DESIGN_JSON, tcpPort: 0, vxi11: true })).rejects.toBeInstanceOf(Vxi11RegistrationError);
+  });
+
+  it('answers Rolloff\'s client on each device name with that instrument\'s *IDN?', async () => {
+    for (const [role, model] of [['generator', 'simulated generator'], ['meter', 'simulated meter'], ['scope', 'simulated scope']] as const) {
+      const session = await connect(bench.vxi11Addresses![role]);
+      expect((await session.identify()).model).toBe(model);
+      await session.close();
+    }
+  });
+
+  it('pyvisa-py over VXI-11 (inst0 by default, inst1, inst2): *IDN?, -113 for an unknown header, the waveform block intact', async () => {
+    for (const [role, model] of [['generator', 'simulated generator'], ['meter', 'simulated meter']] as const) {
+      const out = JSON.parse((await run(toolPath('pyvisaPy')!, [PYVISA_CLIENT, bench.vxi11Addresses![role]])).stdout);
+      expect(out.idn).toMatch(new RegExp(`,${model},`));
+      // SCPI-1999 vol 2 §21.8.9 (recalled): −113 "Undefined header".
+      expect(out.error).toMatch(/^-113,"Undefined header/);
+    }
+    const scope = JSON.parse((await run(toolPath('pyvisaPy')!, [PYVISA_CLIENT, bench.vxi11Addresses!.scope, 'TRACe:DATA? CH1'])).stdout);
+    expect(scope.idn).toMatch(/,simulated scope,/);
+    expect(scope.error).toMatch(/^-113,/);
+    expect(scope.trace).toHaveLength(10_000);
+    expect(scope.trace).toEqual(socketTrace);
+  }, 30_000);
+
+  it('pyvisa-py over the raw socket (TCPIP::127.0.0.1::PORT::SOCKET) reads the same', async () => {
+    const port = bench.addresses.scope.split(':').pop();
+    const out = JSON.parse((await run(toolPath('pyvisaPy')!, [PYVISA_CLIENT, `TCPIP::127.0.0.1::${port}::SOCKET`, 'TRACe:DATA? CH1'])).stdout);
+    expect(out.idn).toMatch(/,simulated scope,/);
+    expect(out.error).toMatch(/^-113,"Undefined header/);
+    expect(out.trace).toEqual(socketTrace);
+  }, 30_000);
+
+  it('lxi-tools reads *IDN? of the default device inst0 (the generator)', async () => {
+    const { stdout } = await run('lxi', ['scpi', '--address', '127.0.0.1', '*IDN?'], { timeout: 15_000 });
+    expect(stdout).toMatch(/simulated bench \(simulated\),simulated generator,/);
+  }, 20_000);
+
+  it('reads a long block in several device_read calls and writes in several device_write calls (small sizes)', async () => {
+    const transport = new Vxi11Transport({ host: '127.0.0.1', device: 'inst2', readChunkBytes: 4096 });
+    const session = await ScpiSession.open(transport);
+    expect(transport.maxRecvSize).toBe(SMALL_MAX_RECV_SIZE_BYTES);
+    const before = transport.deviceReadCalls;
+    const block = await session.queryBlock('TRACe:DATA? CH1');
+    // "#520000" + 20,000 bytes + LF in requests of 4096 bytes: at least 5 calls.
+    expect(transport.deviceReadCalls - before).toBeGreaterThanOrEqual(5);
+    const view = new DataView(block.buffer, block.byteOffset, block.byteLength);
+    expect(Array.from({ length: block.length / 2 }, (_, i) => view.getInt16(2 * i, false))).toEqual(socketTrace);
+    // A 32-byte program message goes out in two 16-byte device_writes; the instrument sees one message.
+    await session.write('SENSe:SWEep:TIME 2.000000000E-02');
+    expect(Number(await session.query('SENSe:SWEep:TIME?'))).toBeCloseTo(0.02, 12);
+    await session.close();
+  }, 20_000);
+
+  it('a dropped link fails the query in flight as a disconnect; a new link works', async () => {
+    const session = await connect(bench.vxi11Addresses!.meter);
+    await session.identify();
+    await bench.setFault('meter', { kind: 'hang' });
+    const pending = session.query('*IDN?', { timeoutS: 10 });
+    await new Promise((resolve) => setTimeout(resolve, 100));
+    await bench.setFault('meter', { kind: 'drop-link' });
+    await expect(pending).rejects.toBeInstanceOf(ScpiDisconnectedError);
+    expect(session.isOpen).toBe(false);
+    await bench.setFault('meter', null);
+    const again = await connect(bench.vxi11Addresses!.meter);
+    expect((await again.identify()).model).toBe('simulated meter');
+    await again.close();
+  }, 20_000);
+
+  it('an instrument that does not answer: the session times out; device_read itself ends with VXI-11 error 15 after io_timeout', async () => {
+    const session = await connect(bench.vxi11Addresses!.meter);
+    await bench.setFault('meter', { kind: 'no-reply' });
+    await expect(session.query('*IDN?', { timeoutS: 0.3 })).rejects.toBeInstanceOf(ScpiTimeoutError);
+    const link = await Vxi11Link.open({ host: '127.0.0.1', device: 'inst1' }, 'test link');
+    await link.write(new TextEncoder().encode('*IDN?\n'), true, 1);
+    const started = performance.now();
+    await expect(link.read(1024, 0.4)).rejects.toBeInstanceOf(ScpiTimeoutError);
+    expect(performance.now() - started).toBeGreaterThanOrEqual(390);
+    await bench.setFault('meter', null);
+    // device_clear empties what the instrument holds; the link then works as new.
+    await link.clear();
+    await link.write(new TextEncoder().encode('*IDN?\n'), true, 1);
+    expect(new TextDecoder().decode((await link.read(1024, 2)).data)).toMatch(/simulated meter/);
+    await link.destroy();
+    await session.close();
+  }, 20_000);
+
+  it('device_abort on the abort channel ends a waiting read with VXI-11 error 23', async () => {
+    await bench.setFault('meter', { kind: 'no-reply' });
+    const link = await Vxi11Link.open({ host: '127.0.0.1', device: 'inst1' }, 'test link');
+    await link.write(new TextEncoder().encode('*IDN?\n'), true, 1);
+    const reading = link.read(1024, 10);
+    await new Promise((resolve) => setTimeout(resolve, 100));
+    await link.abort();
+    const error = await reading.catch((e: unknown) => e);
+    expect(error).toBeInstanceOf(ScpiLinkError);
+    expect((error as ScpiLinkError).code).toBe(23);
+    await bench.setFault('meter', null);
+    await link.destroy();
+  }, 20_000);
+
+  it('a lock held by another link: the other waits lock_timeout, then a lock error; after unlock it goes through', async () => {
+    const holder = new Vxi11Transport({ host: '127.0.0.1', device: 'inst1' });
+    const other = new Vxi11Transport({ host: '127.0.0.1', device: 'inst1', lockTimeoutS: 0.3 });
+    await holder.open();
+    const otherSession = await ScpiSession.open(other);
+    await holder.lock();
+    const started = performance.now();
+    await expect(otherSession.query('*IDN?')).rejects.toBeInstanceOf(ScpiLockedError);
+    expect(performance.now() - started).toBeGreaterThanOrEqual(290);
+    await holder.unlock();
+    expect(await otherSession.query('*IDN?')).toMatch(/simulated meter/);
+    await otherSession.close();
+    await holder.close();
+  }, 20_000);
+
+  it('an unknown device name is refused at create_link (VXI-11 error 3), as a connect error', async () => {
+    const error = await connect('TCPIP::127.0.0.1::inst9::INSTR').catch((e: unknown) => e);
+    expect(error).toBeInstanceOf(ConnectError);
+    expect((error as Error).message).toMatch(/error 3 \(device not accessible\)/);
+  });
+});
