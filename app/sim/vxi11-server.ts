@@ -18,7 +18,7 @@
  * is read back by device_read calls of at most the requested size, END on its
  * last byte, stopping early at the term char when the caller sets one.
  */
-import { SeededRandom } from '../circuit';
+import { SeededRandom } from '../numeric';
 import { getPort, IPPROTO_TCP, portAnswers, setMapping, unsetMapping } from '../scpi/vxi11/portmapper';
 import {
   ASYNC_DEVICE_ABORT,
