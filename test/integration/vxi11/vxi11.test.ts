@@ -22,6 +22,9 @@ import { Vxi11RegistrationError } from '../../../app/sim/vxi11-server';
 import { TEST_DESIGN_JSON } from '../instruments/bench-scenario';
 import { ensurePortmapper } from '../../helpers/portmapper';
 import { requireTool, toolPath } from '../../helpers/required-tool';
+import { openServiceAt } from '../../../app/service/open-service';
+import { PointFlag, type RunDetail } from '../../../app/contract/contract';
+import { invertingGain100, sweepRequest, tempFolder } from '../sweep/helpers';
 
 const run = promisify(execFile);
 const PYVISA_CLIENT = join(__dirname, 'pyvisa-client.py');
@@ -181,5 +184,56 @@ describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () 
     const error = await connect('TCPIP::127.0.0.1::inst9::INSTR').catch((e: unknown) => e);
     expect(error).toBeInstanceOf(ConnectError);
     expect((error as Error).message).toMatch(/error 3 \(device not accessible\)/);
+  });
+});
+
+/**
+ * The same sweep of the same simulated build over the raw socket and over
+ * VXI-11 (after the bench above has stopped and unregistered: one
+ * registration at a time). The transport must not change what is measured:
+ * at every frequency the two gains differ by no more than the combined
+ * stated standard uncertainty, times 3 (a 3σ bound, common practice, no
+ * source), plus the 0.1 % settling residual the plan allows on each side.
+ */
+describe.skipIf(!tools)('a full sweep over VXI-11 agrees with the same sweep over TCP', () => {
+  const folder = tempFolder();
+  const runs: Partial<Record<'tcp' | 'vxi11', RunDetail>> = {};
+
+  beforeAll(async () => {
+    await ensurePortmapper();
+    for (const [link, seed] of [['tcp', 3], ['vxi11', 4]] as const) {
+      // Different noise seeds: the two runs are independent measurements of the same build.
+      const service = await openServiceAt(join(folder.path, `${link}.sqlite`), { maxStimulusVpp: 1, simulatedBench: { timeScale: 50, noiseVrms: 1e-4, link, seed } });
+      try {
+        const design = await service.saveDesign(invertingGain100());
+        const build = await service.createBuild({ designId: design.id, label: 'gain 100', notes: '', actualValues: {} });
+        await service.startSimulatedBenchForBuild(build.id);
+        const status = await service.benchStatus();
+        if (link === 'vxi11') expect(Object.values(status.simulatedBench!.addresses).every((a) => /^TCPIP::127\.0\.0\.1::/.test(a!))).toBe(true);
+        const run = await service.startRun(sweepRequest(build.id, { refine: false }));
+        expect(await service.waitForRun(run.id)).toBe('done');
+        runs[link] = await service.getRun(run.id);
+      } finally {
+        await service.close();
+      }
+    }
+  }, 120_000);
+
+  afterAll(() => folder.remove());
+
+  it('measures the same frequencies, with gains within the combined 3σ uncertainty (+ settling residual)', () => {
+    const tcp = runs.tcp!;
+    const vxi11 = runs.vxi11!;
+    expect(vxi11.points.stimulus).toEqual(tcp.points.stimulus);
+    const settleResidualDb = 20 * Math.log10(1.001); // e^−6.9 ≈ 0.1 % residual transient (plan settle rule)
+    let compared = 0;
+    tcp.points.stimulus.forEach((f, i) => {
+      if ((tcp.points.flags[i] | vxi11.points.flags[i]) & PointFlag.distorted) return;
+      const combinedU = Math.hypot(tcp.points.gainUncertaintyDb[i], vxi11.points.gainUncertaintyDb[i]);
+      expect(Math.abs(tcp.points.gainDb[i] - vxi11.points.gainDb[i]), `at ${f} Hz`).toBeLessThanOrEqual(3 * combinedU + 2 * settleResidualDb);
+      compared++;
+    });
+    expect(compared).toBeGreaterThan(15);
+    expect(Math.abs(vxi11.figures.gainLimitHz! / tcp.figures.gainLimitHz! - 1)).toBeLessThan(0.05);
   });
 });
