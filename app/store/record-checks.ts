@@ -4,10 +4,11 @@
  * same ValidationError naming the same field.
  */
 import { ValidationError } from '../errors';
-import type { RunEvent, RunStatus } from '../contract/contract';
+import { RUN_STATUSES, type RunEvent, type RunStatus } from '../contract/contract';
 import type { BenchSettingsInput, NewCalibration, NewPoint, NewSchedule, RunFilter } from './types';
 
-export const RUN_STATUSES: readonly RunStatus[] = ['planned', 'running', 'paused', 'done', 'stopped', 'failed'];
+/** The one list of run states lives in the contract; re-exported for the store's checks. */
+export { RUN_STATUSES };
 export const FINISHED_STATUSES: ReadonlySet<RunStatus> = new Set(['done', 'stopped', 'failed']);
 const EVENT_LEVELS: ReadonlySet<RunEvent['level']> = new Set(['info', 'warning', 'error']);
 export const DEFAULT_LIST_LIMIT = 200;

@@ -3,6 +3,7 @@
  * stop, the live Bode plot (measured over theory, band, gain-limit and −3 dB
  * points, distorted points marked), progress with ETA, and the run's events.
  */
+import { SWEEP_DEFAULTS, SWEEP_RANGE_DEFAULTS } from '../../app/sweep/plan/defaults';
 import { UserError } from '../../app/errors';
 import type { BuildRecord, RolloffClient, RunDetail, RunFigures, RunProgress, RunStatus, RunSummary, SweepRequest, Verdict } from '../../app/contract/contract';
 import { formatEngineering, logGrid, parseEngineering } from '../../app/units';
@@ -23,16 +24,16 @@ export class SweepView implements View {
   private readonly buildSelect = h('select', { name: 'build', 'data-testid': 'sweep-build' });
   private readonly inputs = {
     kind: select([{ value: 'ac', label: 'AC frequency sweep' }, { value: 'dc', label: 'DC transfer sweep' }], 'ac', { name: 'kind' }),
-    from: h('input', { type: 'text', name: 'from', value: '100', 'data-testid': 'sweep-from' }),
-    to: h('input', { type: 'text', name: 'to', value: '100k', 'data-testid': 'sweep-to' }),
-    pointsPerDecade: h('input', { type: 'number', name: 'points-per-decade', value: '10', min: '1', max: '1000', 'data-testid': 'sweep-ppd' }),
+    from: h('input', { type: 'text', name: 'from', value: String(SWEEP_RANGE_DEFAULTS.ac.from), 'data-testid': 'sweep-from' }),
+    to: h('input', { type: 'text', name: 'to', value: String(SWEEP_RANGE_DEFAULTS.ac.to), 'data-testid': 'sweep-to' }),
+    pointsPerDecade: h('input', { type: 'number', name: 'points-per-decade', value: String(SWEEP_RANGE_DEFAULTS.ac.pointsPerDecade), min: '1', max: '1000', 'data-testid': 'sweep-ppd' }),
     spacing: select([{ value: 'log', label: 'log' }, { value: 'linear', label: 'linear' }], 'log', { name: 'spacing' }),
     amplitudeMode: select([{ value: 'auto', label: 'auto (stay linear)' }, { value: 'fixed', label: 'fixed' }], 'auto', { name: 'amplitude-mode' }),
     amplitudeVpp: h('input', { type: 'text', name: 'amplitude', value: '1', 'data-testid': 'sweep-amplitude' }),
     measurement: select([{ value: 'scope', label: 'scope (gain and phase)' }, { value: 'meter', label: 'meter (gain only)' }], 'scope', { name: 'measurement' }),
-    minCycles: h('input', { type: 'number', name: 'min-cycles', value: '3', min: '1' }),
-    averages: h('input', { type: 'number', name: 'averages', value: '1', min: '1' }),
-    refine: h('input', { type: 'checkbox', name: 'refine', checked: true }),
+    minCycles: h('input', { type: 'number', name: 'min-cycles', value: String(SWEEP_DEFAULTS.minCycles), min: '1', 'data-testid': 'sweep-cycles' }),
+    averages: h('input', { type: 'number', name: 'averages', value: String(SWEEP_DEFAULTS.averages), min: '1' }),
+    refine: h('input', { type: 'checkbox', name: 'refine', checked: SWEEP_DEFAULTS.refine }),
     operator: h('input', { type: 'text', name: 'operator', autocomplete: 'name' }),
     notes: h('textarea', { name: 'notes', rows: '2' }),
   };
@@ -82,6 +83,18 @@ export class SweepView implements View {
     form.addEventListener('input', () => this.replan());
     form.addEventListener('change', () => this.replan());
     form.addEventListener('submit', (event) => event.preventDefault());
+    // Switching AC ⇄ DC swaps the range to the other kind's defaults unless the user typed one of their own.
+    let shownKind: SweepRequest['kind'] = 'ac';
+    this.inputs.kind.addEventListener('change', () => {
+      const next = this.inputs.kind.value as SweepRequest['kind'];
+      const before = SWEEP_RANGE_DEFAULTS[shownKind];
+      const after = SWEEP_RANGE_DEFAULTS[next];
+      if (this.inputs.from.value === String(before.from) && this.inputs.to.value === String(before.to)) {
+        this.inputs.from.value = String(after.from);
+        this.inputs.to.value = String(after.to);
+      }
+      shownKind = next;
+    });
 
     this.buttons.start.addEventListener('click', () => void guarded(this.buttons.start, 'Starting the sweep', () => this.start()));
     this.buttons.pause.addEventListener('click', () => void guarded(this.buttons.pause, 'Pausing', async () => this.applySummary(await client.pauseRun(this.run!.id))));

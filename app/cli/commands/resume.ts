@@ -1,5 +1,6 @@
 import type { CommandSpec } from '../args';
-import { requirePositional } from '../args';
+import { optionFlag, requirePositional } from '../args';
+import { ValidationError } from '../../errors';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
 import { BENCH_OPTIONS, connectBench, openService } from '../sweep/sweep-options';
 import { followRun } from '../sweep/follow-run';
@@ -10,9 +11,11 @@ export const resumeCommand: CommandSpec = {
   name: 'resume',
   summary: 'Continue a paused, interrupted or failed run at its next step (no point lost or repeated)',
   usage: 'RUN [--db PATH] [--max-amplitude VPP] [--generator ADDR …]',
-  options: BENCH_OPTIONS.filter((o) => o.name !== 'simulated'),
+  // The options sweep took for the same bench, --simulated included, so the command that started a run also resumes it.
+  options: BENCH_OPTIONS,
   details: `
-A simulated run continues on a fresh simulated bench of its build. A real run reconnects to the
+A simulated run continues on a fresh simulated bench of its build (--simulated may be given, as
+with sweep, and changes nothing); a real run never continues on the simulated bench. A real run reconnects to the
 addresses it was measured with, unless other addresses are given. The maximum stimulus recorded
 with the run applies unless --max-amplitude is given.`,
   async run(parsed) {
@@ -21,7 +24,11 @@ with the run applies unless --max-amplitude is given.`,
     const service = await openService(parsed);
     try {
       const stored = await service.getRunSummary(runId);
-      if (!stored.simulated) await connectBench(service, parsed, stored.buildId);
+      if (optionFlag(parsed, 'simulated') && !stored.simulated) {
+        throw new ValidationError('--simulated', `run ${runId} was measured on real instruments and continues only on them`, 'Drop --simulated; give the instrument addresses if they changed (--generator, --scope, --meter).');
+      }
+      if (stored.simulated) process.stderr.write(`run ${runId} was measured on the simulated bench and continues on a fresh simulated bench\n`);
+      else await connectBench(service, parsed, stored.buildId);
       await service.resumeRun(runId);
       process.stderr.write(`run ${runId} continues at step ${await service.nextStep(runId)}\n`);
       const status = await followRun(service, runId);

@@ -1,7 +1,7 @@
 import type { CommandSpec } from '../args';
 import { optionFlag } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
-import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, openService, prepareSweep } from '../sweep/sweep-options';
+import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, namedForTheCommandLine, openService, prepareSweep } from '../sweep/sweep-options';
 import { followRun } from '../sweep/follow-run';
 import { formatDuration } from '../../units';
 import { runDetailText } from '../sweep/summary-text';
@@ -30,7 +30,9 @@ Every point is stored the moment it is measured. Ctrl-C pauses after the current
           `continue one with: rolloff resume RUN --db ${service.databaseLocation}\n`);
       }
       const { request } = await prepareSweep(service, parsed);
-      const plan = await service.planSweep(request);
+      const plan = await service.planSweep(request).catch((error: unknown) => {
+        throw namedForTheCommandLine(error);
+      });
       process.stderr.write(
         `plan: ${plan.steps.length} points, physical minimum ${formatDuration(plan.estimatedDurationS)} of bench time` +
           `${service.clock.timeScale !== 1 ? ` (simulated bench ×${service.clock.timeScale})` : ''}; maximum stimulus ${service.maxStimulus} Vpp\n`,

@@ -30,6 +30,7 @@ import {
   type MonteCarloBand,
   type ToleranceDistribution,
 } from '../../circuit';
+import { SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
 import { optionFlag, optionNumber, optionString, requirePositional, type CommandSpec, type ParsedArgs } from '../args';
 
 type Format = 'table' | 'csv' | 'json';
@@ -324,9 +325,9 @@ function acJson(design: Design, r: AcResponse, summary: AcSummary, band: MonteCa
 
 function dcTransfer(design: Design, parsed: ParsedArgs, format: Format): string {
   if (optionFlag(parsed, 'tolerance')) throw new ValidationError('--tolerance', 'the tolerance band is computed for AC only', 'Drop --dc or --tolerance.');
-  const from = optionNumber(parsed, 'from') ?? 1e-3;
-  const to = optionNumber(parsed, 'to') ?? 10;
-  const perDecade = optionNumber(parsed, 'per-decade') ?? 10;
+  const from = optionNumber(parsed, 'from') ?? SWEEP_RANGE_DEFAULTS.dc.from;
+  const to = optionNumber(parsed, 'to') ?? SWEEP_RANGE_DEFAULTS.dc.to;
+  const perDecade = optionNumber(parsed, 'per-decade') ?? SWEEP_RANGE_DEFAULTS.dc.pointsPerDecade;
   let inputs: Float64Array;
   if (from > 0 && to > 0) inputs = logGrid(from, to, perDecade);
   else if (from < 0 && to < 0) inputs = logGrid(-from, -to, perDecade).map((v) => -v);

@@ -13,6 +13,7 @@ import type { SweepRequest, VerdictLimits } from '../../contract/contract';
 import { resolveDatabasePath } from '../../store';
 import { DEFAULT_PROFILE_ID } from '../../bench';
 import { parseEngineering } from '../../units';
+import { SWEEP_DEFAULTS, SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
 
 export const DATABASE_OPTION: OptionSpec = { name: 'db', kind: 'string', placeholder: 'PATH', description: 'database file (default: ROLLOFF_DB or the user data folder)' };
 
@@ -33,16 +34,16 @@ export const BENCH_OPTIONS: OptionSpec[] = [
 
 export const PLAN_OPTIONS: OptionSpec[] = [
   { name: 'dc', kind: 'flag', description: 'DC transfer sweep (log stage) instead of a frequency sweep' },
-  { name: 'from', kind: 'number', placeholder: 'HZ|V', description: 'start frequency (or DC level)', defaultValue: 10 },
-  { name: 'to', kind: 'number', placeholder: 'HZ|V', description: 'end frequency (or DC level)', defaultValue: 100_000 },
-  { name: 'per-decade', kind: 'integer', placeholder: 'N', description: 'points per decade', defaultValue: 10 },
+  { name: 'from', kind: 'number', placeholder: 'HZ|V', description: `start frequency, or DC level with --dc (default ${SWEEP_RANGE_DEFAULTS.ac.from} Hz; DC ${SWEEP_RANGE_DEFAULTS.dc.from} V)` },
+  { name: 'to', kind: 'number', placeholder: 'HZ|V', description: `end frequency, or DC level with --dc (default ${SWEEP_RANGE_DEFAULTS.ac.to} Hz; DC ${SWEEP_RANGE_DEFAULTS.dc.to} V)` },
+  { name: 'per-decade', kind: 'integer', placeholder: 'N', description: 'points per decade', defaultValue: SWEEP_RANGE_DEFAULTS.ac.pointsPerDecade },
   { name: 'linear', kind: 'flag', description: 'linear spacing (same number of points)' },
   { name: 'amplitude', kind: 'number', placeholder: 'VPP', description: 'fixed stimulus amplitude (default: automatic per frequency from theory)' },
   { name: 'target-output', kind: 'number', placeholder: 'VPP', description: 'automatic amplitude: aim for this output' },
   { name: 'measure', kind: 'string', placeholder: 'scope|meter', description: 'how to measure AC points', defaultValue: 'scope' },
   { name: 'through', kind: 'flag', description: 'through-calibration run (meter measures the generator directly; stage bypassed)' },
-  { name: 'cycles', kind: 'integer', placeholder: 'N', description: 'minimum whole cycles per acquisition', defaultValue: 5 },
-  { name: 'averages', kind: 'integer', placeholder: 'N', description: 'acquisitions per point (outliers rejected)', defaultValue: 1 },
+  { name: 'cycles', kind: 'integer', placeholder: 'N', description: 'minimum whole cycles per acquisition', defaultValue: SWEEP_DEFAULTS.minCycles },
+  { name: 'averages', kind: 'integer', placeholder: 'N', description: 'acquisitions per point (outliers rejected)', defaultValue: SWEEP_DEFAULTS.averages },
   { name: 'no-refine', kind: 'flag', description: 'skip the extra points near the −3 dB and gain-limit points' },
   { name: 'max-deviation', kind: 'number', placeholder: 'DB', description: 'verdict: largest allowed |measured − theory| in the pass band' },
   { name: 'corner-tolerance', kind: 'number', placeholder: 'FRACTION', description: 'verdict: allowed relative error of each −3 dB point, e.g. 0.05' },
@@ -84,12 +85,35 @@ export function actualValuesFrom(parsed: ParsedArgs): Record<string, number> {
  * checked is checked before a design or build is stored.
  */
 export async function prepareSweep(service: RolloffService, parsed: ParsedArgs): Promise<{ buildId: number; request: SweepRequest }> {
-  requestFrom(parsed, 0);
-  checkBenchOptions(service, parsed);
-  const buildId = await resolveBuildId(service, parsed);
-  const request = requestFrom(parsed, buildId);
-  await connectBench(service, parsed, buildId);
-  return { buildId, request };
+  try {
+    requestFrom(parsed, 0);
+    checkBenchOptions(service, parsed);
+    const buildId = await resolveBuildId(service, parsed);
+    const request = requestFrom(parsed, buildId);
+    await connectBench(service, parsed, buildId);
+    return { buildId, request };
+  } catch (error) {
+    throw namedForTheCommandLine(error);
+  }
+}
+
+/** The command-line option behind each field of a sweep request, so a refused plan names what the user typed. */
+const OPTION_OF_FIELD: Record<string, string> = {
+  from: '--from',
+  to: '--to',
+  'from/to': '--from/--to',
+  amplitude: '--amplitude',
+  'target output': '--target-output',
+  pointsPerDecade: '--per-decade',
+  minCycles: '--cycles',
+  averages: '--averages',
+};
+
+export function namedForTheCommandLine(error: unknown): unknown {
+  if (!(error instanceof ValidationError)) return error;
+  const option = OPTION_OF_FIELD[error.where];
+  if (option === undefined) return error;
+  return new ValidationError(option, error.message.slice(error.where.length + 2), error.hint);
 }
 
 /** The build to sweep: --build ID, or a new build of --design FILE. */
@@ -156,17 +180,19 @@ export function requestFrom(parsed: ParsedArgs, buildId: number): SweepRequest {
   const cornerTolerance = optionNumber(parsed, 'corner-tolerance');
   if (maxDeviation !== undefined) limits.maxDeviationDb = maxDeviation;
   if (cornerTolerance !== undefined) limits.cornerTolerance = cornerTolerance;
+  const kind = optionFlag(parsed, 'dc') ? 'dc' : 'ac';
+  const range = SWEEP_RANGE_DEFAULTS[kind];
   return {
     buildId,
-    kind: optionFlag(parsed, 'dc') ? 'dc' : 'ac',
-    from: optionNumber(parsed, 'from') ?? 10,
-    to: optionNumber(parsed, 'to') ?? 100_000,
-    pointsPerDecade: optionNumber(parsed, 'per-decade') ?? 10,
+    kind,
+    from: optionNumber(parsed, 'from') ?? range.from,
+    to: optionNumber(parsed, 'to') ?? range.to,
+    pointsPerDecade: optionNumber(parsed, 'per-decade') ?? range.pointsPerDecade,
     spacing: optionFlag(parsed, 'linear') ? 'linear' : 'log',
     amplitude: fixed !== undefined ? { mode: 'fixed', vpp: fixed } : { mode: 'auto', ...(target !== undefined ? { targetOutputVpp: target } : {}) },
     measurement: through ? 'meter' : measure,
-    minCycles: optionNumber(parsed, 'cycles') ?? 5,
-    averages: optionNumber(parsed, 'averages') ?? 1,
+    minCycles: optionNumber(parsed, 'cycles') ?? SWEEP_DEFAULTS.minCycles,
+    averages: optionNumber(parsed, 'averages') ?? SWEEP_DEFAULTS.averages,
     refine: !optionFlag(parsed, 'no-refine') && !through,
     operator: optionString(parsed, 'operator') ?? '',
     notes: optionString(parsed, 'notes') ?? '',

@@ -4,3 +4,4 @@ export * from './settle';
 export * from './amplitude';
 export * from './plan';
 export * from './refine';
+export * from './defaults';

@@ -23,7 +23,9 @@ describe('sweep command errors', () => {
     [['sweep', '--design', design, '--simulated'], /--max-amplitude: is missing/],
     [['sweep', '--design', design, '--max-amplitude', '1'], /--generator: no instruments given/],
     [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--measure', 'probe'], /--measure: "probe" is not scope or meter/],
-    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--from', '1k', '--to', '10'], /from\/to: the range/],
+    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--from', '1k', '--to', '10'], /rolloff sweep: --from\/--to: the range/],
+    // DC defaults are theory --dc's (1 mV to 10 V): 10 V is a 20 Vpp excursion, above 1 Vpp; the error names --to.
+    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--dc'], /rolloff sweep: --to: a DC level of 10 V is a 20 Vpp excursion/],
     [['sweep', '--design', join(folder.path, 'missing.json'), '--simulated', '--max-amplitude', '1'], /--design: cannot read/],
     [['show', 'x1'], /RUN: "x1" is not a run number/],
   ])('%j is refused cleanly', (args, message) => {

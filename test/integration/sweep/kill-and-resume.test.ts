@@ -67,9 +67,11 @@ describe('SIGKILL in the middle of a sweep, then resume', () => {
     const listed = spawnSync(process.execPath, [BIN, 'runs', '--db', dbPath], { encoding: 'utf8' });
     expect(listed.stderr).toMatch(new RegExp(`left running or paused: ${run.id}`));
 
-    const resumed = spawnSync(process.execPath, [BIN, 'resume', String(run.id), '--db', dbPath, '--time-scale', '50'], { encoding: 'utf8', timeout: 60_000 });
+    const resumed = spawnSync(process.execPath, [BIN, 'resume', String(run.id), '--db', dbPath, '--simulated', '--time-scale', '50'], { encoding: 'utf8', timeout: 60_000 });
     expect(resumed.status, resumed.stderr).toBe(0);
     expect(resumed.stderr).toMatch(new RegExp(`run ${run.id} continues at step ${pointsBefore.step.length}`));
+    // resume takes the bench options sweep took, and says where a simulated run continues.
+    expect(resumed.stderr).toMatch(new RegExp(`run ${run.id} was measured on the simulated bench and continues on a fresh simulated bench`));
 
     const after = SqliteStore.open(dbPath, { readonly: true });
     const finished = await after.getRun(run.id);
