@@ -57,6 +57,10 @@ export const InstrumentRoleSchema = oneOf(INSTRUMENT_ROLES);
 
 export interface PortInfo {
   path: string;
+  /** What is behind the path: a serial port, or a USBTMC instrument bound by the kernel's usbtmc driver. */
+  kind?: 'serial' | 'usbtmc';
+  /** The address to connect with, in a form the address parser accepts (a VISA resource string). */
+  address?: string;
   manufacturer?: string;
   serialNumber?: string;
   vendorId?: string;

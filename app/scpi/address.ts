@@ -8,6 +8,8 @@
  *   ASRL3::INSTR                    (serial port number: COM3 on Windows, /dev/ttyS2 elsewhere)
  *   TCPIP::HOST::5025::SOCKET, TCPIP0::HOST::PORT::SOCKET
  *   TCPIP::HOST::INSTR, TCPIP0::HOST::inst1::INSTR   (VXI-11; device name inst0 when absent)
+ *   USB::0x1209::0x0001::SERIAL::INSTR, USB0::0x1209::0x0001::SERIAL   (USBTMC; ids hex 0x… or decimal)
+ *   /dev/usbtmc0                    (short form: a USBTMC device node)
  *   /dev/ttyUSB0, COM3              (short form: a serial device with 9600 8N1)
  *   HOST:PORT                       (short form: a raw socket)
  */
@@ -18,7 +20,10 @@ export type InstrumentAddress =
   | { kind: 'serial'; serial: SerialSettings }
   | { kind: 'tcp'; host: string; port: number }
   /** VXI-11 core channel, found through the host's portmapper; `device` is the link's device name (inst0, …). */
-  | { kind: 'vxi11'; host: string; device: string };
+  | { kind: 'vxi11'; host: string; device: string }
+  /** USBTMC through the kernel driver: by USB identity (lower-case 4-digit hex, as sysfs writes it) or by device node. */
+  | { kind: 'usbtmc'; vendorId: string; productId: string; serial?: string }
+  | { kind: 'usbtmc-node'; devicePath: string };
 
 export const DEFAULT_TCP_PORT = 5025;
 /** The device name a VISA TCPIP…::INSTR resource means when it names none. */
@@ -39,6 +44,8 @@ export function parseAddress(text: string): InstrumentAddress {
   if (/^tcp:/i.test(address)) return parseTcpUrl(address);
   if (/^ASRL/i.test(address)) return parseVisaSerial(address);
   if (/^TCPIP\d*::/i.test(address)) return parseVisaTcp(address);
+  if (/^USB\d*::/i.test(address)) return parseVisaUsb(address);
+  if (/^\/dev\/usbtmc\d+$/.test(address)) return { kind: 'usbtmc-node', devicePath: address };
   if (/^\/dev\/\S+$/.test(address) || /^COM\d+$/i.test(address)) return { kind: 'serial', serial: { path: address, ...DEFAULT_SERIAL } };
   const hostPort = /^(\[[^\]]+\]|[A-Za-z0-9][A-Za-z0-9.-]*):(\d+)$/.exec(address);
   if (hostPort) return { kind: 'tcp', host: hostPort[1].replace(/^\[|\]$/g, ''), port: parsePort(address, hostPort[2]) };
@@ -48,6 +55,8 @@ export function parseAddress(text: string): InstrumentAddress {
 /** Canonical URL form, used in logs, the store and the traffic console. */
 export function formatAddress(address: InstrumentAddress): string {
   if (address.kind === 'vxi11') return `TCPIP::${address.host}::${address.device}::INSTR`;
+  if (address.kind === 'usbtmc') return `USB0::0x${address.vendorId.toUpperCase()}::0x${address.productId.toUpperCase()}::${address.serial ?? ''}::INSTR`;
+  if (address.kind === 'usbtmc-node') return address.devicePath;
   if (address.kind === 'tcp') return `tcp://${address.host.includes(':') ? `[${address.host}]` : address.host}:${address.port}`;
   const s = address.serial;
   return `serial://${s.path}?baud=${s.baudRate}&data=${s.dataBits}&parity=${s.parity}&stop=${s.stopBits}&flow=${s.flow}`;
@@ -128,6 +137,24 @@ function parseVisaTcp(address: string): InstrumentAddress {
     return { kind: 'vxi11', host: parts[1], device };
   }
   throw new AddressError(address, 'a VISA TCP resource looks like TCPIP::HOST::INSTR, TCPIP::HOST::inst0::INSTR or TCPIP::HOST::5025::SOCKET');
+}
+
+function parseVisaUsb(address: string): InstrumentAddress {
+  const parts = address.split('::');
+  if (/^INSTR$/i.test(parts[parts.length - 1])) parts.pop();
+  if (parts.length < 3 || parts.length > 5) throw new AddressError(address, 'a VISA USB resource looks like USB0::0x1209::0x0001::SERIAL::INSTR');
+  if (parts.length === 5) throw new AddressError(address, 'a USB interface number is not supported: the kernel driver gives each USBTMC interface its own node; use that node (/dev/usbtmcN)');
+  const vendorId = usbId(address, parts[1], 'vendor');
+  const productId = usbId(address, parts[2], 'product');
+  const serial = parts[3];
+  return { kind: 'usbtmc', vendorId, productId, ...(serial ? { serial } : {}) };
+}
+
+/** A 16-bit USB id written 0xVVVV or in decimal, as 4 lower-case hex digits (sysfs idVendor form). */
+function usbId(address: string, text: string, what: string): string {
+  const value = /^0x[0-9a-f]{1,4}$/i.test(text) ? parseInt(text.slice(2), 16) : /^\d{1,5}$/.test(text) ? Number(text) : NaN;
+  if (!Number.isInteger(value) || value < 0 || value > 0xffff) throw new AddressError(address, `"${text}" is not a USB ${what} id (0x0000–0xFFFF)`);
+  return value.toString(16).padStart(4, '0');
 }
 
 function parsePort(address: string, text: string | undefined): number {

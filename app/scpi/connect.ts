@@ -20,6 +20,7 @@ export async function connect(address: string | InstrumentAddress, options: Sess
   try {
     await transport.open();
   } catch (error) {
+    if (error instanceof ScpiError) throw error; // named by the transport with its own advice (a USBTMC permission, a VXI-11 refusal)
     throw new ConnectError(formatAddress(parsed), (error as Error).message ?? String(error));
   }
   return new ScpiSession(transport, options);

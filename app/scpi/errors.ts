@@ -73,7 +73,7 @@ export class AddressError extends ScpiError {
       `address "${address}": ${problem}`,
       'Accepted forms: serial:///dev/ttyUSB0?baud=9600&data=8&parity=none&stop=1&flow=none, /dev/ttyUSB0, ' +
         'tcp://HOST:5025, HOST:PORT, ASRL/dev/ttyUSB0::INSTR, ASRL3::INSTR, TCPIP::HOST::5025::SOCKET, TCPIP0::HOST::PORT::SOCKET, ' +
-        'TCPIP::HOST::INSTR, TCPIP0::HOST::inst0::INSTR (VXI-11).',
+        'TCPIP::HOST::INSTR, TCPIP0::HOST::inst0::INSTR (VXI-11), USB0::0xVVVV::0xPPPP::SERIAL::INSTR, /dev/usbtmc0 (USBTMC).',
     );
     this.address = address;
   }

@@ -13,6 +13,8 @@ export * from './memory-transport';
 export * from './tcp-transport';
 export * from './serial-transport';
 export * from './vxi11/vxi11-transport';
+export * from './usbtmc/usbtmc-transport';
+export * from './usbtmc/usbtmc-errors';
 export * from './open-transport';
 export * from './connect';
 export * from './ports';

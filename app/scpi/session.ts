@@ -11,6 +11,7 @@ import { ScpiDisconnectedError, ScpiError, ScpiInstrumentError, ScpiMalformedRep
 import { parseIdentity } from './identity';
 import { parseReading, type Reading } from './reading';
 import { frameReply, frameResponseUnits, preview, type ResponseUnit } from './reply-framer';
+import { OperationQueue } from './operation-queue';
 import { TrafficLog } from './traffic-log';
 import type { Transport } from './transport';
 
@@ -49,7 +50,7 @@ export class ScpiSession {
   private readonly maxErrorReads: number;
   private buffer: Uint8Array = new Uint8Array(0);
   private pending: PendingReply | undefined;
-  private queue: Promise<unknown> = Promise.resolve();
+  private readonly queue = new OperationQueue();
   private closedReason: string | undefined;
 
   constructor(
@@ -186,9 +187,7 @@ export class ScpiSession {
   }
 
   private enqueue<T>(operation: () => Promise<T>): Promise<T> {
-    const result = this.queue.then(operation, operation);
-    this.queue = result.catch(() => undefined);
-    return result;
+    return this.queue.run(operation);
   }
 
   /** `reply`: the command is a query; a message-based transport then reads its response within timeoutS. */

@@ -132,7 +132,7 @@ export class BenchView implements View {
     showPartResult(this.profilesFailure, 'The instrument profiles', profiles);
     showPartResult(this.designsFailure, 'The saved designs', designs);
     if (ports.status === 'fulfilled') {
-      replaceChildren(this.portList, ports.value.ports.map((port) => h('option', { value: port.path }, [port.manufacturer, port.serialNumber].filter(Boolean).join(' '))));
+      replaceChildren(this.portList, ports.value.ports.map((port) => h('option', { value: port.address ?? port.path }, [port.kind === 'usbtmc' ? 'USBTMC' : port.path, port.manufacturer, port.serialNumber].filter(Boolean).join(' '))));
       this.portsNote.textContent = ports.value.incomplete ?? '';
       this.portsNote.hidden = !ports.value.incomplete;
     }

@@ -46,7 +46,7 @@ describe.skipIf(!requireTool('chromium'))('the Bench view without udevadm, with 
   });
 
   it('lists the kernel\'s ports and says in one line what it could not learn', async () => {
-    await expect.poll(() => page.locator('#port-list option').evaluateAll((options) => options.map((o) => (o as HTMLOptionElement).value))).toEqual(['/dev/ttyACM0', '/dev/ttyS0', '/dev/ttyUSB0']);
+    await expect.poll(() => page.locator('#port-list option').evaluateAll((options) => options.map((o) => (o as HTMLOptionElement).value))).toEqual(['ASRL/dev/ttyACM0::INSTR', 'ASRL/dev/ttyS0::INSTR', 'ASRL/dev/ttyUSB0::INSTR', 'USB0::0x1209::0x0003::TEST-TMC-9::INSTR']);
     await expect.poll(() => page.getByTestId('ports-note').textContent()).toMatch(/^udevadm not found, so ports were read from the kernel/);
     expect(await page.getByTestId('ports-failure').isVisible()).toBe(false);
   });

@@ -70,7 +70,9 @@ export class FakeSysfs {
  * usb-serial port folder), a USB CDC-ACM instrument (ttyACM0, on the
  * interface), a motherboard UART (ttyS0, type 4 = 16550A), an empty UART slot
  * (ttyS1, type 0 = PORT_UNKNOWN, include/uapi/linux/serial_core.h) and a
- * virtual console (tty0, no device). Identities are invented test values
+ * virtual console (tty0, no device) and a USBTMC instrument (usbtmc0 under
+ * class usbmisc, on its USB interface; major 180, minor 176 = USBTMC_MINOR_BASE
+ * in drivers/usb/class/usbtmc.c). Identities are invented test values
  * (vendor 1209 is the open pid.codes block).
  */
 export function portsTestTree(): FakeSysfs {
@@ -84,5 +86,8 @@ export function portsTestTree(): FakeSysfs {
   sysfs.classEntry('tty', 'ttyS0', sysfs.platformDevice('00:00'), { type: '4' });
   sysfs.classEntry('tty', 'ttyS1', sysfs.platformDevice('serial8250'), { type: '0' });
   sysfs.classEntry('tty', 'tty0', undefined);
+  // A USBTMC instrument bound by the kernel's usbtmc driver: class usbmisc, `device` → the USB interface.
+  const tmc = sysfs.usbDevice({ busPath: '1-4', vendorId: '1209', productId: '0003', serial: 'TEST-TMC-9', manufacturer: 'Invented Test Fixture' });
+  sysfs.classEntry('usbmisc', 'usbtmc0', sysfs.usbInterface(tmc), { dev: '180:176' });
   return sysfs;
 }

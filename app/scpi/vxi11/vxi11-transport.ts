@@ -10,6 +10,7 @@
  * terminator is NL^END; recalled from memory).
  */
 import { ScpiDisconnectedError, ScpiError, ScpiTimeoutError } from '../errors';
+import { OperationQueue } from '../operation-queue';
 import { TransportListeners, type Transport, type WriteOptions } from '../transport';
 import { Reason } from './protocol';
 import { RpcConnectionError, RpcTimeoutError } from './rpc-client';
@@ -29,7 +30,7 @@ export class Vxi11Transport extends TransportListeners implements Transport {
   readonly description: string;
   private link: Vxi11Link | undefined;
   /** Operations on the link run one after another, as on the instrument (§B.4: one operation per link at a time). */
-  private chain: Promise<unknown> = Promise.resolve();
+  private readonly operations = new OperationQueue();
   /** device_read calls made so far (the benchmark and tests count them). */
   deviceReadCalls = 0;
 
@@ -58,11 +59,11 @@ export class Vxi11Transport extends TransportListeners implements Transport {
     const link = this.link;
     if (!link || !this.isOpen) return Promise.reject(new Error('connection is not open'));
     const command = describeCommand(bytes);
-    const written = this.serially(() => this.writeMessage(link, bytes, command));
+    const written = this.operations.run(() => this.writeMessage(link, bytes, command));
     if (options.replyExpected) {
       const timeoutS = options.timeoutS ?? this.settings.ioTimeoutS ?? 5;
       // No read after a failed write: the instrument has no query to answer, and the write's own error reaches the session.
-      this.serially(async () => {
+      this.operations.run(async () => {
         if (await written.then(() => true, () => false)) await this.readMessage(link, timeoutS, command);
       }).catch((error: Error) => this.emitFailure(this.named(error, command)));
     }
@@ -74,22 +75,22 @@ export class Vxi11Transport extends TransportListeners implements Transport {
   /** device_clear: the instrument drops input it has not executed and output not yet read. */
   clear(timeoutS = 5): Promise<void> {
     const link = this.requireLink();
-    return this.serially(() => link.clear(timeoutS));
+    return this.operations.run(() => link.clear(timeoutS));
   }
 
   readStatusByte(timeoutS = 5): Promise<number> {
     const link = this.requireLink();
-    return this.serially(() => link.readStatusByte(timeoutS));
+    return this.operations.run(() => link.readStatusByte(timeoutS));
   }
 
   lock(lockTimeoutS?: number): Promise<void> {
     const link = this.requireLink();
-    return this.serially(() => link.lock(lockTimeoutS));
+    return this.operations.run(() => link.lock(lockTimeoutS));
   }
 
   unlock(): Promise<void> {
     const link = this.requireLink();
-    return this.serially(() => link.unlock());
+    return this.operations.run(() => link.unlock());
   }
 
   async close(): Promise<void> {
@@ -127,11 +128,6 @@ export class Vxi11Transport extends TransportListeners implements Transport {
     if (last !== LF) this.emitData(Uint8Array.of(LF));
   }
 
-  private serially<T>(operation: () => Promise<T>): Promise<T> {
-    const result = this.chain.then(operation, operation);
-    this.chain = result.catch(() => undefined);
-    return result;
-  }
 
   private requireLink(): Vxi11Link {
     if (!this.link || !this.isOpen) throw new ScpiDisconnectedError(this.description, 'connection is not open');

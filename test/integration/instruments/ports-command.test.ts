@@ -11,6 +11,7 @@ import { join, resolve } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { portsTestTree } from '../../helpers/fake-sysfs';
 import { pathWithout } from '../../helpers/required-tool';
+import { parseAddress } from '../../../app/scpi/address';
 
 const ROOT = resolve(__dirname, '../../..');
 const BIN = join(ROOT, 'app/cli/bin.mjs');
@@ -33,21 +34,31 @@ describe('rolloff ports without udevadm', () => {
     expect(result.stderr).toBe('');
     expect(result.status).toBe(0);
     const lines = result.stdout.trimEnd().split('\n');
-    expect(lines[0]).toMatch(/^PATH\s+USB VID:PID\s+SERIAL NUMBER\s+MANUFACTURER$/);
-    expect(lines.slice(1, 4).map((line) => line.split(/\s{2,}/))).toEqual([
-      ['/dev/ttyACM0', '1209:0002', 'TEST-INSTRUMENT-42', '-'],
-      ['/dev/ttyS0', '-', '-', '-'],
-      ['/dev/ttyUSB0', '1209:0001', 'TEST-ADAPTER-7', 'Invented Test Fixture'],
+    expect(lines[0]).toMatch(/^PATH\s+USB VID:PID\s+SERIAL NUMBER\s+MANUFACTURER\s+ADDRESS$/);
+    expect(lines.slice(1, 5).map((line) => line.split(/\s{2,}/))).toEqual([
+      ['/dev/ttyACM0', '1209:0002', 'TEST-INSTRUMENT-42', '-', 'ASRL/dev/ttyACM0::INSTR'],
+      ['/dev/ttyS0', '-', '-', '-', 'ASRL/dev/ttyS0::INSTR'],
+      ['/dev/ttyUSB0', '1209:0001', 'TEST-ADAPTER-7', 'Invented Test Fixture', 'ASRL/dev/ttyUSB0::INSTR'],
+      // USBTMC beside the serial ports, with the resource string that finds it by USB identity.
+      ['/dev/usbtmc0', '1209:0003', 'TEST-TMC-9', 'Invented Test Fixture', 'USB0::0x1209::0x0003::TEST-TMC-9::INSTR'],
     ]);
-    expect(lines).toHaveLength(5);
-    expect(lines[4]).toMatch(/^Note: udevadm not found, so ports were read from the kernel/);
+    expect(lines).toHaveLength(6);
+    expect(lines[5]).toMatch(/^Note: udevadm not found, so ports were read from the kernel/);
   });
 
   it('--json carries the same ports and the note', () => {
     const result = ports({ ROLLOFF_SYSFS_ROOT: sysfs.root }, '--json');
     expect(result.status).toBe(0);
-    const listing = JSON.parse(result.stdout) as { ports: Array<{ path: string }>; incomplete: string };
-    expect(listing.ports.map((p) => p.path)).toEqual(['/dev/ttyACM0', '/dev/ttyS0', '/dev/ttyUSB0']);
+    const listing = JSON.parse(result.stdout) as { ports: Array<{ path: string; kind: string; address: string }>; incomplete: string };
+    expect(listing.ports.map((p) => p.path)).toEqual(['/dev/ttyACM0', '/dev/ttyS0', '/dev/ttyUSB0', '/dev/usbtmc0']);
+    expect(listing.ports.map((p) => p.kind)).toEqual(['serial', 'serial', 'serial', 'usbtmc']);
+    // Every listed address is one the address parser accepts, naming the same device.
+    expect(listing.ports.map((p) => parseAddress(p.address))).toEqual([
+      { kind: 'serial', serial: expect.objectContaining({ path: '/dev/ttyACM0' }) },
+      { kind: 'serial', serial: expect.objectContaining({ path: '/dev/ttyS0' }) },
+      { kind: 'serial', serial: expect.objectContaining({ path: '/dev/ttyUSB0' }) },
+      { kind: 'usbtmc', vendorId: '1209', productId: '0003', serial: 'TEST-TMC-9' },
+    ]);
     expect(listing.incomplete).toMatch(/udevadm not found/);
   });
 
@@ -55,7 +66,7 @@ describe('rolloff ports without udevadm', () => {
     const result = ports({});
     expect(result.status).toBe(0);
     expect(`${result.stdout}${result.stderr}`).not.toMatch(/internal error|ENOENT/);
-    expect(result.stdout).toMatch(/^(PATH|No serial ports found)/);
+    expect(result.stdout).toMatch(/^(PATH|No serial ports or USBTMC instruments found)/);
     expect(result.stdout).toMatch(/\nNote: udevadm not found/);
   });
 
@@ -72,7 +83,7 @@ describe('rolloff ports without udevadm', () => {
   it('with no readable tree it says there are none and why', () => {
     const result = ports({ ROLLOFF_SYSFS_ROOT: join(sysfs.root, 'missing') });
     expect(result.status).toBe(0);
-    expect(result.stdout).toMatch(/^No serial ports found\./);
+    expect(result.stdout).toMatch(/^No serial ports or USBTMC instruments found\./);
     expect(result.stdout).toMatch(/Note: .*could not read .*class\/tty \(ENOENT\)/);
   });
 });

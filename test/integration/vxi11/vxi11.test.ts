@@ -13,7 +13,7 @@ import { execFile } from 'node:child_process';
 import { join } from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { connect, ConnectError, ScpiDisconnectedError, ScpiLinkError, ScpiLockedError, ScpiSession, ScpiTimeoutError, Vxi11Transport } from '../../../app/scpi';
+import { connect, ScpiDisconnectedError, ScpiLinkError, ScpiLockedError, ScpiSession, ScpiTimeoutError, Vxi11Transport } from '../../../app/scpi';
 import { Vxi11Link } from '../../../app/scpi/vxi11/vxi11-client';
 import { getPort } from '../../../app/scpi/vxi11/portmapper';
 import { DEVICE_CORE_PROGRAM, DEVICE_CORE_VERSION } from '../../../app/scpi/vxi11/protocol';
@@ -180,10 +180,11 @@ describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () 
     await holder.close();
   }, 20_000);
 
-  it('an unknown device name is refused at create_link (VXI-11 error 3), as a connect error', async () => {
+  it('an unknown device name is refused at create_link with VXI-11 error 3, named', async () => {
     const error = await connect('TCPIP::127.0.0.1::inst9::INSTR').catch((e: unknown) => e);
-    expect(error).toBeInstanceOf(ConnectError);
-    expect((error as Error).message).toMatch(/error 3 \(device not accessible\)/);
+    expect(error).toBeInstanceOf(ScpiLinkError);
+    expect((error as ScpiLinkError).code).toBe(3);
+    expect((error as Error).message).toMatch(/create_link to "inst9" failed: VXI-11 error 3 \(device not accessible\)/);
   });
 });
 

@@ -40,6 +40,12 @@ describe('parseAddress', () => {
     expect(parseAddress('tcpip::localhost::gpib0,5::instr')).toEqual({ kind: 'vxi11', host: 'localhost', device: 'gpib0,5' });
   });
 
+  it('reads VISA USB resources (USBTMC): ids in hex or decimal, INSTR optional, serial number kept as written', () => {
+    expect(parseAddress('USB0::0x1209::0x0003::TEST-TMC-9::INSTR')).toEqual({ kind: 'usbtmc', vendorId: '1209', productId: '0003', serial: 'TEST-TMC-9' });
+    expect(parseAddress('usb::4617::3::ab12')).toEqual({ kind: 'usbtmc', vendorId: '1209', productId: '0003', serial: 'ab12' });
+    expect(parseAddress('/dev/usbtmc2')).toEqual({ kind: 'usbtmc-node', devicePath: '/dev/usbtmc2' });
+  });
+
   it('reads the short forms the Bench view suggests: a device path and HOST:PORT', () => {
     expect(parseAddress('/dev/ttyUSB0')).toEqual({ kind: 'serial', serial: { path: '/dev/ttyUSB0', baudRate: 9600, dataBits: 8, parity: 'none', stopBits: 1, flow: 'none' } });
     expect(parseAddress('127.0.0.1:5025')).toEqual({ kind: 'tcp', host: '127.0.0.1', port: 5025 });
@@ -47,7 +53,7 @@ describe('parseAddress', () => {
   });
 
   it('round-trips through the canonical form', () => {
-    for (const text of ['serial:///dev/ttyUSB0?baud=115200', 'tcp://127.0.0.1:5025', 'TCPIP::127.0.0.1::inst1::INSTR']) {
+    for (const text of ['serial:///dev/ttyUSB0?baud=115200', 'tcp://127.0.0.1:5025', 'TCPIP::127.0.0.1::inst1::INSTR', 'USB0::0x1209::0x00AB::S1::INSTR', '/dev/usbtmc0']) {
       const parsed = parseAddress(text);
       expect(parseAddress(formatAddress(parsed))).toEqual(parsed);
     }
@@ -64,6 +70,9 @@ describe('parseAddress', () => {
     ['TCPIP::127.0.0.1::in st0::INSTR', /not a VXI-11 device name/],
     ['TCPIP::127.0.0.1', /TCPIP::HOST::INSTR/],
     ['127.0.0.1:70000', /port/],
+    ['USB0::0x12345::0x0001::S::INSTR', /not a USB vendor id/],
+    ['USB0::0x1209::0x0001::S::0::INSTR', /interface number/],
+    ['USB0::0x1209::INSTR', /looks like USB0::/],
     ['ASRL0::INSTR', /start at 1/],
   ])('refuses %j with an AddressError listing the accepted forms', (text, pattern) => {
     let caught: unknown;
@@ -76,5 +85,6 @@ describe('parseAddress', () => {
     expect((caught as AddressError).message).toMatch(pattern);
     expect((caught as AddressError).hint).toMatch(/TCPIP::HOST::5025::SOCKET/);
     expect((caught as AddressError).hint).toMatch(/TCPIP::HOST::INSTR/);
+    expect((caught as AddressError).hint).toMatch(/USB0::0xVVVV::0xPPPP::SERIAL::INSTR/);
   });
 });

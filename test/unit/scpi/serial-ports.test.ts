@@ -25,7 +25,7 @@ describe('serial ports from sysfs', () => {
 
   it('says udevadm was missing and what that costs, in one line', async () => {
     const listing = await listPorts({ sysfsRoot: sysfs.root, platform: 'linux', searchPath: '/nonexistent-folder' });
-    expect(listing.ports.map((p) => p.path)).toEqual(['/dev/ttyACM0', '/dev/ttyS0', '/dev/ttyUSB0']);
+    expect(listing.ports.map((p) => p.path)).toEqual(['/dev/ttyACM0', '/dev/ttyS0', '/dev/ttyUSB0', '/dev/usbtmc0']);
     expect(listing.incomplete).toMatch(/^udevadm not found, so ports were read from the kernel .*by-id.*\.$/);
     expect(listing.incomplete).not.toContain('\n');
   });
