@@ -4,7 +4,7 @@
  * what it stored, and the password (in the address) appears in no output.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
+import { spawn, spawnSync } from 'node:child_process';
 import { join, resolve } from 'node:path';
 import { PostgresStore } from '../../../app/store/postgres/postgres-store';
 import { postgresAvailable, startPostgresCluster, type PostgresCluster } from '../../helpers/postgres-cluster';
@@ -37,6 +37,35 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
         expect(run.status).toBe('done');
         expect(run.pointCount).toBe((await store.loadPoints(run.id)).step.length);
         expect(runs.stdout).toContain(run.buildLabel);
+      }
+      expect(await store.integrityProblems()).toEqual([]);
+    } finally {
+      await store.close();
+    }
+  });
+
+  it('two processes sweeping into one new lab database at once both complete, every step stored once', async () => {
+    const url = cluster.createDatabase('two_benches').replace(`${cluster.role}@`, `${cluster.role}:${encodeURIComponent(cluster.password)}@`);
+    const run = () =>
+      new Promise<{ status: number | null; stderr: string }>((resolve) => {
+        const child = spawn(process.execPath, [BIN, 'demo', '--fast', '--db', url], { stdio: ['ignore', 'ignore', 'pipe'] });
+        let stderr = '';
+        child.stderr.on('data', (chunk) => (stderr += chunk));
+        child.on('close', (status) => resolve({ status, stderr }));
+      });
+    // Both open the empty database at the same moment: one migrates under the advisory lock, the other waits.
+    const results = await Promise.all([run(), run()]);
+    for (const result of results) expect(result.status, result.stderr).toBe(0);
+    const store = await PostgresStore.open(url);
+    try {
+      const runs = await store.listRuns();
+      expect(runs).toHaveLength(4); // the demo sweeps two builds; two processes
+      for (const summary of runs) {
+        expect(summary.status).toBe('done');
+        const steps = (await store.loadPoints(summary.id)).step;
+        expect(steps).toEqual(Array.from({ length: steps.length }, (_, i) => i)); // each step once, none missing
+        expect(summary.pointCount).toBe(steps.length);
+        expect(steps.length).toBeGreaterThan(10);
       }
       expect(await store.integrityProblems()).toEqual([]);
     } finally {
