@@ -13,3 +13,4 @@ export * from './scope';
 export * from './waveform-decode';
 export * from './open-instrument';
 export * from './profile-check';
+export * from './bench-name';

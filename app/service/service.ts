@@ -5,7 +5,7 @@
  */
 import { UserError, ValidationError } from '../errors';
 import { identityKey, type RolloffStore, type StoredRun } from '../store';
-import { openInstrument, builtInProfiles, checkProfile, loadProfiles, realClock, DEFAULT_PROFILE_ID, type BenchClock, type OpenedInstrument, type ProfileFor } from '../bench';
+import { openInstrument, builtInProfiles, checkProfile, loadProfiles, realClock, DEFAULT_PROFILE_ID, resolveBenchName, type BenchClock, type OpenedInstrument, type ProfileFor } from '../bench';
 import { TrafficLog } from '../scpi/traffic-log';
 import { listPorts } from '../scpi/ports';
 import { type Design, parseDesign, solveAc, TEMPLATES, makeDesignFromTemplate, withActualValues, throughDesign } from '../circuit';
@@ -47,6 +47,8 @@ export interface RolloffServiceOptions {
   meterIntegrationS?: number;
   /** Largest number of refinement points added after the coarse pass. Default 8. */
   maxRefinementPoints?: number;
+  /** This bench's name, recorded with each run (default: ROLLOFF_BENCH or the host name, app/bench/bench-name.ts). */
+  benchName?: string;
 }
 
 /** What a schedule produced: its runs and how their figures drifted. */
@@ -286,6 +288,7 @@ export class RolloffService implements RolloffApi {
       notes: request.notes,
       simulated: this.instrumentInfos().some((i) => i.simulated),
       scheduleId: extra.scheduleId ?? null,
+      benchName: this.options.benchName ?? resolveBenchName(undefined),
     });
     for (const warning of plan.warnings) await this.logRunEvent(run.id, 'warning', `plan: ${warning}`);
     await this.launch(run.id);

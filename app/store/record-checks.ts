@@ -5,6 +5,7 @@
  */
 import { ValidationError } from '../errors';
 import { RUN_STATUSES, type RunEvent, type RunStatus } from '../contract/contract';
+import { checkBenchName } from '../bench/bench-name';
 import type { BenchSettingsInput, NewCalibration, NewPoint, NewSchedule, RunFilter } from './types';
 
 /** The one list of run states lives in the contract; re-exported for the store's checks. */
@@ -65,6 +66,11 @@ export function checkActualValues(actualValues: Record<string, number> | undefin
   return actualValues ?? {};
 }
 
+/** The run's bench name: '' (not known) or a name as checkBenchName allows. */
+export function checkRunBenchName(name: string | undefined): string {
+  return name === undefined || name === '' ? '' : checkBenchName(requireText(name, 'run.benchName'), 'run.benchName');
+}
+
 export function checkRunKind(kind: unknown): 'ac' | 'dc' {
   if (kind !== 'ac' && kind !== 'dc') throw new ValidationError('run.kind', `"${String(kind)}" is not ac or dc`);
   return kind;
@@ -82,6 +88,8 @@ export interface CheckedRunFilter {
   buildId: number | null;
   /** A LIKE pattern (see likePattern), or null for no text filter. */
   search: string | null;
+  /** Exact bench name, or null for every bench. */
+  bench: string | null;
   limit: number;
 }
 
@@ -91,7 +99,8 @@ export function checkRunFilter(filter: RunFilter): CheckedRunFilter {
   if (!Number.isInteger(limit) || limit <= 0) throw new ValidationError('filter.limit', `${limit} is not a positive whole number`);
   const search = filter.search?.trim() ? likePattern(filter.search.trim()) : null;
   const buildId = filter.buildId === undefined ? null : requireId(filter.buildId, 'filter.buildId');
-  return { status, buildId, search, limit };
+  const bench = filter.bench === undefined ? null : requireText(filter.bench, 'filter.bench').trim();
+  return { status, buildId, search, bench, limit };
 }
 
 export function checkPoint(point: NewPoint, where: string): void {

@@ -40,6 +40,7 @@ import {
   checkEventLevel,
   checkPoint,
   checkRunFilter,
+  checkRunBenchName,
   checkRunKind,
   checkRunStatus,
   checkSchedule,
@@ -220,8 +221,8 @@ export class SqliteStore implements RolloffStore {
       getInstrument: db.prepare('SELECT * FROM instruments WHERE identity_text = ? AND address = ?'),
       listInstruments: db.prepare('SELECT * FROM instruments ORDER BY last_seen_at DESC, id DESC'),
       insertRun: db.prepare(`INSERT INTO runs (build_id, kind, request_json, planned_count, status, created_at,
-        software_version, bench_json, operator, notes, simulated, schedule_id)
-        VALUES (?, ?, ?, ?, 'planned', ?, ?, ?, ?, ?, ?, ?)`),
+        software_version, bench_json, operator, notes, simulated, schedule_id, bench_name)
+        VALUES (?, ?, ?, ?, 'planned', ?, ?, ?, ?, ?, ?, ?, ?)`),
       insertPlan: db.prepare('INSERT INTO run_plans (run_id, plan_json) VALUES (?, ?)'),
       setStatus: db.prepare(`UPDATE runs SET status = @status,
         started_at = CASE WHEN @status = 'running' THEN COALESCE(started_at, @at) ELSE started_at END,
@@ -235,6 +236,7 @@ export class SqliteStore implements RolloffStore {
         r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated
         FROM runs r JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id
         WHERE (@status IS NULL OR r.status = @status) AND (@buildId IS NULL OR r.build_id = @buildId)
+          AND (@bench IS NULL OR r.bench_name = @bench)
           AND (@search IS NULL OR b.label LIKE @search ESCAPE '\\' OR d.name LIKE @search ESCAPE '\\' OR r.notes LIKE @search ESCAPE '\\')
         ORDER BY r.id DESC LIMIT @limit`),
       interruptedRuns: db.prepare(`SELECT r.id FROM runs r WHERE r.status IN ('running', 'paused') ORDER BY r.id`),
@@ -379,6 +381,7 @@ export class SqliteStore implements RolloffStore {
       requireText(input.notes ?? '', 'run.notes'),
       input.simulated ? 1 : 0,
       input.scheduleId ?? null,
+      checkRunBenchName(input.benchName),
     );
     const id = Number(result.lastInsertRowid);
     this.statements.insertPlan.run(id, planJson);
@@ -415,8 +418,8 @@ export class SqliteStore implements RolloffStore {
 
   /** Newest first. */
   async listRuns(filter: RunFilter = {}): Promise<RunSummary[]> {
-    const { status, buildId, search, limit } = checkRunFilter(filter);
-    const rows = this.guard(() => this.statements.listRuns.all({ status, buildId, search, limit }) as Row[]);
+    const { status, buildId, search, bench, limit } = checkRunFilter(filter);
+    const rows = this.guard(() => this.statements.listRuns.all({ status, buildId, search, bench, limit }) as Row[]);
     return rows.map(summaryFromRow);
   }
 
@@ -687,6 +690,7 @@ function storedRunFromRow(row: Row): StoredRun {
     operator: row.operator as string,
     notes: row.notes as string,
     scheduleId: (row.schedule_id as number | null) ?? null,
+    benchName: row.bench_name as string,
     createdAt: row.created_at as string,
     figures: row.figures_json === null ? null : JSON.parse(row.figures_json as string),
     verdict: row.verdict_json === null ? null : JSON.parse(row.verdict_json as string),

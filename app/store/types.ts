@@ -26,6 +26,8 @@ export interface NewRun {
   notes: string;
   simulated: boolean;
   scheduleId?: number | null;
+  /** The bench that drives the run (app/bench/bench-name.ts); '' when not known. */
+  benchName?: string;
 }
 
 /** A run as stored: the summary plus what was asked, planned and found. */
@@ -37,6 +39,8 @@ export interface StoredRun extends RunSummary {
   operator: string;
   notes: string;
   scheduleId: number | null;
+  /** The bench that drove the run; '' for runs stored before benches had names. */
+  benchName: string;
   createdAt: string;
   figures: RunFigures | null;
   verdict: Verdict | null;
@@ -47,6 +51,8 @@ export interface RunFilter {
   search?: string;
   status?: RunStatus;
   buildId?: number;
+  /** Only runs of this bench (exact name). */
+  bench?: string;
   /** Newest first; default 200. */
   limit?: number;
 }

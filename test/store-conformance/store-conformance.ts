@@ -235,6 +235,23 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
     },
   },
   {
+    name: 'records the bench that drove each run and lists the runs of one bench',
+    async run(open) {
+      const store = await open();
+      const { build, run: unnamed } = await seedRun(store);
+      const three = await store.createRun(newRun(build.id, { benchName: ' bench 3 ' }));
+      const seven = await store.createRun(newRun(build.id, { benchName: 'bench 7' }));
+      expect(unnamed.benchName).toBe(''); // not known: stored before benches had names, or by a caller that does not say
+      expect(three.benchName).toBe('bench 3');
+      expect((await store.getRun(seven.id)).benchName).toBe('bench 7');
+      expect((await store.listRuns({ bench: 'bench 3' })).map((r) => r.id)).toEqual([three.id]);
+      expect((await store.listRuns({ bench: 'bench' })).map((r) => r.id)).toEqual([]); // exact name, not a substring
+      expect(await store.listRuns()).toHaveLength(3);
+      await expect(store.createRun(newRun(build.id, { benchName: 'x'.repeat(65) }))).rejects.toThrow(/run.benchName/);
+      await expect(store.createRun(newRun(build.id, { benchName: 'bench\u00073' }))).rejects.toThrow(/control characters/);
+    },
+  },
+  {
     name: 'keeps settings per bench, replaced whole on save',
     async run(open) {
       const store = await open({ now: () => '2026-03-04T05:06:07.000Z' });

@@ -11,11 +11,11 @@ import type { RolloffService } from '../../service/service';
 import { openServiceAt } from '../../service/open-service';
 import type { SweepRequest, VerdictLimits } from '../../contract/contract';
 import { resolveDatabasePath } from '../../store';
-import { DEFAULT_PROFILE_ID } from '../../bench';
+import { DEFAULT_PROFILE_ID, resolveBenchName } from '../../bench';
 import { parseEngineering } from '../../units';
 import { SWEEP_DEFAULTS, SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
 
-export const DATABASE_OPTION: OptionSpec = { name: 'db', kind: 'string', placeholder: 'PATH', description: 'database file (default: ROLLOFF_DB or the user data folder)' };
+export const DATABASE_OPTION: OptionSpec = { name: 'db', kind: 'string', placeholder: 'PATH|URL', description: 'database file, or a lab store postgres://USER@HOST:PORT/DATABASE (default: ROLLOFF_DB or the user data folder)' };
 
 export const BENCH_OPTIONS: OptionSpec[] = [
   { name: 'simulated', kind: 'flag', aliases: ['virtual'], description: 'use the simulated bench (simulated instruments on 127.0.0.1) with the build\'s circuit' },
@@ -29,6 +29,7 @@ export const BENCH_OPTIONS: OptionSpec[] = [
   { name: 'meter-profile', kind: 'string', placeholder: 'ID', description: 'meter profile', defaultValue: DEFAULT_PROFILE_ID.meter },
   { name: 'give-up', kind: 'number', placeholder: 'S', description: 'mark the run failed (points kept) when the instruments stay unreachable this long', defaultValue: 120 },
   { name: 'max-amplitude', kind: 'number', placeholder: 'VPP', description: 'largest generator output ever used, peak-to-peak (required once; later runs reuse the last one recorded)' },
+  { name: 'bench', kind: 'string', placeholder: 'NAME', description: 'name of this bench, recorded with each run (default: ROLLOFF_BENCH or the host name)' },
   DATABASE_OPTION,
 ];
 
@@ -65,6 +66,7 @@ export async function openService(parsed: ParsedArgs, overrides: { timeScale?: n
   return openServiceAt(resolveDatabasePath(optionString(parsed, 'db')), {
     maxStimulusVpp: optionNumber(parsed, 'max-amplitude'),
     giveUpAfterS: optionNumber(parsed, 'give-up') ?? 120,
+    benchName: resolveBenchName(optionString(parsed, 'bench')),
     simulatedBench: { timeScale, noiseVrms: optionNumber(parsed, 'noise') ?? 1e-4, latencyS: overrides.latencyS ?? 0 },
   });
 }

@@ -32,6 +32,7 @@ import {
   checkEventLevel,
   checkPoint,
   checkRunFilter,
+  checkRunBenchName,
   checkRunKind,
   checkRunStatus,
   checkSchedule,
@@ -315,8 +316,8 @@ export class PostgresStore implements RolloffStore {
     const plannedCount = Array.isArray(input.plan?.steps) ? input.plan.steps.length : 0;
     const { rows } = await this.query<{ id: number }>(
       `WITH run AS (
-         INSERT INTO runs (build_id, kind, request_json, planned_count, status, created_at, software_version, bench_json, operator, notes, simulated, schedule_id)
-         VALUES ($1, $2, $3, $4, 'planned', $5, $6, $7, $8, $9, $10, $11) RETURNING id)
+         INSERT INTO runs (build_id, kind, request_json, planned_count, status, created_at, software_version, bench_json, operator, notes, simulated, schedule_id, bench_name)
+         VALUES ($1, $2, $3, $4, 'planned', $5, $6, $7, $8, $9, $10, $11, $13) RETURNING id)
        INSERT INTO run_plans (run_id, plan_json) SELECT id, $12 FROM run RETURNING run_id AS id`,
       [
         buildId,
@@ -331,6 +332,7 @@ export class PostgresStore implements RolloffStore {
         input.simulated === true,
         scheduleId,
         toJson(input.plan, 'run.plan'),
+        checkRunBenchName(input.benchName),
       ],
       client,
     );
@@ -374,14 +376,14 @@ export class PostgresStore implements RolloffStore {
   }
 
   async listRuns(filter: RunFilter = {}): Promise<RunSummary[]> {
-    const { status, buildId, search, limit } = checkRunFilter(filter);
+    const { status, buildId, search, bench, limit } = checkRunFilter(filter);
     const { rows } = await this.query(
       `SELECT ${RUN_SUMMARY_COLUMNS}
        FROM runs r JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id
-       WHERE ($1::text IS NULL OR r.status = $1) AND ($2::bigint IS NULL OR r.build_id = $2)
+       WHERE ($1::text IS NULL OR r.status = $1) AND ($2::bigint IS NULL OR r.build_id = $2) AND ($5::text IS NULL OR r.bench_name = $5)
          AND ($3::text IS NULL OR b.label ILIKE $3 ESCAPE '\\' OR d.name ILIKE $3 ESCAPE '\\' OR r.notes ILIKE $3 ESCAPE '\\')
        ORDER BY r.id DESC LIMIT $4`,
-      [status, buildId, search, limit],
+      [status, buildId, search, limit, bench],
     );
     return rows.map(summaryFromRow);
   }
@@ -731,6 +733,7 @@ function storedRunFromRow(row: Row): StoredRun {
     operator: row.operator as string,
     notes: row.notes as string,
     scheduleId: (row.schedule_id as number | null) ?? null,
+    benchName: row.bench_name as string,
     createdAt: row.created_at as string,
     figures: (row.figures_json as RunFigures | null) ?? null,
     verdict: (row.verdict_json as Verdict | null) ?? null,

@@ -44,17 +44,17 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
     }
   });
 
-  it('two processes sweeping into one new lab database at once both complete, every step stored once', async () => {
+  it('two benches (processes named by ROLLOFF_BENCH) sweeping into one new lab database at once both complete, every step stored once, each run with its bench', async () => {
     const url = cluster.createDatabase('two_benches').replace(`${cluster.role}@`, `${cluster.role}:${encodeURIComponent(cluster.password)}@`);
-    const run = () =>
+    const run = (bench: string) =>
       new Promise<{ status: number | null; stderr: string }>((resolve) => {
-        const child = spawn(process.execPath, [BIN, 'demo', '--fast', '--db', url], { stdio: ['ignore', 'ignore', 'pipe'] });
+        const child = spawn(process.execPath, [BIN, 'demo', '--fast', '--db', url], { stdio: ['ignore', 'ignore', 'pipe'], env: { ...process.env, ROLLOFF_BENCH: bench } });
         let stderr = '';
         child.stderr.on('data', (chunk) => (stderr += chunk));
         child.on('close', (status) => resolve({ status, stderr }));
       });
     // Both open the empty database at the same moment: one migrates under the advisory lock, the other waits.
-    const results = await Promise.all([run(), run()]);
+    const results = await Promise.all([run('bench 3'), run('bench 7')]);
     for (const result of results) expect(result.status, result.stderr).toBe(0);
     const store = await PostgresStore.open(url);
     try {
@@ -67,6 +67,9 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
         expect(summary.pointCount).toBe(steps.length);
         expect(steps.length).toBeGreaterThan(10);
       }
+      // Each process recorded its own bench name with its runs.
+      expect((await store.listRuns({ bench: 'bench 3' })).length).toBe(2);
+      expect((await store.listRuns({ bench: 'bench 7' })).length).toBe(2);
       expect(await store.integrityProblems()).toEqual([]);
     } finally {
       await store.close();

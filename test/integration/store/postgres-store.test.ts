@@ -11,10 +11,14 @@ import { join } from 'node:path';
 import { openStore, StoreDamagedError, StoreUnavailableError, StoreVersionError, type RolloffStore } from '../../../app/store';
 import { PostgresStore } from '../../../app/store/postgres/postgres-store';
 import { redactDatabaseUrl } from '../../../app/store/postgres/connection';
+import { loadPostgresMigrations } from '../../../app/store/postgres/migrations';
 import { freeLoopbackPort, postgresAvailable, startPostgresCluster, type PostgresCluster } from '../../helpers/postgres-cluster';
 import { point, seedRun } from '../../store-conformance/fixtures';
 
 const hasPostgres = postgresAvailable();
+/** Every PostgreSQL schema version this Rolloff knows: 1, 2, … */
+const ALL_VERSIONS = loadPostgresMigrations().map((m) => m.version);
+const NEWEST = ALL_VERSIONS[ALL_VERSIONS.length - 1];
 
 /** The message and hint a user sees, as the CLI prints them. */
 function shown(error: unknown): string {
@@ -39,7 +43,7 @@ describe.skipIf(!hasPostgres)('PostgreSQL store', () => {
     const url = freshUrl();
     const first = await openStore(url);
     expect(first).toBeInstanceOf(PostgresStore);
-    expect(first.appliedMigrations).toEqual([1]);
+    expect(first.appliedMigrations).toEqual(ALL_VERSIONS);
     await seedRun(first);
     await first.close();
     const second = await openStore(url.replace(/^postgres:/, 'postgresql:'));
@@ -121,10 +125,10 @@ describe.skipIf(!hasPostgres)('PostgreSQL store', () => {
   it('migrates a new database once when several benches open it at the same moment', async () => {
     const url = freshUrl();
     const stores = await Promise.all(Array.from({ length: 4 }, () => PostgresStore.open(url)));
-    expect(stores.flatMap((s) => s.appliedMigrations)).toEqual([1]);
-    for (const store of stores) expect(await store.schemaVersion()).toBe(1);
+    expect(stores.flatMap((s) => s.appliedMigrations)).toEqual(ALL_VERSIONS);
+    for (const store of stores) expect(await store.schemaVersion()).toBe(NEWEST);
     const database = url.slice(url.lastIndexOf('/') + 1);
-    expect(cluster.sql('SELECT version FROM schema_migrations ORDER BY version', database).trim()).toBe('1');
+    expect(cluster.sql('SELECT version FROM schema_migrations ORDER BY version', database).trim().split('\n').map(Number)).toEqual(ALL_VERSIONS);
     await Promise.all(stores.map((s) => s.close()));
   });
 
@@ -137,7 +141,7 @@ describe.skipIf(!hasPostgres)('PostgreSQL store', () => {
     expect(error).toBeInstanceOf(StoreVersionError);
     expect(shown(error)).toMatch(/schema version 99 \(written by Rolloff 9\.9\.9\) is newer/);
     expect(shown(error)).not.toContain(cluster.password);
-    expect(cluster.sql('SELECT count(*) FROM schema_migrations', database).trim()).toBe('2');
+    expect(cluster.sql('SELECT count(*) FROM schema_migrations', database).trim()).toBe(String(ALL_VERSIONS.length + 1));
   });
 
   it("refuses another program's database instead of adding tables to it", async () => {
@@ -150,7 +154,7 @@ describe.skipIf(!hasPostgres)('PostgreSQL store', () => {
 
   it('opens read-only: reads work, every write is refused, an unmigrated database is not touched', async () => {
     const url = freshUrl();
-    await expect(PostgresStore.open(url, { readonly: true })).rejects.toThrow(/needs upgrading to 1/);
+    await expect(PostgresStore.open(url, { readonly: true })).rejects.toThrow(new RegExp(`schema version 0 needs upgrading to ${NEWEST}`));
     const writer = await PostgresStore.open(url);
     const { run } = await seedRun(writer);
     await writer.close();
