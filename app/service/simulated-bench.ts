@@ -12,8 +12,10 @@ import { startSimulatedBench, type SimFault } from '../sim';
 export interface SimulatedBenchSettings {
   /** Bench seconds per wall-clock second (1 = real time). */
   timeScale: number;
-  /** Output noise, volts RMS. */
+  /** Flat white noise on every reading (the measurement's own), volts RMS. */
   noiseVrms: number;
+  /** Also the circuit's own output noise, shaped by the circuit (theory engine). */
+  circuitNoise: boolean;
   /** Extra delay per reply (wall seconds): a realistic link. */
   latencyS: number;
   seed: number;
@@ -31,7 +33,7 @@ export interface SimulatedBenchHandle {
   stop(): Promise<void>;
 }
 
-const DEFAULTS: SimulatedBenchSettings = { timeScale: 1, noiseVrms: 1e-4, latencyS: 0, seed: 1, link: 'tcp' };
+const DEFAULTS: SimulatedBenchSettings = { timeScale: 1, noiseVrms: 1e-4, circuitNoise: false, latencyS: 0, seed: 1, link: 'tcp' };
 
 export async function startSimulatedBenchFor(design: Design, settings: Partial<SimulatedBenchSettings>): Promise<SimulatedBenchHandle> {
   const chosen = { ...DEFAULTS, ...settings };
@@ -42,6 +44,7 @@ export async function startSimulatedBenchFor(design: Design, settings: Partial<S
     ...(chosen.link === 'pty' ? { pty: true as const } : { tcpPort: 0 }),
     vxi11: chosen.link === 'vxi11',
     noiseVrms: chosen.noiseVrms,
+    circuitNoise: chosen.circuitNoise,
     latencyS: chosen.latencyS,
     seed: chosen.seed,
   });

@@ -16,3 +16,5 @@ export * from './outliers';
  */
 export * from './welch';
 export * from './peaking-phase-margin';
+/** shapedNoiseRecord({ length, sampleRateHz, densityVPerRtHz, gaussian }) → a Gaussian record with that one-sided density. */
+export * from './shaped-noise';

@@ -13,10 +13,13 @@
  * - after a change at t_c the output moves from the old steady state to the
  *   new one as y = new + (old − new)·e^(−(t − t_c)/τ), τ the circuit's
  *   slowest time constant;
- * - then clipping at the rails and additive Gaussian noise (noiseVrms).
+ * - then clipping at the rails and additive Gaussian noise: flat (noiseVrms,
+ *   on every node: the measurement's own noise) and, when asked for, the
+ *   circuit's own noise at the output, shaped by the circuit (circuit-noise.ts).
  */
 import { SeededRandom } from '../numeric';
 import type { BenchClock } from '../bench/clock';
+import { CircuitNoise, METER_NOISE_INTERVAL_S } from './circuit-noise';
 import { CircuitUnderTest, type Phasor } from './circuit-under-test';
 
 export interface GeneratorOutput {
@@ -50,14 +53,19 @@ export class BenchModel {
   private pendingOutput: GeneratorOutput | undefined;
   private changedAtS = -Infinity;
   private readonly random: SeededRandom;
+  /** The circuit's own output noise, when the bench adds it (undefined: none). */
+  readonly circuitNoise: CircuitNoise | undefined;
 
   constructor(
     readonly circuit: CircuitUnderTest,
     private readonly clock: BenchClock,
     private noiseVrms: number,
     seed: number,
+    withCircuitNoise = false,
   ) {
     this.random = new SeededRandom(seed);
+    // Its own random stream, so the flat noise's sequence does not depend on whether circuit noise is on.
+    this.circuitNoise = withCircuitNoise ? new CircuitNoise(circuit.toOutput, new SeededRandom(seed ^ 0xc1c0)) : undefined;
     this.settled = this.steadyState({ on: false, shape: 'sine', frequencyHz: 1000, emfAmplitudeVpk: 0, emfOffsetV: 0 });
     this.previous = this.settled;
   }
@@ -100,6 +108,10 @@ export class BenchModel {
   sample(node: BenchNode, startS: number, intervalS: number, count: number): Float64Array {
     const out = new Float64Array(count);
     for (let i = 0; i < count; i++) out[i] = this.valueAt(node, startS + i * intervalS) + this.noiseVrms * this.random.nextGaussian();
+    if (node === 'output' && this.circuitNoise) {
+      const noise = this.circuitNoise.samples(startS, intervalS, count);
+      for (let i = 0; i < count; i++) out[i] += noise[i];
+    }
     return out;
   }
 
@@ -112,7 +124,11 @@ export class BenchModel {
   sampleStratified(node: BenchNode, startS: number, durationS: number, count: number): Float64Array {
     const out = new Float64Array(count);
     const slice = durationS / count;
-    for (let i = 0; i < count; i++) out[i] = this.valueAt(node, startS + (i + this.random.nextUniform()) * slice) + this.noiseVrms * this.random.nextGaussian();
+    const circuitNoise = node === 'output' ? this.circuitNoise : undefined;
+    for (let i = 0; i < count; i++) {
+      const timeS = startS + (i + this.random.nextUniform()) * slice;
+      out[i] = this.valueAt(node, timeS) + this.noiseVrms * this.random.nextGaussian() + (circuitNoise ? circuitNoise.at(timeS, METER_NOISE_INTERVAL_S) : 0);
+    }
     return out;
   }
 

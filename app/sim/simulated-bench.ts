@@ -40,8 +40,10 @@ export interface SimulatedBenchOptions {
   /** Bench seconds per wall second (default 1). Ignored when `clock` is given. */
   timeScale?: number;
   clock?: BenchClock;
-  /** White noise added to every simulated voltage, V RMS (default 0). */
+  /** Flat white noise added to every simulated voltage (the measurement's own noise), V RMS (default 0). */
   noiseVrms?: number;
+  /** Add the circuit's own noise at the output, shaped by the circuit as the theory engine computes it (default off). */
+  circuitNoise?: boolean;
   /** Wall-clock delay before each reply, seconds (default 0). */
   latencyS?: number;
   faults?: Partial<Record<InstrumentRole, SimFault>>;
@@ -86,7 +88,7 @@ export async function startSimulatedBench(options: SimulatedBenchOptions): Promi
   const seed = options.seed ?? 1;
   if (options.tcpPort !== undefined && options.pty !== undefined) throw new ValidationError('simulated bench', 'give either a TCP port or a PTY folder, not both');
 
-  const model = new BenchModel(new CircuitUnderTest(design, SIM_SOURCE_IMPEDANCE_OHM), clock, noiseVrms, seed);
+  const model = new BenchModel(new CircuitUnderTest(design, SIM_SOURCE_IMPEDANCE_OHM), clock, noiseVrms, seed, options.circuitNoise === true);
   const meter = new SimMeter(model, clock);
   const scope = new SimScope(model, clock);
   const generator = new SimGenerator(model, clock);

@@ -19,7 +19,8 @@ export const simCommand: CommandSpec = {
     { name: 'pty', kind: 'string', placeholder: 'DIR', description: 'serial pseudo-terminals DIR/generator, DIR/meter, DIR/scope (needs socat)' },
     { name: 'vxi11', kind: 'flag', description: 'also serve the instruments over VXI-11 (LAN instruments inst0 generator, inst1 meter, inst2 scope), registered with the portmapper on 127.0.0.1 (needs rpcbind)' },
     { name: 'time-scale', kind: 'number', placeholder: 'X', description: 'simulated seconds per real second', defaultValue: 1 },
-    { name: 'noise', kind: 'number', placeholder: 'VRMS', description: 'white noise on every simulated voltage', defaultValue: 0 },
+    { name: 'noise', kind: 'number', placeholder: 'VRMS', description: 'flat white noise on every simulated voltage (the measurement\'s own noise, not the circuit\'s)', defaultValue: 0 },
+    { name: 'circuit-noise', kind: 'flag', description: 'add the circuit\'s own noise to the output, shaped by the circuit (resistors, op-amp en and in, as `rolloff theory --noise` computes it)' },
     { name: 'latency', kind: 'number', placeholder: 'S', description: 'delay before each reply', defaultValue: 0 },
     { name: 'seed', kind: 'integer', placeholder: 'N', description: 'noise and fault random seed', defaultValue: 1 },
     { name: 'fault', kind: 'string', placeholder: '[ROLE=]KIND[:VALUE]', repeatable: true, description: 'inject a fault: garbage[:P], no-reply[:P], slow:S, hang, overrange, nan' },
@@ -27,7 +28,9 @@ export const simCommand: CommandSpec = {
   details: `
 Channel 1 of the scope is the circuit input, channel 2 the output. The
 generator has a 50 Ω output resistance; its amplitude is calibrated for its
-load setting. Every *IDN? reply says "simulated".
+load setting. Every *IDN? reply says "simulated". --noise is flat (the same
+density at every frequency, on both channels and the meter); --circuit-noise
+is the design's computed output noise, shaped by the circuit (output only).
 Examples:
   rolloff sim --design app/circuit/examples/inverting-lowpass.json --tcp 5025
   rolloff sim --design d.json --pty /tmp/bench --noise 1m --fault meter=garbage:0.05
@@ -61,6 +64,7 @@ Examples:
       ...(pty !== undefined ? { pty } : { tcpPort: tcpPort ?? 0 }),
       timeScale,
       noiseVrms: optionNumber(parsed, 'noise')!,
+      circuitNoise: optionFlag(parsed, 'circuit-noise'),
       latencyS: optionNumber(parsed, 'latency')!,
       seed: optionNumber(parsed, 'seed')!,
       faults,

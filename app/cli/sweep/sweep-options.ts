@@ -20,7 +20,8 @@ export const DATABASE_OPTION: OptionSpec = { name: 'db', kind: 'string', placeho
 export const BENCH_OPTIONS: OptionSpec[] = [
   { name: 'simulated', kind: 'flag', aliases: ['virtual'], description: 'use the simulated bench (simulated instruments on 127.0.0.1) with the build\'s circuit' },
   { name: 'time-scale', kind: 'number', placeholder: 'X', description: 'simulated bench: bench seconds per wall second', defaultValue: 1 },
-  { name: 'noise', kind: 'number', placeholder: 'VRMS', description: 'simulated bench: output noise in volts RMS', defaultValue: 1e-4 },
+  { name: 'noise', kind: 'number', placeholder: 'VRMS', description: 'simulated bench: flat white noise on every reading (the measurement\'s own), volts RMS', defaultValue: 1e-4 },
+  { name: 'circuit-noise', kind: 'flag', description: 'simulated bench: also add the circuit\'s own output noise, shaped by the circuit (as `rolloff theory --noise` computes it)' },
   { name: 'generator', kind: 'string', placeholder: 'ADDRESS', description: 'generator address, e.g. tcp://HOST:5025 or serial:///dev/ttyUSB0?baud=9600' },
   { name: 'scope', kind: 'string', placeholder: 'ADDRESS', description: 'scope address (scope measurement)' },
   { name: 'meter', kind: 'string', placeholder: 'ADDRESS', description: 'meter address (meter or DC measurement)' },
@@ -67,7 +68,7 @@ export async function openService(parsed: ParsedArgs, overrides: { timeScale?: n
     maxStimulusVpp: optionNumber(parsed, 'max-amplitude'),
     giveUpAfterS: optionNumber(parsed, 'give-up') ?? 120,
     benchName: resolveBenchName(optionString(parsed, 'bench')),
-    simulatedBench: { timeScale, noiseVrms: optionNumber(parsed, 'noise') ?? 1e-4, latencyS: overrides.latencyS ?? 0 },
+    simulatedBench: { timeScale, noiseVrms: optionNumber(parsed, 'noise') ?? 1e-4, circuitNoise: optionFlag(parsed, 'circuit-noise'), latencyS: overrides.latencyS ?? 0 },
   });
 }
 
