@@ -10,6 +10,7 @@ import { HALF_POWER_DB, minus3dbFrequenciesHz, passbandGainDb } from './passband
 import { rolloffDbPerDecade } from './rolloff';
 import { judge } from './verdict';
 import { isUsablePoint } from './usable-points';
+import { measuredStability } from './stability-estimate';
 
 export interface MeasuredAcColumns {
   frequencyHz: ArrayLike<number>;
@@ -85,6 +86,7 @@ export function analyzeAcRun(
     if (outside?.[i] && usable(i)) flags[i] |= PointFlag.outsideToleranceBand;
   }
 
+  const stability = measuredStability(gain, ideal);
   const minus3dbHz = passband === undefined ? [] : minus3dbFrequenciesHz(freq, gain, passband);
   const figures: RunFigures = {
     passbandGainDb: passband,
@@ -94,6 +96,7 @@ export function analyzeAcRun(
     gbwEstimateHz: gbw?.gbwHz,
     gbwUncertaintyHz: gbw?.gbwUncertaintyHz,
     maxDeviationDb: worst?.deviationDb,
+    ...stability,
   };
   const verdict = judge({
     limits,

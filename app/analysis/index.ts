@@ -8,3 +8,4 @@ export * from './verdict';
 export * from './analyze-ac';
 export * from './drift';
 export * from './usable-points';
+export * from './stability-estimate';

@@ -362,6 +362,15 @@ export interface RunFigures {
   gbwEstimateHz?: number;
   gbwUncertaintyHz?: number;
   maxDeviationDb?: number;
+  /** AC runs: peak of measured over ideal-op-amp gain above its low-frequency value, dB. */
+  closedLoopPeakingDb?: number;
+  /** Phase margin of the second-order loop with that peaking (an estimate), degrees. */
+  phaseMarginEstimateDeg?: number;
+  /** No peaking measured: the margin is at least phaseMarginEstimateDeg. */
+  phaseMarginEstimateIsLowerBound?: boolean;
+  /** Computed for the build's circuit (loop gain of the output op-amp): phase margin, degrees, and closed-loop peaking, dB. */
+  theoryPhaseMarginDeg?: number;
+  theoryPeakingDb?: number;
   /** DC runs: fitted log-stage parameters with 95 % intervals. */
   logFit?: { n: number; nCi: [number, number]; isA: number; isCi: [number, number]; rsOhm: number; rsCi: [number, number] };
 }

@@ -65,6 +65,15 @@ export function figureLines(figures: RunFigures): FigureLine[] {
     lines.push({ key: 'gbwEstimateHz', label: 'Op-amp gain-bandwidth estimate', value: formatHz(figures.gbwEstimateHz) + uncertainty });
   }
   if (isNumber(figures.maxDeviationDb)) lines.push({ key: 'maxDeviationDb', label: 'Largest deviation from theory', value: formatDb(figures.maxDeviationDb) });
+  if (isNumber(figures.closedLoopPeakingDb)) {
+    const theory = isNumber(figures.theoryPeakingDb) ? ` (computed ${formatDb(figures.theoryPeakingDb)})` : '';
+    lines.push({ key: 'closedLoopPeakingDb', label: 'Closed-loop peaking (measured over ideal gain)', value: formatDb(figures.closedLoopPeakingDb) + theory });
+  }
+  if (isNumber(figures.phaseMarginEstimateDeg)) {
+    const theory = isNumber(figures.theoryPhaseMarginDeg) ? ` (computed ${figures.theoryPhaseMarginDeg.toFixed(1)}°)` : '';
+    const bound = figures.phaseMarginEstimateIsLowerBound ? 'at least ' : '';
+    lines.push({ key: 'phaseMarginEstimateDeg', label: 'Phase margin estimated from the peaking (second-order loop)', value: `${bound}${figures.phaseMarginEstimateDeg.toFixed(1)}°${theory}` });
+  }
   const fit = figures.logFit;
   if (fit) {
     const ci = (pair: [number, number], format: (v: number) => string) => `95 % interval ${format(pair[0])} … ${format(pair[1])}`;

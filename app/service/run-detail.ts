@@ -5,7 +5,7 @@
 import type { RunReadStore, StoredRun } from '../store';
 import type { PointColumns, RunDetail, RunFigures, TheoryColumns, Verdict } from '../contract/contract';
 import { analyzeAcRun, usablePointIndexes } from '../analysis';
-import { inputResistor, throughDesign, type AcResponse, type Design, type DiodePart } from '../circuit';
+import { analyzeStability, inputResistor, outputOpAmpIndex, throughDesign, type AcResponse, type Design, type DiodePart } from '../circuit';
 import { fitLogStage, logFitFigures, FitError } from '../signal';
 import { ValidationError } from '../errors';
 import { buildDesign, estimateGbw, theoryAtPoints, theoryColumns, theoryFigures } from './theory';
@@ -53,14 +53,23 @@ function analyzeRunOf(design: Design, run: StoredRun, points: PointColumns, colu
     run.request.limits,
     gbw,
   );
+  const stability = outputOpAmpStability(design);
   return {
-    figures: result.figures,
+    figures: { ...result.figures, theoryPhaseMarginDeg: stability?.phaseMarginDeg, theoryPeakingDb: stability?.peakingDb },
     verdict: result.verdict,
     flags: Array.from(result.flags),
     theoryGainLimitHz: figuresOfTheory.gainLimitHz,
     theoryMinus3dbHz: figuresOfTheory.minus3dbHz,
     theoryResponse: theory.response,
   };
+}
+
+/** The computed stability of the op-amp that drives the output, when the design has one with a loop crossover. */
+function outputOpAmpStability(design: Design): { phaseMarginDeg?: number; peakingDb?: number } | undefined {
+  const index = outputOpAmpIndex(design);
+  if (index === undefined) return undefined;
+  const stage = analyzeStability(design)[index];
+  return stage ? { phaseMarginDeg: stage.phaseMarginDeg, peakingDb: stage.peakingDb } : undefined;
 }
 
 function analyzeDcRun(design: Design, points: PointColumns): RunAnalysis {

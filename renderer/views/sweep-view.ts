@@ -297,6 +297,14 @@ export class SweepView implements View {
     if (figures.gbwEstimateHz !== undefined) rows.push(['GBW estimate', `${formatHz(figures.gbwEstimateHz)}${figures.gbwUncertaintyHz !== undefined ? ` ± ${formatHz(figures.gbwUncertaintyHz)}` : ''}`]);
     if (figures.rolloffDbPerDecade !== undefined) rows.push(['Roll-off', `${figures.rolloffDbPerDecade.toFixed(1)} dB/decade`]);
     if (figures.maxDeviationDb !== undefined) rows.push(['Largest deviation from theory', formatDb(figures.maxDeviationDb)]);
+    if (figures.closedLoopPeakingDb !== undefined) {
+      rows.push(['Closed-loop peaking', `${formatDb(figures.closedLoopPeakingDb)}${figures.theoryPeakingDb !== undefined ? ` (computed ${formatDb(figures.theoryPeakingDb)})` : ''}`]);
+    }
+    if (figures.phaseMarginEstimateDeg !== undefined) {
+      const bound = figures.phaseMarginEstimateIsLowerBound ? '≥ ' : '';
+      const computed = figures.theoryPhaseMarginDeg !== undefined ? ` (computed ${figures.theoryPhaseMarginDeg.toFixed(1)}°)` : '';
+      rows.push(['Phase margin from peaking (estimate)', `${bound}${figures.phaseMarginEstimateDeg.toFixed(1)}°${computed}`]);
+    }
     const fit = figures.logFit;
     if (fit) {
       const interval = (value: number, ci: [number, number], unit: string) => `${formatEngineering(value, unit)} (95 %: ${formatEngineering(ci[0], unit)} … ${formatEngineering(ci[1], unit)})`;

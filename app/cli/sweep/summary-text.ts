@@ -14,6 +14,20 @@ export function figureLines(figures: RunFigures, theory?: { gainLimitHz?: number
     lines.push(`GBW estimate        ${hz(figures.gbwEstimateHz)}${figures.gbwUncertaintyHz !== undefined ? ` ± ${hz(figures.gbwUncertaintyHz)} (1σ)` : ''}`);
   }
   if (figures.maxDeviationDb !== undefined) lines.push(`largest deviation   ${figures.maxDeviationDb.toFixed(3)} dB from theory (pass band)`);
+  lines.push(...stabilityLines(figures));
+  return lines;
+}
+
+/** Measured closed-loop peaking and its phase-margin estimate, beside the computed values. */
+export function stabilityLines(figures: RunFigures): string[] {
+  const lines: string[] = [];
+  const deg = (v: number | undefined) => (v === undefined ? '—' : `${v.toFixed(1)}°`);
+  const db = (v: number | undefined) => (v === undefined ? '—' : `${v.toFixed(2)} dB`);
+  if (figures.closedLoopPeakingDb !== undefined) lines.push(`closed-loop peaking ${db(figures.closedLoopPeakingDb)}   (theory ${db(figures.theoryPeakingDb)})`);
+  if (figures.phaseMarginEstimateDeg !== undefined) {
+    const estimate = `${figures.phaseMarginEstimateIsLowerBound ? '≥ ' : ''}${deg(figures.phaseMarginEstimateDeg)}`;
+    lines.push(`phase margin        ${estimate} estimated from the peaking (second-order loop)   (theory ${deg(figures.theoryPhaseMarginDeg)})`);
+  }
   return lines;
 }
 
