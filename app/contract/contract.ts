@@ -371,6 +371,8 @@ export interface RunFigures {
   /** Computed for the build's circuit (loop gain of the output op-amp): phase margin, degrees, and closed-loop peaking, dB. */
   theoryPhaseMarginDeg?: number;
   theoryPeakingDb?: number;
+  /** Plain warnings of the computed theory for the build's circuit (e.g. a phase margin below 45°). */
+  theoryWarnings?: string[];
   /** DC runs: fitted log-stage parameters with 95 % intervals. */
   logFit?: { n: number; nCi: [number, number]; isA: number; isCi: [number, number]; rsOhm: number; rsCi: [number, number] };
 }

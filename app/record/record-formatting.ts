@@ -74,6 +74,7 @@ export function figureLines(figures: RunFigures): FigureLine[] {
     const bound = figures.phaseMarginEstimateIsLowerBound ? 'at least ' : '';
     lines.push({ key: 'phaseMarginEstimateDeg', label: 'Phase margin estimated from the peaking (second-order loop)', value: `${bound}${figures.phaseMarginEstimateDeg.toFixed(1)}°${theory}` });
   }
+  for (const warning of figures.theoryWarnings ?? []) lines.push({ key: 'theoryWarnings', label: 'Warning (computed theory)', value: warning });
   const fit = figures.logFit;
   if (fit) {
     const ci = (pair: [number, number], format: (v: number) => string) => `95 % interval ${format(pair[0])} … ${format(pair[1])}`;

@@ -70,7 +70,9 @@ interface DesignPartView {
 /** Op-amp and diode model fields (app/circuit design file) with their units, for the parts table. */
 const MODEL_FIELDS: Array<[string, string, string]> = [
   ['openLoopGain', 'A0', ''], ['gbw', 'GBW', 'Hz'], ['slewRate', 'SR', 'V/s'], ['secondPoleHz', '2nd pole', 'Hz'],
-  ['inputOffsetV', 'Vos', 'V'], ['inputBiasA', 'Ib', 'A'], ['is', 'IS', 'A'], ['n', 'N', ''], ['rs', 'RS', 'Ω'],
+  ['inputOffsetV', 'Vos', 'V'], ['inputBiasA', 'Ib', 'A'],
+  ['voltageNoiseVPerRtHz', 'en', 'V/√Hz'], ['voltageNoiseCornerHz', 'en 1/f corner', 'Hz'],
+  ['currentNoiseAPerRtHz', 'in', 'A/√Hz'], ['currentNoiseCornerHz', 'in 1/f corner', 'Hz'], ['outputResistanceOhm', 'Ro', 'Ω'], ['is', 'IS', 'A'], ['n', 'N', ''], ['rs', 'RS', 'Ω'],
 ];
 
 function modelText(model: unknown): string | null {

@@ -5,7 +5,7 @@
 import type { RunReadStore, StoredRun } from '../store';
 import type { PointColumns, RunDetail, RunFigures, TheoryColumns, Verdict } from '../contract/contract';
 import { analyzeAcRun, usablePointIndexes } from '../analysis';
-import { analyzeStability, inputResistor, outputOpAmpIndex, throughDesign, type AcResponse, type Design, type DiodePart } from '../circuit';
+import { analyzeStability, inputResistor, outputOpAmpIndex, stabilityWarnings, throughDesign, type OpAmpStability, type AcResponse, type Design, type DiodePart } from '../circuit';
 import { fitLogStage, logFitFigures, FitError } from '../signal';
 import { ValidationError } from '../errors';
 import { buildDesign, estimateGbw, theoryAtPoints, theoryColumns, theoryFigures } from './theory';
@@ -53,9 +53,16 @@ function analyzeRunOf(design: Design, run: StoredRun, points: PointColumns, colu
     run.request.limits,
     gbw,
   );
-  const stability = outputOpAmpStability(design);
+  const stages = analyzeStability(design);
+  const stability = outputOpAmpStability(design, stages);
+  const warnings = stabilityWarnings(stages).map((w) => w.message);
   return {
-    figures: { ...result.figures, theoryPhaseMarginDeg: stability?.phaseMarginDeg, theoryPeakingDb: stability?.peakingDb },
+    figures: {
+      ...result.figures,
+      theoryPhaseMarginDeg: stability?.phaseMarginDeg,
+      theoryPeakingDb: stability?.peakingDb,
+      ...(warnings.length ? { theoryWarnings: warnings } : {}),
+    },
     verdict: result.verdict,
     flags: Array.from(result.flags),
     theoryGainLimitHz: figuresOfTheory.gainLimitHz,
@@ -65,10 +72,10 @@ function analyzeRunOf(design: Design, run: StoredRun, points: PointColumns, colu
 }
 
 /** The computed stability of the op-amp that drives the output, when the design has one with a loop crossover. */
-function outputOpAmpStability(design: Design): { phaseMarginDeg?: number; peakingDb?: number } | undefined {
+function outputOpAmpStability(design: Design, stages: OpAmpStability[]): { phaseMarginDeg?: number; peakingDb?: number } | undefined {
   const index = outputOpAmpIndex(design);
   if (index === undefined) return undefined;
-  const stage = analyzeStability(design)[index];
+  const stage = stages[index];
   return stage ? { phaseMarginDeg: stage.phaseMarginDeg, peakingDb: stage.peakingDb } : undefined;
 }
 

@@ -305,6 +305,7 @@ export class SweepView implements View {
       const computed = figures.theoryPhaseMarginDeg !== undefined ? ` (computed ${figures.theoryPhaseMarginDeg.toFixed(1)}°)` : '';
       rows.push(['Phase margin from peaking (estimate)', `${bound}${figures.phaseMarginEstimateDeg.toFixed(1)}°${computed}`]);
     }
+    for (const warning of figures.theoryWarnings ?? []) rows.push(['Warning (computed theory)', warning]);
     const fit = figures.logFit;
     if (fit) {
       const interval = (value: number, ci: [number, number], unit: string) => `${formatEngineering(value, unit)} (95 %: ${formatEngineering(ci[0], unit)} … ${formatEngineering(ci[1], unit)})`;

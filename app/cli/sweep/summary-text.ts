@@ -28,6 +28,7 @@ export function stabilityLines(figures: RunFigures): string[] {
     const estimate = `${figures.phaseMarginEstimateIsLowerBound ? '≥ ' : ''}${deg(figures.phaseMarginEstimateDeg)}`;
     lines.push(`phase margin        ${estimate} estimated from the peaking (second-order loop)   (theory ${deg(figures.theoryPhaseMarginDeg)})`);
   }
+  for (const warning of figures.theoryWarnings ?? []) lines.push(`warning             ${warning}`);
   return lines;
 }
 

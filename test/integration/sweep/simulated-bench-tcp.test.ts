@@ -90,6 +90,14 @@ describe('sweep on the simulated bench over TCP', () => {
     expect(Math.abs(measured / theory - 1)).toBeLessThan(0.1);
   });
 
+  it('a single-pole op-amp gives no closed-loop peaking: the margin from the peaking is a lower bound the computed margin meets', () => {
+    // Single-pole loop T = A/101 crosses at ≈ 9.9 kHz, far above its pole (10 Hz): margin 180° − 90° − atan(9.9k/… ) ≈ 90° (Bode).
+    expect(detail.figures.theoryPhaseMarginDeg!).toBeGreaterThan(89);
+    expect(detail.figures.closedLoopPeakingDb!).toBeLessThan(0.1);
+    expect(detail.figures.phaseMarginEstimateDeg!).toBeLessThanOrEqual(detail.figures.theoryPhaseMarginDeg!);
+    expect(detail.figures.theoryWarnings).toBeUndefined();
+  });
+
   it('estimates GBW within 10 % of the model\'s 1 MHz from the single-pole fit', () => {
     expect(Math.abs(detail.figures.gbwEstimateHz! / 1e6 - 1)).toBeLessThan(0.1);
   });
