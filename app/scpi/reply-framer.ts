@@ -3,7 +3,10 @@
  * ASCII ending in LF or CR LF (IEEE 488.2 §8.5 response message terminator;
  * CR LF is common practice on serial links), or a definite-length block
  * (IEEE 488.2 §8.7.9) followed by the terminator. Blocks are framed by their
- * byte count so binary data containing LF/CR passes intact.
+ * byte count so binary data containing LF/CR passes intact. This is why
+ * replies are not framed by @serialport/parser-readline (which the simulated
+ * instruments use for their ASCII command input, app/sim/link-server.ts): a
+ * line parser would cut a block at its first 0x0A byte.
  */
 
 export type FrameResult =

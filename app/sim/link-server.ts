@@ -1,9 +1,18 @@
 /**
- * Serves one simulated instrument over one byte link (a TCP socket or the
- * instrument end of a PTY pair): splits incoming bytes into program messages
- * at LF (CR LF accepted), executes them in order, writes each response
- * message with an LF terminator, and applies link latency and faults.
+ * Serves one simulated instrument over one byte link (a TCP socket, the
+ * instrument end of a PTY pair, or a VXI-11 link's device_write data): splits
+ * incoming bytes into program messages at LF (CR LF accepted), executes them
+ * in order, writes each response message with an LF terminator, and applies
+ * link latency and faults.
+ *
+ * Framing: the command input is line-framed by @serialport/parser-readline.
+ * Line framing is right here because the program messages these instruments
+ * take are ASCII with no definite-length blocks (no waveform upload), so an
+ * LF inside a message cannot occur. The other direction is not line-framed:
+ * replies can be binary blocks holding any byte, and the client side frames
+ * them by their byte count (app/scpi/reply-framer.ts).
  */
+import { ReadlineParser } from '@serialport/parser-readline';
 import { SeededRandom } from '../numeric';
 import { realClock } from '../bench/clock';
 import type { FaultState } from './faults';
@@ -21,14 +30,14 @@ export interface LinkOptions {
 }
 
 const LF = 0x0a;
-const CR = 0x0d;
 /** A program message longer than this without LF is noise; it is dropped. */
 const MAX_MESSAGE_BYTES = 64 * 1024;
 const encoder = new TextEncoder();
-const latin1 = new TextDecoder('latin1');
 
 export class InstrumentLink {
-  private pending = new Uint8Array(0);
+  private lines = this.lineParser();
+  /** Bytes received since the last LF, to drop a run-away unterminated message. */
+  private unterminatedBytes = 0;
   private chain: Promise<void> = Promise.resolve();
   private closed = false;
 
@@ -39,23 +48,31 @@ export class InstrumentLink {
   ) {}
 
   receive(bytes: Uint8Array): void {
-    const joined = new Uint8Array(this.pending.length + bytes.length);
-    joined.set(this.pending, 0);
-    joined.set(bytes, this.pending.length);
-    let start = 0;
-    for (let i = 0; i < joined.length; i++) {
-      if (joined[i] !== LF) continue;
-      const end = i > start && joined[i - 1] === CR ? i - 1 : i;
-      const message = latin1.decode(joined.subarray(start, end));
-      start = i + 1;
-      this.chain = this.chain.then(() => this.handle(message));
+    const lastLf = bytes.lastIndexOf(LF);
+    this.unterminatedBytes = lastLf < 0 ? this.unterminatedBytes + bytes.length : bytes.length - lastLf - 1;
+    if (this.unterminatedBytes > MAX_MESSAGE_BYTES) {
+      // Noise, not a program message: start again with an empty line buffer.
+      this.lines.destroy();
+      this.lines = this.lineParser();
+      this.unterminatedBytes = 0;
+      return;
     }
-    this.pending = joined.slice(start);
-    if (this.pending.length > MAX_MESSAGE_BYTES) this.pending = new Uint8Array(0);
+    this.lines.write(Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength));
   }
 
   close(): void {
     this.closed = true;
+    this.lines.destroy();
+  }
+
+  private lineParser(): ReadlineParser {
+    // latin1: one character per byte, so a stray non-ASCII byte reaches the instrument (which refuses it with -101) unchanged.
+    const parser = new ReadlineParser({ delimiter: '\n', encoding: 'latin1' });
+    parser.on('data', (line: string) => {
+      const message = line.endsWith('\r') ? line.slice(0, -1) : line;
+      this.chain = this.chain.then(() => this.handle(message));
+    });
+    return parser;
   }
 
   private async handle(message: string): Promise<void> {

@@ -18,7 +18,10 @@
  * not measurement and is reported beside it ("analysis after"), as is the
  * set-up before the first stimulus ("set-up", inside the timed window).
  *
- * Run: npx tsx test/bench/sweep-efficiency.ts [--latency-ms 3] [--per-decade 10]
+ * Run: npx tsx test/bench/sweep-efficiency.ts [--latency-ms 3] [--per-decade 10] [--links socket,vxi11,pty]
+ * Every case runs once per connection kind (raw socket, VXI-11 through the
+ * portmapper — rpcbind must run — and a socat PTY), the same link latency
+ * added by the simulated instruments on each.
  * Real time (time scale 1), so the figure is what a bench user would see. The
  * simulated bench runs in its own process (`rolloff sim`), as instruments do, so
  * its simulation work is not charged to the sweep.
@@ -33,40 +36,42 @@
  * settle-before-acquire.test.ts checks captures against the bench's own
  * record). Everything else (read-back, next time base, storing) overlaps.
  */
-import { spawn } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { openServiceAt } from '../../app/service/open-service';
 import { makeDesignFromTemplate } from '../../app/circuit/templates';
+import { startSimProcess } from '../helpers/sim-process';
 
 function argument(name: string, fallback: number): number {
   const at = process.argv.indexOf(`--${name}`);
   return at > 0 ? Number(process.argv[at + 1]) : fallback;
 }
 
+type Link = 'socket' | 'vxi11' | 'pty';
+const LINKS: Link[] = ['socket', 'vxi11', 'pty'];
+
 async function main(): Promise<void> {
+  const at = process.argv.indexOf('--links');
+  const links = at > 0 ? (process.argv[at + 1].split(',') as Link[]) : LINKS;
+  for (const link of links) if (!LINKS.includes(link)) throw new Error(`--links: "${link}" is not one of ${LINKS.join(', ')}`);
   const latencyMs = argument('latency-ms', 3);
   const perDecade = argument('per-decade', 10);
   const folder = mkdtempSync(join(tmpdir(), 'rolloff-bench-'));
   const designFile = makeDesignFromTemplate('inverting-lowpass', {});
   writeFileSync(join(folder, 'design.json'), JSON.stringify(designFile));
-  const sim = spawn(process.execPath, [join(import.meta.dirname, '../../app/cli/bin.mjs'), 'sim', '--design', join(folder, 'design.json'), '--tcp', '0',
-    '--latency', String(latencyMs / 1000), '--noise', '1e-4'], { stdio: ['ignore', 'pipe', 'inherit'] });
-  const addresses = await new Promise<Record<string, string>>((resolve, reject) => {
-    let text = '';
-    sim.stdout.on('data', (chunk) => {
-      text += chunk;
-      const found = Object.fromEntries([...text.matchAll(/^\s+(generator|meter|scope)\s+(tcp:\/\/127\.0\.0\.1:\d+)/gm)].map((m) => [m[1], m[2]]));
-      if (Object.keys(found).length === 3) resolve(found);
-    });
-    sim.on('exit', () => reject(new Error(`rolloff sim exited: ${text}`)));
-  });
+  const simArgs = ['--design', join(folder, 'design.json'), '--latency', String(latencyMs / 1000), '--noise', '1e-4'];
+  // One process serves the raw socket and VXI-11, another the PTYs (a sim serves TCP or PTYs, not both).
+  const lan = await startSimProcess([...simArgs, '--tcp', '0', ...(links.includes('vxi11') ? ['--vxi11'] : [])]);
+  const serial = links.includes('pty') ? await startSimProcess([...simArgs, '--pty', mkdtempSync(join(folder, 'pty-'))]).catch((error: Error) => {
+    lan.stop();
+    throw error;
+  }) : undefined;
+  const addressesOf = (link: Link) => (link === 'pty' ? serial!.addresses.pty : lan.addresses[link]);
   const service = await openServiceAt(join(folder, 'bench.sqlite'), { maxStimulusVpp: 1 });
   try {
     const design = await service.saveDesign(designFile);
     const build = await service.createBuild({ designId: design.id, label: 'bench', notes: '', actualValues: {} });
-    for (const role of ['generator', 'meter', 'scope'] as const) await service.connect({ role, address: addresses[role], profileId: `scpi-${role}` });
     const cases = [
       { name: 'scope, 10 Hz–100 kHz', request: { from: 10, to: 100e3, measurement: 'scope' as const, averages: 1 } },
       { name: 'scope, 10 Hz–100 kHz, 3 averages', request: { from: 10, to: 100e3, measurement: 'scope' as const, averages: 3 } },
@@ -82,8 +87,11 @@ async function main(): Promise<void> {
       service.on('traffic', (t) => trace(`${t.role.padEnd(9)} ${t.direction.padEnd(8)} ${t.text.slice(0, 50)}`));
       service.on('point', (p) => trace(`POINT ${p.index}`));
     }
-    console.log(`sweep efficiency on the simulated bench: link latency ${latencyMs} ms per reply, ${perDecade} points/decade, real time`);
-    console.log('case                                   points  physical min (plan)   wall time   ratio   set-up   overhead/point   2-reply floor   analysis after');
+    console.log(`sweep efficiency on the simulated bench: link latency ${latencyMs} ms per reply, ${perDecade} points/decade, real time, per connection kind`);
+    console.log('link    case                                   points  physical min (plan)   wall time   ratio   set-up   overhead/point   2-reply floor   analysis after');
+    for (const link of links) {
+    const addresses = addressesOf(link);
+    for (const role of ['generator', 'meter', 'scope'] as const) await service.connect({ role, address: addresses[role]!, profileId: `scpi-${role}` });
     for (const c of cases) {
       const request = {
         buildId: build.id, kind: 'ac' as const, pointsPerDecade: perDecade, spacing: 'log' as const, amplitude: { mode: 'auto' as const },
@@ -115,13 +123,16 @@ async function main(): Promise<void> {
       const overheadMs = ((wallS - minimumS) / plan.steps.length) * 1000;
       const floorRatio = (minimumS + plan.steps.length * 2 * (latencyMs / 1000)) / minimumS;
       console.log(
-        `${c.name.padEnd(38)} ${String(plan.steps.length).padStart(6)}  ${minimumS.toFixed(3).padStart(8)} s (${plan.estimatedDurationS.toFixed(3)})  ${wallS.toFixed(3).padStart(8)} s  ${ratio.toFixed(3).padStart(6)}  ${setupMs.toFixed(0).padStart(4)} ms  ${overheadMs.toFixed(1).padStart(8)} ms  ${floorRatio.toFixed(3).padStart(13)}  ${analysisMs.toFixed(0).padStart(8)} ms`,
+        `${link.padEnd(7)} ${c.name.padEnd(38)} ${String(plan.steps.length).padStart(6)}  ${minimumS.toFixed(3).padStart(8)} s (${plan.estimatedDurationS.toFixed(3)})  ${wallS.toFixed(3).padStart(8)} s  ${ratio.toFixed(3).padStart(6)}  ${setupMs.toFixed(0).padStart(4)} ms  ${overheadMs.toFixed(1).padStart(8)} ms  ${floorRatio.toFixed(3).padStart(13)}  ${analysisMs.toFixed(0).padStart(8)} ms`,
       );
     }
-    console.log('target: ratio ≤ 1.10');
+    }
+    console.log('target: ratio ≤ 1.10 (scope case, one acquisition per point, 3 ms per reply)');
   } finally {
     await service.close();
-    sim.kill('SIGINT');
+    lan.stop();
+    serial?.stop();
+    await new Promise((resolve) => setTimeout(resolve, 500)); // the sims unregister from the portmapper and close their PTYs
     rmSync(folder, { recursive: true, force: true });
   }
 }
