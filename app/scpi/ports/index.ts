@@ -4,7 +4,7 @@
  * answer that says in one line what could not be learned.
  */
 import type { PortInfo, PortListing } from '../../contract/contract';
-import { listUsbtmcInstruments } from '../usbtmc/usbtmc-sysfs';
+import { listUsbtmcInstruments } from './usbtmc-instruments';
 import { listSerialPorts, type SerialListOptions } from './serial-ports';
 import { defaultSysfsRoot } from './sysfs';
 

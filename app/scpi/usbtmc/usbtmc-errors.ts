@@ -4,7 +4,7 @@
  * a node this user may not open (the udev rule that grants it).
  */
 import { ScpiError } from '../errors';
-import type { UsbtmcInstrument } from './usbtmc-sysfs';
+import type { UsbtmcInstrument } from '../ports/usbtmc-instruments';
 
 export interface UsbIds {
   vendorId: string;

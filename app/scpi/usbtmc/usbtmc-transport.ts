@@ -1,6 +1,6 @@
 /**
  * USBTMC through the Linux kernel's usbtmc driver: the resource string's
- * vendor, product and serial number are found in sysfs (usbtmc-sysfs.ts) and
+ * vendor, product and serial number are found in sysfs (../ports/usbtmc-instruments.ts) and
  * the matching /dev/usbtmcN is opened. Each program message is one write()
  * (one USBTMC message); a query is followed by read()s that each return the
  * response's next bytes up to the buffer size, the driver ending a read at
@@ -19,7 +19,7 @@ import { OperationQueue } from '../operation-queue';
 import { TransportListeners, type Transport, type WriteOptions } from '../transport';
 import { openFileDeviceNode, type DeviceNode, type OpenDeviceNode } from './device-node';
 import { UsbtmcNodeMissingError, UsbtmcNotFoundError, UsbtmcPermissionError, type UsbIds } from './usbtmc-errors';
-import { listUsbtmcInstruments, usbResource } from './usbtmc-sysfs';
+import { listUsbtmcInstruments, usbResource } from '../ports/usbtmc-instruments';
 
 export interface UsbtmcSettings {
   /** The instrument by its USB identity (lower-case hex as sysfs writes it), found through sysfs… */

@@ -21,6 +21,7 @@ import { startSimulatedBench, type SimulatedBench } from '../../../app/sim';
 import { Vxi11RegistrationError } from '../../../app/sim/vxi11-server';
 import { TEST_DESIGN_JSON } from '../instruments/bench-scenario';
 import { ensurePortmapper } from '../../helpers/portmapper';
+import { startSimProcess } from '../../helpers/sim-process';
 import { requireTool, toolPath } from '../../helpers/required-tool';
 import { openServiceAt } from '../../../app/service/open-service';
 import { PointFlag, type RunDetail } from '../../../app/contract/contract';
@@ -237,4 +238,22 @@ describe.skipIf(!tools)('a full sweep over VXI-11 agrees with the same sweep ove
     expect(compared).toBeGreaterThan(15);
     expect(Math.abs(vxi11.figures.gainLimitHz! / tcp.figures.gainLimitHz! - 1)).toBeLessThan(0.05);
   });
+});
+
+/** `rolloff sim --vxi11` as a user starts it: it prints the resource strings, serves them, and unregisters on Ctrl-C. */
+describe.skipIf(!tools)('rolloff sim --vxi11', () => {
+  it('prints the VXI-11 resource strings, answers on them, and leaves the portmapper clean when stopped', async () => {
+    await ensurePortmapper();
+    const sim = await startSimProcess(['--design', join(__dirname, '../../../app/circuit/examples/inverting-lowpass.json'), '--tcp', '0', '--vxi11']);
+    try {
+      expect(sim.addresses.vxi11).toEqual({ generator: 'TCPIP::127.0.0.1::INSTR', meter: 'TCPIP::127.0.0.1::inst1::INSTR', scope: 'TCPIP::127.0.0.1::inst2::INSTR' });
+      const session = await connect(sim.addresses.vxi11.scope!);
+      expect((await session.identify()).model).toBe('simulated scope');
+      await session.close();
+    } finally {
+      sim.stop();
+      await new Promise((resolve) => sim.process.once('exit', resolve));
+    }
+    expect(await getPort('127.0.0.1', DEVICE_CORE_PROGRAM, DEVICE_CORE_VERSION, 2000)).toBe(0);
+  }, 30_000);
 });

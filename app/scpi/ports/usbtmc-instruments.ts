@@ -7,7 +7,7 @@
  * sysfs-bus-usb). The node the user opens is /dev/usbtmcN.
  */
 import { join } from 'node:path';
-import { classEntries, deviceFolder, usbIdentityOf, type UsbIdentity } from '../ports/sysfs';
+import { classEntries, deviceFolder, usbIdentityOf, type UsbIdentity } from './sysfs';
 
 export interface UsbtmcInstrument {
   /** /dev/usbtmcN. */
