@@ -273,6 +273,8 @@ export const RunFilterSchema = fields({
   search: optional(shortText(true)),
   status: optional(RunStatusSchema),
   buildId: optional(storeId),
+  /** Only the runs of this bench (exact name, as `rolloff runs --bench` takes it). */
+  bench: optional(shortText(false)),
 });
 export type RunFilter = v.InferOutput<typeof RunFilterSchema>;
 
@@ -394,6 +396,8 @@ export interface RunSummary {
   pointCount: number;
   plannedCount: number;
   simulated: boolean;
+  /** The bench that drove the run; '' for runs stored before benches had names. */
+  benchName: string;
 }
 
 export interface RunEvent {

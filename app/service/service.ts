@@ -21,7 +21,7 @@ import { driftSummary, type DriftRow } from '../analysis';
 import { INSTRUMENT_ROLES as ROLES, PointFlag } from '../contract/contract';
 import type {
   RunFigures, BenchStatus, BuildRecord, Comparison, ConnectRequest, ProfileCheckReport, ProfileCheckRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
-  PointColumns, PortListing, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunStatus, RunSummary, ServiceEventName,
+  PointColumns, PortListing, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunFilter, RunStatus, RunSummary, ServiceEventName,
   ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
 } from '../contract/contract';
 import { ServiceEventBus } from '../contract/event-bus';
@@ -363,7 +363,7 @@ export class RolloffService implements RolloffApi {
 
   // ── History, Compare, Record ───────────────────────────────────────────
 
-  async listRuns(filter?: { search?: string; status?: RunStatus; buildId?: number }): Promise<RunSummary[]> {
+  async listRuns(filter?: RunFilter): Promise<RunSummary[]> {
     return this.store.listRuns(filter ?? {});
   }
 

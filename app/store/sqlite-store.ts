@@ -233,7 +233,7 @@ export class SqliteStore implements RolloffStore {
         JOIN run_plans p ON p.run_id = r.id
         JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id WHERE r.id = ?`),
       listRuns: db.prepare(`SELECT r.id, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
-        r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated
+        r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated, r.bench_name
         FROM runs r JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id
         WHERE (@status IS NULL OR r.status = @status) AND (@buildId IS NULL OR r.build_id = @buildId)
           AND (@bench IS NULL OR r.bench_name = @bench)
@@ -673,6 +673,7 @@ function summaryFromRow(row: Row): RunSummary {
     pointCount: row.point_count as number,
     plannedCount: row.planned_count as number,
     simulated: row.simulated === 1,
+    benchName: (row.bench_name as string | null) ?? '',
   };
 }
 
@@ -690,7 +691,6 @@ function storedRunFromRow(row: Row): StoredRun {
     operator: row.operator as string,
     notes: row.notes as string,
     scheduleId: (row.schedule_id as number | null) ?? null,
-    benchName: row.bench_name as string,
     createdAt: row.created_at as string,
     figures: row.figures_json === null ? null : JSON.parse(row.figures_json as string),
     verdict: row.verdict_json === null ? null : JSON.parse(row.verdict_json as string),

@@ -39,8 +39,6 @@ export interface StoredRun extends RunSummary {
   operator: string;
   notes: string;
   scheduleId: number | null;
-  /** The bench that drove the run; '' for runs stored before benches had names. */
-  benchName: string;
   createdAt: string;
   figures: RunFigures | null;
   verdict: Verdict | null;

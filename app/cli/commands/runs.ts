@@ -2,6 +2,7 @@ import type { CommandSpec } from '../args';
 import { optionFlag, optionNumber, optionString } from '../args';
 import { ValidationError } from '../../errors';
 import { RUN_STATUSES as STATUSES, type RunStatus } from '../../contract/contract';
+import { checkBenchName } from '../../bench/bench-name';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../sweep/sweep-options';
@@ -11,20 +12,23 @@ import { runTable } from '../sweep/summary-text';
 export const runsCommand: CommandSpec = {
   name: 'runs',
   summary: 'List stored runs, newest first; runs interrupted by a crash are offered for resume',
-  usage: '[--search TEXT] [--status STATUS] [--build ID] [--db PATH]',
+  usage: '[--search TEXT] [--status STATUS] [--build ID] [--bench NAME] [--db PATH]',
   options: [
     { name: 'search', kind: 'string', placeholder: 'TEXT', description: 'match build label, design name or notes' },
     { name: 'status', kind: 'string', placeholder: 'STATUS', description: `only runs with this status (${STATUSES.join(', ')})` },
     { name: 'build', kind: 'integer', placeholder: 'ID', description: 'only runs of this build' },
+    { name: 'bench', kind: 'string', placeholder: 'NAME', description: 'only runs of this bench (its exact name, as the runs table shows it)' },
     { name: 'json', kind: 'flag', description: 'print as JSON' },
     DATABASE_OPTION,
   ],
   async run(parsed) {
     const status = optionString(parsed, 'status');
     if (status !== undefined && !STATUSES.includes(status as RunStatus)) throw new ValidationError('--status', `"${status}" is not a run status`, `Use one of: ${STATUSES.join(', ')}.`);
+    const benchOption = optionString(parsed, 'bench');
+    const bench = benchOption === undefined ? undefined : checkBenchName(benchOption, '--bench');
     const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
     try {
-      const runs = await service.listRuns({ search: optionString(parsed, 'search'), status: status as RunStatus | undefined, buildId: optionNumber(parsed, 'build') });
+      const runs = await service.listRuns({ search: optionString(parsed, 'search'), status: status as RunStatus | undefined, buildId: optionNumber(parsed, 'build'), bench });
       if (optionFlag(parsed, 'json')) {
         process.stdout.write(JSON.stringify(runs) + '\n');
         return 0;

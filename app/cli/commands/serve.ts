@@ -72,7 +72,7 @@ Examples:
 
     const lines = [
       `Rolloff is serving the window${simulated ? ' with the simulated bench (SIMULATED instruments)' : ''}.`,
-      `Database: ${databasePath}`,
+      `Database: ${hosted.service.store.location}`, // a lab store's address without its password
       `Open ${webHost.url}`,
     ];
     if (webHost.token) lines.push(`Access token: ${webHost.token}`, '  Every request must carry it (the address above does); anyone with it can drive this bench.');

@@ -65,8 +65,8 @@ export function runDetailText(detail: RunDetail, diode?: DiodeTheory): string {
 
 export function runTable(runs: RunSummary[]): string {
   if (runs.length === 0) return 'No runs.\n';
-  const rows = runs.map((r) => [String(r.id), r.kind, r.status, `${r.pointCount}/${r.plannedCount}`, r.buildLabel, r.designName, r.startedAt ?? '—', r.simulated ? 'simulated' : '']);
-  const header = ['run', 'kind', 'status', 'points', 'build', 'design', 'started', ''];
+  const rows = runs.map((r) => [String(r.id), r.kind, r.status, `${r.pointCount}/${r.plannedCount}`, r.buildLabel, r.designName, r.benchName || '—', r.startedAt ?? '—', r.simulated ? 'simulated' : '']);
+  const header = ['run', 'kind', 'status', 'points', 'build', 'design', 'bench', 'started', ''];
   const widths = header.map((h, c) => Math.max(h.length, ...rows.map((row) => row[c].length)));
   return [header, ...rows].map((row) => row.map((cell, c) => cell.padEnd(widths[c])).join('  ').trimEnd()).join('\n') + '\n';
 }

@@ -98,7 +98,7 @@ const POINT_COLUMNS = `run_id, step, stimulus, amplitude_vpp, input_reading, out
   gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at`;
 
 const RUN_SUMMARY_COLUMNS = `r.id, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
-  r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated`;
+  r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated, r.bench_name`;
 
 export class PostgresStore implements RolloffStore {
   readonly location: string;
@@ -720,6 +720,7 @@ function summaryFromRow(row: Row): RunSummary {
     pointCount: row.point_count as number,
     plannedCount: row.planned_count as number,
     simulated: row.simulated === true,
+    benchName: (row.bench_name as string | null) ?? '',
   };
 }
 
@@ -733,7 +734,6 @@ function storedRunFromRow(row: Row): StoredRun {
     operator: row.operator as string,
     notes: row.notes as string,
     scheduleId: (row.schedule_id as number | null) ?? null,
-    benchName: row.bench_name as string,
     createdAt: row.created_at as string,
     figures: (row.figures_json as RunFigures | null) ?? null,
     verdict: (row.verdict_json as Verdict | null) ?? null,

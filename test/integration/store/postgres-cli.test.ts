@@ -7,6 +7,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawn, spawnSync } from 'node:child_process';
 import { join, resolve } from 'node:path';
 import { PostgresStore } from '../../../app/store/postgres/postgres-store';
+import { callService, startServe } from '../../e2e/helpers/serve-process';
+import type { RunSummary } from '../../../app/contract/contract';
 import { postgresAvailable, startPostgresCluster, type PostgresCluster } from '../../helpers/postgres-cluster';
 
 const BIN = join(resolve(__dirname, '../../..'), 'app/cli/bin.mjs');
@@ -19,6 +21,8 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
   });
   afterAll(() => cluster?.remove());
 
+  const twoBenchesUrl = () => (twoBenches ??= cluster.createDatabase('two_benches').replace(`${cluster.role}@`, `${cluster.role}:${encodeURIComponent(cluster.password)}@`));
+  let twoBenches: string | undefined;
   const rolloff = (...args: string[]) => spawnSync(process.execPath, [BIN, ...args], { encoding: 'utf8', timeout: 90_000 });
 
   it('sweeps into the lab store and lists the runs from another process, never printing the password', async () => {
@@ -45,7 +49,7 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
   });
 
   it('two benches (processes named by ROLLOFF_BENCH) sweeping into one new lab database at once both complete, every step stored once, each run with its bench', async () => {
-    const url = cluster.createDatabase('two_benches').replace(`${cluster.role}@`, `${cluster.role}:${encodeURIComponent(cluster.password)}@`);
+    const url = twoBenchesUrl();
     const run = (bench: string) =>
       new Promise<{ status: number | null; stderr: string }>((resolve) => {
         const child = spawn(process.execPath, [BIN, 'demo', '--fast', '--db', url], { stdio: ['ignore', 'ignore', 'pipe'], env: { ...process.env, ROLLOFF_BENCH: bench } });
@@ -73,6 +77,32 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
       expect(await store.integrityProblems()).toEqual([]);
     } finally {
       await store.close();
+    }
+  });
+
+  it('lists the runs of one bench: rolloff runs --bench, and listRuns({ bench }) through the window\'s API of rolloff serve', async () => {
+    const url = twoBenchesUrl(); // swept by the two benches of the test above
+    const table = rolloff('runs', '--bench', 'bench 3', '--db', url);
+    expect(table.status, table.stderr).toBe(0);
+    const rows = table.stdout.trim().split('\n');
+    expect(rows[0]).toMatch(/\bbench\b/); // the bench column
+    expect(rows.slice(1)).toHaveLength(2);
+    for (const row of rows.slice(1)) expect(row).toContain('bench 3');
+    expect(table.stdout).not.toContain('bench 7');
+    const refused = rolloff('runs', '--bench', 'x'.repeat(65), '--db', url);
+    expect(refused.status).toBe(2);
+    expect(refused.stderr).toMatch(/--bench/);
+
+    const serve = await startServe([], { dbPath: url });
+    try {
+      const seven = await callService<RunSummary[]>(serve, 'listRuns', [{ bench: 'bench 7' }]);
+      expect(seven.map((run) => run.benchName)).toEqual(['bench 7', 'bench 7']);
+      const all = await callService<RunSummary[]>(serve, 'listRuns', []);
+      expect(new Set(all.map((run) => run.benchName))).toEqual(new Set(['bench 3', 'bench 7']));
+      await expect(callService(serve, 'listRuns', [{ bench: 7 }])).rejects.toThrow(/bench/);
+      expect(serve.output()).not.toContain(cluster.password);
+    } finally {
+      await serve.stop();
     }
   });
 

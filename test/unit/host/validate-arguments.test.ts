@@ -64,6 +64,7 @@ describe('validateCall', () => {
     expect(validateCall('compareRuns', [[1, 2], 2]).args).toEqual([[1, 2], 2]);
     expect(validateCall('startRun', [GOOD_SWEEP]).args).toEqual([GOOD_SWEEP]);
     expect(validateCall('listRuns', [{ search: 'board A', status: 'paused' }]).args).toEqual([{ search: 'board A', status: 'paused' }]);
+    expect(validateCall('listRuns', [{ bench: 'bench 3' }]).args).toEqual([{ bench: 'bench 3' }]);
     expect(validateCall('listBuilds', []).args).toEqual([]);
     expect(validateCall('connect', [{ role: 'meter', address: ' 127.0.0.1:5025 ', profileId: 'generic-meter' }]).args).toEqual([
       { role: 'meter', address: '127.0.0.1:5025', profileId: 'generic-meter' },
