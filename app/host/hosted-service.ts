@@ -15,7 +15,7 @@ export interface HostedService {
 
 /** The service over the store at databaseLocation (a SQLite path or a database URL). */
 export async function openHostedService(databaseLocation: string, options: RolloffServiceOptions = {}): Promise<HostedService> {
-  const service = await openServiceAt(databaseLocation, options);
+  const service = await openServiceAt(databaseLocation, { followLab: true, ...options });
   return {
     api: service,
     subscribe: (listener) => service.events.onAny(listener),

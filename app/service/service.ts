@@ -25,6 +25,8 @@ import type {
   ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
 } from '../contract/contract';
 import { ServiceEventBus } from '../contract/event-bus';
+import type { StoreChangeFeed } from '../store/types';
+import { followLabChanges } from './lab-changes';
 import { buildDesign, designOf, planTheoryFor } from './theory';
 import { analyzeRun, designForBuild, designForRun, diodeOfRun, runDetail } from './run-detail';
 import { compareDetails } from './compare';
@@ -49,6 +51,8 @@ export interface RolloffServiceOptions {
   maxRefinementPoints?: number;
   /** This bench's name, recorded with each run (default: ROLLOFF_BENCH or the host name, app/bench/bench-name.ts). */
   benchName?: string;
+  /** Pass on the sweeps other processes drive on a shared store as this service's events (windows: serve, desktop). */
+  followLab?: boolean | { forcePolling?: boolean; pollIntervalMs?: number };
 }
 
 /** What a schedule produced: its runs and how their figures drifted. */
@@ -88,6 +92,8 @@ export class RolloffService implements RolloffApi {
   private simulatedBenchHandle: (SimulatedBenchHandle & { designName: string; key: string }) | undefined;
   private maxStimulusVpp: number | undefined;
 
+  private labFeed: StoreChangeFeed | undefined;
+
   private constructor(store: RolloffStore, options: RolloffServiceOptions, maxStimulusVpp: number | undefined) {
     this.store = store;
     this.options = options;
@@ -96,7 +102,17 @@ export class RolloffService implements RolloffApi {
 
   /** The service over an open store, which it owns from now on (close() closes it). */
   static async open(store: RolloffStore, options: RolloffServiceOptions = {}): Promise<RolloffService> {
-    return new RolloffService(store, options, options.maxStimulusVpp ?? (await lastRecordedMaxStimulus(store)));
+    const service = new RolloffService(store, options, options.maxStimulusVpp ?? (await lastRecordedMaxStimulus(store)));
+    if (options.followLab) {
+      const feedOptions = options.followLab === true ? {} : options.followLab;
+      service.labFeed = await followLabChanges({ store, drivesRun: (runId) => service.active.has(runId), emit: (event, payload) => service.events.emit(event, payload), ...feedOptions });
+    }
+    return service;
+  }
+
+  /** How sweeps of other processes reach this service: pushed by the server, polled, or not at all (a store of one process). */
+  get labChanges(): 'listen' | 'poll' | 'off' {
+    return this.labFeed?.mode ?? 'off';
   }
 
   /** Subscribe to one event; returns the unsubscribe function (RolloffClient.on). */
@@ -128,6 +144,7 @@ export class RolloffService implements RolloffApi {
     for (const role of ROLES) await this.disconnect(role);
     await this.simulatedBenchHandle?.stop();
     this.simulatedBenchHandle = undefined;
+    await this.labFeed?.stop();
     await this.store.close();
   }
 

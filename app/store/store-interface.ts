@@ -45,6 +45,8 @@ import type {
   PointBatch,
   RunFilter,
   ScheduleRecord,
+  StoreChange,
+  StoreChangeFeed,
   StoredRun,
 } from './types';
 
@@ -149,8 +151,18 @@ export interface StoreLifecycle {
 }
 
 /** The whole store, as the service holds it. */
+/**
+ * Writes by other processes to a store shared between machines (PostgreSQL), as
+ * they commit; a store only one process writes (SQLite) does not offer it.
+ * The store's own writes are not reported back to it when the server pushes
+ * changes; when polling they may be, so a listener skips the runs it drives.
+ */
+export interface SharedStoreChanges {
+  watchChanges?(listener: (change: StoreChange) => void, options?: { forcePolling?: boolean; pollIntervalMs?: number }): Promise<StoreChangeFeed>;
+}
+
 export interface RolloffStore
-  extends DesignAndBuildStore,
+  extends SharedStoreChanges, DesignAndBuildStore,
     RunStore,
     PointStore,
     RunEventStore,

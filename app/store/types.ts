@@ -168,3 +168,15 @@ export interface StoreOpenOptions {
   /** Clock for timestamps; tests pass a fixed one. */
   now?: () => string;
 }
+
+/** A write to a shared store by another process: which run, and what moved (the listener loads the rest). */
+export interface StoreChange {
+  kind: 'points' | 'status' | 'event';
+  runId: number;
+}
+
+/** A subscription to StoreChange; `mode` says whether the server pushes them (LISTEN) or they are polled. */
+export interface StoreChangeFeed {
+  readonly mode: 'listen' | 'poll';
+  stop(): Promise<void>;
+}

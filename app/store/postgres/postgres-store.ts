@@ -58,9 +58,13 @@ import type {
   PointBatch,
   RunFilter,
   ScheduleRecord,
+  StoreChange,
+  StoreChangeFeed,
   StoreOpenOptions,
   StoredRun,
 } from '../types';
+import { randomUUID } from 'node:crypto';
+import { CHANGE_CHANNEL, changePayload, openChangeFeed } from './change-feed';
 import { connectionFailure, isUnreachable, poolConfigFor, redactDatabaseUrl, sqlState } from './connection';
 import { loadPostgresMigrations, migratePostgres, schemaVersionIn } from './migrations';
 
@@ -107,6 +111,11 @@ export class PostgresStore implements RolloffStore {
   private readonly pool: pg.Pool;
   private readonly now: () => string;
   private closed = false;
+  /** Names this store's writes in change notifications, so its own feed skips them. */
+  private readonly origin = randomUUID();
+  /** Settings for a feed's LISTEN connection. */
+  private listenConfig: pg.ClientConfig = {};
+  private readonly feeds = new Set<StoreChangeFeed>();
 
   private constructor(location: string, pool: pg.Pool, readonly_: boolean, applied: number[], now: () => string) {
     this.location = location;
@@ -141,7 +150,9 @@ export class PostgresStore implements RolloffStore {
     try {
       const applied = await migratePostgres(client, shown, migrations, { readonly, now });
       client.release();
-      return new PostgresStore(shown, pool, readonly, applied, now);
+      const store = new PostgresStore(shown, pool, readonly, applied, now);
+      store.listenConfig = { ...config, types: typeParsers };
+      return store;
     } catch (error) {
       client.release();
       await pool.end().catch(() => {});
@@ -157,6 +168,8 @@ export class PostgresStore implements RolloffStore {
   async close(): Promise<void> {
     if (this.closed) return;
     this.closed = true;
+    for (const feed of [...this.feeds]) await feed.stop();
+    this.feeds.clear();
     await this.pool.end();
   }
 
@@ -350,7 +363,27 @@ export class PostgresStore implements RolloffStore {
       [status, instant(this.now()), FINISHED_STATUSES.has(status), requireId(runId, 'runId')],
     );
     if (result.rowCount === 0) throw new RecordNotFoundError('run', runId);
+    await this.notify({ kind: 'status', runId });
     return this.getRun(runId);
+  }
+
+  /** Tells other processes watching this database (watchChanges) what moved; committed with nothing else, so sent at once. */
+  private async notify(change: StoreChange): Promise<void> {
+    await this.query('SELECT pg_notify($1, $2)', [CHANGE_CHANNEL, changePayload(this.origin, change)]);
+  }
+
+  async watchChanges(listener: (change: StoreChange) => void, options: { forcePolling?: boolean; pollIntervalMs?: number } = {}): Promise<StoreChangeFeed> {
+    const feed = await openChangeFeed({ config: this.listenConfig, pool: this.pool, origin: this.origin, ...options }, listener);
+    this.feeds.add(feed);
+    return {
+      get mode() {
+        return feed.mode;
+      },
+      stop: async () => {
+        this.feeds.delete(feed);
+        await feed.stop();
+      },
+    };
   }
 
   async setRunResults(runId: number, figures: RunFigures, verdict: Verdict | null): Promise<StoredRun> {
@@ -406,10 +439,12 @@ export class PostgresStore implements RolloffStore {
       await this.query(
         {
           name: 'rolloff-insert-point',
-          text: `WITH point AS (INSERT INTO points (${POINT_COLUMNS}) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13) RETURNING run_id)
-                 UPDATE runs SET point_count = point_count + 1 WHERE id = (SELECT run_id FROM point)`,
+          // The notification is sent when this statement commits, with the point: never ahead of it.
+          text: `WITH point AS (INSERT INTO points (${POINT_COLUMNS}) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13) RETURNING run_id),
+                 counted AS (UPDATE runs SET point_count = point_count + 1 WHERE id = (SELECT run_id FROM point) RETURNING id)
+                 SELECT pg_notify('${CHANGE_CHANNEL}', $14) FROM counted`,
         },
-        [runId, ...this.pointValues(point)],
+        [runId, ...this.pointValues(point), changePayload(this.origin, { kind: 'points', runId })],
       );
     } catch (error) {
       throw this.pointFailure(error, runId, [point]);
@@ -558,6 +593,7 @@ export class PostgresStore implements RolloffStore {
       if (sqlState(error) === FOREIGN_KEY_VIOLATION) throw new RecordNotFoundError('run', runId);
       throw error;
     }
+    await this.notify({ kind: 'event', runId });
     return event;
   }
 
