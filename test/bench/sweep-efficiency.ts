@@ -35,9 +35,19 @@
  * settling is counted from the reply — test/integration/sweep/
  * settle-before-acquire.test.ts checks captures against the bench's own
  * record). Everything else (read-back, next time base, storing) overlaps.
+ *
+ * A second table says where each point's time goes, from the link traffic the
+ * service reports (its own timestamps, nothing from inside the runner): the
+ * acquisition's reply beyond its record length, the wait for the generator's
+ * acknowledgement, and the "late start" — the time from the end of settling to
+ * the next acquisition start, which is the runner's own work (fits, store
+ * commit, events) that did not fit inside the settling. Beside it the CPU
+ * time of this process per point (process.cpuUsage) and the load average, so
+ * a loaded machine, which stretches the replies of the simulated bench's
+ * process, can be told apart from the runner's own cost.
  */
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { openServiceAt } from '../../app/service/open-service';
 import { makeDesignFromTemplate } from '../../app/circuit/templates';
@@ -87,6 +97,7 @@ async function main(): Promise<void> {
       service.on('traffic', (t) => trace(`${t.role.padEnd(9)} ${t.direction.padEnd(8)} ${t.text.slice(0, 50)}`));
       service.on('point', (p) => trace(`POINT ${p.index}`));
     }
+    const breakdowns: string[] = [];
     console.log(`sweep efficiency on the simulated bench: link latency ${latencyMs} ms per reply, ${perDecade} points/decade, real time, per connection kind`);
     console.log('link    case                                   points  physical min (plan)   wall time   ratio   set-up   overhead/point   2-reply floor   analysis after');
     for (const link of links) {
@@ -101,15 +112,19 @@ async function main(): Promise<void> {
       const minimumS = independentMinimumS(designFile as unknown as { parts: Array<{ id: string; value?: number }> }, { ...request, minIntegrationS: c.request.measurement === 'meter' ? 0.1 : 0 });
       let lastPointMs = 0;
       let firstSentMs = 0;
+      const timeline: TrafficMoment[] = [];
       const stopPoints = service.on('point', () => (lastPointMs = performance.now()));
       const stopTraffic = service.on('traffic', (t) => {
         if (!firstSentMs && t.role === 'generator' && t.direction === 'sent') firstSentMs = performance.now();
+        timeline.push({ atMs: performance.now(), role: t.role, direction: t.direction, text: t.text });
       });
+      const cpuBefore = process.cpuUsage();
       const started = performance.now();
       if (tracing) trace(`START ${c.name}`);
       const run = await service.startRun(request);
       await service.waitForRun(run.id);
       const doneMs = performance.now();
+      const cpu = process.cpuUsage(cpuBefore);
       stopPoints();
       stopTraffic();
       const wallS = (lastPointMs - started) / 1000;
@@ -122,12 +137,26 @@ async function main(): Promise<void> {
       const ratio = wallS / minimumS;
       const overheadMs = ((wallS - minimumS) / plan.steps.length) * 1000;
       const floorRatio = (minimumS + plan.steps.length * 2 * (latencyMs / 1000)) / minimumS;
+      const parts = c.request.measurement === 'scope' ? scopeBreakdown(timeline, plan.steps, request.averages) : undefined;
+      const cpuMsPerPoint = (cpu.user + cpu.system) / 1000 / plan.steps.length;
+      breakdowns.push(
+        `${link.padEnd(7)} ${c.name.padEnd(38)} ${parts ? `${parts.acquisitionMs.toFixed(1).padStart(8)} ms  ${parts.generatorMs.toFixed(1).padStart(6)} ms  ${parts.lateMs.toFixed(1).padStart(6)} ms (${parts.lateMedianMs.toFixed(1)}/${parts.lateMaxMs.toFixed(1)})` : '       —             —           —                '}   ${cpuMsPerPoint.toFixed(1).padStart(6)} ms   ${loadavg()[0].toFixed(2)}`,
+      );
       console.log(
         `${link.padEnd(7)} ${c.name.padEnd(38)} ${String(plan.steps.length).padStart(6)}  ${minimumS.toFixed(3).padStart(8)} s (${plan.estimatedDurationS.toFixed(3)})  ${wallS.toFixed(3).padStart(8)} s  ${ratio.toFixed(3).padStart(6)}  ${setupMs.toFixed(0).padStart(4)} ms  ${overheadMs.toFixed(1).padStart(8)} ms  ${floorRatio.toFixed(3).padStart(13)}  ${analysisMs.toFixed(0).padStart(8)} ms`,
       );
     }
     }
     console.log('target: ratio ≤ 1.10 (scope case, one acquisition per point, 3 ms per reply)');
+    console.log('');
+    console.log('where a point\'s time goes (ms per point, mean over points; scope cases, from the link traffic):');
+    console.log('  acquisition = start of acquisition to "complete", less the record length (the physical part)');
+    console.log('  generator   = "complete" to the generator\'s acknowledgement of the next setting (waiting)');
+    console.log('  late start  = end of settling (acknowledgement + settle time) to the next acquisition start: the runner\'s');
+    console.log('                own work (fits, store commit, events, scope set-up) that did not fit inside the settling');
+    console.log('  CPU         = this process\'s user+system CPU (runner, store, fits; the simulated bench runs apart)');
+    console.log('link    case                                   acquisition  generator  late start (median/max)   CPU/point   load avg');
+    for (const line of breakdowns) console.log(line);
   } finally {
     await service.close();
     lan.stop();
@@ -135,6 +164,48 @@ async function main(): Promise<void> {
     await new Promise((resolve) => setTimeout(resolve, 500)); // the sims unregister from the portmapper and close their PTYs
     rmSync(folder, { recursive: true, force: true });
   }
+}
+
+interface TrafficMoment {
+  atMs: number;
+  role: string;
+  direction: string;
+  text: string;
+}
+
+/**
+ * Per point, from the link traffic alone: the scope's acquisition start (its
+ * INITiate) and "complete" reply, the generator's acknowledgement of the next
+ * setting that follows, and the next acquisition start. Settling is counted
+ * from that acknowledgement, as the runner does; whatever lies between the end
+ * of settling and the next start is the runner's own work.
+ */
+function scopeBreakdown(timeline: TrafficMoment[], steps: Array<{ settleS: number; integrateS: number }>, averages: number) {
+  const starts: number[] = [];
+  for (const [i, t] of timeline.entries()) if (t.role === 'scope' && t.direction === 'sent' && /^:?INIT/i.test(t.text)) starts.push(i);
+  const acquisition: number[] = [];
+  const generator: number[] = [];
+  const late: number[] = [];
+  for (const [k, at] of starts.entries()) {
+    const complete = timeline.findIndex((t, i) => i > at && t.role === 'scope' && t.direction === 'received');
+    if (complete < 0 || !steps[k]) break;
+    acquisition.push(timeline[complete].atMs - timeline[at].atMs - averages * steps[k].integrateS * 1000);
+    const next = starts[k + 1];
+    if (next === undefined) break;
+    const acknowledged = timeline.findIndex((t, i) => i > complete && i < next && t.role === 'generator' && t.direction === 'received');
+    if (acknowledged < 0) continue; // a re-measured step: no new setting
+    generator.push(timeline[acknowledged].atMs - timeline[complete].atMs);
+    late.push(Math.max(0, timeline[next].atMs - (timeline[acknowledged].atMs + steps[k + 1].settleS * 1000)));
+  }
+  const mean = (values: number[]) => values.reduce((a, b) => a + b, 0) / Math.max(1, values.length);
+  const sorted = [...late].sort((a, b) => a - b);
+  return {
+    acquisitionMs: mean(acquisition),
+    generatorMs: mean(generator),
+    lateMs: mean(late),
+    lateMedianMs: sorted[Math.floor(sorted.length / 2)] ?? 0,
+    lateMaxMs: sorted[sorted.length - 1] ?? 0,
+  };
 }
 
 /** Σ (settle + averages · acquisition) from the design file and the request alone (see the file comment). */

@@ -22,7 +22,7 @@ export function dcMeasurer(options: { clock: BenchClock }): StepMeasurer {
 
     apply: (instruments, setting) => stimulus.apply(instruments, setting, 'dc'),
 
-    async acquire(instruments: SweepInstruments, setting: StepSetting) {
+    async acquire(instruments: SweepInstruments, setting: StepSetting, acquiring: () => void) {
       const meter = instruments.meter!;
       await stimulus.ensure(instruments, setting, 'dc');
       if (apertureChanged(lastIntegrationS, setting.integrateS)) {
@@ -31,7 +31,11 @@ export function dcMeasurer(options: { clock: BenchClock }): StepMeasurer {
       }
       await stimulus.settled(setting.settleS);
       const readings: Reading[] = [];
-      for (let k = 0; k < setting.averages; k++) readings.push(await meter.readDcV());
+      for (let k = 0; k < setting.averages; k++) {
+        const reading = meter.readDcV();
+        if (k === 0) acquiring();
+        readings.push(await reading);
+      }
       return async () => reduceDcReadings(readings, setting.stimulus);
     },
   };

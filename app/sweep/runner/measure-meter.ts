@@ -48,7 +48,7 @@ export function meterMeasurer(options: MeterMeasurerOptions): StepMeasurer {
 
     apply: (instruments, setting) => stimulus.apply(instruments, setting, 'sine'),
 
-    async acquire(instruments: SweepInstruments, setting: StepSetting) {
+    async acquire(instruments: SweepInstruments, setting: StepSetting, acquiring: () => void) {
       const meter = instruments.meter!;
       await stimulus.ensure(instruments, setting, 'sine');
       // Usually done already, right after the previous step's readings (see below).
@@ -56,7 +56,11 @@ export function meterMeasurer(options: MeterMeasurerOptions): StepMeasurer {
       await stimulus.settled(setting.settleS);
       const readings: Reading[] = [];
       // Each reading integrates over the aperture set above (READ? returns when it is done).
-      for (let k = 0; k < setting.averages; k++) readings.push(await meter.readAcRmsV());
+      for (let k = 0; k < setting.averages; k++) {
+        const reading = meter.readAcRmsV();
+        if (k === 0) acquiring();
+        readings.push(await reading);
+      }
       return async (next?: StepSetting) => {
         // The meter is free: the next step's aperture goes out while the generator moves on and the circuit
         // settles. A refused setting is left for the next step's own set-up to report.

@@ -84,7 +84,7 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
 
     apply: (instruments, setting) => (moving = stimulus.apply(instruments, setting, 'sine')),
 
-    async acquire(instruments: SweepInstruments, setting: StepSetting) {
+    async acquire(instruments: SweepInstruments, setting: StepSetting, acquiring: () => void) {
       const scope = instruments.scope!;
       await stimulus.ensure(instruments, setting, 'sine');
       // Usually done already, right after the previous step's read-back (see below).
@@ -92,7 +92,9 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
       await stimulus.settled(setting.settleS);
       // Both channels at once on one time base. Once captured the stimulus is free: the runner moves the
       // generator on while this record is read back.
-      await scope.acquire();
+      const captured = scope.acquire();
+      acquiring();
+      await captured;
       return async (next?: StepSetting) => {
         // The generator's setting for the next step (started by the runner just before this) goes out first:
         // its acknowledgement starts that step's settling, so it should not queue behind this record's

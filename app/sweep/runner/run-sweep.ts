@@ -13,7 +13,7 @@ import { RemeasureStep } from './errors';
 
 /** A step re-measured this often with changed settings (e.g. wider scope scale) is taken as it is. */
 const MAX_REMEASURE = 8;
-import type { StepMeasurer, StepSetting, SweepInstruments } from './types';
+import type { StepMeasurer, StepResult, StepSetting, SweepInstruments } from './types';
 
 export interface SweepRunOptions {
   /** Only the few store methods a sweep uses: a fake of them drives the runner in tests. */
@@ -55,22 +55,80 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
   const startedS = clock.nowS();
   let physicalDoneS = 0;
 
+  // The last measured point waits here until the next step's acquisition is under way, then is stored while
+  // the instrument captures: a store commit (synchronous, fully durable) then neither delays the next
+  // acquisition's start nor shortens anything physical. It is stored before anything else reads the store.
+  let unstored: (() => Promise<void>) | undefined;
+  let storing: Promise<void> | undefined;
+  let storeError: unknown;
+  const startStoring = () => {
+    const storeIt = unstored;
+    if (!storeIt) return;
+    unstored = undefined;
+    storing = storeIt().catch((error: unknown) => {
+      storeError ??= error;
+    });
+  };
+  /** Stores the measured point now unless that has begun, and waits until it is stored. */
+  const stored = async () => {
+    startStoring();
+    await storing;
+    storing = undefined;
+    if (storeError !== undefined) {
+      const error = storeError;
+      storeError = undefined;
+      throw error;
+    }
+  };
+  // Called by the measurer once its acquisition has been sent; the commit waits one turn of the event loop so
+  // that command leaves first.
+  const acquiring = () => void setImmediate(startStoring);
+
+  const storePoint = async (setting: StepSetting, result: StepResult, retried: boolean) => {
+    const flags = result.flags | (retried ? PointFlag.retried : 0) | (setting.refinement ? PointFlag.refinement : 0);
+    await store.insertPoint(runId, {
+      step: setting.step,
+      stimulus: setting.stimulus,
+      amplitudeVpp: setting.amplitudeVpp,
+      inputReading: result.inputReading,
+      outputReading: result.outputReading,
+      gainDb: result.gainDb,
+      gainUncertaintyDb: result.gainUncertaintyDb,
+      phaseDeg: result.phaseDeg,
+      phaseUncertaintyDeg: result.phaseUncertaintyDeg,
+      outputV: result.outputV,
+      flags,
+    });
+    if (result.advice) await log('warning', result.advice);
+    if (result.note) await log('info', result.note);
+    options.emit('point', {
+      runId, index: setting.step, stimulus: setting.stimulus, gainDb: result.gainDb, phaseDeg: result.phaseDeg,
+      outputV: result.outputV, flags, gainUncertaintyDb: result.gainUncertaintyDb, phaseUncertaintyDeg: result.phaseUncertaintyDeg,
+    });
+    physicalDoneS += setting.settleS + setting.averages * setting.integrateS;
+    options.emit('progress', progress(runId, setting.step + 1, await total(), etaS(queue, clock.nowS() - startedS, physicalDoneS) / clock.timeScale, 'running'));
+  };
+
   try {
     await withRecovery(reconnect, recovery);
     for (;;) {
       if (queue.length === 0 && options.nextExtraSteps) {
+        await stored();
         queue = options.nextExtraSteps(await store.loadPoints(runId), await store.nextStep(runId));
         if (queue.length > 0) await log('info', `refinement: ${queue.length} extra point(s) near the −3 dB and gain-limit points`);
       }
       const setting = queue[0];
       if (!setting) break;
-      if (control.pending !== 'none') return await halt(control.pending === 'stop' ? 'stopped' : 'paused');
+      if (control.pending !== 'none') {
+        await stored();
+        return await halt(control.pending === 'stop' ? 'stopped' : 'paused');
+      }
 
       const upcoming = queue[1];
       const attempt = async () => {
         for (let tries = 1; ; tries++) {
           try {
-            const read = await options.measurer.acquire(instruments!, setting);
+            const read = await options.measurer.acquire(instruments!, setting, acquiring);
             // The stimulus of this step is no longer needed: move the generator on so the next step's settling
             // runs while this step's data are read back, reduced and stored.
             const next = upcoming && control.pending === 'none' ? upcoming : undefined;
@@ -84,30 +142,12 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
         }
       };
       const { value: result, retried } = await withRecovery(attempt, recovery);
-      const flags = result.flags | (retried ? PointFlag.retried : 0) | (setting.refinement ? PointFlag.refinement : 0);
-      await store.insertPoint(runId, {
-        step: setting.step,
-        stimulus: setting.stimulus,
-        amplitudeVpp: setting.amplitudeVpp,
-        inputReading: result.inputReading,
-        outputReading: result.outputReading,
-        gainDb: result.gainDb,
-        gainUncertaintyDb: result.gainUncertaintyDb,
-        phaseDeg: result.phaseDeg,
-        phaseUncertaintyDeg: result.phaseUncertaintyDeg,
-        outputV: result.outputV,
-        flags,
-      });
+      // The previous point, unless its storing began while this step acquired.
+      await stored();
       queue.shift();
-      if (result.advice) await log('warning', result.advice);
-      if (result.note) await log('info', result.note);
-      options.emit('point', {
-        runId, index: setting.step, stimulus: setting.stimulus, gainDb: result.gainDb, phaseDeg: result.phaseDeg,
-        outputV: result.outputV, flags, gainUncertaintyDb: result.gainUncertaintyDb, phaseUncertaintyDeg: result.phaseUncertaintyDeg,
-      });
-      physicalDoneS += setting.settleS + setting.averages * setting.integrateS;
-      options.emit('progress', progress(runId, setting.step + 1, await total(), etaS(queue, clock.nowS() - startedS, physicalDoneS) / clock.timeScale, 'running'));
+      unstored = () => storePoint(setting, result, retried);
     }
+    await stored();
     await outputOff(instruments, log);
     await store.updateRunStatus(runId, 'done');
     await log('info', 'sweep finished');
@@ -115,6 +155,8 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
     options.emit('progress', progress(runId, done, done, 0, 'done'));
     return 'done';
   } catch (error) {
+    // A point measured before the failure is kept (unless storing it was the failure).
+    await stored().catch(() => undefined);
     await outputOff(instruments, log);
     await store.updateRunStatus(runId, 'failed');
     await log('error', `sweep failed: ${(error as Error).message}`);

@@ -55,6 +55,10 @@ export interface StepMeasurer {
    * function also sends the next step's measuring-instrument settings (time
    * base, scales, aperture) once this step's data are in, so their round trips
    * overlap the reduction, the store and the next settling.
+   *
+   * `acquiring` is called once the acquisition command has been sent (settling
+   * done, the instrument capturing): the runner stores the previous point
+   * while the capture runs, so that commit never delays the start.
    */
-  acquire(instruments: SweepInstruments, setting: StepSetting): Promise<(next?: StepSetting) => Promise<StepResult>>;
+  acquire(instruments: SweepInstruments, setting: StepSetting, acquiring: () => void): Promise<(next?: StepSetting) => Promise<StepResult>>;
 }

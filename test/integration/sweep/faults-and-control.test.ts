@@ -84,7 +84,9 @@ describe('faults and run control', () => {
     expect(await service.waitForRun(run.id)).toBe('paused');
     expect(service.simulatedBench!.generatorOutputOn()).toBe(false);
     const atPause = (await service.getRun(run.id)).points.step.length;
-    expect(atPause).toBe(3);
+    // A point is stored (and announced) while the next step acquires, so the step under way when the
+    // request came (3) is finished and kept; the run pauses before step 4.
+    expect(atPause).toBe(4);
     expect((await service.listRuns({ status: 'paused' })).map((r) => r.id)).toEqual([run.id]);
 
     const stopAt = atPause + 2;
@@ -96,7 +98,7 @@ describe('faults and run control', () => {
     off();
     const stopped = await service.getRun(run.id);
     expect(stopped.points.step).toEqual(stopped.points.step.map((_, i) => i));
-    expect(stopped.points.step.length).toBe(stopAt + 1);
+    expect(stopped.points.step.length).toBe(stopAt + 2);
     // The generator output is off after the stop (the simulated generator's own state).
     expect(service.simulatedBench!.generatorOutputOn()).toBe(false);
     expect(stopped.events.map((e) => e.message)).toContain('stopped by the user');

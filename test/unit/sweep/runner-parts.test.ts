@@ -130,8 +130,8 @@ describe('cross-check with the scope\'s own measurement', () => {
     const instruments = { generator: { configureSine: async () => {}, setOutput: async () => {} }, scope } as unknown as SweepInstruments;
     const measurer = scopeMeasurer({ clock: manualClock(), expectedGainRatioAt: () => 2 });
     await measurer.prepare(instruments);
-    const first = await (await measurer.acquire(instruments, setting({ step: 0 })))();
-    const second = await (await measurer.acquire(instruments, setting({ step: 1 })))();
+    const first = await (await measurer.acquire(instruments, setting({ step: 0 }), () => {}))();
+    const second = await (await measurer.acquire(instruments, setting({ step: 1 }), () => {}))();
     return { first, second };
   };
 
@@ -186,7 +186,7 @@ describe('scope scales', () => {
     let remeasured = 0;
     let result;
     for (;;) {
-      const read = await measurer.acquire(instruments, step);
+      const read = await measurer.acquire(instruments, step, () => {});
       try {
         result = await read();
         break;
