@@ -9,7 +9,7 @@
  * terminator the session's framer expects (IEEE 488.2 §8.5: the response
  * terminator is NL^END; recalled from memory).
  */
-import { ScpiDisconnectedError, ScpiError, ScpiTimeoutError } from '../errors';
+import { ScpiDisconnectedError, ScpiError, ScpiLinkError, ScpiTimeoutError } from '../errors';
 import { OperationQueue } from '../operation-queue';
 import { TransportListeners, type Transport, type WriteOptions } from '../transport';
 import { Reason } from './protocol';
@@ -124,6 +124,8 @@ export class Vxi11Transport extends TransportListeners implements Transport {
         this.emitData(result.data);
       }
       if ((result.reason & (Reason.end | Reason.termChar)) !== 0) break;
+      // Neither data nor an end: a server that would keep us asking forever.
+      if (result.data.length === 0) throw new ScpiLinkError(this.description, 'VXI-11', 0, `device_read returned no data and no END (reason ${result.reason})`, `device_read for "${command}"`);
     }
     if (last !== LF) this.emitData(Uint8Array.of(LF));
   }
