@@ -15,6 +15,8 @@ export * from './outliers';
  * margin of the equivalent second-order loop.
  */
 export * from './welch';
+/** welchPsdOfRecords(records, fs, options): one estimate over several separate records (degrees of freedom add). */
+export * from './welch-records';
 export * from './peaking-phase-margin';
 /** shapedNoiseRecord({ length, sampleRateHz, densityVPerRtHz, gaussian }) → a Gaussian record with that one-sided density. */
 export * from './shaped-noise';

@@ -123,10 +123,15 @@ export function welchPsd(samplesV: ArrayLike<number>, sampleRateHz: number, opti
     degreesOfFreedom: nu,
     psdRelativeStdError: Math.sqrt(2 / nu),
     densityRelativeStdError: 1 / Math.sqrt(2 * nu),
-    psdInterval95: [nu / chiSquaredQuantile(0.975, nu), nu / chiSquaredQuantile(0.025, nu)],
+    psdInterval95: chiSquaredInterval95(nu),
     enbwHz: (sampleRateHz * s2) / (s1 * s1),
     resolutionHz: sampleRateHz / n,
   };
+}
+
+/** 95 % interval of a true PSD as factors of an estimate with ν degrees of freedom: [ν/χ²(0.975), ν/χ²(0.025)]. */
+export function chiSquaredInterval95(nu: number): [number, number] {
+  return [nu / chiSquaredQuantile(0.975, nu), nu / chiSquaredQuantile(0.025, nu)];
 }
 
 /** Periodic (DFT-even) window weights of length n, as recommended for spectral estimation (Heinzel et al. 2002, §C). */
