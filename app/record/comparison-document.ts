@@ -5,14 +5,15 @@ import type { ComparisonRecord } from './model';
 import { comparisonPlots } from './record-plots';
 import { figureLines, formatDb, formatHz, formatMaybe, idnText, verdictHeadline } from './record-formatting';
 import { SIMULATED_BANNER } from './run-document';
+import { FIGURE_NAMES } from '../contract/vocabulary';
 
 /** Figures shown side by side, with how to print a value and its delta. */
 const COMPARED_FIGURES: Array<{ key: keyof RunFigures; label: string; format: (v: number) => string; formatDelta: (v: number) => string }> = [
   { key: 'passbandGainDb', label: 'Pass-band gain', format: (v) => formatDb(v), formatDelta: (v) => signed(v.toFixed(2)) + ' dB' },
   { key: 'minus3dbHz', label: '−3 dB', format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
-  { key: 'gainLimitHz', label: 'Gain limit', format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
+  { key: 'gainLimitHz', label: FIGURE_NAMES.gainLimitHz, format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
   { key: 'gbwEstimateHz', label: 'GBW estimate', format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
-  { key: 'maxDeviationDb', label: 'Max deviation', format: (v) => formatDb(v), formatDelta: (v) => signed(v.toFixed(2)) + ' dB' },
+  { key: 'maxDeviationDb', label: FIGURE_NAMES.maxDeviationDb, format: (v) => formatDb(v), formatDelta: (v) => signed(v.toFixed(2)) + ' dB' },
 ];
 
 function signed(text: string): string {

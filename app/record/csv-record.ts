@@ -2,52 +2,66 @@
  * A record's points as one RFC 4180 table. Numbers are written in the
  * shortest form that reads back to the same double (ECMAScript Number→String),
  * empty fields stand for readings that were not finite (see the flags column).
- * A comparison writes every run's points with a run_id column and the
- * difference from the reference.
+ * Every column names what it holds and its unit (app/contract/vocabulary.ts):
+ * the output is output_v_peak (scope), output_v_rms (meter) or output_v_dc
+ * (DC runs); a DC table carries no gain or phase columns. A comparison writes
+ * every run's points with a run_id column and the difference from the reference.
  */
 import { writeCsv } from './csv';
 import type { ComparisonRecord, MaybeNumber, RunRecord } from './model';
-import { flagWords } from './record-formatting';
-
-const AC_COLUMNS = ['run_id', 'build_label', 'step', 'frequency_hz', 'amplitude_vpp', 'gain_db', 'gain_uncertainty_db', 'phase_deg', 'phase_uncertainty_deg', 'output_v', 'flags', 'flag_names', 'measured_at'];
-const DC_COLUMNS = ['run_id', 'build_label', 'step', 'input_v', 'amplitude_vpp', 'gain_db', 'gain_uncertainty_db', 'phase_deg', 'phase_uncertainty_deg', 'output_v', 'flags', 'flag_names', 'measured_at'];
+import { flagWords, OUTPUT_COLUMN, outputReadingOf, POINT_COLUMNS as C, type OutputReading } from '../contract/vocabulary';
 
 const numberText = (value: MaybeNumber) => (value === null ? '' : String(value));
 
-function pointRows(record: RunRecord): string[][] {
-  const p = record.points;
-  return p.step.map((step, i) => [
-    String(record.run.id),
-    record.build.label,
-    String(step),
-    numberText(p.stimulus[i]),
-    numberText(p.amplitudeVpp[i]),
-    numberText(p.gainDb[i]),
-    numberText(p.gainUncertaintyDb[i]),
-    numberText(p.phaseDeg[i]),
-    numberText(p.phaseUncertaintyDeg[i]),
-    numberText(p.outputV[i]),
-    String(p.flags[i]),
-    flagWords(p.flags[i]),
-    p.measuredAt[i],
-  ]);
+const readingOf = (record: RunRecord): OutputReading => outputReadingOf(record.run.kind, record.run.plan.measurement);
+
+interface Table {
+  header: string[];
+  rows: (record: RunRecord) => string[][];
 }
 
-function stimulusHeader(kinds: Array<'ac' | 'dc'>): string[] {
-  if (kinds.every((k) => k === 'dc')) return DC_COLUMNS;
-  if (kinds.every((k) => k === 'ac')) return AC_COLUMNS;
-  return AC_COLUMNS.map((c) => (c === 'frequency_hz' ? 'stimulus_hz_or_v' : c));
+/** One table layout for the runs given: their stimulus kind and the output readings they hold. */
+function tableFor(records: RunRecord[]): Table {
+  const kinds = new Set(records.map((r) => r.run.kind));
+  const readings = (['peak', 'rms', 'dc'] as const).filter((reading) => records.some((r) => readingOf(r) === reading));
+  const stimulusColumn = kinds.size > 1 ? C.stimulusMixed : kinds.has('dc') ? C.inputV : C.frequencyHz;
+  const withGain = kinds.has('ac');
+  const header = [
+    C.runId, C.buildLabel, C.step, stimulusColumn, C.stimulusSettingVpp,
+    ...(withGain ? [C.gainDb, C.gainUncertaintyDb, C.phaseDeg, C.phaseUncertaintyDeg] : []),
+    ...readings.map((reading) => OUTPUT_COLUMN[reading]),
+    C.flags, C.flagWords, C.measuredAt,
+  ];
+  const rows = (record: RunRecord) => {
+    const p = record.points;
+    const own = readingOf(record);
+    return p.step.map((step, i) => [
+      String(record.run.id),
+      record.build.label,
+      String(step),
+      numberText(p.stimulus[i]),
+      numberText(p.amplitudeVpp[i]),
+      ...(withGain ? [numberText(p.gainDb[i]), numberText(p.gainUncertaintyDb[i]), numberText(p.phaseDeg[i]), numberText(p.phaseUncertaintyDeg[i])] : []),
+      ...readings.map((reading) => (reading === own ? numberText(p.outputV[i]) : '')),
+      String(p.flags[i]),
+      flagWords(p.flags[i]),
+      p.measuredAt[i],
+    ]);
+  };
+  return { header, rows };
 }
 
 export function runCsv(record: RunRecord): string {
-  return writeCsv(stimulusHeader([record.run.kind]), pointRows(record));
+  const table = tableFor([record]);
+  return writeCsv(table.header, table.rows(record));
 }
 
 export function comparisonCsv(record: ComparisonRecord): string {
-  const header = [...stimulusHeader(record.runs.map((r) => r.run.kind)), 'delta_from_reference_db'];
+  const table = tableFor(record.runs);
+  const header = [...table.header, C.deltaFromReferenceDb];
   const rows = record.runs.flatMap((run) => {
     const difference = record.differences.find((d) => d.runId === run.run.id);
-    return pointRows(run).map((row, i) => {
+    return table.rows(run).map((row, i) => {
       const stimulus = run.points.stimulus[i];
       // Differences normally share the run's stimulus grid; match by value so a thinned grid still lines up.
       let delta: MaybeNumber = null;

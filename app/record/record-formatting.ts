@@ -2,29 +2,10 @@
 import { PointFlag, type InstrumentIdentity, type RunFigures, type Verdict } from '../contract/contract';
 import { formatEngineering } from '../units';
 import type { MaybeNumber } from './model';
+import { FIGURE_NAMES } from '../contract/vocabulary';
 
-export const FLAG_NAMES: Record<keyof typeof PointFlag, string> = {
-  distorted: 'distorted',
-  overrange: 'overrange',
-  notANumber: 'not a number',
-  outsideToleranceBand: 'outside tolerance band',
-  retried: 'retried',
-  refinement: 'refinement point',
-  pastGainLimit: 'past gain limit',
-};
-
-/** Flag bits → words, e.g. 9 → "distorted; outside tolerance band". Unknown bits are named by value. */
-export function flagWords(flags: number): string {
-  const words: string[] = [];
-  let known = 0;
-  for (const [key, bit] of Object.entries(PointFlag) as Array<[keyof typeof PointFlag, number]>) {
-    known |= bit;
-    if (flags & bit) words.push(FLAG_NAMES[key]);
-  }
-  const unknown = flags & ~known;
-  if (unknown) words.push(`unknown flags ${unknown}`);
-  return words.join('; ');
-}
+/** Point flags as words: one table for every surface (app/contract/vocabulary.ts). */
+export { flagWords, FLAG_WORDS as FLAG_NAMES } from '../contract/vocabulary';
 
 export function formatMaybe(value: MaybeNumber | undefined, format: (v: number) => string, missing = '—'): string {
   return value === null || value === undefined || !Number.isFinite(value) ? missing : format(value);
@@ -57,14 +38,14 @@ export interface FigureLine {
 export function figureLines(figures: RunFigures): FigureLine[] {
   const lines: FigureLine[] = [];
   if (isNumber(figures.passbandGainDb)) lines.push({ key: 'passbandGainDb', label: 'Pass-band gain', value: formatDb(figures.passbandGainDb) });
-  if (figures.minus3dbHz && figures.minus3dbHz.length > 0) lines.push({ key: 'minus3dbHz', label: '−3 dB frequencies', value: figures.minus3dbHz.map(formatHz).join(', ') });
+  if (figures.minus3dbHz && figures.minus3dbHz.length > 0) lines.push({ key: 'minus3dbHz', label: FIGURE_NAMES.minus3dbHz, value: figures.minus3dbHz.map(formatHz).join(', ') });
   if (isNumber(figures.rolloffDbPerDecade)) lines.push({ key: 'rolloffDbPerDecade', label: 'Roll-off', value: `${figures.rolloffDbPerDecade.toFixed(1)} dB/decade` });
-  if (isNumber(figures.gainLimitHz)) lines.push({ key: 'gainLimitHz', label: 'Gain-limit point (loop gain = 1)', value: formatHz(figures.gainLimitHz) });
+  if (isNumber(figures.gainLimitHz)) lines.push({ key: 'gainLimitHz', label: `${FIGURE_NAMES.gainLimitHz} (loop gain = 1)`, value: formatHz(figures.gainLimitHz) });
   if (isNumber(figures.gbwEstimateHz)) {
     const uncertainty = isNumber(figures.gbwUncertaintyHz) ? ` ± ${formatHz(figures.gbwUncertaintyHz)}` : '';
     lines.push({ key: 'gbwEstimateHz', label: 'Op-amp gain-bandwidth estimate', value: formatHz(figures.gbwEstimateHz) + uncertainty });
   }
-  if (isNumber(figures.maxDeviationDb)) lines.push({ key: 'maxDeviationDb', label: 'Largest deviation from theory', value: formatDb(figures.maxDeviationDb) });
+  if (isNumber(figures.maxDeviationDb)) lines.push({ key: 'maxDeviationDb', label: FIGURE_NAMES.maxDeviationDb, value: formatDb(figures.maxDeviationDb) });
   if (isNumber(figures.closedLoopPeakingDb)) {
     const theory = isNumber(figures.theoryPeakingDb) ? ` (computed ${formatDb(figures.theoryPeakingDb)})` : '';
     lines.push({ key: 'closedLoopPeakingDb', label: 'Closed-loop peaking (measured over ideal gain)', value: formatDb(figures.closedLoopPeakingDb) + theory });
@@ -79,7 +60,7 @@ export function figureLines(figures: RunFigures): FigureLine[] {
   if (fit) {
     const ci = (pair: [number, number], format: (v: number) => string) => `95 % interval ${format(pair[0])} … ${format(pair[1])}`;
     const plain = (v: number) => v.toPrecision(4);
-    lines.push({ key: 'logFit.n', label: 'Diode ideality factor n', value: `${plain(fit.n)} (${ci(fit.nCi, plain)})` });
+    lines.push({ key: 'logFit.n', label: FIGURE_NAMES.diodeIdealityN, value: `${plain(fit.n)} (${ci(fit.nCi, plain)})` });
     lines.push({ key: 'logFit.isA', label: 'Saturation current I_S', value: `${formatEngineering(fit.isA, 'A', 4)} (${ci(fit.isCi, (v) => formatEngineering(v, 'A', 4))})` });
     lines.push({ key: 'logFit.rsOhm', label: 'Series resistance R_S', value: `${formatEngineering(fit.rsOhm, 'Ω', 4)} (${ci(fit.rsCi, (v) => formatEngineering(v, 'Ω', 4))})` });
   }

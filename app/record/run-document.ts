@@ -4,6 +4,7 @@ import type { Block, RecordDocument } from './record-document';
 import type { RecordDesign, RunRecord } from './model';
 import { runPlots } from './record-plots';
 import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatUncertainty, formatVolts, idnText, verdictHeadline } from './record-formatting';
+import { FIGURE_NAMES, SETTINGS } from '../contract/vocabulary';
 
 export const SIMULATED_BANNER = 'SIMULATED BENCH — these readings come from the simulated bench and describe a computed circuit, not a physical board.';
 
@@ -21,7 +22,7 @@ export function runDocument(record: RunRecord): RecordDocument {
         ['Started', run.startedAt ?? '—'],
         ['Ended', run.endedAt ?? '—'],
         ['Points', `${run.pointCount} of ${run.plannedCount} planned`],
-        ['Measured with', `Rolloff ${run.softwareVersion}`],
+        ['Software that measured the run', `Rolloff ${run.softwareVersion}`],
         ['Bench', run.simulated ? 'simulated (simulated bench)' : 'physical instruments'],
         ['Data digest (SHA-256)', record.digest.hex],
       ],
@@ -157,7 +158,7 @@ function planBlocks(record: RunRecord): Block[] {
   const limitText = limits
     ? [
         limits.maxDeviationDb !== undefined ? `|measured − theory| ≤ ${limits.maxDeviationDb} dB` : null,
-        limits.cornerTolerance !== undefined ? `−3 dB points within ±${(limits.cornerTolerance * 100).toFixed(1)} %` : null,
+        limits.cornerTolerance !== undefined ? `${FIGURE_NAMES.minus3dbHz} within ±${(limits.cornerTolerance * 100).toFixed(1)} %` : null,
         limits.passbandGainDb ? `pass-band gain ${limits.passbandGainDb[0]} … ${limits.passbandGainDb[1]} dB` : null,
       ].filter(Boolean).join('; ') || 'none'
     : 'none';
@@ -168,8 +169,8 @@ function planBlocks(record: RunRecord): Block[] {
       rows: [
         ['Sweep', `${unitFormat(plan.from)} to ${unitFormat(plan.to)}, ${plan.spacing}, ${plan.pointsPerDecade} points per decade`],
         ['Stimulus amplitude', amplitude],
-        ['Maximum stimulus in force', plan.maxStimulusVpp !== undefined ? formatEngineering(plan.maxStimulusVpp, 'Vpp') : 'not recorded'],
-        ['Measured with', `${plan.measurement}${plan.through ? ' (through calibration: the stage was bypassed)' : ''}`],
+        [`${SETTINGS.maxStimulus.label} in force`, plan.maxStimulusVpp !== undefined ? formatEngineering(plan.maxStimulusVpp, 'Vpp') : 'not recorded'],
+        ['Output read by', `${plan.measurement}${plan.through ? ' (through calibration: the stage was bypassed)' : ''}`],
         ['Minimum cycles / averages', `${plan.minCycles} / ${plan.averages}`],
         ['Refinement near corners', plan.refine ? 'yes' : 'no'],
         ['Limits', limitText],
@@ -181,8 +182,8 @@ function planBlocks(record: RunRecord): Block[] {
 
 function figureBlocks(record: RunRecord): Block[] {
   const rows: Array<[string, string]> = figureLines(record.figures).map((line) => [line.label, line.value]);
-  if (record.theory.gainLimitHz !== null) rows.push(['Gain-limit point, theory', formatHz(record.theory.gainLimitHz)]);
-  if (record.theory.minus3dbHz.length > 0) rows.push(['−3 dB frequencies, theory', record.theory.minus3dbHz.map(formatHz).join(', ')]);
+  if (record.theory.gainLimitHz !== null) rows.push([`${FIGURE_NAMES.gainLimitHz}, theory`, formatHz(record.theory.gainLimitHz)]);
+  if (record.theory.minus3dbHz.length > 0) rows.push([`${FIGURE_NAMES.minus3dbHz}, theory`, record.theory.minus3dbHz.map(formatHz).join(', ')]);
   if (record.dcFit) rows.push(['Fitted curve (plot)', record.dcFit.description]);
   return [{ kind: 'heading', text: 'Extracted figures' }, rows.length ? { kind: 'keyValues', rows } : { kind: 'paragraph', text: 'No figures were extracted from this run.' }];
 }

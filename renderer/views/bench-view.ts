@@ -10,6 +10,7 @@ import { field, h, replaceChildren, select } from '../dom';
 import { guarded, showInfo, showPartResult } from '../notices';
 import type { View } from '../shell';
 import type { AppState } from '../state';
+import { SETTINGS } from '../../app/contract/vocabulary';
 
 /** Enough scroll-back to see a sweep's recent exchanges without the page growing without bound. */
 const TRAFFIC_LINES_KEPT = 400;
@@ -72,7 +73,7 @@ export class BenchView implements View {
     });
 
     const maxButton = h('button', { type: 'submit' }, 'Apply');
-    const maxForm = h('form', { className: 'stack-form', 'aria-label': 'Maximum stimulus amplitude' }, field('Maximum stimulus (V peak-to-peak)', this.maxInput, 'The generator is never driven above this. Engineering notation works: 500m, 2.'), maxButton);
+    const maxForm = h('form', { className: 'stack-form', 'aria-label': 'Maximum stimulus amplitude' }, field(`${SETTINGS.maxStimulus.label} (V peak-to-peak)`, this.maxInput, `${SETTINGS.maxStimulus.explanation[0].toUpperCase()}${SETTINGS.maxStimulus.explanation.slice(1)}. Engineering notation works: 500m, 2.`), maxButton);
     maxForm.addEventListener('submit', (event) => {
       event.preventDefault();
       void guarded(maxButton, 'Setting the maximum stimulus', async () => {
@@ -108,7 +109,7 @@ export class BenchView implements View {
       ),
       h('div', { className: 'start-row' },
         h('div', { className: 'panel' }, h('h3', {}, 'Connect'), connectForm),
-        h('div', { className: 'panel' }, h('h3', {}, 'Safety limit'), maxForm),
+        h('div', { className: 'panel' }, h('h3', {}, SETTINGS.maxStimulus.label), maxForm),
         h('div', { className: 'panel' }, h('h3', {}, 'Simulated bench ', h('span', { className: 'badge simulated' }, 'simulated')), simulatedForm, this.simulatedStatus),
       ),
       h('div', { className: 'panel' },

@@ -13,6 +13,7 @@ import { FrequencyChart } from '../plot/frequency-chart';
 import { PLOT_COLORS } from '../plot/bode-plot';
 import type { View } from '../shell';
 import type { AppState } from '../state';
+import { FIGURE_NAMES } from '../../app/contract/vocabulary';
 
 export class CompareView implements View {
   readonly id = 'compare' as const;
@@ -119,15 +120,15 @@ export class CompareView implements View {
   private renderTable(comparison: Comparison): void {
     const rows: Array<[string, keyof RunFigures, (v: number | undefined) => string, string]> = [
       ['Pass-band gain', 'passbandGainDb', (v) => formatDb(v), 'dB'],
-      ['Gain-limit point', 'gainLimitHz', formatHz, 'Hz'],
+      [FIGURE_NAMES.gainLimitHz, 'gainLimitHz', formatHz, 'Hz'],
       ['GBW estimate', 'gbwEstimateHz', formatHz, 'Hz'],
       ['Roll-off (dB/decade)', 'rolloffDbPerDecade', (v) => (v === undefined ? '—' : v.toFixed(1)), 'dB/dec'],
-      ['Largest deviation', 'maxDeviationDb', (v) => formatDb(v), 'dB'],
+      [FIGURE_NAMES.maxDeviationDb, 'maxDeviationDb', (v) => formatDb(v), 'dB'],
     ];
     replaceChildren(
       this.table,
       h('table', { className: 'data-table' },
-        h('thead', {}, h('tr', {}, h('th', { scope: 'col' }, 'Run'), rows.map(([title]) => h('th', { scope: 'col' }, title)), h('th', { scope: 'col' }, '−3 dB points'), h('th', { scope: 'col' }, 'Verdict'))),
+        h('thead', {}, h('tr', {}, h('th', { scope: 'col' }, 'Run'), rows.map(([title]) => h('th', { scope: 'col' }, title)), h('th', { scope: 'col' }, FIGURE_NAMES.minus3dbHz), h('th', { scope: 'col' }, 'Verdict'))),
         h('tbody', {}, comparison.figureTable.map((entry) =>
           h('tr', {},
             h('th', { scope: 'row' }, colourSwatch(runColor(comparison.runs.findIndex((r) => r.id === entry.runId), comparison.runs.length)), entry.label),

@@ -14,6 +14,7 @@ import { guarded, showError, showInfo } from '../notices';
 import { BodePlot } from '../plot/bode-plot';
 import type { View } from '../shell';
 import type { AppState } from '../state';
+import { FIGURE_NAMES } from '../../app/contract/vocabulary';
 
 /** The display range of the Design view's theory plot: wide enough for audio and instrumentation stages. */
 const THEORY_FROM_HZ = 1;
@@ -30,7 +31,7 @@ const OPAMP_FIELDS: Array<{ key: string; label: string; unit: string }> = [
 ];
 const DIODE_FIELDS: Array<{ key: string; label: string; unit: string }> = [
   { key: 'is', label: 'Saturation current IS', unit: 'A' },
-  { key: 'n', label: 'Emission coefficient n', unit: '' },
+  { key: 'n', label: FIGURE_NAMES.diodeIdealityN, unit: '' },
   { key: 'rs', label: 'Series resistance RS', unit: 'Ω' },
 ];
 
@@ -278,8 +279,8 @@ export class DesignView implements View {
       replaceChildren(
         this.figures,
         h('dt', {}, 'Pass-band gain'), h('dd', { 'data-figure': 'passband' }, formatDb(summary.passbandGainDb)),
-        h('dt', {}, '−3 dB points'), h('dd', { 'data-figure': 'minus3db' }, summary.minus3dbHz.length ? summary.minus3dbHz.map((f) => formatHz(f)).join(', ') : 'none in range'),
-        h('dt', {}, 'Gain-limit point'), h('dd', { 'data-figure': 'gain-limit' }, formatHz(summary.gainLimitHz)),
+        h('dt', {}, FIGURE_NAMES.minus3dbHz), h('dd', { 'data-figure': 'minus3db' }, summary.minus3dbHz.length ? summary.minus3dbHz.map((f) => formatHz(f)).join(', ') : 'none in range'),
+        h('dt', {}, FIGURE_NAMES.gainLimitHz), h('dd', { 'data-figure': 'gain-limit' }, formatHz(summary.gainLimitHz)),
         h('dt', {}, 'Roll-off'), h('dd', {}, summary.rolloffDbPerDecade === undefined ? '—' : `${summary.rolloffDbPerDecade.toFixed(1)} dB/decade`),
         h('dt', {}, 'Tolerance band'), h('dd', {}, hasTolerances ? `2.5–97.5 % of ${TOLERANCE_BAND_SETTINGS.samples} Monte Carlo samples` : 'no part tolerances given'),
         h('dt', {}, 'Phase margin'), h('dd', { 'data-figure': 'phase-margin' }, margins.length ? margins.join('; ') : 'no loop-gain crossover (ideal op-amp)'),

@@ -15,6 +15,7 @@ import { guarded, showError } from '../notices';
 import { BodePlot } from '../plot/bode-plot';
 import type { View } from '../shell';
 import type { AppState } from '../state';
+import { FIGURE_NAMES } from '../../app/contract/vocabulary';
 
 const EVENTS_KEPT = 300;
 
@@ -292,11 +293,11 @@ export class SweepView implements View {
   private renderFigures(figures: RunFigures, verdict: Verdict | null): void {
     const rows: Array<[string, string]> = [];
     if (figures.passbandGainDb !== undefined) rows.push(['Pass-band gain', formatDb(figures.passbandGainDb)]);
-    if (figures.minus3dbHz.length > 0) rows.push(['−3 dB points', figures.minus3dbHz.map((f) => formatHz(f)).join(', ')]);
-    if (figures.gainLimitHz !== undefined) rows.push(['Gain-limit point (measured)', formatHz(figures.gainLimitHz)]);
+    if (figures.minus3dbHz.length > 0) rows.push([FIGURE_NAMES.minus3dbHz, figures.minus3dbHz.map((f) => formatHz(f)).join(', ')]);
+    if (figures.gainLimitHz !== undefined) rows.push([`${FIGURE_NAMES.gainLimitHz} (measured)`, formatHz(figures.gainLimitHz)]);
     if (figures.gbwEstimateHz !== undefined) rows.push(['GBW estimate', `${formatHz(figures.gbwEstimateHz)}${figures.gbwUncertaintyHz !== undefined ? ` ± ${formatHz(figures.gbwUncertaintyHz)}` : ''}`]);
     if (figures.rolloffDbPerDecade !== undefined) rows.push(['Roll-off', `${figures.rolloffDbPerDecade.toFixed(1)} dB/decade`]);
-    if (figures.maxDeviationDb !== undefined) rows.push(['Largest deviation from theory', formatDb(figures.maxDeviationDb)]);
+    if (figures.maxDeviationDb !== undefined) rows.push([FIGURE_NAMES.maxDeviationDb, formatDb(figures.maxDeviationDb)]);
     if (figures.closedLoopPeakingDb !== undefined) {
       rows.push(['Closed-loop peaking', `${formatDb(figures.closedLoopPeakingDb)}${figures.theoryPeakingDb !== undefined ? ` (computed ${formatDb(figures.theoryPeakingDb)})` : ''}`]);
     }
@@ -309,7 +310,7 @@ export class SweepView implements View {
     const fit = figures.logFit;
     if (fit) {
       const interval = (value: number, ci: [number, number], unit: string) => `${formatEngineering(value, unit)} (95 %: ${formatEngineering(ci[0], unit)} … ${formatEngineering(ci[1], unit)})`;
-      rows.push(['Emission coefficient n', `${fit.n.toFixed(3)} (95 %: ${fit.nCi[0].toFixed(3)} … ${fit.nCi[1].toFixed(3)})`]);
+      rows.push([FIGURE_NAMES.diodeIdealityN, `${fit.n.toFixed(3)} (95 %: ${fit.nCi[0].toFixed(3)} … ${fit.nCi[1].toFixed(3)})`]);
       rows.push(['Saturation current IS', interval(fit.isA, fit.isCi, 'A')]);
       rows.push(['Series resistance RS', interval(fit.rsOhm, fit.rsCi, 'Ω')]);
     }

@@ -218,9 +218,9 @@ describe.skipIf(!requireTool('chromium'))('the window in Chromium against rollof
     await expect.poll(() => page.getByTestId('run-header').textContent(), { timeout: 10_000 }).toMatch(/^Run #3:/);
     await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 60_000 }).toBe('done');
     const figures = page.getByTestId('run-figures');
-    await expect.poll(() => figures.textContent(), { timeout: 10_000 }).toMatch(/Emission coefficient n/);
+    await expect.poll(() => figures.textContent(), { timeout: 10_000 }).toMatch(/Diode ideality factor n/);
     // The simulated diode has n = 1 (the template's default); the fit should find it within a few per cent.
-    const n = Number(/Emission coefficient n\s*([\d.]+)/.exec((await figures.textContent()) ?? '')?.[1]);
+    const n = Number(/Diode ideality factor n\s*([\d.]+)/.exec((await figures.textContent()) ?? '')?.[1]);
     expect(Math.abs(n - 1)).toBeLessThan(0.05);
     await shot('10-dc-sweep');
   });

@@ -120,7 +120,7 @@ export const exportCommand: CommandSpec = {
   options: [
     { name: 'pdf', kind: 'flag', description: 'PDF with vector Bode plots, tables, digest and safety notice' },
     { name: 'html', kind: 'flag', description: 'one self-contained HTML file (inline SVG plots, no scripts)' },
-    { name: 'csv', kind: 'flag', description: 'the points as RFC 4180 CSV, units in the column names' },
+    { name: 'csv', kind: 'flag', description: 'the points as RFC 4180 CSV, units in the column names: frequency_hz or input_v_dc, stimulus_setting_vpp (the generator setting), output_v_peak (scope), output_v_rms (meter) or output_v_dc (DC runs, which carry no gain or phase columns)' },
     { name: 'json', kind: 'flag', description: 'everything needed to rebuild the record (schema: app/record/record.schema.json)' },
     { name: 'out', kind: 'string', placeholder: 'PATH', description: 'file to write, or an existing folder; "-" writes to standard output (default: record name in the current folder)' },
     { name: 'force', kind: 'flag', description: 'replace the --out file if it exists' },

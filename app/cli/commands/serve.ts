@@ -9,6 +9,7 @@ import { resolveDatabasePath } from '../../store';
 import { bundleRenderer } from '../../host/renderer-bundle';
 import { startWebHost } from '../../host/web-host';
 import { openHostedService } from '../../host/hosted-service';
+import { SETTINGS } from '../../contract/vocabulary';
 
 /** Simulated bench seconds per wall second with --simulated: a 40-point sweep takes seconds, not minutes (common practice, no source). */
 const DEFAULT_SIMULATED_TIME_SCALE = 10;
@@ -23,7 +24,7 @@ export const serveCommand: CommandSpec = {
     { name: 'db', kind: 'string', description: 'database file (default: ROLLOFF_DB or the per-user data folder)', placeholder: 'PATH' },
     { name: 'simulated', kind: 'flag', aliases: ['virtual'], description: 'run the simulated bench on a fast clock (simulated instruments; start it on the Bench view)' },
     { name: 'time-scale', kind: 'number', description: 'simulated bench seconds per wall-clock second, with --simulated', defaultValue: DEFAULT_SIMULATED_TIME_SCALE, placeholder: 'N' },
-    { name: 'max-amplitude', kind: 'number', description: 'maximum stimulus, V peak-to-peak (else set it on the Bench view)', placeholder: 'VPP' },
+    { name: 'max-amplitude', kind: 'number', description: `${SETTINGS.maxStimulus.label}, V peak-to-peak: ${SETTINGS.maxStimulus.explanation} (else set it on the Bench view)`, placeholder: 'VPP' },
     { name: 'require-token', kind: 'flag', description: 'require the access token even on a loopback address' },
   ],
   details: `

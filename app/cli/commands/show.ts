@@ -2,13 +2,11 @@ import type { CommandSpec } from '../args';
 import { optionFlag, optionString, requirePositional } from '../args';
 import { formatEngineering } from '../../units';
 import { ValidationError } from '../../errors';
-import { PointFlag } from '../../contract/contract';
+import { flagWords } from '../../contract/vocabulary';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../sweep/sweep-options';
 import { runDetailText } from '../sweep/summary-text';
-
-const FLAG_NAMES = Object.entries(PointFlag) as Array<[string, number]>;
 
 export const showCommand: CommandSpec = {
   name: 'show',
@@ -17,7 +15,7 @@ export const showCommand: CommandSpec = {
   options: [
     { name: 'points', kind: 'flag', description: 'list the measured points with uncertainties and flags' },
     { name: 'events', kind: 'flag', description: 'list the run\'s events' },
-    { name: 'json', kind: 'flag', description: 'print the whole run (RunDetail) as JSON' },
+    { name: 'json', kind: 'flag', description: 'print the whole run as JSON: plan, figures, verdict, points and events' },
     DATABASE_OPTION,
   ],
   async run(parsed) {
@@ -34,7 +32,7 @@ export const showCommand: CommandSpec = {
         const p = detail.points;
         process.stdout.write(`\n${'step'.padEnd(5)} ${(detail.kind === 'ac' ? 'frequency' : 'input').padEnd(12)} ${'amplitude'.padEnd(11)} ${(detail.kind === 'ac' ? 'gain dB' : 'output V').padEnd(16)} ${'phase °'.padEnd(16)} flags\n`);
         for (let i = 0; i < p.step.length; i++) {
-          const flags = FLAG_NAMES.filter(([, bit]) => (p.flags[i] & bit) !== 0).map(([name]) => name).join(',');
+          const flags = flagWords(p.flags[i]);
           const main = detail.kind === 'ac' ? `${p.gainDb[i].toFixed(3)} ±${p.gainUncertaintyDb[i].toPrecision(2)}` : `${p.outputV[i].toPrecision(6)}`;
           const phase = Number.isFinite(p.phaseDeg[i]) ? `${p.phaseDeg[i].toFixed(2)} ±${p.phaseUncertaintyDeg[i].toPrecision(2)}` : '—';
           process.stdout.write(`${String(p.step[i]).padEnd(5)} ${formatEngineering(p.stimulus[i], detail.kind === 'ac' ? 'Hz' : 'V').padEnd(12)} ${formatEngineering(p.amplitudeVpp[i], 'Vpp').padEnd(11)} ${main.padEnd(16)} ${phase.padEnd(16)} ${flags}\n`);

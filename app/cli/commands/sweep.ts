@@ -11,7 +11,7 @@ export const sweepCommand: CommandSpec = {
   name: 'sweep',
   summary: 'Sweep a build (frequency or DC transfer), store every point, compare with theory',
   usage: '(--build ID | --design FILE.json [--label TEXT] [--actual PART=VALUE …]) (--simulated | --generator ADDR --scope ADDR|--meter ADDR) [options]',
-  options: [...BUILD_OPTIONS, ...BENCH_OPTIONS, ...PLAN_OPTIONS, { name: 'json', kind: 'flag', description: 'print the finished run (RunDetail) as JSON on stdout' }],
+  options: [...BUILD_OPTIONS, ...BENCH_OPTIONS, ...PLAN_OPTIONS, { name: 'json', kind: 'flag', description: 'print the finished run as JSON on stdout (as rolloff show RUN --json)' }],
   details: `
 Examples:
   rolloff sweep --design lowpass.json --label "board A" --simulated --max-amplitude 2

@@ -32,6 +32,7 @@ import {
 } from '../../circuit';
 import { SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
 import { optionFlag, optionNumber, optionString, requirePositional, type CommandSpec, type ParsedArgs } from '../args';
+import { FIGURE_NAMES } from '../../contract/vocabulary';
 
 type Format = 'table' | 'csv' | 'json';
 
@@ -45,7 +46,7 @@ export const theoryCommand: CommandSpec = {
     { name: 'per-decade', kind: 'integer', placeholder: 'N', description: 'log-spaced points per decade (AC default 20, DC default 10)' },
     { name: 'csv', kind: 'flag', description: 'print CSV (full precision) instead of a table' },
     { name: 'json', kind: 'flag', description: 'print JSON (columns plus summary) instead of a table' },
-    { name: 'summary', kind: 'flag', description: 'print only the figures: pass-band gain, −3 dB points, gain-limit point, roll-off, phase and gain margin (with --noise: margins, peaking and band noise)' },
+    { name: 'summary', kind: 'flag', description: 'print only the figures: pass-band gain, −3 dB frequencies, gain-limit point, roll-off, phase and gain margin (with --noise: margins, peaking and band noise)' },
     { name: 'noise', kind: 'flag', description: 'output noise density (V/√Hz): total, input-referred and each resistor\'s and op-amp\'s share' },
     { name: 'band', kind: 'string', placeholder: 'FROM:TO', description: 'with --noise: band for the RMS noise, Hz (default: the sweep, --from:--to)' },
     { name: 'min-phase-margin', kind: 'number', placeholder: 'DEG', description: 'warn when an op-amp\'s phase margin is below this', defaultValue: DEFAULT_MIN_PHASE_MARGIN_DEG },
@@ -293,8 +294,8 @@ function summaryLines(design: Design, s: AcSummary, tauS: number): string[] {
   const lines = [
     `Design: ${design.name}`,
     `Pass-band gain:     ${s.passbandGainDb.toFixed(3)} dB`,
-    `−3 dB points:       ${s.minus3dbHz.length ? s.minus3dbHz.map((f) => formatEngineering(f, 'Hz')).join(', ') : 'none in the sweep'}`,
-    `Gain-limit point:   ${hz(s.gainLimitHz)} (loop gain 1: above it the op-amp, not the design, sets the response)`,
+    `${(FIGURE_NAMES.minus3dbHz + ':').padEnd(20)}${s.minus3dbHz.length ? s.minus3dbHz.map((f) => formatEngineering(f, 'Hz')).join(', ') : 'none in the sweep'}`,
+    `${(FIGURE_NAMES.gainLimitHz + ':').padEnd(20)}${hz(s.gainLimitHz)} (loop gain 1: above it the op-amp, not the design, sets the response)`,
     `Peak gain:          ${s.peakGainDb.toFixed(3)} dB at ${formatEngineering(s.peakFrequencyHz, 'Hz')}`,
     `Roll-off, top decade: ${s.rolloffDbPerDecade === undefined ? 'n/a' : `${s.rolloffDbPerDecade.toFixed(1)} dB/decade`}`,
     `Slowest time constant: ${formatEngineering(tauS, 's')}`,

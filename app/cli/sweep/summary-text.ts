@@ -1,13 +1,14 @@
 /** Plain-text summaries of runs for the terminal. */
-import type { RunDetail, RunFigures, RunSummary } from '../../contract/contract';
+import { PointFlag, type RunDetail, type RunFigures, type RunSummary } from '../../contract/contract';
 import { formatEngineering } from '../../units';
+import { FIGURE_NAMES } from '../../contract/vocabulary';
 
 export function figureLines(figures: RunFigures, theory?: { gainLimitHz?: number; minus3dbHz: number[] }): string[] {
   const lines: string[] = [];
   const hz = (v: number | undefined) => (v === undefined ? '—' : formatEngineering(v, 'Hz'));
   if (figures.passbandGainDb !== undefined) lines.push(`pass-band gain      ${figures.passbandGainDb.toFixed(3)} dB`);
   if (figures.logFit) return logFitLines(figures.logFit);
-  lines.push(`−3 dB points        ${figures.minus3dbHz.length ? figures.minus3dbHz.map(hz).join(', ') : '—'}${theory ? `   (theory ${theory.minus3dbHz.length ? theory.minus3dbHz.map(hz).join(', ') : '—'})` : ''}`);
+  lines.push(`${FIGURE_NAMES.minus3dbHz.padEnd(20)}${figures.minus3dbHz.length ? figures.minus3dbHz.map(hz).join(', ') : '—'}${theory ? `   (theory ${theory.minus3dbHz.length ? theory.minus3dbHz.map(hz).join(', ') : '—'})` : ''}`);
   if (figures.rolloffDbPerDecade !== undefined) lines.push(`roll-off            ${figures.rolloffDbPerDecade.toFixed(1)} dB/decade`);
   lines.push(`gain-limit point    ${hz(figures.gainLimitHz)}${theory ? `   (theory ${hz(theory.gainLimitHz)})` : ''}`);
   if (figures.gbwEstimateHz !== undefined) {
@@ -51,7 +52,7 @@ export function runDetailText(detail: RunDetail, diode?: DiodeTheory): string {
   const lines = [
     `run ${detail.id}  ${detail.kind.toUpperCase()}  ${detail.status}${detail.simulated ? '  (SIMULATED: simulated bench)' : ''}`,
     `build "${detail.buildLabel}" of design "${detail.designName}"`,
-    `points ${detail.pointCount}/${detail.plannedCount} planned   started ${detail.startedAt ?? '—'}   ended ${detail.endedAt ?? '—'}`,
+    `points ${pointCountText(detail)}   started ${detail.startedAt ?? '—'}   ended ${detail.endedAt ?? '—'}`,
     '',
     ...figureLines(detail.figures, detail.kind === 'ac' ? { gainLimitHz: detail.theoryGainLimitHz, minus3dbHz: detail.theoryMinus3dbHz } : undefined),
   ];
@@ -69,4 +70,12 @@ export function runTable(runs: RunSummary[]): string {
   const header = ['run', 'kind', 'status', 'points', 'build', 'design', 'bench', 'started', ''];
   const widths = header.map((h, c) => Math.max(h.length, ...rows.map((row) => row[c].length)));
   return [header, ...rows].map((row) => row.map((cell, c) => cell.padEnd(widths[c])).join('  ').trimEnd()).join('\n') + '\n';
+}
+
+/** "41 planned + 2 refinement", or "20 of 41 planned" for a run that stopped early. */
+export function pointCountText(detail: Pick<RunDetail, 'pointCount' | 'plannedCount' | 'points'>): string {
+  const refinement = detail.points.flags.filter((flags) => (flags & PointFlag.refinement) !== 0).length;
+  const plannedMeasured = detail.pointCount - refinement;
+  const planned = plannedMeasured === detail.plannedCount ? `${detail.plannedCount} planned` : `${plannedMeasured} of ${detail.plannedCount} planned`;
+  return refinement > 0 ? `${planned} + ${refinement} refinement` : planned;
 }

@@ -14,6 +14,7 @@ import { resolveDatabasePath } from '../../store';
 import { DEFAULT_PROFILE_ID, resolveBenchName } from '../../bench';
 import { parseEngineering } from '../../units';
 import { SWEEP_DEFAULTS, SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
+import { SETTINGS } from '../../contract/vocabulary';
 
 export const DATABASE_OPTION: OptionSpec = { name: 'db', kind: 'string', placeholder: 'PATH|URL', description: 'database file, or a lab store postgres://USER@HOST:PORT/DATABASE (default: ROLLOFF_DB or the user data folder)' };
 
@@ -29,7 +30,7 @@ export const BENCH_OPTIONS: OptionSpec[] = [
   { name: 'scope-profile', kind: 'string', placeholder: 'ID', description: 'scope profile', defaultValue: DEFAULT_PROFILE_ID.scope },
   { name: 'meter-profile', kind: 'string', placeholder: 'ID', description: 'meter profile', defaultValue: DEFAULT_PROFILE_ID.meter },
   { name: 'give-up', kind: 'number', placeholder: 'S', description: 'mark the run failed (points kept) when the instruments stay unreachable this long', defaultValue: 120 },
-  { name: 'max-amplitude', kind: 'number', placeholder: 'VPP', description: 'largest generator output ever used, peak-to-peak (required once; later runs reuse the last one recorded)' },
+  { name: 'max-amplitude', kind: 'number', placeholder: 'VPP', description: `${SETTINGS.maxStimulus.label}, V peak-to-peak: ${SETTINGS.maxStimulus.explanation} (required once; later runs reuse the last one recorded)` },
   { name: 'bench', kind: 'string', placeholder: 'NAME', description: 'name of this bench, recorded with each run (default: ROLLOFF_BENCH or the host name)' },
   DATABASE_OPTION,
 ];

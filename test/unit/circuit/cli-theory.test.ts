@@ -44,7 +44,7 @@ describe('rolloff template + theory', () => {
     expect(row[2]).toBeCloseTo(expected.phaseDeg[10], 12);
   });
 
-  it('summary names the gain-limit point, −3 dB points and pass-band gain; the band adds columns', async () => {
+  it('summary names the gain-limit point, −3 dB frequencies and pass-band gain; the band adds columns', async () => {
     const path = join(dir, 'summary.json');
     await rolloff('template', 'non-inverting', '--out', path);
     const summary = await rolloff('theory', path, '--summary');
@@ -52,7 +52,7 @@ describe('rolloff template + theory', () => {
     // 1 + RF/RG = 10 → 20 dB, less 0.0009 dB for A0 = 1e5 (finite-gain error, DEVELOPERS.md "Theory").
     expect(summary.stdout).toMatch(/Pass-band gain: +19\.999 dB/);
     expect(summary.stdout).toMatch(/Gain-limit point: +100 kHz/);
-    expect(summary.stdout).toMatch(/−3 dB points: +100 kHz/);
+    expect(summary.stdout).toMatch(/−3 dB frequencies: +100 kHz/);
     const band = await rolloff('theory', path, '--csv', '--tolerance', '--samples', '50', '--seed', '3', '--per-decade', '1');
     expect(band.stdout.split('\n')[0]).toMatch(/band_low_db,band_high_db/);
   });

@@ -24,12 +24,12 @@ describe('DC (log stage) run record', () => {
     expect(plot.series.map((s) => s.style)).toEqual(['line', 'points']);
   });
 
-  it('CSV names the stimulus input_v and reads back to the output voltages', async () => {
+  it('CSV names the stimulus input_v_dc, reads back to the DC output voltages and carries no gain or phase columns', async () => {
     const record = dcRecord();
     const [header, ...rows] = readCsv(new TextDecoder().decode((await renderRecord(record, 'csv')).bytes));
-    expect(header[3]).toBe('input_v');
-    expect(rows.map((r) => Number(r[header.indexOf('output_v')]))).toEqual(record.points.outputV);
-    expect(rows.every((r) => r[header.indexOf('gain_db')] === '')).toBe(true);
+    expect(header[3]).toBe('input_v_dc');
+    expect(rows.map((r) => Number(r[header.indexOf('output_v_dc')]))).toEqual(record.points.outputV);
+    expect(header.filter((name) => /gain|phase/.test(name))).toEqual([]);
   });
 
   it('JSON validates against the schema file and rebuilds the record, fit figures included', async () => {

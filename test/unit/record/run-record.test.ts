@@ -93,7 +93,7 @@ describe('run record', () => {
     expect(csv.endsWith('\r\n')).toBe(true);
     expect(csv.split('\r\n')).toHaveLength(r.points.step.length + 2);
     const [header, ...rows] = readCsv(csv, 'run.csv');
-    expect(header).toEqual(['run_id', 'build_label', 'step', 'frequency_hz', 'amplitude_vpp', 'gain_db', 'gain_uncertainty_db', 'phase_deg', 'phase_uncertainty_deg', 'output_v', 'flags', 'flag_names', 'measured_at']);
+    expect(header).toEqual(['run_id', 'build_label', 'step', 'frequency_hz', 'stimulus_setting_vpp', 'gain_db', 'gain_uncertainty_db', 'phase_deg', 'phase_uncertainty_deg', 'output_v_peak', 'flags', 'flag_names', 'measured_at']);
     const column = (name: string) => rows.map((row) => row[header.indexOf(name)]);
     const asNumbers = (name: string) => column(name).map((cell) => (cell === '' ? null : Number(cell)));
     expect(asNumbers('frequency_hz')).toEqual(r.points.stimulus);

@@ -1,0 +1,104 @@
+/**
+ * The one table of user-facing names and units. The CLI, the window and the
+ * records take a figure's name, a column's name, a point flag's words and a
+ * setting's name from here, so a new figure is named once and a test
+ * (test/unit/contract/vocabulary.test.ts) can find a name spelled two ways.
+ *
+ * Minus signs: text for people (CLI tables, the window, HTML/PDF/text records)
+ * writes the true minus "−" (U+2212); machine formats (CSV, JSON, command
+ * options) write ASCII "-" so every reader parses them.
+ */
+import { PointFlag } from './contract';
+
+/** Figures of a run or a theory, by the key they have in RunFigures / the theory summary. */
+export const FIGURE_NAMES = {
+  passbandGainDb: 'Pass-band gain',
+  minus3dbHz: '−3 dB frequencies',
+  rolloffDbPerDecade: 'Roll-off',
+  gainLimitHz: 'Gain-limit point',
+  gbwEstimateHz: 'GBW',
+  maxDeviationDb: 'Largest deviation from theory',
+  diodeIdealityN: 'Diode ideality factor n',
+  phaseMarginDeg: 'Phase margin',
+  gainMarginDb: 'Gain margin',
+  peakingDb: 'Peaking',
+} as const;
+
+export type FigureKey = keyof typeof FIGURE_NAMES;
+
+/** Names people might have used for a figure before this table; the vocabulary test refuses them. */
+export const RETIRED_FIGURE_NAMES: Record<string, FigureKey> = {
+  'Emission coefficient n': 'diodeIdealityN',
+  '−3 dB points': 'minus3dbHz',
+  'Max deviation': 'maxDeviationDb',
+};
+
+/** Point flags as words (records, CLI tables, the window). */
+export const FLAG_WORDS: Record<keyof typeof PointFlag, string> = {
+  distorted: 'distorted',
+  overrange: 'overrange',
+  notANumber: 'not a number',
+  outsideToleranceBand: 'outside tolerance band',
+  retried: 'retried',
+  refinement: 'refinement point',
+  pastGainLimit: 'past gain limit',
+};
+
+/** Flag bits → words, e.g. 9 → "distorted; outside tolerance band". Unknown bits are named by value. */
+export function flagWords(flags: number, separator = '; '): string {
+  const words: string[] = [];
+  let known = 0;
+  for (const [key, bit] of Object.entries(PointFlag) as Array<[keyof typeof PointFlag, number]>) {
+    known |= bit;
+    if (flags & bit) words.push(FLAG_WORDS[key]);
+  }
+  const unknown = flags & ~known;
+  if (unknown) words.push(`unknown flags ${unknown}`);
+  return words.join(separator);
+}
+
+/** Settings, with the one name each surface uses for them. */
+export const SETTINGS = {
+  maxStimulus: {
+    /** Window labels and record headings. */
+    label: 'Maximum stimulus',
+    unit: 'Vpp',
+    cliOption: 'max-amplitude',
+    /** Field of the bench in the contract and the records. */
+    field: 'maxStimulusVpp',
+    /** Said wherever the limit is set: how a DC level is counted against it. */
+    explanation: 'the generator is never driven above this peak-to-peak amplitude; a DC level V counts as 2·|V| against it',
+  },
+} as const;
+
+/** How the output was read: the scope gives its peak, the meter its RMS, a DC run its DC level. */
+export type OutputReading = 'peak' | 'rms' | 'dc';
+
+export function outputReadingOf(kind: 'ac' | 'dc', measurement: 'scope' | 'meter'): OutputReading {
+  if (kind === 'dc') return 'dc';
+  return measurement === 'meter' ? 'rms' : 'peak';
+}
+
+/** CSV/JSON column for the output voltage, naming its unit. */
+export const OUTPUT_COLUMN: Record<OutputReading, string> = { peak: 'output_v_peak', rms: 'output_v_rms', dc: 'output_v_dc' };
+
+/** CSV columns of a point, each naming what it holds and its unit. */
+export const POINT_COLUMNS = {
+  runId: 'run_id',
+  buildLabel: 'build_label',
+  step: 'step',
+  frequencyHz: 'frequency_hz',
+  inputV: 'input_v_dc',
+  /** AC and DC runs in one table. */
+  stimulusMixed: 'stimulus_hz_or_v_dc',
+  /** The generator's amplitude setting, not a measured input. */
+  stimulusSettingVpp: 'stimulus_setting_vpp',
+  gainDb: 'gain_db',
+  gainUncertaintyDb: 'gain_uncertainty_db',
+  phaseDeg: 'phase_deg',
+  phaseUncertaintyDeg: 'phase_uncertainty_deg',
+  flags: 'flags',
+  flagWords: 'flag_names',
+  measuredAt: 'measured_at',
+  deltaFromReferenceDb: 'delta_from_reference_db',
+} as const;
