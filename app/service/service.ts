@@ -33,6 +33,7 @@ import { compareDetails } from './compare';
 import { SOFTWARE_VERSION } from '../contract/version';
 import { startSimulatedBenchFor, type SimulatedBenchHandle, type SimulatedBenchSettings } from './simulated-bench';
 import { exportRecordFor } from './export';
+import { claimOrRefuse, HEARTBEAT_INTERVAL_MS, liveOtherOwner, ownerProcessIsGone, RunOwnedElsewhereError, STALE_AFTER_MS, thisProcessClaimant } from './run-ownership';
 
 export interface RolloffServiceOptions {
   /** The user's ceiling on generator output; otherwise the one recorded with the latest run, else unset. */
@@ -53,6 +54,11 @@ export interface RolloffServiceOptions {
   benchName?: string;
   /** Pass on the sweeps other processes drive on a shared store as this service's events (windows: serve, desktop). */
   followLab?: boolean | { forcePolling?: boolean; pollIntervalMs?: number };
+  /** Who this service is, for the run owner shown to other processes (e.g. "rolloff sweep"). Default "rolloff". */
+  ownerLabel?: string;
+  /** Heartbeat renewal (ms) and the age after which another process's heartbeat counts as stale (ms); defaults in run-ownership.ts. */
+  heartbeatIntervalMs?: number;
+  staleAfterMs?: number;
 }
 
 /** What a schedule produced: its runs and how their figures drifted. */
@@ -91,12 +97,17 @@ export class RolloffService implements RolloffApi {
   private readonly active = new Map<number, ActiveRun>();
   private simulatedBenchHandle: (SimulatedBenchHandle & { designName: string; key: string }) | undefined;
   private maxStimulusVpp: number | undefined;
+  /** This service as a run owner (RunStore.claimRun). */
+  private readonly claimant;
+  private readonly staleAfterMs: number;
 
   private labFeed: StoreChangeFeed | undefined;
 
   private constructor(store: RolloffStore, options: RolloffServiceOptions, maxStimulusVpp: number | undefined) {
     this.store = store;
     this.options = options;
+    this.claimant = thisProcessClaimant(options.ownerLabel ?? 'rolloff');
+    this.staleAfterMs = options.staleAfterMs ?? STALE_AFTER_MS;
     this.maxStimulusVpp = maxStimulusVpp;
   }
 
@@ -307,6 +318,7 @@ export class RolloffService implements RolloffApi {
       scheduleId: extra.scheduleId ?? null,
       benchName: this.options.benchName ?? resolveBenchName(undefined),
     });
+    await claimOrRefuse(this.store, run.id, this.claimant, this.staleAfterMs, 'started');
     for (const warning of plan.warnings) await this.logRunEvent(run.id, 'warning', `plan: ${warning}`);
     await this.launch(run.id);
     return this.summaryOf(run.id);
@@ -318,6 +330,7 @@ export class RolloffService implements RolloffApi {
       active.control.requestPause();
       await active.finished.catch(() => undefined);
     } else if ((await this.store.getRun(runId)).status === 'running') {
+      await this.refuseIfDrivenElsewhere(runId, 'paused');
       // Left running by a crash: nothing is measuring it, so it is in effect paused.
       await this.store.updateRunStatus(runId, 'paused');
     }
@@ -332,6 +345,7 @@ export class RolloffService implements RolloffApi {
     } else {
       const run = await this.store.getRun(runId);
       if (run.status === 'running' || run.status === 'paused' || run.status === 'planned') {
+        await this.refuseIfDrivenElsewhere(runId, 'stopped');
         await this.store.updateRunStatus(runId, 'stopped');
         await this.logRunEvent(runId, 'info', 'stopped by the user');
         await this.finalize(runId);
@@ -350,6 +364,8 @@ export class RolloffService implements RolloffApi {
     if (this.active.has(runId)) throw new RunStateError(runId, 'is already running');
     this.requireIdleBench();
     if (run.status === 'done') throw new RunStateError(runId, 'is finished; nothing to resume', 'Start a new run of the same build instead.');
+    // One conditional update in the store: of two processes resuming a stale run, one wins, the other is told who.
+    await claimOrRefuse(this.store, runId, this.claimant, this.staleAfterMs, 'resumed');
     if (this.maxStimulusVpp === undefined && typeof run.request.maxStimulusVpp === 'number') this.maxStimulusVpp = run.request.maxStimulusVpp;
     const maxStimulusVpp = this.requireMaxStimulus();
     if (run.simulated) {
@@ -375,7 +391,29 @@ export class RolloffService implements RolloffApi {
 
   /** Runs a crash left running or paused: offered for resume at start. */
   async interruptedRuns(): Promise<RunSummary[]> {
-    return (await this.store.findInterruptedRuns()).filter((r) => !this.active.has(r.id)).map(summaryOf);
+    const stale = await this.store.findInterruptedRuns(this.staleAfterMs);
+    const leftBehind: RunSummary[] = stale.map(summaryOf);
+    // A fresh heartbeat of an owner process that is gone on this host (killed a moment ago) is interrupted too.
+    for (const status of ['running', 'paused'] as const) {
+      for (const run of await this.store.listRuns({ status })) {
+        if (leftBehind.some((r) => r.id === run.id)) continue;
+        const ownership = await this.store.getRunOwnership(run.id);
+        if (ownership && ownership.ownerId !== this.claimant.ownerId && ownerProcessIsGone(ownership)) leftBehind.push(run);
+      }
+    }
+    return leftBehind.filter((r) => !this.active.has(r.id)).sort((a, b) => a.id - b.id);
+  }
+
+  /** Who drives a run now ("rolloff sweep (process … on …)"), or undefined when nobody does. */
+  async runOwner(runId: number) {
+    const ownership = await this.store.getRunOwnership(runId);
+    if (!ownership || Date.now() - Date.parse(ownership.heartbeatAt) > this.staleAfterMs) return undefined;
+    return ownership;
+  }
+
+  private async refuseIfDrivenElsewhere(runId: number, action: string): Promise<void> {
+    const owner = await liveOtherOwner(this.store, runId, this.claimant, this.staleAfterMs);
+    if (owner) throw new RunOwnedElsewhereError(runId, owner, action);
   }
 
   // ── History, Compare, Record ───────────────────────────────────────────
@@ -622,6 +660,16 @@ export class RolloffService implements RolloffApi {
 
     const measurer = await this.measurerFor(run, clock, ideal?.gainRatioAt);
     const control = new RunControl();
+    // Tell other processes we are alive; if the run was taken from us (our heartbeat went stale), stop driving it.
+    const heartbeat = setInterval(() => {
+      this.store.renewRunHeartbeat(runId, this.claimant.ownerId).then(
+        (stillOurs) => {
+          if (!stillOurs) control.requestPause();
+        },
+        () => undefined,
+      );
+    }, this.options.heartbeatIntervalMs ?? HEARTBEAT_INTERVAL_MS);
+    heartbeat.unref();
     let first = true;
     const finished = runSweep({
       store: this.store,
@@ -641,8 +689,10 @@ export class RolloffService implements RolloffApi {
         return this.reconnectAll();
       },
     }).finally(async () => {
+      clearInterval(heartbeat);
       this.active.delete(runId);
       await this.finalize(runId);
+      await this.store.releaseRun(runId, this.claimant.ownerId).catch(() => undefined);
     });
     // The caller learns the outcome through waitForRun/events; an unobserved rejection must not crash the process.
     finished.catch(() => undefined);

@@ -6,7 +6,7 @@
 import { ValidationError } from '../errors';
 import { RUN_STATUSES, type RunEvent, type RunStatus } from '../contract/contract';
 import { checkBenchName } from '../bench/bench-name';
-import type { BenchSettingsInput, NewCalibration, NewPoint, NewSchedule, RunFilter } from './types';
+import type { BenchSettingsInput, NewCalibration, NewPoint, NewSchedule, RunClaimant, RunFilter, RunOwnership } from './types';
 
 /** The one list of run states lives in the contract; re-exported for the store's checks. */
 export { RUN_STATUSES };
@@ -158,4 +158,32 @@ export function checkBenchSettings(settings: BenchSettingsInput): BenchSettingsI
     throw new ValidationError('benchSettings.maxStimulusVpp', `${maxStimulusVpp} is not a positive amplitude`, 'Give the largest peak-to-peak voltage the circuit may see, e.g. 2, or null to clear it.');
   }
   return { maxStimulusVpp };
+}
+
+/** A claimant as both stores accept it: a non-empty owner id, a positive pid, a host and a label. */
+export function checkRunClaimant(claimant: RunClaimant, staleAfterMs: number): RunClaimant {
+  if (typeof claimant?.ownerId !== 'string' || claimant.ownerId.trim() === '') throw new ValidationError('claimant.ownerId', 'must be a non-empty text');
+  if (!Number.isInteger(claimant.pid) || claimant.pid <= 0) throw new ValidationError('claimant.pid', 'must be a positive whole number');
+  if (typeof claimant.host !== 'string' || claimant.host === '') throw new ValidationError('claimant.host', 'must be a non-empty text');
+  if (typeof claimant.label !== 'string') throw new ValidationError('claimant.label', 'must be a text');
+  checkStaleAfter(staleAfterMs);
+  return claimant;
+}
+
+export function checkStaleAfter(staleAfterMs: number): number {
+  if (!Number.isFinite(staleAfterMs) || staleAfterMs <= 0) throw new ValidationError('staleAfterMs', 'must be a positive number of milliseconds');
+  return staleAfterMs;
+}
+
+/** The owner columns of a runs row (owner_id … owner_heartbeat_ms), or undefined when nobody drives the run. */
+export function ownershipFromRow(row: Record<string, unknown>): RunOwnership | undefined {
+  if (row.owner_id === null || row.owner_id === undefined) return undefined;
+  return {
+    ownerId: String(row.owner_id),
+    pid: Number(row.owner_pid),
+    host: String(row.owner_host),
+    label: String(row.owner_label),
+    since: new Date(Number(row.owner_since_ms)).toISOString(),
+    heartbeatAt: new Date(Number(row.owner_heartbeat_ms)).toISOString(),
+  };
 }

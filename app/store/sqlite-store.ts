@@ -49,6 +49,9 @@ import {
   requireId,
   requireText,
   toJson,
+  checkRunClaimant,
+  checkStaleAfter,
+  ownershipFromRow,
 } from './record-checks';
 import type { RolloffStore } from './store-interface';
 import type {
@@ -68,6 +71,9 @@ import type {
   ScheduleRecord,
   StoreOpenOptions,
   StoredRun,
+  RunClaimant,
+  RunClaimResult,
+  RunOwnership,
 } from './types';
 
 type Row = Record<string, unknown>;
@@ -239,7 +245,16 @@ export class SqliteStore implements RolloffStore {
           AND (@bench IS NULL OR r.bench_name = @bench)
           AND (@search IS NULL OR b.label LIKE @search ESCAPE '\\' OR d.name LIKE @search ESCAPE '\\' OR r.notes LIKE @search ESCAPE '\\')
         ORDER BY r.id DESC LIMIT @limit`),
-      interruptedRuns: db.prepare(`SELECT r.id FROM runs r WHERE r.status IN ('running', 'paused') ORDER BY r.id`),
+      interruptedRuns: db.prepare(`SELECT r.id FROM runs r WHERE r.status IN ('running', 'paused')
+        AND (r.owner_id IS NULL OR r.owner_heartbeat_ms < @staleBeforeMs) ORDER BY r.id`),
+      // The take-over: one conditional UPDATE, so of two claimants only one matches.
+      claimRun: db.prepare(`UPDATE runs SET owner_id = @ownerId, owner_pid = @pid, owner_host = @host, owner_label = @label,
+        owner_since_ms = CASE WHEN owner_id = @ownerId THEN owner_since_ms ELSE @nowMs END, owner_heartbeat_ms = @nowMs
+        WHERE id = @runId AND (owner_id IS NULL OR owner_id = @ownerId OR owner_heartbeat_ms < @staleBeforeMs)`),
+      renewHeartbeat: db.prepare(`UPDATE runs SET owner_heartbeat_ms = @nowMs WHERE id = @runId AND owner_id = @ownerId`),
+      releaseRun: db.prepare(`UPDATE runs SET owner_id = NULL, owner_pid = NULL, owner_host = NULL, owner_label = NULL,
+        owner_since_ms = NULL, owner_heartbeat_ms = NULL WHERE id = @runId AND owner_id = @ownerId`),
+      getOwner: db.prepare(`SELECT id, owner_id, owner_pid, owner_host, owner_label, owner_since_ms, owner_heartbeat_ms FROM runs WHERE id = ?`),
       insertPoint: db.prepare(`INSERT INTO points (run_id, step, stimulus, amplitude_vpp, input_reading, output_reading,
         gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at_ms) VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?)`),
       countPoints: db.prepare('UPDATE runs SET point_count = point_count + ? WHERE id = ?'),
@@ -424,9 +439,45 @@ export class SqliteStore implements RolloffStore {
   }
 
   /** Runs left running or paused, e.g. by a crash or power cut; the service offers to resume them. */
-  async findInterruptedRuns(): Promise<StoredRun[]> {
-    const rows = this.guard(() => this.statements.interruptedRuns.all() as Array<{ id: number }>);
+  async findInterruptedRuns(staleAfterMs: number): Promise<StoredRun[]> {
+    const staleBeforeMs = this.nowMs() - checkStaleAfter(staleAfterMs);
+    const rows = this.guard(() => this.statements.interruptedRuns.all({ staleBeforeMs }) as Array<{ id: number }>);
     return rows.map((row) => this.runById(row.id));
+  }
+
+  // ── run ownership ──────────────────────────────────────────────────────
+
+  private nowMs(): number {
+    return Date.parse(this.now());
+  }
+
+  async claimRun(runId: number, claimant: RunClaimant, staleAfterMs: number): Promise<RunClaimResult> {
+    this.requireWritable();
+    const { ownerId, pid, host, label } = checkRunClaimant(claimant, staleAfterMs);
+    const nowMs = this.nowMs();
+    const result = this.guard(() =>
+      this.statements.claimRun.run({ runId: requireId(runId, 'runId'), ownerId, pid, host, label, nowMs, staleBeforeMs: nowMs - staleAfterMs }),
+    );
+    const ownership = await this.getRunOwnership(runId);
+    if (!ownership) throw new RecordNotFoundError('run', runId);
+    return { claimed: result.changes === 1, ownership };
+  }
+
+  async renewRunHeartbeat(runId: number, ownerId: string): Promise<boolean> {
+    this.requireWritable();
+    const result = this.guard(() => this.statements.renewHeartbeat.run({ runId: requireId(runId, 'runId'), ownerId, nowMs: this.nowMs() }));
+    return result.changes === 1;
+  }
+
+  async releaseRun(runId: number, ownerId: string): Promise<void> {
+    this.requireWritable();
+    this.guard(() => this.statements.releaseRun.run({ runId: requireId(runId, 'runId'), ownerId }));
+  }
+
+  async getRunOwnership(runId: number): Promise<RunOwnership | undefined> {
+    const row = this.guard(() => this.statements.getOwner.get(requireId(runId, 'runId'))) as Row | undefined;
+    if (!row) throw new RecordNotFoundError('run', runId);
+    return ownershipFromRow(row);
   }
 
   // ── points ─────────────────────────────────────────────────────────────

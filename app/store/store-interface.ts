@@ -43,7 +43,10 @@ import type {
   NewRun,
   NewSchedule,
   PointBatch,
+  RunClaimant,
+  RunClaimResult,
   RunFilter,
+  RunOwnership,
   ScheduleRecord,
   StoreChange,
   StoreChangeFeed,
@@ -75,15 +78,31 @@ export interface RunStore {
   getRun(runId: number): Promise<StoredRun>;
   /** Newest first, at most filter.limit (default 200). */
   listRuns(filter?: RunFilter): Promise<RunSummary[]>;
-  /** Runs left running or paused (oldest first), e.g. by a crash or power cut. */
-  findInterruptedRuns(): Promise<StoredRun[]>;
+  /**
+   * Runs left running or paused (oldest first) that nobody drives: no owner, or an
+   * owner whose heartbeat is older than staleAfterMs (a crash or power cut). A run
+   * with a live owner is never in this list.
+   */
+  findInterruptedRuns(staleAfterMs: number): Promise<StoredRun[]>;
 
   // ── run ownership (owner, heartbeat, take-over) ──────────────────────────
-  // Added here by the run-ownership work: who drives a run (process, host,
-  // since), the heartbeat it renews while it runs, and the take-over of a run
-  // whose heartbeat is stale as ONE transaction in the store, so two processes
-  // can never both win it. findInterruptedRuns then means "running with a stale
-  // heartbeat", not merely "running".
+  // A run being driven has one owner. The owner renews its heartbeat every few
+  // seconds; a run whose heartbeat is older than staleAfterMs may be taken over.
+
+  /**
+   * Takes a run for claimant in ONE conditional update: it succeeds when the run
+   * has no owner, is already the claimant's, or its owner's heartbeat is older than
+   * staleAfterMs (by the store's clock). Of two claimants racing for a stale run,
+   * even in the same millisecond, exactly one gets claimed: true; the other gets the
+   * winner. Claiming stamps since and heartbeatAt with now.
+   */
+  claimRun(runId: number, claimant: RunClaimant, staleAfterMs: number): Promise<RunClaimResult>;
+  /** Renews the heartbeat; false (and nothing changed) when ownerId no longer owns the run. */
+  renewRunHeartbeat(runId: number, ownerId: string): Promise<boolean>;
+  /** Gives the run up (its end, a pause); a no-op when ownerId does not own it. */
+  releaseRun(runId: number, ownerId: string): Promise<void>;
+  /** The run's owner, or undefined when nobody drives it. */
+  getRunOwnership(runId: number): Promise<RunOwnership | undefined>;
 }
 
 /** The measured steps of a run. */

@@ -180,3 +180,24 @@ export interface StoreChangeFeed {
   readonly mode: 'listen' | 'poll';
   stop(): Promise<void>;
 }
+
+/** The process that asks to drive a run. */
+export interface RunClaimant {
+  /** Unique per process (and per service in it): host, pid and a random part. */
+  ownerId: string;
+  pid: number;
+  host: string;
+  /** What drives it, for people: e.g. "rolloff sweep" or "the desktop window". */
+  label: string;
+}
+
+/** Who drives a run, since when, and when it last said it was alive. */
+export interface RunOwnership extends RunClaimant {
+  /** ISO instant the owner took the run. */
+  since: string;
+  /** ISO instant of the owner's latest heartbeat. */
+  heartbeatAt: string;
+}
+
+/** What claimRun found: claimed (the caller owns the run now) or the owner that kept it. */
+export type RunClaimResult = { claimed: true; ownership: RunOwnership } | { claimed: false; ownership: RunOwnership };

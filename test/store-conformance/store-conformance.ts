@@ -158,12 +158,12 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
       expect(started.startedAt).not.toBeNull();
       const paused = await store.updateRunStatus(run.id, 'paused');
       expect(paused.startedAt).toBe(started.startedAt);
-      expect((await store.findInterruptedRuns()).map((r) => r.id)).toEqual([run.id]);
+      expect((await store.findInterruptedRuns(10_000)).map((r) => r.id)).toEqual([run.id]);
       await store.updateRunStatus(run.id, 'running');
       const done = await store.updateRunStatus(run.id, 'done');
       expect(done.startedAt).toBe(started.startedAt);
       expect(done.endedAt).not.toBeNull();
-      expect(await store.findInterruptedRuns()).toEqual([]);
+      expect(await store.findInterruptedRuns(10_000)).toEqual([]);
       const withResults = await store.setRunResults(run.id, { minus3dbHz: [15.9e3], passbandGainDb: 19.98 }, { pass: true, reasons: [] });
       expect(withResults.figures).toEqual({ minus3dbHz: [15.9e3], passbandGainDb: 19.98 });
       expect(withResults.verdict).toEqual({ pass: true, reasons: [] });
@@ -264,6 +264,65 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
       await expect(store.saveBenchSettings('generator=a;meter=b', { maxStimulusVpp: -1 })).rejects.toThrow(/maxStimulusVpp/);
       await expect(store.saveBenchSettings('', { maxStimulusVpp: 1 })).rejects.toThrow(/benchKey/);
       expect((await store.getBenchSettings('generator=a;meter=b'))?.maxStimulusVpp).toBeNull();
+    },
+  },
+  {
+    name: 'run ownership: one owner at a time, heartbeat renewed, stale owner taken over, release; interrupted means no live owner',
+    async run(open) {
+      let nowMs = Date.UTC(2026, 0, 1, 12, 0, 0);
+      const store = await open({ now: () => new Date(nowMs).toISOString() });
+      const { run } = await seedRun(store);
+      const first = { ownerId: 'host-a:100:x', pid: 100, host: 'host-a', label: 'rolloff sweep' };
+      const second = { ownerId: 'host-b:200:y', pid: 200, host: 'host-b', label: 'the desktop window' };
+      expect(await store.getRunOwnership(run.id)).toBeUndefined();
+      const taken = await store.claimRun(run.id, first, 10_000);
+      expect(taken).toEqual({ claimed: true, ownership: { ...first, since: '2026-01-01T12:00:00.000Z', heartbeatAt: '2026-01-01T12:00:00.000Z' } });
+      await store.updateRunStatus(run.id, 'running');
+      nowMs += 3_000;
+      expect(await store.renewRunHeartbeat(run.id, first.ownerId)).toBe(true);
+      expect(await store.renewRunHeartbeat(run.id, second.ownerId)).toBe(false); // not the owner: nothing renewed
+      nowMs += 9_000; // 9 s after the last heartbeat: still live
+      const refused = await store.claimRun(run.id, second, 10_000);
+      expect(refused.claimed).toBe(false);
+      expect(refused.ownership).toMatchObject({ ...first, heartbeatAt: '2026-01-01T12:00:03.000Z' });
+      expect(await store.findInterruptedRuns(10_000)).toEqual([]); // running and live: not interrupted
+      nowMs += 2_000; // 11 s since the heartbeat: stale
+      expect((await store.findInterruptedRuns(10_000)).map((r) => r.id)).toEqual([run.id]);
+      const takeOver = await store.claimRun(run.id, second, 10_000);
+      expect(takeOver).toEqual({ claimed: true, ownership: { ...second, since: '2026-01-01T12:00:14.000Z', heartbeatAt: '2026-01-01T12:00:14.000Z' } });
+      expect(await store.renewRunHeartbeat(run.id, first.ownerId)).toBe(false); // the old owner learns it lost the run
+      expect(await store.findInterruptedRuns(10_000)).toEqual([]);
+      nowMs += 1_000;
+      const again = await store.claimRun(run.id, second, 10_000); // re-claiming one's own run keeps since
+      expect(again.ownership.since).toBe('2026-01-01T12:00:14.000Z');
+      expect(again.ownership.heartbeatAt).toBe('2026-01-01T12:00:15.000Z');
+      await store.releaseRun(run.id, first.ownerId); // not the owner: no-op
+      expect((await store.getRunOwnership(run.id))?.ownerId).toBe(second.ownerId);
+      await store.releaseRun(run.id, second.ownerId);
+      expect(await store.getRunOwnership(run.id)).toBeUndefined();
+      expect((await store.findInterruptedRuns(10_000)).map((r) => r.id)).toEqual([run.id]); // running, nobody drives it
+      await expect(store.claimRun(77, first, 10_000)).rejects.toThrow(RecordNotFoundError);
+      await expect(store.getRunOwnership(77)).rejects.toThrow(RecordNotFoundError);
+      await expect(store.claimRun(run.id, { ...first, pid: 0 }, 10_000)).rejects.toThrow(/claimant.pid/);
+      await expect(store.claimRun(run.id, { ...first, ownerId: ' ' }, 10_000)).rejects.toThrow(/claimant.ownerId/);
+      await expect(store.claimRun(run.id, first, 0)).rejects.toThrow(/staleAfterMs/);
+    },
+  },
+  {
+    name: 'run ownership: of many claimants racing for one stale run at the same instant, exactly one wins',
+    async run(open) {
+      let nowMs = Date.UTC(2026, 0, 1, 12, 0, 0);
+      const store = await open({ now: () => new Date(nowMs).toISOString() });
+      const { run } = await seedRun(store);
+      await store.claimRun(run.id, { ownerId: 'gone', pid: 1, host: 'h', label: 'crashed' }, 10_000);
+      nowMs += 60_000; // the first owner died a minute ago; every claimant sees the same millisecond
+      const claimants = Array.from({ length: 8 }, (_, i) => ({ ownerId: `claimant-${i}`, pid: 1000 + i, host: 'h', label: `claimant ${i}` }));
+      const results = await Promise.all(claimants.map((c) => store.claimRun(run.id, c, 10_000)));
+      const winners = results.filter((r) => r.claimed);
+      expect(winners).toHaveLength(1);
+      const owner = await store.getRunOwnership(run.id);
+      expect(owner?.ownerId).toBe(winners[0].ownership.ownerId);
+      for (const loser of results.filter((r) => !r.claimed)) expect(loser.ownership.ownerId).toBe(owner?.ownerId);
     },
   },
   {

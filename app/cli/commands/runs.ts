@@ -1,3 +1,4 @@
+import { describeOwner } from '../../service/run-ownership';
 import type { CommandSpec } from '../args';
 import { optionFlag, optionNumber, optionString } from '../args';
 import { ValidationError } from '../../errors';
@@ -34,6 +35,10 @@ export const runsCommand: CommandSpec = {
         return 0;
       }
       process.stdout.write(runTable(runs));
+      for (const run of runs.filter((r) => r.status === 'running' || r.status === 'paused')) {
+        const owner = await service.runOwner(run.id);
+        if (owner) process.stdout.write(`run ${run.id} is driven by ${describeOwner(owner)}\n`);
+      }
       const interrupted = await service.interruptedRuns();
       if (interrupted.length > 0) {
         process.stderr.write(`\n${interrupted.length} run(s) were left running or paused: ${interrupted.map((r) => r.id).join(', ')}.\n`);

@@ -69,6 +69,7 @@ export async function openService(parsed: ParsedArgs, overrides: { timeScale?: n
     maxStimulusVpp: optionNumber(parsed, 'max-amplitude'),
     giveUpAfterS: optionNumber(parsed, 'give-up') ?? 120,
     benchName: resolveBenchName(optionString(parsed, 'bench')),
+    ownerLabel: 'rolloff (command line)',
     simulatedBench: { timeScale, noiseVrms: optionNumber(parsed, 'noise') ?? 1e-4, circuitNoise: optionFlag(parsed, 'circuit-noise'), latencyS: overrides.latencyS ?? 0 },
   });
 }

@@ -41,6 +41,9 @@ import {
   requireId,
   requireText,
   toJson,
+  checkRunClaimant,
+  checkStaleAfter,
+  ownershipFromRow,
 } from '../record-checks';
 import type { RolloffStore } from '../store-interface';
 import type {
@@ -62,6 +65,9 @@ import type {
   StoreChangeFeed,
   StoreOpenOptions,
   StoredRun,
+  RunClaimant,
+  RunClaimResult,
+  RunOwnership,
 } from '../types';
 import { randomUUID } from 'node:crypto';
 import { CHANGE_CHANNEL, changePayload, openChangeFeed } from './change-feed';
@@ -421,11 +427,65 @@ export class PostgresStore implements RolloffStore {
     return rows.map(summaryFromRow);
   }
 
-  async findInterruptedRuns(): Promise<StoredRun[]> {
-    const { rows } = await this.query<{ id: number }>(`SELECT id FROM runs WHERE status IN ('running', 'paused') ORDER BY id`);
+  async findInterruptedRuns(staleAfterMs: number): Promise<StoredRun[]> {
+    const staleBeforeMs = this.nowMs() - checkStaleAfter(staleAfterMs);
+    const { rows } = await this.query<{ id: number }>(
+      `SELECT id FROM runs WHERE status IN ('running', 'paused') AND (owner_id IS NULL OR owner_heartbeat_ms < $1) ORDER BY id`,
+      [staleBeforeMs],
+    );
     const runs: StoredRun[] = [];
     for (const row of rows) runs.push(await this.getRun(row.id));
     return runs;
+  }
+
+  // ── run ownership ──────────────────────────────────────────────────────
+
+  private nowMs(): number {
+    return Date.parse(this.now());
+  }
+
+  /**
+   * One conditional UPDATE. Under READ COMMITTED a second claimant's UPDATE waits
+   * for the first's row lock, then re-checks the WHERE against the new row (its
+   * fresh heartbeat and owner) and matches nothing: only one claimant wins.
+   */
+  async claimRun(runId: number, claimant: RunClaimant, staleAfterMs: number): Promise<RunClaimResult> {
+    this.requireWritable();
+    const { ownerId, pid, host, label } = checkRunClaimant(claimant, staleAfterMs);
+    const nowMs = this.nowMs();
+    const result = await this.query(
+      `UPDATE runs SET owner_id = $2, owner_pid = $3, owner_host = $4, owner_label = $5,
+         owner_since_ms = CASE WHEN owner_id = $2 THEN owner_since_ms ELSE $6 END, owner_heartbeat_ms = $6
+       WHERE id = $1 AND (owner_id IS NULL OR owner_id = $2 OR owner_heartbeat_ms < $7)`,
+      [requireId(runId, 'runId'), ownerId, pid, host, label, nowMs, nowMs - staleAfterMs],
+    );
+    const ownership = await this.getRunOwnership(runId);
+    if (!ownership) throw new RecordNotFoundError('run', runId);
+    return { claimed: result.rowCount === 1, ownership };
+  }
+
+  async renewRunHeartbeat(runId: number, ownerId: string): Promise<boolean> {
+    this.requireWritable();
+    const result = await this.query(`UPDATE runs SET owner_heartbeat_ms = $3 WHERE id = $1 AND owner_id = $2`, [requireId(runId, 'runId'), ownerId, this.nowMs()]);
+    return result.rowCount === 1;
+  }
+
+  async releaseRun(runId: number, ownerId: string): Promise<void> {
+    this.requireWritable();
+    await this.query(
+      `UPDATE runs SET owner_id = NULL, owner_pid = NULL, owner_host = NULL, owner_label = NULL, owner_since_ms = NULL, owner_heartbeat_ms = NULL
+       WHERE id = $1 AND owner_id = $2`,
+      [requireId(runId, 'runId'), ownerId],
+    );
+  }
+
+  async getRunOwnership(runId: number): Promise<RunOwnership | undefined> {
+    const { rows } = await this.query(
+      `SELECT owner_id, owner_pid, owner_host, owner_label, owner_since_ms, owner_heartbeat_ms FROM runs WHERE id = $1`,
+      [requireId(runId, 'runId')],
+    );
+    if (rows.length === 0) throw new RecordNotFoundError('run', runId);
+    return ownershipFromRow(rows[0]);
   }
 
   // ── points ─────────────────────────────────────────────────────────────

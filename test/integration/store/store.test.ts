@@ -231,7 +231,7 @@ describe('durability', () => {
     const columns = await reopened.loadPoints(run.id);
     expect(columns.step).toEqual([0, 1, 2, 3, 4]);
     expect(await reopened.nextStep(run.id)).toBe(5);
-    expect((await reopened.findInterruptedRuns()).map((r) => r.id)).toEqual([run.id]);
+    expect((await reopened.findInterruptedRuns(10_000)).map((r) => r.id)).toEqual([run.id]);
     expect(await reopened.integrityProblems()).toEqual([]);
   });
 });

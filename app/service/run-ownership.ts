@@ -1,0 +1,74 @@
+/**
+ * Which process drives a run. A service claims a run in the store before it
+ * measures anything, renews the heartbeat while the sweep goes on, and releases
+ * the run when the sweep leaves the running state. Another process sees a live
+ * owner and keeps its hands off; only a stale heartbeat (or, on the same host, an
+ * owner process that no longer exists) lets it take the run over, and the
+ * take-over is the store's one conditional update (RunStore.claimRun).
+ */
+import { hostname } from 'node:os';
+import { randomBytes } from 'node:crypto';
+import { UserError } from '../errors';
+import type { RolloffStore, RunClaimant, RunOwnership } from '../store';
+
+/** How often an owner renews its heartbeat (ms): "every few seconds". */
+export const HEARTBEAT_INTERVAL_MS = 2_000;
+/** A heartbeat older than this (ms) means the owner is gone: five missed renewals (common practice, no source). */
+export const STALE_AFTER_MS = 5 * HEARTBEAT_INTERVAL_MS;
+
+/** The run is driven by another live process. */
+export class RunOwnedElsewhereError extends UserError {
+  readonly ownership: RunOwnership;
+  constructor(runId: number, ownership: RunOwnership, action: string) {
+    super(`run ${runId} is being driven by ${describeOwner(ownership)}; it cannot be ${action} from here`, howToStopThere(ownership));
+    this.ownership = ownership;
+  }
+}
+
+/** "rolloff sweep (process 1234 on lab-pc, since 10:02:03 UTC, last heard 1 s ago)". */
+export function describeOwner(ownership: RunOwnership, nowMs = Date.now()): string {
+  const agoS = Math.max(0, Math.round((nowMs - Date.parse(ownership.heartbeatAt)) / 1000));
+  return `${ownership.label || 'another process'} (process ${ownership.pid} on ${ownership.host}, since ${ownership.since}, last heard ${agoS} s ago)`;
+}
+
+function howToStopThere(ownership: RunOwnership): string {
+  return `Pause or stop it where it runs (Ctrl+C in that terminal pauses a CLI sweep; the window has Pause and Stop), or end process ${ownership.pid} on ${ownership.host}. Once its heartbeat is ${STALE_AFTER_MS / 1000} s old, rolloff resume takes it over here.`;
+}
+
+/** This process as a claimant; one id per service, so two services in one process are told apart. */
+export function thisProcessClaimant(label: string): RunClaimant {
+  const host = hostname();
+  return { ownerId: `${host}:${process.pid}:${randomBytes(6).toString('hex')}`, pid: process.pid, host, label };
+}
+
+/** True when the owner is on this host and its process no longer exists. */
+export function ownerProcessIsGone(ownership: RunOwnership): boolean {
+  if (ownership.host !== hostname()) return false;
+  try {
+    process.kill(ownership.pid, 0);
+    return false;
+  } catch (error) {
+    return (error as NodeJS.ErrnoException).code === 'ESRCH';
+  }
+}
+
+/** The run's owner when it is live (heartbeat fresh and, on this host, its process alive) and not us; else undefined. */
+export async function liveOtherOwner(store: RolloffStore, runId: number, me: RunClaimant, staleAfterMs: number): Promise<RunOwnership | undefined> {
+  const ownership = await store.getRunOwnership(runId);
+  if (!ownership || ownership.ownerId === me.ownerId) return undefined;
+  if (Date.now() - Date.parse(ownership.heartbeatAt) > staleAfterMs) return undefined;
+  if (ownerProcessIsGone(ownership)) return undefined;
+  return ownership;
+}
+
+/**
+ * Claims the run for me, or throws RunOwnedElsewhereError naming the owner. An
+ * owner whose process is gone on this host is taken over at once (staleness of
+ * 1 ms: still the store's conditional update, so a racing claimant cannot also win).
+ */
+export async function claimOrRefuse(store: RolloffStore, runId: number, me: RunClaimant, staleAfterMs: number, action: string): Promise<void> {
+  const current = await store.getRunOwnership(runId);
+  const gone = current !== undefined && current.ownerId !== me.ownerId && ownerProcessIsGone(current);
+  const result = await store.claimRun(runId, me, gone ? 1 : staleAfterMs);
+  if (!result.claimed) throw new RunOwnedElsewhereError(runId, result.ownership, action);
+}

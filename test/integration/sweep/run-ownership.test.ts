@@ -1,0 +1,101 @@
+/**
+ * A run belongs to the process that drives it, end to end through the CLI on one
+ * store file: while a `rolloff sweep` process measures, a second process can
+ * neither resume, pause, stop nor list the run as interrupted; `rolloff runs`
+ * names who drives it. After SIGKILL of the owner the other process takes the
+ * run over (its owner process is gone on this host) and completes it with every
+ * step measured once.
+ */
+import { afterAll, describe, expect, it } from 'vitest';
+import { spawn, spawnSync } from 'node:child_process';
+import { writeFileSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import { SqliteStore } from '../../../app/store';
+import { openServiceAt } from '../../../app/service/open-service';
+import { RunOwnedElsewhereError } from '../../../app/service/run-ownership';
+import { makeDesignFromTemplate } from '../../../app/circuit/templates';
+import { tempFolder } from './helpers';
+
+const ROOT = resolve(__dirname, '../../..');
+const BIN = join(ROOT, 'app/cli/bin.mjs');
+
+async function pointsOfLatestRun(dbPath: string): Promise<number> {
+  try {
+    const store = SqliteStore.open(dbPath, { readonly: true });
+    try {
+      const [run] = await store.listRuns({ limit: 1 });
+      return run ? (await store.loadPoints(run.id)).step.length : 0;
+    } finally {
+      await store.close();
+    }
+  } catch {
+    return 0; // not created yet
+  }
+}
+
+describe('two processes on one store file', () => {
+  const folder = tempFolder();
+  afterAll(() => folder.remove());
+
+  it('a live run is not taken, paused, stopped or called interrupted by another process; after SIGKILL it is taken over and completed', async () => {
+    const designPath = join(folder.path, 'lowpass.json');
+    const dbPath = join(folder.path, 'runs.sqlite');
+    writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
+    // 36 points from 3 Hz at time scale 0.5 (slower than real time): a minute of sweeping, so the checks below run while it measures.
+    const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'owned', '--simulated', '--time-scale', '0.5',
+      '--max-amplitude', '1', '--db', dbPath, '--from', '3', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'pipe', 'pipe'] });
+    let stderr = '';
+    child.stderr.on('data', (chunk) => (stderr += chunk));
+    const exited = new Promise<NodeJS.Signals | null>((done) => child.on('exit', (_code, signal) => done(signal)));
+    const deadline = Date.now() + 30_000;
+    while ((await pointsOfLatestRun(dbPath)) < 1) {
+      if (Date.now() > deadline) throw new Error(`sweep made no progress: ${stderr}`);
+      await new Promise((r) => setTimeout(r, 50));
+    }
+    const peek = SqliteStore.open(dbPath, { readonly: true });
+    const [run] = await peek.listRuns({ limit: 1 });
+    const owner = await peek.getRunOwnership(run.id);
+    await peek.close();
+    expect(owner).toMatchObject({ pid: child.pid, label: 'rolloff (command line)' });
+
+    // Another CLI process: resume refused naming the owner; runs shows who drives it and does not offer it for resume.
+    const resumeRefused = spawnSync(process.execPath, [BIN, 'resume', String(run.id), '--db', dbPath, '--simulated'], { encoding: 'utf8', timeout: 30_000 });
+    expect(resumeRefused.status).not.toBe(0);
+    expect(resumeRefused.stderr).toMatch(new RegExp(`run ${run.id} is being driven by rolloff \\(command line\\) \\(process ${child.pid} on `));
+    expect(resumeRefused.stderr).toMatch(/Pause or stop it where it runs/);
+    const listed = spawnSync(process.execPath, [BIN, 'runs', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
+    expect(listed.status, listed.stderr).toBe(0);
+    expect(listed.stdout).toMatch(new RegExp(`run ${run.id} is driven by rolloff \\(command line\\) \\(process ${child.pid} on `));
+    expect(listed.stderr).not.toMatch(/left running or paused/);
+
+    // A service in this process (as the window's would be): pause, stop and resume refused, nothing changed.
+    const other = await openServiceAt(dbPath, { maxStimulusVpp: 1 });
+    try {
+      expect(await other.interruptedRuns()).toEqual([]);
+      await expect(other.pauseRun(run.id)).rejects.toThrow(RunOwnedElsewhereError);
+      await expect(other.stopRun(run.id)).rejects.toThrow(RunOwnedElsewhereError);
+      await expect(other.resumeRun(run.id)).rejects.toThrow(/is being driven by/);
+      expect((await other.getRunSummary(run.id)).status).toBe('running');
+    } finally {
+      await other.close();
+    }
+
+    child.kill('SIGKILL');
+    expect(await exited).toBe('SIGKILL');
+    const pointsBefore = await pointsOfLatestRun(dbPath);
+
+    const resumed = spawnSync(process.execPath, [BIN, 'resume', String(run.id), '--db', dbPath, '--simulated', '--time-scale', '50'], { encoding: 'utf8', timeout: 60_000 });
+    expect(resumed.status, resumed.stderr).toBe(0);
+    expect(resumed.stderr).toMatch(new RegExp(`run ${run.id} continues at step ${pointsBefore}`));
+
+    const after = SqliteStore.open(dbPath, { readonly: true });
+    const finished = await after.getRun(run.id);
+    const points = await after.loadPoints(run.id);
+    const ownerAfter = await after.getRunOwnership(run.id);
+    await after.close();
+    expect(finished.status).toBe('done');
+    expect(points.step).toEqual(points.step.map((_, i) => i)); // every step once
+    expect(points.stimulus.slice(0, finished.plan.steps.length)).toEqual(finished.plan.steps.map((s) => s.stimulus));
+    expect(ownerAfter).toBeUndefined(); // released at the end
+  }, 90_000);
+});
