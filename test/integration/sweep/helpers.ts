@@ -4,6 +4,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import type { SweepRequest } from '../../../app/contract/contract';
+import { SqliteStore } from '../../../app/store';
 
 export function tempFolder(): { path: string; remove(): void } {
   const path = mkdtempSync(join(tmpdir(), 'rolloff-sweep-'));
@@ -21,4 +22,19 @@ export function sweepRequest(buildId: number, overrides: Partial<SweepRequest> =
     amplitude: { mode: 'auto' }, measurement: 'scope', minCycles: 5, averages: 1, refine: true,
     operator: 'integration test', notes: '', ...overrides,
   };
+}
+
+/** Points stored so far for the newest run in a SQLite file (read-only; 0 before the file or the run exists). */
+export async function pointsOfLatestRun(dbPath: string): Promise<number> {
+  try {
+    const store = SqliteStore.open(dbPath, { readonly: true });
+    try {
+      const [run] = await store.listRuns({ limit: 1 });
+      return run ? (await store.loadPoints(run.id)).step.length : 0;
+    } finally {
+      await store.close();
+    }
+  } catch {
+    return 0; // not created yet
+  }
 }

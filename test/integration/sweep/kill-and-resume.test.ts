@@ -12,24 +12,10 @@ import { writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { SqliteStore } from '../../../app/store';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
-import { tempFolder } from './helpers';
+import { pointsOfLatestRun, tempFolder } from './helpers';
 
 const ROOT = resolve(__dirname, '../../..');
 const BIN = join(ROOT, 'app/cli/bin.mjs');
-
-async function countPoints(dbPath: string): Promise<number> {
-  try {
-    const store = SqliteStore.open(dbPath, { readonly: true });
-    try {
-      const [run] = await store.listRuns({ limit: 1 });
-      return run ? (await store.loadPoints(run.id)).step.length : 0;
-    } finally {
-      await store.close();
-    }
-  } catch {
-    return 0; // not created yet
-  }
-}
 
 describe('SIGKILL in the middle of a sweep, then resume', () => {
   const folder = tempFolder();
@@ -48,7 +34,7 @@ describe('SIGKILL in the middle of a sweep, then resume', () => {
     const exited = new Promise<NodeJS.Signals | null>((done) => child.on('exit', (_code, signal) => done(signal)));
 
     const deadline = Date.now() + 30_000;
-    while ((await countPoints(dbPath)) < 4) {
+    while ((await pointsOfLatestRun(dbPath)) < 4) {
       if (Date.now() > deadline) throw new Error(`sweep made no progress: ${stderr}`);
       await new Promise((r) => setTimeout(r, 50));
     }

@@ -14,24 +14,10 @@ import { SqliteStore } from '../../../app/store';
 import { openServiceAt } from '../../../app/service/open-service';
 import { RunOwnedElsewhereError } from '../../../app/service/run-ownership';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
-import { tempFolder } from './helpers';
+import { pointsOfLatestRun, tempFolder } from './helpers';
 
 const ROOT = resolve(__dirname, '../../..');
 const BIN = join(ROOT, 'app/cli/bin.mjs');
-
-async function pointsOfLatestRun(dbPath: string): Promise<number> {
-  try {
-    const store = SqliteStore.open(dbPath, { readonly: true });
-    try {
-      const [run] = await store.listRuns({ limit: 1 });
-      return run ? (await store.loadPoints(run.id)).step.length : 0;
-    } finally {
-      await store.close();
-    }
-  } catch {
-    return 0; // not created yet
-  }
-}
 
 describe('two processes on one store file', () => {
   const folder = tempFolder();
