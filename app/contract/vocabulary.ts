@@ -31,7 +31,11 @@ export const RETIRED_FIGURE_NAMES: Record<string, FigureKey> = {
   'Emission coefficient n': 'diodeIdealityN',
   '−3 dB points': 'minus3dbHz',
   'Max deviation': 'maxDeviationDb',
+  'Gain limit (': 'gainLimitHz',
 };
+
+/** Names the maximum stimulus had on some surfaces before this table; the vocabulary test refuses them. */
+export const RETIRED_SETTING_NAMES = ['Safety limit', 'maximum stimulus,'];
 
 /** Point flags as words (records, CLI tables, the window). */
 export const FLAG_WORDS: Record<keyof typeof PointFlag, string> = {

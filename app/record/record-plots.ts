@@ -1,11 +1,12 @@
 /**
  * Which plots a record shows, built from the record alone:
  * run (AC) → Bode gain and phase, measured over theory, tolerance band,
- *            gain-limit point and −3 dB points marked;
+ *            gain-limit point and −3 dB frequencies marked;
  * run (DC) → transfer curve, measured points and the fitted curve;
  * comparison → overlay of all runs and their difference from the reference.
  */
 import { formatEngineering, unwrapPhaseDeg } from '../units';
+import { FIGURE_NAMES } from '../contract/vocabulary';
 import { linearAxis, logAxis, type Axis } from './plot-axes';
 import type { ComparisonRecord, MaybeNumber, RunRecord } from './model';
 import type { PlotMarker, PlotSeries, PlotSpec } from './plot-spec';
@@ -39,10 +40,10 @@ function stimulusAxis(record: RunRecord, extra: MaybeNumber[] = []): Axis {
 function gainMarkers(record: RunRecord): PlotMarker[] {
   const markers: PlotMarker[] = [];
   if (record.theory.gainLimitHz !== null) {
-    markers.push({ name: 'Gain limit (theory)', color: PLOT_COLORS.gainLimit, x: record.theory.gainLimitHz, label: `gain limit ${formatEngineering(record.theory.gainLimitHz, 'Hz', 3)}` });
+    markers.push({ name: `${FIGURE_NAMES.gainLimitHz} (theory)`, color: PLOT_COLORS.gainLimit, x: record.theory.gainLimitHz, label: `gain limit ${formatEngineering(record.theory.gainLimitHz, 'Hz', 3)}` });
   }
   if (record.figures.gainLimitHz !== undefined && record.figures.gainLimitHz !== null) {
-    markers.push({ name: 'Gain limit (measured)', color: PLOT_COLORS.measuredMarker, x: record.figures.gainLimitHz, label: `meas. gain limit ${formatEngineering(record.figures.gainLimitHz, 'Hz', 3)}` });
+    markers.push({ name: `${FIGURE_NAMES.gainLimitHz} (measured)`, color: PLOT_COLORS.measuredMarker, x: record.figures.gainLimitHz, label: `meas. gain limit ${formatEngineering(record.figures.gainLimitHz, 'Hz', 3)}` });
   }
   for (const f of record.theory.minus3dbHz) {
     markers.push({ name: '−3 dB (theory)', color: PLOT_COLORS.theoryMarker, x: f, label: `−3 dB ${formatEngineering(f, 'Hz', 3)}` });
@@ -120,7 +121,7 @@ function phasePlot(record: RunRecord): PlotSpec {
     y: linearAxis([...theoryPhase, ...measuredPhase], 'Phase (°)', ''),
     bands: [],
     series,
-    markers: gainMarkers(record).filter((m) => m.name.startsWith('Gain limit')),
+    markers: gainMarkers(record).filter((m) => m.name.startsWith(FIGURE_NAMES.gainLimitHz)),
   };
 }
 

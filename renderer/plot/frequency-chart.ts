@@ -1,7 +1,7 @@
 /**
  * One chart with a logarithmic frequency axis (uPlot): theory lines, the
  * tolerance band, measured points, distorted points and vertical markers for
- * the gain-limit and −3 dB points. Bode, Compare and difference plots are all
+ * the gain-limit and −3 dB frequencies. Bode, Compare and difference plots are all
  * built from this.
  */
 import uPlot from 'uplot';

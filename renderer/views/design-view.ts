@@ -1,7 +1,7 @@
 /**
  * Design: start from a template, a design file or a saved design; edit part
  * values and the op-amp model; the theoretical gain and phase, tolerance band,
- * gain-limit and −3 dB points update as you type. Theory is computed here in
+ * gain-limit and −3 dB frequencies update as you type. Theory is computed here in
  * the window with the pure circuit module — no round trip to the service.
  */
 import { UserError } from '../../app/errors';

@@ -1,0 +1,54 @@
+/**
+ * One name per figure and setting (app/contract/vocabulary.ts): every command's
+ * help, the window's label strings (renderer sources) and a record's headings
+ * are read, and a name the table retired, or an internal flag key, fails.
+ */
+import { readdirSync, readFileSync, statSync } from 'node:fs';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { COMMANDS } from '../../../app/cli/commands';
+import { formatCommandHelp } from '../../../app/cli/args';
+import { FIGURE_NAMES, FLAG_WORDS, RETIRED_FIGURE_NAMES, RETIRED_SETTING_NAMES } from '../../../app/contract/vocabulary';
+import { buildRunRecord, renderRecord } from '../../../app/record';
+import { acRunDetail, fixtureBuild, FIXTURE_DESIGN } from '../record/fixtures';
+
+const ROOT = new URL('../../../', import.meta.url).pathname;
+
+function sourcesUnder(folder: string): string[] {
+  return readdirSync(folder).flatMap((name) => {
+    const path = join(folder, name);
+    if (statSync(path).isDirectory()) return sourcesUnder(path);
+    return /\.(ts|html)$/.test(name) ? [path] : [];
+  });
+}
+
+const RETIRED = [...Object.keys(RETIRED_FIGURE_NAMES), ...RETIRED_SETTING_NAMES];
+
+function retiredIn(text: string): string[] {
+  return RETIRED.filter((name) => text.includes(name));
+}
+
+describe('one vocabulary', () => {
+  it('every command\'s help uses the table\'s names', () => {
+    const problems = COMMANDS.flatMap((command) => retiredIn(formatCommandHelp(command)).map((name) => `${command.name}: ${name}`));
+    expect(COMMANDS.length).toBeGreaterThan(10);
+    expect(problems).toEqual([]);
+  });
+
+  it('the window\'s label strings and the record sources use the table\'s names', () => {
+    const files = [...sourcesUnder(join(ROOT, 'renderer')), ...sourcesUnder(join(ROOT, 'app/record')), ...sourcesUnder(join(ROOT, 'app/cli'))];
+    const problems = files.flatMap((file) => retiredIn(readFileSync(file, 'utf8')).map((name) => `${file.slice(ROOT.length)}: ${name}`));
+    expect(files.length).toBeGreaterThan(30);
+    expect(problems).toEqual([]);
+  });
+
+  it('a record\'s text uses the table\'s figure names and flag words', async () => {
+    const record = buildRunRecord(acRunDetail(), { design: FIXTURE_DESIGN, build: fixtureBuild(), designId: 1, generatedAt: '2026-12-01T12:00:00.000Z' });
+    const html = new TextDecoder().decode((await renderRecord(record, 'html')).bytes);
+    expect(retiredIn(html)).toEqual([]);
+    expect(html).toContain(FIGURE_NAMES.minus3dbHz);
+    expect(html).toContain(FIGURE_NAMES.gainLimitHz);
+    expect(html).not.toMatch(/pastGainLimit|notANumber|outsideToleranceBand/);
+    expect(Object.values(FLAG_WORDS).some((word) => html.includes(word))).toBe(true);
+  });
+});
