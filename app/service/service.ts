@@ -366,19 +366,25 @@ export class RolloffService implements RolloffApi {
     if (run.status === 'done') throw new RunStateError(runId, 'is finished; nothing to resume', 'Start a new run of the same build instead.');
     // One conditional update in the store: of two processes resuming a stale run, one wins, the other is told who.
     await claimOrRefuse(this.store, runId, this.claimant, this.staleAfterMs, 'resumed');
-    if (this.maxStimulusVpp === undefined && typeof run.request.maxStimulusVpp === 'number') this.maxStimulusVpp = run.request.maxStimulusVpp;
-    const maxStimulusVpp = this.requireMaxStimulus();
-    if (run.simulated) {
-      // A fresh simulated bench of the run's build: the one it ran on may be gone with the process that crashed.
-      await this.startSimulatedBenchForBuild(run.buildId);
-    } else {
-      for (const instrument of run.bench) {
-        if (!this.instruments.has(instrument.role)) await this.connectRole({ role: instrument.role, address: instrument.address, profileId: instrument.profileId }, false);
+    try {
+      if (this.maxStimulusVpp === undefined && typeof run.request.maxStimulusVpp === 'number') this.maxStimulusVpp = run.request.maxStimulusVpp;
+      const maxStimulusVpp = this.requireMaxStimulus();
+      if (run.simulated) {
+        // A fresh simulated bench of the run's build: the one it ran on may be gone with the process that crashed.
+        await this.startSimulatedBenchForBuild(run.buildId);
+      } else {
+        for (const instrument of run.bench) {
+          if (!this.instruments.has(instrument.role)) await this.connectRole({ role: instrument.role, address: instrument.address, profileId: instrument.profileId }, false);
+        }
       }
+      this.requireInstrumentsFor(run.request);
+      await this.logRunEvent(runId, 'info', `resumed (maximum stimulus ${maxStimulusVpp} Vpp)`);
+      await this.launch(runId);
+    } catch (error) {
+      // Not resumed after all (no stimulus limit, an instrument missing): leave the run to whoever tries next.
+      if (!this.active.has(runId)) await this.store.releaseRun(runId, this.claimant.ownerId).catch(() => undefined);
+      throw error;
     }
-    this.requireInstrumentsFor(run.request);
-    await this.logRunEvent(runId, 'info', `resumed (maximum stimulus ${maxStimulusVpp} Vpp)`);
-    await this.launch(runId);
     return this.summaryOf(runId);
   }
 
