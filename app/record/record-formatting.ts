@@ -1,6 +1,6 @@
 /** Words and number formats a record uses, shared by every format so they say the same thing. */
 import { PointFlag, type InstrumentIdentity, type RunFigures, type Verdict } from '../contract/contract';
-import { formatEngineering } from '../units';
+import { formatEngineering, formatWithUncertainty } from '../units';
 import type { MaybeNumber } from './model';
 import { FIGURE_NAMES } from '../contract/vocabulary';
 
@@ -42,8 +42,8 @@ export function figureLines(figures: RunFigures): FigureLine[] {
   if (isNumber(figures.rolloffDbPerDecade)) lines.push({ key: 'rolloffDbPerDecade', label: 'Roll-off', value: `${figures.rolloffDbPerDecade.toFixed(1)} dB/decade` });
   if (isNumber(figures.gainLimitHz)) lines.push({ key: 'gainLimitHz', label: `${FIGURE_NAMES.gainLimitHz} (loop gain = 1)`, value: formatHz(figures.gainLimitHz) });
   if (isNumber(figures.gbwEstimateHz)) {
-    const uncertainty = isNumber(figures.gbwUncertaintyHz) ? ` ± ${formatHz(figures.gbwUncertaintyHz)}` : '';
-    lines.push({ key: 'gbwEstimateHz', label: 'Op-amp gain-bandwidth estimate', value: formatHz(figures.gbwEstimateHz) + uncertainty });
+    const value = isNumber(figures.gbwUncertaintyHz) ? `${formatWithUncertainty(figures.gbwEstimateHz, figures.gbwUncertaintyHz, 'Hz')} (1σ)` : formatHz(figures.gbwEstimateHz);
+    lines.push({ key: 'gbwEstimateHz', label: `${FIGURE_NAMES.gbwEstimateHz} estimate`, value });
   }
   if (isNumber(figures.maxDeviationDb)) lines.push({ key: 'maxDeviationDb', label: FIGURE_NAMES.maxDeviationDb, value: formatDb(figures.maxDeviationDb) });
   if (isNumber(figures.closedLoopPeakingDb)) {

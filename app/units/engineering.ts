@@ -54,7 +54,7 @@ export function parseEngineering(text: string | number, where = 'value'): number
   return value;
 }
 
-const FORMAT_PREFIXES: Array<[number, string]> = [
+export const FORMAT_PREFIXES: Array<[number, string]> = [
   [12, 'T'],
   [9, 'G'],
   [6, 'M'],

@@ -2,3 +2,4 @@ export * from './engineering';
 export * from './decibels';
 export * from './grid';
 export * from './duration';
+export * from './uncertainty';

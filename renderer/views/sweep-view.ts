@@ -6,7 +6,7 @@
 import { SWEEP_DEFAULTS, SWEEP_RANGE_DEFAULTS } from '../../app/sweep/plan/defaults';
 import { UserError } from '../../app/errors';
 import type { BuildRecord, RolloffClient, RunDetail, RunFigures, RunProgress, RunStatus, RunSummary, SweepRequest, Verdict } from '../../app/contract/contract';
-import { formatEngineering, logGrid, parseEngineering } from '../../app/units';
+import { formatEngineering, formatWithUncertainty, logGrid, parseEngineering } from '../../app/units';
 import { parseDesign, solveDcTransfer, withActualValues } from '../../app/circuit';
 import { debounce, field, h, replaceChildren, select } from '../dom';
 import { formatDb, formatDuration, formatHz } from '../model/format';
@@ -295,7 +295,7 @@ export class SweepView implements View {
     if (figures.passbandGainDb !== undefined) rows.push(['Pass-band gain', formatDb(figures.passbandGainDb)]);
     if (figures.minus3dbHz.length > 0) rows.push([FIGURE_NAMES.minus3dbHz, figures.minus3dbHz.map((f) => formatHz(f)).join(', ')]);
     if (figures.gainLimitHz !== undefined) rows.push([`${FIGURE_NAMES.gainLimitHz} (measured)`, formatHz(figures.gainLimitHz)]);
-    if (figures.gbwEstimateHz !== undefined) rows.push(['GBW estimate', `${formatHz(figures.gbwEstimateHz)}${figures.gbwUncertaintyHz !== undefined ? ` ± ${formatHz(figures.gbwUncertaintyHz)}` : ''}`]);
+    if (figures.gbwEstimateHz !== undefined) rows.push([`${FIGURE_NAMES.gbwEstimateHz} estimate`, figures.gbwUncertaintyHz !== undefined ? `${formatWithUncertainty(figures.gbwEstimateHz, figures.gbwUncertaintyHz, 'Hz')} (1σ)` : formatHz(figures.gbwEstimateHz)]);
     if (figures.rolloffDbPerDecade !== undefined) rows.push(['Roll-off', `${figures.rolloffDbPerDecade.toFixed(1)} dB/decade`]);
     if (figures.maxDeviationDb !== undefined) rows.push([FIGURE_NAMES.maxDeviationDb, formatDb(figures.maxDeviationDb)]);
     if (figures.closedLoopPeakingDb !== undefined) {

@@ -1,6 +1,6 @@
 /** Plain-text summaries of runs for the terminal. */
 import { PointFlag, type RunDetail, type RunFigures, type RunSummary } from '../../contract/contract';
-import { formatEngineering } from '../../units';
+import { formatEngineering, formatWithUncertainty } from '../../units';
 import { FIGURE_NAMES } from '../../contract/vocabulary';
 
 export function figureLines(figures: RunFigures, theory?: { gainLimitHz?: number; minus3dbHz: number[] }): string[] {
@@ -12,7 +12,7 @@ export function figureLines(figures: RunFigures, theory?: { gainLimitHz?: number
   if (figures.rolloffDbPerDecade !== undefined) lines.push(`roll-off            ${figures.rolloffDbPerDecade.toFixed(1)} dB/decade`);
   lines.push(`gain-limit point    ${hz(figures.gainLimitHz)}${theory ? `   (theory ${hz(theory.gainLimitHz)})` : ''}`);
   if (figures.gbwEstimateHz !== undefined) {
-    lines.push(`GBW estimate        ${hz(figures.gbwEstimateHz)}${figures.gbwUncertaintyHz !== undefined ? ` ± ${hz(figures.gbwUncertaintyHz)} (1σ)` : ''}`);
+    lines.push(`${`${FIGURE_NAMES.gbwEstimateHz} estimate`.padEnd(20)}${figures.gbwUncertaintyHz !== undefined ? `${formatWithUncertainty(figures.gbwEstimateHz, figures.gbwUncertaintyHz, 'Hz')} (1σ)` : hz(figures.gbwEstimateHz)}`);
   }
   if (figures.maxDeviationDb !== undefined) lines.push(`largest deviation   ${figures.maxDeviationDb.toFixed(3)} dB from theory (pass band)`);
   lines.push(...stabilityLines(figures));
