@@ -1,4 +1,4 @@
-/** The six views and their keyboard shortcuts (Alt+1 … Alt+6; Alt keeps Ctrl+digit for the browser's tabs). */
+/** The seven views and their keyboard shortcuts (Alt+1 … Alt+6, Alt+0 for About; Alt keeps Ctrl+digit for the browser's tabs). */
 export const VIEWS = [
   { id: 'bench', title: 'Bench', key: '1' },
   { id: 'design', title: 'Design', key: '2' },

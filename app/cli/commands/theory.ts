@@ -41,8 +41,8 @@ export const theoryCommand: CommandSpec = {
   summary: 'Computed response of a design: AC gain/phase with op-amp limits, tolerance band, output noise, or DC transfer',
   usage: 'DESIGN.json [options]',
   options: [
-    { name: 'from', kind: 'number', placeholder: 'HZ|V', description: 'start of the sweep (AC default 10 Hz, DC default 1m V)' },
-    { name: 'to', kind: 'number', placeholder: 'HZ|V', description: 'end of the sweep (AC default 1meg Hz, DC default 10 V)' },
+    { name: 'from', kind: 'number', placeholder: 'HZ|V', description: 'start of the sweep (AC default 10 Hz, DC default 1 mV; engineering notation works: 1m)' },
+    { name: 'to', kind: 'number', placeholder: 'HZ|V', description: 'end of the sweep (AC default 1 MHz, DC default 10 V; engineering notation works: 1meg)' },
     { name: 'per-decade', kind: 'integer', placeholder: 'N', description: 'log-spaced points per decade (AC default 20, DC default 10)' },
     { name: 'csv', kind: 'flag', description: 'print CSV (full precision) instead of a table' },
     { name: 'json', kind: 'flag', description: 'print JSON (columns plus summary) instead of a table' },
