@@ -10,11 +10,10 @@
 import { mkdtempSync, rmSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import type { SweepPlanSummary, SweepRequest } from '../../app/contract/contract';
+import { POINTS_PER_RUN, plan, points, request } from './store-fixture';
 import { SOFTWARE_VERSION } from '../../app/contract/version';
-import { SqliteStore, type NewPoint } from '../../app/store';
+import { SqliteStore } from '../../app/store';
 
-const POINTS_PER_RUN = 1000;
 const BULK_POINTS = 1_000_000;
 const TOTAL_POINTS = Number(process.env.TOTAL_POINTS ?? 10_000_000);
 const SINGLE_COMMITS = 300;
@@ -23,20 +22,6 @@ const folder = mkdtempSync(join(tmpdir(), 'rolloff-bench-store-'));
 const path = join(folder, 'bench.sqlite');
 const store = SqliteStore.open(path);
 
-const request: SweepRequest = {
-  buildId: 1, kind: 'ac', from: 10, to: 1e6, pointsPerDecade: 200, spacing: 'log', amplitude: { mode: 'fixed', vpp: 1 },
-  measurement: 'scope', minCycles: 5, averages: 1, refine: false, operator: 'benchmark (invented)', notes: '',
-};
-const plan: SweepPlanSummary = {
-  steps: Array.from({ length: POINTS_PER_RUN }, (_, index) => ({ index, stimulus: 10 * 10 ** (index / 200), amplitudeVpp: 1, settleS: 0.05, integrateS: 0.1 })),
-  estimatedDurationS: 300,
-  warnings: [],
-};
-const points: NewPoint[] = plan.steps.map((s) => ({
-  step: s.index, stimulus: s.stimulus, amplitudeVpp: 1, inputReading: 0.5, outputReading: 5,
-  gainDb: 20 - s.index * 0.01, gainUncertaintyDb: 0.01, phaseDeg: 180 - s.index * 0.1, phaseUncertaintyDeg: 0.1,
-  outputV: Number.NaN, flags: 0, measuredAt: '2026-01-01T00:00:00.000Z',
-}));
 
 const design = await store.saveDesign({ name: 'benchmark stage (invented)', design: { parts: [] } });
 const builds = await Promise.all(Array.from({ length: 20 }, (_, i) => store.createBuild({ designId: design.id, label: `bench board ${i}`, notes: '', actualValues: {} })));
