@@ -14,7 +14,12 @@ import { bundleRenderer } from '../app/host/renderer-bundle';
 export const PROJECT_ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '..');
 export const ELECTRON_OUT_DIR = join(PROJECT_ROOT, 'out', 'electron');
 
-export async function buildElectronShell(outDir = ELECTRON_OUT_DIR): Promise<{ mainEntry: string }> {
+export interface ElectronBuildOptions {
+  /** Module paths that stand in for packages in the main process (tests put a recording stand-in for "electron"). */
+  mainAlias?: Record<string, string>;
+}
+
+export async function buildElectronShell(outDir = ELECTRON_OUT_DIR, options: ElectronBuildOptions = {}): Promise<{ mainEntry: string }> {
   await rm(outDir, { recursive: true, force: true });
   await mkdir(join(outDir, 'renderer'), { recursive: true });
   await build({
@@ -25,6 +30,7 @@ export async function buildElectronShell(outDir = ELECTRON_OUT_DIR): Promise<{ m
     format: 'esm',
     target: 'node22',
     packages: 'external',
+    alias: options.mainAlias,
     logLevel: 'warning',
   });
   await build({

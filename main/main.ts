@@ -1,20 +1,25 @@
 /**
  * Electron main process: one secure window, the service in this process
  * (serial ports and the store never enter the page), the contract over
- * validated IPC. Built by main/build.ts into out/electron/main.mjs.
+ * validated IPC, the page served on its own scheme (renderer-scheme.ts).
+ * Built by main/build.ts into out/electron/main.mjs.
  */
-import { app, BrowserWindow, ipcMain, shell } from 'electron';
+import { app, BrowserWindow, ipcMain, protocol, shell } from 'electron';
 import { join } from 'node:path';
-import { fileURLToPath, pathToFileURL } from 'node:url';
+import { fileURLToPath } from 'node:url';
 import { openHostedService } from '../app/host/hosted-service';
 import { resolveDatabasePath } from '../app/store';
 import { registerIpc } from './ipc';
+import { registerRendererScheme, serveRendererBundle } from './renderer-protocol';
+import { isRendererPageUrl } from './renderer-scheme';
 import { createMainWindow } from './window';
 
 // This file runs from out/electron/main.mjs; the preload and renderer sit beside it.
 const here = fileURLToPath(new URL('.', import.meta.url));
-const rendererIndex = join(here, 'renderer', 'index.html');
-const rendererUrl = pathToFileURL(rendererIndex).href;
+const rendererDir = join(here, 'renderer');
+
+// Privileged schemes can only be registered before the ready event.
+registerRendererScheme(protocol);
 
 /** `--db PATH` after the entry, as for the CLI; else ROLLOFF_DB or the per-user data folder. */
 function databaseFromArgs(argv: string[]): string | undefined {
@@ -29,15 +34,16 @@ async function start(): Promise<void> {
     contents.setWindowOpenHandler(() => ({ action: 'deny' }));
   });
   await app.whenReady();
+  await serveRendererBundle(protocol, rendererDir);
   const hosted = await openHostedService(resolveDatabasePath(databaseFromArgs(process.argv)));
   const wiring = registerIpc({
     ipcMain,
     api: hosted.api,
     windows: () => BrowserWindow.getAllWindows().map((w) => w.webContents),
-    isTrustedSender: (url) => url === rendererUrl || url.startsWith(rendererUrl + '#'),
+    isTrustedSender: isRendererPageUrl,
   });
   const unsubscribe = hosted.subscribe((event, payload) => wiring.forward(event, payload));
-  await createMainWindow(BrowserWindow, { preload: join(here, 'preload.cjs'), indexHtml: rendererIndex }, (url) => void shell.openExternal(url));
+  await createMainWindow(BrowserWindow, { preload: join(here, 'preload.cjs') }, (url) => void shell.openExternal(url));
 
   let closing = false;
   app.on('window-all-closed', () => app.quit());

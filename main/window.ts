@@ -5,10 +5,11 @@
  */
 import type { BrowserWindowConstructorOptions } from 'electron';
 import { contentSecurityPolicy } from '../app/host/content-security-policy';
+import { RENDERER_INDEX_URL } from './renderer-scheme';
 
 /** The parts of BrowserWindow used here (injected so tests can pass a fake). */
 export interface WindowLike {
-  loadFile(path: string): Promise<void>;
+  loadURL(url: string): Promise<void>;
   once(event: 'ready-to-show', listener: () => void): unknown;
   show(): void;
   webContents: WebContentsSecurityLike;
@@ -54,11 +55,12 @@ function secureWindowOptions(preloadPath: string): BrowserWindowConstructorOptio
   };
 }
 
-export async function createMainWindow(Window: WindowConstructor, paths: { preload: string; indexHtml: string }, openExternal?: (url: string) => void): Promise<WindowLike> {
+/** The page comes from the window's own scheme (renderer-scheme.ts), never from a file:// path. */
+export async function createMainWindow(Window: WindowConstructor, paths: { preload: string }, openExternal?: (url: string) => void): Promise<WindowLike> {
   const window = new Window(secureWindowOptions(paths.preload));
   hardenWebContents(window.webContents, openExternal);
   window.once('ready-to-show', () => window.show());
-  await window.loadFile(paths.indexHtml);
+  await window.loadURL(RENDERER_INDEX_URL);
   return window;
 }
 

@@ -1,6 +1,9 @@
 /**
  * The Content-Security-Policy both shells apply. No remote origin appears in
- * it: the window loads and talks only to where it came from.
+ * it: the window loads and talks only to where it came from. 'self' is the
+ * web host's http://127.0.0.1:PORT in a browser, and rolloff://app in the
+ * Electron shell (main/renderer-scheme.ts) — never file://, where 'self'
+ * does not single out the app's own files.
  */
 export function contentSecurityPolicy(connectSources: string[] = []): string {
   return [

@@ -7,6 +7,7 @@ import { build } from 'esbuild';
 import { readFile } from 'node:fs/promises';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { contentTypeOf } from './content-type';
 
 export interface StaticFile {
   contentType: string;
@@ -41,11 +42,4 @@ export async function bundleRenderer(options: { minify?: boolean } = {}): Promis
   const html = await readFile(join(RENDERER_DIR, 'index.html'), 'utf8');
   files.set('index.html', { contentType: contentTypeOf('index.html'), body: Buffer.from(html) });
   return files;
-}
-
-function contentTypeOf(name: string): string {
-  if (name.endsWith('.js')) return 'text/javascript; charset=utf-8';
-  if (name.endsWith('.css')) return 'text/css; charset=utf-8';
-  if (name.endsWith('.html')) return 'text/html; charset=utf-8';
-  return 'application/octet-stream';
 }

@@ -5,13 +5,11 @@
  * app.test.ts against `rolloff serve`.
  */
 import { describe, expect, it } from 'vitest';
-import { mkdtempSync, rmSync } from 'node:fs';
-import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { _electron as electron } from 'playwright-core';
 // @ts-expect-error -- plain .mjs launcher without type declarations
 import { electronBinaryPath } from '../../main/start.mjs';
-import { buildElectronShell } from '../../main/build';
+import { buildShellInTempFolder } from '../helpers/electron-shell-folder';
 
 const ROOT = resolve(__dirname, '../..');
 const binary = (electronBinaryPath as (root: string) => string | undefined)(ROOT);
@@ -20,12 +18,15 @@ const SKIP_REASON = 'skipped: the Electron binary is not installed (node_modules
 if (!binary) console.warn(`test/e2e/electron.test.ts ${SKIP_REASON}`);
 
 describe(binary ? 'the Electron shell' : `the Electron shell — ${SKIP_REASON}`, () => {
-  it.skipIf(!binary)('opens one isolated window with the views and the preload bridge only', async () => {
-    const dir = mkdtempSync(join(tmpdir(), 'rolloff-electron-e2e-'));
-    const { mainEntry } = await buildElectronShell(join(dir, 'electron'));
-    const app = await electron.launch({ executablePath: binary, args: [mainEntry, '--db', join(dir, 'bench.sqlite')] });
+  it.skipIf(!binary)('opens one isolated window on its own scheme with the views and the preload bridge only', async () => {
+    const shell = await buildShellInTempFolder();
+    const app = await electron.launch({ executablePath: binary, args: [shell.mainEntry, '--db', join(shell.root, 'bench.sqlite')] });
     try {
       const window = await app.firstWindow();
+      await window.waitForLoadState('domcontentloaded');
+      // Served by the rolloff:// handler (main/renderer-protocol.ts), so the CSP's 'self' is this origin, not file://.
+      expect(window.url()).toBe('rolloff://app/index.html');
+      expect(await window.evaluate(() => ({ origin: location.origin, secure: isSecureContext }))).toEqual({ origin: 'rolloff://app', secure: true });
       await window.getByTestId('safety-ok').click();
       await window.locator('.nav-button').first().waitFor();
       expect(await window.locator('.nav-button').count()).toBe(7);
@@ -40,7 +41,7 @@ describe(binary ? 'the Electron shell' : `the Electron shell — ${SKIP_REASON}`
       await window.screenshot({ path: join(ROOT, 'test/artifacts/electron-design.png') });
     } finally {
       await app.close();
-      rmSync(dir, { recursive: true, force: true });
+      shell.remove();
     }
   });
 });

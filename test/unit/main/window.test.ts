@@ -42,8 +42,8 @@ class FakeWindow implements WindowLike {
   constructor(readonly options: BrowserWindowConstructorOptions) {
     FakeWindow.last = this;
   }
-  async loadFile(path: string): Promise<void> {
-    this.loaded = path;
+  async loadURL(url: string): Promise<void> {
+    this.loaded = url;
   }
   once(): this {
     return this;
@@ -53,9 +53,10 @@ class FakeWindow implements WindowLike {
 
 describe('main window', () => {
   it('is created with isolation, sandbox and no Node in the page', async () => {
-    await createMainWindow(FakeWindow, { preload: '/app/preload.cjs', indexHtml: '/app/renderer/index.html' });
+    await createMainWindow(FakeWindow, { preload: '/app/preload.cjs' });
     const window = FakeWindow.last!;
-    expect(window.loaded).toBe('/app/renderer/index.html');
+    // The page's own origin, not file:// (renderer-scheme.ts).
+    expect(window.loaded).toBe('rolloff://app/index.html');
     expect(window.options.width).toBe(1280);
     expect(window.options.height).toBe(800);
     expect(window.options.webPreferences).toMatchObject({
@@ -71,7 +72,7 @@ describe('main window', () => {
 
   it('blocks navigation, redirects, webviews, new windows and permission requests', async () => {
     const opened: string[] = [];
-    await createMainWindow(FakeWindow, { preload: 'p', indexHtml: 'i' }, (url) => opened.push(url));
+    await createMainWindow(FakeWindow, { preload: 'p' }, (url) => opened.push(url));
     const contents = FakeWindow.last!.webContents;
     for (const event of ['will-navigate', 'will-redirect', 'will-attach-webview']) {
       let prevented = false;
@@ -87,7 +88,7 @@ describe('main window', () => {
   });
 
   it('adds a strict Content-Security-Policy to every response', async () => {
-    await createMainWindow(FakeWindow, { preload: 'p', indexHtml: 'i' });
+    await createMainWindow(FakeWindow, { preload: 'p' });
     let headers: Record<string, string[]> = {};
     FakeWindow.last!.webContents.headersListener!({ responseHeaders: { 'X-Other': ['1'] } }, (response: { responseHeaders: Record<string, string[]> }) => (headers = response.responseHeaders));
     const policy = headers['Content-Security-Policy'][0];
