@@ -3,6 +3,7 @@
  * Bode magnitudes are close to straight lines in (log f, dB), so linear
  * interpolation there is the natural choice (common practice, no source).
  */
+import { ascendingOrder } from '../numeric/ascending-order';
 
 export type CrossingDirection = 'falling' | 'rising' | 'either';
 
@@ -35,11 +36,4 @@ export function interpolateLogF(f0: number, y0: number, f1: number, y1: number):
   if (y0 === y1) return Math.sqrt(f0 * f1);
   const t = y0 / (y0 - y1);
   return 10 ** (Math.log10(f0) + t * (Math.log10(f1) - Math.log10(f0)));
-}
-
-/** Indexes that visit the points in increasing frequency (refinement points arrive out of order). */
-export function ascendingOrder(values: ArrayLike<number>): number[] {
-  const order = Array.from({ length: values.length }, (_, i) => i);
-  order.sort((a, b) => values[a] - values[b]);
-  return order;
 }

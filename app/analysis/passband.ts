@@ -3,7 +3,8 @@
  */
 import { HALF_POWER_DB } from '../units';
 import { medianOfSorted } from '../numeric/percentile';
-import { ascendingOrder, crossingsLogF } from './crossing';
+import { ascendingOrder } from '../numeric/ascending-order';
+import { crossingsLogF } from './crossing';
 
 // The theory summary (app/circuit) uses the same level, so both read −3 dB alike.
 export { HALF_POWER_DB };

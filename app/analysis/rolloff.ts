@@ -1,7 +1,7 @@
 /**
  * Roll-off slope in dB per decade from the measured points in the stop band.
  */
-import { ascendingOrder } from './crossing';
+import { ascendingOrder } from '../numeric/ascending-order';
 
 /**
  * Least-squares slope of gain against log10(f) over the points at least

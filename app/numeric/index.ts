@@ -1,8 +1,10 @@
 /**
  * General numerical helpers shared by the pure engines (circuit, signal,
  * analysis), the simulated bench and the tests: seeded random numbers,
- * percentiles, dense linear solves. Pure: no imports at all.
+ * percentiles, dense linear solves, the order of points along x. Pure: no
+ * imports at all.
  */
 export { SeededRandom } from './random';
 export { medianOfSorted, percentileOfSorted } from './percentile';
 export { solveComplexInPlace, solveRealInPlace } from './dense-solve';
+export { ascendingOrder, curveSortedByX } from './ascending-order';

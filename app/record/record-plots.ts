@@ -6,6 +6,7 @@
  * comparison → overlay of all runs and their difference from the reference.
  */
 import { formatEngineering, unwrapPhaseDeg } from '../units';
+import { curveSortedByX } from '../numeric';
 import { FIGURE_NAMES } from '../contract/vocabulary';
 import { linearAxis, logAxis, type Axis } from './plot-axes';
 import type { ComparisonRecord, MaybeNumber, RunRecord } from './model';
@@ -159,8 +160,9 @@ function overlayPlot(record: ComparisonRecord): PlotSpec {
   }
   record.runs.forEach((run, i) => {
     const color = RUN_COLORS[i % RUN_COLORS.length];
-    const ys = dc ? run.points.outputV : run.points.gainDb;
-    series.push({ name: runLegendName(run) + (run.run.id === record.reference ? ' (reference)' : ''), color, style: 'line', xs: run.points.stimulus, ys });
+    // Points are stored in measuring order (refinement points last); the line runs in stimulus order.
+    const curve = curveSortedByX({ xs: run.points.stimulus, ys: dc ? run.points.outputV : run.points.gainDb });
+    series.push({ name: runLegendName(run) + (run.run.id === record.reference ? ' (reference)' : ''), color, style: 'line', ...curve });
   });
   const xs = series.flatMap((s) => s.xs);
   const ys = series.flatMap((s) => s.ys);
@@ -179,7 +181,8 @@ function differencePlot(record: ComparisonRecord): PlotSpec {
   const series: PlotSeries[] = record.differences.map((difference) => {
     const index = record.runs.findIndex((r) => r.run.id === difference.runId);
     const run = record.runs[index];
-    return { name: run ? runLegendName(run) : `Run ${difference.runId}`, color: RUN_COLORS[Math.max(0, index) % RUN_COLORS.length], style: 'line' as const, xs: difference.stimulus, ys: difference.deltaDb };
+    const curve = curveSortedByX({ xs: difference.stimulus, ys: difference.deltaDb });
+    return { name: run ? runLegendName(run) : `Run ${difference.runId}`, color: RUN_COLORS[Math.max(0, index) % RUN_COLORS.length], style: 'line' as const, ...curve };
   });
   const xs = series.flatMap((s) => s.xs);
   const reference = record.reference === 'theory' ? 'theory' : `run ${record.reference}`;

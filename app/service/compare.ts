@@ -4,6 +4,7 @@
  */
 import type { Comparison, RunDetail, RunFigures } from '../contract/contract';
 import { ValidationError } from '../errors';
+import { ascendingOrder } from '../numeric';
 
 export function compareDetails(runs: RunDetail[], reference: number | 'theory'): Comparison {
   const referenceRun = reference === 'theory' ? undefined : runs.find((r) => r.id === reference);
@@ -39,11 +40,11 @@ function figureDeltas(figures: RunFigures, reference: RunFigures): Partial<Recor
 }
 
 /**
- * Value at f, linear in log f over the finite points, sorted once here (refinement points arrive out of
- * order); NaN outside the range.
+ * Value at f, linear in log f over the finite points, put in frequency order once here (refinement points
+ * are stored last); NaN outside the range.
  */
 function logFInterpolator(frequencyHz: number[], values: number[]): (atHz: number) => number {
-  const order = frequencyHz.map((_, i) => i).filter((i) => Number.isFinite(values[i])).sort((a, b) => frequencyHz[a] - frequencyHz[b]);
+  const order = ascendingOrder(frequencyHz).filter((i) => Number.isFinite(values[i]));
   return (atHz) => {
     for (let k = 0; k < order.length; k++) {
       const i = order[k];

@@ -3,6 +3,7 @@
  * as uPlot needs ([xs, ys1, ys2, …]); a series has null where it has no point,
  * and lines span those gaps. Columnar in, columnar out.
  */
+import { ascendingOrder } from '../../app/numeric/ascending-order';
 
 export interface XySeries {
   xs: ArrayLike<number>;
@@ -12,12 +13,14 @@ export interface XySeries {
 export type AlignedColumns = [number[], ...Array<Array<number | null>>];
 
 export function alignSeries(series: XySeries[]): AlignedColumns {
-  const unique = new Set<number>();
-  for (const { xs } of series) for (let i = 0; i < xs.length; i++) if (Number.isFinite(xs[i])) unique.add(xs[i]);
-  const xs = Float64Array.from(unique).sort();
+  const set = new Set<number>();
+  for (const { xs } of series) for (let i = 0; i < xs.length; i++) if (Number.isFinite(xs[i])) set.add(xs[i]);
+  // Measured points come in measuring order (refinement points last); the shared column is in x order.
+  const unique = [...set];
+  const xs = ascendingOrder(unique).map((i) => unique[i]);
   const indexOf = new Map<number, number>();
   for (let i = 0; i < xs.length; i++) indexOf.set(xs[i], i);
-  const columns: AlignedColumns = [Array.from(xs)];
+  const columns: AlignedColumns = [xs];
   for (const one of series) {
     const column: Array<number | null> = new Array(xs.length).fill(null);
     for (let i = 0; i < one.xs.length; i++) {

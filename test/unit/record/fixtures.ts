@@ -114,6 +114,8 @@ export interface AcFixtureOptions {
   overrangeIndex?: number;
   /** Measured points per decade over 10 Hz … 1 MHz (default 8, i.e. 41 points). */
   pointsPerDecade?: number;
+  /** Extra points stored after the grid and flagged as refinement points, as a sweep with refine on stores them. */
+  refinementHz?: number[];
 }
 
 /** A complete AC RunDetail: actual-value theory plus noise as "measured", analysed by app/analysis. */
@@ -127,7 +129,8 @@ export function acRunDetail(options: AcFixtureOptions = {}): RunDetail {
   };
   const noise = seededNoise(options.seed ?? 7);
   const noiseDb = options.noiseDb ?? 0.05;
-  const frequencies = Array.from(logGrid(10, 1e6, options.pointsPerDecade ?? 8));
+  const grid = Array.from(logGrid(10, 1e6, options.pointsPerDecade ?? 8));
+  const frequencies = [...grid, ...(options.refinementHz ?? [])];
   const theoryGrid = Array.from(logGrid(10, 1e6, 40));
   const gainOf = (values: StageValues, f: number, ideal = false) => {
     const [re, im] = invertingLowPass(values, f, ideal);
@@ -140,7 +143,7 @@ export function acRunDetail(options: AcFixtureOptions = {}): RunDetail {
     const { gainDb, phaseDeg } = gainOf(actual, f);
     measuredGain.push(gainDb + noiseDb * 2 * noise());
     measuredPhase.push(phaseDeg + 0.5 * noise());
-    flags.push(i === options.overrangeIndex ? PointFlag.overrange : 0);
+    flags.push((i === options.overrangeIndex ? PointFlag.overrange : 0) | (i >= grid.length ? PointFlag.refinement : 0));
   });
   if (options.overrangeIndex !== undefined) measuredGain[options.overrangeIndex] = Number.NaN;
   const theoryAtPoints = frequencies.map((f) => gainOf(actual, f).gainDb);
@@ -179,7 +182,7 @@ export function acRunDetail(options: AcFixtureOptions = {}): RunDetail {
     benchName: 'simulated bench 1',
     request: {
       buildId: build.id, kind: 'ac', from: 10, to: 1e6, pointsPerDecade: 8, spacing: 'log',
-      amplitude: { mode: 'auto', targetOutputVpp: 2 }, measurement: 'scope', minCycles: 10, averages: 4, refine: false,
+      amplitude: { mode: 'auto', targetOutputVpp: 2 }, measurement: 'scope', minCycles: 10, averages: 4, refine: (options.refinementHz ?? []).length > 0,
       operator: 'J. Doe (invented)', notes: INVENTED_NOTE, limits,
     },
     bench: SIMULATED_BENCH,
@@ -221,11 +224,14 @@ export function acRunDetail(options: AcFixtureOptions = {}): RunDetail {
  * reference run (same frequency grid, so point-by-point), as the service would
  * produce. Figures' deltas are run minus reference.
  */
-export function comparisonFixture(reference: number | 'theory' = 12): { comparison: Comparison; contexts: Map<number, { design: unknown; build: BuildRecord }> } {
+export function comparisonFixture(
+  reference: number | 'theory' = 12,
+  options: Pick<AcFixtureOptions, 'refinementHz'> = {},
+): { comparison: Comparison; contexts: Map<number, { design: unknown; build: BuildRecord }> } {
   const buildA = fixtureBuild();
   const buildB = fixtureBuild({ id: 4, label: 'Board B (PCB rev 2)', actualValues: { RN: 10.05e3, RF: 99.1e3, CF: 1.43e-9 }, notes: `${INVENTED_NOTE} Second board.` });
-  const runA = acRunDetail({ runId: 12, build: buildA, seed: 3 });
-  const runB = acRunDetail({ runId: 15, build: buildB, seed: 11 });
+  const runA = acRunDetail({ runId: 12, build: buildA, seed: 3, ...options });
+  const runB = acRunDetail({ runId: 15, build: buildB, seed: 11, ...options });
   const runs = [runA, runB];
   const referenceRun = runs.find((r) => r.id === reference);
   const differences = runs.map((run) => {
