@@ -6,7 +6,7 @@
  * comparison → overlay of all runs and their difference from the reference.
  */
 import { formatEngineering, unwrapPhaseDeg } from '../units';
-import { curveSortedByX } from '../numeric';
+import { ascendingOrder, curveSortedByX } from '../numeric';
 import { FIGURE_NAMES } from '../contract/vocabulary';
 import { linearAxis, logAxis, type Axis } from './plot-axes';
 import type { ComparisonRecord, MaybeNumber, RunRecord } from './model';
@@ -88,12 +88,15 @@ function interpolateLog(xs: MaybeNumber[], ys: MaybeNumber[], x: number): number
   return null;
 }
 
-/** Unwraps a phase column with the one unwrap in app/units, keeping null gaps as gaps. */
-function unwrapColumn(values: MaybeNumber[]): MaybeNumber[] {
-  const present = values.map((v, i) => [v, i] as const).filter(([v]) => v !== null) as Array<readonly [number, number]>;
-  const unwrapped = unwrapPhaseDeg(Float64Array.from(present.map(([v]) => v)));
+/**
+ * Unwraps a phase column along increasing frequency (refinement points are stored last, and unwrapping
+ * follows neighbours) with the one unwrap in app/units, keeping null gaps as gaps.
+ */
+function unwrapColumn(values: MaybeNumber[], stimulus: MaybeNumber[]): MaybeNumber[] {
+  const present = ascendingOrder(stimulus).filter((i) => values[i] !== null);
+  const unwrapped = unwrapPhaseDeg(Float64Array.from(present.map((i) => values[i]!)));
   const result: MaybeNumber[] = values.map(() => null);
-  present.forEach(([, index], k) => (result[index] = unwrapped[k]));
+  present.forEach((index, k) => (result[index] = unwrapped[k]));
   return result;
 }
 
@@ -109,9 +112,9 @@ function alignToReference(phases: MaybeNumber[], stimulus: MaybeNumber[], refSti
 
 function phasePlot(record: RunRecord): PlotSpec {
   const { points, theory } = record;
-  const theoryPhase = unwrapColumn(theory.phaseDeg);
-  const idealPhase = alignToReference(unwrapColumn(theory.idealPhaseDeg), theory.stimulus, theory.stimulus, theoryPhase);
-  const measuredPhase = alignToReference(unwrapColumn(points.phaseDeg), points.stimulus, theory.stimulus, theoryPhase);
+  const theoryPhase = unwrapColumn(theory.phaseDeg, theory.stimulus);
+  const idealPhase = alignToReference(unwrapColumn(theory.idealPhaseDeg, theory.stimulus), theory.stimulus, theory.stimulus, theoryPhase);
+  const measuredPhase = alignToReference(unwrapColumn(points.phaseDeg, points.stimulus), points.stimulus, theory.stimulus, theoryPhase);
   const series: PlotSeries[] = [];
   if (idealPhase.some((v) => v !== null)) series.push({ name: 'Ideal op-amp', color: PLOT_COLORS.ideal, style: 'dashed', xs: theory.stimulus, ys: idealPhase });
   if (theory.stimulus.length) series.push({ name: 'Theory (actual circuit)', color: PLOT_COLORS.theory, style: 'line', xs: theory.stimulus, ys: theoryPhase });

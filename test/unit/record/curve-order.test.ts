@@ -7,13 +7,13 @@
  * practice, no source.
  */
 import { describe, expect, it } from 'vitest';
-import { buildComparisonRecord } from '../../../app/record';
-import { comparisonPlots } from '../../../app/record/record-plots';
+import { buildComparisonRecord, buildRunRecord } from '../../../app/record';
+import { comparisonPlots, runPlots } from '../../../app/record/record-plots';
 import { layoutPlot } from '../../../app/record/plot-spec';
 import { compareDetails } from '../../../app/service/compare';
 import { compareColumns } from '../../../renderer/model/compare-data';
 import { PointFlag } from '../../../app/contract/contract';
-import { comparisonFixture } from './fixtures';
+import { acRunDetail, comparisonFixture, fixtureBuild, FIXTURE_DESIGN } from './fixtures';
 
 /** Near the fixture stage's corner, 1/(2π·100.4 kΩ·1.52 nF) ≈ 1.04 kHz, where a sweep refines. */
 const REFINEMENT_HZ = [1200, 950, 1050, 1100];
@@ -64,5 +64,21 @@ describe('measured curves with refinement points stored last', () => {
     const run = comparison.runs[1];
     const at = overlay[0].indexOf(1050);
     expect(overlay[2 + 1][at]).toBe(run.points.gainDb[run.points.stimulus.indexOf(1050)]);
+  });
+});
+
+describe('the run record phase plot', () => {
+  it('unwraps the measured phase along frequency, not in stored order', () => {
+    // Grid 10 Hz … 1 MHz, one point a decade, then a refinement point at 300 Hz stored last.
+    const detail = acRunDetail({ pointsPerDecade: 1, refinementHz: [300] });
+    expect(detail.points.stimulus).toEqual([10, 100, 1000, 10_000, 100_000, 1_000_000, 300]);
+    // A phase falling through 360° in the band, wrapped to (−180°, 180°] as an instrument reads it:
+    // unwrapped −10, −60, −200, −340, −350, −355 and −120 at 300 Hz (worked by hand).
+    detail.points.phaseDeg = [-10, -60, 160, 20, 10, 5, -120];
+    const record = buildRunRecord(detail, { design: FIXTURE_DESIGN, build: fixtureBuild(), designId: 1, generatedAt: '2026-12-01T12:00:00.000Z' });
+    const measured = runPlots(record)[1].series.find((s) => s.name.startsWith('Measured'))!;
+    const relative = measured.ys.map((y) => (y as number) - (measured.ys[0] as number));
+    // In stored order the 300 Hz point would follow 1 MHz (−355°) and land a turn too low, at −470°.
+    expect(relative).toEqual([0, -50, -190, -330, -340, -345, -110]);
   });
 });
