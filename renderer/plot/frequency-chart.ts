@@ -7,6 +7,15 @@
 import uPlot from 'uplot';
 import type { AlignedColumns } from '../model/aligned-series';
 import { formatEngineering } from '../../app/units';
+import { placeMarkerLabels } from './marker-label-placement';
+
+/** The marker labels' font, as styles.css sets it on .marker-label (measured on the canvas to place them). */
+const MARKER_LABEL_FONT = '11px system-ui, sans-serif';
+/** .marker-label's left + right padding, the space between rows, between a line and its label, between labels (CSS px). */
+const MARKER_LABEL_PADDING_PX = 6;
+const MARKER_LABEL_ROW_PX = 16;
+const MARKER_LABEL_OFFSET_PX = 4;
+const MARKER_LABEL_GAP_PX = 6;
 
 export interface SeriesStyle {
   label: string;
@@ -46,6 +55,8 @@ export class FrequencyChart {
   private markers: Marker[] = [];
   private resizeObserver: ResizeObserver | undefined;
   private readonly markerLabels: boolean;
+  /** Text labels over the plot area, one per marker on screen; DOM, so they read as text and stay crisp. */
+  private readonly labelElements: HTMLSpanElement[] = [];
 
   constructor(
     readonly container: HTMLElement,
@@ -111,31 +122,50 @@ export class FrequencyChart {
     this.plot.destroy();
   }
 
+  /** One label element per shown marker, over the plot area (uPlot's over layer), where placeMarkerLabels put it. */
+  private placeLabels(u: uPlot, markers: Marker[], places: Array<{ left: number; row: number }>): void {
+    while (this.labelElements.length > markers.length) this.labelElements.pop()!.remove();
+    markers.forEach((marker, i) => {
+      let element = this.labelElements[i];
+      if (!element) {
+        element = document.createElement('span');
+        element.className = 'marker-label';
+        this.labelElements.push(element);
+      }
+      if (element.parentElement !== u.over) u.over.appendChild(element);
+      element.textContent = marker.label;
+      // Set through the style object (CSSOM), which the page's CSP allows.
+      element.style.color = marker.color;
+      element.style.left = `${places[i].left}px`;
+      element.style.top = `${2 + places[i].row * MARKER_LABEL_ROW_PX}px`;
+    });
+  }
+
   private drawMarkers(u: uPlot): void {
     const context = u.ctx;
     const { left, top, width, height } = u.bbox;
     context.save();
-    context.font = `${Math.round(11 * devicePixelRatio)}px system-ui, sans-serif`;
-    let labelRow = 0;
+    const shown: Marker[] = [];
     for (const marker of this.markers) {
       if (!Number.isFinite(marker.xHz)) continue;
       const x = u.valToPos(marker.xHz, 'x', true);
       if (x < left || x > left + width) continue;
+      shown.push(marker);
       context.strokeStyle = marker.color;
-      context.fillStyle = marker.color;
       context.lineWidth = 1.5 * devicePixelRatio;
       context.setLineDash([6 * devicePixelRatio, 4 * devicePixelRatio]);
       context.beginPath();
       context.moveTo(x, top);
       context.lineTo(x, top + height);
       context.stroke();
-      if (!this.markerLabels) continue;
-      const textWidth = context.measureText(marker.label).width;
-      const textX = x + 4 * devicePixelRatio + textWidth > left + width ? x - 4 * devicePixelRatio - textWidth : x + 4 * devicePixelRatio;
-      context.fillText(marker.label, textX, top + (14 + 14 * labelRow) * devicePixelRatio);
-      labelRow++;
     }
+    const labelled = this.markerLabels ? shown : [];
+    // Text width in the labels' own font, from the canvas: known even while the chart is hidden.
+    context.font = MARKER_LABEL_FONT;
+    const boxes = labelled.map((marker) => ({ lineX: u.valToPos(marker.xHz, 'x'), width: context.measureText(marker.label).width + MARKER_LABEL_PADDING_PX }));
     context.restore();
+    const places = placeMarkerLabels(boxes, { width: width / devicePixelRatio, offset: MARKER_LABEL_OFFSET_PX, gap: MARKER_LABEL_GAP_PX });
+    this.placeLabels(u, labelled, places);
     this.container.dataset.drawnAt = String(performance.now());
     this.container.dispatchEvent(new CustomEvent('rolloff:drawn', { bubbles: true, detail: { drawnAt: performance.now() } }));
   }
