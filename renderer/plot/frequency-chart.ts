@@ -11,8 +11,8 @@ import { placeMarkerLabels } from './marker-label-placement';
 
 /** The marker labels' font, as styles.css sets it on .marker-label (measured on the canvas to place them). */
 const MARKER_LABEL_FONT = '11px system-ui, sans-serif';
-/** .marker-label's left + right padding, the space between rows, between a line and its label, between labels (CSS px). */
-const MARKER_LABEL_PADDING_PX = 6;
+/** .marker-label's left border and padding plus right padding, the space between rows, between a line and its label, between labels (CSS px). */
+const MARKER_LABEL_PADDING_PX = 10;
 const MARKER_LABEL_ROW_PX = 16;
 const MARKER_LABEL_OFFSET_PX = 4;
 const MARKER_LABEL_GAP_PX = 6;
@@ -135,7 +135,7 @@ export class FrequencyChart {
       if (element.parentElement !== u.over) u.over.appendChild(element);
       element.textContent = marker.label;
       // Set through the style object (CSSOM), which the page's CSP allows.
-      element.style.color = marker.color;
+      element.style.borderLeftColor = marker.color;
       element.style.left = `${places[i].left}px`;
       element.style.top = `${2 + places[i].row * MARKER_LABEL_ROW_PX}px`;
     });
