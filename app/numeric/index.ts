@@ -7,4 +7,4 @@
 export { SeededRandom } from './random';
 export { medianOfSorted, percentileOfSorted } from './percentile';
 export { solveComplexInPlace, solveRealInPlace } from './dense-solve';
-export { ascendingOrder, curveSortedByX } from './ascending-order';
+export { ascendingOrder, curveSortedByX, sortedAscending } from './ascending-order';

@@ -3,7 +3,7 @@
  * as uPlot needs ([xs, ys1, ys2, …]); a series has null where it has no point,
  * and lines span those gaps. Columnar in, columnar out.
  */
-import { ascendingOrder } from '../../app/numeric/ascending-order';
+import { sortedAscending } from '../../app/numeric/ascending-order';
 
 export interface XySeries {
   xs: ArrayLike<number>;
@@ -13,11 +13,10 @@ export interface XySeries {
 export type AlignedColumns = [number[], ...Array<Array<number | null>>];
 
 export function alignSeries(series: XySeries[]): AlignedColumns {
-  const set = new Set<number>();
-  for (const { xs } of series) for (let i = 0; i < xs.length; i++) if (Number.isFinite(xs[i])) set.add(xs[i]);
+  const unique = new Set<number>();
+  for (const { xs } of series) for (let i = 0; i < xs.length; i++) if (Number.isFinite(xs[i])) unique.add(xs[i]);
   // Measured points come in measuring order (refinement points last); the shared column is in x order.
-  const unique = [...set];
-  const xs = ascendingOrder(unique).map((i) => unique[i]);
+  const xs = sortedAscending(unique);
   const indexOf = new Map<number, number>();
   for (let i = 0; i < xs.length; i++) indexOf.set(xs[i], i);
   const columns: AlignedColumns = [xs];
