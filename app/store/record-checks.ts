@@ -6,7 +6,7 @@
 import { ValidationError } from '../errors';
 import { RUN_STATUSES, type RunEvent, type RunStatus } from '../contract/contract';
 import { checkBenchName } from '../bench/bench-name';
-import type { BenchSettingsInput, NewCalibration, NewPoint, NewSchedule, RunClaimant, RunFilter, RunOwnership } from './types';
+import type { BenchSettingsInput, NewCalibration, NewPoint, NewRun, NewSchedule, RunClaimant, RunFilter } from './types';
 
 /** The one list of run states lives in the contract; re-exported for the store's checks. */
 export { RUN_STATUSES };
@@ -38,15 +38,6 @@ export function toJson(value: unknown, where: string): string {
 /** A LIKE pattern matching the text anywhere, with LIKE's wildcards escaped by \ so "10%" finds the text "10%". */
 export function likePattern(search: string): string {
   return `%${search.replace(/[\\%_]/g, (c) => '\\' + c)}%`;
-}
-
-/** NaN (a missing value) is stored as NULL and read back as NaN. */
-export function nullable(value: number | undefined): number | null {
-  return value === undefined || Number.isNaN(value) ? null : value;
-}
-
-export function numberOrNaN(value: unknown): number {
-  return value === null || value === undefined ? Number.NaN : (value as number);
 }
 
 export function checkDesignName(name: unknown): string {
@@ -81,6 +72,40 @@ export function checkRunStatus(status: unknown, where = 'run.status'): RunStatus
     throw new ValidationError(where, `"${String(status)}" is not a run status`, `Use one of: ${RUN_STATUSES.join(', ')}.`);
   }
   return status as RunStatus;
+}
+
+/** A new run's column values, checked; the store adds its own existence checks (build, schedule) and the time. */
+export interface CheckedNewRun {
+  buildId: number;
+  kind: 'ac' | 'dc';
+  requestJson: string;
+  planJson: string;
+  /** The plan's step count, kept beside the run so lists need not read the plan. */
+  plannedCount: number;
+  softwareVersion: string;
+  benchJson: string;
+  operator: string;
+  notes: string;
+  simulated: boolean;
+  scheduleId: number | null;
+  benchName: string;
+}
+
+export function checkNewRun(input: NewRun): CheckedNewRun {
+  return {
+    buildId: requireId(input.buildId, 'run.buildId'),
+    kind: checkRunKind(input.kind),
+    requestJson: toJson(input.request, 'run.request'),
+    planJson: toJson(input.plan, 'run.plan'),
+    plannedCount: Array.isArray(input.plan?.steps) ? input.plan.steps.length : 0,
+    softwareVersion: requireText(input.softwareVersion, 'run.softwareVersion'),
+    benchJson: toJson(input.bench ?? [], 'run.bench'),
+    operator: requireText(input.operator ?? '', 'run.operator'),
+    notes: requireText(input.notes ?? '', 'run.notes'),
+    simulated: input.simulated === true,
+    scheduleId: input.scheduleId == null ? null : requireId(input.scheduleId, 'run.scheduleId'),
+    benchName: checkRunBenchName(input.benchName),
+  };
 }
 
 export interface CheckedRunFilter {
@@ -118,7 +143,11 @@ export function checkEventLevel(level: unknown): RunEvent['level'] {
   return level as RunEvent['level'];
 }
 
-export function checkCalibration(input: NewCalibration): string {
+/**
+ * A calibration's values, checked, in the calibrations table's column order:
+ * bench_key, bench_json, frequencies_hz_json, gain_db_json, phase_deg_json, notes.
+ */
+export function checkCalibration(input: NewCalibration): [benchKey: string, benchJson: string, frequenciesHzJson: string, gainDbJson: string, phaseDegJson: string, notes: string] {
   const benchKey = requireText(input.benchKey, 'calibration.benchKey');
   if (benchKey.length === 0) throw new ValidationError('calibration.benchKey', 'is empty');
   const n = input.frequencyHz?.length ?? 0;
@@ -129,7 +158,14 @@ export function checkCalibration(input: NewCalibration): string {
   input.frequencyHz.forEach((f, i) => requireFinite(f, `calibration.frequencyHz[${i}]`));
   input.gainDb.forEach((g, i) => requireFinite(g, `calibration.gainDb[${i}]`));
   input.phaseDeg.forEach((p, i) => requireFinite(p, `calibration.phaseDeg[${i}]`));
-  return benchKey;
+  return [
+    benchKey,
+    toJson(input.bench ?? [], 'calibration.bench'),
+    JSON.stringify(Array.from(input.frequencyHz)),
+    JSON.stringify(Array.from(input.gainDb)),
+    JSON.stringify(Array.from(input.phaseDeg)),
+    input.notes ?? '',
+  ];
 }
 
 export function checkSchedule(input: NewSchedule): { count: number | null; until: string | null } {
@@ -173,17 +209,4 @@ export function checkRunClaimant(claimant: RunClaimant, staleAfterMs: number): R
 export function checkStaleAfter(staleAfterMs: number): number {
   if (!Number.isFinite(staleAfterMs) || staleAfterMs <= 0) throw new ValidationError('staleAfterMs', 'must be a positive number of milliseconds');
   return staleAfterMs;
-}
-
-/** The owner columns of a runs row (owner_id … owner_heartbeat_ms), or undefined when nobody drives the run. */
-export function ownershipFromRow(row: Record<string, unknown>): RunOwnership | undefined {
-  if (row.owner_id === null || row.owner_id === undefined) return undefined;
-  return {
-    ownerId: String(row.owner_id),
-    pid: Number(row.owner_pid),
-    host: String(row.owner_host),
-    label: String(row.owner_label),
-    since: new Date(Number(row.owner_since_ms)).toISOString(),
-    heartbeatAt: new Date(Number(row.owner_heartbeat_ms)).toISOString(),
-  };
 }

@@ -5,7 +5,7 @@
  * is one statement (its insert and the run's point count together), committed
  * with synchronous_commit=on, so it is on the server's disk when insertPoint
  * resolves. Bulk work runs in one transaction on one connection.
- * Rows become contract types here and nowhere else.
+ * Rows become records in ../row-mapping.ts, shared with the SQLite store.
  */
 import pg from 'pg';
 import type { PoolClient, QueryConfig, QueryResultRow } from 'pg';
@@ -32,19 +32,16 @@ import {
   checkEventLevel,
   checkPoint,
   checkRunFilter,
-  checkRunBenchName,
-  checkRunKind,
   checkRunStatus,
   checkSchedule,
-  nullable,
-  numberOrNaN,
+  checkNewRun,
   requireId,
   requireText,
   toJson,
   checkRunClaimant,
   checkStaleAfter,
-  ownershipFromRow,
 } from '../record-checks';
+import { ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, type Row } from '../row-mapping';
 import type { RolloffStore } from '../store-interface';
 import type {
   BenchSettings,
@@ -74,7 +71,8 @@ import { CHANGE_CHANNEL, changePayload, openChangeFeed } from './change-feed';
 import { connectionFailure, isUnreachable, poolConfigFor, redactDatabaseUrl, sqlState } from './connection';
 import { loadPostgresMigrations, migratePostgres, schemaVersionIn } from './migrations';
 
-type Row = Record<string, unknown>;
+/** node-postgres parses json columns and booleans itself. */
+const toRecord = rowMapping({ json: (value) => value, flag: (value) => value === true });
 type Queryable = Pick<PoolClient, 'query'>;
 
 /** Type OIDs (pg_type.oid, stable across PostgreSQL versions). */
@@ -243,17 +241,17 @@ export class PostgresStore implements RolloffStore {
       toJson(input.design, 'design'),
       instant(this.now()),
     ]);
-    return designFromRow(rows[0]);
+    return toRecord.design(rows[0]);
   }
 
   async getDesign(designId: number): Promise<DesignRecord> {
     const { rows } = await this.query('SELECT * FROM designs WHERE id = $1', [requireId(designId, 'designId')]);
     if (rows.length === 0) throw new RecordNotFoundError('design', designId);
-    return designFromRow(rows[0]);
+    return toRecord.design(rows[0]);
   }
 
   async listDesigns(): Promise<DesignRecord[]> {
-    return (await this.query('SELECT * FROM designs ORDER BY id')).rows.map(designFromRow);
+    return (await this.query('SELECT * FROM designs ORDER BY id')).rows.map(toRecord.design);
   }
 
   async createBuild(input: NewBuild): Promise<BuildRecord> {
@@ -266,7 +264,7 @@ export class PostgresStore implements RolloffStore {
         'INSERT INTO builds (design_id, label, notes, actual_values_json, created_at) VALUES ($1, $2, $3, $4, $5) RETURNING *',
         [input.designId, label, requireText(input.notes ?? '', 'build.notes'), toJson(actualValues, 'build.actualValues'), instant(this.now())],
       );
-      return buildFromRow(rows[0]);
+      return toRecord.build(rows[0]);
     } catch (error) {
       if (sqlState(error) === FOREIGN_KEY_VIOLATION) throw new RecordNotFoundError('design', input.designId);
       throw error;
@@ -276,12 +274,12 @@ export class PostgresStore implements RolloffStore {
   async getBuild(buildId: number): Promise<BuildRecord> {
     const { rows } = await this.query('SELECT * FROM builds WHERE id = $1', [requireId(buildId, 'buildId')]);
     if (rows.length === 0) throw new RecordNotFoundError('build', buildId);
-    return buildFromRow(rows[0]);
+    return toRecord.build(rows[0]);
   }
 
   async listBuilds(designId?: number): Promise<BuildRecord[]> {
     const id = designId === undefined ? null : requireId(designId, 'designId');
-    return (await this.query('SELECT * FROM builds WHERE ($1::bigint IS NULL OR design_id = $1) ORDER BY id', [id])).rows.map(buildFromRow);
+    return (await this.query('SELECT * FROM builds WHERE ($1::bigint IS NULL OR design_id = $1) ORDER BY id', [id])).rows.map(toRecord.build);
   }
 
   // ── instruments ────────────────────────────────────────────────────────
@@ -298,11 +296,11 @@ export class PostgresStore implements RolloffStore {
        RETURNING *`,
       [sighting.role, identityText, toJson(sighting.identity, 'instrument.identity'), address, at],
     );
-    return instrumentFromRow(rows[0]);
+    return toRecord.instrument(rows[0]);
   }
 
   async listInstruments(): Promise<InstrumentRecord[]> {
-    return (await this.query('SELECT * FROM instruments ORDER BY last_seen_at DESC, id DESC')).rows.map(instrumentFromRow);
+    return (await this.query('SELECT * FROM instruments ORDER BY last_seen_at DESC, id DESC')).rows.map(toRecord.instrument);
   }
 
   // ── runs ───────────────────────────────────────────────────────────────
@@ -325,33 +323,30 @@ export class PostgresStore implements RolloffStore {
   }
 
   private async insertRun(input: NewRun, client: PoolClient): Promise<number> {
-    const buildId = requireId(input.buildId, 'run.buildId');
-    const kind = checkRunKind(input.kind);
-    if ((await this.query('SELECT 1 FROM builds WHERE id = $1', [buildId], client)).rowCount === 0) throw new RecordNotFoundError('build', buildId);
-    const scheduleId = input.scheduleId ?? null;
-    if (scheduleId !== null && (await this.query('SELECT 1 FROM schedules WHERE id = $1', [requireId(scheduleId, 'run.scheduleId')], client)).rowCount === 0) {
-      throw new RecordNotFoundError('schedule', scheduleId);
+    const run = checkNewRun(input);
+    if ((await this.query('SELECT 1 FROM builds WHERE id = $1', [run.buildId], client)).rowCount === 0) throw new RecordNotFoundError('build', run.buildId);
+    if (run.scheduleId !== null && (await this.query('SELECT 1 FROM schedules WHERE id = $1', [run.scheduleId], client)).rowCount === 0) {
+      throw new RecordNotFoundError('schedule', run.scheduleId);
     }
-    const plannedCount = Array.isArray(input.plan?.steps) ? input.plan.steps.length : 0;
     const { rows } = await this.query<{ id: number }>(
       `WITH run AS (
          INSERT INTO runs (build_id, kind, request_json, planned_count, status, created_at, software_version, bench_json, operator, notes, simulated, schedule_id, bench_name)
          VALUES ($1, $2, $3, $4, 'planned', $5, $6, $7, $8, $9, $10, $11, $13) RETURNING id)
        INSERT INTO run_plans (run_id, plan_json) SELECT id, $12 FROM run RETURNING run_id AS id`,
       [
-        buildId,
-        kind,
-        toJson(input.request, 'run.request'),
-        plannedCount,
+        run.buildId,
+        run.kind,
+        run.requestJson,
+        run.plannedCount,
         instant(this.now()),
-        requireText(input.softwareVersion, 'run.softwareVersion'),
-        toJson(input.bench ?? [], 'run.bench'),
-        requireText(input.operator ?? '', 'run.operator'),
-        requireText(input.notes ?? '', 'run.notes'),
-        input.simulated === true,
-        scheduleId,
-        toJson(input.plan, 'run.plan'),
-        checkRunBenchName(input.benchName),
+        run.softwareVersion,
+        run.benchJson,
+        run.operator,
+        run.notes,
+        run.simulated,
+        run.scheduleId,
+        run.planJson,
+        run.benchName,
       ],
       client,
     );
@@ -411,7 +406,7 @@ export class PostgresStore implements RolloffStore {
       [requireId(runId, 'runId')],
     );
     if (rows.length === 0) throw new RecordNotFoundError('run', runId);
-    return storedRunFromRow(rows[0]);
+    return toRecord.storedRun(rows[0]);
   }
 
   async listRuns(filter: RunFilter = {}): Promise<RunSummary[]> {
@@ -424,7 +419,7 @@ export class PostgresStore implements RolloffStore {
        ORDER BY r.id DESC LIMIT $4`,
       [status, buildId, search, limit, bench],
     );
-    return rows.map(summaryFromRow);
+    return rows.map(toRecord.runSummary);
   }
 
   async findInterruptedRuns(staleAfterMs: number): Promise<StoredRun[]> {
@@ -504,7 +499,7 @@ export class PostgresStore implements RolloffStore {
                  counted AS (UPDATE runs SET point_count = point_count + 1 WHERE id = (SELECT run_id FROM point) RETURNING id)
                  SELECT pg_notify('${CHANGE_CHANNEL}', $14) FROM counted`,
         },
-        [runId, ...this.pointValues(point), changePayload(this.origin, { kind: 'points', runId })],
+        [runId, ...this.valuesOf(point), changePayload(this.origin, { kind: 'points', runId })],
       );
     } catch (error) {
       throw this.pointFailure(error, runId, [point]);
@@ -545,7 +540,7 @@ export class PostgresStore implements RolloffStore {
   private async insertPointArrays(client: PoolClient, runId: number, points: readonly NewPoint[]): Promise<void> {
     const columns: unknown[][] = Array.from({ length: 12 }, () => new Array(points.length));
     points.forEach((point, i) => {
-      const values = this.pointValues(point);
+      const values = this.valuesOf(point);
       for (let c = 0; c < 12; c++) columns[c][i] = values[c];
     });
     await this.query(
@@ -561,21 +556,8 @@ export class PostgresStore implements RolloffStore {
   }
 
   /** The twelve values after run_id, in POINT_COLUMNS order. */
-  private pointValues(point: NewPoint): unknown[] {
-    return [
-      point.step,
-      point.stimulus,
-      point.amplitudeVpp,
-      nullable(point.inputReading),
-      nullable(point.outputReading),
-      nullable(point.gainDb),
-      nullable(point.gainUncertaintyDb),
-      nullable(point.phaseDeg),
-      nullable(point.phaseUncertaintyDeg),
-      nullable(point.outputV),
-      point.flags,
-      instant(point.measuredAt ?? this.now()),
-    ];
+  private valuesOf(point: NewPoint): unknown[] {
+    return pointValues(point, instant(point.measuredAt ?? this.now()));
   }
 
   private pointFailure(error: unknown, runId: number, points: readonly NewPoint[]): unknown {
@@ -603,33 +585,7 @@ export class PostgresStore implements RolloffStore {
       [runId],
     );
     if (rows.length === 0 && (await this.query('SELECT 1 FROM runs WHERE id = $1', [runId])).rowCount === 0) throw new RecordNotFoundError('run', runId);
-    const n = rows.length;
-    const columns: PointColumns = {
-      step: new Array<number>(n),
-      stimulus: new Array<number>(n),
-      amplitudeVpp: new Array<number>(n),
-      gainDb: new Array<number>(n),
-      gainUncertaintyDb: new Array<number>(n),
-      phaseDeg: new Array<number>(n),
-      phaseUncertaintyDeg: new Array<number>(n),
-      outputV: new Array<number>(n),
-      flags: new Array<number>(n),
-      measuredAt: new Array<string>(n),
-    };
-    for (let i = 0; i < n; i++) {
-      const row = rows[i] as unknown[];
-      columns.step[i] = row[0] as number;
-      columns.stimulus[i] = row[1] as number;
-      columns.amplitudeVpp[i] = row[2] as number;
-      columns.gainDb[i] = numberOrNaN(row[3]);
-      columns.gainUncertaintyDb[i] = numberOrNaN(row[4]);
-      columns.phaseDeg[i] = numberOrNaN(row[5]);
-      columns.phaseUncertaintyDeg[i] = numberOrNaN(row[6]);
-      columns.outputV[i] = numberOrNaN(row[7]);
-      columns.flags[i] = row[8] as number;
-      columns.measuredAt[i] = new Date(Math.round(row[9] as number)).toISOString();
-    }
-    return columns;
+    return pointColumnsFromRows(rows as unknown[][]);
   }
 
   async nextStep(runId: number): Promise<number> {
@@ -665,26 +621,17 @@ export class PostgresStore implements RolloffStore {
 
   async saveCalibration(input: NewCalibration): Promise<CalibrationRecord> {
     this.requireWritable();
-    const benchKey = checkCalibration(input);
     const { rows } = await this.query(
       `INSERT INTO calibrations (bench_key, bench_json, frequencies_hz_json, gain_db_json, phase_deg_json, notes, created_at)
        VALUES ($1, $2, $3, $4, $5, $6, $7) RETURNING *`,
-      [
-        benchKey,
-        toJson(input.bench ?? [], 'calibration.bench'),
-        JSON.stringify(Array.from(input.frequencyHz)),
-        JSON.stringify(Array.from(input.gainDb)),
-        JSON.stringify(Array.from(input.phaseDeg)),
-        input.notes ?? '',
-        instant(this.now()),
-      ],
+      [...checkCalibration(input), instant(this.now())],
     );
-    return calibrationFromRow(rows[0]);
+    return toRecord.calibration(rows[0]);
   }
 
   async latestCalibration(benchKey: string): Promise<CalibrationRecord | undefined> {
     const { rows } = await this.query('SELECT * FROM calibrations WHERE bench_key = $1 ORDER BY id DESC LIMIT 1', [requireText(benchKey, 'benchKey')]);
-    return rows.length === 0 ? undefined : calibrationFromRow(rows[0]);
+    return rows.length === 0 ? undefined : toRecord.calibration(rows[0]);
   }
 
   // ── schedules ──────────────────────────────────────────────────────────
@@ -697,20 +644,20 @@ export class PostgresStore implements RolloffStore {
       `INSERT INTO schedules (build_id, request_json, every_minutes, run_count, until_at, created_at) VALUES ($1, $2, $3, $4, $5, $6) RETURNING *`,
       [input.buildId, toJson(input.request, 'schedule.request'), input.everyMinutes, count, until === null ? null : instant(until), instant(this.now())],
     );
-    return scheduleFromRow(rows[0]);
+    return toRecord.schedule(rows[0]);
   }
 
   async getSchedule(scheduleId: number): Promise<ScheduleRecord> {
     const { rows } = await this.query('SELECT * FROM schedules WHERE id = $1', [requireId(scheduleId, 'scheduleId')]);
     if (rows.length === 0) throw new RecordNotFoundError('schedule', scheduleId);
-    return scheduleFromRow(rows[0]);
+    return toRecord.schedule(rows[0]);
   }
 
   // ── per-bench settings ─────────────────────────────────────────────────
 
   async getBenchSettings(benchKey: string): Promise<BenchSettings | undefined> {
     const { rows } = await this.query('SELECT * FROM bench_settings WHERE bench_key = $1', [requireText(benchKey, 'benchKey')]);
-    return rows.length === 0 ? undefined : benchSettingsFromRow(rows[0]);
+    return rows.length === 0 ? undefined : toRecord.benchSettings(rows[0]);
   }
 
   async saveBenchSettings(benchKey: string, settings: BenchSettingsInput): Promise<BenchSettings> {
@@ -723,7 +670,7 @@ export class PostgresStore implements RolloffStore {
        RETURNING *`,
       [key, maxStimulusVpp, instant(this.now())],
     );
-    return benchSettingsFromRow(rows[0]);
+    return toRecord.benchSettings(rows[0]);
   }
 
   // ── maintenance ────────────────────────────────────────────────────────
@@ -747,91 +694,3 @@ export class PostgresStore implements RolloffStore {
 
 /** Points per INSERT … unnest statement in bulk work: large enough to amortise a round trip, small enough for one message. */
 const POINTS_PER_STATEMENT = 5000;
-
-function designFromRow(row: Row): DesignRecord {
-  return { id: row.id as number, name: row.name as string, design: row.design_json, createdAt: row.created_at as string };
-}
-
-function buildFromRow(row: Row): BuildRecord {
-  return {
-    id: row.id as number,
-    designId: row.design_id as number,
-    label: row.label as string,
-    notes: row.notes as string,
-    actualValues: row.actual_values_json as Record<string, number>,
-    createdAt: row.created_at as string,
-  };
-}
-
-function instrumentFromRow(row: Row): InstrumentRecord {
-  return {
-    id: row.id as number,
-    role: row.role as InstrumentRecord['role'],
-    identity: row.identity_json as InstrumentRecord['identity'],
-    address: row.address as string,
-    firstSeenAt: row.first_seen_at as string,
-    lastSeenAt: row.last_seen_at as string,
-  };
-}
-
-function calibrationFromRow(row: Row): CalibrationRecord {
-  return {
-    id: row.id as number,
-    benchKey: row.bench_key as string,
-    bench: row.bench_json as CalibrationRecord['bench'],
-    frequencyHz: row.frequencies_hz_json as number[],
-    gainDb: row.gain_db_json as number[],
-    phaseDeg: row.phase_deg_json as number[],
-    notes: row.notes as string,
-    createdAt: row.created_at as string,
-  };
-}
-
-function scheduleFromRow(row: Row): ScheduleRecord {
-  return {
-    id: row.id as number,
-    buildId: row.build_id as number,
-    request: row.request_json as ScheduleRecord['request'],
-    everyMinutes: row.every_minutes as number,
-    count: (row.run_count as number | null) ?? null,
-    until: (row.until_at as string | null) ?? null,
-    createdAt: row.created_at as string,
-  };
-}
-
-function benchSettingsFromRow(row: Row): BenchSettings {
-  return { benchKey: row.bench_key as string, maxStimulusVpp: (row.max_stimulus_vpp as number | null) ?? null, updatedAt: row.updated_at as string };
-}
-
-function summaryFromRow(row: Row): RunSummary {
-  return {
-    id: row.id as number,
-    buildId: row.build_id as number,
-    buildLabel: row.build_label as string,
-    designName: row.design_name as string,
-    kind: row.kind as RunSummary['kind'],
-    status: row.status as RunStatus,
-    startedAt: (row.started_at as string | null) ?? null,
-    endedAt: (row.ended_at as string | null) ?? null,
-    pointCount: row.point_count as number,
-    plannedCount: row.planned_count as number,
-    simulated: row.simulated === true,
-    benchName: (row.bench_name as string | null) ?? '',
-  };
-}
-
-function storedRunFromRow(row: Row): StoredRun {
-  return {
-    ...summaryFromRow(row),
-    request: row.request_json as StoredRun['request'],
-    plan: row.plan_json as StoredRun['plan'],
-    softwareVersion: row.software_version as string,
-    bench: row.bench_json as StoredRun['bench'],
-    operator: row.operator as string,
-    notes: row.notes as string,
-    scheduleId: (row.schedule_id as number | null) ?? null,
-    createdAt: row.created_at as string,
-    figures: (row.figures_json as RunFigures | null) ?? null,
-    verdict: (row.verdict_json as Verdict | null) ?? null,
-  };
-}
