@@ -62,6 +62,13 @@ export function checkRunBenchName(name: string | undefined): string {
   return name === undefined || name === '' ? '' : checkBenchName(requireText(name, 'run.benchName'), 'run.benchName');
 }
 
+/** The bench a run reserves while it is driven (createOwnedRun): a name checkBenchName allows, never '' (not known). */
+export function checkBenchToReserve(name: string | undefined): string {
+  const bench = checkRunBenchName(name);
+  if (bench === '') throw new ValidationError('run.benchName', 'is empty', 'Name the bench that drives the run, so two runs never drive its instruments at once.');
+  return bench;
+}
+
 export function checkRunKind(kind: unknown): 'ac' | 'dc' {
   if (kind !== 'ac' && kind !== 'dc') throw new ValidationError('run.kind', `"${String(kind)}" is not ac or dc`);
   return kind;

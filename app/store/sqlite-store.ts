@@ -48,6 +48,7 @@ import {
   toJson,
   checkRunClaimant,
   checkStaleAfter,
+  checkBenchToReserve,
 } from './record-checks';
 import { ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, type Row } from './row-mapping';
 import type { RolloffStore } from './store-interface';
@@ -70,6 +71,7 @@ import type {
   StoredRun,
   RunClaimant,
   RunClaimResult,
+  OwnedRunResult,
   RunOwnership,
 } from './types';
 
@@ -87,6 +89,13 @@ function sqliteCode(error: unknown): string | undefined {
 function isDamageCode(code: string | undefined): boolean {
   return code === 'SQLITE_CORRUPT' || code === 'SQLITE_NOTADB' || code === 'SQLITE_CORRUPT_VTAB' || code === 'SQLITE_CORRUPT_INDEX';
 }
+/** The named parameters of the bench check and the claim in createOwnedRun. */
+interface BenchReservation extends RunClaimant {
+  bench: string;
+  nowMs: number;
+  staleBeforeMs: number;
+}
+
 export class SqliteStore implements RolloffStore {
   /** The database file (or ':memory:'). */
   readonly location: string;
@@ -98,6 +107,7 @@ export class SqliteStore implements RolloffStore {
   private readonly statements: ReturnType<SqliteStore['prepareStatements']>;
   private readonly insertPointTransaction: (runId: number, point: NewPoint) => void;
   private readonly insertPointsTransaction: (batches: readonly PointBatch[]) => void;
+  private readonly createOwnedRunTransaction: Database.Transaction<(input: NewRun, reservation: BenchReservation) => { holder: Row } | { runId: number }>;
 
   private constructor(path: string, db: Database.Database, readonly_: boolean, applied: number[], now: () => string) {
     this.location = path;
@@ -109,6 +119,13 @@ export class SqliteStore implements RolloffStore {
     this.insertPointTransaction = db.transaction((runId: number, point: NewPoint) => {
       this.bindPoint(runId, point);
       this.statements.countPoints.run(1, runId);
+    });
+    this.createOwnedRunTransaction = db.transaction((input: NewRun, reservation: BenchReservation) => {
+      const holder = this.statements.benchHolder.get(reservation) as Row | undefined;
+      if (holder) return { holder };
+      const runId = this.insertRun(input);
+      this.statements.claimRun.run({ ...reservation, runId });
+      return { runId };
     });
     this.insertPointsTransaction = db.transaction((batches: readonly PointBatch[]) => {
       for (const { runId, points } of batches) {
@@ -245,6 +262,8 @@ export class SqliteStore implements RolloffStore {
       releaseRun: db.prepare(`UPDATE runs SET owner_id = NULL, owner_pid = NULL, owner_host = NULL, owner_label = NULL,
         owner_since_ms = NULL, owner_heartbeat_ms = NULL WHERE id = @runId AND owner_id = @ownerId`),
       getOwner: db.prepare(`SELECT id, owner_id, owner_pid, owner_host, owner_label, owner_since_ms, owner_heartbeat_ms FROM runs WHERE id = ?`),
+      benchHolder: db.prepare(`SELECT id, owner_id, owner_pid, owner_host, owner_label, owner_since_ms, owner_heartbeat_ms FROM runs
+        WHERE bench_name = @bench AND owner_id IS NOT NULL AND owner_heartbeat_ms >= @staleBeforeMs ORDER BY id LIMIT 1`),
       insertPoint: db.prepare(`INSERT INTO points (run_id, step, stimulus, amplitude_vpp, input_reading, output_reading,
         gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at_ms) VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?)`),
       countPoints: db.prepare('UPDATE runs SET point_count = point_count + ? WHERE id = ?'),
@@ -449,6 +468,18 @@ export class SqliteStore implements RolloffStore {
     const ownership = await this.getRunOwnership(runId);
     if (!ownership) throw new RecordNotFoundError('run', runId);
     return { claimed: result.changes === 1, ownership };
+  }
+
+  async createOwnedRun(input: NewRun, claimant: RunClaimant, staleAfterMs: number): Promise<OwnedRunResult> {
+    this.requireWritable();
+    const { ownerId, pid, host, label } = checkRunClaimant(claimant, staleAfterMs);
+    const bench = checkBenchToReserve(input.benchName);
+    const nowMs = this.nowMs();
+    const staleBeforeMs = nowMs - staleAfterMs;
+    // BEGIN IMMEDIATE takes the write lock before the check: another process's start on this file waits (busy_timeout) and then sees this run.
+    const outcome = this.guard(() => this.createOwnedRunTransaction.immediate(input, { bench, ownerId, pid, host, label, nowMs, staleBeforeMs }));
+    if ('holder' in outcome) return { created: false, benchHeldBy: { runId: outcome.holder.id as number, ownership: ownershipFromRow(outcome.holder)! } };
+    return { created: true, run: this.runById(outcome.runId), ownership: ownershipFromRow(this.statements.getOwner.get(outcome.runId) as Row)! };
   }
 
   async renewRunHeartbeat(runId: number, ownerId: string): Promise<boolean> {

@@ -42,6 +42,7 @@ import type {
   NewPoint,
   NewRun,
   NewSchedule,
+  OwnedRunResult,
   PointBatch,
   RunClaimant,
   RunClaimResult,
@@ -99,6 +100,16 @@ export interface RunStore {
   claimRun(runId: number, claimant: RunClaimant, staleAfterMs: number): Promise<RunClaimResult>;
   /** Renews the heartbeat; false (and nothing changed) when ownerId no longer owns the run. */
   renewRunHeartbeat(runId: number, ownerId: string): Promise<boolean>;
+  /**
+   * Starts a run on a bench: creates it already owned by claimant, in ONE
+   * transaction, unless a run of the same bench (input.benchName, required here)
+   * has a live owner, the claimant itself included; live means a heartbeat no
+   * older than staleAfterMs by the store's clock. Then nothing is created and the
+   * result names that run and its owner. Of starts racing on one bench, from one
+   * process or many, exactly one creates its run; the bench is free again when
+   * that owner releases the run or its heartbeat goes stale.
+   */
+  createOwnedRun(input: NewRun, claimant: RunClaimant, staleAfterMs: number): Promise<OwnedRunResult>;
   /** Gives the run up (its end, a pause); a no-op when ownerId does not own it. */
   releaseRun(runId: number, ownerId: string): Promise<void>;
   /** The run's owner, or undefined when nobody drives it. */

@@ -201,3 +201,11 @@ export interface RunOwnership extends RunClaimant {
 
 /** What claimRun found: claimed (the caller owns the run now) or the owner that kept it. */
 export type RunClaimResult = { claimed: true; ownership: RunOwnership } | { claimed: false; ownership: RunOwnership };
+
+/**
+ * What createOwnedRun did: created the run, owned by the claimant, or found the
+ * bench held by another run's live owner and created nothing.
+ */
+export type OwnedRunResult =
+  | { created: true; run: StoredRun; ownership: RunOwnership }
+  | { created: false; benchHeldBy: { runId: number; ownership: RunOwnership } };

@@ -5,13 +5,14 @@
  */
 import { describe, expect, it } from 'vitest';
 import { STORE_CONFORMANCE_CHECKS, failingChecks } from './store-conformance';
-import { dropsStepOrder, halfAppliesBatches, storesPointTwice, unbrokenStore } from './broken-stores';
+import { checksBenchThenCreates, dropsStepOrder, halfAppliesBatches, storesPointTwice, unbrokenStore } from './broken-stores';
 
 const names = STORE_CONFORMANCE_CHECKS.map((check) => check.name);
 const ROUND_TRIP = names[0];
 const STEP_ORDER = names[1];
 const DUPLICATE = names[2];
 const BULK = names[3];
+const BENCH_RESERVATION = names.find((name) => name.startsWith('bench reservation'))!;
 
 describe('the store conformance suite fails broken stores', () => {
   it('passes a correct store behind the same wrapper (the wrapper alone breaks nothing)', async () => {
@@ -32,5 +33,9 @@ describe('the store conformance suite fails broken stores', () => {
     const failed = await failingChecks(halfAppliesBatches);
     expect(failed).toContain(DUPLICATE);
     expect(failed).toContain(BULK);
+  });
+
+  it('fails a store whose start checks the bench and creates the run in separate steps', async () => {
+    expect(await failingChecks(checksBenchThenCreates)).toEqual([BENCH_RESERVATION]);
   });
 });

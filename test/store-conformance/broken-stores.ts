@@ -4,13 +4,14 @@
  */
 import { DuplicateStepError, SqliteStore, type NewPoint, type RolloffStore, type StoreOpenOptions } from '../../app/store';
 import type { PointColumns } from '../../app/contract/contract';
+import { checkBenchToReserve, checkRunClaimant } from '../../app/store/record-checks';
 
-type Overrides = (inner: RolloffStore) => Partial<RolloffStore>;
+type Overrides = (inner: RolloffStore, options?: Pick<StoreOpenOptions, 'now'>) => Partial<RolloffStore>;
 
 function broken(overrides: Overrides): (options?: Pick<StoreOpenOptions, 'now'>) => Promise<RolloffStore> {
   return async (options) => {
     const inner = SqliteStore.open(':memory:', options);
-    const replaced = overrides(inner) as Record<PropertyKey, unknown>;
+    const replaced = overrides(inner, options) as Record<PropertyKey, unknown>;
     return new Proxy(inner, {
       get(target, property) {
         if (property in replaced) return replaced[property];
@@ -87,5 +88,21 @@ export const halfAppliesBatches = broken((inner) => ({
   },
   async insertPointsOfRuns(batches) {
     for (const { runId, points } of batches) for (const point of points) await inner.insertPoint(runId, point);
+  },
+}));
+
+/** Starts a run by looking for a live owner on the bench and then creating and claiming, in separate steps: two starts can both see a free bench. */
+export const checksBenchThenCreates = broken((inner, options) => ({
+  async createOwnedRun(input, claimant, staleAfterMs) {
+    checkRunClaimant(claimant, staleAfterMs);
+    const bench = checkBenchToReserve(input.benchName);
+    const nowMs = Date.parse(options?.now?.() ?? new Date().toISOString()); // the store's clock, as the real check uses
+    for (const summary of await inner.listRuns({ bench })) {
+      const ownership = await inner.getRunOwnership(summary.id);
+      if (ownership && nowMs - Date.parse(ownership.heartbeatAt) <= staleAfterMs) return { created: false, benchHeldBy: { runId: summary.id, ownership } };
+    }
+    const run = await inner.createRun(input);
+    const claim = await inner.claimRun(run.id, claimant, staleAfterMs);
+    return { created: true, run, ownership: claim.ownership };
   },
 }));

@@ -326,6 +326,54 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
     },
   },
   {
+    name: 'bench reservation: of many starts racing on one bench exactly one creates its run, owned; a live owner holds the bench until release or a stale heartbeat; other benches are free',
+    async run(open) {
+      let nowMs = Date.UTC(2026, 0, 1, 12, 0, 0);
+      const store = await open({ now: () => new Date(nowMs).toISOString() });
+      const { build } = await seedRun(store);
+      const claimants = Array.from({ length: 8 }, (_, i) => ({ ownerId: `start-${i}`, pid: 3000 + i, host: 'h', label: `start ${i}` }));
+      const onBench = (benchName: string, notes = '') => newRun(build.id, { benchName, notes });
+      // As many reads at once first, so a store with a connection pool has its connections open and the starts truly overlap.
+      await Promise.all(claimants.map(() => store.listRuns()));
+      // Eight starts on one bench in the same millisecond, each from its own claimant (as from eight processes).
+      const results = await Promise.all(claimants.map((c, i) => store.createOwnedRun(onBench('bench 3', `start ${i}`), c, 10_000)));
+      const created = results.flatMap((r) => (r.created ? [r] : []));
+      expect(created).toHaveLength(1);
+      const [winner] = created;
+      const winnerClaimant = claimants.find((c) => c.ownerId === winner.ownership.ownerId)!;
+      expect(winner.ownership).toEqual({ ...winnerClaimant, since: '2026-01-01T12:00:00.000Z', heartbeatAt: '2026-01-01T12:00:00.000Z' });
+      expect(winner.run).toMatchObject({ status: 'planned', benchName: 'bench 3', notes: `start ${claimants.indexOf(winnerClaimant)}`, plannedCount: 41 });
+      expect(await store.getRunOwnership(winner.run.id)).toEqual(winner.ownership);
+      for (const refused of results.filter((r) => !r.created)) expect(refused).toEqual({ created: false, benchHeldBy: { runId: winner.run.id, ownership: winner.ownership } });
+      expect((await store.listRuns({ bench: 'bench 3' })).map((r) => r.id)).toEqual([winner.run.id]); // a refused start creates nothing
+
+      // The owner's own live run holds the bench too (a second start from the same service).
+      expect((await store.createOwnedRun(onBench('bench 3'), winnerClaimant, 10_000)).created).toBe(false);
+      // Another bench is not held.
+      const elsewhere = await store.createOwnedRun(onBench('bench 7'), claimants[0], 10_000);
+      expect(elsewhere.created && elsewhere.run.benchName).toBe('bench 7');
+
+      nowMs += 5_000;
+      expect(await store.renewRunHeartbeat(winner.run.id, winnerClaimant.ownerId)).toBe(true);
+      nowMs += 9_000; // 9 s after the renewal: live, still held
+      expect((await store.createOwnedRun(onBench('bench 3'), claimants[1], 10_000)).created).toBe(false);
+      nowMs += 2_000; // 11 s: stale, the bench is free (the stale run keeps its owner until taken over)
+      const afterStale = await store.createOwnedRun(onBench('bench 3'), claimants[1], 10_000);
+      expect(afterStale.created).toBe(true);
+      if (!afterStale.created) return;
+      expect((await store.getRunOwnership(winner.run.id))?.ownerId).toBe(winnerClaimant.ownerId);
+      await store.releaseRun(afterStale.run.id, claimants[1].ownerId);
+      const afterRelease = await store.createOwnedRun(onBench('bench 3'), claimants[2], 10_000);
+      expect(afterRelease.created).toBe(true);
+
+      await expect(store.createOwnedRun(newRun(build.id), claimants[3], 10_000)).rejects.toThrow(/run.benchName/); // a bench must be named
+      await expect(store.createOwnedRun(onBench('bench 9'), { ...claimants[3], pid: 0 }, 10_000)).rejects.toThrow(/claimant.pid/);
+      await expect(store.createOwnedRun(onBench('bench 9'), claimants[3], 0)).rejects.toThrow(/staleAfterMs/);
+      await expect(store.createOwnedRun(newRun(999, { benchName: 'bench 9' }), claimants[3], 10_000)).rejects.toThrow(RecordNotFoundError);
+      expect((await store.createOwnedRun(onBench('bench 9'), claimants[3], 10_000)).created).toBe(true); // the refused one held nothing
+    },
+  },
+  {
     name: 'reports its schema version and a clean integrity check, and closes idempotently',
     async run(open) {
       const store = await open();

@@ -40,6 +40,7 @@ import {
   toJson,
   checkRunClaimant,
   checkStaleAfter,
+  checkBenchToReserve,
 } from '../record-checks';
 import { ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, type Row } from '../row-mapping';
 import type { RolloffStore } from '../store-interface';
@@ -64,6 +65,7 @@ import type {
   StoredRun,
   RunClaimant,
   RunClaimResult,
+  OwnedRunResult,
   RunOwnership,
 } from '../types';
 import { randomUUID } from 'node:crypto';
@@ -104,6 +106,16 @@ const READ_ONLY_TRANSACTION = '25006';
 
 const POINT_COLUMNS = `run_id, step, stimulus, amplitude_vpp, input_reading, output_reading,
   gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at`;
+
+const OWNER_COLUMNS = 'owner_id, owner_pid, owner_host, owner_label, owner_since_ms, owner_heartbeat_ms';
+
+/**
+ * First key of the transaction-level advisory lock that queues starts on one
+ * bench (the second is the bench name's hash): the bytes of "roll". Two-key
+ * locks do not overlap the migration's one-key lock (PostgreSQL documentation,
+ * "Advisory Lock Functions").
+ */
+const BENCH_LOCK_CLASS = 0x726f6c6c;
 
 const RUN_SUMMARY_COLUMNS = `r.id, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
   r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated, r.bench_name`;
@@ -459,6 +471,32 @@ export class PostgresStore implements RolloffStore {
     return { claimed: result.rowCount === 1, ownership };
   }
 
+  async createOwnedRun(input: NewRun, claimant: RunClaimant, staleAfterMs: number): Promise<OwnedRunResult> {
+    this.requireWritable();
+    const { ownerId, pid, host, label } = checkRunClaimant(claimant, staleAfterMs);
+    const bench = checkBenchToReserve(input.benchName);
+    const nowMs = this.nowMs();
+    const outcome = await this.transaction(async (client): Promise<{ holder: Row } | { runId: number }> => {
+      // Starts on one bench queue here until the one before commits; under READ COMMITTED the check below then sees its run.
+      await this.query('SELECT pg_advisory_xact_lock($1::integer, hashtext($2))', [BENCH_LOCK_CLASS, bench], client);
+      const { rows } = await this.query(
+        `SELECT id, ${OWNER_COLUMNS} FROM runs WHERE bench_name = $1 AND owner_id IS NOT NULL AND owner_heartbeat_ms >= $2 ORDER BY id LIMIT 1`,
+        [bench, nowMs - staleAfterMs],
+        client,
+      );
+      if (rows.length > 0) return { holder: rows[0] };
+      const runId = await this.insertRun(input, client);
+      await this.query(
+        'UPDATE runs SET owner_id = $2, owner_pid = $3, owner_host = $4, owner_label = $5, owner_since_ms = $6, owner_heartbeat_ms = $6 WHERE id = $1',
+        [runId, ownerId, pid, host, label, nowMs],
+        client,
+      );
+      return { runId };
+    });
+    if ('holder' in outcome) return { created: false, benchHeldBy: { runId: outcome.holder.id as number, ownership: ownershipFromRow(outcome.holder)! } };
+    return { created: true, run: await this.getRun(outcome.runId), ownership: (await this.getRunOwnership(outcome.runId))! };
+  }
+
   async renewRunHeartbeat(runId: number, ownerId: string): Promise<boolean> {
     this.requireWritable();
     const result = await this.query(`UPDATE runs SET owner_heartbeat_ms = $3 WHERE id = $1 AND owner_id = $2`, [requireId(runId, 'runId'), ownerId, this.nowMs()]);
@@ -476,7 +514,7 @@ export class PostgresStore implements RolloffStore {
 
   async getRunOwnership(runId: number): Promise<RunOwnership | undefined> {
     const { rows } = await this.query(
-      `SELECT owner_id, owner_pid, owner_host, owner_label, owner_since_ms, owner_heartbeat_ms FROM runs WHERE id = $1`,
+      `SELECT ${OWNER_COLUMNS} FROM runs WHERE id = $1`,
       [requireId(runId, 'runId')],
     );
     if (rows.length === 0) throw new RecordNotFoundError('run', runId);

@@ -118,6 +118,37 @@ describe('opening and migrations', () => {
     expect(applied.sort()).toEqual(loadMigrations().map((m) => m.version)); // each migration applied by exactly one process
   });
 
+  it('lets exactly one of several processes starting a run on one bench at the same moment create it, the others told which run holds the bench', async () => {
+    const path = join(folder, 'bench.sqlite');
+    const seeding = openStore('bench.sqlite');
+    const { build } = await seedRun(seeding);
+    await seeding.close();
+    // Every child opens the file and says "ready"; once all have, each is told "go" at once, so their transactions overlap.
+    const children = Array.from({ length: 4 }, () => {
+      const child = spawn(process.execPath, ['--import', 'tsx', join(__dirname, 'start-on-bench.ts'), path, String(build.id)], { stdio: ['pipe', 'pipe', 'pipe'] });
+      let stdout = '';
+      let stderr = '';
+      const ready = new Promise<void>((resolve) => child.stdout.on('data', (chunk) => {
+        stdout += chunk;
+        if (stdout.startsWith('ready\n')) resolve();
+      }));
+      child.stderr.on('data', (chunk) => (stderr += chunk));
+      const exited = new Promise<{ code: number | null; stdout: string; stderr: string }>((resolve) => child.on('exit', (code) => resolve({ code, stdout: stdout.slice('ready\n'.length), stderr })));
+      return { child, ready, exited };
+    });
+    await Promise.race([Promise.all(children.map((c) => c.ready)), Promise.all(children.map((c) => c.exited))]);
+    for (const { child } of children) child.stdin.write('go\n');
+    const results = await Promise.all(children.map((c) => c.exited));
+    expect(results.map((r) => ({ code: r.code, stderr: r.stderr }))).toEqual(Array(4).fill({ code: 0, stderr: '' })); // none failed ("database is locked" included)
+    const outcomes = results.map((r) => JSON.parse(r.stdout) as { created: boolean; runId?: number; ownerId?: string; heldBy?: number });
+    const created = outcomes.filter((o) => o.created);
+    expect(created).toHaveLength(1);
+    for (const refused of outcomes.filter((o) => !o.created)) expect(refused.heldBy).toBe(created[0].runId);
+    const after = openStore('bench.sqlite');
+    expect((await after.listRuns({ bench: 'bench 1' })).map((r) => r.id)).toEqual([created[0].runId]);
+    expect((await after.getRunOwnership(created[0].runId!))?.ownerId).toBe(created[0].ownerId);
+  });
+
   it('refuses misnumbered migration folders', async () => {
     const migrationsDir = join(folder, 'gappy');
     mkdirSync(migrationsDir);
