@@ -9,7 +9,7 @@
 import { hostname } from 'node:os';
 import { randomBytes } from 'node:crypto';
 import { UserError } from '../errors';
-import type { RolloffStore, RunClaimant, RunOwnership } from '../store';
+import type { NewRun, RolloffStore, RunClaimant, RunOwnership, StoredRun } from '../store';
 
 /** How often an owner renews its heartbeat (ms): "every few seconds". */
 export const HEARTBEAT_INTERVAL_MS = 2_000;
@@ -21,6 +21,20 @@ export class RunOwnedElsewhereError extends UserError {
   readonly ownership: RunOwnership;
   constructor(runId: number, ownership: RunOwnership, action: string) {
     super(`run ${runId} is being driven by ${describeOwner(ownership)}; it cannot be ${action} from here`, howToStopThere(ownership));
+    this.ownership = ownership;
+  }
+}
+
+/** Another run drives the bench: a bench's instruments serve one run at a time. */
+export class BenchInUseError extends UserError {
+  readonly runId: number;
+  readonly ownership: RunOwnership;
+  constructor(benchName: string, runId: number, ownership: RunOwnership) {
+    super(
+      `bench "${benchName}" is in use: run ${runId} is being driven by ${describeOwner(ownership)}`,
+      `Wait for run ${runId} to finish, or pause or stop it where it runs. To sweep on another bench at the same time, give that bench its own name (--bench NAME, or ROLLOFF_BENCH).`,
+    );
+    this.runId = runId;
     this.ownership = ownership;
   }
 }
@@ -71,4 +85,21 @@ export async function claimOrRefuse(store: RolloffStore, runId: number, me: RunC
   const gone = current !== undefined && current.ownerId !== me.ownerId && ownerProcessIsGone(current);
   const result = await store.claimRun(runId, me, gone ? 1 : staleAfterMs);
   if (!result.claimed) throw new RunOwnedElsewhereError(runId, result.ownership, action);
+}
+
+/**
+ * Creates the run owned by me, or throws BenchInUseError naming the run that
+ * holds the bench (RunStore.createOwnedRun: the check and the creation are one
+ * transaction). A holder whose process is gone on this host is released first,
+ * so a sweep killed a moment ago does not keep the bench for its heartbeat's
+ * life; its run is then interrupted, offered for resume.
+ */
+export async function createOwnedRunOrRefuse(store: RolloffStore, input: NewRun & { benchName: string }, me: RunClaimant, staleAfterMs: number): Promise<StoredRun> {
+  let result = await store.createOwnedRun(input, me, staleAfterMs);
+  if (!result.created && result.benchHeldBy.ownership.ownerId !== me.ownerId && ownerProcessIsGone(result.benchHeldBy.ownership)) {
+    await store.releaseRun(result.benchHeldBy.runId, result.benchHeldBy.ownership.ownerId);
+    result = await store.createOwnedRun(input, me, staleAfterMs);
+  }
+  if (!result.created) throw new BenchInUseError(input.benchName, result.benchHeldBy.runId, result.benchHeldBy.ownership);
+  return result.run;
 }

@@ -33,7 +33,7 @@ import { compareDetails } from './compare';
 import { SOFTWARE_VERSION } from '../contract/version';
 import { startSimulatedBenchFor, type SimulatedBenchHandle, type SimulatedBenchSettings } from './simulated-bench';
 import { exportRecordFor } from './export';
-import { claimOrRefuse, HEARTBEAT_INTERVAL_MS, liveOtherOwner, ownerProcessIsGone, RunOwnedElsewhereError, STALE_AFTER_MS, thisProcessClaimant } from './run-ownership';
+import { claimOrRefuse, createOwnedRunOrRefuse, HEARTBEAT_INTERVAL_MS, liveOtherOwner, ownerProcessIsGone, RunOwnedElsewhereError, STALE_AFTER_MS, thisProcessClaimant } from './run-ownership';
 
 export interface RolloffServiceOptions {
   /** The user's ceiling on generator output; otherwise the one recorded with the latest run, else unset. */
@@ -95,6 +95,8 @@ export class RolloffService implements RolloffApi {
   /** What each role should be connected to, kept while a link is down so reconnecting knows where. */
   private readonly wanted = new Map<InstrumentRole, { request: ConnectRequest; simulated: boolean }>();
   private readonly active = new Map<number, ActiveRun>();
+  /** True from a start's or resume's idle-bench check until its run is active or it failed: a second one cannot slip in between. */
+  private startingRun = false;
   private simulatedBenchHandle: (SimulatedBenchHandle & { designName: string; key: string }) | undefined;
   private maxStimulusVpp: number | undefined;
   /** This service as a run owner (RunStore.claimRun). */
@@ -212,10 +214,15 @@ export class RolloffService implements RolloffApi {
 
   /** A simulated bench simulating one build's actual circuit (its measured part values), connected in all three roles. */
   async startSimulatedBenchForBuild(buildId: number): Promise<BenchStatus> {
+    await this.simulateBuild(buildId);
+    return this.benchStatus();
+  }
+
+  /** `forStart`: asked by the start or resume that holds the bench (startingRun), which checked it was idle. */
+  private async simulateBuild(buildId: number, forStart = false): Promise<void> {
     const build = await this.store.getBuild(buildId);
     const designRecord = await this.store.getDesign(build.designId);
-    await this.startSimulatedBenchForDesign(buildDesign(designRecord, build), `${designRecord.name} — build ${build.label}`, `build:${buildId}`);
-    return this.benchStatus();
+    await this.startSimulatedBenchForDesign(buildDesign(designRecord, build), `${designRecord.name} — build ${build.label}`, `build:${buildId}`, forStart);
   }
 
   /** Fault injection on the running simulated bench (tests, demos). */
@@ -298,14 +305,33 @@ export class RolloffService implements RolloffApi {
   /** startRun with the service-only options (schedule id). */
   async startRunWith(request: SweepRequest, extra: { scheduleId?: number } = {}): Promise<RunSummary> {
     const maxStimulusVpp = this.requireMaxStimulus();
+    return this.holdingBench(() => this.startOnHeldBench(request, maxStimulusVpp, extra));
+  }
+
+  /**
+   * Holds the bench for one start or resume from its idle check until its run is
+   * active, so two in this service never both pass the check; across processes
+   * the store's createOwnedRun (or claimRun) decides.
+   */
+  private async holdingBench<T>(start: () => Promise<T>): Promise<T> {
     this.requireIdleBench();
+    this.startingRun = true;
+    try {
+      return await start();
+    } finally {
+      this.startingRun = false;
+    }
+  }
+
+  private async startOnHeldBench(request: SweepRequest, maxStimulusVpp: number, extra: { scheduleId?: number }): Promise<RunSummary> {
     if (request.through && (request.kind !== 'ac' || request.measurement !== 'meter')) {
       throw new ValidationError('through', 'a through-calibration is an AC meter run', 'Use measurement "meter" (rolloff sweep --through sets it).');
     }
     await this.matchSimulatedBench(request);
     this.requireInstrumentsFor(request);
     const plan = planSweep(await this.planInput(request, maxStimulusVpp));
-    const run = await this.store.createRun({
+    // One store transaction: the run exists only if no other run holds this bench, and is ours from its first moment.
+    const run = await createOwnedRunOrRefuse(this.store, {
       buildId: request.buildId,
       kind: request.kind,
       request: { ...request, maxStimulusVpp },
@@ -317,10 +343,15 @@ export class RolloffService implements RolloffApi {
       simulated: this.instrumentInfos().some((i) => i.simulated),
       scheduleId: extra.scheduleId ?? null,
       benchName: this.options.benchName ?? resolveBenchName(undefined),
-    });
-    await claimOrRefuse(this.store, run.id, this.claimant, this.staleAfterMs, 'started');
-    for (const warning of plan.warnings) await this.logRunEvent(run.id, 'warning', `plan: ${warning}`);
-    await this.launch(run.id);
+    }, this.claimant, this.staleAfterMs);
+    try {
+      for (const warning of plan.warnings) await this.logRunEvent(run.id, 'warning', `plan: ${warning}`);
+      await this.launch(run.id);
+    } catch (error) {
+      // Not started after all: give the bench back now rather than when the heartbeat goes stale.
+      if (!this.active.has(run.id)) await this.store.releaseRun(run.id, this.claimant.ownerId).catch(() => undefined);
+      throw error;
+    }
     return this.summaryOf(run.id);
   }
 
@@ -362,7 +393,11 @@ export class RolloffService implements RolloffApi {
   async resumeRun(runId: number): Promise<RunSummary> {
     const run = await this.store.getRun(runId);
     if (this.active.has(runId)) throw new RunStateError(runId, 'is already running');
-    this.requireIdleBench();
+    return this.holdingBench(() => this.resumeOnHeldBench(run));
+  }
+
+  private async resumeOnHeldBench(run: StoredRun): Promise<RunSummary> {
+    const runId = run.id;
     if (run.status === 'done') throw new RunStateError(runId, 'is finished; nothing to resume', 'Start a new run of the same build instead.');
     // One conditional update in the store: of two processes resuming a stale run, one wins, the other is told who.
     await claimOrRefuse(this.store, runId, this.claimant, this.staleAfterMs, 'resumed');
@@ -371,7 +406,7 @@ export class RolloffService implements RolloffApi {
       const maxStimulusVpp = this.requireMaxStimulus();
       if (run.simulated) {
         // A fresh simulated bench of the run's build: the one it ran on may be gone with the process that crashed.
-        await this.startSimulatedBenchForBuild(run.buildId);
+        await this.simulateBuild(run.buildId, true);
       } else {
         for (const instrument of run.bench) {
           if (!this.instruments.has(instrument.role)) await this.connectRole({ role: instrument.role, address: instrument.address, profileId: instrument.profileId }, false);
@@ -511,6 +546,7 @@ export class RolloffService implements RolloffApi {
     if (running.length > 0) {
       throw new UserError(`run ${running[0]} is using the bench`, `Wait for it to finish, or pause/stop it first (rolloff resume continues it later).`);
     }
+    if (this.startingRun) throw new UserError('another run is being started on this bench', 'Wait until it runs, then pause or stop it first if you need the bench (rolloff resume continues it later).');
   }
 
   private requireMaxStimulus(): number {
@@ -562,8 +598,8 @@ export class RolloffService implements RolloffApi {
     return { role: request.role, address: opened.address, profileId: opened.profileId, identity: opened.identity, simulated: isSimulated };
   }
 
-  private async startSimulatedBenchForDesign(design: Design, name: string, key: string): Promise<void> {
-    this.requireIdleBench();
+  private async startSimulatedBenchForDesign(design: Design, name: string, key: string, forStart = false): Promise<void> {
+    if (!forStart) this.requireIdleBench();
     for (const role of ROLES) {
       this.wanted.delete(role);
       const connected = this.instruments.get(role);
@@ -590,12 +626,12 @@ export class RolloffService implements RolloffApi {
     const key = request.through ? `through:${request.buildId}` : `build:${request.buildId}`;
     if (this.simulatedBenchHandle.key === key) return;
     if (!request.through) {
-      await this.startSimulatedBenchForBuild(request.buildId);
+      await this.simulateBuild(request.buildId, true);
       return;
     }
     const build = await this.store.getBuild(request.buildId);
     const designRecord = await this.store.getDesign(build.designId);
-    await this.startSimulatedBenchForDesign(throughDesign(buildDesign(designRecord, build)), `${designRecord.name} — through connection`, key);
+    await this.startSimulatedBenchForDesign(throughDesign(buildDesign(designRecord, build)), `${designRecord.name} — through connection`, key, true);
   }
 
   private async planInput(request: SweepRequest, maxStimulusVpp: number): Promise<PlanInput> {
