@@ -3,8 +3,8 @@
  * over the real import graph. test/unit/dependency-rules.test.ts runs it in
  * `npm test`, and shows it fails on a planted bad import.
  *
- * Direction: contract ← pure engines ← service ← hosts (app/cli, app/host,
- * main, renderer). Pure folders import nothing of Node, Electron or a host,
+ * Direction: contract ← pure engines ← store ← read model ← service ← hosts
+ * (app/cli, app/host, main, renderer). Pure folders import nothing of Node, Electron or a host,
  * and no package but the few pure ones named here.
  */
 
@@ -59,6 +59,20 @@ module.exports = {
       severity: 'error',
       from: { path: '^app/contract/' },
       to: { path: '^(app|main|renderer)/', pathNot: '^app/contract/|^app/errors[.]ts$' },
+    },
+    {
+      name: 'read-model-imports-below-the-service',
+      comment: 'The read model shapes stored runs for views and records from the store, the contract and the pure engines; it never reaches into the service, the runner, instruments, the records or a host.',
+      severity: 'error',
+      from: { path: '^app/read-model/' },
+      to: { path: '^(app|main|renderer)/', pathNot: `^app/(read-model|store)/|${PURE}` },
+    },
+    {
+      name: 'read-model-imports-no-node',
+      comment: 'The read model is computation over records: no Node built-ins (the store behind it has them).',
+      severity: 'error',
+      from: { path: '^app/read-model/' },
+      to: { dependencyTypes: ['core'] },
     },
     {
       name: 'only-hosts-import-hosts',

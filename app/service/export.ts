@@ -3,7 +3,7 @@ import { buildComparisonRecord, buildRunRecord, renderRecord, type RecordDcFit }
 import type { ExportedRecord, RecordFormat, RunDetail } from '../contract/contract';
 import type { RolloffService } from './service';
 import { inputResistor, logStageIdeal, type DiodePart } from '../circuit';
-import { designOf } from './theory';
+import { designOf } from '../read-model/stored-design';
 import { logGrid } from '../units';
 
 /** What an export reads: the service, or a read-only store behind the same three members (`rolloff export`). */

@@ -27,9 +27,10 @@ import type {
 import { ServiceEventBus } from '../contract/event-bus';
 import type { StoreChangeFeed } from '../store/types';
 import { followLabChanges } from './lab-changes';
-import { buildDesign, designOf, planTheoryFor } from './theory';
-import { analyzeRun, designForBuild, designForRun, diodeOfRun, runDetail } from './run-detail';
-import { compareDetails } from './compare';
+import { planTheoryFor } from './plan-theory';
+import { buildDesign, designOf } from '../read-model/stored-design';
+import { analyzeRun, designForBuild, designForRun, diodeOfRun, runDetail } from '../read-model/run-detail';
+import { compareDetails } from '../read-model/compare';
 import { SOFTWARE_VERSION } from '../contract/version';
 import { startSimulatedBenchFor, type SimulatedBenchHandle, type SimulatedBenchSettings } from './simulated-bench';
 import { exportRecordFor } from './export';

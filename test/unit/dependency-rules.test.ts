@@ -2,7 +2,7 @@
  * The layering rule (DEVELOPERS.md "Layout"), checked by dependency-cruiser
  * with .dependency-cruiser.cjs over app/, main/ and renderer/: pure folders
  * import nothing of Node, Electron or a host; contract ← pure engines ←
- * service ← hosts; the window imports only pure code, the contract and uplot;
+ * store ← read model ← service ← hosts; the window imports only pure code, the contract and uplot;
  * no import cycle between folders. The second test plants one bad import of
  * each kind in a scratch tree and shows every rule fails on it.
  */
@@ -45,6 +45,7 @@ describe('dependency rules (dependency-cruiser)', () => {
         'app/bench/c.ts': "import { d } from '../sim/d';\nexport const c = d;\n",
         'app/sim/d.ts': "import { e } from '../bench/e';\nexport const d = e;\n",
         'app/bench/e.ts': 'export const e = 1;\n',
+        'app/read-model/uses-service.ts': "import { run } from '../service/service';\nimport { readFileSync } from 'node:fs';\nexport const r = [run, readFileSync];\n",
         'main/main.ts': "export {};\n",
       };
       for (const [path, text] of Object.entries(files)) {
@@ -60,6 +61,8 @@ describe('dependency rules (dependency-cruiser)', () => {
       expect(report).toMatch(/contract-imports-nothing-above-it: app\/contract\/uses-service\.ts → app\/service\/service\.ts/);
       expect(report).toMatch(/only-hosts-import-hosts: app\/service\/service\.ts → app\/host\/web-host\.ts/);
       expect(report).toMatch(/renderer-imports-pure-contract-and-uplot: renderer\/view\.ts → app\/store\/store\.ts/);
+      expect(report).toMatch(/read-model-imports-below-the-service: app\/read-model\/uses-service\.ts → app\/service\/service\.ts/);
+      expect(report).toMatch(/read-model-imports-no-node: app\/read-model\/uses-service\.ts → (node:)?fs/);
       expect(report).toMatch(/no-folder-cycles: app\/(sim|bench)/);
     } finally {
       rmSync(folder, { recursive: true, force: true });

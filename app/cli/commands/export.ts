@@ -11,8 +11,8 @@ import type { RecordFormat } from '../../contract/contract';
 import { openStore, resolveDatabasePath } from '../../store';
 import { exportRecordFor } from '../../service/export';
 import { RECORD_FORMATS } from '../../record';
-import { runDetail } from '../../service/run-detail';
-import { compareDetails } from '../../service/compare';
+import { runDetail } from '../../read-model/run-detail';
+import { compareDetails } from '../../read-model/compare';
 import { optionFlag, optionString, type CommandSpec, type ParsedArgs } from '../args';
 
 /** A file that already exists and is not ours to replace. */

@@ -10,7 +10,7 @@ import { describe, expect, it } from 'vitest';
 import { buildComparisonRecord, buildRunRecord } from '../../../app/record';
 import { comparisonPlots, runPlots } from '../../../app/record/record-plots';
 import { layoutPlot } from '../../../app/record/plot-spec';
-import { compareDetails } from '../../../app/service/compare';
+import { compareDetails } from '../../../app/read-model/compare';
 import { compareColumns } from '../../../renderer/model/compare-data';
 import { PointFlag } from '../../../app/contract/contract';
 import { acRunDetail, comparisonFixture, fixtureBuild, FIXTURE_DESIGN } from './fixtures';

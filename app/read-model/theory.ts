@@ -1,36 +1,15 @@
 /**
- * Theory for a build, shaped for the plan, the views and the analysis. All of
- * it comes from the theory engine (app/circuit) applied to the build's actual
- * part values.
+ * Theory for a build, shaped for the views and the analysis: curves with the
+ * tolerance band over the measured frequencies, the theory's own figures, and
+ * the GBW estimate. All of it comes from the theory engine (app/circuit)
+ * applied to the build's actual part values.
  */
-import { type Design, type OpAmpPart, parseDesign, withActualValues, solveAc, type AcResponse, stimulusLimitVpk, slowestTimeConstantS, monteCarloAc, TOLERANCE_BAND_SETTINGS, openLoopGainAt, outputOpAmpIndex } from '../circuit';
-import type { BuildRecord, DesignRecord, TheoryColumns } from '../contract/contract';
-import type { PlanTheory } from '../sweep/plan';
+import { type Design, type OpAmpPart, solveAc, type AcResponse, monteCarloAc, TOLERANCE_BAND_SETTINGS, openLoopGainAt, outputOpAmpIndex } from '../circuit';
+import type { TheoryColumns } from '../contract/contract';
 import { minus3dbFrequenciesHz, passbandGainDb, type GbwEstimate, type TheoryAtPoints } from '../analysis';
 import { fitSinglePoleOpAmp, FitError } from '../signal';
 import { logGrid, radiansFromDegrees, ratioFromDb } from '../units';
 import { ValidationError } from '../errors';
-
-export function designOf(record: DesignRecord): Design {
-  return parseDesign(record.design, `design ${record.id} (${record.name})`);
-}
-
-/** The design with the build's measured part values substituted. */
-export function buildDesign(design: DesignRecord, build: BuildRecord): Design {
-  return withActualValues(designOf(design), build.actualValues);
-}
-
-export function planTheoryFor(design: Design): PlanTheory {
-  const one = new Float64Array(1);
-  return {
-    slowestTimeConstantS: slowestTimeConstantS(design),
-    gainRatioAt(frequencyHz) {
-      one[0] = frequencyHz;
-      return ratioFromDb(solveAc(design, one).gainDb[0]);
-    },
-    stimulusLimitVpkAt: (frequencyHz) => stimulusLimitVpk(design, frequencyHz),
-  };
-}
 
 /** Theory curve for views: solveAc over the given frequencies (sorted), with the tolerance band. */
 export function theoryColumns(design: Design, frequenciesHz: number[]): TheoryColumns {

@@ -8,7 +8,8 @@ import { analyzeAcRun, usablePointIndexes } from '../analysis';
 import { analyzeStability, inputResistor, outputOpAmpIndex, stabilityWarnings, throughDesign, type OpAmpStability, type AcResponse, type Design, type DiodePart } from '../circuit';
 import { fitLogStage, logFitFigures, FitError } from '../signal';
 import { ValidationError } from '../errors';
-import { buildDesign, estimateGbw, theoryAtPoints, theoryColumns, theoryFigures } from './theory';
+import { estimateGbw, theoryAtPoints, theoryColumns, theoryFigures } from './theory';
+import { buildDesign } from './stored-design';
 
 export interface RunAnalysis {
   figures: RunFigures;
