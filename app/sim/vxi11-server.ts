@@ -18,6 +18,7 @@
  * is read back by device_read calls of at most the requested size, END on its
  * last byte, stopping early at the term char when the caller sets one.
  */
+import { UserError } from '../errors';
 import { SeededRandom } from '../numeric';
 import { getPort, IPPROTO_TCP, portAnswers, setMapping, unsetMapping } from '../scpi/vxi11/portmapper';
 import {
@@ -381,8 +382,12 @@ export async function startVxi11Server(options: Vxi11ServerOptions): Promise<Vxi
   };
 }
 
-/** The portmapper refused our registration: another VXI-11 server holds it. */
-export class Vxi11RegistrationError extends Error {}
+/**
+ * The VXI-11 server could not register with the portmapper (none answers, or
+ * another VXI-11 server holds the registration): a matter of the machine's
+ * set-up, so the CLI prints the message and hint, not a stack trace.
+ */
+export class Vxi11RegistrationError extends UserError {}
 
 /**
  * PMAPPROC_SET for the core channel. A registration left by a process that
@@ -396,18 +401,20 @@ async function registerCorePort(port: number): Promise<void> {
     registered = await setMapping(LOOPBACK_HOST, mapping, PORTMAPPER_TIMEOUT_MS);
   } catch (error) {
     throw new Vxi11RegistrationError(
-      `cannot reach the portmapper on ${LOOPBACK_HOST}:111 (${(error as Error).message}); VXI-11 clients find instruments through it. Start it (Debian: apt-get install rpcbind; then rpcbind -w, or systemctl start rpcbind).`,
+      `cannot reach the portmapper on ${LOOPBACK_HOST}:111 (${(error as Error).message}); VXI-11 clients find instruments through it`,
+      'Start it (Debian: apt-get install rpcbind; then rpcbind -w, or systemctl start rpcbind), or leave out --vxi11 and use the raw socket addresses.',
     );
   }
   if (registered) return;
   const holder = await getPort(LOOPBACK_HOST, DEVICE_CORE_PROGRAM, DEVICE_CORE_VERSION, PORTMAPPER_TIMEOUT_MS);
   if (holder !== 0 && (await portAnswers(LOOPBACK_HOST, holder, 1000))) {
     throw new Vxi11RegistrationError(
-      `another VXI-11 server is registered with the portmapper (port ${holder}); only one can be. Stop it, or remove a stale entry with: rpcinfo -d ${DEVICE_CORE_PROGRAM} ${DEVICE_CORE_VERSION}`,
+      `another VXI-11 server is registered with the portmapper (port ${holder}); only one can be`,
+      `Stop it, or remove a stale entry with: rpcinfo -d ${DEVICE_CORE_PROGRAM} ${DEVICE_CORE_VERSION}`,
     );
   }
   await unsetMapping(LOOPBACK_HOST, DEVICE_CORE_PROGRAM, DEVICE_CORE_VERSION, PORTMAPPER_TIMEOUT_MS);
-  if (!(await setMapping(LOOPBACK_HOST, mapping, PORTMAPPER_TIMEOUT_MS))) throw new Vxi11RegistrationError('the portmapper refused the VXI-11 registration after the stale entry was removed');
+  if (!(await setMapping(LOOPBACK_HOST, mapping, PORTMAPPER_TIMEOUT_MS))) throw new Vxi11RegistrationError('the portmapper refused the VXI-11 registration after the stale entry was removed', `Check the portmapper with: rpcinfo -p ${LOOPBACK_HOST}`);
 }
 
 /** Removes our registration only: an entry another process made since stays. */

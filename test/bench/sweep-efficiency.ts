@@ -20,7 +20,7 @@
  *
  * Run: npx tsx test/bench/sweep-efficiency.ts [--latency-ms 3] [--per-decade 10] [--links socket,vxi11,pty]
  * Every case runs once per connection kind (raw socket, VXI-11 through the
- * portmapper — rpcbind must run — and a socat PTY), the same link latency
+ * portmapper, started as in the tests when none answers — and a socat PTY), the same link latency
  * added by the simulated instruments on each.
  * Real time (time scale 1), so the figure is what a bench user would see. The
  * simulated bench runs in its own process (`rolloff sim`), as instruments do, so
@@ -52,6 +52,7 @@ import { join } from 'node:path';
 import { openServiceAt } from '../../app/service/open-service';
 import { makeDesignFromTemplate } from '../../app/circuit/templates';
 import { startSimProcess } from '../helpers/sim-process';
+import { ensurePortmapper } from '../helpers/portmapper';
 
 function argument(name: string, fallback: number): number {
   const at = process.argv.indexOf(`--${name}`);
@@ -71,6 +72,8 @@ async function main(): Promise<void> {
   const designFile = makeDesignFromTemplate('inverting-lowpass', {});
   writeFileSync(join(folder, 'design.json'), JSON.stringify(designFile));
   const simArgs = ['--design', join(folder, 'design.json'), '--latency', String(latencyMs / 1000), '--noise', '1e-4'];
+  // VXI-11 clients find the instruments through the portmapper: started here when none answers, as the tests do.
+  if (links.includes('vxi11')) await ensurePortmapper();
   // One process serves the raw socket and VXI-11, another the PTYs (a sim serves TCP or PTYs, not both).
   const lan = await startSimProcess([...simArgs, '--tcp', '0', ...(links.includes('vxi11') ? ['--vxi11'] : [])]);
   const serial = links.includes('pty') ? await startSimProcess([...simArgs, '--pty', mkdtempSync(join(folder, 'pty-'))]).catch((error: Error) => {

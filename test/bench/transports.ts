@@ -8,7 +8,8 @@
  * its own processes (`rolloff sim`), as instruments do, with no added
  * latency, so the figures are the transports' own cost on this machine.
  *
- * Needs rpcbind running (VXI-11 registers with it) and socat (the PTY).
+ * Needs rpcbind (VXI-11 registers with it; started here as in the tests when no
+ * portmapper answers, which needs root) and socat (the PTY).
  * Run: npx tsx test/bench/transports.ts [--queries 300] [--transfers 20]
  */
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
@@ -17,6 +18,7 @@ import { join } from 'node:path';
 import { makeDesignFromTemplate } from '../../app/circuit/templates';
 import { connect, type ScpiSession } from '../../app/scpi';
 import { startSimProcess } from '../helpers/sim-process';
+import { ensurePortmapper } from '../helpers/portmapper';
 
 function argument(name: string, fallback: number): number {
   const at = process.argv.indexOf(`--${name}`);
@@ -58,6 +60,7 @@ async function main(): Promise<void> {
   const folder = mkdtempSync(join(tmpdir(), 'rolloff-bench-'));
   writeFileSync(join(folder, 'design.json'), JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
   const ptyFolder = mkdtempSync(join(folder, 'pty-'));
+  await ensurePortmapper(); // VXI-11 clients find the instruments through it; started as in the tests when none answers
   const lan = await startSimProcess(['--design', join(folder, 'design.json'), '--tcp', '0', '--vxi11']);
   const serial = await startSimProcess(['--design', join(folder, 'design.json'), '--pty', ptyFolder]).catch((error: Error) => {
     lan.stop();

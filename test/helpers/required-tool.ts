@@ -32,6 +32,9 @@ export const REQUIRED_TOOLS = {
   pyvisaPy: { program: '/usr/bin/python3', debianPackage: 'python3-pyvisa-py', alsoNeeds: '/usr/lib/python3/dist-packages/pyvisa_py/__init__.py' },
   lxi: { program: 'lxi', debianPackage: 'lxi-tools' },
   xvfb: { program: 'xvfb-run', debianPackage: 'xvfb' },
+  /** A network namespace of its own (as root): a machine where no portmapper answers. */
+  unshare: { program: 'unshare', debianPackage: 'util-linux' },
+  ip: { program: 'ip', debianPackage: 'iproute2' },
   // Debian keeps it off PATH, in /usr/lib/postgresql/N/bin: test/helpers/postgres-cluster.ts looks there first.
   initdb: { program: 'initdb', debianPackage: 'postgresql' },
 } satisfies Record<string, Tool>;

@@ -19,6 +19,7 @@ import { getPort } from '../../../app/scpi/vxi11/portmapper';
 import { DEVICE_CORE_PROGRAM, DEVICE_CORE_VERSION } from '../../../app/scpi/vxi11/protocol';
 import { startSimulatedBench, type SimulatedBench } from '../../../app/sim';
 import { Vxi11RegistrationError } from '../../../app/sim/vxi11-server';
+import { UserError } from '../../../app/errors';
 import { TEST_DESIGN_JSON } from '../instruments/bench-scenario';
 import { ensurePortmapper } from '../../helpers/portmapper';
 import { startSimProcess } from '../../helpers/sim-process';
@@ -29,6 +30,8 @@ import { invertingGain100, sweepRequest, tempFolder } from '../sweep/helpers';
 
 const run = promisify(execFile);
 const PYVISA_CLIENT = join(__dirname, 'pyvisa-client.py');
+const ROLLOFF_CLI = join(__dirname, '../../../app/cli/bin.mjs');
+const EXAMPLE_DESIGN = join(__dirname, '../../../app/circuit/examples/inverting-lowpass.json');
 /** Small on purpose: a 10,000-point record (20,000 bytes) then needs several device_write/device_read calls. */
 const SMALL_MAX_RECV_SIZE_BYTES = 16;
 
@@ -64,8 +67,21 @@ describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () 
     expect(bench.vxi11Addresses).toEqual({ generator: 'TCPIP::127.0.0.1::INSTR', meter: 'TCPIP::127.0.0.1::inst1::INSTR', scope: 'TCPIP::127.0.0.1::inst2::INSTR' });
   });
 
-  it('refuses a second registration while the first server lives', async () => {
-    await expect(startSimulatedBench({ design: TEST_DESIGN_JSON, tcpPort: 0, vxi11: true })).rejects.toBeInstanceOf(Vxi11RegistrationError);
+  it('refuses a second registration while the first server lives, as a user error with a hint', async () => {
+    const refusal = await startSimulatedBench({ design: TEST_DESIGN_JSON, tcpPort: 0, vxi11: true }).catch((error: unknown) => error);
+    expect(refusal).toBeInstanceOf(Vxi11RegistrationError);
+    expect(refusal).toBeInstanceOf(UserError);
+    expect((refusal as UserError).message).toMatch(new RegExp(`another VXI-11 server is registered with the portmapper \\(port ${bench.vxi11Server!.corePort}\\)`));
+    expect((refusal as UserError).hint).toMatch(/rpcinfo -d 395183 1/);
+    // rolloff sim prints it plainly: message and hint, exit code 2, no "internal error" and no stack trace.
+    const cli = await run(process.execPath, [ROLLOFF_CLI, 'sim', '--design', EXAMPLE_DESIGN, '--tcp', '0', '--vxi11'], { timeout: 30_000 }).then(
+      () => ({ code: 0, stderr: '' }),
+      (error: { code: number; stderr: string }) => error,
+    );
+    expect(cli.code).toBe(2);
+    expect(cli.stderr).toMatch(/^rolloff sim: another VXI-11 server is registered with the portmapper/);
+    expect(cli.stderr).toMatch(/\n {2}Stop it, or remove a stale entry with: rpcinfo -d 395183 1/);
+    expect(cli.stderr).not.toMatch(/internal error|\n\s+at /);
   });
 
   it('answers Rolloff\'s client on each device name with that instrument\'s *IDN?', async () => {
