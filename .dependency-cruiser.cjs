@@ -4,12 +4,21 @@
  * `npm test`, and shows it fails on a planted bad import.
  *
  * Direction: contract ← pure engines ← store ← read model ← service ← hosts
- * (app/cli, app/host, main, renderer). Pure folders import nothing of Node, Electron or a host,
- * and no package but the few pure ones named here.
+ * (app/cli, app/host, main, renderer). Pure folders import nothing of Node,
+ * Electron or a host, no package but the few pure ones named here, and
+ * nothing through require(). Every import must resolve. Globals (process,
+ * Buffer, document) are no imports: tsconfig.pure.json type-checks the same
+ * folders without Node's or the DOM's declarations, and `npm run deps` runs
+ * both.
  */
 
-/** Folders whose code must run anywhere: the window, the CLI, tests. */
-const PURE = '^app/(units|circuit|signal|sweep/plan|analysis|contract|numeric)/|^app/errors[.]ts$';
+/**
+ * Folders whose code must run anywhere: the window, the CLI, tests. One list,
+ * tsconfig.pure.json's `include` ("app/units/**\/*.ts" or a single file), for
+ * both checks.
+ */
+const PURE_PATHS = require('./tsconfig.pure.json').include.map((pattern) => pattern.replace(/[/][*][*][/][*][.]ts$/, '/'));
+const PURE = PURE_PATHS.map((path) => `^${path.replace(/[.]/g, '[.]')}${path.endsWith('/') ? '' : '$'}`).join('|');
 /** The only packages pure code may use, each in its own folder. */
 const PURE_PACKAGES = [
   { folder: '^app/signal/', packages: 'fft[.]js' },
@@ -46,6 +55,20 @@ module.exports = {
       severity: 'error',
       from: { path: PURE, pathNot: PURE_PACKAGES.map((p) => p.folder).join('|') },
       to: { dependencyTypes: ['npm', 'npm-dev', 'npm-optional', 'npm-peer', 'npm-no-pkg', 'npm-unknown'] },
+    },
+    {
+      name: 'not-to-unresolvable',
+      comment: 'Every import resolves to a file or an installed package: a typo or a missing package is an error, not a silent gap in the graph.',
+      severity: 'error',
+      from: {},
+      to: { couldNotResolve: true },
+    },
+    {
+      name: 'pure-imports-no-require',
+      comment: 'Pure folders are ES modules that run in the window too: no require(), import = require() or process.getBuiltinModule().',
+      severity: 'error',
+      from: { path: PURE },
+      to: { dependencyTypes: ['require', 'exotic-require', 'import-equals', 'process-get-builtin-module'] },
     },
     {
       name: 'pure-imports-no-electron',
@@ -104,5 +127,7 @@ module.exports = {
     tsConfig: { fileName: 'tsconfig.json' },
     enhancedResolveOptions: { exportsFields: ['exports'], conditionNames: ['import', 'require', 'node', 'default', 'types'] },
     moduleSystems: ['es6', 'cjs'],
+    // process.getBuiltinModule('fs') is an import of a built-in too.
+    detectProcessBuiltinModuleCalls: true,
   },
 };
