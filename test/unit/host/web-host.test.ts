@@ -5,15 +5,23 @@
  * and malformed calls get a 400 with a clear message while the database files
  * stay byte-for-byte unchanged. Status codes follow RFC 9110 (401, 403, 405,
  * 413, 415) and RFC 6455 for the refused WebSocket handshake.
+ *
+ * The default, with no token mode given (our own rule, app/host/web-host.ts):
+ * a host bound to anything but loopback requires the token — shown on the
+ * wildcard address and on this machine's own non-loopback address, reached
+ * from this machine only — and a loopback host (127.0.0.0/8, ::1, localhost)
+ * serves without one. Loopback per RFC 1122 §3.2.1.3 (127/8) and RFC 4291
+ * §2.5.3 (::1).
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createHash } from 'node:crypto';
 import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { request as httpRequest } from 'node:http';
-import { tmpdir } from 'node:os';
+import { networkInterfaces, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import WebSocket from 'ws';
 import { startWebHost, type WebHost } from '../../../app/host/web-host';
+import { isLoopbackHost } from '../../../app/host/access-token';
 import { openHostedService, type HostedService } from '../../../app/host/hosted-service';
 import type { RendererFiles } from '../../../app/host/renderer-bundle';
 
@@ -209,5 +217,84 @@ describe('web host on loopback: malformed calls', () => {
     const reply = await call(base, 'startSimulatedBench', [999]);
     expect(reply.status).toBe(422);
     expect(errorOf(reply).message).toMatch(/999/);
+  });
+});
+
+describe('which addresses count as loopback', () => {
+  it('127.0.0.0/8, ::1 (bracketed or not), IPv4-mapped 127/8 and localhost do; anything else does not', () => {
+    for (const host of ['127.0.0.1', '127.0.0.2', '127.255.255.255', '127.1.2.3', '::1', '[::1]', '::ffff:127.0.0.1', 'localhost', 'LOCALHOST']) {
+      expect(isLoopbackHost(host), host).toBe(true);
+    }
+    for (const host of ['0.0.0.0', '::', '[::]', '192.0.2.2', '10.0.0.1', '128.0.0.1', '126.255.255.255', '127.0.0.256', '127.0.0', '::2', 'fd00::2', '::ffff:192.0.2.2', 'localhost.example', 'evil-localhost', '127.0.0.1.example', '']) {
+      expect(isLoopbackHost(host), host).toBe(false);
+    }
+  });
+});
+
+/** This machine's first IPv4 address that is not loopback, if it has one. */
+const OWN_ADDRESS = Object.values(networkInterfaces())
+  .flat()
+  .find((entry) => entry !== undefined && entry.family === 'IPv4' && !entry.internal)?.address;
+if (!OWN_ADDRESS) console.warn('SKIPPED: this machine has no non-loopback IPv4 address; the token default is shown on the wildcard address only.');
+
+describe('web host default, no token mode given: a token off loopback, none on it', () => {
+  let dir: string;
+  let hosted: HostedService;
+
+  beforeAll(async () => {
+    dir = mkdtempSync(join(tmpdir(), 'rolloff-host-'));
+    hosted = await openHostedService(join(dir, 'bench.sqlite'));
+  });
+  afterAll(async () => {
+    await hosted?.close();
+    rmSync(dir, { recursive: true, force: true });
+  });
+
+  const startOn = (host: string) => startWebHost({ api: hosted.api, subscribe: hosted.subscribe, files: FILES, host, port: 0, log: () => {} });
+
+  /** Bound to `bindAddress`, reached at `reachAddress`: refused without the token, served with it. */
+  async function expectTokenRequired(bindAddress: string, reachAddress: string): Promise<void> {
+    const host = await startOn(bindAddress);
+    try {
+      expect(host.token).toMatch(/^[A-Za-z0-9_-]{43}$/);
+      const base = `http://${reachAddress}:${host.port}/`;
+      expect((await send(base)).status).toBe(401);
+      expect((await call(base, 'listDesigns', [])).status).toBe(401);
+      expect((await call(base, 'listDesigns', [], { Authorization: 'Bearer wrong' })).status).toBe(403);
+      expect((await send(`${base}?token=${host.token}`)).status).toBe(200);
+      const designs = await call(base, 'listDesigns', [], { Authorization: `Bearer ${host.token}` });
+      expect(designs.status).toBe(200);
+      expect(JSON.parse(designs.body)).toEqual({ result: [] });
+      expect(await websocketOutcome(`ws://${reachAddress}:${host.port}/events`)).toEqual({ opened: false, status: 401 });
+    } finally {
+      await host.close();
+    }
+  }
+
+  it('bound to the wildcard address 0.0.0.0: every page, call and event socket needs the token', async () => {
+    await expectTokenRequired('0.0.0.0', '127.0.0.1');
+  });
+
+  it.skipIf(!OWN_ADDRESS)(`bound to this machine's own address ${OWN_ADDRESS ?? ''}: every page, call and event socket needs the token`, async () => {
+    await expectTokenRequired(OWN_ADDRESS!, OWN_ADDRESS!);
+  });
+
+  it.each(['127.0.0.1', '127.0.0.2', 'localhost'])('bound to loopback %s: serves without a token, and refuses a foreign Host header', async (bindAddress) => {
+    const host = await startOn(bindAddress);
+    try {
+      expect(host.token).toBeUndefined();
+      expect(host.url).not.toMatch(/token/);
+      expect(isLoopbackHost(host.host)).toBe(true);
+      expect((await send(host.url)).status).toBe(200);
+      const designs = await call(host.url, 'listDesigns', []);
+      expect(designs.status).toBe(200);
+      expect(JSON.parse(designs.body)).toEqual({ result: [] });
+      const outcome = await websocketOutcome(new URL('events', host.url.replace(/^http/, 'ws')).href);
+      expect(outcome.opened).toBe(true);
+      if (outcome.opened) outcome.socket.close();
+      expect((await call(host.url, 'listDesigns', [], { Host: 'rebound.invalid' })).status).toBe(403);
+    } finally {
+      await host.close();
+    }
   });
 });
