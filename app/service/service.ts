@@ -47,6 +47,11 @@ export interface RolloffServiceOptions {
   giveUpAfterS?: number;
   /** Time an instrument needs after a setting change (s). Default 10 ms (common practice, no source). */
   instrumentSettleS?: number;
+  /**
+   * The clock sweeps count settling and integration on when this service runs no simulated bench of its
+   * own (that bench brings its clock). Default real time; a test gives the clock of a bench it started.
+   */
+  clock?: BenchClock;
   /** Meter aperture for meter and DC runs (s). Default 0.1 s = 5 power-line cycles at 50 Hz (common practice). */
   meterIntegrationS?: number;
   /** Largest number of refinement points added after the coarse pass. Default 8. */
@@ -141,7 +146,7 @@ export class RolloffService implements RolloffApi {
 
   /** The bench clock: scaled for a simulated bench so settling and integration run faster, real otherwise. */
   get clock(): BenchClock {
-    return this.simulatedBenchHandle?.clock ?? realClock;
+    return this.simulatedBenchHandle?.clock ?? this.options.clock ?? realClock;
   }
 
   get maxStimulus(): number | undefined {
