@@ -18,6 +18,9 @@
  */
 import { describe, expect, it } from 'vitest';
 import { monteCarloAc, parseDesign, solveAc, type Design } from '../../../app/circuit';
+import { normalCdf } from '../../helpers/normal-distribution';
+import { covers, expectCoverage, scaledInterval } from '../../helpers/coverage';
+import { seededUniform } from '../signal/seeded-random';
 
 const R0 = 10e3;
 const C0 = 15.9e-9;
@@ -61,14 +64,6 @@ function quantile(cdf: (x: number) => number, p: number, low: number, high: numb
   return (low + high) / 2;
 }
 
-function normalCdf(z: number): number {
-  // Abramowitz & Stegun 7.1.26 for erf.
-  const x = Math.abs(z) / Math.SQRT2;
-  const t = 1 / (1 + 0.3275911 * x);
-  const erf = 1 - (((((1.061405429 * t - 1.453152027) * t + 1.421413741) * t - 0.284496736) * t + 0.254829592) * t) * Math.exp(-x * x);
-  return z >= 0 ? (1 + erf) / 2 : (1 - erf) / 2;
-}
-
 describe('Monte Carlo tolerance band', () => {
   const probeHz = Float64Array.from([10 * NOMINAL_CORNER_HZ]);
 
@@ -88,6 +83,30 @@ describe('Monte Carlo tolerance band', () => {
     expect(cornerFromGainHz(band.gainHighDb[0], probeHz[0]) / expectedHighCornerHz).toBeLessThan(1.003);
     // The spread is real: about ±12 % on the corner, far wider than the test limits.
     expect(expectedHighCornerHz / expectedLowCornerHz).toBeGreaterThan(1.2);
+  });
+
+  it('the 2.5–97.5 % band holds 95 % of fresh builds drawn apart from it (± 4 standard errors); a widened band would not', () => {
+    const a = 0.05;
+    const b = 0.1;
+    const band = monteCarloAc(rcLowPass(a, b), probeHz, { samples: 20000, seed: 2024, distribution: 'uniform' });
+    const nominalDb = solveAc(rcLowPass(a, b), probeHz).gainDb[0];
+    const interval: [number, number] = [band.gainLowDb[0], band.gainHighDb[0]];
+    // Builds from the parts' distributions (uniform ±a on R, ±b on C), by an independent generator (mulberry32).
+    const uniform = seededUniform(31);
+    const omega = 2 * Math.PI * probeHz[0];
+    const builds = 2000;
+    const covered = { band: 0, widened: 0, narrowed: 0 };
+    for (let k = 0; k < builds; k++) {
+      const tauS = R0 * (1 + a * (2 * uniform() - 1)) * C0 * (1 + b * (2 * uniform() - 1));
+      const gainDb = -10 * Math.log10(1 + (omega * tauS) ** 2); // |1/(1 + jωτ)| in dB
+      if (covers(interval, gainDb)) covered.band++;
+      if (covers(scaledInterval(interval, nominalDb, 1.5), gainDb)) covered.widened++;
+      if (covers(scaledInterval(interval, nominalDb, 0.75), gainDb)) covered.narrowed++;
+    }
+    // The band's own sampling error (20,000 samples: about ±0.15 % of coverage) is small beside the check's ±1.9 %.
+    const [low, high] = expectCoverage(covered.band, builds, 0.95, 'Monte Carlo band');
+    expect(covered.widened / builds).toBeGreaterThan(high);
+    expect(covered.narrowed / builds).toBeLessThan(low);
   });
 
   it('gaussian (σ = t/3, truncated at ±t) on R alone: edges match the truncated-normal quantiles', () => {

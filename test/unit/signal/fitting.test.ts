@@ -11,6 +11,8 @@ import {
 } from '../../../app/signal';
 import { thermalVoltageV } from '../../../app/circuit/thermal-voltage';
 import { seededGaussian } from './seeded-random';
+import { covers, expectCoverage, scaledInterval } from '../../helpers/coverage';
+import { normalCdf } from '../../helpers/normal-distribution';
 
 describe('Student-t quantiles', () => {
   it('match the published two-sided 95 % table', () => {
@@ -43,21 +45,26 @@ describe('levenbergMarquardt', () => {
     expect(['small-cost-change', 'small-step', 'small-gradient', 'exact-fit']).toContain(result.reason);
   });
 
-  it('gives 95 % intervals that cover the truth in about 95 % of noisy trials', () => {
+  it('gives 95 % intervals that cover the truth in 95 % of noisy trials (± 4 standard errors), not more, not less', () => {
     const gaussian = seededGaussian(123);
-    const trials = 200;
-    let covered = 0;
+    const trials = 1000;
+    const covered = { stated: 0, widened: 0, narrowed: 0 };
     for (let k = 0; k < trials; k++) {
       const data = times.map((t) => decay([truth.a, truth.tauS, truth.c], t) + 0.02 * gaussian());
       const result = levenbergMarquardt({
         parameters: [{ name: 'a', initial: 2 }, { name: 'tauS', initial: 0.01, logScale: true }, { name: 'c', initial: 0 }],
         residuals: (p) => times.map((t, i) => decay(p, t) - data[i]),
       });
-      const [low, high] = result.confidenceIntervals[1];
-      if (low <= truth.tauS && truth.tauS <= high) covered++;
+      const interval = result.confidenceIntervals[1];
+      if (covers(interval, truth.tauS)) covered.stated++;
+      // τ is fitted on a log scale, so its interval is scaled there.
+      if (covers(scaledInterval(interval, result.params[1], 1.5, 'log'), truth.tauS)) covered.widened++;
+      if (covers(scaledInterval(interval, result.params[1], 0.75, 'log'), truth.tauS)) covered.narrowed++;
     }
-    // Binomial(200, 0.95) has standard deviation ≈ 3 %: 88…100 % is more than 2 standard deviations (no source needed).
-    expect(covered / trials).toBeGreaterThan(0.88);
+    const [low, high] = expectCoverage(covered.stated, trials, 0.95, 'τ interval');
+    // The check can fail both ways: the same intervals 1.5× as wide (≈ 99.7 %) or ¾ as wide (≈ 86 %) are caught.
+    expect(covered.widened / trials).toBeGreaterThan(high);
+    expect(covered.narrowed / trials).toBeLessThan(low);
   });
 
   it('uses an analytic Jacobian when given and agrees with the numerical one', () => {
@@ -159,16 +166,24 @@ describe('fitLogStage', () => {
     expect(Object.keys(logFitFigures(fit)).sort()).toEqual(['isA', 'isCi', 'n', 'nCi', 'rsCi', 'rsOhm']);
   });
 
-  it('covers the true n in most of many seeded trials', () => {
+  it('its 95 % intervals of n, I_S and R_S cover the truth in 95 % of seeded trials (± 4 standard errors)', () => {
     const gaussian = seededGaussian(77);
-    let covered = 0;
-    const trials = 60;
+    const trials = 1000;
+    const covered = { n: 0, isA: 0, rsOhm: 0, nWidened: 0, nNarrowed: 0 };
     for (let k = 0; k < trials; k++) {
       const fit = fitLogStage(inputV, ideal.map((v) => v + 2e-4 * gaussian()), resistorOhm, temperatureC);
-      if (fit.nCi[0] <= truth.n && truth.n <= fit.nCi[1]) covered++;
+      if (covers(fit.nCi, truth.n)) covered.n++;
+      if (covers(fit.isCi, truth.isA)) covered.isA++;
+      if (covers(fit.rsCi, truth.rsOhm)) covered.rsOhm++;
+      if (covers(scaledInterval(fit.nCi, fit.n, 1.5), truth.n)) covered.nWidened++;
+      if (covers(scaledInterval(fit.nCi, fit.n, 0.75), truth.n)) covered.nNarrowed++;
     }
-    // Nominal 95 %; Binomial(60, 0.95) stays above 85 % with probability > 99 % (no source needed).
-    expect(covered / trials).toBeGreaterThan(0.85);
+    const [low, high] = expectCoverage(covered.n, trials, 0.95, 'n interval');
+    expectCoverage(covered.isA, trials, 0.95, 'I_S interval');
+    expectCoverage(covered.rsOhm, trials, 0.95, 'R_S interval');
+    // A far too wide interval (1.5×) or a too narrow one (¾) of n fails the same check.
+    expect(covered.nWidened / trials).toBeGreaterThan(high);
+    expect(covered.nNarrowed / trials).toBeLessThan(low);
   });
 
   it('fits a stage driven with negative input by mirroring both axes', () => {
@@ -204,22 +219,67 @@ describe('fitSinglePoleOpAmp', () => {
   const ideal = { re: Array.from(frequenciesHz, () => -10), im: Array.from(frequenciesHz, () => 0) };
   const noiseGain = { re: Array.from(frequenciesHz, () => 11), im: Array.from(frequenciesHz, () => 0) };
 
-  it('recovers GBW from gain/phase readings with noise, inside its interval', () => {
-    const h = stage(3e6, 2e5);
-    const gaussian = seededGaussian(55);
+  /** The fit of stage h read with 0.02 dB and 0.2° of Gaussian noise, those uncertainties stated with the readings. */
+  function fitNoisyReadings(h: { re: number[]; im: number[] }, gaussian: () => number) {
     const gainDb = h.re.map((re, i) => 20 * Math.log10(Math.hypot(re, h.im[i])) + 0.02 * gaussian());
     const phaseDeg = h.re.map((re, i) => (Math.atan2(h.im[i], re) * 180) / Math.PI + 0.2 * gaussian());
-    const fit = fitSinglePoleOpAmp({
+    return fitSinglePoleOpAmp({
       frequenciesHz,
       measured: { gainDb, phaseDeg, gainUncertaintyDb: gainDb.map(() => 0.02), phaseUncertaintyDeg: phaseDeg.map(() => 0.2) },
       idealResponse: ideal,
       noiseGain,
     });
+  }
+
+  it('recovers GBW from gain/phase readings with noise, inside its interval', () => {
+    const fit = fitNoisyReadings(stage(3e6, 2e5), seededGaussian(55));
     expect(fit.gbwHz / 3e6).toBeGreaterThan(0.97);
     expect(fit.gbwHz / 3e6).toBeLessThan(1.03);
     expect(fit.gbwCi[0]).toBeLessThanOrEqual(3e6);
     expect(fit.gbwCi[1]).toBeGreaterThanOrEqual(3e6);
     expect(fit.gbwStdHz).toBeGreaterThan(0);
+  });
+
+  it('its interval and 1σ cover the truth as often as its rule says, over seeded trials (± 4 standard errors)', () => {
+    // With stated uncertainties the fit scales them up when the scatter exceeds them, never down (σ·max(1, s),
+    // s² = χ²/ν with ν = 50 readings − 1 parameter), with the normal factor 1.96. With right uncertainties, so,
+    // the ±k·σ interval covers with probability E[2Φ(k·max(1, s)) − 1], s² ~ χ²_ν/ν independent of the estimate
+    // (least squares in Gaussian noise): 95.7 % for k = 1.96 and 70.0 % for k = 1, a little above 95 % and
+    // 68.3 % by design (conservative). Computed below by integrating over the χ² density.
+    const expectedCoverage = (k: number, nu: number) => {
+      const logDensity = (x: number) => (nu / 2 - 1) * Math.log(x) - x / 2; // χ²_ν up to its constant
+      const peak = logDensity(nu - 2);
+      let weight = 0;
+      let covered = 0;
+      const steps = 20000;
+      const top = nu + 20 * Math.sqrt(2 * nu);
+      for (let i = 1; i < steps; i++) {
+        const x = (i * top) / steps;
+        const density = Math.exp(logDensity(x) - peak);
+        weight += density;
+        covered += density * (2 * normalCdf(k * Math.max(1, Math.sqrt(x / nu))) - 1);
+      }
+      return covered / weight;
+    };
+    const h = stage(3e6, 2e5);
+    const gaussian = seededGaussian(55);
+    const trials = 1000;
+    const covered = { ci: 0, oneSigma: 0, widened: 0, narrowed: 0 };
+    for (let k = 0; k < trials; k++) {
+      const fit = fitNoisyReadings(h, gaussian);
+      if (covers(fit.gbwCi, 3e6)) covered.ci++;
+      if (Math.abs(fit.gbwHz - 3e6) <= fit.gbwStdHz) covered.oneSigma++;
+      if (covers(scaledInterval(fit.gbwCi, fit.gbwHz, 1.5, 'log'), 3e6)) covered.widened++;
+      if (covers(scaledInterval(fit.gbwCi, fit.gbwHz, 0.75, 'log'), 3e6)) covered.narrowed++;
+    }
+    const nu = 2 * frequenciesHz.length - 1;
+    const expected95 = expectedCoverage(1.96, nu);
+    expect(expected95).toBeGreaterThan(0.95);
+    expect(expected95).toBeLessThan(0.965);
+    const [low, high] = expectCoverage(covered.ci, trials, expected95, 'GBW 95 % interval');
+    expectCoverage(covered.oneSigma, trials, expectedCoverage(1, nu), 'GBW ±1σ');
+    expect(covered.widened / trials).toBeGreaterThan(high);
+    expect(covered.narrowed / trials).toBeLessThan(low);
   });
 
   it('also fits A0 when the data show the low-frequency gain error', () => {
