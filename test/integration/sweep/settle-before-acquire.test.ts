@@ -10,20 +10,21 @@
  *
  * The runner cannot see the change itself: it counts settling from the
  * generator's acknowledgement, which arrives one reply latency (3 ms) after
- * the change, and later still when the event loop is busy (up to ~20 ms seen
- * on a loaded machine; the simulated bench runs in this process). So the
- * check against the change has that much slack, and a second check holds the
- * runner to its own rule: each capture starts at least the settle time after
- * the generator's last acknowledgement on the link (the service's traffic
- * events, timed on the bench's clock as they arrive).
+ * the change, and later still when the event loop is busy or the machine
+ * loaded (the simulated bench runs in this process). A second check holds
+ * the runner to that rule: each capture starts at least the settle time
+ * after the generator's last acknowledgement on the link (the service's
+ * traffic events, timed on the bench's clock as they arrive).
  *
- * Two circuits. A fast one (settle 10 ms, the instruments' own) keeps the
- * pipeline busy: read-back, fits and the store commit overlap the settling,
- * so captures start later than settling needs. A slow one (settle ≈ 140 ms,
- * far above the pipeline's own gap) makes the settle wait the last thing
- * before each capture, so the check is sharp there: with the settle waits
- * cut 5 ms short (a test-only clock) it fails on the scope path and on the
- * meter path, while the same sweeps with the full waits pass.
+ * Two circuits. A fast one (settle 10 ms, the instruments' own; real time)
+ * keeps the pipeline busy: read-back, fits and the store commit overlap the
+ * settling, so captures start later than settling needs and a cut would hide
+ * in that slack. A slow one (settle ≈ 140 ms, far above the pipeline's own
+ * gap), with bench time at a tenth of real time so that link latency and a
+ * loaded machine's lateness shrink tenfold against it, makes the settle wait
+ * the last thing before each capture: there both checks are sharp, and with
+ * the settle waits cut 3 ms short (a test-only clock) both fail, on the scope
+ * path and on the meter path, while the same sweeps with the full waits pass.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
@@ -103,18 +104,31 @@ interface BenchUnderTest {
   buildId: number;
 }
 
+interface BenchOptions {
+  /** Bench seconds per wall second (default 1, real time). */
+  timeScale?: number;
+  /** The service's clock, made from the bench's (default: real time). */
+  clockFor?: (bench: SimulatedBench) => BenchClock;
+  /** The meter's aperture, bench seconds (default the service's 0.1 s). */
+  meterIntegrationS?: number;
+}
+
 /**
- * For the enclosing describe: the simulated bench of `designFile` (3 ms per reply over TCP, real time), its
- * record, and a service with its instruments connected and one build. `clockFor` gives the service's clock.
+ * For the enclosing describe: the simulated bench of `designFile` (3 ms of wall time per reply over TCP), its
+ * record, and a service with its instruments connected and one build.
  */
-function benchUnderTest(designFile: unknown, clockFor?: (bench: SimulatedBench) => BenchClock): BenchUnderTest {
+function benchUnderTest(designFile: unknown, options: BenchOptions = {}): BenchUnderTest {
   const folder = tempFolder();
   const context = {} as BenchUnderTest;
   beforeAll(async () => {
-    const bench = await startSimulatedBench({ design: designFile, tcpPort: 0, timeScale: 1, latencyS: 0.003, noiseVrms: 1e-4 });
+    const bench = await startSimulatedBench({ design: designFile, tcpPort: 0, timeScale: options.timeScale ?? 1, latencyS: 0.003, noiseVrms: 1e-4 });
     context.bench = bench;
     context.record = new BenchRecord(bench);
-    const service = await openServiceAt(join(folder.path, 'settle.sqlite'), { maxStimulusVpp: 1, clock: clockFor?.(bench) });
+    const service = await openServiceAt(join(folder.path, 'settle.sqlite'), {
+      maxStimulusVpp: 1,
+      clock: options.clockFor?.(bench),
+      meterIntegrationS: options.meterIntegrationS,
+    });
     context.service = service;
     context.record.listen(service);
     const design = await service.saveDesign(designFile);
@@ -129,9 +143,9 @@ function benchUnderTest(designFile: unknown, clockFor?: (bench: SimulatedBench) 
   return context;
 }
 
-function request(buildId: number, measurement: 'scope' | 'meter'): SweepRequest {
+function request(buildId: number, measurement: 'scope' | 'meter', pointsPerDecade = 5): SweepRequest {
   return {
-    buildId, kind: 'ac', from: 1e3, to: 1e5, pointsPerDecade: 5, spacing: 'log', amplitude: { mode: 'auto' },
+    buildId, kind: 'ac', from: 1e3, to: 1e5, pointsPerDecade, spacing: 'log', amplitude: { mode: 'auto' },
     measurement, minCycles: 5, averages: 1, refine: false, operator: 'settle check', notes: '',
   };
 }
@@ -164,12 +178,14 @@ describe('the runner never acquires before the settle time since the last stimul
 });
 
 describe('a runner that settles a few ms too little is caught (slow circuit: settle far above the pipeline gap)', () => {
+  /** How much the cut runner leaves out of each settle wait, bench seconds. */
+  const CUT_S = 0.003;
   /**
-   * How much the cut runner leaves out of each settle wait: a few ms, above the usual lateness of the settle
-   * timer plus the capture command's trip (0.3–0.6 ms on a quiet machine; median 2–5 ms, 0.7 ms at best, at
-   * load average 17 on 2 cores), so captures show it even on a loaded machine.
+   * Bench time at a tenth of real time: the link's 3 ms per reply and a loaded machine's lateness (timers and
+   * replies up to ~15 ms late at load average 22 on 2 cores) shrink tenfold in bench time, so the runner's
+   * margin stays well under the cut however busy the machine, while settling (in bench time) is unchanged.
    */
-  const CUT_S = 0.005;
+  const TIME_SCALE = 0.1;
   /** The service's clock: the bench's, with every settle wait cut short by `cutS` while it is above 0 (test only). */
   let cutS = 0;
   const cutShort = (bench: SimulatedBench): BenchClock => ({
@@ -179,30 +195,38 @@ describe('a runner that settles a few ms too little is caught (slow circuit: set
     sleepS: (seconds) => bench.clock.sleepS(Math.max(0, seconds - cutS)),
   });
   // High-pass corner 1/(2π·RN·CN) ≈ 8 Hz, τ = RN·CN = 20 ms: settle −ln(0.001)·τ ≈ 138 ms; 1–100 kHz is its pass band.
-  const context = benchUnderTest(makeDesignFromTemplate('inverting-highpass', { rn: 1e3, cn: 20e-6, rf: 10e3 }), cutShort);
+  // A 20 ms meter aperture (bench time) keeps the wall time of the meter sweeps down.
+  const context = benchUnderTest(makeDesignFromTemplate('inverting-highpass', { rn: 1e3, cn: 20e-6, rf: 10e3 }), {
+    timeScale: TIME_SCALE,
+    clockFor: cutShort,
+    meterIntegrationS: 0.02,
+  });
 
   for (const measurement of ['scope', 'meter'] as const) {
     it(`${measurement}: with the full settle waits it passes; with each wait ${CUT_S * 1e3} ms short it fails`, async () => {
       const { record, service, buildId } = context;
+      const wanted = request(buildId, measurement, 2); // 5 points, 1 kHz to 100 kHz
       cutS = 0;
       record.windows = [];
-      const honest = await sweep(service, request(buildId, measurement));
+      const honest = await sweep(service, wanted);
       expect(honest.settleS).toBeGreaterThan(0.13); // the circuit's, not the instruments' 10 ms
       expect(record.violations(honest.settleS)).toEqual([]);
       const margins = record.marginsS(honest.settleS, 'acknowledgement');
       expect(margins.length).toBe(honest.steps);
       expect(Math.min(...margins)).toBeGreaterThanOrEqual(0);
       // The settling is far above the pipeline's own gap: the runner waits it out and captures right after, the
-      // typical margin being the timer's lateness and the capture command's trip to the instrument.
-      expect(medianOfSorted([...margins].sort((a, b) => a - b))).toBeLessThan(honest.settleS / 10);
+      // margin being the timer's lateness and the capture command's trip to the instrument.
+      expect(medianOfSorted([...margins].sort((a, b) => a - b))).toBeLessThan(CUT_S);
 
       cutS = CUT_S;
       record.windows = [];
-      const cut = await sweep(service, request(buildId, measurement));
+      const cut = await sweep(service, wanted);
       cutS = 0;
-      // The same check now fails: captures start up to the cut too early (6 to 10 of the 11 at load average 17).
+      // Both checks now fail: captures start up to the cut too early, after the change the bench recorded and
+      // after the acknowledgement the runner counts from.
+      expect(record.violations(cut.settleS).length).toBeGreaterThan(0);
       const early = record.marginsS(cut.settleS, 'acknowledgement').filter((marginS) => marginS < 0);
-      expect(early.length).toBeGreaterThan(0);
+      expect(early.length).toBeGreaterThan(cut.steps / 2);
       expect(Math.min(...early)).toBeGreaterThanOrEqual(-CUT_S);
     });
   }
