@@ -1,6 +1,6 @@
 /**
  * The layering rule (DEVELOPERS.md "Where things live"), checked by
- * dependency-cruiser with .dependency-cruiser.cjs over app/, main/ and
+ * dependency-cruiser with test/layering/dependency-cruiser.cjs over app/, main/ and
  * renderer/: every import resolves; pure folders import nothing of Node,
  * Electron or a host and nothing through require(); contract ← pure engines ←
  * store ← read model ← service ← hosts; the window imports only pure code, the
@@ -12,30 +12,35 @@
  * Each check runs on the real tree (it passes) and on a scratch tree with one
  * planted breach of each rule (it fails, naming the file and the rule). Which
  * folders are pure is the table of DEVELOPERS.md; the checks' one list
- * (tsconfig.pure.json) is held to it, and every folder on it is shown guarded.
+ * (test/layering/tsconfig.pure.json, read through pure-folders.cjs) is held to
+ * it, and every folder on it is shown guarded.
  */
 import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
 import { copyFileSync, mkdirSync, mkdtempSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { dirname, join, resolve } from 'node:path';
+import { dirname, join, relative, resolve } from 'node:path';
+import { PURE_PATHS, PURE_TSCONFIG_PATH } from '../layering/pure-folders.cjs';
 
 const ROOT = resolve(__dirname, '../..');
 const DEPCRUISE = join(ROOT, 'node_modules/dependency-cruiser/bin/dependency-cruise.mjs');
 const TSC = join(ROOT, 'node_modules/typescript/bin/tsc');
+const CRUISER_CONFIG = join(ROOT, 'test/layering/dependency-cruiser.cjs');
+/** Where the pure-folders tsconfig sits below the root (its paths are relative to that folder), in the real tree and in a scratch one. */
+const PURE_TSCONFIG = relative(ROOT, PURE_TSCONFIG_PATH);
 
 function depcruise(cwd: string, extra: string[] = []) {
-  return spawnSync(process.execPath, [DEPCRUISE, 'app', 'main', 'renderer', '--config', join(ROOT, '.dependency-cruiser.cjs'), '--output-type', 'err', ...extra], {
+  return spawnSync(process.execPath, [DEPCRUISE, 'app', 'main', 'renderer', '--config', CRUISER_CONFIG, '--output-type', 'err', ...extra], {
     cwd,
     encoding: 'utf8',
   });
 }
 
 function typeCheckPure(cwd: string) {
-  return spawnSync(process.execPath, [TSC, '-p', join(cwd, 'tsconfig.pure.json')], { cwd, encoding: 'utf8' });
+  return spawnSync(process.execPath, [TSC, '-p', join(cwd, PURE_TSCONFIG)], { cwd, encoding: 'utf8' });
 }
 
-/** A scratch tree holding `files`, the project's tsconfig files and (when asked) its node_modules; removed after `work`. */
+/** A scratch tree holding `files`, the project's tsconfig files at their own places and (when asked) its node_modules; removed after `work`. */
 function withScratchTree<T>(files: Record<string, string>, work: (folder: string) => T, options: { packages?: boolean } = {}): T {
   const folder = mkdtempSync(join(tmpdir(), 'rolloff-depcruise-'));
   try {
@@ -44,7 +49,8 @@ function withScratchTree<T>(files: Record<string, string>, work: (folder: string
       writeFileSync(join(folder, path), text);
     }
     copyFileSync(join(ROOT, 'tsconfig.json'), join(folder, 'tsconfig.json'));
-    copyFileSync(join(ROOT, 'tsconfig.pure.json'), join(folder, 'tsconfig.pure.json'));
+    mkdirSync(dirname(join(folder, PURE_TSCONFIG)), { recursive: true });
+    copyFileSync(PURE_TSCONFIG_PATH, join(folder, PURE_TSCONFIG));
     if (options.packages) symlinkSync(join(ROOT, 'node_modules'), join(folder, 'node_modules'));
     return work(folder);
   } finally {
@@ -58,12 +64,6 @@ function pureInDevelopersGuide(): string[] {
   return [...guide.matchAll(/^\| `([^`]+)` \|[^|]*\| pure only\b/gm)].map((m) => m[1]);
 }
 
-/** tsconfig.pure.json's include, as folders (`app/units/`) or files: the one list both checks use. */
-function pureInConfig(): string[] {
-  const config = JSON.parse(readFileSync(join(ROOT, 'tsconfig.pure.json'), 'utf8')) as { include: string[] };
-  return config.include.map((pattern) => pattern.replace(/\*\*\/\*\.ts$/, ''));
-}
-
 describe('dependency rules (dependency-cruiser)', () => {
   it('the source tree keeps them, with no baseline of tolerated violations', () => {
     const result = depcruise(ROOT);
@@ -75,11 +75,37 @@ describe('dependency rules (dependency-cruiser)', () => {
     const documented = pureInDevelopersGuide();
     expect(documented).toContain('app/units/');
     expect(documented).toContain('app/errors.ts');
-    expect([...pureInConfig()].sort()).toEqual([...documented].sort());
+    expect([...PURE_PATHS].sort()).toEqual([...documented].sort());
+  });
+
+  it('the pure-folder list is read relative to its tsconfig, and an entry it cannot read is refused by name', () => {
+    const readList = (include: string[]) =>
+      withScratchTree({ 'app/units/db.ts': 'export const db = 1;\n', 'app/errors.ts': 'export {};\n' }, (folder) => {
+        const reader = join(folder, 'test/layering/pure-folders.cjs');
+        copyFileSync(join(ROOT, 'test/layering/pure-folders.cjs'), reader);
+        writeFileSync(join(folder, PURE_TSCONFIG), JSON.stringify({ extends: '../../tsconfig.json', include }));
+        // Run from elsewhere: the paths must not depend on the working directory.
+        return spawnSync(process.execPath, ['-e', `console.log(JSON.stringify(require(${JSON.stringify(reader)}).PURE_PATHS))`], { cwd: tmpdir(), encoding: 'utf8' });
+      });
+    const good = readList(['../../app/units/**/*.ts', '../../app/errors.ts']);
+    expect(good.status, good.stderr).toBe(0);
+    expect(JSON.parse(good.stdout)).toEqual(['app/units/', 'app/errors.ts']);
+    // Written as if relative to the root, or one level short: the folder it names does not exist.
+    for (const misplaced of ['app/units/**/*.ts', '../app/units/**/*.ts']) {
+      const result = readList([misplaced]);
+      expect(result.status).not.toBe(0);
+      expect(result.stderr).toContain(`include entry "${misplaced}" names `);
+      expect(result.stderr).toContain('which does not exist; paths there are relative to test/layering/');
+    }
+    for (const unreadable of ['../../app/*.ts', '../../../elsewhere/**/*.ts', '../../app/errors.js']) {
+      const result = readList([unreadable]);
+      expect(result.status).not.toBe(0);
+      expect(result.stderr).toContain(`include entry "${unreadable}" is neither a folder`);
+    }
   });
 
   it('fails on a planted bad import of every kind', () => {
-    const pureFolders = pureInConfig().filter((path) => path.endsWith('/'));
+    const pureFolders = PURE_PATHS.filter((path) => path.endsWith('/'));
     const files: Record<string, string> = {
       // One Node import in every pure folder: each must be reported, so the rule guards the whole list.
       ...Object.fromEntries(pureFolders.map((folder) => [`${folder}uses-node.ts`, "import { readFileSync } from 'node:fs';\nexport const read = readFileSync;\n"])),
@@ -134,7 +160,7 @@ describe('dependency rules (dependency-cruiser)', () => {
   });
 });
 
-describe('pure folders use no Node or DOM globals (tsc -p tsconfig.pure.json)', () => {
+describe('pure folders use no Node or DOM globals (tsc -p test/layering/tsconfig.pure.json)', () => {
   it('the source tree passes', () => {
     const result = typeCheckPure(ROOT);
     expect(result.stdout + result.stderr).toBe('');

@@ -6,13 +6,10 @@
 import { describe, expect, it } from 'vitest';
 import { readFileSync, readdirSync, statSync, existsSync } from 'node:fs';
 import { dirname, join, relative, resolve } from 'node:path';
+// Folders (`app/units/`) or single files whose code must run anywhere: browser, CLI, tests; the one list is test/layering/tsconfig.pure.json's include.
+import { PURE_PATHS } from '../layering/pure-folders.cjs';
 
 const ROOT = resolve(__dirname, '../..');
-
-/** Folders (or single files) whose code must run anywhere: browser, CLI, tests. The one list is tsconfig.pure.json's include. */
-const PURE_ROOTS: string[] = (JSON.parse(readFileSync(join(ROOT, 'tsconfig.pure.json'), 'utf8')) as { include: string[] }).include.map((pattern) =>
-  pattern.replace(/\/\*\*\/\*\.ts$/, ''),
-);
 
 /**
  * The only packages a pure module may import: small, maintained, themselves
@@ -62,16 +59,16 @@ const DOM_GLOBALS = /\b(?:document|window|localStorage|navigator|HTMLElement)\s*
 
 function isPure(file: string): boolean {
   const rel = relative(ROOT, file);
-  return PURE_ROOTS.some((root) => rel === root || rel.startsWith(root + '/'));
+  return PURE_PATHS.some((root) => (root.endsWith('/') ? rel.startsWith(root) : rel === root));
 }
 
 describe('layering', () => {
-  const pureFiles = PURE_ROOTS.flatMap(listTs).filter((f) => !f.endsWith('.test.ts'));
+  const pureFiles = PURE_PATHS.flatMap(listTs).filter((f) => !f.endsWith('.test.ts'));
 
   it('finds the pure modules it is meant to guard', () => {
     expect(pureFiles.length).toBeGreaterThan(3);
-    expect(PURE_ROOTS).toContain('app/units');
-    expect(PURE_ROOTS).toContain('app/errors.ts');
+    expect(PURE_PATHS).toContain('app/units/');
+    expect(PURE_PATHS).toContain('app/errors.ts');
   });
 
   it('pure modules import no Node built-ins, Electron or DOM, and only other pure modules', () => {

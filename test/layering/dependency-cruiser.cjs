@@ -1,5 +1,5 @@
 /**
- * The layering rule of DEVELOPERS.md ("Layout"), checked by dependency-cruiser
+ * The layering rule of DEVELOPERS.md ("Where things live"), checked by dependency-cruiser
  * over the real import graph. test/unit/dependency-rules.test.ts runs it in
  * `npm test`, and shows it fails on a planted bad import.
  *
@@ -7,17 +7,18 @@
  * (app/cli, app/host, main, renderer). Pure folders import nothing of Node,
  * Electron or a host, no package but the few pure ones named here, and
  * nothing through require(). Every import must resolve. Globals (process,
- * Buffer, document) are no imports: tsconfig.pure.json type-checks the same
- * folders without Node's or the DOM's declarations, and `npm run deps` runs
- * both.
+ * Buffer, document) are no imports: tsconfig.pure.json beside this file
+ * type-checks the same folders without Node's or the DOM's declarations, and
+ * `npm run deps` runs both. Module paths are relative to the working
+ * directory, the repository root.
  */
 
 /**
  * Folders whose code must run anywhere: the window, the CLI, tests. One list,
- * tsconfig.pure.json's `include` ("app/units/**\/*.ts" or a single file), for
- * both checks.
+ * tsconfig.pure.json's `include`, for both checks (as "app/units/" or a
+ * single file).
  */
-const PURE_PATHS = require('./tsconfig.pure.json').include.map((pattern) => pattern.replace(/[/][*][*][/][*][.]ts$/, '/'));
+const { PURE_PATHS } = require('./pure-folders.cjs');
 const PURE = PURE_PATHS.map((path) => `^${path.replace(/[.]/g, '[.]')}${path.endsWith('/') ? '' : '$'}`).join('|');
 /** The only packages pure code may use, each in its own folder. */
 const PURE_PACKAGES = [
