@@ -11,8 +11,9 @@
 #   python3-pyvisa-py  an independent VISA client of the simulated bench (VXI-11 and raw socket)
 #   lxi-tools      a second independent VXI-11 client
 #   util-linux, iproute2  unshare and ip: a network namespace of its own, where no portmapper answers
+#   git            the list of tracked files the repository-layout test reads
 set -euo pipefail
-PACKAGES=(ngspice socat chromium poppler-utils xvfb fonts-dejavu-core postgresql rpcbind python3-pyvisa-py lxi-tools util-linux iproute2)
+PACKAGES=(ngspice socat chromium poppler-utils xvfb fonts-dejavu-core postgresql rpcbind python3-pyvisa-py lxi-tools util-linux iproute2 git)
 missing=()
 for package in "${PACKAGES[@]}"; do
   dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed" || missing+=("$package")

@@ -27,6 +27,7 @@ export const REQUIRED_TOOLS = {
   pdftoppm: { program: 'pdftoppm', debianPackage: 'poppler-utils' },
   pdftotext: { program: 'pdftotext', debianPackage: 'poppler-utils' },
   python3: { program: 'python3', debianPackage: 'python3' },
+  git: { program: 'git', debianPackage: 'git' },
   rpcbind: { program: 'rpcbind', debianPackage: 'rpcbind' },
   /** Debian's own python3 with its pyvisa-py package (a pyenv python on PATH lacks it). */
   pyvisaPy: { program: '/usr/bin/python3', debianPackage: 'python3-pyvisa-py', alsoNeeds: '/usr/lib/python3/dist-packages/pyvisa_py/__init__.py' },
