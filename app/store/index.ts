@@ -4,5 +4,6 @@ export { openStore, databaseUrlScheme, type StoreOpener } from './open-store';
 export * from './errors';
 export * from './types';
 export { defaultDatabasePath, resolveDatabasePath, userDataFolder, DATABASE_FILE_NAME } from './paths';
-export { loadMigrations, DEFAULT_MIGRATIONS_DIR, type Migration } from './migrations';
+export { loadMigrations, type Migration } from './migrations';
+export { migrationsFolder, migrationsRoot, type MigrationsDialect } from './migrations-folder';
 export type * from './store-interface';

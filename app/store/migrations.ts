@@ -5,8 +5,8 @@
  */
 import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import type Database from 'better-sqlite3';
+import { migrationsFolder } from './migrations-folder';
 
 export interface Migration {
   version: number;
@@ -16,11 +16,8 @@ export interface Migration {
 
 const MIGRATION_FILE = /^(\d{4})_([a-z0-9_]+)\.sql$/;
 
-/** The repository's migrations folder, found relative to this file. */
-export const DEFAULT_MIGRATIONS_DIR = fileURLToPath(new URL('../../migrations/', import.meta.url));
-
-/** Reads and checks the folder: numbers must run 1, 2, 3 … with no gap or repeat. */
-export function loadMigrations(folder: string = DEFAULT_MIGRATIONS_DIR): Migration[] {
+/** Reads and checks the folder (SQLite's unless told): numbers must run 1, 2, 3 … with no gap or repeat. */
+export function loadMigrations(folder: string = migrationsFolder('sqlite')): Migration[] {
   const migrations: Migration[] = [];
   for (const fileName of readdirSync(folder).sort()) {
     if (!fileName.endsWith('.sql')) continue;

@@ -163,7 +163,7 @@ export interface BenchSettings extends BenchSettingsInput {
 
 export interface StoreOpenOptions {
   readonly?: boolean;
-  /** Folder of NNNN_name.sql files; defaults to the repository's migrations/. */
+  /** Folder of NNNN_name.sql files; defaults to the shipped ones of this store's database (migrations-folder.ts). */
   migrationsDir?: string;
   /** Clock for timestamps; tests pass a fixed one. */
   now?: () => string;

@@ -1,8 +1,8 @@
 /**
  * Builds the desktop shell into a temp folder laid out as the project and the
  * packaged app are: out/electron/ beside migrations/ and node_modules/ (the
- * bundled main process finds the migrations relative to itself, and loads
- * npm packages, kept external, from node_modules).
+ * bundled main process finds the migrations by walking up from itself, and
+ * loads npm packages, kept external, from node_modules).
  */
 import { mkdtempSync, rmSync, symlinkSync } from 'node:fs';
 import { tmpdir } from 'node:os';

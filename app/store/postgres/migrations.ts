@@ -6,18 +6,16 @@
  * in one transaction with its schema_migrations row (PostgreSQL's DDL is
  * transactional), so the database is always at a whole version.
  */
-import { fileURLToPath } from 'node:url';
 import type { PoolClient } from 'pg';
 import { SOFTWARE_VERSION } from '../../contract/version';
 import { StoreDamagedError, StoreUnavailableError, StoreVersionError } from '../errors';
 import { latestVersion, loadMigrations, type Migration } from '../migrations';
-
-export const POSTGRES_MIGRATIONS_DIR = fileURLToPath(new URL('../../../migrations/postgres/', import.meta.url));
+import { migrationsFolder } from '../migrations-folder';
 
 /** pg_advisory_lock key: the bytes of "rolloff" read as a number, so no other program's lock is likely to collide. */
 const MIGRATION_LOCK_KEY = 0x726f6c6c6f6666n.toString();
 
-export function loadPostgresMigrations(folder: string = POSTGRES_MIGRATIONS_DIR): Migration[] {
+export function loadPostgresMigrations(folder: string = migrationsFolder('postgres')): Migration[] {
   return loadMigrations(folder);
 }
 

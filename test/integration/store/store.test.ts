@@ -14,13 +14,15 @@ import Database from 'better-sqlite3';
 import { SOFTWARE_VERSION } from '../../../app/contract/version';
 import { point, seedRun } from '../../store-conformance/fixtures';
 import {
-  DEFAULT_MIGRATIONS_DIR,
   SqliteStore,
   StoreDamagedError,
   StoreUnavailableError,
   StoreVersionError,
   loadMigrations,
+  migrationsFolder,
 } from '../../../app/store';
+
+const SHIPPED_MIGRATIONS = migrationsFolder('sqlite');
 
 let folder: string;
 const open: SqliteStore[] = [];
@@ -75,7 +77,7 @@ describe('opening and migrations', () => {
   it('applies a later migration to an existing database in order, keeping its data', async () => {
     const migrationsDir = join(folder, 'migrations');
     mkdirSync(migrationsDir);
-    for (const name of readdirSync(DEFAULT_MIGRATIONS_DIR).filter((file) => file.endsWith('.sql'))) copyFileSync(join(DEFAULT_MIGRATIONS_DIR, name), join(migrationsDir, name));
+    for (const name of readdirSync(SHIPPED_MIGRATIONS).filter((file) => file.endsWith('.sql'))) copyFileSync(join(SHIPPED_MIGRATIONS, name), join(migrationsDir, name));
     const first = openStore('upgrade.sqlite', { migrationsDir });
     const { run } = await seedRun(first);
     await first.close();
@@ -90,7 +92,7 @@ describe('opening and migrations', () => {
   it('rolls back a failing migration completely and leaves the version where it was', async () => {
     const migrationsDir = join(folder, 'migrations');
     mkdirSync(migrationsDir);
-    for (const name of readdirSync(DEFAULT_MIGRATIONS_DIR).filter((file) => file.endsWith('.sql'))) copyFileSync(join(DEFAULT_MIGRATIONS_DIR, name), join(migrationsDir, name));
+    for (const name of readdirSync(SHIPPED_MIGRATIONS).filter((file) => file.endsWith('.sql'))) copyFileSync(join(SHIPPED_MIGRATIONS, name), join(migrationsDir, name));
     await openStore('broken.sqlite', { migrationsDir }).close();
     const next = loadMigrations().length + 1;
     writeFileSync(join(migrationsDir, `${String(next).padStart(4, '0')}_broken.sql`), 'CREATE TABLE half_done (x INTEGER);\nTHIS IS NOT SQL;\n');
