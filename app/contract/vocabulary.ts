@@ -61,6 +61,20 @@ export function flagWords(flags: number, separator = '; '): string {
   return words.join(separator);
 }
 
+/**
+ * A run's points as words, for every surface (CLI, Sweep view, records):
+ * "41 planned + 2 refinement", or "20 of 41 planned" for a run that stopped
+ * early. Refinement points come after the plan, so the count of points can
+ * pass the planned count; they are told apart by their flag, not by position.
+ */
+export function pointCountText(plannedCount: number, pointFlags: ArrayLike<number>): string {
+  let refinement = 0;
+  for (let i = 0; i < pointFlags.length; i++) if ((pointFlags[i] & PointFlag.refinement) !== 0) refinement++;
+  const plannedMeasured = pointFlags.length - refinement;
+  const planned = plannedMeasured === plannedCount ? `${plannedCount} planned` : `${plannedMeasured} of ${plannedCount} planned`;
+  return refinement > 0 ? `${planned} + ${refinement} refinement` : planned;
+}
+
 /** Settings, with the one name each surface uses for them. */
 export const SETTINGS = {
   maxStimulus: {

@@ -4,7 +4,7 @@ import type { Block, RecordDocument } from './record-document';
 import type { RecordDesign, RunRecord } from './model';
 import { runPlots } from './record-plots';
 import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatUncertainty, formatVolts, idnText, verdictHeadline } from './record-formatting';
-import { FIGURE_NAMES, SETTINGS } from '../contract/vocabulary';
+import { FIGURE_NAMES, SETTINGS, pointCountText } from '../contract/vocabulary';
 
 export const SIMULATED_BANNER = 'SIMULATED BENCH — these readings come from the simulated bench and describe a computed circuit, not a physical board.';
 
@@ -21,7 +21,7 @@ export function runDocument(record: RunRecord): RecordDocument {
         ['Operator', run.operator || '—'],
         ['Started', run.startedAt ?? '—'],
         ['Ended', run.endedAt ?? '—'],
-        ['Points', `${run.pointCount} of ${run.plannedCount} planned`],
+        ['Points', pointCountText(run.plannedCount, record.points.flags)],
         ['Software that measured the run', `Rolloff ${run.softwareVersion}`],
         ['Bench', run.simulated ? 'simulated (simulated bench)' : 'physical instruments'],
         ['Data digest (SHA-256)', record.digest.hex],

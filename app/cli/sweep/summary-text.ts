@@ -1,7 +1,7 @@
 /** Plain-text summaries of runs for the terminal. */
-import { PointFlag, type RunDetail, type RunFigures, type RunSummary } from '../../contract/contract';
+import type { RunDetail, RunFigures, RunSummary } from '../../contract/contract';
 import { formatEngineering, formatWithUncertainty } from '../../units';
-import { FIGURE_NAMES } from '../../contract/vocabulary';
+import { FIGURE_NAMES, pointCountText } from '../../contract/vocabulary';
 
 export function figureLines(figures: RunFigures, theory?: { gainLimitHz?: number; minus3dbHz: number[] }): string[] {
   const lines: string[] = [];
@@ -52,7 +52,7 @@ export function runDetailText(detail: RunDetail, diode?: DiodeTheory): string {
   const lines = [
     `run ${detail.id}  ${detail.kind.toUpperCase()}  ${detail.status}${detail.simulated ? '  (SIMULATED: simulated bench)' : ''}`,
     `build "${detail.buildLabel}" of design "${detail.designName}"`,
-    `points ${pointCountText(detail)}   started ${detail.startedAt ?? '—'}   ended ${detail.endedAt ?? '—'}`,
+    `points ${pointCountText(detail.plannedCount, detail.points.flags)}   started ${detail.startedAt ?? '—'}   ended ${detail.endedAt ?? '—'}`,
     '',
     ...figureLines(detail.figures, detail.kind === 'ac' ? { gainLimitHz: detail.theoryGainLimitHz, minus3dbHz: detail.theoryMinus3dbHz } : undefined),
   ];
@@ -70,12 +70,4 @@ export function runTable(runs: RunSummary[]): string {
   const header = ['run', 'kind', 'status', 'points', 'build', 'design', 'bench', 'started', ''];
   const widths = header.map((h, c) => Math.max(h.length, ...rows.map((row) => row[c].length)));
   return [header, ...rows].map((row) => row.map((cell, c) => cell.padEnd(widths[c])).join('  ').trimEnd()).join('\n') + '\n';
-}
-
-/** "41 planned + 2 refinement", or "20 of 41 planned" for a run that stopped early. */
-export function pointCountText(detail: Pick<RunDetail, 'pointCount' | 'plannedCount' | 'points'>): string {
-  const refinement = detail.points.flags.filter((flags) => (flags & PointFlag.refinement) !== 0).length;
-  const plannedMeasured = detail.pointCount - refinement;
-  const planned = plannedMeasured === detail.plannedCount ? `${detail.plannedCount} planned` : `${plannedMeasured} of ${detail.plannedCount} planned`;
-  return refinement > 0 ? `${planned} + ${refinement} refinement` : planned;
 }

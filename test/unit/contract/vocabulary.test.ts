@@ -8,7 +8,8 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { COMMANDS } from '../../../app/cli/commands';
 import { formatCommandHelp } from '../../../app/cli/args';
-import { FIGURE_NAMES, FLAG_WORDS, RETIRED_FIGURE_NAMES, RETIRED_SETTING_NAMES } from '../../../app/contract/vocabulary';
+import { FIGURE_NAMES, FLAG_WORDS, RETIRED_FIGURE_NAMES, RETIRED_SETTING_NAMES, pointCountText } from '../../../app/contract/vocabulary';
+import { PointFlag } from '../../../app/contract/contract';
 import { buildRunRecord, renderRecord } from '../../../app/record';
 import { acRunDetail, fixtureBuild, FIXTURE_DESIGN } from '../record/fixtures';
 
@@ -50,5 +51,19 @@ describe('one vocabulary', () => {
     expect(html).toContain(FIGURE_NAMES.gainLimitHz);
     expect(html).not.toMatch(/pastGainLimit|notANumber|outsideToleranceBand/);
     expect(Object.values(FLAG_WORDS).some((word) => html.includes(word))).toBe(true);
+  });
+});
+
+describe('a run\'s point count in words (CLI, Sweep view, records)', () => {
+  // Flags as a sweep stores them: the planned grid first, refinement points after it. Counts worked by hand — common practice, no source.
+  const planned = (n: number, flags = 0) => Array.from({ length: n }, () => flags);
+  it('tells planned and refinement points apart, however many points there are', () => {
+    expect(pointCountText(41, planned(41))).toBe('41 planned');
+    expect(pointCountText(41, [...planned(41), ...planned(2, PointFlag.refinement)])).toBe('41 planned + 2 refinement');
+    expect(pointCountText(13, [...planned(13, PointFlag.distorted), PointFlag.refinement | PointFlag.retried])).toBe('13 planned + 1 refinement');
+  });
+  it('says how far a run that stopped early got', () => {
+    expect(pointCountText(41, planned(20))).toBe('20 of 41 planned');
+    expect(pointCountText(41, [])).toBe('0 of 41 planned');
   });
 });

@@ -177,7 +177,8 @@ export function acRunDetail(options: AcFixtureOptions = {}): RunDetail {
     startedAt: '2026-11-30T10:00:00.000Z',
     endedAt: '2026-11-30T10:04:31.500Z',
     pointCount: frequencies.length,
-    plannedCount: frequencies.length,
+    // Refinement points are added after the plan, so the plan is the grid.
+    plannedCount: grid.length,
     simulated: true,
     benchName: 'simulated bench 1',
     request: {

@@ -30,6 +30,14 @@ describe('run record', () => {
     expect(r.run.pointCount).toBe(41);
   });
 
+  it('counts planned and refinement points apart, never more points "of" the plan than it has', async () => {
+    // 10 Hz … 1 MHz at 8 a decade is 41 planned points; two refinement points near the corner are stored after them.
+    const html = await text(record({ refinementHz: [950, 1100] }), 'html');
+    expect(html).toContain('41 planned + 2 refinement');
+    expect(html).not.toMatch(/43 of 41/);
+    expect(await text(record(), 'html')).toContain('41 planned');
+  });
+
   it('digest is SHA-256 of the documented canonical JSON (cross-checked with node:crypto)', () => {
     const r = record();
     const expected = createHash('sha256').update(canonicalJson(runDigestInput(r)), 'utf8').digest('hex');
