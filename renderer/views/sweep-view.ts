@@ -15,7 +15,7 @@ import { guarded, showError } from '../notices';
 import { BodePlot } from '../plot/bode-plot';
 import type { View } from '../shell';
 import type { AppState } from '../state';
-import { FIGURE_NAMES } from '../../app/contract/vocabulary';
+import { FIGURE_NAMES, pointCountText } from '../../app/contract/vocabulary';
 
 const EVENTS_KEPT = 300;
 
@@ -228,7 +228,8 @@ export class SweepView implements View {
     if (detail.kind === 'dc') void this.showDcTheory(detail);
     for (const event of detail.events.slice(-EVENTS_KEPT)) this.appendEvent(event.at, event.level, event.message);
     this.applySummary(detail);
-    this.applyProgress({ runId: detail.id, step: detail.pointCount, total: detail.plannedCount, etaS: NaN, status: detail.status });
+    // Refinement points come after the plan, so the stored run may hold more points than it planned.
+    this.applyProgress({ runId: detail.id, step: detail.pointCount, total: Math.max(detail.plannedCount, detail.pointCount), etaS: NaN, status: detail.status });
   }
 
   private replacePlot(kind: RunDetail['kind']): void {
@@ -255,7 +256,9 @@ export class SweepView implements View {
     this.progress.max = Math.max(1, progress.total);
     this.progress.value = Math.min(progress.step, progress.total);
     const eta = progress.status === 'running' && Number.isFinite(progress.etaS) ? `, about ${formatDuration(progress.etaS)} left` : '';
-    this.progressText.textContent = `${progress.step} of ${progress.total} points${eta} (${progress.status})`;
+    // Counted from the points shown (each flagged planned or refinement), so the words match the plot.
+    const flags = this.live?.runId === progress.runId ? this.live.flags : [];
+    this.progressText.textContent = `Points: ${pointCountText(this.run.plannedCount, flags)}${eta} (${progress.status})`;
     if (progress.status !== this.run.status) this.applySummary({ ...this.run, status: progress.status, pointCount: progress.step });
   }
 

@@ -6,18 +6,16 @@
  * Bode plot's −3 dB labels of theory and measurement — a few pixels apart —
  * both read, their boxes apart.
  *
- * The stage: inverting low-pass, RN 1 kΩ, RF 10 kΩ, CF 15 nF: −3 dB at
- * 1/(2π·RF·CF) ≈ 1.06 kHz (handbook single-pole corner), inside 100 Hz – 20 kHz.
+ * The stage: the low-pass of helpers/low-pass-bench.ts, −3 dB at ≈ 1.06 kHz.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdirSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { Page } from 'playwright-core';
-import { launchChromium } from './helpers/chromium';
 import { requireTool } from '../helpers/required-tool';
-import { callService, startServe, type ServeProcess } from './helpers/serve-process';
+import { callService, type ServeProcess } from './helpers/serve-process';
+import { startLowPassBench, type LowPassBench } from './helpers/low-pass-bench';
 import { boxesOverlap } from '../helpers/boxes';
-import { makeDesignFromTemplate } from '../../app/circuit';
 import { PointFlag, type Comparison, type RunDetail, type RunSummary } from '../../app/contract/contract';
 
 const ARTIFACTS = resolve(__dirname, '../artifacts');
@@ -56,18 +54,16 @@ function recordCanvasStrokes(): void {
 }
 
 describe.skipIf(!requireTool('chromium'))('what the plots draw, in Chromium against rolloff serve --simulated', () => {
+  let bench: LowPassBench;
   let serve: ServeProcess;
-  let browser: Awaited<ReturnType<typeof launchChromium>>;
   let page: Page;
   let run: RunDetail;
 
   beforeAll(async () => {
     mkdirSync(ARTIFACTS, { recursive: true });
-    serve = await startServe(['--simulated', '--time-scale', '10', '--max-amplitude', '2']);
-    const design = await callService<{ id: number }>(serve, 'saveDesign', [{ ...makeDesignFromTemplate('inverting-lowpass', { rn: 1e3, rf: 10e3, cf: 15e-9 }), name: 'Low-pass, corner 1.06 kHz (invented example)' }]);
-    const build = await callService<{ id: number }>(serve, 'createBuild', [{ designId: design.id, label: 'plot board', notes: 'invented example', actualValues: {} }]);
-    await callService(serve, 'startSimulatedBench', [design.id]);
-    const request = { buildId: build.id, kind: 'ac', from: 100, to: 20_000, pointsPerDecade: 5, spacing: 'log', amplitude: { mode: 'auto' }, measurement: 'scope', minCycles: 3, averages: 1, refine: true, operator: 'e2e', notes: '' };
+    bench = await startLowPassBench('plot board', { beforeWindowLoads: (newPage) => newPage.addInitScript(recordCanvasStrokes) });
+    ({ serve, page } = bench);
+    const request = { buildId: bench.buildId, kind: 'ac', from: 100, to: 20_000, pointsPerDecade: 5, spacing: 'log', amplitude: { mode: 'auto' }, measurement: 'scope', minCycles: 3, averages: 1, refine: true, operator: 'e2e', notes: '' };
     const started = await callService<RunSummary>(serve, 'startRun', [request]);
     for (let i = 0; i < 1200; i++) {
       const summary = (await callService<RunSummary[]>(serve, 'listRuns', [])).find((r) => r.id === started.id);
@@ -75,17 +71,10 @@ describe.skipIf(!requireTool('chromium'))('what the plots draw, in Chromium agai
       await new Promise((r) => setTimeout(r, 100));
     }
     run = await callService<RunDetail>(serve, 'getRun', [started.id]);
-    browser = await launchChromium({ width: 1280, height: 800 });
-    page = await browser.context.newPage();
-    await page.addInitScript(recordCanvasStrokes);
-    await page.goto(serve.url);
-    await page.getByTestId('safety-ok').click();
-    await page.locator('.nav-button').first().waitFor();
   });
 
   afterAll(async () => {
-    await browser?.close();
-    await serve?.stop();
+    await bench?.stop();
   });
 
   it('the run has refinement points stored after the grid (the case that drew lines backwards)', () => {
