@@ -7,7 +7,7 @@
 import uPlot from 'uplot';
 import type { AlignedColumns } from '../model/aligned-series';
 import { formatEngineering } from '../../app/units';
-import { placeMarkerLabels } from './marker-label-placement';
+import { placeMarkerLabels } from '../../app/plot-layout/marker-label-placement';
 
 /** The marker labels' font, as styles.css sets it on .marker-label (measured on the canvas to place them). */
 const MARKER_LABEL_FONT = '11px system-ui, sans-serif';

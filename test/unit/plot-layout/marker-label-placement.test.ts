@@ -1,11 +1,11 @@
 /**
- * Placing marker labels so each one reads (renderer/plot/marker-label-placement.ts).
+ * Placing marker labels so each one reads (app/plot-layout/marker-label-placement.ts).
  * Positions are worked by hand from the rule: right of the line by the offset,
  * left of it where the label would pass the right edge, in the first row it
  * clears by the gap — common practice, no source.
  */
 import { describe, expect, it } from 'vitest';
-import { placeMarkerLabels, type LabelToPlace } from '../../../renderer/plot/marker-label-placement';
+import { placeMarkerLabels, type LabelToPlace } from '../../../app/plot-layout/marker-label-placement';
 import { boxesOverlap } from '../../helpers/boxes';
 
 const AREA = { width: 800, offset: 4, gap: 6 };

@@ -4,29 +4,31 @@
  * the plot's right edge), in the top row where its box clears every label
  * already placed. Labels of markers far apart share the top row; labels of
  * close markers (the −3 dB point of theory and of the measurement, say)
- * stack instead of covering each other. Pure: CSS pixels in, CSS pixels out.
+ * stack instead of covering each other. The window's charts and the records'
+ * PDF and SVG plots all place their labels here. Pure, and in one unit
+ * throughout: CSS pixels in the window, points or SVG units in a record.
  */
 
 export interface LabelToPlace {
-  /** x of the marker line from the plot area's left edge (px). */
+  /** x of the marker line from the plot area's left edge. */
   lineX: number;
-  /** Width of the label's box (px). */
+  /** Width of the label's box. */
   width: number;
 }
 
 export interface PlacedLabel {
-  /** Left edge of the label's box from the plot area's left edge (px). */
+  /** Left edge of the label's box from the plot area's left edge. */
   left: number;
   /** 0 for the top row, 1 below it, … */
   row: number;
 }
 
 export interface LabelArea {
-  /** Width of the plot area (px). */
+  /** Width of the plot area. */
   width: number;
-  /** Space between a line and its label (px). */
+  /** Space between a line and its label. */
   offset: number;
-  /** Least space between two labels in one row (px). */
+  /** Least space between two labels in one row. */
   gap: number;
 }
 
