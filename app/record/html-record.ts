@@ -5,7 +5,7 @@
  */
 import { escapeHtml } from './html-escape';
 import type { Block, RecordDocument } from './record-document';
-import { svgPlot } from './svg-plot';
+import { SVG_MARKER_LABEL_FONT_PX, svgPlot } from './svg-plot';
 
 const STYLE = `
 body{font-family:system-ui,-apple-system,"Segoe UI",sans-serif;margin:24px auto;max-width:1000px;color:#111;padding:0 16px}
@@ -20,7 +20,7 @@ pre{background:#f7f7f7;border:1px solid #ddd;padding:8px;font-size:0.8em;max-hei
 svg.plot{max-width:100%;height:auto;display:block;margin:8px 0}
 svg .grid-major{stroke:#b5b5b5;stroke-width:0.8}svg .grid-minor{stroke:#e3e3e3;stroke-width:0.6}
 svg text{font-family:sans-serif;font-size:11px}svg .plot-title{font-weight:700;font-size:13px}
-svg .marker-label{font-size:9px}svg .legend{font-size:10px}
+svg .marker-label{font-size:${SVG_MARKER_LABEL_FONT_PX}px}svg .legend{font-size:10px}
 footer{margin-top:32px;font-size:0.8em;color:#555;border-top:1px solid #ccc;padding-top:6px}
 @media print{pre{max-height:none}}
 `;

@@ -6,6 +6,7 @@ import type { PdfFontSet } from './pdf-fonts';
 type Doc = InstanceType<typeof PDFDocument>;
 
 export const PDF_PLOT_HEIGHT = 250;
+const MARKER_LABEL_FONT_PT = 5.5;
 
 function polyline(doc: Doc, path: XY[]): void {
   doc.moveTo(path[0].x, path[0].y);
@@ -23,8 +24,10 @@ function label(doc: Doc, fonts: PdfFontSet, text: string, x: number, y: number, 
 export function drawPdfPlot(doc: Doc, fonts: PdfFontSet, spec: PlotSpec, left: number, top: number, width: number): void {
   const legendWidth = 150;
   const frame: Frame = { left: left + 46, top: top + 18, width: width - legendWidth - 60, height: PDF_PLOT_HEIGHT - 58 };
-  const layout = layoutPlot(spec, frame);
   doc.save();
+  // Marker labels are measured in the font they are drawn in, so the placement holds on the page.
+  doc.font(fonts.regular).fontSize(MARKER_LABEL_FONT_PT);
+  const layout = layoutPlot(spec, frame, { widthOf: (text) => doc.widthOfString(fonts.printable(text)), lineHeight: doc.currentLineHeight() });
   doc.font(fonts.bold).fontSize(9).fillColor('#000');
   label(doc, fonts, spec.title, frame.left, top + 2);
 
@@ -51,11 +54,11 @@ export function drawPdfPlot(doc: Doc, fonts: PdfFontSet, spec: PlotSpec, left: n
     if (line.dashed) doc.undash();
   }
   doc.lineWidth(0.6).dash(2, { space: 2 });
-  doc.font(fonts.regular).fontSize(5.5);
+  doc.font(fonts.regular).fontSize(MARKER_LABEL_FONT_PT);
   for (const marker of layout.markers) {
     doc.moveTo(marker.from.x, marker.from.y).lineTo(marker.to.x, marker.to.y).strokeColor(marker.color).stroke();
     doc.fillColor(marker.color);
-    label(doc, fonts, marker.label, marker.labelAt.x, marker.labelAt.y - 6, marker.labelAnchor === 'end' ? 'right' : 'left');
+    label(doc, fonts, marker.label, marker.labelBox.left, marker.labelBox.top);
   }
   doc.undash().lineWidth(0.6);
   for (const series of layout.points) {

@@ -5,6 +5,7 @@
  */
 import { axisFraction, type Axis } from './plot-axes';
 import type { MaybeNumber } from './model';
+import { placeMarkerLabels } from '../plot-layout/marker-label-placement';
 
 export type SeriesStyle = 'line' | 'dashed' | 'points';
 
@@ -56,6 +57,17 @@ export interface XY {
   y: number;
 }
 
+/** How a writer sizes marker labels in its own font and unit, so their places hold on its page. */
+export interface MarkerLabelMetrics {
+  /** Width of a label's text as the writer draws it. */
+  widthOf(text: string): number;
+  /** Height of the text's line box. */
+  lineHeight: number;
+}
+
+/** Space between a marker line and its label, between two labels in a row, and between rows (page units). */
+const MARKER_LABEL_SPACING = { offset: 2, gap: 3, row: 1 };
+
 export interface PlotLayout {
   frame: Frame;
   grid: Array<{ from: XY; to: XY; major: boolean }>;
@@ -64,11 +76,12 @@ export interface PlotLayout {
   bands: Array<{ color: string; polygons: XY[][] }>;
   lines: Array<{ color: string; dashed: boolean; paths: XY[][] }>;
   points: Array<{ color: string; dots: XY[]; errorBars: Array<[XY, XY]> }>;
-  markers: Array<{ color: string; from: XY; to: XY; label: string; labelAt: XY; labelAnchor: 'start' | 'end' }>;
+  /** Each label's box: its text starts at the box's left edge, the box's top is the top of its line. */
+  markers: Array<{ color: string; from: XY; to: XY; label: string; labelBox: Frame }>;
   legend: Array<{ name: string; color: string; style: SeriesStyle | 'band' | 'marker' }>;
 }
 
-export function layoutPlot(spec: PlotSpec, frame: Frame): PlotLayout {
+export function layoutPlot(spec: PlotSpec, frame: Frame, labelMetrics: MarkerLabelMetrics): PlotLayout {
   const toX = (value: MaybeNumber) => frame.left + axisFraction(spec.x, value) * frame.width;
   const toY = (value: MaybeNumber) => frame.top + (1 - axisFraction(spec.y, value)) * frame.height;
   const clampY = (y: number) => Math.min(frame.top + frame.height, Math.max(frame.top, y));
@@ -151,22 +164,26 @@ export function layoutPlot(spec: PlotSpec, frame: Frame): PlotLayout {
     }
   }
 
-  const markers: PlotLayout['markers'] = [];
-  spec.markers.forEach((marker, i) => {
-    const x = toX(marker.x);
-    if (!Number.isFinite(x) || x < frame.left || x > frame.left + frame.width) return;
-    // Stagger labels down the plot so neighbouring markers stay readable; near the right
-    // edge the label goes left of its line so it stays inside the frame.
-    const nearRightEdge = x > frame.left + frame.width * 0.7;
-    markers.push({
-      color: marker.color,
-      from: { x, y: frame.top },
-      to: { x, y: bottom },
-      label: marker.label,
-      labelAt: { x: nearRightEdge ? x - 2 : x + 2, y: frame.top + 10 + (i % 4) * 10 },
-      labelAnchor: nearRightEdge ? 'end' : 'start',
-    });
-  });
+  const shownMarkers = spec.markers
+    .map((marker) => ({ marker, x: toX(marker.x), width: labelMetrics.widthOf(marker.label) }))
+    .filter(({ x }) => Number.isFinite(x) && x >= frame.left && x <= frame.left + frame.width);
+  // One placement for the window's charts and the records: beside its line, in the first row its box clears.
+  const places = placeMarkerLabels(
+    shownMarkers.map(({ x, width }) => ({ lineX: x - frame.left, width })),
+    { width: frame.width, offset: MARKER_LABEL_SPACING.offset, gap: MARKER_LABEL_SPACING.gap },
+  );
+  const markers: PlotLayout['markers'] = shownMarkers.map(({ marker, x, width }, i) => ({
+    color: marker.color,
+    from: { x, y: frame.top },
+    to: { x, y: bottom },
+    label: marker.label,
+    labelBox: {
+      left: frame.left + places[i].left,
+      top: frame.top + MARKER_LABEL_SPACING.offset + places[i].row * (labelMetrics.lineHeight + MARKER_LABEL_SPACING.row),
+      width,
+      height: labelMetrics.lineHeight,
+    },
+  }));
 
   const legend: PlotLayout['legend'] = [
     ...spec.bands.map((b) => ({ name: b.name, color: b.color, style: 'band' as const })),

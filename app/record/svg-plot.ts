@@ -8,11 +8,30 @@ const LEGEND_CHARACTERS = 34;
 const HEIGHT = 360;
 const FRAME = { left: 64, top: 28, width: 500, height: 280 };
 
+/** Marker labels' font size (px); the record's style sheet sets it from here. */
+export const SVG_MARKER_LABEL_FONT_PX = 9;
+/**
+ * The SVG is drawn by whatever the reader opens it with, in whatever sans-serif
+ * it has, so a label's width cannot be measured here. Each label is given a
+ * width from its length, generous for common sans-serif faces (about 0.5 em a
+ * character on average; common practice, no source), and is drawn to exactly
+ * that width (textLength), so the boxes placed are the boxes drawn.
+ */
+const SVG_MARKER_LABEL_EM_PER_CHARACTER = 0.56;
+/** Line box of a label: ascent plus descent of common sans-serif faces, about 1.17 em (common practice, no source). */
+const SVG_MARKER_LABEL_LINE_PX = Math.ceil(SVG_MARKER_LABEL_FONT_PX * 1.2);
+/** Baseline below the top of the line box: the ascent, about 0.93 em. */
+const SVG_MARKER_LABEL_BASELINE_PX = SVG_MARKER_LABEL_FONT_PX * 0.93;
+const SVG_MARKER_LABEL_METRICS = {
+  widthOf: (text: string) => [...text].length * SVG_MARKER_LABEL_FONT_PX * SVG_MARKER_LABEL_EM_PER_CHARACTER,
+  lineHeight: SVG_MARKER_LABEL_LINE_PX,
+};
+
 const num = (v: number) => Number(v.toFixed(2)).toString();
 const pointsAttr = (path: XY[]) => path.map((p) => `${num(p.x)},${num(p.y)}`).join(' ');
 
 export function svgPlot(spec: PlotSpec): string {
-  const layout = layoutPlot(spec, FRAME);
+  const layout = layoutPlot(spec, FRAME, SVG_MARKER_LABEL_METRICS);
   const out: string[] = [];
   out.push(`<svg xmlns="http://www.w3.org/2000/svg" class="plot" viewBox="0 0 ${WIDTH} ${HEIGHT}" width="${WIDTH}" height="${HEIGHT}" role="img" aria-label="${escapeHtml(spec.title)}">`);
   out.push(`<text x="${FRAME.left}" y="16" class="plot-title">${escapeHtml(spec.title)}</text>`);
@@ -27,7 +46,10 @@ export function svgPlot(spec: PlotSpec): string {
   }
   for (const marker of layout.markers) {
     out.push(`<line x1="${num(marker.from.x)}" y1="${num(marker.from.y)}" x2="${num(marker.to.x)}" y2="${num(marker.to.y)}" stroke="${marker.color}" stroke-width="1" stroke-dasharray="2 2"/>`);
-    out.push(`<text x="${num(marker.labelAt.x)}" y="${num(marker.labelAt.y)}" text-anchor="${marker.labelAnchor}" class="marker-label" fill="${marker.color}">${escapeHtml(marker.label)}</text>`);
+    const box = marker.labelBox;
+    out.push(
+      `<text x="${num(box.left)}" y="${num(box.top + SVG_MARKER_LABEL_BASELINE_PX)}" textLength="${num(box.width)}" lengthAdjust="spacing" class="marker-label" fill="${marker.color}">${escapeHtml(marker.label)}</text>`,
+    );
   }
   for (const series of layout.points) {
     for (const [a, b] of series.errorBars) out.push(`<line x1="${num(a.x)}" y1="${num(a.y)}" x2="${num(b.x)}" y2="${num(b.y)}" stroke="${series.color}" stroke-width="1"/>`);

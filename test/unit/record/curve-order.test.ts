@@ -47,7 +47,7 @@ describe('measured curves with refinement points stored last', () => {
         const stored = runA.points.gainDb[runA.points.stimulus.indexOf(950)];
         expect(runSeries[0].ys[runSeries[0].xs.indexOf(950)]).toBe(stored);
         // The drawn path (what the SVG and PDF writers stroke) runs left to right.
-        const layout = layoutPlot(overlay, { left: 0, top: 0, width: 600, height: 300 });
+        const layout = layoutPlot(overlay, { left: 0, top: 0, width: 600, height: 300 }, { widthOf: (text) => text.length * 5, lineHeight: 10 });
         for (const line of layout.lines) for (const path of line.paths) expect(nonDecreasing(path.map((p) => p.x))).toBe(true);
       }
     });
