@@ -10,7 +10,7 @@
  * only be used before the ready event"); the rest — common practice, no source.
  */
 import { afterAll, describe, expect, it } from 'vitest';
-import { readFileSync } from 'node:fs';
+import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { CALL_CHANNEL } from '../../../main/channels';
@@ -31,18 +31,22 @@ describe('the main process, bundled, on a stand-in for Electron', () => {
     const { outDir } = shell;
     const journal = electronJournal();
     const argv = process.argv;
-    process.argv = [...argv, '--db', join(shell.root, 'bench.sqlite')];
+    // main.ts reads --db once the app is ready, so the argument stays until the window has loaded
+    // (restored earlier, the shell would open the user's own database in the per-user data folder).
+    const database = join(shell.root, 'bench.sqlite');
+    process.argv = [...argv, '--db', database];
     try {
       await import(pathToFileURL(join(outDir, 'main.mjs')).href);
+      expect(journal.calls).toEqual(['protocol.registerSchemesAsPrivileged', 'app.whenReady']);
+      expect(journal.privilegedSchemes).toEqual([{ scheme: 'rolloff', privileges: { standard: true, secure: true } }]);
+
+      journal.becomeReady();
+      await until(() => journal.loadedUrls.length > 0 || journal.exitCode !== undefined, 'the window to load');
     } finally {
       process.argv = argv;
     }
-    expect(journal.calls).toEqual(['protocol.registerSchemesAsPrivileged', 'app.whenReady']);
-    expect(journal.privilegedSchemes).toEqual([{ scheme: 'rolloff', privileges: { standard: true, secure: true } }]);
-
-    journal.becomeReady();
-    await until(() => journal.loadedUrls.length > 0, 'the window to load');
     expect(journal.exitCode).toBeUndefined();
+    expect(existsSync(database)).toBe(true);
     expect(journal.calls.indexOf('protocol.handle(rolloff)')).toBeGreaterThan(journal.calls.indexOf('app.whenReady'));
     expect(journal.calls.indexOf('protocol.handle(rolloff)')).toBeLessThan(journal.calls.indexOf('window.loadURL'));
     expect(journal.loadedUrls).toEqual(['rolloff://app/index.html']);
