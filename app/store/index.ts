@@ -5,5 +5,5 @@ export * from './errors';
 export * from './types';
 export { defaultDatabasePath, resolveDatabasePath, userDataFolder, DATABASE_FILE_NAME } from './paths';
 export { loadMigrations, type Migration } from './migrations';
-export { migrationsFolder, migrationsRoot, type MigrationsDialect } from './migrations-folder';
+export { migrationsFolder, type MigrationsDialect } from './migrations-folder';
 export type * from './store-interface';
