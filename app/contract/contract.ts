@@ -153,6 +153,8 @@ export interface TemplateInfo {
 /** A design as stored: the JSON design file plus its store id. */
 export interface DesignRecord {
   id: number;
+  /** Stable identity (a UUID made when the design was first stored), the same in every store it is copied to. */
+  uid: string;
   name: string;
   /** The design file's JSON (see app/circuit for its schema). */
   design: unknown;
@@ -161,6 +163,8 @@ export interface DesignRecord {
 
 export interface BuildRecord {
   id: number;
+  /** Stable identity (a UUID made when the build was first stored), the same in every store it is copied to. */
+  uid: string;
   designId: number;
   label: string;
   notes: string;
@@ -386,6 +390,8 @@ export interface Verdict {
 
 export interface RunSummary {
   id: number;
+  /** Stable identity (a UUID made when the run was created), the same in every store it is copied to. */
+  uid: string;
   buildId: number;
   buildLabel: string;
   designName: string;
@@ -398,6 +404,12 @@ export interface RunSummary {
   simulated: boolean;
   /** The bench that drove the run; '' for runs stored before benches had names. */
   benchName: string;
+}
+
+/** A time the bench driving a run could not reach its store and kept the points in its local outbox (ISO 8601 instants). */
+export interface OfflinePeriod {
+  from: string;
+  to: string;
 }
 
 export interface RunEvent {
@@ -415,6 +427,8 @@ export interface RunDetail extends RunSummary {
   figures: RunFigures;
   verdict: Verdict | null;
   events: RunEvent[];
+  /** When the bench could not reach the store during the run, oldest first; [] when it never lost it. */
+  offlinePeriods: OfflinePeriod[];
   theoryGainLimitHz?: number;
   theoryMinus3dbHz: number[];
 }

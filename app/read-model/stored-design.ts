@@ -2,7 +2,7 @@
 import { type Design, parseDesign, withActualValues } from '../circuit';
 import type { BuildRecord, DesignRecord } from '../contract/contract';
 
-export function designOf(record: DesignRecord): Design {
+export function designOf(record: Pick<DesignRecord, 'id' | 'name' | 'design'> & Partial<DesignRecord>): Design {
   return parseDesign(record.design, `design ${record.id} (${record.name})`);
 }
 

@@ -4,9 +4,9 @@
  * same ValidationError naming the same field.
  */
 import { ValidationError } from '../errors';
-import { RUN_STATUSES, type RunEvent, type RunStatus } from '../contract/contract';
+import { RUN_STATUSES, type OfflinePeriod, type RunEvent, type RunStatus } from '../contract/contract';
 import { checkBenchName } from '../bench/bench-name';
-import type { BenchSettingsInput, NewCalibration, NewPoint, NewRun, NewSchedule, RunClaimant, RunFilter } from './types';
+import type { BenchSettingsInput, NewCalibration, NewPoint, NewRun, NewSchedule, RunClaimant, RunFilter, RunImport } from './types';
 
 /** The one list of run states lives in the contract; re-exported for the store's checks. */
 export { RUN_STATUSES };
@@ -216,4 +216,41 @@ export function checkRunClaimant(claimant: RunClaimant, staleAfterMs: number): R
 export function checkStaleAfter(staleAfterMs: number): number {
   if (!Number.isFinite(staleAfterMs) || staleAfterMs <= 0) throw new ValidationError('staleAfterMs', 'must be a positive number of milliseconds');
   return staleAfterMs;
+}
+
+/** RFC 4122 text form (8-4-4-4-12 hex digits), the form both stores keep a uid in. */
+const UID_FORM = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/;
+
+/** Stable ids as lower-case UUID text; anything else is refused naming it. */
+export function checkUids(uids: readonly string[]): string[] {
+  return uids.map((uid, index) => {
+    const text = typeof uid === 'string' ? uid.toLowerCase() : '';
+    if (!UID_FORM.test(text)) throw new ValidationError(`uids[${index}]`, `"${String(uid)}" is not a UUID`, 'Stable ids are RFC 4122 UUIDs, e.g. 0b7a6c9e-2f4d-4a51-9c3e-8d1f2a3b4c5d.');
+    return text;
+  });
+}
+
+/** An ISO 8601 instant (any offset) as UTC text; anything else is refused naming `where`. */
+export function checkInstant(text: string, where: string): string {
+  const ms = Date.parse(text);
+  if (typeof text !== 'string' || Number.isNaN(ms)) throw new ValidationError(where, `"${text}" is not a date and time`, 'Use ISO 8601, e.g. 2026-12-02T06:00:00Z.');
+  return new Date(ms).toISOString();
+}
+
+/** An offline period with both ends ISO 8601 instants (UTC text) and from ≤ to. */
+export function checkOfflinePeriod(period: OfflinePeriod): OfflinePeriod {
+  const from = checkInstant(period?.from, 'offlinePeriod.from');
+  const to = checkInstant(period?.to, 'offlinePeriod.to');
+  if (to < from) throw new ValidationError('offlinePeriod', `ends (${period.to}) before it begins (${period.from})`);
+  return { from, to };
+}
+
+/** What importRuns checks before any row is written, the same in both stores. */
+export function checkRunImports(runs: readonly RunImport[]): void {
+  runs.forEach(({ run, points }, r) => {
+    checkUids([run.uid]);
+    checkRunKind(run.kind);
+    checkRunStatus(run.status);
+    points.forEach((point, index) => checkPoint(point, `runs[${r}].points[${index}]`));
+  });
 }

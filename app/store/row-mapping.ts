@@ -5,8 +5,8 @@
  * ColumnReading. Timestamps already arrive as ISO 8601 text from both (the
  * PostgreSQL store's type parser turns timestamptz into it).
  */
-import type { BuildRecord, DesignRecord, PointColumns, RunStatus, RunSummary } from '../contract/contract';
-import type { BenchSettings, CalibrationRecord, InstrumentRecord, NewPoint, RunOwnership, ScheduleRecord, StoredRun } from './types';
+import type { BuildRecord, DesignRecord, OfflinePeriod, PointColumns, RunStatus, RunSummary } from '../contract/contract';
+import type { BenchSettings, CalibrationRecord, InstrumentRecord, NewPoint, RunOwnership, ScheduleRecord, StoredPoint, StoredRun } from './types';
 
 export type Row = Record<string, unknown>;
 
@@ -27,7 +27,7 @@ export interface RowMapping {
   schedule(row: Row): ScheduleRecord;
   benchSettings(row: Row): BenchSettings;
   runSummary(row: Row): RunSummary;
-  /** A runs row joined with its plan (plan_json), build label and design name. */
+  /** A runs row joined with its plan (plan_json), build label, design name and offline periods (offline_json, a JSON array of {from, to}). */
   storedRun(row: Row): StoredRun;
 }
 
@@ -35,6 +35,7 @@ export function rowMapping(read: ColumnReading): RowMapping {
   const jsonOrNull = (value: unknown) => (value === null || value === undefined ? null : read.json(value));
   const runSummary = (row: Row): RunSummary => ({
     id: row.id as number,
+    uid: row.uid as string,
     buildId: row.build_id as number,
     buildLabel: row.build_label as string,
     designName: row.design_name as string,
@@ -48,9 +49,10 @@ export function rowMapping(read: ColumnReading): RowMapping {
     benchName: (row.bench_name as string | null) ?? '',
   });
   return {
-    design: (row) => ({ id: row.id as number, name: row.name as string, design: read.json(row.design_json), createdAt: row.created_at as string }),
+    design: (row) => ({ id: row.id as number, uid: row.uid as string, name: row.name as string, design: read.json(row.design_json), createdAt: row.created_at as string }),
     build: (row) => ({
       id: row.id as number,
+      uid: row.uid as string,
       designId: row.design_id as number,
       label: row.label as string,
       notes: row.notes as string,
@@ -98,6 +100,11 @@ export function rowMapping(read: ColumnReading): RowMapping {
       createdAt: row.created_at as string,
       figures: jsonOrNull(row.figures_json) as StoredRun['figures'],
       verdict: jsonOrNull(row.verdict_json) as StoredRun['verdict'],
+      // Instants as the stores write them everywhere else: ISO 8601 UTC with milliseconds.
+      offlinePeriods: ((jsonOrNull(row.offline_json) as OfflinePeriod[] | null) ?? []).map((period) => ({
+        from: new Date(Date.parse(period.from)).toISOString(),
+        to: new Date(Date.parse(period.to)).toISOString(),
+      })),
     }),
   };
 }
@@ -112,6 +119,24 @@ export function ownershipFromRow(row: Row): RunOwnership | undefined {
     label: String(row.owner_label),
     since: new Date(Number(row.owner_since_ms)).toISOString(),
     heartbeatAt: new Date(Number(row.owner_heartbeat_ms)).toISOString(),
+  };
+}
+
+/** A points row (both stores' column names, the time as epoch milliseconds in measured_at_ms) as a StoredPoint, for exportRun. */
+export function storedPointFromRow(row: Row): StoredPoint {
+  return {
+    step: row.step as number,
+    stimulus: row.stimulus as number,
+    amplitudeVpp: row.amplitude_vpp as number,
+    inputReading: numberOrNaN(row.input_reading),
+    outputReading: numberOrNaN(row.output_reading),
+    gainDb: numberOrNaN(row.gain_db),
+    gainUncertaintyDb: numberOrNaN(row.gain_u_db),
+    phaseDeg: numberOrNaN(row.phase_deg),
+    phaseUncertaintyDeg: numberOrNaN(row.phase_u_deg),
+    outputV: numberOrNaN(row.output_v),
+    flags: row.flags as number,
+    measuredAt: new Date(Math.round(row.measured_at_ms as number)).toISOString(),
   };
 }
 

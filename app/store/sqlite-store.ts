@@ -7,11 +7,13 @@
  */
 import { existsSync, mkdirSync, statSync } from 'node:fs';
 import { dirname } from 'node:path';
+import { randomUUID } from 'node:crypto';
 import Database from 'better-sqlite3';
 import type {
   BuildRecord,
   DesignRecord,
   PointColumns,
+  OfflinePeriod,
   RunEvent,
   RunFigures,
   RunStatus,
@@ -49,8 +51,13 @@ import {
   checkRunClaimant,
   checkStaleAfter,
   checkBenchToReserve,
+  checkOfflinePeriod,
+  checkRunBenchName,
+  checkRunImports,
+  checkInstant,
+  checkUids,
 } from './record-checks';
-import { ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, type Row } from './row-mapping';
+import { ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, storedPointFromRow, type Row } from './row-mapping';
 import type { RolloffStore } from './store-interface';
 import type {
   BenchSettings,
@@ -66,6 +73,13 @@ import type {
   NewSchedule,
   PointBatch,
   RunFilter,
+  BuildImport,
+  DesignImport,
+  RunImport,
+  RunTransfer,
+  ScheduleImport,
+  StoredPoint,
+  UidKind,
   ScheduleRecord,
   StoreOpenOptions,
   StoredRun,
@@ -222,10 +236,10 @@ export class SqliteStore implements RolloffStore {
   private prepareStatements() {
     const db = this.db;
     return {
-      insertDesign: db.prepare('INSERT INTO designs (name, design_json, created_at) VALUES (?, ?, ?)'),
+      insertDesign: db.prepare('INSERT INTO designs (uid, name, design_json, created_at) VALUES (?, ?, ?, ?)'),
       getDesign: db.prepare('SELECT * FROM designs WHERE id = ?'),
       listDesigns: db.prepare('SELECT * FROM designs ORDER BY id'),
-      insertBuild: db.prepare('INSERT INTO builds (design_id, label, notes, actual_values_json, created_at) VALUES (?, ?, ?, ?, ?)'),
+      insertBuild: db.prepare('INSERT INTO builds (uid, design_id, label, notes, actual_values_json, created_at) VALUES (?, ?, ?, ?, ?, ?)'),
       getBuild: db.prepare('SELECT * FROM builds WHERE id = ?'),
       listBuilds: db.prepare('SELECT * FROM builds WHERE (@designId IS NULL OR design_id = @designId) ORDER BY id'),
       upsertInstrument: db.prepare(`INSERT INTO instruments (role, identity_text, identity_json, address, first_seen_at, last_seen_at)
@@ -233,19 +247,32 @@ export class SqliteStore implements RolloffStore {
         ON CONFLICT (identity_text, address) DO UPDATE SET last_seen_at = excluded.last_seen_at, role = excluded.role`),
       getInstrument: db.prepare('SELECT * FROM instruments WHERE identity_text = ? AND address = ?'),
       listInstruments: db.prepare('SELECT * FROM instruments ORDER BY last_seen_at DESC, id DESC'),
-      insertRun: db.prepare(`INSERT INTO runs (build_id, kind, request_json, planned_count, status, created_at,
+      insertRun: db.prepare(`INSERT INTO runs (uid, build_id, kind, request_json, planned_count, status, created_at,
         software_version, bench_json, operator, notes, simulated, schedule_id, bench_name)
-        VALUES (?, ?, ?, ?, 'planned', ?, ?, ?, ?, ?, ?, ?, ?)`),
+        VALUES (?, ?, ?, ?, ?, 'planned', ?, ?, ?, ?, ?, ?, ?, ?)`),
+      // A copied run as it was: status, times, figures and verdict kept; nobody owns it; the point count grows with its points.
+      importRun: db.prepare(`INSERT INTO runs (uid, build_id, kind, request_json, planned_count, status, created_at, started_at, ended_at,
+        software_version, bench_json, operator, notes, simulated, schedule_id, bench_name, figures_json, verdict_json)
+        VALUES (@uid, @buildId, @kind, @request, @plannedCount, @status, @createdAt, @startedAt, @endedAt,
+        @softwareVersion, @bench, @operator, @notes, @simulated, @scheduleId, @benchName, @figures, @verdict)`),
+      importDesign: db.prepare('INSERT INTO designs (uid, name, design_json, created_at) VALUES (?, ?, ?, ?)'),
+      importSchedule: db.prepare(`INSERT INTO schedules (build_id, request_json, every_minutes, run_count, until_at, created_at) VALUES (?, ?, ?, ?, ?, ?)`),
+      exportPoints: db.prepare(`SELECT step, stimulus, amplitude_vpp, input_reading, output_reading, gain_db, gain_u_db, phase_deg, phase_u_deg,
+        output_v, flags, measured_at_ms FROM points WHERE run_id = ? ORDER BY step`),
+      insertOfflinePeriod: db.prepare('INSERT INTO run_offline_periods (run_id, from_at, to_at) VALUES (?, ?, ?) ON CONFLICT (run_id, from_at) DO NOTHING'),
       insertPlan: db.prepare('INSERT INTO run_plans (run_id, plan_json) VALUES (?, ?)'),
       setStatus: db.prepare(`UPDATE runs SET status = @status,
         started_at = CASE WHEN @status = 'running' THEN COALESCE(started_at, @at) ELSE started_at END,
         ended_at = CASE WHEN @finished = 1 THEN @at WHEN @status = 'running' THEN NULL ELSE ended_at END
         WHERE id = @runId`),
       setResults: db.prepare('UPDATE runs SET figures_json = ?, verdict_json = ? WHERE id = ?'),
-      getRun: db.prepare(`SELECT r.*, p.plan_json, b.label AS build_label, d.name AS design_name FROM runs r
+      getRun: db.prepare(`SELECT r.*, p.plan_json, b.label AS build_label, d.name AS design_name,
+        (SELECT json_group_array(json_object('from', o.from_at, 'to', o.to_at)) FROM
+          (SELECT from_at, to_at FROM run_offline_periods WHERE run_id = r.id ORDER BY from_at) o) AS offline_json
+        FROM runs r
         JOIN run_plans p ON p.run_id = r.id
         JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id WHERE r.id = ?`),
-      listRuns: db.prepare(`SELECT r.id, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
+      listRuns: db.prepare(`SELECT r.id, r.uid, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
         r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated, r.bench_name
         FROM runs r JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id
         WHERE (@status IS NULL OR r.status = @status) AND (@buildId IS NULL OR r.build_id = @buildId)
@@ -311,7 +338,7 @@ export class SqliteStore implements RolloffStore {
     this.requireWritable();
     const name = checkDesignName(input.name);
     const createdAt = this.now();
-    const result = this.guard(() => this.statements.insertDesign.run(name, toJson(input.design, 'design'), createdAt));
+    const result = this.guard(() => this.statements.insertDesign.run(randomUUID(), name, toJson(input.design, 'design'), createdAt));
     return this.designById(Number(result.lastInsertRowid));
   }
 
@@ -335,7 +362,7 @@ export class SqliteStore implements RolloffStore {
     const label = checkBuildLabel(input.label);
     checkActualValues(input.actualValues);
     const result = this.guard(() =>
-      this.statements.insertBuild.run(input.designId, label, requireText(input.notes ?? '', 'build.notes'), toJson(input.actualValues ?? {}, 'build.actualValues'), this.now()),
+      this.statements.insertBuild.run(randomUUID(), input.designId, label, requireText(input.notes ?? '', 'build.notes'), toJson(input.actualValues ?? {}, 'build.actualValues'), this.now()),
     );
     return this.buildById(Number(result.lastInsertRowid));
   }
@@ -392,6 +419,7 @@ export class SqliteStore implements RolloffStore {
     this.buildById(run.buildId);
     if (run.scheduleId !== null) this.scheduleById(run.scheduleId);
     const result = this.statements.insertRun.run(
+      randomUUID(),
       run.buildId,
       run.kind,
       run.requestJson,
@@ -411,10 +439,11 @@ export class SqliteStore implements RolloffStore {
   }
 
   /** Moves a run to a status; first 'running' stamps the start, a finished status stamps the end. */
-  async updateRunStatus(runId: number, status: RunStatus): Promise<StoredRun> {
+  async updateRunStatus(runId: number, status: RunStatus, at?: string): Promise<StoredRun> {
     this.requireWritable();
     checkRunStatus(status);
-    const result = this.guard(() => this.statements.setStatus.run({ status, at: this.now(), finished: FINISHED_STATUSES.has(status) ? 1 : 0, runId: requireId(runId, 'runId') }));
+    const when = at === undefined ? this.now() : checkInstant(at, 'status.at');
+    const result = this.guard(() => this.statements.setStatus.run({ status, at: when, finished: FINISHED_STATUSES.has(status) ? 1 : 0, runId: requireId(runId, 'runId') }));
     if (result.changes === 0) throw new RecordNotFoundError('run', runId);
     return this.runById(runId);
   }
@@ -497,6 +526,90 @@ export class SqliteStore implements RolloffStore {
     const row = this.guard(() => this.statements.getOwner.get(requireId(runId, 'runId'))) as Row | undefined;
     if (!row) throw new RecordNotFoundError('run', runId);
     return ownershipFromRow(row);
+  }
+
+  async recordOfflinePeriod(runId: number, period: OfflinePeriod): Promise<void> {
+    this.requireWritable();
+    const { from, to } = checkOfflinePeriod(period);
+    this.runById(runId);
+    this.guard(() => this.statements.insertOfflinePeriod.run(runId, from, to));
+  }
+
+  // ── history transfer ───────────────────────────────────────────────────
+
+  async idsOfUids(kind: UidKind, uids: readonly string[]): Promise<Map<string, number>> {
+    const table = { design: 'designs', build: 'builds', run: 'runs' }[kind];
+    const found = new Map<string, number>();
+    const select = this.db.prepare(`SELECT id FROM ${table} WHERE uid = ?`);
+    for (const uid of checkUids(uids)) {
+      const row = this.guard(() => select.get(uid)) as { id: number } | undefined;
+      if (row) found.set(uid, row.id);
+    }
+    return found;
+  }
+
+  async exportRun(runId: number): Promise<RunTransfer> {
+    const run = this.runById(runId);
+    const rows = this.guard(() => this.statements.exportPoints.all(runId) as Row[]);
+    const points: StoredPoint[] = rows.map(storedPointFromRow);
+    return { run, points, events: await this.listEvents(runId) };
+  }
+
+  async importDesign(design: DesignImport): Promise<number> {
+    this.requireWritable();
+    const [uid] = checkUids([design.uid]);
+    const result = this.guard(() => this.statements.importDesign.run(uid, checkDesignName(design.name), toJson(design.design, 'design'), requireText(design.createdAt, 'design.createdAt')));
+    return Number(result.lastInsertRowid);
+  }
+
+  async importBuild(build: BuildImport): Promise<number> {
+    this.requireWritable();
+    const [uid] = checkUids([build.uid]);
+    this.designById(build.designId);
+    const result = this.guard(() =>
+      this.statements.insertBuild.run(uid, build.designId, checkBuildLabel(build.label), requireText(build.notes ?? '', 'build.notes'),
+        toJson(checkActualValues(build.actualValues), 'build.actualValues'), requireText(build.createdAt, 'build.createdAt')),
+    );
+    return Number(result.lastInsertRowid);
+  }
+
+  async importSchedule(schedule: ScheduleImport): Promise<number> {
+    this.requireWritable();
+    this.buildById(schedule.buildId);
+    const { count, until } = checkSchedule(schedule);
+    const result = this.guard(() =>
+      this.statements.importSchedule.run(schedule.buildId, toJson(schedule.request, 'schedule.request'), schedule.everyMinutes, count, until, requireText(schedule.createdAt, 'schedule.createdAt')),
+    );
+    return Number(result.lastInsertRowid);
+  }
+
+  async importRuns(runs: readonly RunImport[]): Promise<number[]> {
+    this.requireWritable();
+    checkRunImports(runs);
+    return this.guard(() =>
+      this.db.transaction(() =>
+        runs.map(({ run, points, events }) => {
+          this.buildById(run.buildId);
+          if (run.scheduleId !== null) this.scheduleById(run.scheduleId);
+          const id = Number(this.statements.importRun.run({
+            uid: run.uid, buildId: run.buildId, kind: run.kind, request: toJson(run.request, 'run.request'), plannedCount: run.plannedCount,
+            status: run.status, createdAt: run.createdAt, startedAt: run.startedAt, endedAt: run.endedAt,
+            softwareVersion: requireText(run.softwareVersion, 'run.softwareVersion'), bench: toJson(run.bench ?? [], 'run.bench'),
+            operator: run.operator, notes: run.notes, simulated: run.simulated ? 1 : 0, scheduleId: run.scheduleId, benchName: checkRunBenchName(run.benchName),
+            figures: run.figures === null ? null : toJson(run.figures, 'run.figures'), verdict: run.verdict === null ? null : toJson(run.verdict, 'run.verdict'),
+          }).lastInsertRowid);
+          this.statements.insertPlan.run(id, toJson(run.plan, 'run.plan'));
+          for (const point of points) this.bindPoint(id, point);
+          this.statements.countPoints.run(points.length, id);
+          for (const event of events) this.statements.insertEvent.run(id, event.at, checkEventLevel(event.level), event.message);
+          for (const period of run.offlinePeriods) {
+            const { from, to } = checkOfflinePeriod(period);
+            this.statements.insertOfflinePeriod.run(id, from, to);
+          }
+          return id;
+        }),
+      )(),
+    );
   }
 
   // ── points ─────────────────────────────────────────────────────────────

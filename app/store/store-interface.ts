@@ -21,6 +21,7 @@
  *   and a read-only store refuses every write with StoreUnavailableError.
  */
 import type {
+  OfflinePeriod,
   BuildRecord,
   DesignRecord,
   PointColumns,
@@ -44,6 +45,12 @@ import type {
   NewSchedule,
   OwnedRunResult,
   PointBatch,
+  BuildImport,
+  DesignImport,
+  RunImport,
+  RunTransfer,
+  ScheduleImport,
+  UidKind,
   RunClaimant,
   RunClaimResult,
   RunFilter,
@@ -73,8 +80,11 @@ export interface RunStore {
   createRun(input: NewRun): Promise<StoredRun>;
   /** Many runs in one transaction (imports, benchmarks); all or nothing, in input order. */
   createRuns(inputs: readonly NewRun[]): Promise<StoredRun[]>;
-  /** First 'running' stamps startedAt; a finished status (done, stopped, failed) stamps endedAt; 'running' again clears it. */
-  updateRunStatus(runId: number, status: RunStatus): Promise<StoredRun>;
+  /**
+   * First 'running' stamps startedAt; a finished status (done, stopped, failed) stamps endedAt; 'running' again clears it.
+   * `at` (ISO 8601) is when it happened, for a change sent late (the outbox); default now.
+   */
+  updateRunStatus(runId: number, status: RunStatus, at?: string): Promise<StoredRun>;
   setRunResults(runId: number, figures: RunFigures, verdict: Verdict | null): Promise<StoredRun>;
   getRun(runId: number): Promise<StoredRun>;
   /** Newest first, at most filter.limit (default 200). */
@@ -114,6 +124,12 @@ export interface RunStore {
   releaseRun(runId: number, ownerId: string): Promise<void>;
   /** The run's owner, or undefined when nobody drives it. */
   getRunOwnership(runId: number): Promise<RunOwnership | undefined>;
+  /**
+   * Notes that the run's bench could not reach the store from `from` to `to`
+   * (its outbox kept the points). Recording the same period again (same from)
+   * changes nothing, so a replay after a crash cannot double it.
+   */
+  recordOfflinePeriod(runId: number, period: OfflinePeriod): Promise<void>;
 }
 
 /** The measured steps of a run. */
@@ -165,6 +181,22 @@ export interface BenchSettingsStore {
   saveBenchSettings(benchKey: string, settings: BenchSettingsInput): Promise<BenchSettings>;
 }
 
+/**
+ * Moving history between stores (rolloff store copy, app/store/copy/): rows as
+ * they were, timestamps and stable ids (uid) kept, ids the target's own.
+ */
+export interface HistoryTransferStore {
+  /** This store's ids of the records with these uids (those it holds). */
+  idsOfUids(kind: UidKind, uids: readonly string[]): Promise<Map<string, number>>;
+  /** A run as stored, raw readings, events and offline periods included. */
+  exportRun(runId: number): Promise<RunTransfer>;
+  importDesign(design: DesignImport): Promise<number>;
+  importBuild(build: BuildImport): Promise<number>;
+  importSchedule(schedule: ScheduleImport): Promise<number>;
+  /** Runs with their points, events and offline periods, in one transaction: all or nothing; new ids in input order. */
+  importRuns(runs: readonly RunImport[]): Promise<number[]>;
+}
+
 /** Where the store is, its schema, and its end. */
 export interface StoreLifecycle {
   /** What the user named with --db: a file path, or a database URL without its password. */
@@ -200,6 +232,7 @@ export interface RolloffStore
     ScheduleStore,
     InstrumentStore,
     BenchSettingsStore,
+    HistoryTransferStore,
     StoreLifecycle {}
 
 /** The few methods the sweep runner uses: a fake of these is enough to drive it. */

@@ -3,7 +3,11 @@
  * type, the store returns it; these cover what only the service sees.
  */
 import type {
+  DesignRecord,
+  BuildRecord,
   InstrumentIdentity,
+  OfflinePeriod,
+  RunEvent,
   InstrumentInfo,
   InstrumentRole,
   RunFigures,
@@ -42,6 +46,8 @@ export interface StoredRun extends RunSummary {
   createdAt: string;
   figures: RunFigures | null;
   verdict: Verdict | null;
+  /** When the bench could not reach the store (its outbox held the points), oldest first. */
+  offlinePeriods: OfflinePeriod[];
 }
 
 export interface RunFilter {
@@ -209,3 +215,28 @@ export type RunClaimResult = { claimed: true; ownership: RunOwnership } | { clai
 export type OwnedRunResult =
   | { created: true; run: StoredRun; ownership: RunOwnership }
   | { created: false; benchHeldBy: { runId: number; ownership: RunOwnership } };
+// ── history transfer (rolloff store copy) ──────────────────────────────────
+
+/** A point as stored, raw readings and time included (NaN where nothing was read). */
+export interface StoredPoint extends NewPoint {
+  inputReading: number;
+  outputReading: number;
+  measuredAt: string;
+}
+
+/** Everything of one run a copy to another store keeps: the row as stored, its points, events and offline periods. */
+export interface RunTransfer {
+  run: StoredRun;
+  points: StoredPoint[];
+  events: RunEvent[];
+}
+
+/** A run to import: as exported, with buildId (and scheduleId, request.buildId) already the target store's ids. */
+export type RunImport = RunTransfer;
+
+export type DesignImport = Omit<DesignRecord, 'id'>;
+export type BuildImport = Omit<BuildRecord, 'id'>;
+export type ScheduleImport = Omit<ScheduleRecord, 'id'>;
+
+/** Which kind of record a stable id (uid) names. */
+export type UidKind = 'design' | 'build' | 'run';

@@ -20,6 +20,9 @@ export interface ConformanceCheck {
   run(open: OpenFreshStore): Promise<void>;
 }
 
+/** RFC 4122 §4.4 version 4 (random) UUID text: version nibble 4, variant bits 10. */
+const UUID_V4 = /^[0-9a-f]{8}-[0-9a-f]{4}-4[0-9a-f]{3}-[89ab][0-9a-f]{3}-[0-9a-f]{12}$/;
+
 /** Every check, in order. Each opens its own fresh store(s). */
 export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
   {
@@ -129,7 +132,8 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
     async run(open) {
       const store = await open({ now: () => '2026-02-03T04:05:06.000Z' });
       const { design, build } = await seedRun(store);
-      expect(design).toEqual({ id: design.id, name: 'inverting ×10 (demo, invented)', design: { parts: [{ id: 'R1', value: 1e3 }] }, createdAt: '2026-02-03T04:05:06.000Z' });
+      expect(design).toEqual({ id: design.id, uid: expect.stringMatching(UUID_V4), name: 'inverting ×10 (demo, invented)', design: { parts: [{ id: 'R1', value: 1e3 }] }, createdAt: '2026-02-03T04:05:06.000Z' });
+      expect(build.uid).toMatch(UUID_V4);
       expect(await store.getDesign(design.id)).toEqual(design);
       expect(await store.getBuild(build.id)).toEqual(build);
       expect(await store.listBuilds(design.id)).toEqual([build]);
@@ -371,6 +375,76 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
       await expect(store.createOwnedRun(onBench('bench 9'), claimants[3], 0)).rejects.toThrow(/staleAfterMs/);
       await expect(store.createOwnedRun(newRun(999, { benchName: 'bench 9' }), claimants[3], 10_000)).rejects.toThrow(RecordNotFoundError);
       expect((await store.createOwnedRun(onBench('bench 9'), claimants[3], 10_000)).created).toBe(true); // the refused one held nothing
+    },
+  },
+  {
+    name: 'gives every design, build and run its own stable id (uid), found again by idsOfUids',
+    async run(open) {
+      const store = await open();
+      const { design, build, run } = await seedRun(store);
+      const second = await store.createRun(newRun(build.id));
+      expect(run.uid).toMatch(UUID_V4);
+      expect(second.uid).not.toBe(run.uid);
+      expect((await store.listRuns()).map((r) => r.uid)).toEqual([second.uid, run.uid]);
+      expect(await store.idsOfUids('run', [run.uid, second.uid, '00000000-0000-4000-8000-000000000000'])).toEqual(new Map([[run.uid, run.id], [second.uid, second.id]]));
+      expect(await store.idsOfUids('design', [design.uid])).toEqual(new Map([[design.uid, design.id]]));
+      expect(await store.idsOfUids('build', [build.uid])).toEqual(new Map([[build.uid, build.id]]));
+      await expect(store.idsOfUids('run', ['run 7'])).rejects.toThrow(/not a UUID/);
+    },
+  },
+  {
+    name: 'records offline periods with the run, oldest first, the same period only once',
+    async run(open) {
+      const store = await open();
+      const { run } = await seedRun(store);
+      expect((await store.getRun(run.id)).offlinePeriods).toEqual([]);
+      const later = { from: '2026-01-01T00:10:00.000Z', to: '2026-01-01T00:12:30.500Z' };
+      const earlier = { from: '2026-01-01T00:01:00.000Z', to: '2026-01-01T00:01:05.000Z' };
+      await store.recordOfflinePeriod(run.id, later);
+      await store.recordOfflinePeriod(run.id, earlier);
+      await store.recordOfflinePeriod(run.id, later); // a replay after a crash
+      expect((await store.getRun(run.id)).offlinePeriods).toEqual([earlier, later]);
+      await expect(store.recordOfflinePeriod(run.id, { from: later.to, to: later.from })).rejects.toThrow(/before it begins/);
+      await expect(store.recordOfflinePeriod(999, earlier)).rejects.toThrow(RecordNotFoundError);
+    },
+  },
+  {
+    name: 'exports a run whole and imports it into another store unchanged but for its ids',
+    async run(open) {
+      let clock = 0;
+      const source = await open({ now: () => new Date(Date.UTC(2026, 0, 1, 0, 0, clock++)).toISOString() });
+      const { design, build, run } = await seedRun(source);
+      await source.updateRunStatus(run.id, 'running');
+      await source.insertPoint(run.id, point(0, { inputReading: 0.5, outputReading: 4.75 }));
+      await source.insertPoint(run.id, point(1, { gainDb: Number.NaN }));
+      await source.appendEvent(run.id, 'warning', 'invented warning');
+      await source.recordOfflinePeriod(run.id, { from: '2026-01-01T00:00:03.000Z', to: '2026-01-01T00:00:04.000Z' });
+      await source.updateRunStatus(run.id, 'done');
+      await source.setRunResults(run.id, { minus3dbHz: [1234.5] }, { pass: true, reasons: [] });
+      const exported = await source.exportRun(run.id);
+      expect(exported.points[0]).toMatchObject({ step: 0, inputReading: 0.5, outputReading: 4.75 });
+      expect(Number.isNaN(exported.points[1].gainDb)).toBe(true);
+
+      const target = await open();
+      await target.saveDesign({ name: 'taken first, so the ids differ', design: {} });
+      const designId = await target.importDesign(design);
+      const buildId = await target.importBuild({ ...build, designId });
+      const [runId] = await target.importRuns([{ ...exported, run: { ...exported.run, buildId, request: { ...exported.run.request, buildId } } }]);
+      expect(designId).not.toBe(design.id);
+      const copied = await target.exportRun(runId);
+      const { id: _a, buildId: _b, request: requestCopied, ...runCopied } = copied.run;
+      const { id: _c, buildId: _d, request: requestSource, ...runSource } = exported.run;
+      expect(runCopied).toEqual(runSource);
+      expect({ ...requestCopied, buildId: 0 }).toEqual({ ...requestSource, buildId: 0 });
+      expect(copied.points).toEqual(exported.points);
+      expect(copied.events).toEqual(exported.events);
+      expect(await target.getDesign(designId)).toEqual({ ...design, id: designId });
+      expect(await target.getBuild(buildId)).toEqual({ ...build, id: buildId, designId });
+      expect(await target.getRunOwnership(runId)).toBeUndefined();
+      expect(await target.integrityProblems()).toEqual([]);
+      // The same run again is refused whole (its uid is taken), nothing half-stored.
+      await expect(target.importRuns([{ ...exported, run: { ...exported.run, buildId } }])).rejects.toThrow();
+      expect(await target.listRuns()).toHaveLength(1);
     },
   },
   {

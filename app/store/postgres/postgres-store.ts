@@ -13,6 +13,7 @@ import type {
   BuildRecord,
   DesignRecord,
   PointColumns,
+  OfflinePeriod,
   RunEvent,
   RunFigures,
   RunStatus,
@@ -41,8 +42,13 @@ import {
   checkRunClaimant,
   checkStaleAfter,
   checkBenchToReserve,
+  checkOfflinePeriod,
+  checkRunBenchName,
+  checkRunImports,
+  checkInstant,
+  checkUids,
 } from '../record-checks';
-import { ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, type Row } from '../row-mapping';
+import { ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, storedPointFromRow, type Row } from '../row-mapping';
 import type { RolloffStore } from '../store-interface';
 import type {
   BenchSettings,
@@ -67,6 +73,13 @@ import type {
   RunClaimResult,
   OwnedRunResult,
   RunOwnership,
+  BuildImport,
+  DesignImport,
+  RunImport,
+  RunTransfer,
+  ScheduleImport,
+  StoredPoint,
+  UidKind,
 } from '../types';
 import { randomUUID } from 'node:crypto';
 import { CHANGE_CHANNEL, changePayload, openChangeFeed } from './change-feed';
@@ -117,7 +130,7 @@ const OWNER_COLUMNS = 'owner_id, owner_pid, owner_host, owner_label, owner_since
  */
 const BENCH_LOCK_CLASS = 0x726f6c6c;
 
-const RUN_SUMMARY_COLUMNS = `r.id, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
+const RUN_SUMMARY_COLUMNS = `r.id, r.uid, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
   r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated, r.bench_name`;
 
 export class PostgresStore implements RolloffStore {
@@ -248,10 +261,11 @@ export class PostgresStore implements RolloffStore {
   async saveDesign(input: NewDesign): Promise<DesignRecord> {
     this.requireWritable();
     const name = checkDesignName(input.name);
-    const { rows } = await this.query('INSERT INTO designs (name, design_json, created_at) VALUES ($1, $2, $3) RETURNING *', [
+    const { rows } = await this.query('INSERT INTO designs (uid, name, design_json, created_at) VALUES ($4, $1, $2, $3) RETURNING *', [
       name,
       toJson(input.design, 'design'),
       instant(this.now()),
+      randomUUID(),
     ]);
     return toRecord.design(rows[0]);
   }
@@ -273,8 +287,8 @@ export class PostgresStore implements RolloffStore {
     const actualValues = checkActualValues(input.actualValues);
     try {
       const { rows } = await this.query(
-        'INSERT INTO builds (design_id, label, notes, actual_values_json, created_at) VALUES ($1, $2, $3, $4, $5) RETURNING *',
-        [input.designId, label, requireText(input.notes ?? '', 'build.notes'), toJson(actualValues, 'build.actualValues'), instant(this.now())],
+        'INSERT INTO builds (uid, design_id, label, notes, actual_values_json, created_at) VALUES ($6, $1, $2, $3, $4, $5) RETURNING *',
+        [input.designId, label, requireText(input.notes ?? '', 'build.notes'), toJson(actualValues, 'build.actualValues'), instant(this.now()), randomUUID()],
       );
       return toRecord.build(rows[0]);
     } catch (error) {
@@ -342,8 +356,8 @@ export class PostgresStore implements RolloffStore {
     }
     const { rows } = await this.query<{ id: number }>(
       `WITH run AS (
-         INSERT INTO runs (build_id, kind, request_json, planned_count, status, created_at, software_version, bench_json, operator, notes, simulated, schedule_id, bench_name)
-         VALUES ($1, $2, $3, $4, 'planned', $5, $6, $7, $8, $9, $10, $11, $13) RETURNING id)
+         INSERT INTO runs (uid, build_id, kind, request_json, planned_count, status, created_at, software_version, bench_json, operator, notes, simulated, schedule_id, bench_name)
+         VALUES ($14, $1, $2, $3, $4, 'planned', $5, $6, $7, $8, $9, $10, $11, $13) RETURNING id)
        INSERT INTO run_plans (run_id, plan_json) SELECT id, $12 FROM run RETURNING run_id AS id`,
       [
         run.buildId,
@@ -359,13 +373,14 @@ export class PostgresStore implements RolloffStore {
         run.scheduleId,
         run.planJson,
         run.benchName,
+        randomUUID(),
       ],
       client,
     );
     return rows[0].id;
   }
 
-  async updateRunStatus(runId: number, status: RunStatus): Promise<StoredRun> {
+  async updateRunStatus(runId: number, status: RunStatus, at?: string): Promise<StoredRun> {
     this.requireWritable();
     checkRunStatus(status);
     const result = await this.query(
@@ -373,7 +388,7 @@ export class PostgresStore implements RolloffStore {
          started_at = CASE WHEN $1 = 'running' THEN COALESCE(started_at, $2) ELSE started_at END,
          ended_at = CASE WHEN $3 THEN $2 WHEN $1 = 'running' THEN NULL ELSE ended_at END
        WHERE id = $4`,
-      [status, instant(this.now()), FINISHED_STATUSES.has(status), requireId(runId, 'runId')],
+      [status, at === undefined ? instant(this.now()) : checkInstant(at, 'status.at'), FINISHED_STATUSES.has(status), requireId(runId, 'runId')],
     );
     if (result.rowCount === 0) throw new RecordNotFoundError('run', runId);
     await this.notify({ kind: 'status', runId });
@@ -412,7 +427,9 @@ export class PostgresStore implements RolloffStore {
 
   async getRun(runId: number): Promise<StoredRun> {
     const { rows } = await this.query(
-      `SELECT r.*, p.plan_json, b.label AS build_label, d.name AS design_name FROM runs r
+      `SELECT r.*, p.plan_json, b.label AS build_label, d.name AS design_name,
+         (SELECT coalesce(json_agg(json_build_object('from', o.from_at, 'to', o.to_at) ORDER BY o.from_at), '[]') FROM run_offline_periods o WHERE o.run_id = r.id) AS offline_json
+       FROM runs r
        JOIN run_plans p ON p.run_id = r.id JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id
        WHERE r.id = $1`,
       [requireId(runId, 'runId')],
@@ -519,6 +536,112 @@ export class PostgresStore implements RolloffStore {
     );
     if (rows.length === 0) throw new RecordNotFoundError('run', runId);
     return ownershipFromRow(rows[0]);
+  }
+
+  async recordOfflinePeriod(runId: number, period: OfflinePeriod): Promise<void> {
+    this.requireWritable();
+    const { from, to } = checkOfflinePeriod(period);
+    try {
+      await this.query('INSERT INTO run_offline_periods (run_id, from_at, to_at) VALUES ($1, $2, $3) ON CONFLICT (run_id, from_at) DO NOTHING', [requireId(runId, 'runId'), from, to]);
+    } catch (error) {
+      if (sqlState(error) === FOREIGN_KEY_VIOLATION) throw new RecordNotFoundError('run', runId);
+      throw error;
+    }
+  }
+
+  // ── history transfer ───────────────────────────────────────────────────
+
+  async idsOfUids(kind: UidKind, uids: readonly string[]): Promise<Map<string, number>> {
+    const table = { design: 'designs', build: 'builds', run: 'runs' }[kind];
+    const { rows } = await this.query<{ uid: string; id: number }>(`SELECT uid::text AS uid, id FROM ${table} WHERE uid = ANY($1::uuid[])`, [checkUids(uids)]);
+    return new Map(rows.map((row) => [row.uid, row.id]));
+  }
+
+  async exportRun(runId: number): Promise<RunTransfer> {
+    const run = await this.getRun(runId);
+    const { rows } = await this.query(
+      `SELECT step, stimulus, amplitude_vpp, input_reading, output_reading, gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags,
+         (extract(epoch FROM measured_at) * 1000)::float8 AS measured_at_ms
+       FROM points WHERE run_id = $1 ORDER BY step`,
+      [runId],
+    );
+    const points: StoredPoint[] = rows.map(storedPointFromRow);
+    return { run, points, events: await this.listEvents(runId) };
+  }
+
+  async importDesign(design: DesignImport): Promise<number> {
+    this.requireWritable();
+    const { rows } = await this.query<{ id: number }>('INSERT INTO designs (uid, name, design_json, created_at) VALUES ($1, $2, $3, $4) RETURNING id', [
+      checkUids([design.uid])[0],
+      checkDesignName(design.name),
+      toJson(design.design, 'design'),
+      instant(requireText(design.createdAt, 'design.createdAt')),
+    ]);
+    return rows[0].id;
+  }
+
+  async importBuild(build: BuildImport): Promise<number> {
+    this.requireWritable();
+    await this.getDesign(build.designId);
+    const { rows } = await this.query<{ id: number }>(
+      'INSERT INTO builds (uid, design_id, label, notes, actual_values_json, created_at) VALUES ($1, $2, $3, $4, $5, $6) RETURNING id',
+      [checkUids([build.uid])[0], build.designId, checkBuildLabel(build.label), requireText(build.notes ?? '', 'build.notes'),
+        toJson(checkActualValues(build.actualValues), 'build.actualValues'), instant(requireText(build.createdAt, 'build.createdAt'))],
+    );
+    return rows[0].id;
+  }
+
+  async importSchedule(schedule: ScheduleImport): Promise<number> {
+    this.requireWritable();
+    await this.getBuild(schedule.buildId);
+    const { count, until } = checkSchedule(schedule);
+    const { rows } = await this.query<{ id: number }>(
+      `INSERT INTO schedules (build_id, request_json, every_minutes, run_count, until_at, created_at) VALUES ($1, $2, $3, $4, $5, $6) RETURNING id`,
+      [schedule.buildId, toJson(schedule.request, 'schedule.request'), schedule.everyMinutes, count, until === null ? null : instant(until), instant(requireText(schedule.createdAt, 'schedule.createdAt'))],
+    );
+    return rows[0].id;
+  }
+
+  async importRuns(runs: readonly RunImport[]): Promise<number[]> {
+    this.requireWritable();
+    checkRunImports(runs);
+    return this.transaction(async (client) => {
+      const ids: number[] = [];
+      for (const { run, points, events } of runs) {
+        const timeOrNull = (text: string | null) => (text === null ? null : instant(text));
+        let id: number;
+        try {
+          ({ rows: [{ id }] } = await this.query<{ id: number }>(
+            `WITH run AS (
+               INSERT INTO runs (uid, build_id, kind, request_json, planned_count, status, created_at, started_at, ended_at, software_version,
+                 bench_json, operator, notes, simulated, schedule_id, bench_name, figures_json, verdict_json, point_count)
+               VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16, $17, $18, $20) RETURNING id)
+             INSERT INTO run_plans (run_id, plan_json) SELECT id, $19 FROM run RETURNING run_id AS id`,
+            [checkUids([run.uid])[0], run.buildId, run.kind, toJson(run.request, 'run.request'), run.plannedCount, run.status, instant(run.createdAt),
+              timeOrNull(run.startedAt), timeOrNull(run.endedAt), requireText(run.softwareVersion, 'run.softwareVersion'), toJson(run.bench ?? [], 'run.bench'),
+              run.operator, run.notes, run.simulated, run.scheduleId, checkRunBenchName(run.benchName),
+              run.figures === null ? null : toJson(run.figures, 'run.figures'), run.verdict === null ? null : toJson(run.verdict, 'run.verdict'),
+              toJson(run.plan, 'run.plan'), points.length],
+            client,
+          ));
+        } catch (error) {
+          if (sqlState(error) === FOREIGN_KEY_VIOLATION) throw run.scheduleId === null ? new RecordNotFoundError('build', run.buildId) : new RecordNotFoundError('schedule', run.scheduleId);
+          throw error;
+        }
+        for (let start = 0; start < points.length; start += POINTS_PER_STATEMENT) {
+          await this.insertPointArrays(client, id, points.slice(start, start + POINTS_PER_STATEMENT));
+        }
+        for (const event of events) {
+          await this.query('INSERT INTO run_events (run_id, at, level, message) VALUES ($1, $2, $3, $4)', [id, event.at, checkEventLevel(event.level), event.message], client);
+        }
+        for (const period of run.offlinePeriods) {
+          const { from, to } = checkOfflinePeriod(period);
+          await this.query('INSERT INTO run_offline_periods (run_id, from_at, to_at) VALUES ($1, $2, $3)', [id, from, to], client);
+        }
+        ids.push(id);
+      }
+      return ids;
+    });
   }
 
   // ── points ─────────────────────────────────────────────────────────────

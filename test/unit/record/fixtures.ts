@@ -6,7 +6,7 @@
  * figures and verdict come from the real run analysis (app/analysis).
  * All of it is invented demo data and labelled simulated.
  */
-import type { BuildRecord, Comparison, InstrumentInfo, RunDetail } from '../../../app/contract/contract';
+import type { BuildRecord, Comparison, InstrumentInfo, OfflinePeriod, RunDetail } from '../../../app/contract/contract';
 import { PointFlag } from '../../../app/contract/contract';
 import { analyzeAcRun } from '../../../app/analysis';
 import { dbFromRatio, degreesFromRadians, logGrid } from '../../../app/units';
@@ -96,6 +96,7 @@ export const FIXTURE_DESIGN = {
 export function fixtureBuild(overrides: Partial<BuildRecord> = {}): BuildRecord {
   return {
     id: 3,
+    uid: '5d0c8f8e-3b7a-4c1e-9f2d-6a4b8e1c7d03',
     designId: 1,
     label: 'Board A (hand-wired)',
     notes: `${INVENTED_NOTE} CF measured on the bridge before fitting.`,
@@ -107,6 +108,9 @@ export function fixtureBuild(overrides: Partial<BuildRecord> = {}): BuildRecord 
 
 export interface AcFixtureOptions {
   runId?: number;
+  /** The run's stable id (invented). */
+  runUid?: string;
+  offlinePeriods?: OfflinePeriod[];
   build?: BuildRecord;
   seed?: number;
   noiseDb?: number;
@@ -169,6 +173,8 @@ export function acRunDetail(options: AcFixtureOptions = {}): RunDetail {
   const runId = options.runId ?? 12;
   return {
     id: runId,
+    uid: options.runUid ?? `9a3e2c71-4b8d-4f60-a1c5-${String(runId).padStart(12, '0')}`,
+    offlinePeriods: options.offlinePeriods ?? [],
     buildId: build.id,
     buildLabel: build.label,
     designName: FIXTURE_DESIGN.name,
@@ -304,7 +310,7 @@ export function dcRunDetail(): { detail: RunDetail; build: BuildRecord; dcFit: R
   };
   const count = inputs.length;
   const detail: RunDetail = {
-    id: 21, buildId: build.id, buildLabel: build.label, designName: LOG_STAGE_DESIGN.name, kind: 'dc', status: 'done',
+    id: 21, uid: 'c47d1e09-8a2b-4e3f-b6d5-1f0a9c8e7b21', offlinePeriods: [], buildId: build.id, buildLabel: build.label, designName: LOG_STAGE_DESIGN.name, kind: 'dc', status: 'done',
     startedAt: '2026-11-30T11:00:00.000Z', endedAt: '2026-11-30T11:01:00.000Z', pointCount: count, plannedCount: count, simulated: true, benchName: 'simulated bench 1',
     request: {
       buildId: build.id, kind: 'dc', from: 1e-3, to: 10, pointsPerDecade: 6, spacing: 'log', amplitude: { mode: 'fixed', vpp: 0 },
