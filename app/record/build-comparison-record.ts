@@ -8,7 +8,7 @@ import type { Comparison } from '../contract/contract';
 import { SAFETY_NOTICE_POINTS } from '../contract/safety';
 import { SOFTWARE_VERSION } from '../contract/version';
 import { buildRunRecord, jsonSafe, type RunRecordContext } from './build-run-record';
-import { comparisonDigest } from './digest';
+import { comparisonDigest, referenceLabel } from './digest';
 import { RECORD_FORMAT_VERSION, type ComparisonRecord } from './model';
 
 export interface ComparisonRecordContext {
@@ -62,6 +62,6 @@ export function buildComparisonRecord(comparison: Comparison, context: Compariso
       deltas: row.deltas ?? {},
       verdict: row.verdict ?? null,
     })),
-    digest: comparisonDigest(reference, runs.map((r) => r.digest.hex)),
+    digest: comparisonDigest(referenceLabel(reference, runs), runs.map((r) => r.digest.hex)),
   }) as ComparisonRecord;
 }

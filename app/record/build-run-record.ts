@@ -22,6 +22,8 @@ export interface RunRecordContext {
   design: unknown;
   /** Store id of the design, when known. */
   designId?: number;
+  /** Stable id of the design, when known. */
+  designUid?: string;
   build: BuildRecord;
   /** DC log stage: fitted transfer curve to draw (made by dcFitCurve in app/service/export.ts). */
   dcFit?: RecordDcFit | null;
@@ -42,6 +44,7 @@ export function buildRunRecord(detail: RunDetail, context: RunRecordContext): Ru
   const body = {
     run: {
       id: detail.id,
+      uid: detail.uid,
       kind: detail.kind,
       status: detail.status,
       startedAt: detail.startedAt ?? null,
@@ -53,10 +56,12 @@ export function buildRunRecord(detail: RunDetail, context: RunRecordContext): Ru
       pointCount: points.step.length,
       plannedCount: detail.plannedCount,
       plan: detail.request,
+      offlinePeriods: (detail.offlinePeriods ?? []).map((period) => ({ from: period.from, to: period.to })),
     },
-    design: { id: context.designId ?? context.build.designId ?? null, name: detail.designName, content: context.design ?? null },
+    design: { id: context.designId ?? context.build.designId ?? null, uid: context.designUid ?? null, name: detail.designName, content: context.design ?? null },
     build: {
       id: context.build.id,
+      uid: context.build.uid,
       label: context.build.label,
       notes: context.build.notes ?? '',
       actualValues: { ...(context.build.actualValues ?? {}) },

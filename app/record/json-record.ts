@@ -4,7 +4,7 @@
  * cannot (column lengths, the digest), so a file that passes rebuilds the record.
  */
 import { ValidationError } from '../errors';
-import { runDigest, comparisonDigest } from './digest';
+import { expectedComparisonDigestHex, expectedRunDigestHex } from './digest';
 import type { AnyRecord, RunRecord } from './model';
 import { validateAgainstSchema, type JsonSchema } from './schema-validator';
 import recordSchema from './record.schema.json';
@@ -32,7 +32,7 @@ export function recordFromJson(text: string, where = 'record'): AnyRecord {
   const runs = record.recordType === 'run' ? [record] : record.runs;
   runs.forEach((run) => checkRun(run, `${where} run ${run.run.id}`));
   if (record.recordType === 'comparison') {
-    const expected = comparisonDigest(record.reference, record.runs.map((r) => r.digest.hex)).hex;
+    const expected = expectedComparisonDigestHex(record.digest.method, record.reference, record.runs, record.runs.map((r) => r.digest.hex));
     if (expected !== record.digest.hex) throw new ValidationError(`${where}.digest`, 'does not match the runs it lists', 'The record was altered after export.');
   }
   return record;
@@ -43,7 +43,7 @@ function checkRun(run: RunRecord, where: string): void {
   for (const [name, values] of Object.entries(run.points)) {
     if ((values as unknown[]).length !== length) throw new ValidationError(`${where}.points.${name}`, `has ${(values as unknown[]).length} values where ${length} were expected`);
   }
-  if (runDigest(run).hex !== run.digest.hex) {
+  if (expectedRunDigestHex(run) !== run.digest.hex) {
     throw new ValidationError(`${where}.digest`, 'does not match the data in the record', 'The numbers or identifying fields were altered after export.');
   }
 }

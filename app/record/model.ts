@@ -8,6 +8,7 @@
  */
 import type {
   InstrumentInfo,
+  OfflinePeriod,
   RunEvent,
   RunFigures,
   RunKind,
@@ -66,6 +67,8 @@ export interface RecordDigest {
 
 export interface RecordRun {
   id: number;
+  /** Stable identity, kept by a copy between stores (absent in records exported before digest version 2). */
+  uid?: string;
   kind: RunKind;
   status: RunStatus;
   startedAt: string | null;
@@ -78,10 +81,13 @@ export interface RecordRun {
   pointCount: number;
   plannedCount: number;
   plan: SweepRequest;
+  /** When the bench could not reach its store and kept the points in its outbox (absent before digest version 2). */
+  offlinePeriods?: OfflinePeriod[];
 }
 
 export interface RecordDesign {
   id: number | null;
+  uid?: string | null;
   name: string;
   /** The design file's JSON as stored (parts, values, op-amp model). */
   content: unknown;
@@ -89,6 +95,7 @@ export interface RecordDesign {
 
 export interface RecordBuild {
   id: number;
+  uid?: string;
   label: string;
   notes: string;
   /** Measured part values by part id, SI units. */

@@ -10,6 +10,7 @@ export { renderTextRecord, recordDocument, TEXT_MIME_TYPES, type TextRecordForma
 export { recordFromJson, recordToJson, RECORD_SCHEMA } from './json-record';
 export { readCsv, writeCsv } from './csv';
 export { runDigest, runDigestInput, comparisonDigest } from './digest';
+export { offlinePeriodsText } from './record-formatting';
 export { sha256, sha256Hex } from './sha256';
 export { canonicalJson } from './canonical-json';
 export { runPlots, comparisonPlots } from './record-plots';

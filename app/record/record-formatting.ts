@@ -70,3 +70,14 @@ export function figureLines(figures: RunFigures): FigureLine[] {
 function isNumber(value: unknown): value is number {
   return typeof value === 'number' && Number.isFinite(value);
 }
+
+/** "2026-11-30T10:01:00.000Z to 2026-11-30T10:02:30.000Z (90 s)": one time the bench kept its points in its outbox. */
+export function offlinePeriodText(period: { from: string; to: string }): string {
+  const seconds = Math.round((Date.parse(period.to) - Date.parse(period.from)) / 1000);
+  return `${period.from} to ${period.to} (${seconds} s)`;
+}
+
+/** All of a run's offline periods on one line, or '—' when it never lost its store. */
+export function offlinePeriodsText(periods: ReadonlyArray<{ from: string; to: string }> | undefined): string {
+  return periods && periods.length > 0 ? periods.map(offlinePeriodText).join('; ') : '—';
+}

@@ -3,7 +3,7 @@ import { formatEngineering, parseEngineering } from '../units';
 import type { Block, RecordDocument } from './record-document';
 import type { RecordDesign, RunRecord } from './model';
 import { runPlots } from './record-plots';
-import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatUncertainty, formatVolts, idnText, verdictHeadline } from './record-formatting';
+import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatUncertainty, formatVolts, idnText, offlinePeriodsText, verdictHeadline } from './record-formatting';
 import { FIGURE_NAMES, SETTINGS, pointCountText } from '../contract/vocabulary';
 
 export const SIMULATED_BANNER = 'SIMULATED BENCH — these readings come from the simulated bench and describe a computed circuit, not a physical board.';
@@ -24,6 +24,7 @@ export function runDocument(record: RunRecord): RecordDocument {
         ['Points', pointCountText(run.plannedCount, record.points.flags)],
         ['Software that measured the run', `Rolloff ${run.softwareVersion}`],
         ['Bench', run.simulated ? 'simulated (simulated bench)' : 'physical instruments'],
+        ['Store unreachable (points kept in the bench\'s outbox)', offlinePeriodsText(run.offlinePeriods)],
         ['Data digest (SHA-256)', record.digest.hex],
       ],
     },

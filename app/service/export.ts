@@ -14,7 +14,7 @@ export async function exportRecordFor(service: RecordSource, runIds: number[], f
   const contextOf = async (detail: RunDetail) => {
     const build = await store.getBuild(detail.buildId);
     const design = await store.getDesign(build.designId);
-    return { design: design.design, designId: design.id, build, dcFit: dcFitCurve(detail, design) };
+    return { design: design.design, designId: design.id, designUid: design.uid, build, dcFit: dcFitCurve(detail, design) };
   };
   let rendered;
   if (runIds.length === 1) {

@@ -2,6 +2,7 @@
 import type { RunDetail, RunFigures, RunSummary } from '../../contract/contract';
 import { formatEngineering, formatWithUncertainty } from '../../units';
 import { FIGURE_NAMES, pointCountText } from '../../contract/vocabulary';
+import { offlinePeriodsText } from '../../record/pure';
 
 export function figureLines(figures: RunFigures, theory?: { gainLimitHz?: number; minus3dbHz: number[] }): string[] {
   const lines: string[] = [];
@@ -53,6 +54,7 @@ export function runDetailText(detail: RunDetail, diode?: DiodeTheory): string {
     `run ${detail.id}  ${detail.kind.toUpperCase()}  ${detail.status}${detail.simulated ? '  (SIMULATED: simulated bench)' : ''}`,
     `build "${detail.buildLabel}" of design "${detail.designName}"`,
     `points ${pointCountText(detail.plannedCount, detail.points.flags)}   started ${detail.startedAt ?? '—'}   ended ${detail.endedAt ?? '—'}`,
+    ...((detail.offlinePeriods ?? []).length > 0 ? [`store unreachable, points kept in the bench's outbox: ${offlinePeriodsText(detail.offlinePeriods)}`] : []),
     '',
     ...figureLines(detail.figures, detail.kind === 'ac' ? { gainLimitHz: detail.theoryGainLimitHz, minus3dbHz: detail.theoryMinus3dbHz } : undefined),
   ];

@@ -21,7 +21,8 @@ describe('comparison record', () => {
     const r = comparisonRecord();
     expect(r.runs.map((run) => run.run.id)).toEqual([12, 15]);
     expect(r.runs[0].digest.hex).not.toBe(r.runs[1].digest.hex);
-    const expected = sha256Hex(canonicalJson({ digest: 'rolloff-comparison-digest-1', reference: 12, runs: r.runs.map((run) => run.digest.hex) }));
+    // Version 2 names the reference run by its stable id, so a copy to another store (new row ids) keeps the digest.
+    const expected = sha256Hex(canonicalJson({ digest: 'rolloff-comparison-digest-2', reference: r.runs.find((run) => run.run.id === 12)!.run.uid, runs: r.runs.map((run) => run.digest.hex) }));
     expect(r.digest.hex).toBe(expected);
     expect(comparisonRecord('theory').digest.hex).not.toBe(r.digest.hex);
   });

@@ -57,6 +57,43 @@ describe('run record', () => {
     expect(buildRunRecord(detail, { ...context, generatedAt: '2030-01-01T00:00:00.000Z' }).digest.hex).toBe(original);
   });
 
+  it('digest names the run by its stable id: new row ids (a copy to another store) keep it, another uid changes it', () => {
+    const detail = acRunDetail({ offlinePeriods: [{ from: '2026-11-30T10:01:00.000Z', to: '2026-11-30T10:02:00.000Z' }] });
+    const context = { design: FIXTURE_DESIGN, designId: 1, designUid: 'e1f2a3b4-c5d6-4e7f-8a9b-0c1d2e3f4a5b', build: fixtureBuild(), generatedAt: GENERATED_AT };
+    const original = buildRunRecord(detail, context);
+    expect(original.run.offlinePeriods).toEqual(detail.offlinePeriods);
+    expect(original.digest.method).toContain('rolloff-run-digest-2');
+    // The same run with every row id different, as `rolloff store copy` stores it elsewhere.
+    const copied = { ...structuredClone(detail), id: 901, buildId: 77, request: { ...detail.request, buildId: 77 } };
+    const copiedRecord = buildRunRecord(copied, { ...context, designId: 55, build: fixtureBuild({ id: 77, designId: 55 }) });
+    expect(copiedRecord.digest.hex).toBe(original.digest.hex);
+    expect(buildRunRecord({ ...detail, uid: '00000000-0000-4000-8000-000000000001' }, context).digest.hex).not.toBe(original.digest.hex);
+    expect(buildRunRecord(detail, { ...context, designUid: '00000000-0000-4000-8000-000000000002' }).digest.hex).not.toBe(original.digest.hex);
+    // Offline periods say how the points travelled, not what was measured: not hashed.
+    expect(buildRunRecord({ ...detail, offlinePeriods: [] }, context).digest.hex).toBe(original.digest.hex);
+  });
+
+  it('a record exported before stable ids (digest version 1) still reads back and verifies', () => {
+    const r = structuredClone(record()) as RunRecord & { run: { uid?: string }; build: { uid?: string }; design: { uid?: string | null } };
+    delete r.run.uid;
+    delete r.run.offlinePeriods;
+    delete r.build.uid;
+    delete r.design.uid;
+    // Version 1 as DIGEST.md describes it, computed here independently of app/record/digest.ts.
+    const v1 = {
+      digest: 'rolloff-run-digest-1',
+      run: { id: r.run.id, kind: r.run.kind, startedAt: r.run.startedAt, endedAt: r.run.endedAt, simulated: r.run.simulated, plan: r.run.plan },
+      build: { id: r.build.id, label: r.build.label, actualValues: r.build.actualValues },
+      design: { name: r.design.name },
+      instruments: r.bench.map(({ role, address, profileId, simulated, identity }) => ({ role, address, profileId, simulated, identity })),
+      points: r.points,
+    };
+    r.digest = { ...r.digest, method: 'SHA-256 … {"digest":"rolloff-run-digest-1", …}', hex: createHash('sha256').update(canonicalJson(v1), 'utf8').digest('hex') };
+    expect(recordFromJson(JSON.stringify(r), 'old.json')).toEqual(r);
+    r.points.gainDb[0] = (r.points.gainDb[0] ?? 0) + 1;
+    expect(() => recordFromJson(JSON.stringify(r), 'old.json')).toThrow(/digest: does not match/);
+  });
+
   it('JSON validates against app/record/record.schema.json and rebuilds the same record', async () => {
     const r = record({ overrangeIndex: 3 });
     const json = await text(r, 'json');
