@@ -21,6 +21,7 @@ import { queryCommand } from './query';
 import { simCommand } from './sim';
 import { exportCommand } from './export';
 import { profileCommand } from './profile';
+import { storeCommand } from './store';
 
 // Listed in the order of a bench session: try the demo, compute what the
 // design should do, find the instruments, sweep, look back, file the record.
@@ -41,6 +42,7 @@ export const COMMANDS: CommandSpec[] = [
   runsCommand,
   showCommand,
   exportCommand,
+  storeCommand,
   serveCommand,
   aboutCommand,
 ];
