@@ -1,13 +1,19 @@
-import { openStore, type StoreOpenOptions } from '../store';
+import { databaseUrlScheme, openStore, type RolloffStore, type StoreOpenOptions } from '../store';
+import { OutboxStore } from '../store/outbox/outbox-store';
+import { outboxPathFor } from '../store/outbox/outbox-path';
 import { RolloffService, type RolloffServiceOptions } from './service';
 
 /**
  * The service over the store the --db value names: a SQLite file path, or a
- * database URL (app/store/open-store.ts chooses). The service owns the store.
+ * database URL (app/store/open-store.ts chooses). A server store gets this
+ * bench's outbox in front of it (app/store/outbox/), so a sweep goes on when
+ * the network drops. The service owns the store.
  */
 export async function openServiceAt(databaseLocation: string, options: RolloffServiceOptions = {}, storeOptions: StoreOpenOptions = {}): Promise<RolloffService> {
-  const store = await openStore(databaseLocation, storeOptions);
+  const opened = await openStore(databaseLocation, storeOptions);
+  let store: RolloffStore = opened;
   try {
+    if (databaseUrlScheme(databaseLocation) !== undefined && !opened.readonly) store = OutboxStore.open(opened, { path: outboxPathFor(opened.location) });
     return await RolloffService.open(store, options);
   } catch (error) {
     await store.close();

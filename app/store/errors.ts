@@ -35,6 +35,9 @@ export class StoreUnavailableError extends UserError {
   }
 }
 
+/** A server store that cannot be reached now (down, network cut): worth trying again later, unlike a refused login. */
+export class StoreUnreachableError extends StoreUnavailableError {}
+
 /** A point with this step is already stored for the run; resume skips it instead of storing it twice. */
 export class DuplicateStepError extends UserError {
   constructor(readonly runId: number, readonly step: number) {

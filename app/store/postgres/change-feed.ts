@@ -54,10 +54,12 @@ export async function openChangeFeed(options: ChangeFeedOptions, listener: (chan
       // The server restarted or the connection dropped: carry on by polling rather than going silent.
       client.on('error', () => {
         if (stopped || fallback) return;
-        void pollingFeed(options, listener).then((feed) => {
-          if (stopped) void feed.stop();
-          else fallback = feed;
-        });
+        void pollingFeed(options, listener)
+          .then((feed) => {
+            if (stopped) void feed.stop();
+            else fallback = feed;
+          })
+          .catch(() => {}); // never an unhandled rejection: a bench cut off from the server keeps sweeping (app/store/outbox/)
       });
       return {
         get mode() {
@@ -108,7 +110,8 @@ async function pollingFeed(options: ChangeFeedOptions, listener: (change: StoreC
       else known.delete(row.id);
     }
   };
-  seen(await read(), false);
+  // The server may be away right now (the LISTEN connection just dropped): start empty and catch up at a later tick.
+  seen(await read().catch(() => []), false);
   let busy = false;
   const timer = setInterval(() => {
     if (busy) return;

@@ -11,7 +11,7 @@ import { createRequire } from 'node:module';
 import { userInfo } from 'node:os';
 import type { PoolConfig } from 'pg';
 import { parseIntoClientConfig } from 'pg-connection-string';
-import { StoreUnavailableError } from '../errors';
+import { StoreUnavailableError, StoreUnreachableError } from '../errors';
 
 /** pgpass (node-postgres' own reader of the PostgreSQL password file format) ships no types. */
 type PasswordFileLookup = (connection: { host: string; port: number; database: string; user: string }, found: (password: string | undefined) => void) => void;
@@ -105,7 +105,7 @@ export function connectionFailure(shownLocation: string, error: unknown): StoreU
     return new StoreUnavailableError(shownLocation, `the database does not exist (${detail})`, 'Create it first (see "Lab store" in README.md): createdb -O ROLE DATABASE.');
   }
   if (isUnreachable(error)) {
-    return new StoreUnavailableError(
+    return new StoreUnreachableError(
       shownLocation,
       `the PostgreSQL server cannot be reached (${detail})`,
       'Check that the server runs and accepts connections at this host and port (pg_isready -h HOST -p PORT), or use a local SQLite file with --db FILE.sqlite.',
