@@ -3,12 +3,15 @@
  * (synchronous=FULL, WAL) and a PostgreSQL database on a throw-away cluster on
  * loopback (synchronous_commit=on, fsync on):
  *  - per-point commits as a sweep makes them (median, p99; target p99 < 10 ms),
- *  - bulk import of 1,000,000 points (insertPointsOfRuns in batches of 100 runs,
- *    the path an import takes),
- *  - with TOTAL_POINTS stored (default 10,000,000): listing runs, and loading a
+ *    and for PostgreSQL the same through the bench's outbox (app/store/outbox/,
+ *    server reachable: what a lab bench pays),
+ *  - bulk import of 1,000,000 points with `store copy` (app/store/copy/) from a
+ *    bench's SQLite file of 1,000 runs,
+ *  - with --points N stored (default 10,000,000): listing runs, and loading a
  *    1,000-point run (target < 20 ms),
  * each PostgreSQL figure also as its ratio to SQLite's.
- * Run: npx tsx test/bench/store-compare.ts   (TOTAL_POINTS=2000000 for a quicker pass)
+ * Run: npx tsx test/bench/store-compare.ts   (--points 2000000 for a quicker pass; the
+ * 10M default takes a while and a few GB of disk: run it once, not in a loop)
  * All data is invented benchmark filler.
  */
 import { mkdtempSync, rmSync } from 'node:fs';
@@ -18,10 +21,22 @@ import { POINTS_PER_RUN, plan, points, request } from './store-fixture';
 import { SOFTWARE_VERSION } from '../../app/contract/version';
 import { SqliteStore, type RolloffStore } from '../../app/store';
 import { PostgresStore } from '../../app/store/postgres/postgres-store';
+import { OutboxStore } from '../../app/store/outbox/outbox-store';
+import { copyHistory } from '../../app/store/copy/copy-history';
 import { startPostgresCluster } from '../helpers/postgres-cluster';
 
 const BULK_POINTS = 1_000_000;
-const TOTAL_POINTS = Number(process.env.TOTAL_POINTS ?? 10_000_000);
+/** --points N (engineering-free whole number), else TOTAL_POINTS, else 10M. */
+function totalPointsOption(): number {
+  const at = process.argv.indexOf('--points');
+  const text = at >= 0 ? process.argv[at + 1] : process.env.TOTAL_POINTS;
+  const value = text === undefined ? 10_000_000 : Number(text);
+  if (!Number.isInteger(value) || value % POINTS_PER_RUN !== 0 || value < BULK_POINTS + 2 * POINTS_PER_RUN) {
+    throw new Error(`--points ${text}: give a multiple of ${POINTS_PER_RUN}, at least ${BULK_POINTS + 2 * POINTS_PER_RUN} (the bulk import alone stores ${BULK_POINTS})`);
+  }
+  return value;
+}
+const TOTAL_POINTS = totalPointsOption();
 const SINGLE_COMMITS = 500;
 const RUNS_PER_TRANSACTION = 100;
 
@@ -40,6 +55,9 @@ async function timeMs(work: () => unknown): Promise<number> {
 interface Figures {
   commitMedianMs: number;
   commitP99Ms: number;
+  /** Through the outbox (PostgreSQL only). */
+  outboxCommitMedianMs?: number;
+  outboxCommitP99Ms?: number;
   bulkS: number;
   buildS: number;
   storedPoints: number;
@@ -49,7 +67,30 @@ interface Figures {
   loadedPoints: number;
 }
 
-async function measure(store: RolloffStore): Promise<Figures> {
+/** Per-point commit times (ms) of SINGLE_COMMITS points into a new run of the store. */
+async function commitTimes(store: RolloffStore, createRuns: (count: number) => Promise<number[]>): Promise<number[]> {
+  const [singleRun] = await createRuns(1);
+  const commits: number[] = [];
+  for (let step = 0; step < SINGLE_COMMITS; step++) commits.push(await timeMs(() => store.insertPoint(singleRun, points[step])));
+  return commits;
+}
+
+/** A bench's SQLite file with BULK_POINTS points (1,000-point runs), the source of the bulk import. */
+async function bulkSource(path: string): Promise<SqliteStore> {
+  const source = SqliteStore.open(path);
+  const design = await source.saveDesign({ name: 'imported stage (invented)', design: { parts: [] } });
+  const build = await source.createBuild({ designId: design.id, label: 'imported board', notes: '', actualValues: {} });
+  for (let done = 0; done < BULK_POINTS / POINTS_PER_RUN; done += RUNS_PER_TRANSACTION) {
+    const runs = await source.createRuns(Array.from({ length: RUNS_PER_TRANSACTION }, (_, i) => ({
+      buildId: build.id, kind: 'ac' as const, request: { ...request, buildId: build.id }, plan, softwareVersion: SOFTWARE_VERSION, bench: [],
+      operator: 'benchmark', notes: `imported run ${done + i}`, simulated: true,
+    })));
+    await source.insertPointsOfRuns(runs.map((run) => ({ runId: run.id, points })));
+  }
+  return source;
+}
+
+async function measure(store: RolloffStore, source: SqliteStore, outboxOf?: (store: RolloffStore) => RolloffStore): Promise<Figures> {
   const design = await store.saveDesign({ name: 'benchmark stage (invented)', design: { parts: [] } });
   const builds: Array<{ id: number }> = [];
   for (let i = 0; i < 20; i++) builds.push(await store.createBuild({ designId: design.id, label: `bench board ${i}`, notes: '', actualValues: {} }));
@@ -65,12 +106,13 @@ async function measure(store: RolloffStore): Promise<Figures> {
   };
 
   // Per-point commits first, on an empty database, as a sweep stores them.
-  const [singleRun] = await createRuns(1);
-  const commits: number[] = [];
-  for (let step = 0; step < SINGLE_COMMITS; step++) commits.push(await timeMs(() => store.insertPoint(singleRun, points[step])));
+  const commits = await commitTimes(store, createRuns);
+  const outboxCommits = outboxOf ? await commitTimes(outboxOf(store), createRuns) : undefined;
 
-  const bulkRuns = await createRuns(BULK_POINTS / POINTS_PER_RUN);
-  const bulkMs = await timeMs(() => fill(bulkRuns));
+  // The bulk import as a user makes it: rolloff store copy of a bench's file.
+  let copiedPoints = 0;
+  const bulkMs = await timeMs(async () => (copiedPoints = (await copyHistory(source, store, { staleAfterMs: 10_000 })).copiedPoints));
+  if (copiedPoints !== BULK_POINTS) throw new Error(`store copy moved ${copiedPoints} points, not ${BULK_POINTS}`);
 
   const remainingRuns = Math.max(0, (TOTAL_POINTS - BULK_POINTS) / POINTS_PER_RUN);
   const buildMs = await timeMs(async () => {
@@ -93,7 +135,9 @@ async function measure(store: RolloffStore): Promise<Figures> {
     commitP99Ms: percentile(commits, 99),
     bulkS: bulkMs / 1000,
     buildS: buildMs / 1000,
-    storedPoints: SINGLE_COMMITS + BULK_POINTS + remainingRuns * POINTS_PER_RUN,
+    outboxCommitMedianMs: outboxCommits && percentile(outboxCommits, 50),
+    outboxCommitP99Ms: outboxCommits && percentile(outboxCommits, 99),
+    storedPoints: (outboxCommits ? 2 : 1) * SINGLE_COMMITS + BULK_POINTS + remainingRuns * POINTS_PER_RUN,
     listMs: percentile(list, 50),
     searchMs: percentile(search, 50),
     loadMs: percentile(load, 50),
@@ -104,12 +148,15 @@ async function measure(store: RolloffStore): Promise<Figures> {
 const folder = mkdtempSync(join(tmpdir(), 'rolloff-bench-compare-'));
 const cluster = await startPostgresCluster();
 try {
+  const source = await bulkSource(join(folder, 'bench-to-import.sqlite'));
   const sqlite = await SqliteStore.open(join(folder, 'bench.sqlite'));
-  const sqliteFigures = await measure(sqlite);
+  const sqliteFigures = await measure(sqlite, source);
   await sqlite.close();
   const postgres = await PostgresStore.open(cluster.urlWithPassword);
-  const postgresFigures = await measure(postgres);
+  // The outbox wraps the same connection pool; closing it would close the store, so it is left open until the end.
+  const postgresFigures = await measure(postgres, source, (store) => OutboxStore.open(store, { path: join(folder, 'outbox.sqlite'), log: () => {} }));
   await postgres.close();
+  await source.close();
 
   console.log(`machine load average ${loadavg()[0].toFixed(1)} on ${cpus().length} cores (wall times include waiting for the CPU); PostgreSQL on loopback, same disk`);
   console.log(`points stored: ${sqliteFigures.storedPoints.toLocaleString('en')} in each store (SQLite built in ${sqliteFigures.buildS.toFixed(1)} s, PostgreSQL in ${postgresFigures.buildS.toFixed(1)} s beyond the bulk import)`);
@@ -120,7 +167,9 @@ try {
     );
   row('per-point commit, median', 'ms', sqliteFigures.commitMedianMs, postgresFigures.commitMedianMs);
   row('per-point commit, p99', 'ms', sqliteFigures.commitP99Ms, postgresFigures.commitP99Ms, { limit: 10, label: 'target p99 < 10 ms' });
-  row(`bulk import ${BULK_POINTS.toLocaleString('en')} points`, 's', sqliteFigures.bulkS, postgresFigures.bulkS);
+  console.log(`${'per-point commit via outbox, median'.padEnd(34)} ${''.padEnd(21)}PostgreSQL ${postgresFigures.outboxCommitMedianMs!.toFixed(2).padStart(8)} ms   ratio ${(postgresFigures.outboxCommitMedianMs! / sqliteFigures.commitMedianMs).toFixed(1)}× (to SQLite's direct commit)`);
+  console.log(`${'per-point commit via outbox, p99'.padEnd(34)} ${''.padEnd(21)}PostgreSQL ${postgresFigures.outboxCommitP99Ms!.toFixed(2).padStart(8)} ms   ratio ${(postgresFigures.outboxCommitP99Ms! / sqliteFigures.commitP99Ms).toFixed(1)}×   target p99 < 10 ms: ${postgresFigures.outboxCommitP99Ms! < 10 ? 'meets' : 'MISSES'}`);
+  row(`store copy of ${BULK_POINTS.toLocaleString('en')} points`, 's', sqliteFigures.bulkS, postgresFigures.bulkS);
   row('listRuns (newest 200), median', 'ms', sqliteFigures.listMs, postgresFigures.listMs);
   row('listRuns search "board 7", median', 'ms', sqliteFigures.searchMs, postgresFigures.searchMs);
   row(`loadPoints (${postgresFigures.loadedPoints} points), median`, 'ms', sqliteFigures.loadMs, postgresFigures.loadMs, { limit: 20, label: 'target < 20 ms' });
