@@ -2,9 +2,11 @@
  * `rolloff store copy --from DB --to DB [--skip-existing]`: a bench's history
  * into the lab store and back out (app/store/copy/copy-history.ts does the work).
  */
+import { existsSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
 import { ValidationError } from '../../errors';
 import { STALE_AFTER_MS } from '../../service/run-ownership';
-import { openStore, type RolloffStore } from '../../store';
+import { databaseUrlScheme, defaultDatabasePath, openStore, type RolloffStore } from '../../store';
 import { copyHistory, type CopyReport } from '../../store/copy/copy-history';
 import { optionFlag, optionString, requirePositional, type CommandSpec } from '../args';
 
@@ -13,7 +15,7 @@ export const storeCommand: CommandSpec = {
   summary: 'Copy a store\'s history into another: a bench\'s SQLite file into the lab store, or back out',
   usage: 'copy --from PATH|URL --to PATH|URL [--skip-existing]',
   options: [
-    { name: 'from', kind: 'string', placeholder: 'PATH|URL', description: 'copy: the store to read (a SQLite file or postgres://…); it is only read' },
+    { name: 'from', kind: 'string', placeholder: 'PATH|URL', description: 'copy: the store to read (a SQLite file or postgres://…); nothing in it is changed, but an older one is first brought to the current schema' },
     { name: 'to', kind: 'string', placeholder: 'PATH|URL', description: 'copy: the store to add to (a new SQLite file is created)' },
     { name: 'skip-existing', kind: 'flag', description: 'copy: leave runs the target already holds as they are there and copy the others (default: refuse)' },
   ],
@@ -33,6 +35,9 @@ Examples:
     const from = requiredOption(parsed, 'from');
     const to = requiredOption(parsed, 'to');
     if (from === to) throw new ValidationError('--to', 'is the same store as --from', 'Give two different stores.');
+    // Opening a missing file would make an empty store and copy nothing: say so instead.
+    const fromFile = databaseUrlScheme(from) === undefined ? (/^file:\/\//i.test(from) ? fileURLToPath(from) : from.replace(/^file:/i, '')) : undefined;
+    if (fromFile !== undefined && !existsSync(fromFile)) throw new ValidationError('--from', `no database at ${fromFile}`, `Give the path of the bench's .sqlite file (the default one is ${defaultDatabasePath()}).`);
     const source = await openStore(from);
     let target: RolloffStore | undefined;
     try {

@@ -114,6 +114,9 @@ describe.skipIf(!hasPostgres)('rolloff store copy: SQLite → PostgreSQL → SQL
     const noTarget = rolloff('store', 'copy', '--from', join(folder.path, 'bench.sqlite'));
     expect(noTarget.status).toBe(2);
     expect(noTarget.stderr).toMatch(/--to.*is required/s);
+    const missing = rolloff('store', 'copy', '--from', join(folder.path, 'no-such.sqlite'), '--to', join(folder.path, 'out.sqlite'));
+    expect(missing.status).toBe(2);
+    expect(missing.stderr).toMatch(/--from.*no database at/s);
     const same = rolloff('store', 'copy', '--from', 'x.sqlite', '--to', 'x.sqlite');
     expect(same.status).toBe(2);
     expect(same.stderr).toMatch(/same store/);
