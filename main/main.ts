@@ -35,7 +35,8 @@ async function start(): Promise<void> {
   });
   await app.whenReady();
   await serveRendererBundle(protocol, rendererDir);
-  const hosted = await openHostedService(resolveDatabasePath(databaseFromArgs(process.argv)));
+  // The desktop window starts on this machine's real instruments: their saved maximum stimulus applies (the simulated bench has its own).
+  const hosted = await openHostedService(resolveDatabasePath(databaseFromArgs(process.argv)), { startOn: 'real instruments', ownerLabel: 'the desktop window' });
   const wiring = registerIpc({
     ipcMain,
     api: hosted.api,

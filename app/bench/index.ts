@@ -14,3 +14,4 @@ export * from './waveform-decode';
 export * from './open-instrument';
 export * from './profile-check';
 export * from './bench-name';
+export * from './bench-key';

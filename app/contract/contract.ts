@@ -121,10 +121,37 @@ export interface ProfileCheckReport {
 }
 
 
+/**
+ * A bench as its own settings (the maximum stimulus) are kept: its name
+ * (--bench, ROLLOFF_BENCH or the host name) and whether it is the simulated
+ * bench the service runs. The simulated bench of a machine and its real
+ * instruments are two benches here, so a limit chosen for a simulation never
+ * reaches a real circuit.
+ */
+export interface BenchIdentity {
+  name: string;
+  simulated: boolean;
+}
+
+/** The maximum stimulus in force and where it came from. */
+export interface StimulusLimit {
+  maxStimulusVpp: number;
+  /** The bench it is the setting of. */
+  bench: BenchIdentity;
+  /** ISO 8601: when it was saved as that bench's setting. */
+  setAt: string;
+  /** Saved earlier and reused now (not given in this session). */
+  reused: boolean;
+}
+
 export interface BenchStatus {
   instruments: InstrumentInfo[];
-  /** The user's ceiling on generator output, peak-to-peak volts; never exceeded. */
+  /** The user's ceiling on generator output, peak-to-peak volts; never exceeded. 0 while not set. */
   maxStimulusVpp: number;
+  /** The bench whose settings are in force; absent until the service knows (no instrument connected, no simulated bench started yet). */
+  bench?: BenchIdentity;
+  /** Where maxStimulusVpp came from; absent while it is not set, or given but not saved yet (it is saved for the first bench used). */
+  maxStimulusLimit?: StimulusLimit;
   /** Set when a simulated bench is running, with the addresses it answers on. */
   simulatedBench?: { addresses: Partial<Record<InstrumentRole, string>>; designName: string };
 }

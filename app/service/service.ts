@@ -5,7 +5,7 @@
  */
 import { UserError, ValidationError } from '../errors';
 import { identityKey, type RolloffStore, type StoredRun } from '../store';
-import { openInstrument, builtInProfiles, checkProfile, loadProfiles, realClock, DEFAULT_PROFILE_ID, resolveBenchName, type BenchClock, type OpenedInstrument, type ProfileFor } from '../bench';
+import { openInstrument, builtInProfiles, checkProfile, loadProfiles, realClock, DEFAULT_PROFILE_ID, resolveBenchName, sameBench, type BenchClock, type OpenedInstrument, type ProfileFor } from '../bench';
 import { TrafficLog } from '../scpi/traffic-log';
 import { listPorts } from '../scpi/ports';
 import { type Design, parseDesign, solveAc, TEMPLATES, makeDesignFromTemplate, withActualValues, throughDesign } from '../circuit';
@@ -20,7 +20,7 @@ import type { StepMeasurer, StepSetting, SweepInstruments } from '../sweep/runne
 import { driftSummary, type DriftRow } from '../analysis';
 import { INSTRUMENT_ROLES as ROLES, PointFlag } from '../contract/contract';
 import type {
-  RunFigures, BenchStatus, BuildRecord, Comparison, ConnectRequest, ProfileCheckReport, ProfileCheckRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
+  RunFigures, BenchIdentity, BenchStatus, BuildRecord, Comparison, ConnectRequest, ProfileCheckReport, ProfileCheckRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
   PointColumns, PortListing, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunFilter, RunStatus, RunSummary, ServiceEventName,
   ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
 } from '../contract/contract';
@@ -34,11 +34,23 @@ import { compareDetails } from '../read-model/compare';
 import { SOFTWARE_VERSION } from '../contract/version';
 import { startSimulatedBenchFor, type SimulatedBenchHandle, type SimulatedBenchSettings } from './simulated-bench';
 import { exportRecordFor } from './export';
+import { StimulusLimits } from './stimulus-limits';
+import { benchDescription } from '../contract/bench-text';
 import { claimOrRefuse, createOwnedRunOrRefuse, HEARTBEAT_INTERVAL_MS, liveOtherOwner, ownerProcessIsGone, RunOwnedElsewhereError, STALE_AFTER_MS, thisProcessClaimant } from './run-ownership';
 
 export interface RolloffServiceOptions {
-  /** The user's ceiling on generator output; otherwise the one recorded with the latest run, else unset. */
+  /**
+   * The user's ceiling on generator output (--max-amplitude): saved as the
+   * setting of the bench the service starts on (startOn), or of the first bench
+   * it uses. Left out, that bench's stored setting applies, else none.
+   */
   maxStimulusVpp?: number;
+  /**
+   * Which of this machine's benches the service starts on, so its stored
+   * maximum stimulus applies before anything is connected (CLI and serve:
+   * --simulated or not). Left out, the first connect, simulated bench or resume decides.
+   */
+  startOn?: 'simulated bench' | 'real instruments';
   /** Folder of user instrument profiles (else ROLLOFF_PROFILE_DIR). */
   profileFolder?: string;
   /** Simulated bench options: time scale (bench seconds per wall second), noise, link latency, seed. */
@@ -104,24 +116,29 @@ export class RolloffService implements RolloffApi {
   /** True from a start's or resume's idle-bench check until its run is active or it failed: a second one cannot slip in between. */
   private startingRun = false;
   private simulatedBenchHandle: (SimulatedBenchHandle & { designName: string; key: string }) | undefined;
-  private maxStimulusVpp: number | undefined;
+  /** The maximum stimulus of the bench in force (per bench, in the store). */
+  private readonly limits: StimulusLimits;
+  /** This bench's name (--bench, ROLLOFF_BENCH or the host name). */
+  readonly benchName: string;
   /** This service as a run owner (RunStore.claimRun). */
   private readonly claimant;
   private readonly staleAfterMs: number;
 
   private labFeed: StoreChangeFeed | undefined;
 
-  private constructor(store: RolloffStore, options: RolloffServiceOptions, maxStimulusVpp: number | undefined) {
+  private constructor(store: RolloffStore, options: RolloffServiceOptions) {
     this.store = store;
     this.options = options;
     this.claimant = thisProcessClaimant(options.ownerLabel ?? 'rolloff');
     this.staleAfterMs = options.staleAfterMs ?? STALE_AFTER_MS;
-    this.maxStimulusVpp = maxStimulusVpp;
+    this.benchName = options.benchName ?? resolveBenchName(undefined);
+    this.limits = new StimulusLimits(store, options.maxStimulusVpp);
   }
 
   /** The service over an open store, which it owns from now on (close() closes it). */
   static async open(store: RolloffStore, options: RolloffServiceOptions = {}): Promise<RolloffService> {
-    const service = new RolloffService(store, options, options.maxStimulusVpp ?? (await lastRecordedMaxStimulus(store)));
+    const service = new RolloffService(store, options);
+    if (options.startOn) await service.limits.enter({ name: service.benchName, simulated: options.startOn === 'simulated bench' });
     if (options.followLab) {
       const feedOptions = options.followLab === true ? {} : options.followLab;
       service.labFeed = await followLabChanges({ store, drivesRun: (runId) => service.active.has(runId), emit: (event, payload) => service.events.emit(event, payload), ...feedOptions });
@@ -149,8 +166,19 @@ export class RolloffService implements RolloffApi {
     return this.simulatedBenchHandle?.clock ?? this.options.clock ?? realClock;
   }
 
+  /** The maximum stimulus in force (Vpp), or undefined while none is set for the bench. */
   get maxStimulus(): number | undefined {
-    return this.maxStimulusVpp;
+    return this.limits.maxStimulusVpp;
+  }
+
+  /** The limit in force with its bench and when it was set (reused or set now); undefined while none is saved. */
+  get stimulusLimit() {
+    return this.limits.current;
+  }
+
+  /** The bench whose settings are in force, once known. */
+  get bench(): BenchIdentity | undefined {
+    return this.limits.currentBench;
   }
 
   /** Stops sweeps (paused, resumable), closes instruments, the simulated bench and the store. */
@@ -181,13 +209,17 @@ export class RolloffService implements RolloffApi {
   async benchStatus(): Promise<BenchStatus> {
     return {
       instruments: this.instrumentInfos(),
-      maxStimulusVpp: this.maxStimulusVpp ?? 0,
+      maxStimulusVpp: this.limits.maxStimulusVpp ?? 0,
+      ...(this.limits.currentBench ? { bench: this.limits.currentBench } : {}),
+      ...(this.limits.current ? { maxStimulusLimit: this.limits.current } : {}),
       simulatedBench: this.simulatedBenchHandle ? { addresses: this.simulatedBenchHandle.addresses, designName: this.simulatedBenchHandle.designName } : undefined,
     };
   }
 
   async connect(request: ConnectRequest): Promise<InstrumentInfo> {
     this.requireIdleBench();
+    // An instrument at an address is a real one, whatever it answers to *IDN?: this bench's real-instrument limit applies.
+    await this.enterBench({ name: this.benchName, simulated: false });
     const info = await this.connectRole(request, false);
     this.events.emit('bench', await this.benchStatus());
     return info;
@@ -199,17 +231,12 @@ export class RolloffService implements RolloffApi {
     if (!profile) throw new ValidationError('profileId', `no profile "${request.profileId}"`, 'Pick one of the profiles listed for the role.');
     const busy = [...this.instruments.values()].find((c) => c.opened.address === request.address);
     if (busy) throw new ValidationError('address', `${request.address} is connected now`, 'Disconnect it first: the check opens its own link and switches a generator\'s output off.');
-    return checkProfile(request.address, profile, { maxStimulusVpp: this.maxStimulusVpp });
+    return checkProfile(request.address, profile, { maxStimulusVpp: this.limits.maxStimulusVpp });
   }
 
   async disconnect(role: InstrumentRole): Promise<void> {
     if (this.instruments.has(role)) this.requireIdleBench();
-    this.wanted.delete(role);
-    const connected = this.instruments.get(role);
-    if (!connected) return;
-    this.instruments.delete(role);
-    await connected.opened.close().catch(() => undefined);
-    this.events.emit('bench', await this.benchStatus());
+    if (await this.disconnectRole(role)) this.events.emit('bench', await this.benchStatus());
   }
 
   async startSimulatedBench(designId: number): Promise<BenchStatus> {
@@ -224,11 +251,14 @@ export class RolloffService implements RolloffApi {
     return this.benchStatus();
   }
 
-  /** `forStart`: asked by the start or resume that holds the bench (startingRun), which checked it was idle. */
-  private async simulateBuild(buildId: number, forStart = false): Promise<void> {
+  /**
+   * `forStart`: asked by the start or resume that holds the bench (startingRun), which checked it was idle.
+   * `bench`: whose limit applies (a resumed run's bench); else this bench's simulated one.
+   */
+  private async simulateBuild(buildId: number, forStart = false, bench?: BenchIdentity): Promise<void> {
     const build = await this.store.getBuild(buildId);
     const designRecord = await this.store.getDesign(build.designId);
-    await this.startSimulatedBenchForDesign(buildDesign(designRecord, build), `${designRecord.name} — build ${build.label}`, `build:${buildId}`, forStart);
+    await this.startSimulatedBenchForDesign(buildDesign(designRecord, build), `${designRecord.name} — build ${build.label}`, `build:${buildId}`, forStart, bench);
   }
 
   /** Fault injection on the running simulated bench (tests, demos). */
@@ -236,15 +266,11 @@ export class RolloffService implements RolloffApi {
     return this.simulatedBenchHandle;
   }
 
+  /** Saves the limit as the setting of the bench in force (before any bench is known: of the first one used). */
   async setMaxStimulus(maxStimulusVpp: number): Promise<BenchStatus> {
-    if (!(Number.isFinite(maxStimulusVpp) && maxStimulusVpp > 0)) {
-      throw new ValidationError('maximum stimulus', `${maxStimulusVpp} Vpp is not a positive amplitude`, 'Give the largest peak-to-peak voltage the circuit may see, e.g. 2.');
-    }
     this.requireIdleBench();
-    this.maxStimulusVpp = maxStimulusVpp;
-    // The generator control holds its ceiling from the moment it is opened: reopen it with the new one.
-    const generator = this.instruments.get('generator');
-    if (generator) await this.connectRole(generator.request, generator.simulated);
+    await this.limits.set(maxStimulusVpp);
+    await this.applyLimitToGenerator();
     const status = await this.benchStatus();
     this.events.emit('bench', status);
     return status;
@@ -310,8 +336,12 @@ export class RolloffService implements RolloffApi {
 
   /** startRun with the service-only options (schedule id). */
   async startRunWith(request: SweepRequest, extra: { scheduleId?: number } = {}): Promise<RunSummary> {
-    const maxStimulusVpp = this.requireMaxStimulus();
-    return this.holdingBench(() => this.startOnHeldBench(request, maxStimulusVpp, extra));
+    return this.holdingBench(async () => {
+      // After resuming another bench's run, a new run is this bench's again, under this bench's limit.
+      const bench = this.limits.currentBench;
+      if (bench && bench.name !== this.benchName) await this.enterBench({ name: this.benchName, simulated: bench.simulated });
+      return this.startOnHeldBench(request, this.requireMaxStimulus(), extra);
+    });
   }
 
   /**
@@ -348,7 +378,7 @@ export class RolloffService implements RolloffApi {
       notes: request.notes,
       simulated: this.instrumentInfos().some((i) => i.simulated),
       scheduleId: extra.scheduleId ?? null,
-      benchName: this.options.benchName ?? resolveBenchName(undefined),
+      benchName: this.benchName,
     }, this.claimant, this.staleAfterMs);
     try {
       for (const warning of plan.warnings) await this.logRunEvent(run.id, 'warning', `plan: ${warning}`);
@@ -397,29 +427,40 @@ export class RolloffService implements RolloffApi {
    * with unless instruments are already connected.
    */
   async resumeRun(runId: number): Promise<RunSummary> {
-    const run = await this.store.getRun(runId);
-    if (this.active.has(runId)) throw new RunStateError(runId, 'is already running');
-    return this.holdingBench(() => this.resumeOnHeldBench(run));
+    return this.resumeRunWith(runId);
   }
 
-  private async resumeOnHeldBench(run: StoredRun): Promise<RunSummary> {
+  /** resumeRun, with instruments at other addresses than the run was measured with (CLI --generator …). */
+  async resumeRunWith(runId: number, extra: { instruments?: ConnectRequest[] } = {}): Promise<RunSummary> {
+    const run = await this.store.getRun(runId);
+    if (this.active.has(runId)) throw new RunStateError(runId, 'is already running');
+    return this.holdingBench(() => this.resumeOnHeldBench(run, extra.instruments ?? []));
+  }
+
+  private async resumeOnHeldBench(run: StoredRun, instruments: ConnectRequest[]): Promise<RunSummary> {
     const runId = run.id;
     if (run.status === 'done') throw new RunStateError(runId, 'is finished; nothing to resume', 'Start a new run of the same build instead.');
     // One conditional update in the store: of two processes resuming a stale run, one wins, the other is told who.
     await claimOrRefuse(this.store, runId, this.claimant, this.staleAfterMs, 'resumed');
     try {
-      if (this.maxStimulusVpp === undefined && typeof run.request.maxStimulusVpp === 'number') this.maxStimulusVpp = run.request.maxStimulusVpp;
-      const maxStimulusVpp = this.requireMaxStimulus();
+      // The limit of the run's own bench, never the one recorded with the run (it may be older than the bench's setting).
+      // Runs stored before benches had names were this machine's.
+      const runBench: BenchIdentity = { name: run.benchName || this.benchName, simulated: run.simulated };
+      await this.enterBench(runBench);
+      const maxStimulusVpp = this.requireMaxStimulus(`run ${runId} was measured on ${benchDescription(runBench)}, which has no maximum stimulus set`);
       if (run.simulated) {
         // A fresh simulated bench of the run's build: the one it ran on may be gone with the process that crashed.
-        await this.simulateBuild(run.buildId, true);
+        await this.simulateBuild(run.buildId, true, runBench);
       } else {
+        // A real run never continues on the simulated bench: its instruments go, the run's (or the given) ones come.
+        for (const role of ROLES) if (this.wanted.get(role)?.simulated) await this.disconnectRole(role);
+        for (const request of instruments) await this.connectRole(request, false);
         for (const instrument of run.bench) {
           if (!this.instruments.has(instrument.role)) await this.connectRole({ role: instrument.role, address: instrument.address, profileId: instrument.profileId }, false);
         }
       }
       this.requireInstrumentsFor(run.request);
-      await this.logRunEvent(runId, 'info', `resumed (maximum stimulus ${maxStimulusVpp} Vpp)`);
+      await this.logRunEvent(runId, 'info', `resumed (maximum stimulus ${maxStimulusVpp} Vpp of ${benchDescription(runBench)})`);
       await this.launch(runId);
     } catch (error) {
       // Not resumed after all (no stimulus limit, an instrument missing): leave the run to whoever tries next.
@@ -555,11 +596,48 @@ export class RolloffService implements RolloffApi {
     if (this.startingRun) throw new UserError('another run is being started on this bench', 'Wait until it runs, then pause or stop it first if you need the bench (rolloff resume continues it later).');
   }
 
-  private requireMaxStimulus(): number {
-    if (this.maxStimulusVpp === undefined) {
-      throw new ValidationError('maximum stimulus', 'is not set', 'Set the largest peak-to-peak voltage the circuit may see: --max-amplitude VPP, or on the Bench view.');
+  private requireMaxStimulus(why?: string): number {
+    const maxStimulusVpp = this.limits.maxStimulusVpp;
+    if (maxStimulusVpp === undefined) {
+      const bench = this.limits.currentBench;
+      throw new ValidationError(
+        'maximum stimulus',
+        why ?? (bench ? `is not set for ${benchDescription(bench)}` : 'is not set'),
+        'Set the largest peak-to-peak voltage the circuit may see: --max-amplitude VPP, or on the Bench view; it is saved for that bench.',
+      );
     }
-    return this.maxStimulusVpp;
+    return maxStimulusVpp;
+  }
+
+  /**
+   * Makes `bench` the one whose settings are in force: its own stored limit (or
+   * one given before any bench was known, saved for it now), or none. A connected
+   * generator holds its ceiling from the moment it is opened, so it follows.
+   */
+  private async enterBench(bench: BenchIdentity): Promise<void> {
+    if (sameBench(this.limits.currentBench, bench)) return;
+    const before = this.limits.maxStimulusVpp;
+    await this.limits.enter(bench);
+    if (this.limits.maxStimulusVpp !== before) await this.applyLimitToGenerator();
+  }
+
+  /** Reopens a connected generator with the ceiling in force, or closes it when the bench has none. */
+  private async applyLimitToGenerator(): Promise<void> {
+    const generator = this.instruments.get('generator');
+    const wanted = this.wanted.get('generator');
+    if (!generator || !wanted) return;
+    if (this.limits.maxStimulusVpp !== undefined) await this.connectRole(wanted.request, wanted.simulated);
+    else await this.disconnectRole('generator');
+  }
+
+  /** Closes a role's instrument and forgets where it was; true when one was connected. */
+  private async disconnectRole(role: InstrumentRole): Promise<boolean> {
+    this.wanted.delete(role);
+    const connected = this.instruments.get(role);
+    if (!connected) return false;
+    this.instruments.delete(role);
+    await connected.opened.close().catch(() => undefined);
+    return true;
   }
 
   private requireInstrumentsFor(request: SweepRequest): void {
@@ -594,7 +672,7 @@ export class RolloffService implements RolloffApi {
     // Simulated instruments answer the shipped generic profiles: a user's profile folder (which may fail to load) plays no part.
     const shipped = simulated ? builtInProfiles().find((p) => p.id === request.profileId && p.role === request.role) : undefined;
     const opened = await openInstrument(request.address, request.role, (shipped as ProfileFor<typeof request.role> | undefined) ?? request.profileId, {
-      maxStimulusVpp: this.maxStimulusVpp,
+      maxStimulusVpp: this.limits.maxStimulusVpp,
       traffic,
       profileFolder: this.options.profileFolder,
     });
@@ -604,16 +682,12 @@ export class RolloffService implements RolloffApi {
     return { role: request.role, address: opened.address, profileId: opened.profileId, identity: opened.identity, simulated: isSimulated };
   }
 
-  private async startSimulatedBenchForDesign(design: Design, name: string, key: string, forStart = false): Promise<void> {
+  private async startSimulatedBenchForDesign(design: Design, name: string, key: string, forStart = false, bench: BenchIdentity = { name: this.benchName, simulated: true }): Promise<void> {
     if (!forStart) this.requireIdleBench();
-    for (const role of ROLES) {
-      this.wanted.delete(role);
-      const connected = this.instruments.get(role);
-      if (connected) {
-        this.instruments.delete(role);
-        await connected.opened.close().catch(() => undefined);
-      }
-    }
+    // The simulated bench has its own limit: never the real instruments' (nor the other way round).
+    await this.enterBench(bench);
+    this.requireMaxStimulus();
+    for (const role of ROLES) await this.disconnectRole(role);
     await this.simulatedBenchHandle?.stop();
     this.simulatedBenchHandle = undefined;
     const handle = await startSimulatedBenchFor(design, this.options.simulatedBench ?? {});
@@ -750,7 +824,7 @@ export class RolloffService implements RolloffApi {
   private async measurerFor(run: StoredRun, clock: BenchClock, gainRatioAt: ((f: number) => number) | undefined): Promise<StepMeasurer> {
     if (run.kind === 'dc') return dcMeasurer({ clock });
     if (run.request.measurement === 'meter') {
-      const calibration = run.request.through ? undefined : await this.store.latestCalibration(this.benchKey());
+      const calibration = run.request.through ? undefined : await this.store.latestCalibration(this.instrumentPairKey());
       if (calibration) await this.logRunEvent(run.id, 'info', `through-calibration ${calibration.id} of ${calibration.createdAt} applied`);
       else if (!run.request.through) await this.logRunEvent(run.id, 'warning', 'no through-calibration for this bench: gains include the generator\'s and meter\'s own response');
       return meterMeasurer({ clock, calibration });
@@ -758,8 +832,12 @@ export class RolloffService implements RolloffApi {
     return scopeMeasurer({ clock, expectedGainRatioAt: gainRatioAt ?? (() => 1) });
   }
 
-  /** Stable key of the generator + meter pair a through-calibration belongs to. */
-  private benchKey(): string {
+  /**
+   * Stable key of the generator + meter pair a through-calibration belongs to
+   * (their identities). Not the bench key of the settings (app/bench/bench-key.ts):
+   * a calibration describes one pair of instruments, whichever bench they sit on.
+   */
+  private instrumentPairKey(): string {
     return (['generator', 'meter'] as const).map((role) => {
       const c = this.instruments.get(role);
       return c ? `${role}=${identityKey(c.opened.identity)}` : `${role}=none`;
@@ -776,7 +854,7 @@ export class RolloffService implements RolloffApi {
       await this.store.setRunResults(runId, analysis.figures, analysis.verdict);
       if (run.request.through && run.status === 'done') {
         const calibration = await this.store.saveCalibration({
-          benchKey: this.benchKey(), bench: run.bench, frequencyHz: points.stimulus, gainDb: points.gainDb,
+          instrumentPairKey: this.instrumentPairKey(), bench: run.bench, frequencyHz: points.stimulus, gainDb: points.gainDb,
           phaseDeg: points.phaseDeg.map((p) => (Number.isFinite(p) ? p : 0)), notes: `through-calibration from run ${runId}`,
         });
         await this.logRunEvent(runId, 'info', `stored as through-calibration ${calibration.id} for this bench`);
@@ -796,14 +874,6 @@ export class RolloffService implements RolloffApi {
 function summaryOf(run: StoredRun): RunSummary {
   const { request: _r, plan: _p, softwareVersion: _s, bench: _b, operator: _o, notes: _n, scheduleId: _sc, createdAt: _c, figures: _f, verdict: _v, ...summary } = run;
   return summary;
-}
-
-/** The ceiling recorded with the newest run, if any. */
-async function lastRecordedMaxStimulus(store: RolloffStore): Promise<number | undefined> {
-  const [latest] = await store.listRuns({ limit: 1 });
-  if (!latest) return undefined;
-  const value = (await store.getRun(latest.id)).request.maxStimulusVpp;
-  return typeof value === 'number' && value > 0 ? value : undefined;
 }
 
 /** Ideal-op-amp response of the build at the measured frequencies (refinement targets). */

@@ -154,9 +154,9 @@ export function checkEventLevel(level: unknown): RunEvent['level'] {
  * A calibration's values, checked, in the calibrations table's column order:
  * bench_key, bench_json, frequencies_hz_json, gain_db_json, phase_deg_json, notes.
  */
-export function checkCalibration(input: NewCalibration): [benchKey: string, benchJson: string, frequenciesHzJson: string, gainDbJson: string, phaseDegJson: string, notes: string] {
-  const benchKey = requireText(input.benchKey, 'calibration.benchKey');
-  if (benchKey.length === 0) throw new ValidationError('calibration.benchKey', 'is empty');
+export function checkCalibration(input: NewCalibration): [instrumentPairKey: string, benchJson: string, frequenciesHzJson: string, gainDbJson: string, phaseDegJson: string, notes: string] {
+  const instrumentPairKey = requireText(input.instrumentPairKey, 'calibration.instrumentPairKey');
+  if (instrumentPairKey.length === 0) throw new ValidationError('calibration.instrumentPairKey', 'is empty');
   const n = input.frequencyHz?.length ?? 0;
   if (n === 0) throw new ValidationError('calibration.frequencyHz', 'is empty', 'A calibration needs at least one frequency.');
   if (input.gainDb?.length !== n || input.phaseDeg?.length !== n) {
@@ -166,7 +166,7 @@ export function checkCalibration(input: NewCalibration): [benchKey: string, benc
   input.gainDb.forEach((g, i) => requireFinite(g, `calibration.gainDb[${i}]`));
   input.phaseDeg.forEach((p, i) => requireFinite(p, `calibration.phaseDeg[${i}]`));
   return [
-    benchKey,
+    instrumentPairKey,
     toJson(input.bench ?? [], 'calibration.bench'),
     JSON.stringify(Array.from(input.frequencyHz)),
     JSON.stringify(Array.from(input.gainDb)),

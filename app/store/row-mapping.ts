@@ -69,7 +69,7 @@ export function rowMapping(read: ColumnReading): RowMapping {
     }),
     calibration: (row) => ({
       id: row.id as number,
-      benchKey: row.bench_key as string,
+      instrumentPairKey: row.bench_key as string, // the column keeps its first name
       bench: read.json(row.bench_json) as CalibrationRecord['bench'],
       frequencyHz: read.json(row.frequencies_hz_json) as number[],
       gainDb: read.json(row.gain_db_json) as number[],

@@ -700,9 +700,9 @@ export class SqliteStore implements RolloffStore {
     return { ...input, bench: input.bench ?? [], notes: input.notes ?? '', id: Number(result.lastInsertRowid), createdAt };
   }
 
-  /** The newest calibration of this bench, or undefined when it was never calibrated. */
-  async latestCalibration(benchKey: string): Promise<CalibrationRecord | undefined> {
-    const row = this.guard(() => this.statements.latestCalibration.get(benchKey)) as Row | undefined;
+  /** The newest calibration of this generator and meter, or undefined when they were never calibrated together. */
+  async latestCalibration(instrumentPairKey: string): Promise<CalibrationRecord | undefined> {
+    const row = this.guard(() => this.statements.latestCalibration.get(instrumentPairKey)) as Row | undefined;
     return row ? toRecord.calibration(row) : undefined;
   }
 

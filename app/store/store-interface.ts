@@ -152,11 +152,11 @@ export interface RunEventStore {
   listEvents(runId: number): Promise<RunEvent[]>;
 }
 
-/** Through-calibrations, per bench. */
+/** Through-calibrations, per pair of generator and meter (NewCalibration.instrumentPairKey). */
 export interface CalibrationStore {
   saveCalibration(input: NewCalibration): Promise<CalibrationRecord>;
-  /** The newest calibration of this bench, or undefined when it was never calibrated. */
-  latestCalibration(benchKey: string): Promise<CalibrationRecord | undefined>;
+  /** The newest calibration of this generator and meter, or undefined when they were never calibrated together. */
+  latestCalibration(instrumentPairKey: string): Promise<CalibrationRecord | undefined>;
 }
 
 /** Repeated sweeps of one build. */
@@ -173,7 +173,7 @@ export interface InstrumentStore {
   listInstruments(): Promise<InstrumentRecord[]>;
 }
 
-/** Settings that belong to one bench (e.g. its maximum stimulus), keyed like calibrations. */
+/** Settings that belong to one bench (its maximum stimulus), keyed by its bench key (app/bench/bench-key.ts). */
 export interface BenchSettingsStore {
   /** undefined when nothing was ever saved for this bench. */
   getBenchSettings(benchKey: string): Promise<BenchSettings | undefined>;

@@ -99,8 +99,12 @@ export interface InstrumentRecord {
 
 /** Through-calibration of one bench: corrections per frequency, subtracted from measurements. */
 export interface NewCalibration {
-  /** Stable key of the instrument set, e.g. from benchKeyOf(bench). */
-  benchKey: string;
+  /**
+   * Stable key of the generator and meter measured (their identities): a
+   * calibration belongs to that pair, not to a bench's settings key
+   * (app/bench/bench-key.ts). Stored in the column bench_key.
+   */
+  instrumentPairKey: string;
   bench: InstrumentInfo[];
   frequencyHz: number[];
   gainDb: number[];
@@ -153,8 +157,9 @@ export interface PointBatch {
 }
 
 /**
- * Settings that belong to one bench (one set of instruments), keyed like
- * calibrations by a stable bench key. null means "not set on this bench".
+ * Settings that belong to one bench, keyed by its bench key (its name and
+ * whether it is the simulated bench: app/bench/bench-key.ts). null means "not
+ * set on this bench".
  */
 export interface BenchSettingsInput {
   /** The user's ceiling on generator output (Vpp) for this bench. */

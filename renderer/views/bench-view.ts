@@ -11,6 +11,7 @@ import { guarded, showInfo, showPartResult } from '../notices';
 import type { View } from '../shell';
 import type { AppState } from '../state';
 import { SETTINGS } from '../../app/contract/vocabulary';
+import { benchDescription, limitSourceText } from '../../app/contract/bench-text';
 
 /** Enough scroll-back to see a sweep's recent exchanges without the page growing without bound. */
 const TRAFFIC_LINES_KEPT = 400;
@@ -24,6 +25,8 @@ export class BenchView implements View {
   private readonly portList = h('datalist', { id: 'port-list' });
   private readonly profileSelect = h('select', { name: 'profile' });
   private readonly maxInput = h('input', { type: 'text', name: 'max-stimulus', inputmode: 'decimal', 'data-testid': 'max-stimulus' });
+  /** Whose limit is in force and when it was set ("reusing the limit of 2 Vpp set on … for bench …"). */
+  private readonly maxSource = h('p', { className: 'hint', 'data-testid': 'max-stimulus-source', 'aria-live': 'polite' });
   private readonly simulatedDesignSelect = h('select', { name: 'simulated-design', 'data-testid': 'simulated-design' });
   private readonly simulatedStatus = h('p', { className: 'simulated-status', 'data-testid': 'simulated-status' });
   private readonly checkTitle = h('p', { 'data-testid': 'profile-check-title' }, 'Check a profile against an instrument: pick the role, address and profile above and press Check profile.');
@@ -73,13 +76,13 @@ export class BenchView implements View {
     });
 
     const maxButton = h('button', { type: 'submit' }, 'Apply');
-    const maxForm = h('form', { className: 'stack-form', 'aria-label': 'Maximum stimulus amplitude' }, field(`${SETTINGS.maxStimulus.label} (V peak-to-peak)`, this.maxInput, `${SETTINGS.maxStimulus.explanation[0].toUpperCase()}${SETTINGS.maxStimulus.explanation.slice(1)}. Engineering notation works: 500m, 2.`), maxButton);
+    const maxForm = h('form', { className: 'stack-form', 'aria-label': 'Maximum stimulus amplitude' }, field(`${SETTINGS.maxStimulus.label} (V peak-to-peak)`, this.maxInput, `${asSentence(SETTINGS.maxStimulus.explanation)} Engineering notation works: 500m, 2.`), maxButton);
     maxForm.addEventListener('submit', (event) => {
       event.preventDefault();
       void guarded(maxButton, 'Setting the maximum stimulus', async () => {
         const bench = await client.setMaxStimulus(parseEngineering(this.maxInput.value, 'Maximum stimulus'));
         state.update({ bench });
-        showInfo(`Maximum stimulus set to ${bench.maxStimulusVpp} Vpp.`);
+        showInfo(`Maximum stimulus set to ${bench.maxStimulusVpp} Vpp${bench.bench ? ` for ${benchDescription(bench.bench)}` : ''}.`);
       });
     });
 
@@ -109,7 +112,7 @@ export class BenchView implements View {
       ),
       h('div', { className: 'start-row' },
         h('div', { className: 'panel' }, h('h3', {}, 'Connect'), connectForm),
-        h('div', { className: 'panel' }, h('h3', {}, SETTINGS.maxStimulus.label), maxForm),
+        h('div', { className: 'panel' }, h('h3', {}, SETTINGS.maxStimulus.label), maxForm, this.maxSource),
         h('div', { className: 'panel' }, h('h3', {}, 'Simulated bench ', h('span', { className: 'badge simulated' }, 'simulated')), simulatedForm, this.simulatedStatus),
       ),
       h('div', { className: 'panel' },
@@ -165,7 +168,8 @@ export class BenchView implements View {
 
   private renderBench(bench: BenchStatus | undefined): void {
     if (!bench) return;
-    if (document.activeElement !== this.maxInput) this.maxInput.value = String(bench.maxStimulusVpp);
+    if (document.activeElement !== this.maxInput) this.maxInput.value = bench.maxStimulusVpp > 0 ? String(bench.maxStimulusVpp) : '';
+    this.maxSource.textContent = maxStimulusSourceText(bench);
     replaceChildren(
       this.instrumentsBody,
       bench.instruments.length === 0
@@ -214,6 +218,18 @@ export class BenchView implements View {
     while (this.traffic.childElementCount > TRAFFIC_LINES_KEPT) this.traffic.firstElementChild?.remove();
     if (atBottom) this.traffic.scrollTop = this.traffic.scrollHeight;
   }
+}
+
+/** Each bench keeps its own limit (the simulated bench and the real instruments too): say whose is in force. */
+export function maxStimulusSourceText(bench: BenchStatus): string {
+  if (bench.maxStimulusLimit) return asSentence(limitSourceText(bench.maxStimulusLimit));
+  if (bench.maxStimulusVpp > 0) return 'Not saved yet: it becomes the setting of the bench you connect or start next.';
+  return bench.bench ? `Not set for ${benchDescription(bench.bench)}: set it before connecting a generator.` : 'Not set: set it before connecting a generator.';
+}
+
+/** "reusing …" → "Reusing ….". */
+function asSentence(text: string): string {
+  return `${text[0].toUpperCase()}${text.slice(1)}.`;
 }
 
 function partFailureSlot(testId: string): HTMLElement {

@@ -43,11 +43,16 @@ describe.skipIf(!requireTool('chromium'))('resume after a crash, from the Histor
     expect(before!.pointCount).toBeLessThan(before!.plannedCount);
 
     second = await startServe(['--simulated', '--time-scale', '4'], { dbPath });
+    // No --max-amplitude this time: the simulated bench's saved 2 Vpp is reused, and both the command and the window say so.
+    const reused = /[Rr]eusing the limit of 2 Vpp set on \d{4}-\d\d-\d\d \d\d:\d\d:\d\d UTC for the simulated bench of "[^"]+"/;
+    expect(second.output()).toMatch(reused);
     const browser = await launchChromium();
     try {
       const page = await browser.context.newPage();
       await page.goto(second.url);
       await page.getByTestId('safety-ok').click();
+      await expect.poll(() => page.getByTestId('max-stimulus-source').textContent(), { timeout: 10_000 }).toMatch(reused);
+      expect(await page.getByTestId('max-stimulus').inputValue()).toBe('2');
       await page.keyboard.press('Alt+4');
       const offer = page.getByTestId('interrupted-runs');
       await expect.poll(() => offer.textContent(), { timeout: 10_000 }).toMatch(new RegExp(`Run #${run.id} .*crash board`));

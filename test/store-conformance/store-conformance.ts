@@ -11,6 +11,7 @@ import { afterEach, describe, expect, it } from 'vitest';
 import { ValidationError } from '../../app/errors';
 import { DuplicateStepError, RecordNotFoundError, type RolloffStore, type StoreOpenOptions } from '../../app/store';
 import { newRun, plan, point, request, seedRun } from './fixtures';
+import { benchKey } from '../../app/bench/bench-key';
 
 /** Opens a new, empty store; `now` (when given) is the clock for every timestamp the store writes. */
 export type OpenFreshStore = (options?: Pick<StoreOpenOptions, 'now'>) => Promise<RolloffStore>;
@@ -219,12 +220,12 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
       expect(later.lastSeenAt).toBe('2026-01-02T00:00:00.000Z');
       expect(await store.listInstruments()).toHaveLength(1);
 
-      expect(await store.latestCalibration('bench-a')).toBeUndefined();
-      await store.saveCalibration({ benchKey: 'bench-a', bench: [], frequencyHz: [10, 100], gainDb: [0.01, 0.02], phaseDeg: [0, -0.1] });
-      const newest = await store.saveCalibration({ benchKey: 'bench-a', bench: [], frequencyHz: [10, 100], gainDb: [0.03, 0.04], phaseDeg: [0, -0.2] });
-      expect(await store.latestCalibration('bench-a')).toEqual(newest);
-      expect(await store.latestCalibration('bench-b')).toBeUndefined();
-      await expect(store.saveCalibration({ benchKey: 'b', bench: [], frequencyHz: [10, 100], gainDb: [0], phaseDeg: [0, 0] })).rejects.toThrow(/gainDb has 1/);
+      expect(await store.latestCalibration('generator=a;meter=b')).toBeUndefined();
+      await store.saveCalibration({ instrumentPairKey: 'generator=a;meter=b', bench: [], frequencyHz: [10, 100], gainDb: [0.01, 0.02], phaseDeg: [0, -0.1] });
+      const newest = await store.saveCalibration({ instrumentPairKey: 'generator=a;meter=b', bench: [], frequencyHz: [10, 100], gainDb: [0.03, 0.04], phaseDeg: [0, -0.2] });
+      expect(await store.latestCalibration('generator=a;meter=b')).toEqual(newest);
+      expect(await store.latestCalibration('generator=c;meter=b')).toBeUndefined();
+      await expect(store.saveCalibration({ instrumentPairKey: 'generator=c;meter=d', bench: [], frequencyHz: [10, 100], gainDb: [0], phaseDeg: [0, 0] })).rejects.toThrow(/gainDb has 1/);
 
       const schedule = await store.createSchedule({ buildId: build.id, request, everyMinutes: 30, count: 16 });
       expect(await store.getSchedule(schedule.id)).toMatchObject({ buildId: build.id, everyMinutes: 30, count: 16, until: null });
@@ -256,18 +257,33 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
     },
   },
   {
-    name: 'keeps settings per bench, replaced whole on save',
+    name: 'keeps settings per bench, replaced whole on save; the simulated and real benches of one name and two names are four benches',
     async run(open) {
-      const store = await open({ now: () => '2026-03-04T05:06:07.000Z' });
-      expect(await store.getBenchSettings('generator=a;meter=b')).toBeUndefined();
-      const saved = await store.saveBenchSettings('generator=a;meter=b', { maxStimulusVpp: 2 });
-      expect(saved).toEqual({ benchKey: 'generator=a;meter=b', maxStimulusVpp: 2, updatedAt: '2026-03-04T05:06:07.000Z' });
-      expect(await store.getBenchSettings('generator=a;meter=b')).toEqual(saved);
-      expect(await store.getBenchSettings('generator=c;meter=b')).toBeUndefined(); // another bench inherits nothing
-      expect((await store.saveBenchSettings('generator=a;meter=b', { maxStimulusVpp: null })).maxStimulusVpp).toBeNull();
-      await expect(store.saveBenchSettings('generator=a;meter=b', { maxStimulusVpp: -1 })).rejects.toThrow(/maxStimulusVpp/);
+      let now = '2026-03-04T05:06:07.000Z';
+      const store = await open({ now: () => now });
+      const real = benchKey({ name: 'bench A', simulated: false });
+      const simulated = benchKey({ name: 'bench A', simulated: true });
+      const otherReal = benchKey({ name: 'bench B', simulated: false });
+      expect(await store.getBenchSettings(real)).toBeUndefined();
+      const saved = await store.saveBenchSettings(simulated, { maxStimulusVpp: 20 });
+      expect(saved).toEqual({ benchKey: simulated, maxStimulusVpp: 20, updatedAt: '2026-03-04T05:06:07.000Z' });
+      expect(await store.getBenchSettings(simulated)).toEqual(saved);
+      // Neither the real instruments of the same bench nor another bench inherit anything.
+      expect(await store.getBenchSettings(real)).toBeUndefined();
+      expect(await store.getBenchSettings(otherReal)).toBeUndefined();
+      now = '2026-03-05T00:00:00.000Z';
+      await store.saveBenchSettings(real, { maxStimulusVpp: 0.5 });
+      await store.saveBenchSettings(otherReal, { maxStimulusVpp: 1 });
+      expect((await store.getBenchSettings(simulated))?.maxStimulusVpp).toBe(20);
+      expect(await store.getBenchSettings(real)).toEqual({ benchKey: real, maxStimulusVpp: 0.5, updatedAt: '2026-03-05T00:00:00.000Z' });
+      expect((await store.getBenchSettings(otherReal))?.maxStimulusVpp).toBe(1);
+      now = '2026-03-06T00:00:00.000Z';
+      expect(await store.saveBenchSettings(real, { maxStimulusVpp: null })).toEqual({ benchKey: real, maxStimulusVpp: null, updatedAt: '2026-03-06T00:00:00.000Z' });
+      await expect(store.saveBenchSettings(real, { maxStimulusVpp: -1 })).rejects.toThrow(/maxStimulusVpp/);
+      await expect(store.saveBenchSettings(real, { maxStimulusVpp: Number.NaN })).rejects.toThrow(/maxStimulusVpp/);
       await expect(store.saveBenchSettings('', { maxStimulusVpp: 1 })).rejects.toThrow(/benchKey/);
-      expect((await store.getBenchSettings('generator=a;meter=b'))?.maxStimulusVpp).toBeNull();
+      expect((await store.getBenchSettings(real))?.maxStimulusVpp).toBeNull(); // the refused saves changed nothing
+      expect((await store.getBenchSettings(simulated))?.maxStimulusVpp).toBe(20);
     },
   },
   {

@@ -2,7 +2,7 @@ import type { CommandSpec } from '../args';
 import { optionFlag, requirePositional } from '../args';
 import { ValidationError } from '../../errors';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
-import { BENCH_OPTIONS, connectBench, openService } from '../sweep/sweep-options';
+import { BENCH_OPTIONS, connectRequestsFrom, openService, reportReusedLimit } from '../sweep/sweep-options';
 import { followRun } from '../sweep/follow-run';
 import { runDetailText } from '../sweep/summary-text';
 import { parseRunId } from './show';
@@ -16,20 +16,23 @@ export const resumeCommand: CommandSpec = {
   details: `
 A simulated run continues on a fresh simulated bench of its build (--simulated may be given, as
 with sweep, and changes nothing); a real run never continues on the simulated bench. A real run reconnects to the
-addresses it was measured with, unless other addresses are given. The maximum stimulus recorded
-with the run applies unless --max-amplitude is given.`,
+addresses it was measured with, unless other addresses are given. The maximum stimulus is the one
+saved for the run's bench (the simulated bench, or the real instruments, of the bench named with
+the run), never one recorded with the run or another bench's; --max-amplitude saves a new one for
+that bench. Without either, resume is refused.`,
   async run(parsed) {
     process.stderr.write(`${SAFETY_NOTICE_SHORT}\n\n`);
     const runId = parseRunId(requirePositional(parsed, 0, 'RUN'));
-    const service = await openService(parsed);
+    // The run's bench decides which maximum stimulus applies, not the options.
+    const service = await openService(parsed, { benchFromOptions: false });
     try {
       const stored = await service.getRunSummary(runId);
       if (optionFlag(parsed, 'simulated') && !stored.simulated) {
         throw new ValidationError('--simulated', `run ${runId} was measured on real instruments and continues only on them`, 'Drop --simulated; give the instrument addresses if they changed (--generator, --scope, --meter).');
       }
       if (stored.simulated) process.stderr.write(`run ${runId} was measured on the simulated bench and continues on a fresh simulated bench\n`);
-      else await connectBench(service, parsed, stored.buildId);
-      await service.resumeRun(runId);
+      await service.resumeRunWith(runId, { instruments: stored.simulated ? [] : connectRequestsFrom(parsed) });
+      reportReusedLimit(service);
       process.stderr.write(`run ${runId} continues at step ${await service.nextStep(runId)}\n`);
       const status = await followRun(service, runId);
       process.stdout.write(runDetailText(await service.getRun(runId), await service.diodeOfRun(runId)));

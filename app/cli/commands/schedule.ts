@@ -2,7 +2,7 @@ import type { CommandSpec } from '../args';
 import { optionNumber, optionString } from '../args';
 import { ValidationError } from '../../errors';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
-import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, openService, prepareSweep } from '../sweep/sweep-options';
+import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, openService, prepareSweep, reportReusedLimit } from '../sweep/sweep-options';
 import { followRun } from '../sweep/follow-run';
 import { formatEngineering } from '../../units';
 
@@ -28,6 +28,7 @@ and ends the schedule.`,
     const service = await openService(parsed);
     try {
       const { buildId, request } = await prepareSweep(service, parsed);
+      reportReusedLimit(service);
       const report = await service.runSchedule({ request, everyMinutes, count: optionNumber(parsed, 'count'), until }, (run, index) => {
         process.stderr.write(`schedule: run ${index + 1} is run ${run.id}\n`);
         void followRun(service, run.id);

@@ -10,6 +10,16 @@ import { bundleRenderer } from '../../host/renderer-bundle';
 import { startWebHost } from '../../host/web-host';
 import { openHostedService } from '../../host/hosted-service';
 import { SETTINGS } from '../../contract/vocabulary';
+import { benchDescription, limitSourceText } from '../../contract/bench-text';
+import { checkMaxStimulusVpp } from '../../service/stimulus-limits';
+import type { RolloffService } from '../../service/service';
+
+/** Which limit the window starts with, and whose it is. */
+function maximumStimulusLine(service: RolloffService): string {
+  const limit = service.stimulusLimit;
+  if (limit) return `${SETTINGS.maxStimulus.label}: ${limitSourceText(limit)}.`;
+  return `${SETTINGS.maxStimulus.label}: not set for ${service.bench ? benchDescription(service.bench) : 'this bench'}; set it on the Bench view.`;
+}
 
 /** Simulated bench seconds per wall second with --simulated: a 40-point sweep takes seconds, not minutes (common practice, no source). */
 const DEFAULT_SIMULATED_TIME_SCALE = 10;
@@ -24,7 +34,7 @@ export const serveCommand: CommandSpec = {
     { name: 'db', kind: 'string', description: 'database file (default: ROLLOFF_DB or the per-user data folder)', placeholder: 'PATH' },
     { name: 'simulated', kind: 'flag', aliases: ['virtual'], description: 'run the simulated bench on a fast clock (simulated instruments; start it on the Bench view)' },
     { name: 'time-scale', kind: 'number', description: 'simulated bench seconds per wall-clock second, with --simulated', defaultValue: DEFAULT_SIMULATED_TIME_SCALE, placeholder: 'N' },
-    { name: 'max-amplitude', kind: 'number', description: `${SETTINGS.maxStimulus.label}, V peak-to-peak: ${SETTINGS.maxStimulus.explanation} (else set it on the Bench view)`, placeholder: 'VPP' },
+    { name: 'max-amplitude', kind: 'number', description: `${SETTINGS.maxStimulus.label}, V peak-to-peak: ${SETTINGS.maxStimulus.explanation} (saved for the bench served: the simulated bench with --simulated, else the real instruments; without it that bench's saved limit applies, or set it on the Bench view)`, placeholder: 'VPP' },
     { name: 'require-token', kind: 'flag', description: 'require the access token even on a loopback address' },
   ],
   details: `
@@ -46,11 +56,16 @@ Examples:
     const timeScale = optionNumber(parsed, 'time-scale') ?? DEFAULT_SIMULATED_TIME_SCALE;
     if (!(timeScale > 0)) throw new UserError(`--time-scale ${timeScale} must be above 0`, 'Use 1 for real time, 10 for ten times faster.');
     const maxStimulusVpp = optionNumber(parsed, 'max-amplitude');
-    if (maxStimulusVpp !== undefined && !(maxStimulusVpp > 0)) throw new UserError(`--max-amplitude ${maxStimulusVpp} must be above 0 V`, 'Give the largest peak-to-peak voltage the circuit may see, e.g. 2.');
+    if (maxStimulusVpp !== undefined) checkMaxStimulusVpp(maxStimulusVpp, '--max-amplitude');
     const databasePath = resolveDatabasePath(optionString(parsed, 'db'));
 
     const files = await bundleRenderer();
-    const hosted = await openHostedService(databasePath, { maxStimulusVpp, simulatedBench: simulated ? { timeScale } : undefined });
+    const hosted = await openHostedService(databasePath, {
+      maxStimulusVpp,
+      startOn: simulated ? 'simulated bench' : 'real instruments',
+      ownerLabel: 'rolloff serve',
+      simulatedBench: simulated ? { timeScale } : undefined,
+    });
     let webHost: Awaited<ReturnType<typeof startWebHost>>;
     try {
       webHost = await startWebHost({
@@ -74,6 +89,7 @@ Examples:
     const lines = [
       `Rolloff is serving the window${simulated ? ' with the simulated bench (SIMULATED instruments)' : ''}.`,
       `Database: ${hosted.service.store.location}`, // a lab store's address without its password
+      maximumStimulusLine(hosted.service),
       `Open ${webHost.url}`,
     ];
     if (webHost.token) lines.push(`Access token: ${webHost.token}`, '  Every request must carry it (the address above does); anyone with it can drive this bench.');

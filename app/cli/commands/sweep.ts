@@ -1,7 +1,7 @@
 import type { CommandSpec } from '../args';
 import { optionFlag } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
-import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, namedForTheCommandLine, openService, prepareSweep } from '../sweep/sweep-options';
+import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, namedForTheCommandLine, openService, prepareSweep, reportReusedLimit } from '../sweep/sweep-options';
 import { followRun } from '../sweep/follow-run';
 import { formatDuration } from '../../units';
 import { runDetailText } from '../sweep/summary-text';
@@ -18,7 +18,9 @@ Examples:
   rolloff sweep --build 3 --generator tcp://192.0.2.10:5025 --scope tcp://192.0.2.11:5025 --max-amplitude 1 --from 10 --to 1meg
   rolloff sweep --build 4 --dc --from 1m --to 10 --per-decade 5 --simulated --max-amplitude 20
 
-Every point is stored the moment it is measured. Ctrl-C pauses after the current point;
+The maximum stimulus is a setting of the bench: --max-amplitude saves it for this bench (the
+simulated bench and the real instruments of a bench each keep their own), and later sweeps on
+the same bench reuse it, saying so. Every point is stored the moment it is measured. Ctrl-C pauses after the current point;
 "rolloff resume RUN" continues where it stopped.`,
   async run(parsed) {
     process.stderr.write(`${SAFETY_NOTICE_SHORT}\n\n`);
@@ -30,6 +32,7 @@ Every point is stored the moment it is measured. Ctrl-C pauses after the current
           `continue one with: rolloff resume RUN --db ${service.databaseLocation}\n`);
       }
       const { request } = await prepareSweep(service, parsed);
+      reportReusedLimit(service);
       const plan = await service.planSweep(request).catch((error: unknown) => {
         throw namedForTheCommandLine(error);
       });

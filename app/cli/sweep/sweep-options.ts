@@ -9,12 +9,20 @@ import { optionFlag, optionNumber, optionString } from '../../cli/args';
 import { ValidationError } from '../../errors';
 import type { RolloffService } from '../../service/service';
 import { openServiceAt } from '../../service/open-service';
-import type { SweepRequest, VerdictLimits } from '../../contract/contract';
+import type { ConnectRequest, SweepRequest, VerdictLimits } from '../../contract/contract';
 import { resolveDatabasePath } from '../../store';
 import { DEFAULT_PROFILE_ID, resolveBenchName } from '../../bench';
 import { parseEngineering } from '../../units';
 import { SWEEP_DEFAULTS, SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
 import { SETTINGS } from '../../contract/vocabulary';
+import { benchDescription, limitReuseText } from '../../contract/bench-text';
+import { checkMaxStimulusVpp } from '../../service/stimulus-limits';
+
+/** "reusing the limit of 2 Vpp set on … for bench "lab-3"" on stderr, when the limit in force was saved earlier. */
+export function reportReusedLimit(service: RolloffService): void {
+  const limit = service.stimulusLimit;
+  if (limit?.reused) process.stderr.write(`${limitReuseText(limit)}\n`);
+}
 
 export const DATABASE_OPTION: OptionSpec = { name: 'db', kind: 'string', placeholder: 'PATH|URL', description: 'database file, or a lab store postgres://USER@HOST:PORT/DATABASE (default: ROLLOFF_DB or the user data folder)' };
 
@@ -30,7 +38,7 @@ export const BENCH_OPTIONS: OptionSpec[] = [
   { name: 'scope-profile', kind: 'string', placeholder: 'ID', description: 'scope profile', defaultValue: DEFAULT_PROFILE_ID.scope },
   { name: 'meter-profile', kind: 'string', placeholder: 'ID', description: 'meter profile', defaultValue: DEFAULT_PROFILE_ID.meter },
   { name: 'give-up', kind: 'number', placeholder: 'S', description: 'mark the run failed (points kept) when the instruments stay unreachable this long', defaultValue: 120 },
-  { name: 'max-amplitude', kind: 'number', placeholder: 'VPP', description: `${SETTINGS.maxStimulus.label}, V peak-to-peak: ${SETTINGS.maxStimulus.explanation} (required once; later runs reuse the last one recorded)` },
+  { name: 'max-amplitude', kind: 'number', placeholder: 'VPP', description: `${SETTINGS.maxStimulus.label}, V peak-to-peak: ${SETTINGS.maxStimulus.explanation} (saved for this bench: the simulated bench and real instruments each keep their own; later runs on the same bench reuse it)` },
   { name: 'bench', kind: 'string', placeholder: 'NAME', description: 'name of this bench, recorded with each run (default: ROLLOFF_BENCH or the host name)' },
   DATABASE_OPTION,
 ];
@@ -61,12 +69,20 @@ export const BUILD_OPTIONS: OptionSpec[] = [
   { name: 'actual', kind: 'string', placeholder: 'PART=VALUE', repeatable: true, description: 'measured part value of the new build, e.g. C1=16.2n' },
 ];
 
-/** Opens the service on --db; the simulated bench options apply when --simulated is used. */
-export async function openService(parsed: ParsedArgs, overrides: { timeScale?: number; latencyS?: number } = {}): Promise<RolloffService> {
+/**
+ * Opens the service on --db; the simulated bench options apply when --simulated is used.
+ * `benchFromOptions`: the bench is the one the options name (--simulated or real
+ * instruments), so its stored maximum stimulus applies at once; else (resume)
+ * the run decides.
+ */
+export async function openService(parsed: ParsedArgs, overrides: { timeScale?: number; latencyS?: number; benchFromOptions?: boolean } = {}): Promise<RolloffService> {
   const timeScale = overrides.timeScale ?? optionNumber(parsed, 'time-scale') ?? 1;
   if (!(timeScale > 0)) throw new ValidationError('--time-scale', `${timeScale} is not a positive number`);
+  const maxStimulusVpp = optionNumber(parsed, 'max-amplitude');
+  if (maxStimulusVpp !== undefined) checkMaxStimulusVpp(maxStimulusVpp, '--max-amplitude');
   return openServiceAt(resolveDatabasePath(optionString(parsed, 'db')), {
-    maxStimulusVpp: optionNumber(parsed, 'max-amplitude'),
+    maxStimulusVpp,
+    ...(overrides.benchFromOptions === false ? {} : { startOn: optionFlag(parsed, 'simulated') ? 'simulated bench' : 'real instruments' }),
     giveUpAfterS: optionNumber(parsed, 'give-up') ?? 120,
     benchName: resolveBenchName(optionString(parsed, 'bench')),
     ownerLabel: 'rolloff (command line)',
@@ -154,7 +170,12 @@ export function readJsonFile(path: string, where: string): unknown {
 /** Refuses a sweep that could not start (no ceiling, no instruments) before anything is stored. */
 function checkBenchOptions(service: RolloffService, parsed: ParsedArgs): void {
   if (service.maxStimulus === undefined) {
-    throw new ValidationError('--max-amplitude', 'is missing and no earlier run in this database recorded one', 'Give the largest peak-to-peak voltage the circuit may see, e.g. --max-amplitude 2.');
+    const bench = service.bench ? benchDescription(service.bench) : 'this bench';
+    throw new ValidationError(
+      '--max-amplitude',
+      `is missing and ${bench} has no maximum stimulus saved`,
+      `Give the largest peak-to-peak voltage the circuit may see, e.g. --max-amplitude 2; it is saved for ${bench}${service.bench?.simulated ? '' : ' (a limit set for the simulated bench never applies to real instruments)'}.`,
+    );
   }
   if (!optionFlag(parsed, 'simulated') && !optionString(parsed, 'generator')) {
     throw new ValidationError('--generator', 'no instruments given', 'Give --generator ADDRESS with --scope or --meter ADDRESS, or use --simulated for the simulated bench.');
@@ -167,10 +188,15 @@ export async function connectBench(service: RolloffService, parsed: ParsedArgs, 
     await service.startSimulatedBenchForBuild(buildId);
     return;
   }
-  for (const role of ['generator', 'scope', 'meter'] as const) {
+  for (const request of connectRequestsFrom(parsed)) await service.connect(request);
+}
+
+/** The instruments --generator, --scope and --meter name, with their profiles. */
+export function connectRequestsFrom(parsed: ParsedArgs): ConnectRequest[] {
+  return (['generator', 'scope', 'meter'] as const).flatMap((role) => {
     const address = optionString(parsed, role);
-    if (address) await service.connect({ role, address, profileId: optionString(parsed, `${role}-profile`) ?? `scpi-${role}` });
-  }
+    return address ? [{ role, address, profileId: optionString(parsed, `${role}-profile`) ?? `scpi-${role}` }] : [];
+  });
 }
 
 export function requestFrom(parsed: ParsedArgs, buildId: number): SweepRequest {

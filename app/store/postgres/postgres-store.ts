@@ -790,8 +790,8 @@ export class PostgresStore implements RolloffStore {
     return toRecord.calibration(rows[0]);
   }
 
-  async latestCalibration(benchKey: string): Promise<CalibrationRecord | undefined> {
-    const { rows } = await this.query('SELECT * FROM calibrations WHERE bench_key = $1 ORDER BY id DESC LIMIT 1', [requireText(benchKey, 'benchKey')]);
+  async latestCalibration(instrumentPairKey: string): Promise<CalibrationRecord | undefined> {
+    const { rows } = await this.query('SELECT * FROM calibrations WHERE bench_key = $1 ORDER BY id DESC LIMIT 1', [requireText(instrumentPairKey, 'instrumentPairKey')]);
     return rows.length === 0 ? undefined : toRecord.calibration(rows[0]);
   }
 

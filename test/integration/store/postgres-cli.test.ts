@@ -1,15 +1,20 @@
 /**
  * The command line over a lab store: `rolloff demo --fast` sweeps into a
  * PostgreSQL database named with --db, `rolloff runs` on another process lists
- * what it stored, and the password (in the address) appears in no output.
+ * what it stored, and the password (in the address) appears in no output. Two
+ * benches sweeping at once each keep their own maximum stimulus.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawn, spawnSync } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { PostgresStore } from '../../../app/store/postgres/postgres-store';
 import { callService, startServe } from '../../e2e/helpers/serve-process';
 import type { RunSummary } from '../../../app/contract/contract';
 import { postgresAvailable, startPostgresCluster, type PostgresCluster } from '../../helpers/postgres-cluster';
+import { benchKey } from '../../../app/bench/bench-key';
+import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 
 const BIN = join(resolve(__dirname, '../../..'), 'app/cli/bin.mjs');
 const hasPostgres = postgresAvailable();
@@ -19,7 +24,11 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
   beforeAll(async () => {
     cluster = await startPostgresCluster();
   });
-  afterAll(() => cluster?.remove());
+  const folder = mkdtempSync(join(tmpdir(), 'rolloff-pg-cli-'));
+  afterAll(() => {
+    cluster?.remove();
+    rmSync(folder, { recursive: true, force: true });
+  });
 
   const twoBenchesUrl = () => (twoBenches ??= cluster.createDatabase('two_benches').replace(`${cluster.role}@`, `${cluster.role}:${encodeURIComponent(cluster.password)}@`));
   let twoBenches: string | undefined;
@@ -48,37 +57,55 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
     }
   });
 
-  it('two benches (processes named by ROLLOFF_BENCH) sweeping into one new lab database at once both complete, every step stored once, each run with its bench', async () => {
+  it('two benches (processes named by ROLLOFF_BENCH) sweeping into one new lab database at once both complete, every step stored once, each run with its bench and its bench\'s own maximum stimulus', async () => {
     const url = twoBenchesUrl();
-    const run = (bench: string) =>
+    const designPath = join(folder, 'lowpass.json');
+    writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
+    const sweep = (bench: string, extra: string[]) =>
       new Promise<{ status: number | null; stderr: string }>((resolve) => {
-        const child = spawn(process.execPath, [BIN, 'demo', '--fast', '--db', url], { stdio: ['ignore', 'ignore', 'pipe'], env: { ...process.env, ROLLOFF_BENCH: bench } });
+        const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', bench, '--simulated', '--time-scale', '20', '--db', url, ...extra], {
+          stdio: ['ignore', 'ignore', 'pipe'],
+          env: { ...process.env, ROLLOFF_BENCH: bench },
+        });
         let stderr = '';
         child.stderr.on('data', (chunk) => (stderr += chunk));
         child.on('close', (status) => resolve({ status, stderr }));
       });
+    // Each bench sweeps twice: first with its own limit, then reusing it (never the other bench's).
+    const limitOf: Record<string, number> = { 'bench 3': 1.5, 'bench 7': 0.25 };
+    const twice = async (bench: string) => [await sweep(bench, ['--max-amplitude', String(limitOf[bench])]), await sweep(bench, [])];
     // Both open the empty database at the same moment: one migrates under the advisory lock, the other waits.
-    const results = await Promise.all([run('bench 3'), run('bench 7')]);
+    const results = (await Promise.all([twice('bench 3'), twice('bench 7')])).flat();
     for (const result of results) expect(result.status, result.stderr).toBe(0);
+    expect(results[1].stderr).toMatch(/reusing the limit of 1\.5 Vpp set on .* for the simulated bench of "bench 3"/);
+    expect(results[3].stderr).toMatch(/reusing the limit of 0\.25 Vpp set on .* for the simulated bench of "bench 7"/);
     const store = await PostgresStore.open(url);
     try {
       const runs = await store.listRuns();
-      expect(runs).toHaveLength(4); // the demo sweeps two builds; two processes
+      expect(runs).toHaveLength(4); // two sweeps per bench
       for (const summary of runs) {
         expect(summary.status).toBe('done');
         const steps = (await store.loadPoints(summary.id)).step;
         expect(steps).toEqual(Array.from({ length: steps.length }, (_, i) => i)); // each step once, none missing
         expect(summary.pointCount).toBe(steps.length);
         expect(steps.length).toBeGreaterThan(10);
+        // Each run was planned and driven under its own bench's limit.
+        const run = await store.getRun(summary.id);
+        expect(run.request.maxStimulusVpp, summary.benchName).toBe(limitOf[summary.benchName]);
+        expect(Math.max(...(await store.loadPoints(summary.id)).amplitudeVpp)).toBeLessThanOrEqual(limitOf[summary.benchName]);
       }
-      // Each process recorded its own bench name with its runs.
+      // Each process recorded its own bench name with its runs, and each bench's setting is its own.
       expect((await store.listRuns({ bench: 'bench 3' })).length).toBe(2);
       expect((await store.listRuns({ bench: 'bench 7' })).length).toBe(2);
+      for (const bench of Object.keys(limitOf)) {
+        expect((await store.getBenchSettings(benchKey({ name: bench, simulated: true })))?.maxStimulusVpp).toBe(limitOf[bench]);
+        expect(await store.getBenchSettings(benchKey({ name: bench, simulated: false }))).toBeUndefined();
+      }
       expect(await store.integrityProblems()).toEqual([]);
     } finally {
       await store.close();
     }
-  });
+  }, 240_000);
 
   it('lists the runs of one bench: rolloff runs --bench, and listRuns({ bench }) through the window\'s API of rolloff serve', async () => {
     const url = twoBenchesUrl(); // swept by the two benches of the test above
