@@ -415,6 +415,21 @@ export interface Verdict {
   reasons: string[];
 }
 
+/** The process that drives a run, as the service sees it when it answers. */
+export interface RunOwner {
+  /** What drives it, for people: "rolloff (command line)", "rolloff serve", "the desktop window". */
+  label: string;
+  pid: number;
+  host: string;
+  /** ISO 8601: when it took the run, and its latest heartbeat. */
+  since: string;
+  heartbeatAt: string;
+  /** Whole seconds from the heartbeat to the moment the service answered, by the service's clock. */
+  heartbeatAgeS: number;
+  /** false when the heartbeat is stale or, on the service's host, the process is gone: nobody drives the run any more. */
+  live: boolean;
+}
+
 export interface RunSummary {
   id: number;
   /** Stable identity (a UUID made when the run was created), the same in every store it is copied to. */
@@ -431,6 +446,8 @@ export interface RunSummary {
   simulated: boolean;
   /** The bench that drove the run; '' for runs stored before benches had names. */
   benchName: string;
+  /** The process that has claimed the run (while it is driven, or left behind by one that died); null when none has. */
+  owner: RunOwner | null;
 }
 
 /** A time the bench driving a run could not reach its store and kept the points in its local outbox (ISO 8601 instants). */

@@ -2,8 +2,8 @@
  * A run with everything a view or a record needs: points, theory over the
  * run's frequencies with the tolerance band, figures, flags and verdict.
  */
-import type { RunReadStore, StoredRun } from '../store';
-import type { PointColumns, RunDetail, RunFigures, TheoryColumns, Verdict } from '../contract/contract';
+import type { RunOwnership, RunReadStore, StoredRun, StoredRunSummary } from '../store';
+import type { PointColumns, RunDetail, RunFigures, RunOwner, RunSummary, TheoryColumns, Verdict } from '../contract/contract';
 import { analyzeAcRun, usablePointIndexes } from '../analysis';
 import { analyzeStability, inputResistor, outputOpAmpIndex, stabilityWarnings, throughDesign, type OpAmpStability, type AcResponse, type Design, type DiodePart } from '../circuit';
 import { fitLogStage, logFitFigures, FitError } from '../signal';
@@ -108,7 +108,20 @@ export async function diodeOfRun(store: RunReadStore, runId: number): Promise<{ 
   return diode ? { n: diode.model.n, isA: diode.model.is, rsOhm: diode.model.rs } : undefined;
 }
 
-export async function runDetail(store: RunReadStore, runId: number): Promise<RunDetail> {
+/**
+ * How a recorded owner is shown: live or not, and its heartbeat's age. That is
+ * the service's rule (runOwnerOf in app/service/run-ownership.ts: it asks the
+ * operating system whether the process is there), so the caller passes it in.
+ */
+export type OwnerJudge = (ownership: RunOwnership) => RunOwner;
+
+/** The contract's summary of a stored run, with its owner as judged. */
+export function summaryOf(run: StoredRunSummary, judgeOwner: OwnerJudge): RunSummary {
+  const { id, uid, buildId, buildLabel, designName, kind, status, startedAt, endedAt, pointCount, plannedCount, simulated, benchName, owner } = run;
+  return { id, uid, buildId, buildLabel, designName, kind, status, startedAt, endedAt, pointCount, plannedCount, simulated, benchName, owner: owner ? judgeOwner(owner) : null };
+}
+
+export async function runDetail(store: RunReadStore, runId: number, judgeOwner: OwnerJudge): Promise<RunDetail> {
   const run = await store.getRun(runId);
   const points = await store.loadPoints(runId);
   const design = await designForRun(store, run);
@@ -123,10 +136,10 @@ export async function runDetail(store: RunReadStore, runId: number): Promise<Run
     points.phaseDeg = points.phaseDeg.map((p, i) => (Number.isFinite(p) ? p + 360 * Math.round((response.phaseDeg[i] - p) / 360) : p));
   }
   points.flags = analysis.flags;
-  const { request, plan: _plan, operator: _operator, notes: _notes, scheduleId: _scheduleId, createdAt: _createdAt, figures: _f, verdict: _v, ...summary } = run;
   return {
-    ...summary,
-    request,
+    ...summaryOf(run, judgeOwner),
+    offlinePeriods: run.offlinePeriods,
+    request: run.request,
     bench: run.bench,
     softwareVersion: run.softwareVersion,
     points,

@@ -10,6 +10,8 @@ import { hostname } from 'node:os';
 import { randomBytes } from 'node:crypto';
 import { UserError } from '../errors';
 import type { NewRun, RolloffStore, RunClaimant, RunOwnership, StoredRun } from '../store';
+import type { RunOwner } from '../contract/contract';
+import { ownerWithTimes } from '../contract/run-owner-text';
 
 /** How often an owner renews its heartbeat (ms): "every few seconds". */
 export const HEARTBEAT_INTERVAL_MS = 2_000;
@@ -39,10 +41,20 @@ export class BenchInUseError extends UserError {
   }
 }
 
-/** "rolloff sweep (process 1234 on lab-pc, since 10:02:03 UTC, last heard 1 s ago)". */
+/** "rolloff serve pid 1234 on lab-pc (since 2026-03-04 10:02:03 UTC, heartbeat 1 s ago)". */
 export function describeOwner(ownership: RunOwnership, nowMs = Date.now()): string {
-  const agoS = Math.max(0, Math.round((nowMs - Date.parse(ownership.heartbeatAt)) / 1000));
-  return `${ownership.label || 'another process'} (process ${ownership.pid} on ${ownership.host}, since ${ownership.since}, last heard ${agoS} s ago)`;
+  return ownerWithTimes(runOwnerOf(ownership, Infinity, nowMs));
+}
+
+/**
+ * The owner as the contract shows it: its heartbeat's age by this process's
+ * clock, and live unless that age is above staleAfterMs or, on this host, its
+ * process is gone.
+ */
+export function runOwnerOf(ownership: RunOwnership, staleAfterMs: number, nowMs = Date.now()): RunOwner {
+  const ageMs = Math.max(0, nowMs - Date.parse(ownership.heartbeatAt));
+  const { ownerId: _ownerId, ...owner } = ownership;
+  return { ...owner, heartbeatAgeS: Math.round(ageMs / 1000), live: ageMs <= staleAfterMs && !ownerProcessIsGone(ownership) };
 }
 
 function howToStopThere(ownership: RunOwnership): string {

@@ -4,7 +4,7 @@
  * running sweeps, and pushes ServiceEvents to whoever listens.
  */
 import { UserError, ValidationError } from '../errors';
-import { identityKey, type RolloffStore, type StoredRun } from '../store';
+import { identityKey, type RolloffStore, type RunOwnership, type StoredRun } from '../store';
 import { openInstrument, builtInProfiles, checkProfile, loadProfiles, realClock, DEFAULT_PROFILE_ID, resolveBenchName, sameBench, type BenchClock, type OpenedInstrument, type ProfileFor } from '../bench';
 import { TrafficLog } from '../scpi/traffic-log';
 import { listPorts } from '../scpi/ports';
@@ -29,14 +29,14 @@ import type { StoreChangeFeed } from '../store/types';
 import { followLabChanges } from './lab-changes';
 import { planTheoryFor } from './plan-theory';
 import { buildDesign, designOf } from '../read-model/stored-design';
-import { analyzeRun, designForBuild, designForRun, diodeOfRun, runDetail } from '../read-model/run-detail';
+import { analyzeRun, designForBuild, designForRun, diodeOfRun, runDetail, summaryOf } from '../read-model/run-detail';
 import { compareDetails } from '../read-model/compare';
 import { SOFTWARE_VERSION } from '../contract/version';
 import { startSimulatedBenchFor, type SimulatedBenchHandle, type SimulatedBenchSettings } from './simulated-bench';
 import { exportRecordFor } from './export';
 import { StimulusLimits } from './stimulus-limits';
 import { benchDescription } from '../contract/bench-text';
-import { claimOrRefuse, createOwnedRunOrRefuse, HEARTBEAT_INTERVAL_MS, liveOtherOwner, ownerProcessIsGone, RunOwnedElsewhereError, STALE_AFTER_MS, thisProcessClaimant } from './run-ownership';
+import { claimOrRefuse, createOwnedRunOrRefuse, HEARTBEAT_INTERVAL_MS, liveOtherOwner, RunOwnedElsewhereError, runOwnerOf, STALE_AFTER_MS, thisProcessClaimant } from './run-ownership';
 
 export interface RolloffServiceOptions {
   /**
@@ -123,6 +123,8 @@ export class RolloffService implements RolloffApi {
   /** This service as a run owner (RunStore.claimRun). */
   private readonly claimant;
   private readonly staleAfterMs: number;
+  /** A recorded owner as the contract shows it: live unless its heartbeat is older than staleAfterMs or its process is gone here. */
+  private readonly judgeOwner = (ownership: RunOwnership) => runOwnerOf(ownership, this.staleAfterMs);
 
   private labFeed: StoreChangeFeed | undefined;
 
@@ -477,26 +479,14 @@ export class RolloffService implements RolloffApi {
     return active.finished;
   }
 
-  /** Runs a crash left running or paused: offered for resume at start. */
+  /**
+   * Runs left running or paused that nobody drives (no owner, a stale heartbeat,
+   * or an owner process gone on this host, killed a moment ago): offered for resume.
+   */
   async interruptedRuns(): Promise<RunSummary[]> {
-    const stale = await this.store.findInterruptedRuns(this.staleAfterMs);
-    const leftBehind: RunSummary[] = stale.map(summaryOf);
-    // A fresh heartbeat of an owner process that is gone on this host (killed a moment ago) is interrupted too.
-    for (const status of ['running', 'paused'] as const) {
-      for (const run of await this.store.listRuns({ status })) {
-        if (leftBehind.some((r) => r.id === run.id)) continue;
-        const ownership = await this.store.getRunOwnership(run.id);
-        if (ownership && ownership.ownerId !== this.claimant.ownerId && ownerProcessIsGone(ownership)) leftBehind.push(run);
-      }
-    }
-    return leftBehind.filter((r) => !this.active.has(r.id)).sort((a, b) => a.id - b.id);
-  }
-
-  /** Who drives a run now ("rolloff sweep (process … on …)"), or undefined when nobody does. */
-  async runOwner(runId: number) {
-    const ownership = await this.store.getRunOwnership(runId);
-    if (!ownership || Date.now() - Date.parse(ownership.heartbeatAt) > this.staleAfterMs) return undefined;
-    return ownership;
+    const left: RunSummary[] = [];
+    for (const status of ['running', 'paused'] as const) left.push(...(await this.listRuns({ status })));
+    return left.filter((run) => !run.owner?.live && !this.active.has(run.id)).sort((a, b) => a.id - b.id);
   }
 
   private async refuseIfDrivenElsewhere(runId: number, action: string): Promise<void> {
@@ -506,12 +496,13 @@ export class RolloffService implements RolloffApi {
 
   // ── History, Compare, Record ───────────────────────────────────────────
 
+  /** Newest first, each with who drives it (RunSummary.owner: live or not, heartbeat age). */
   async listRuns(filter?: RunFilter): Promise<RunSummary[]> {
-    return this.store.listRuns(filter ?? {});
+    return (await this.store.listRuns(filter ?? {})).map((run) => summaryOf(run, this.judgeOwner));
   }
 
   async getRun(runId: number) {
-    return runDetail(this.store, runId);
+    return runDetail(this.store, runId, this.judgeOwner);
   }
 
   /** A run's summary, without the analysis getRun does. */
@@ -531,7 +522,7 @@ export class RolloffService implements RolloffApi {
 
   async compareRuns(runIds: number[], reference: number | 'theory'): Promise<Comparison> {
     if (runIds.length === 0) throw new ValidationError('runIds', 'is empty', 'Give at least one run.');
-    return compareDetails(await Promise.all(runIds.map((id) => runDetail(this.store, id))), reference);
+    return compareDetails(await Promise.all(runIds.map((id) => runDetail(this.store, id, this.judgeOwner))), reference);
   }
 
   async exportRecord(runIds: number[], format: RecordFormat, reference: number | 'theory' = 'theory'): Promise<ExportedRecord> {
@@ -584,7 +575,7 @@ export class RolloffService implements RolloffApi {
   // ── internals ──────────────────────────────────────────────────────────
 
   private async summaryOf(runId: number): Promise<RunSummary> {
-    return summaryOf(await this.store.getRun(runId));
+    return summaryOf(await this.store.getRun(runId), this.judgeOwner);
   }
 
   /** One sweep at a time: the instruments are shared. */
@@ -868,12 +859,6 @@ export class RolloffService implements RolloffApi {
     const event = await this.store.appendEvent(runId, level, message);
     this.events.emit('runEvent', { runId, ...event });
   }
-}
-
-/** The summary part of a stored run (what lists and events carry). */
-function summaryOf(run: StoredRun): RunSummary {
-  const { request: _r, plan: _p, softwareVersion: _s, bench: _b, operator: _o, notes: _n, scheduleId: _sc, createdAt: _c, figures: _f, verdict: _v, ...summary } = run;
-  return summary;
 }
 
 /** Ideal-op-amp response of the build at the measured frequencies (refinement targets). */

@@ -6,7 +6,7 @@
  * PostgreSQL store's type parser turns timestamptz into it).
  */
 import type { BuildRecord, DesignRecord, OfflinePeriod, PointColumns, RunStatus, RunSummary } from '../contract/contract';
-import type { BenchSettings, CalibrationRecord, InstrumentRecord, NewPoint, RunOwnership, ScheduleRecord, StoredPoint, StoredRun } from './types';
+import type { BenchSettings, CalibrationRecord, InstrumentRecord, NewPoint, RunOwnership, ScheduleRecord, StoredPoint, StoredRun, StoredRunSummary } from './types';
 
 export type Row = Record<string, unknown>;
 
@@ -26,14 +26,15 @@ export interface RowMapping {
   calibration(row: Row): CalibrationRecord;
   schedule(row: Row): ScheduleRecord;
   benchSettings(row: Row): BenchSettings;
-  runSummary(row: Row): RunSummary;
+  /** With the owner columns (owner_id … owner_heartbeat_ms): the run's recorded owner, or null. */
+  runSummary(row: Row): StoredRunSummary;
   /** A runs row joined with its plan (plan_json), build label, design name and offline periods (offline_json, a JSON array of {from, to}). */
   storedRun(row: Row): StoredRun;
 }
 
 export function rowMapping(read: ColumnReading): RowMapping {
   const jsonOrNull = (value: unknown) => (value === null || value === undefined ? null : read.json(value));
-  const runSummary = (row: Row): RunSummary => ({
+  const runSummary = (row: Row): StoredRunSummary => ({
     id: row.id as number,
     uid: row.uid as string,
     buildId: row.build_id as number,
@@ -47,6 +48,7 @@ export function rowMapping(read: ColumnReading): RowMapping {
     plannedCount: row.planned_count as number,
     simulated: read.flag(row.simulated),
     benchName: (row.bench_name as string | null) ?? '',
+    owner: ownershipFromRow(row) ?? null,
   });
   return {
     design: (row) => ({ id: row.id as number, uid: row.uid as string, name: row.name as string, design: read.json(row.design_json), createdAt: row.created_at as string }),

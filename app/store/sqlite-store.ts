@@ -17,7 +17,6 @@ import type {
   RunEvent,
   RunFigures,
   RunStatus,
-  RunSummary,
   Verdict,
 } from '../contract/contract';
 import { SOFTWARE_VERSION } from '../contract/version';
@@ -83,6 +82,7 @@ import type {
   ScheduleRecord,
   StoreOpenOptions,
   StoredRun,
+  StoredRunSummary,
   RunClaimant,
   RunClaimResult,
   OwnedRunResult,
@@ -273,7 +273,8 @@ export class SqliteStore implements RolloffStore {
         JOIN run_plans p ON p.run_id = r.id
         JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id WHERE r.id = ?`),
       listRuns: db.prepare(`SELECT r.id, r.uid, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
-        r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated, r.bench_name
+        r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated, r.bench_name,
+        r.owner_id, r.owner_pid, r.owner_host, r.owner_label, r.owner_since_ms, r.owner_heartbeat_ms
         FROM runs r JOIN builds b ON b.id = r.build_id JOIN designs d ON d.id = b.design_id
         WHERE (@status IS NULL OR r.status = @status) AND (@buildId IS NULL OR r.build_id = @buildId)
           AND (@bench IS NULL OR r.bench_name = @bench)
@@ -468,7 +469,7 @@ export class SqliteStore implements RolloffStore {
   }
 
   /** Newest first. */
-  async listRuns(filter: RunFilter = {}): Promise<RunSummary[]> {
+  async listRuns(filter: RunFilter = {}): Promise<StoredRunSummary[]> {
     const { status, buildId, search, bench, limit } = checkRunFilter(filter);
     const rows = this.guard(() => this.statements.listRuns.all({ status, buildId, search, bench, limit }) as Row[]);
     return rows.map(toRecord.runSummary);

@@ -59,6 +59,7 @@ import type {
   StoreChange,
   StoreChangeFeed,
   StoredRun,
+  StoredRunSummary,
 } from './types';
 
 /** Designs as drawn and the builds (physical realisations, with measured part values) of them. */
@@ -87,8 +88,8 @@ export interface RunStore {
   updateRunStatus(runId: number, status: RunStatus, at?: string): Promise<StoredRun>;
   setRunResults(runId: number, figures: RunFigures, verdict: Verdict | null): Promise<StoredRun>;
   getRun(runId: number): Promise<StoredRun>;
-  /** Newest first, at most filter.limit (default 200). */
-  listRuns(filter?: RunFilter): Promise<RunSummary[]>;
+  /** Newest first, at most filter.limit (default 200), each with its recorded owner (null when none). */
+  listRuns(filter?: RunFilter): Promise<StoredRunSummary[]>;
   /**
    * Runs left running or paused (oldest first) that nobody drives: no owner, or an
    * owner whose heartbeat is older than staleAfterMs (a crash or power cut). A run

@@ -34,8 +34,17 @@ export interface NewRun {
   benchName?: string;
 }
 
+/**
+ * A run's summary as the store keeps it: the contract's, with the owner as
+ * recorded. Whether that owner is live (heartbeat fresh, process there) is the
+ * service's to judge (app/service/run-ownership.ts), so it is not said here.
+ */
+export interface StoredRunSummary extends Omit<RunSummary, 'owner'> {
+  owner: RunOwnership | null;
+}
+
 /** A run as stored: the summary plus what was asked, planned and found. */
-export interface StoredRun extends RunSummary {
+export interface StoredRun extends StoredRunSummary {
   request: SweepRequest;
   plan: SweepPlanSummary;
   softwareVersion: string;

@@ -4,6 +4,7 @@
  * Compare and Record, or reopened on the Sweep view.
  */
 import { RUN_STATUSES, type RolloffClient, type RunFilter, type RunStatus, type RunSummary } from '../../app/contract/contract';
+import { runStateText, shownStatus } from '../../app/contract/run-owner-text';
 import { debounce, field, h, replaceChildren, select } from '../dom';
 import { guarded } from '../notices';
 import type { View } from '../shell';
@@ -83,13 +84,15 @@ export class HistoryView implements View {
         h('tr', {}, h('th', { scope: 'row' }, `${design.name} (#${design.id})`), h('td', {}, design.createdAt.slice(0, 16).replace('T', ' ')), h('td', {}, builds.filter((b) => b.designId === design.id).map((b) => b.label).join(', ') || '—')),
       ),
     );
-    const resumable = allOpen.filter((run) => (run.status === 'running' || run.status === 'paused') && run.id !== this.state.current.sweepRunId);
+    // A run some process drives now is not offered: only its driver may pause, stop or continue it. One paused on the
+    // Sweep view is continued there; one interrupted is offered wherever it is shown.
+    const resumable = allOpen.filter((run) => (run.status === 'running' || run.status === 'paused') && !run.owner?.live && (run.id !== this.state.current.sweepRunId || shownStatus(run) === 'interrupted'));
     replaceChildren(
       this.interrupted,
       resumable.length === 0
         ? null
         : h('div', { className: 'panel attention' }, h('h3', {}, 'Unfinished runs'), h('p', {}, 'These runs did not finish (paused, or interrupted when the app stopped). Every point measured so far is kept; resuming continues with the next step.'),
-            h('ul', {}, resumable.map((run) => h('li', {}, `Run #${run.id} ${run.designName} — ${run.buildLabel}: ${run.pointCount} of ${run.plannedCount} points (${run.status}) `, this.resumeButton(run))))),
+            h('ul', {}, resumable.map((run) => h('li', {}, `Run #${run.id} ${run.designName} — ${run.buildLabel}: ${run.pointCount} of ${run.plannedCount} points (${shownStatus(run)}) `, this.resumeButton(run))))),
     );
   }
 
@@ -102,7 +105,9 @@ export class HistoryView implements View {
       this.state.update({ sweepRunId: run.id });
       this.state.showView('sweep');
     });
-    const unfinished = run.pointCount < run.plannedCount && run.status !== 'running' && run.status !== 'planned';
+    const unfinished = run.pointCount < run.plannedCount && run.status !== 'planned' && !run.owner?.live && (run.status !== 'running' || shownStatus(run) === 'interrupted');
+    const status = shownStatus(run);
+    const state = runStateText(run);
     return h(
       'tr',
       { 'data-run': String(run.id) },
@@ -112,7 +117,11 @@ export class HistoryView implements View {
       h('td', {}, run.buildLabel),
       h('td', {}, run.benchName || '—'),
       h('td', {}, run.kind.toUpperCase()),
-      h('td', {}, h('span', { className: `badge status-${run.status}` }, run.status), run.simulated ? h('span', { className: 'badge simulated' }, 'simulated') : null),
+      h('td', { 'data-testid': 'run-state' },
+        h('span', { className: `badge status-${status}` }, status),
+        run.simulated ? h('span', { className: 'badge simulated' }, 'simulated') : null,
+        state ? h('small', { className: 'run-driver' }, state) : null,
+      ),
       h('td', {}, run.startedAt ? run.startedAt.slice(0, 16).replace('T', ' ') : '—'),
       h('td', {}, `${run.pointCount}/${run.plannedCount}`),
       h('td', {}, open, unfinished ? this.resumeButton(run) : null),

@@ -16,6 +16,7 @@ import { BodePlot } from '../plot/bode-plot';
 import type { View } from '../shell';
 import type { AppState } from '../state';
 import { FIGURE_NAMES, pointCountText } from '../../app/contract/vocabulary';
+import { runStateText, shownStatus } from '../../app/contract/run-owner-text';
 
 const EVENTS_KEPT = 300;
 
@@ -241,11 +242,13 @@ export class SweepView implements View {
   private applySummary(summary: RunSummary): void {
     const previous = this.run?.status;
     this.run = summary;
+    const state = runStateText(summary);
     replaceChildren(
       this.runHeader,
       `Run #${summary.id}: ${summary.designName} — ${summary.buildLabel} `,
-      h('span', { className: `badge status-${summary.status}`, 'data-testid': 'run-status' }, summary.status),
+      h('span', { className: `badge status-${shownStatus(summary)}`, 'data-testid': 'run-status' }, shownStatus(summary)),
       summary.simulated ? h('span', { className: 'badge simulated' }, 'simulated') : null,
+      state ? h('small', { className: 'run-driver', 'data-testid': 'run-driver' }, state) : null,
     );
     this.renderButtons();
     if (previous !== summary.status && isFinished(summary.status) && previous !== undefined && !isFinished(previous)) void this.refreshFigures(summary.id);
@@ -259,7 +262,8 @@ export class SweepView implements View {
     // Counted from the points shown (each flagged planned or refinement), so the words match the plot.
     const flags = this.live?.runId === progress.runId ? this.live.flags : [];
     this.progressText.textContent = `Points: ${pointCountText(this.run.plannedCount, flags)}${eta} (${progress.status})`;
-    if (progress.status !== this.run.status) this.applySummary({ ...this.run, status: progress.status, pointCount: progress.step });
+    // A run that leaves the running state is given up by its driver (the store releases it).
+    if (progress.status !== this.run.status) this.applySummary({ ...this.run, status: progress.status, pointCount: progress.step, owner: progress.status === 'running' ? this.run.owner : null });
   }
 
   /** After a run ends the service has the measured figures: show their markers. */
@@ -324,7 +328,8 @@ export class SweepView implements View {
   private renderButtons(): void {
     const status: RunStatus | undefined = this.run?.status;
     this.buttons.pause.disabled = status !== 'running';
-    this.buttons.resume.disabled = !(status === 'paused' || status === 'stopped' || status === 'failed') || this.run!.pointCount >= this.run!.plannedCount;
+    const resumable = status === 'paused' || status === 'stopped' || status === 'failed' || (this.run !== undefined && shownStatus(this.run) === 'interrupted');
+    this.buttons.resume.disabled = !resumable || this.run!.pointCount >= this.run!.plannedCount;
     this.buttons.stop.disabled = !(status === 'running' || status === 'paused');
     this.buttons.start.disabled = status === 'running';
   }

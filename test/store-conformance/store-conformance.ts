@@ -329,6 +329,30 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
     },
   },
   {
+    name: 'run ownership: listRuns and getRun carry the recorded owner (who, since, heartbeat) while claimed, null once released',
+    async run(open) {
+      let nowMs = Date.UTC(2026, 0, 1, 12, 0, 0);
+      const store = await open({ now: () => new Date(nowMs).toISOString() });
+      const { run, build } = await seedRun(store);
+      const other = await store.createRun(newRun(build.id));
+      const claimant = { ownerId: 'host-a:100:x', pid: 100, host: 'host-a', label: 'rolloff serve' };
+      expect((await store.listRuns()).map((r) => r.owner)).toEqual([null, null]);
+      expect((await store.getRun(run.id)).owner).toBeNull();
+      await store.claimRun(run.id, claimant, 10_000);
+      nowMs += 2_500;
+      await store.renewRunHeartbeat(run.id, claimant.ownerId);
+      const expected = { ...claimant, since: '2026-01-01T12:00:00.000Z', heartbeatAt: '2026-01-01T12:00:02.500Z' };
+      const listed = await store.listRuns();
+      expect(listed.find((r) => r.id === run.id)?.owner).toEqual(expected);
+      expect(listed.find((r) => r.id === other.id)?.owner).toBeNull(); // only the claimed run
+      expect((await store.getRun(run.id)).owner).toEqual(expected);
+      expect((await store.listRuns({ status: 'planned' })).map((r) => r.owner?.ownerId ?? null).sort()).toEqual([claimant.ownerId, null].sort());
+      await store.releaseRun(run.id, claimant.ownerId);
+      expect((await store.getRun(run.id)).owner).toBeNull();
+      expect((await store.listRuns()).map((r) => r.owner)).toEqual([null, null]);
+    },
+  },
+  {
     name: 'run ownership: of many claimants racing for one stale run at the same instant, exactly one wins',
     async run(open) {
       let nowMs = Date.UTC(2026, 0, 1, 12, 0, 0);

@@ -13,6 +13,7 @@ import { exportRecordFor } from '../../service/export';
 import { RECORD_FORMATS } from '../../record';
 import { runDetail } from '../../read-model/run-detail';
 import { compareDetails } from '../../read-model/compare';
+import { runOwnerOf, STALE_AFTER_MS } from '../../service/run-ownership';
 import { optionFlag, optionString, type CommandSpec, type ParsedArgs } from '../args';
 
 /** A file that already exists and is not ours to replace. */
@@ -62,11 +63,12 @@ export interface ExportedBytes {
  */
 export async function exportFromDatabase(databaseLocation: string, runIds: number[], format: RecordFormat, reference: number | 'theory'): Promise<ExportedBytes> {
   const store = await openStore(databaseLocation, { readonly: true });
+  const judgeOwner = (ownership: Parameters<typeof runOwnerOf>[0]) => runOwnerOf(ownership, STALE_AFTER_MS);
   try {
     const source = {
       store,
-      getRun: async (runId: number) => runDetail(store, runId),
-      compareRuns: async (ids: number[], ref: number | 'theory') => compareDetails(await Promise.all(ids.map((id) => runDetail(store, id))), ref),
+      getRun: async (runId: number) => runDetail(store, runId, judgeOwner),
+      compareRuns: async (ids: number[], ref: number | 'theory') => compareDetails(await Promise.all(ids.map((id) => runDetail(store, id, judgeOwner))), ref),
     };
     const exported = await exportRecordFor(source, runIds, format, reference);
     const bytes = exported.encoding === 'base64' ? new Uint8Array(Buffer.from(exported.content, 'base64')) : new TextEncoder().encode(exported.content);

@@ -1,4 +1,4 @@
-import { describeOwner } from '../../service/run-ownership';
+import { runStateText } from '../../contract/run-owner-text';
 import type { CommandSpec } from '../args';
 import { optionFlag, optionNumber, optionString } from '../args';
 import { ValidationError } from '../../errors';
@@ -35,9 +35,10 @@ export const runsCommand: CommandSpec = {
         return 0;
       }
       process.stdout.write(runTable(runs));
-      for (const run of runs.filter((r) => r.status === 'running' || r.status === 'paused')) {
-        const owner = await service.runOwner(run.id);
-        if (owner) process.stdout.write(`run ${run.id} is driven by ${describeOwner(owner)}\n`);
+      // Who drives each live run, and which running ones nobody drives any more.
+      for (const run of runs) {
+        const state = runStateText(run);
+        if (state) process.stdout.write(`run ${run.id}: ${state}\n`);
       }
       const interrupted = await service.interruptedRuns();
       if (interrupted.length > 0) {

@@ -1,5 +1,6 @@
 /** Plain-text summaries of runs for the terminal. */
 import type { RunDetail, RunFigures, RunSummary } from '../../contract/contract';
+import { shownStatus } from '../../contract/run-owner-text';
 import { formatEngineering, formatWithUncertainty } from '../../units';
 import { FIGURE_NAMES, pointCountText } from '../../contract/vocabulary';
 import { offlinePeriodsText } from '../../record/pure';
@@ -68,7 +69,7 @@ export function runDetailText(detail: RunDetail, diode?: DiodeTheory): string {
 
 export function runTable(runs: RunSummary[]): string {
   if (runs.length === 0) return 'No runs.\n';
-  const rows = runs.map((r) => [String(r.id), r.kind, r.status, `${r.pointCount}/${r.plannedCount}`, r.buildLabel, r.designName, r.benchName || '—', r.startedAt ?? '—', r.simulated ? 'simulated' : '']);
+  const rows = runs.map((r) => [String(r.id), r.kind, shownStatus(r), `${r.pointCount}/${r.plannedCount}`, r.buildLabel, r.designName, r.benchName || '—', r.startedAt ?? '—', r.simulated ? 'simulated' : '']);
   const header = ['run', 'kind', 'status', 'points', 'build', 'design', 'bench', 'started', ''];
   const widths = header.map((h, c) => Math.max(h.length, ...rows.map((row) => row[c].length)));
   return [header, ...rows].map((row) => row.map((cell, c) => cell.padEnd(widths[c])).join('  ').trimEnd()).join('\n') + '\n';

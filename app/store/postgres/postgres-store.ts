@@ -17,7 +17,6 @@ import type {
   RunEvent,
   RunFigures,
   RunStatus,
-  RunSummary,
   Verdict,
 } from '../../contract/contract';
 import { DuplicateStepError, RecordNotFoundError, StoreUnavailableError } from '../errors';
@@ -69,6 +68,7 @@ import type {
   StoreChangeFeed,
   StoreOpenOptions,
   StoredRun,
+  StoredRunSummary,
   RunClaimant,
   RunClaimResult,
   OwnedRunResult,
@@ -131,7 +131,8 @@ const OWNER_COLUMNS = 'owner_id, owner_pid, owner_host, owner_label, owner_since
 const BENCH_LOCK_CLASS = 0x726f6c6c;
 
 const RUN_SUMMARY_COLUMNS = `r.id, r.uid, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
-  r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated, r.bench_name`;
+  r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated, r.bench_name,
+  r.owner_id, r.owner_pid, r.owner_host, r.owner_label, r.owner_since_ms, r.owner_heartbeat_ms`;
 
 export class PostgresStore implements RolloffStore {
   readonly location: string;
@@ -438,7 +439,7 @@ export class PostgresStore implements RolloffStore {
     return toRecord.storedRun(rows[0]);
   }
 
-  async listRuns(filter: RunFilter = {}): Promise<RunSummary[]> {
+  async listRuns(filter: RunFilter = {}): Promise<StoredRunSummary[]> {
     const { status, buildId, search, bench, limit } = checkRunFilter(filter);
     const { rows } = await this.query(
       `SELECT ${RUN_SUMMARY_COLUMNS}

@@ -12,6 +12,8 @@ const ROOT = resolve(__dirname, '../../..');
 
 export interface ServeProcess {
   url: string;
+  /** The serve process's id (a run it drives names it as its owner). */
+  pid: number;
   dbPath: string;
   output: () => string;
   /** SIGTERM (clean stop); removes the temp folder unless the database was given by the caller. */
@@ -56,6 +58,7 @@ export async function startServe(extraArgs: string[] = [], options: { dbPath?: s
   };
   return {
     url,
+    pid: child.pid!,
     dbPath,
     output: () => output,
     async stop() {

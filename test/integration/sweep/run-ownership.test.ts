@@ -9,6 +9,7 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { spawn, spawnSync } from 'node:child_process';
 import { writeFileSync } from 'node:fs';
+import { hostname } from 'node:os';
 import { join, resolve } from 'node:path';
 import { SqliteStore } from '../../../app/store';
 import { openServiceAt } from '../../../app/service/open-service';
@@ -47,12 +48,15 @@ describe('two processes on one store file', () => {
     // Another CLI process: resume refused naming the owner; runs shows who drives it and does not offer it for resume.
     const resumeRefused = spawnSync(process.execPath, [BIN, 'resume', String(run.id), '--db', dbPath, '--simulated'], { encoding: 'utf8', timeout: 30_000 });
     expect(resumeRefused.status).not.toBe(0);
-    expect(resumeRefused.stderr).toMatch(new RegExp(`run ${run.id} is being driven by rolloff \\(command line\\) \\(process ${child.pid} on `));
+    expect(resumeRefused.stderr).toMatch(new RegExp(`run ${run.id} is being driven by rolloff \\(command line\\) pid ${child.pid} on ${hostname()} \\(since \\d{4}-\\d\\d-\\d\\d \\d\\d:\\d\\d:\\d\\d UTC, heartbeat \\d+ s ago\\)`));
     expect(resumeRefused.stderr).toMatch(/Pause or stop it where it runs/);
     const listed = spawnSync(process.execPath, [BIN, 'runs', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
     expect(listed.status, listed.stderr).toBe(0);
-    expect(listed.stdout).toMatch(new RegExp(`run ${run.id} is driven by rolloff \\(command line\\) \\(process ${child.pid} on `));
+    expect(listed.stdout).toMatch(new RegExp(`\\nrun ${run.id}: running, driven by rolloff \\(command line\\) pid ${child.pid} on ${hostname()}, heartbeat \\d+ s ago\\n`));
+    expect(listed.stdout).toMatch(new RegExp(`\\n${run.id} +ac +running `)); // the table's status column
     expect(listed.stderr).not.toMatch(/left running or paused/);
+    const listedJson = spawnSync(process.execPath, [BIN, 'runs', '--json', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
+    expect(JSON.parse(listedJson.stdout)[0].owner).toMatchObject({ label: 'rolloff (command line)', pid: child.pid, host: hostname(), live: true });
 
     // A service in this process (as the window's would be): pause, stop and resume refused, nothing changed.
     const other = await openServiceAt(dbPath, { maxStimulusVpp: 1 });
@@ -69,6 +73,11 @@ describe('two processes on one store file', () => {
     child.kill('SIGKILL');
     expect(await exited).toBe('SIGKILL');
     const pointsBefore = await pointsOfLatestRun(dbPath);
+    // Its process is gone on this host: listed as interrupted at once, naming who drove it last.
+    const listedAfterKill = spawnSync(process.execPath, [BIN, 'runs', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
+    expect(listedAfterKill.stdout).toMatch(new RegExp(`\\n${run.id} +ac +interrupted `));
+    expect(listedAfterKill.stdout).toMatch(new RegExp(`\\nrun ${run.id}: interrupted, last driven by rolloff \\(command line\\) pid ${child.pid} on ${hostname()}, heartbeat \\d+ s ago\\n`));
+    expect(listedAfterKill.stderr).toMatch(new RegExp(`left running or paused: ${run.id}\\.`));
 
     const resumed = spawnSync(process.execPath, [BIN, 'resume', String(run.id), '--db', dbPath, '--simulated', '--time-scale', '50'], { encoding: 'utf8', timeout: 60_000 });
     expect(resumed.status, resumed.stderr).toBe(0);

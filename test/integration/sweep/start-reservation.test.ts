@@ -76,7 +76,7 @@ describe('starting runs on one bench', () => {
     expect(refused).toHaveLength(1);
     expect(refused[0]).toBeInstanceOf(BenchInUseError);
     expect((refused[0] as BenchInUseError).runId).toBe(startedBy[0].runId);
-    expect((refused[0] as Error).message).toMatch(new RegExp(`bench "${BENCH}" is in use: run ${startedBy[0].runId} is being driven by rolloff \\(process ${process.pid} on `));
+    expect((refused[0] as Error).message).toMatch(new RegExp(`bench "${BENCH}" is in use: run ${startedBy[0].runId} is being driven by rolloff pid ${process.pid} on `));
     expect((await a.listRuns({ bench: BENCH })).map((r) => r.id)).toEqual([startedBy[0].runId]);
 
     expect(await startedBy[0].service.waitForRun(startedBy[0].runId)).toBe('done');

@@ -187,6 +187,7 @@ export function acRunDetail(options: AcFixtureOptions = {}): RunDetail {
     plannedCount: grid.length,
     simulated: true,
     benchName: 'simulated bench 1',
+    owner: null,
     request: {
       buildId: build.id, kind: 'ac', from: 10, to: 1e6, pointsPerDecade: 8, spacing: 'log',
       amplitude: { mode: 'auto', targetOutputVpp: 2 }, measurement: 'scope', minCycles: 10, averages: 4, refine: (options.refinementHz ?? []).length > 0,
@@ -311,7 +312,7 @@ export function dcRunDetail(): { detail: RunDetail; build: BuildRecord; dcFit: R
   const count = inputs.length;
   const detail: RunDetail = {
     id: 21, uid: 'c47d1e09-8a2b-4e3f-b6d5-1f0a9c8e7b21', offlinePeriods: [], buildId: build.id, buildLabel: build.label, designName: LOG_STAGE_DESIGN.name, kind: 'dc', status: 'done',
-    startedAt: '2026-11-30T11:00:00.000Z', endedAt: '2026-11-30T11:01:00.000Z', pointCount: count, plannedCount: count, simulated: true, benchName: 'simulated bench 1',
+    startedAt: '2026-11-30T11:00:00.000Z', endedAt: '2026-11-30T11:01:00.000Z', pointCount: count, plannedCount: count, simulated: true, benchName: 'simulated bench 1', owner: null,
     request: {
       buildId: build.id, kind: 'dc', from: 1e-3, to: 10, pointsPerDecade: 6, spacing: 'log', amplitude: { mode: 'fixed', vpp: 0 },
       measurement: 'meter', minCycles: 1, averages: 1, refine: false, operator: 'J. Doe (invented)', notes: INVENTED_NOTE,
