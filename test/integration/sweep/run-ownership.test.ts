@@ -28,8 +28,9 @@ describe('two processes on one store file', () => {
     const designPath = join(folder.path, 'lowpass.json');
     const dbPath = join(folder.path, 'runs.sqlite');
     writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
-    // 36 points from 3 Hz at time scale 0.5 (slower than real time): a minute of sweeping, so the checks below run while it measures.
-    const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'owned', '--simulated', '--time-scale', '0.5',
+    // 36 points from 3 Hz at time scale 0.2 (slower than real time): at least 42 s of sweeping, so the checks below (each a process
+    // of its own, seconds each on a loaded machine) run while it measures.
+    const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'owned', '--simulated', '--time-scale', '0.2',
       '--max-amplitude', '1', '--db', dbPath, '--from', '3', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'pipe', 'pipe'] });
     let stderr = '';
     child.stderr.on('data', (chunk) => (stderr += chunk));
