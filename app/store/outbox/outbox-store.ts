@@ -31,7 +31,7 @@ import { randomBytes } from 'node:crypto';
 import type { BuildRecord, DesignRecord } from '../../contract/contract';
 import { DuplicateStepError, StoreUnreachableError } from '../errors';
 import type { RolloffStore } from '../store-interface';
-import type { RunClaimResult, RunOwnership } from '../types';
+import type { RunClaimResult, RunOwnership, StoredRun } from '../types';
 import { DelegatingStore } from './delegating-store';
 import { OutboxFile, type OutboxEntry, type OutboxWrite, type OutboxWriter } from './outbox-file';
 import { RunMirror } from './run-mirror';
@@ -158,6 +158,17 @@ export class OutboxStore extends DelegatingStore {
   }
 
   /** A kept write whose answer needs the run: only for a run this process drives. */
+  /** A change to the run row itself: sent, or applied to the run's mirror while cut off; the mirror then follows what was stored. */
+  private async writeRunChange(runId: number, write: OutboxWrite, direct: () => Promise<StoredRun>, applyToMirror: (mirror: RunMirror) => void): Promise<StoredRun> {
+    const run = await this.write(runId, write, direct, () => {
+      const mirror = this.requireMirror(runId, () => this.offlineError());
+      applyToMirror(mirror);
+      return mirror.storedRun();
+    });
+    this.mirrorOf(runId)?.refresh(run);
+    return run;
+  }
+
   private requireMirror(runId: number, error: () => Error): RunMirror {
     const mirror = this.mirrorOf(runId);
     if (!mirror) throw error();
@@ -183,33 +194,11 @@ export class OutboxStore extends DelegatingStore {
 
   override updateRunStatus: Inner['updateRunStatus'] = async (runId, status, at) => {
     const when = at ?? this.now();
-    const run = await this.write(
-      runId,
-      { kind: 'status', status, at: when },
-      () => this.inner.updateRunStatus(runId, status, when),
-      () => {
-        const mirror = this.requireMirror(runId, () => this.offlineError());
-        mirror.setStatus(status, when);
-        return mirror.storedRun();
-      },
-    );
-    this.mirrorOf(runId)?.refresh(run);
-    return run;
+    return this.writeRunChange(runId, { kind: 'status', status, at: when }, () => this.inner.updateRunStatus(runId, status, when), (mirror) => mirror.setStatus(status, when));
   };
 
   override setRunResults: Inner['setRunResults'] = async (runId, figures, verdict) => {
-    const run = await this.write(
-      runId,
-      { kind: 'results', figures, verdict },
-      () => this.inner.setRunResults(runId, figures, verdict),
-      () => {
-        const mirror = this.requireMirror(runId, () => this.offlineError());
-        mirror.setResults(figures, verdict);
-        return mirror.storedRun();
-      },
-    );
-    this.mirrorOf(runId)?.refresh(run);
-    return run;
+    return this.writeRunChange(runId, { kind: 'results', figures, verdict }, () => this.inner.setRunResults(runId, figures, verdict), (mirror) => mirror.setResults(figures, verdict));
   };
 
   override releaseRun: Inner['releaseRun'] = async (runId, ownerId) => {
