@@ -4,7 +4,10 @@
  * the run when the sweep leaves the running state. Another process sees a live
  * owner and keeps its hands off; only a stale heartbeat (or, on the same host, an
  * owner process that no longer exists) lets it take the run over, and the
- * take-over is the store's one conditional update (RunStore.claimRun).
+ * take-over is the store's one conditional update (RunStore.claimRun). Every
+ * status and point an owner writes is conditional on still owning the run
+ * (OwnerCondition, checked in the write's own statement), so an owner that lost
+ * the run to another process writes nothing more to it.
  */
 import { hostname } from 'node:os';
 import { randomBytes } from 'node:crypto';
@@ -76,15 +79,6 @@ export function ownerProcessIsGone(ownership: RunOwnership): boolean {
   } catch (error) {
     return (error as NodeJS.ErrnoException).code === 'ESRCH';
   }
-}
-
-/** The run's owner when it is live (heartbeat fresh and, on this host, its process alive) and not us; else undefined. */
-export async function liveOtherOwner(store: RolloffStore, runId: number, me: RunClaimant, staleAfterMs: number): Promise<RunOwnership | undefined> {
-  const ownership = await store.getRunOwnership(runId);
-  if (!ownership || ownership.ownerId === me.ownerId) return undefined;
-  if (Date.now() - Date.parse(ownership.heartbeatAt) > staleAfterMs) return undefined;
-  if (ownerProcessIsGone(ownership)) return undefined;
-  return ownership;
 }
 
 /**

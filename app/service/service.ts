@@ -4,7 +4,7 @@
  * running sweeps, and pushes ServiceEvents to whoever listens.
  */
 import { UserError, ValidationError } from '../errors';
-import { identityKey, type RolloffStore, type RunOwnership, type StoredRun } from '../store';
+import { identityKey, RunTakenOverError, type OwnerCondition, type RolloffStore, type RunOwnership, type StoredRun } from '../store';
 import { openInstrument, builtInProfiles, checkProfile, loadProfiles, realClock, DEFAULT_PROFILE_ID, resolveBenchName, sameBench, type BenchClock, type OpenedInstrument, type ProfileFor } from '../bench';
 import { TrafficLog } from '../scpi/traffic-log';
 import { listPorts } from '../scpi/ports';
@@ -36,7 +36,7 @@ import { startSimulatedBenchFor, type SimulatedBenchHandle, type SimulatedBenchS
 import { exportRecordFor } from './export';
 import { StimulusLimits } from './stimulus-limits';
 import { benchDescription } from '../contract/bench-text';
-import { claimOrRefuse, createOwnedRunOrRefuse, HEARTBEAT_INTERVAL_MS, liveOtherOwner, RunOwnedElsewhereError, runOwnerOf, STALE_AFTER_MS, thisProcessClaimant } from './run-ownership';
+import { claimOrRefuse, createOwnedRunOrRefuse, HEARTBEAT_INTERVAL_MS, runOwnerOf, STALE_AFTER_MS, thisProcessClaimant } from './run-ownership';
 
 export interface RolloffServiceOptions {
   /**
@@ -399,9 +399,8 @@ export class RolloffService implements RolloffApi {
       active.control.requestPause();
       await active.finished.catch(() => undefined);
     } else if ((await this.store.getRun(runId)).status === 'running') {
-      await this.refuseIfDrivenElsewhere(runId, 'paused');
       // Left running by a crash: nothing is measuring it, so it is in effect paused.
-      await this.store.updateRunStatus(runId, 'paused');
+      await this.asOwnerOf(runId, 'paused', (asOwner) => this.store.updateRunStatus(runId, 'paused', undefined, asOwner));
     }
     return this.summaryOf(runId);
   }
@@ -414,10 +413,11 @@ export class RolloffService implements RolloffApi {
     } else {
       const run = await this.store.getRun(runId);
       if (run.status === 'running' || run.status === 'paused' || run.status === 'planned') {
-        await this.refuseIfDrivenElsewhere(runId, 'stopped');
-        await this.store.updateRunStatus(runId, 'stopped');
-        await this.logRunEvent(runId, 'info', 'stopped by the user');
-        await this.finalize(runId);
+        await this.asOwnerOf(runId, 'stopped', async (asOwner) => {
+          await this.store.updateRunStatus(runId, 'stopped', undefined, asOwner);
+          await this.logRunEvent(runId, 'info', 'stopped by the user');
+          await this.finalize(runId);
+        });
       }
     }
     return this.summaryOf(runId);
@@ -489,9 +489,19 @@ export class RolloffService implements RolloffApi {
     return left.filter((run) => !run.owner?.live && !this.active.has(run.id)).sort((a, b) => a.id - b.id);
   }
 
-  private async refuseIfDrivenElsewhere(runId: number, action: string): Promise<void> {
-    const owner = await liveOtherOwner(this.store, runId, this.claimant, this.staleAfterMs);
-    if (owner) throw new RunOwnedElsewhereError(runId, owner, action);
+  /**
+   * Changes a run nobody drives as its owner for a moment: claimed (refused,
+   * naming the owner, while another process drives it), written only while the
+   * claim holds, then given back. A process resuming it at the same moment
+   * either wins the claim or finds this change made.
+   */
+  private async asOwnerOf(runId: number, action: string, write: (asOwner: OwnerCondition) => Promise<unknown>): Promise<void> {
+    await claimOrRefuse(this.store, runId, this.claimant, this.staleAfterMs, action);
+    try {
+      await write({ asOwner: this.claimant.ownerId });
+    } finally {
+      await this.store.releaseRun(runId, this.claimant.ownerId).catch(() => undefined);
+    }
   }
 
   // ── History, Compare, Record ───────────────────────────────────────────
@@ -773,20 +783,23 @@ export class RolloffService implements RolloffApi {
 
     const measurer = await this.measurerFor(run, clock, ideal?.gainRatioAt);
     const control = new RunControl();
-    // Tell other processes we are alive; if the run was taken from us (our heartbeat went stale), stop driving it.
+    // Tell other processes we are alive; if the run was taken from us (our heartbeat went stale), stop driving it
+    // at once and write nothing more: its status is the new owner's now.
     const heartbeat = setInterval(() => {
       this.store.renewRunHeartbeat(runId, this.claimant.ownerId).then(
-        (stillOurs) => {
-          if (!stillOurs) control.requestPause();
+        async (stillOurs) => {
+          if (!stillOurs) control.claimLost(new RunTakenOverError(runId, await this.store.getRunOwnership(runId).catch(() => undefined)));
         },
         () => undefined,
       );
     }, this.options.heartbeatIntervalMs ?? HEARTBEAT_INTERVAL_MS);
     heartbeat.unref();
     let first = true;
+    let takenOver = false;
     const finished = runSweep({
       store: this.store,
       runId,
+      ownerId: this.claimant.ownerId,
       clock,
       control,
       measurer,
@@ -801,12 +814,18 @@ export class RolloffService implements RolloffApi {
         }
         return this.reconnectAll();
       },
-    }).finally(async () => {
-      clearInterval(heartbeat);
-      this.active.delete(runId);
-      await this.finalize(runId);
-      await this.store.releaseRun(runId, this.claimant.ownerId).catch(() => undefined);
-    });
+    })
+      .catch((error: unknown) => {
+        takenOver = error instanceof RunTakenOverError;
+        throw error;
+      })
+      .finally(async () => {
+        clearInterval(heartbeat);
+        this.active.delete(runId);
+        if (takenOver) return; // the figures are the new owner's to store
+        await this.finalize(runId);
+        await this.store.releaseRun(runId, this.claimant.ownerId).catch(() => undefined);
+      });
     // The caller learns the outcome through waitForRun/events; an unobserved rejection must not crash the process.
     finished.catch(() => undefined);
     this.active.set(runId, { control, finished });

@@ -1,5 +1,7 @@
 /** Named store failures, so callers can tell "pick another file" from "upgrade" from "skip". */
 import { UserError } from '../errors';
+import { ownerName } from '../contract/run-owner-text';
+import type { RunOwnership } from './types';
 
 /** The file was written by a newer Rolloff whose schema this version does not know. */
 export class StoreVersionError extends UserError {
@@ -52,5 +54,25 @@ export class DuplicateStepError extends UserError {
 export class RecordNotFoundError extends UserError {
   constructor(readonly kind: 'design' | 'build' | 'run' | 'schedule', readonly id: number) {
     super(`${kind} ${id} does not exist in this database.`, `List the ${kind}s to see which ids exist.`);
+  }
+}
+
+/**
+ * A write by a run's owner (updateRunStatus or insertPoint with asOwner) after
+ * another process took the run over, or after the run was given up: nothing
+ * was written. The process that gets it must stop driving the run.
+ */
+export class RunTakenOverError extends UserError {
+  constructor(
+    readonly runId: number,
+    /** Who owns the run now, if anyone. */
+    readonly nowOwnedBy: Pick<RunOwnership, 'label' | 'pid' | 'host'> | undefined,
+  ) {
+    super(
+      nowOwnedBy
+        ? `run ${runId} was taken over by ${ownerName(nowOwnedBy)}; this process stopped driving it and wrote nothing more to it.`
+        : `run ${runId} is no longer this process's to drive; it stopped driving it and wrote nothing more to it.`,
+      'rolloff runs shows who drives it now; pause, stop or continue it there.',
+    );
   }
 }

@@ -6,7 +6,7 @@
 import { ValidationError } from '../errors';
 import { RUN_STATUSES, type OfflinePeriod, type RunEvent, type RunStatus } from '../contract/contract';
 import { checkBenchName } from '../bench/bench-name';
-import type { BenchSettingsInput, NewCalibration, NewPoint, NewRun, NewSchedule, RunClaimant, RunFilter, RunImport } from './types';
+import type { BenchSettingsInput, NewCalibration, NewPoint, NewRun, NewSchedule, OwnerCondition, RunClaimant, RunFilter, RunImport } from './types';
 
 /** The one list of run states lives in the contract; re-exported for the store's checks. */
 export { RUN_STATUSES };
@@ -201,6 +201,13 @@ export function checkBenchSettings(settings: BenchSettingsInput): BenchSettingsI
     throw new ValidationError('benchSettings.maxStimulusVpp', `${maxStimulusVpp} is not a positive amplitude`, 'Give the largest peak-to-peak voltage the circuit may see, e.g. 2, or null to clear it.');
   }
   return { maxStimulusVpp };
+}
+
+/** The owner a conditional write names (null: an unconditional write). */
+export function checkOwnerCondition(condition: OwnerCondition | undefined): string | null {
+  if (condition === undefined) return null;
+  if (typeof condition?.asOwner !== 'string' || condition.asOwner.trim() === '') throw new ValidationError('condition.asOwner', 'must be a non-empty owner id');
+  return condition.asOwner;
 }
 
 /** A claimant as both stores accept it: a non-empty owner id, a positive pid, a host and a label. */

@@ -23,6 +23,7 @@ import { SOFTWARE_VERSION } from '../contract/version';
 import {
   DuplicateStepError,
   RecordNotFoundError,
+  RunTakenOverError,
   StoreDamagedError,
   StoreUnavailableError,
   StoreVersionError,
@@ -47,6 +48,7 @@ import {
   requireId,
   requireText,
   toJson,
+  checkOwnerCondition,
   checkRunClaimant,
   checkStaleAfter,
   checkBenchToReserve,
@@ -83,6 +85,7 @@ import type {
   StoreOpenOptions,
   StoredRun,
   StoredRunSummary,
+  OwnerCondition,
   RunClaimant,
   RunClaimResult,
   OwnedRunResult,
@@ -119,7 +122,7 @@ export class SqliteStore implements RolloffStore {
   private readonly db: Database.Database;
   private readonly now: () => string;
   private readonly statements: ReturnType<SqliteStore['prepareStatements']>;
-  private readonly insertPointTransaction: (runId: number, point: NewPoint) => void;
+  private readonly insertPointTransaction: (runId: number, point: NewPoint, asOwner: string | null) => void;
   private readonly insertPointsTransaction: (batches: readonly PointBatch[]) => void;
   private readonly createOwnedRunTransaction: Database.Transaction<(input: NewRun, reservation: BenchReservation) => { holder: Row } | { runId: number }>;
 
@@ -130,9 +133,9 @@ export class SqliteStore implements RolloffStore {
     this.appliedMigrations = applied;
     this.now = now;
     this.statements = this.prepareStatements();
-    this.insertPointTransaction = db.transaction((runId: number, point: NewPoint) => {
+    this.insertPointTransaction = db.transaction((runId: number, point: NewPoint, asOwner: string | null) => {
+      if (this.statements.countOwnedPoint.run({ runId, asOwner }).changes === 0) this.refuseWrite(runId, asOwner);
       this.bindPoint(runId, point);
-      this.statements.countPoints.run(1, runId);
     });
     this.createOwnedRunTransaction = db.transaction((input: NewRun, reservation: BenchReservation) => {
       const holder = this.statements.benchHolder.get(reservation) as Row | undefined;
@@ -264,7 +267,7 @@ export class SqliteStore implements RolloffStore {
       setStatus: db.prepare(`UPDATE runs SET status = @status,
         started_at = CASE WHEN @status = 'running' THEN COALESCE(started_at, @at) ELSE started_at END,
         ended_at = CASE WHEN @finished = 1 THEN @at WHEN @status = 'running' THEN NULL ELSE ended_at END
-        WHERE id = @runId`),
+        WHERE id = @runId AND (@asOwner IS NULL OR owner_id = @asOwner)`),
       setResults: db.prepare('UPDATE runs SET figures_json = ?, verdict_json = ? WHERE id = ?'),
       getRun: db.prepare(`SELECT r.*, p.plan_json, b.label AS build_label, d.name AS design_name,
         (SELECT json_group_array(json_object('from', o.from_at, 'to', o.to_at)) FROM
@@ -295,6 +298,8 @@ export class SqliteStore implements RolloffStore {
       insertPoint: db.prepare(`INSERT INTO points (run_id, step, stimulus, amplitude_vpp, input_reading, output_reading,
         gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at_ms) VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?)`),
       countPoints: db.prepare('UPDATE runs SET point_count = point_count + ? WHERE id = ?'),
+      // First in the point's transaction: takes the write lock, so no claim can come between the check and the insert.
+      countOwnedPoint: db.prepare('UPDATE runs SET point_count = point_count + 1 WHERE id = @runId AND (@asOwner IS NULL OR owner_id = @asOwner)'),
       loadPoints: db
         .prepare(`SELECT step, stimulus, amplitude_vpp, gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at_ms
           FROM points WHERE run_id = ? ORDER BY step`)
@@ -440,13 +445,23 @@ export class SqliteStore implements RolloffStore {
   }
 
   /** Moves a run to a status; first 'running' stamps the start, a finished status stamps the end. */
-  async updateRunStatus(runId: number, status: RunStatus, at?: string): Promise<StoredRun> {
+  async updateRunStatus(runId: number, status: RunStatus, at?: string, condition?: OwnerCondition): Promise<StoredRun> {
     this.requireWritable();
     checkRunStatus(status);
     const when = at === undefined ? this.now() : checkInstant(at, 'status.at');
-    const result = this.guard(() => this.statements.setStatus.run({ status, at: when, finished: FINISHED_STATUSES.has(status) ? 1 : 0, runId: requireId(runId, 'runId') }));
-    if (result.changes === 0) throw new RecordNotFoundError('run', runId);
+    const asOwner = checkOwnerCondition(condition);
+    const result = this.guard(() =>
+      this.statements.setStatus.run({ status, at: when, finished: FINISHED_STATUSES.has(status) ? 1 : 0, runId: requireId(runId, 'runId'), asOwner }),
+    );
+    if (result.changes === 0) this.refuseWrite(runId, asOwner);
     return this.runById(runId);
+  }
+
+  /** Why a conditional write changed nothing: no such run, or (with asOwner) the run is someone else's now. */
+  private refuseWrite(runId: number, asOwner: string | null): never {
+    const row = this.statements.getOwner.get(runId) as Row | undefined;
+    if (!row || asOwner === null) throw new RecordNotFoundError('run', runId);
+    throw new RunTakenOverError(runId, ownershipFromRow(row));
   }
 
   async setRunResults(runId: number, figures: RunFigures, verdict: Verdict | null): Promise<StoredRun> {
@@ -633,11 +648,12 @@ export class SqliteStore implements RolloffStore {
   }
 
   /** Stores one point in its own transaction (durable when this returns). A stored step is refused with DuplicateStepError. */
-  async insertPoint(runId: number, point: NewPoint): Promise<void> {
+  async insertPoint(runId: number, point: NewPoint, condition?: OwnerCondition): Promise<void> {
     this.requireWritable();
     requireId(runId, 'runId');
     checkPoint(point, 'point');
-    this.guard(() => this.insertPointTransaction(runId, point));
+    const asOwner = checkOwnerCondition(condition);
+    this.guard(() => this.insertPointTransaction(runId, point, asOwner));
   }
 
   /** Stores many points in one transaction (imports, benchmarks); all or nothing. */

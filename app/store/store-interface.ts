@@ -44,6 +44,7 @@ import type {
   NewRun,
   NewSchedule,
   OwnedRunResult,
+  OwnerCondition,
   PointBatch,
   BuildImport,
   DesignImport,
@@ -84,8 +85,9 @@ export interface RunStore {
   /**
    * First 'running' stamps startedAt; a finished status (done, stopped, failed) stamps endedAt; 'running' again clears it.
    * `at` (ISO 8601) is when it happened, for a change sent late (the outbox); default now.
+   * With condition.asOwner, only while that owner owns the run, in the same statement: else RunTakenOverError, nothing written.
    */
-  updateRunStatus(runId: number, status: RunStatus, at?: string): Promise<StoredRun>;
+  updateRunStatus(runId: number, status: RunStatus, at?: string, condition?: OwnerCondition): Promise<StoredRun>;
   setRunResults(runId: number, figures: RunFigures, verdict: Verdict | null): Promise<StoredRun>;
   getRun(runId: number): Promise<StoredRun>;
   /** Newest first, at most filter.limit (default 200), each with its recorded owner (null when none). */
@@ -135,8 +137,11 @@ export interface RunStore {
 
 /** The measured steps of a run. */
 export interface PointStore {
-  /** One point in its own transaction: durable when this resolves. A stored step is refused with DuplicateStepError. */
-  insertPoint(runId: number, point: NewPoint): Promise<void>;
+  /**
+   * One point in its own transaction: durable when this resolves. A stored step is refused with DuplicateStepError.
+   * With condition.asOwner, only while that owner owns the run, in the same transaction: else RunTakenOverError, nothing written.
+   */
+  insertPoint(runId: number, point: NewPoint, condition?: OwnerCondition): Promise<void>;
   /** Many points of one run in one transaction; all or nothing. */
   insertPoints(runId: number, points: readonly NewPoint[]): Promise<void>;
   /** Points of many runs in one transaction (bulk imports); all or nothing. */

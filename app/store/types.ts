@@ -219,6 +219,15 @@ export interface RunOwnership extends RunClaimant {
   heartbeatAt: string;
 }
 
+/**
+ * A write by the process that drives a run: applied only while asOwner still
+ * owns it, checked in the same statement (or transaction) as the write, so a
+ * process that lost the run to another one can never write over its state.
+ */
+export interface OwnerCondition {
+  asOwner: string;
+}
+
 /** What claimRun found: claimed (the caller owns the run now) or the owner that kept it. */
 export type RunClaimResult = { claimed: true; ownership: RunOwnership } | { claimed: false; ownership: RunOwnership };
 

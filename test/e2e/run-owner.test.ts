@@ -32,8 +32,8 @@ describe.skipIf(!requireTool('chromium'))('the driver of a run, in the History v
   it('shows a CLI sweep as running, driven by its process, without a Resume button; after SIGKILL, as interrupted', async () => {
     const designPath = join(dir, 'lowpass.json');
     writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
-    // Slower than real time from 3 Hz: the sweep lasts well over a minute, so the window sees it running.
-    const sweep = spawn(process.execPath, ['app/cli/bin.mjs', 'sweep', '--design', designPath, '--label', 'driven board', '--simulated', '--time-scale', '0.5',
+    // Slower than real time from 3 Hz (8.4 s of bench time at time scale 0.2: at least 42 s): the window sees it running.
+    const sweep = spawn(process.execPath, ['app/cli/bin.mjs', 'sweep', '--design', designPath, '--label', 'driven board', '--simulated', '--time-scale', '0.2',
       '--max-amplitude', '1', '--db', dbPath, '--from', '3', '--to', '10k', '--per-decade', '10'], { cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'] });
     let sweepErr = '';
     sweep.stderr.on('data', (chunk) => (sweepErr += chunk));

@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { STORE_CONFORMANCE_CHECKS, failingChecks } from './store-conformance';
-import { checksBenchThenCreates, dropsStepOrder, halfAppliesBatches, storesPointTwice, unbrokenStore } from './broken-stores';
+import { checksBenchThenCreates, dropsStepOrder, halfAppliesBatches, ignoresOwnerCondition, storesPointTwice, unbrokenStore } from './broken-stores';
 
 const names = STORE_CONFORMANCE_CHECKS.map((check) => check.name);
 const ROUND_TRIP = names[0];
@@ -13,6 +13,7 @@ const STEP_ORDER = names[1];
 const DUPLICATE = names[2];
 const BULK = names[3];
 const BENCH_RESERVATION = names.find((name) => name.startsWith('bench reservation'))!;
+const OWNER_WRITES = names.find((name) => name.startsWith("run ownership: an owner's status and point writes"))!;
 
 describe('the store conformance suite fails broken stores', () => {
   it('passes a correct store behind the same wrapper (the wrapper alone breaks nothing)', async () => {
@@ -27,6 +28,11 @@ describe('the store conformance suite fails broken stores', () => {
     const failed = await failingChecks(dropsStepOrder);
     expect(failed).toContain(ROUND_TRIP);
     expect(failed).toContain(STEP_ORDER);
+  });
+
+  it('fails a store that writes for an owner that lost the run', async () => {
+    expect(OWNER_WRITES).toBeDefined();
+    expect(await failingChecks(ignoresOwnerCondition)).toEqual([OWNER_WRITES]);
   });
 
   it('fails a store that applies half a batch', async () => {

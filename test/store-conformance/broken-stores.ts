@@ -37,9 +37,9 @@ export const unbrokenStore = broken(() => ({}));
 export const storesPointTwice = broken((inner) => {
   const extra = new Map<number, NewPoint[]>();
   return {
-    async insertPoint(runId, point) {
+    async insertPoint(runId, point, condition) {
       try {
-        await inner.insertPoint(runId, point);
+        await inner.insertPoint(runId, point, condition);
       } catch (error) {
         if (!(error instanceof DuplicateStepError)) throw error;
         extra.set(runId, [...(extra.get(runId) ?? []), point]);
@@ -65,8 +65,8 @@ export const dropsStepOrder = broken((inner) => {
   const stored = new Map<number, number[]>();
   const note = (runId: number, steps: number[]) => stored.set(runId, [...(stored.get(runId) ?? []), ...steps]);
   return {
-    async insertPoint(runId, point) {
-      await inner.insertPoint(runId, point);
+    async insertPoint(runId, point, condition) {
+      await inner.insertPoint(runId, point, condition);
       note(runId, [point.step]);
     },
     async insertPoints(runId, points) {
@@ -104,5 +104,15 @@ export const checksBenchThenCreates = broken((inner, options) => ({
     const run = await inner.createRun(input);
     const claim = await inner.claimRun(run.id, claimant, staleAfterMs);
     return { created: true, run, ownership: claim.ownership };
+  },
+}));
+
+/** Writes an owner's status and points whether it still owns the run or not (as a store checking ownership apart from the write would, in a race). */
+export const ignoresOwnerCondition = broken((inner) => ({
+  async updateRunStatus(runId, status, at) {
+    return inner.updateRunStatus(runId, status, at);
+  },
+  async insertPoint(runId, point) {
+    await inner.insertPoint(runId, point);
   },
 }));

@@ -9,7 +9,7 @@
  */
 import { afterEach, describe, expect, it } from 'vitest';
 import { ValidationError } from '../../app/errors';
-import { DuplicateStepError, RecordNotFoundError, type RolloffStore, type StoreOpenOptions } from '../../app/store';
+import { DuplicateStepError, RecordNotFoundError, RunTakenOverError, type RolloffStore, type StoreOpenOptions } from '../../app/store';
 import { newRun, plan, point, request, seedRun } from './fixtures';
 import { benchKey } from '../../app/bench/bench-key';
 
@@ -350,6 +350,51 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
       await store.releaseRun(run.id, claimant.ownerId);
       expect((await store.getRun(run.id)).owner).toBeNull();
       expect((await store.listRuns()).map((r) => r.owner)).toEqual([null, null]);
+    },
+  },
+  {
+    name: 'run ownership: an owner\'s status and point writes apply only while it owns the run; after a take-over or release they are refused and change nothing',
+    async run(open) {
+      let nowMs = Date.UTC(2026, 0, 1, 12, 0, 0);
+      const store = await open({ now: () => new Date(nowMs).toISOString() });
+      const { run } = await seedRun(store);
+      const first = { ownerId: 'host-a:100:x', pid: 100, host: 'host-a', label: 'rolloff (command line)' };
+      const second = { ownerId: 'host-b:200:y', pid: 200, host: 'host-b', label: 'rolloff serve' };
+      // Not claimed yet: an owner's write is refused; an unconditional one (a store without owners in mind) is not.
+      await expect(store.updateRunStatus(run.id, 'running', undefined, { asOwner: first.ownerId })).rejects.toThrow(RunTakenOverError);
+      await store.claimRun(run.id, first, 10_000);
+      expect((await store.updateRunStatus(run.id, 'running', undefined, { asOwner: first.ownerId })).status).toBe('running');
+      await store.insertPoint(run.id, point(0), { asOwner: first.ownerId });
+      nowMs += 11_000; // first's heartbeat is stale: second takes the run over and drives it
+      expect((await store.claimRun(run.id, second, 10_000)).claimed).toBe(true);
+      await store.insertPoint(run.id, point(1), { asOwner: second.ownerId });
+
+      // The old owner wakes up: its pause and its next point are refused, naming who drives the run now.
+      const pause = store.updateRunStatus(run.id, 'paused', undefined, { asOwner: first.ownerId });
+      await expect(pause).rejects.toThrow(RunTakenOverError);
+      await expect(pause).rejects.toThrow(/run \d+ was taken over by rolloff serve pid 200 on host-b/);
+      await expect(pause).rejects.toMatchObject({ nowOwnedBy: { pid: 200, host: 'host-b', label: 'rolloff serve' } });
+      await expect(store.insertPoint(run.id, point(2), { asOwner: first.ownerId })).rejects.toThrow(RunTakenOverError);
+      const after = await store.getRun(run.id);
+      expect(after.status).toBe('running');
+      expect(after.endedAt).toBeNull();
+      expect(after.pointCount).toBe(2);
+      expect((await store.loadPoints(run.id)).step).toEqual([0, 1]);
+      expect(after.owner?.ownerId).toBe(second.ownerId);
+
+      // The new owner's writes go through; once it releases the run, its own writes are refused too.
+      expect((await store.updateRunStatus(run.id, 'done', undefined, { asOwner: second.ownerId })).status).toBe('done');
+      await store.releaseRun(run.id, second.ownerId);
+      await expect(store.updateRunStatus(run.id, 'failed', undefined, { asOwner: second.ownerId })).rejects.toMatchObject({ nowOwnedBy: undefined });
+      await expect(store.insertPoint(run.id, point(2), { asOwner: second.ownerId })).rejects.toThrow(RunTakenOverError);
+      expect((await store.getRun(run.id)).status).toBe('done');
+      expect((await store.loadPoints(run.id)).step).toEqual([0, 1]);
+
+      // Unknown runs are still RecordNotFoundError; an empty owner id is a ValidationError naming the field.
+      await expect(store.updateRunStatus(777, 'running', undefined, { asOwner: first.ownerId })).rejects.toThrow(RecordNotFoundError);
+      await expect(store.insertPoint(777, point(0), { asOwner: first.ownerId })).rejects.toThrow(RecordNotFoundError);
+      await expect(store.insertPoint(777, point(0))).rejects.toThrow(RecordNotFoundError);
+      await expect(store.updateRunStatus(run.id, 'running', undefined, { asOwner: '' })).rejects.toThrow(/condition.asOwner/);
     },
   },
   {

@@ -22,7 +22,8 @@ import type { NewPoint } from '../types';
 export type OutboxWrite =
   | { kind: 'point'; point: NewPoint & { measuredAt: string } }
   | { kind: 'event'; level: 'info' | 'warning' | 'error'; message: string; at: string }
-  | { kind: 'status'; status: RunStatus; at: string }
+  /** asOwner: the owner it was written as (OwnerCondition); sent only while that owner still owns the run. */
+  | { kind: 'status'; status: RunStatus; at: string; asOwner?: string }
   | { kind: 'results'; figures: RunFigures; verdict: Verdict | null }
   | { kind: 'release'; ownerId: string };
 

@@ -23,13 +23,15 @@
  * (claimRun refuses, naming that process); those of a process that is gone are
  * adopted and sent before the run is claimed, so a resume continues after them.
  * If another bench took the run over meanwhile, the returning bench sends its
- * points where their steps are still free and writes a warning event on the run
- * saying when it was cut off and who took the run: a take-over is never silent.
+ * points where their steps are still free, not its kept status changes (they
+ * carry their owner condition, which the new owner's claim fails), and writes a
+ * warning event on the run saying when it was cut off and who took the run: a
+ * take-over is never silent.
  */
 import { hostname } from 'node:os';
 import { randomBytes } from 'node:crypto';
 import type { BuildRecord, DesignRecord } from '../../contract/contract';
-import { DuplicateStepError, StoreUnreachableError } from '../errors';
+import { DuplicateStepError, RunTakenOverError, StoreUnreachableError } from '../errors';
 import type { RolloffStore } from '../store-interface';
 import type { RunClaimResult, RunOwnership, StoredRun } from '../types';
 import { DelegatingStore } from './delegating-store';
@@ -157,7 +159,6 @@ export class OutboxStore extends DelegatingStore {
     return this.mirrors.get(runId);
   }
 
-  /** A kept write whose answer needs the run: only for a run this process drives. */
   /** A change to the run row itself: sent, or applied to the run's mirror while cut off; the mirror then follows what was stored. */
   private async writeRunChange(runId: number, write: OutboxWrite, direct: () => Promise<StoredRun>, applyToMirror: (mirror: RunMirror) => void): Promise<StoredRun> {
     const run = await this.write(runId, write, direct, () => {
@@ -179,9 +180,10 @@ export class OutboxStore extends DelegatingStore {
     return new StoreUnreachableError(this.location, 'the store cannot be reached, and this bench does not drive the run', 'Try again when the store is back.');
   }
 
-  override insertPoint: Inner['insertPoint'] = async (runId, point) => {
+  /** A point kept while cut off is sent later where its step is still free, whoever drives the run then (see the file comment). */
+  override insertPoint: Inner['insertPoint'] = async (runId, point, condition) => {
     const kept = { ...point, measuredAt: point.measuredAt ?? this.now() };
-    await this.write(runId, { kind: 'point', point: kept }, () => this.inner.insertPoint(runId, kept), () => undefined);
+    await this.write(runId, { kind: 'point', point: kept }, () => this.inner.insertPoint(runId, kept, condition), () => undefined);
     this.mirrorOf(runId)?.addPoint(kept);
   };
 
@@ -192,9 +194,15 @@ export class OutboxStore extends DelegatingStore {
     return event;
   };
 
-  override updateRunStatus: Inner['updateRunStatus'] = async (runId, status, at) => {
+  /** A status kept while cut off keeps its owner condition: sent late, it never overwrites the state of a process that took the run over. */
+  override updateRunStatus: Inner['updateRunStatus'] = async (runId, status, at, condition) => {
     const when = at ?? this.now();
-    return this.writeRunChange(runId, { kind: 'status', status, at: when }, () => this.inner.updateRunStatus(runId, status, when), (mirror) => mirror.setStatus(status, when));
+    return this.writeRunChange(
+      runId,
+      { kind: 'status', status, at: when, ...(condition ? { asOwner: condition.asOwner } : {}) },
+      () => this.inner.updateRunStatus(runId, status, when, condition),
+      (mirror) => mirror.setStatus(status, when),
+    );
   };
 
   override setRunResults: Inner['setRunResults'] = async (runId, figures, verdict) => {
@@ -355,7 +363,13 @@ export class OutboxStore extends DelegatingStore {
         await this.inner.appendEvent(runId, write.level, write.message, write.at);
         return;
       case 'status':
-        await this.inner.updateRunStatus(runId, write.status, write.at);
+        try {
+          await this.inner.updateRunStatus(runId, write.status, write.at, write.asOwner === undefined ? undefined : { asOwner: write.asOwner });
+        } catch (error) {
+          // Taken over while this bench was cut off: the new owner's state stands (the warning event says so).
+          if (!(error instanceof RunTakenOverError)) throw error;
+          this.options.log(`run ${runId} was taken over while this bench was cut off: its kept change to "${write.status}" is not sent`);
+        }
         return;
       case 'results':
         await this.inner.setRunResults(runId, write.figures, write.verdict);

@@ -19,7 +19,7 @@ import type {
   RunStatus,
   Verdict,
 } from '../../contract/contract';
-import { DuplicateStepError, RecordNotFoundError, StoreUnavailableError } from '../errors';
+import { DuplicateStepError, RecordNotFoundError, RunTakenOverError, StoreUnavailableError } from '../errors';
 import { identityKey } from '../identity-key';
 import {
   FINISHED_STATUSES,
@@ -38,6 +38,7 @@ import {
   requireId,
   requireText,
   toJson,
+  checkOwnerCondition,
   checkRunClaimant,
   checkStaleAfter,
   checkBenchToReserve,
@@ -69,6 +70,7 @@ import type {
   StoreOpenOptions,
   StoredRun,
   StoredRunSummary,
+  OwnerCondition,
   RunClaimant,
   RunClaimResult,
   OwnedRunResult,
@@ -381,17 +383,23 @@ export class PostgresStore implements RolloffStore {
     return rows[0].id;
   }
 
-  async updateRunStatus(runId: number, status: RunStatus, at?: string): Promise<StoredRun> {
+  /**
+   * With an owner condition the UPDATE waits for a concurrent claim's row lock and
+   * re-checks owner_id against the row it left (READ COMMITTED), so a run taken
+   * over a moment ago is never written by its old owner.
+   */
+  async updateRunStatus(runId: number, status: RunStatus, at?: string, condition?: OwnerCondition): Promise<StoredRun> {
     this.requireWritable();
     checkRunStatus(status);
+    const asOwner = checkOwnerCondition(condition);
     const result = await this.query(
       `UPDATE runs SET status = $1,
          started_at = CASE WHEN $1 = 'running' THEN COALESCE(started_at, $2) ELSE started_at END,
          ended_at = CASE WHEN $3 THEN $2 WHEN $1 = 'running' THEN NULL ELSE ended_at END
-       WHERE id = $4`,
-      [status, at === undefined ? instant(this.now()) : checkInstant(at, 'status.at'), FINISHED_STATUSES.has(status), requireId(runId, 'runId')],
+       WHERE id = $4 AND ($5::text IS NULL OR owner_id = $5)`,
+      [status, at === undefined ? instant(this.now()) : checkInstant(at, 'status.at'), FINISHED_STATUSES.has(status), requireId(runId, 'runId'), asOwner],
     );
-    if (result.rowCount === 0) throw new RecordNotFoundError('run', runId);
+    if (result.rowCount === 0) await this.refuseWrite(runId, asOwner);
     await this.notify({ kind: 'status', runId });
     return this.getRun(runId);
   }
@@ -647,25 +655,39 @@ export class PostgresStore implements RolloffStore {
 
   // ── points ─────────────────────────────────────────────────────────────
 
-  async insertPoint(runId: number, point: NewPoint): Promise<void> {
+  async insertPoint(runId: number, point: NewPoint, condition?: OwnerCondition): Promise<void> {
     this.requireWritable();
     requireId(runId, 'runId');
     checkPoint(point, 'point');
+    const asOwner = checkOwnerCondition(condition);
+    let inserted: number | null;
     try {
       // One statement is one transaction: the point and the run's count commit together, durably (synchronous_commit=on).
-      await this.query(
+      // The count comes first: its row lock orders this insert with a concurrent claim, and with an owner condition
+      // (re-checked on the row a claim left) nothing is inserted once the run is another process's.
+      ({ rowCount: inserted } = await this.query(
         {
           name: 'rolloff-insert-point',
           // The notification is sent when this statement commits, with the point: never ahead of it.
-          text: `WITH point AS (INSERT INTO points (${POINT_COLUMNS}) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13) RETURNING run_id),
-                 counted AS (UPDATE runs SET point_count = point_count + 1 WHERE id = (SELECT run_id FROM point) RETURNING id)
-                 SELECT pg_notify('${CHANGE_CHANNEL}', $14) FROM counted`,
+          text: `WITH counted AS (UPDATE runs SET point_count = point_count + 1 WHERE id = $1 AND ($15::text IS NULL OR owner_id = $15) RETURNING id),
+                 point AS (INSERT INTO points (${POINT_COLUMNS})
+                   SELECT id, $2::integer, $3::float8, $4::float8, $5::float8, $6::float8, $7::float8, $8::float8, $9::float8, $10::float8, $11::float8,
+                     $12::integer, $13::timestamptz FROM counted RETURNING run_id)
+                 SELECT pg_notify('${CHANGE_CHANNEL}', $14) FROM point`,
         },
-        [runId, ...this.valuesOf(point), changePayload(this.origin, { kind: 'points', runId })],
-      );
+        [runId, ...this.valuesOf(point), changePayload(this.origin, { kind: 'points', runId }), asOwner],
+      ));
     } catch (error) {
       throw this.pointFailure(error, runId, [point]);
     }
+    if (inserted === 0) await this.refuseWrite(runId, asOwner);
+  }
+
+  /** Why a conditional write changed nothing: no such run, or (with asOwner) the run is someone else's now. */
+  private async refuseWrite(runId: number, asOwner: string | null): Promise<never> {
+    const ownership = await this.getRunOwnership(runId); // RecordNotFoundError for an unknown run
+    if (asOwner === null) throw new RecordNotFoundError('run', runId);
+    throw new RunTakenOverError(runId, ownership);
   }
 
   async insertPoints(runId: number, points: readonly NewPoint[]): Promise<void> {

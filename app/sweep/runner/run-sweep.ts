@@ -6,7 +6,7 @@
 import type { BenchClock } from '../../bench/clock';
 import type { PointColumns, RunEvent, RunProgress, RunStatus, ServiceEvents } from '../../contract/contract';
 import { PointFlag } from '../../contract/contract';
-import type { SweepStore } from '../../store';
+import { RunTakenOverError, type SweepStore } from '../../store';
 import type { RunControl } from './control';
 import { withRecovery } from './recovery';
 import { RemeasureStep } from './errors';
@@ -19,6 +19,12 @@ export interface SweepRunOptions {
   /** Only the few store methods a sweep uses: a fake of them drives the runner in tests. */
   store: SweepStore;
   runId: number;
+  /**
+   * The owner id this process holds the run under (RunStore.claimRun): every
+   * status and point it writes is conditional on still owning the run, so once
+   * another process has taken it over nothing of this sweep reaches the store.
+   */
+  ownerId?: string;
   clock: BenchClock;
   control: RunControl;
   measurer: StepMeasurer;
@@ -34,12 +40,14 @@ export interface SweepRunOptions {
 
 export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
   const { store, runId, clock, control } = options;
+  const asOwner = options.ownerId === undefined ? undefined : { asOwner: options.ownerId };
   const log = async (level: RunEvent['level'], message: string) => {
     const event = await store.appendEvent(runId, level, message);
     options.emit('runEvent', { runId, ...event });
   };
+  const setStatus = (status: RunStatus) => store.updateRunStatus(runId, status, undefined, asOwner);
   const firstStep = await store.nextStep(runId);
-  await store.updateRunStatus(runId, 'running');
+  await setStatus('running');
   await log('info', firstStep === 0 ? 'sweep started' : `sweep continued at step ${firstStep}`);
 
   let instruments: SweepInstruments | undefined;
@@ -98,7 +106,7 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
       phaseUncertaintyDeg: result.phaseUncertaintyDeg,
       outputV: result.outputV,
       flags,
-    });
+    }, asOwner);
     if (result.advice) await log('warning', result.advice);
     if (result.note) await log('info', result.note);
     options.emit('point', {
@@ -119,6 +127,7 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
       }
       const setting = queue[0];
       if (!setting) break;
+      if (control.pending === 'lost') throw control.lostReason;
       if (control.pending !== 'none') {
         await stored();
         return await halt(control.pending === 'stop' ? 'stopped' : 'paused');
@@ -149,16 +158,22 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
     }
     await stored();
     await outputOff(instruments, log);
-    await store.updateRunStatus(runId, 'done');
+    await setStatus('done');
     await log('info', 'sweep finished');
     const done = await total();
     options.emit('progress', progress(runId, done, done, 0, 'done'));
     return 'done';
   } catch (error) {
+    if (error instanceof RunTakenOverError || control.pending === 'lost') {
+      // The run is another process's now, and so may be the instruments it drives: send nothing, write nothing.
+      const reason = error instanceof RunTakenOverError ? error : (control.lostReason ?? error);
+      options.emit('runEvent', { runId, at: new Date().toISOString(), level: 'error', message: (reason as Error).message });
+      throw reason;
+    }
     // A point measured before the failure is kept (unless storing it was the failure).
     await stored().catch(() => undefined);
     await outputOff(instruments, log);
-    await store.updateRunStatus(runId, 'failed');
+    await setStatus('failed');
     await log('error', `sweep failed: ${(error as Error).message}`);
     options.emit('progress', progress(runId, await store.nextStep(runId), await total(), 0, 'failed'));
     throw error;
@@ -166,7 +181,7 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
 
   async function halt(status: 'stopped' | 'paused'): Promise<RunStatus> {
     await outputOff(instruments, log);
-    await store.updateRunStatus(runId, status);
+    await setStatus(status);
     const nextStep = await store.nextStep(runId);
     await log('info', status === 'paused' ? `paused before step ${nextStep}` : 'stopped by the user');
     options.emit('progress', progress(runId, nextStep, await total(), 0, status));

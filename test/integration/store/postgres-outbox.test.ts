@@ -169,7 +169,7 @@ describe.skipIf(!postgresAvailable())('PostgreSQL stopped mid-sweep and started 
     }
   }, 120_000);
 
-  it('a bench that finds its run taken over by another bench when it comes back keeps the other\'s points and says so on the run', async () => {
+  it('a bench that finds its run taken over by another bench when it comes back keeps the other\'s points and state, and says so on the run', async () => {
     const url = cluster.createDatabase('taken_over').replace(`${cluster.role}@`, `${cluster.role}:${encodeURIComponent(cluster.password)}@`);
     // A long retry interval: the kept point is sent only when this bench closes, after the other bench took the run.
     const cutOff = OutboxStore.open(await PostgresStore.open(url), { path: join(folder.path, 'taken-over-outbox.sqlite'), log: () => {}, retryIntervalMs: 600_000, flushOnCloseMs: 10_000 });
@@ -180,13 +180,16 @@ describe.skipIf(!postgresAvailable())('PostgreSQL stopped mid-sweep and started 
     cluster.stop();
     await cutOff.insertPoint(run.id, point(1, { gainDb: 11 })); // kept
     await cutOff.insertPoint(run.id, point(2, { gainDb: 12 })); // kept
+    // The cut-off bench's sweep ends (as its owner): kept too, with its owner condition.
+    expect((await cutOff.updateRunStatus(run.id, 'paused', undefined, { asOwner: 'bench-3' })).status).toBe('paused'); // the mirror's answer
     cluster.start();
 
     // Another machine sees a stale heartbeat (here: older than 1 ms) and takes the run, measuring step 1 again.
     const other = await PostgresStore.open(url);
     try {
       expect((await other.claimRun(run.id, { ownerId: 'bench-7', pid: 4242, host: 'bench 7', label: 'rolloff resume' }, 1)).claimed).toBe(true);
-      await other.insertPoint(run.id, point(1, { gainDb: 71 }));
+      await other.insertPoint(run.id, point(1, { gainDb: 71 }), { asOwner: 'bench-7' });
+      await other.updateRunStatus(run.id, 'running', undefined, { asOwner: 'bench-7' });
       await cutOff.close(); // back: sends what it kept
       const points = await other.loadPoints(run.id);
       expect(points.step).toEqual([0, 1, 2]); // each step once
@@ -194,6 +197,10 @@ describe.skipIf(!postgresAvailable())('PostgreSQL stopped mid-sweep and started 
       const warning = (await other.listEvents(run.id)).find((event) => event.level === 'warning');
       expect(warning?.message).toMatch(/was cut off from the store from \S+ to \S+; meanwhile the run was taken over by rolloff resume \(process 4242 on bench 7\)/);
       expect((await other.getRun(run.id)).offlinePeriods).toHaveLength(1);
+      // The kept "paused" of the bench that lost the run is not sent over the new owner's state.
+      const after = await other.getRun(run.id);
+      expect(after.status).toBe('running');
+      expect(after.owner?.ownerId).toBe('bench-7');
     } finally {
       await other.close();
     }

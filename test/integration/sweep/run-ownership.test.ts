@@ -4,7 +4,8 @@
  * neither resume, pause, stop nor list the run as interrupted; `rolloff runs`
  * names who drives it. After SIGKILL of the owner the other process takes the
  * run over (its owner process is gone on this host) and completes it with every
- * step measured once.
+ * step measured once. An owner frozen (SIGSTOP) past its heartbeat loses the run
+ * to another process; woken, it stops and writes no status over the new owner's.
  */
 import { afterAll, describe, expect, it } from 'vitest';
 import { spawn, spawnSync } from 'node:child_process';
@@ -53,11 +54,11 @@ describe('two processes on one store file', () => {
     expect(resumeRefused.stderr).toMatch(/Pause or stop it where it runs/);
     const listed = spawnSync(process.execPath, [BIN, 'runs', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
     expect(listed.status, listed.stderr).toBe(0);
-    expect(listed.stdout).toMatch(new RegExp(`\\nrun ${run.id}: running, driven by rolloff \\(command line\\) pid ${child.pid} on ${hostname()}, heartbeat \\d+ s ago\\n`));
+    expect(listed.stdout, stderr).toMatch(new RegExp(`\\nrun ${run.id}: running, driven by rolloff \\(command line\\) pid ${child.pid} on ${hostname()}, heartbeat \\d+ s ago\\n`));
     expect(listed.stdout).toMatch(new RegExp(`\\n${run.id} +ac +running `)); // the table's status column
     expect(listed.stderr).not.toMatch(/left running or paused/);
     const listedJson = spawnSync(process.execPath, [BIN, 'runs', '--json', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
-    expect(JSON.parse(listedJson.stdout)[0].owner).toMatchObject({ label: 'rolloff (command line)', pid: child.pid, host: hostname(), live: true });
+    expect(JSON.parse(listedJson.stdout)[0].owner, stderr).toMatchObject({ label: 'rolloff (command line)', pid: child.pid, host: hostname(), live: true });
 
     // A service in this process (as the window's would be): pause, stop and resume refused, nothing changed.
     const other = await openServiceAt(dbPath, { maxStimulusVpp: 1 });
@@ -94,4 +95,53 @@ describe('two processes on one store file', () => {
     expect(points.stimulus.slice(0, finished.plan.steps.length)).toEqual(finished.plan.steps.map((s) => s.stimulus));
     expect(ownerAfter).toBeUndefined(); // released at the end
   }, 90_000);
+  it('an owner frozen past its heartbeat loses the run: when it wakes it stops driving and writes no status, while the process that took the run over completes it', async () => {
+    const designPath = join(folder.path, 'frozen.json');
+    const dbPath = join(folder.path, 'frozen.sqlite');
+    writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
+    const start = (args: string[]) => {
+      const child = spawn(process.execPath, [BIN, ...args, '--db', dbPath], { stdio: ['ignore', 'ignore', 'pipe'] });
+      const result = { stderr: '', exited: new Promise<number | null>((done) => child.on('exit', (code) => done(code))) };
+      child.stderr.on('data', (chunk) => (result.stderr += chunk));
+      return { child, result };
+    };
+    const waitForPoints = async (count: number, what: string) => {
+      const deadline = Date.now() + 60_000;
+      while ((await pointsOfLatestRun(dbPath)) < count) {
+        if (Date.now() > deadline) throw new Error(`no point ${count} from ${what}`);
+        await new Promise((r) => setTimeout(r, 50));
+      }
+    };
+    const first = start(['sweep', '--design', designPath, '--label', 'frozen', '--simulated', '--time-scale', '0.5', '--max-amplitude', '1', '--from', '3', '--to', '10k', '--per-decade', '10', '--no-refine']);
+    await waitForPoints(2, 'the first sweep');
+    first.child.kill('SIGSTOP'); // frozen (a hung machine, a laptop lid): alive, but no heartbeat
+    await new Promise((r) => setTimeout(r, 11_000)); // more than the 10 s after which a heartbeat is stale (run-ownership.ts)
+    const frozenAt = await pointsOfLatestRun(dbPath);
+
+    const second = start(['resume', '1', '--simulated', '--time-scale', '1']);
+    await waitForPoints(frozenAt + 1, 'the process that took the run over');
+    first.child.kill('SIGCONT');
+    // The first owner learns it lost the run (its heartbeat renewal, or a point it tries to store, is refused) and stops.
+    expect(await first.result.exited, first.result.stderr).toBe(2);
+    expect(first.result.stderr).toMatch(new RegExp(`run 1 was taken over by rolloff \\(command line\\) pid ${second.child.pid} on ${hostname()}; this process stopped driving it`));
+    const meanwhile = SqliteStore.open(dbPath, { readonly: true });
+    const during = await meanwhile.getRun(1);
+    await meanwhile.close();
+    expect(during.status).toBe('running'); // not the 'paused' a woken owner used to write over the new owner's state
+    expect(during.owner?.pid).toBe(second.child.pid);
+
+    expect(await second.result.exited, second.result.stderr).toBe(0);
+    const after = SqliteStore.open(dbPath, { readonly: true });
+    const finished = await after.getRun(1);
+    const points = await after.loadPoints(1);
+    const events = (await after.listEvents(1)).map((e) => e.message);
+    await after.close();
+    expect(finished.status).toBe('done');
+    expect(points.step).toEqual(finished.plan.steps.map((_, i) => i)); // every step once, none lost to the old owner
+    const resumedAt = events.findIndex((m) => m.startsWith('resumed ('));
+    expect(resumedAt).toBeGreaterThan(0);
+    // Nothing of the old owner's ending after the take-over: no pause, no failure, no finish of its own.
+    expect(events.slice(resumedAt).filter((m) => /^paused before step|^sweep failed|^stopped by the user/.test(m))).toEqual([]);
+    expect(events.filter((m) => m === 'sweep finished')).toHaveLength(1);
+  }, 180_000);
 });
