@@ -2,7 +2,7 @@
  * Pass/fail against the user's limits (VerdictLimits in the contract).
  */
 import type { Verdict, VerdictLimits } from '../contract/contract';
-import { formatEngineering } from '../units';
+import { formatEngineering, formatFixed, withTrueMinus } from '../units';
 
 export interface VerdictInputs {
   limits: VerdictLimits | undefined;
@@ -29,7 +29,7 @@ export function judge(inputs: VerdictInputs): Verdict | null {
       const ok = Math.abs(worst.deviationDb) <= limits.maxDeviationDb;
       pass &&= ok;
       reasons.push(
-        `Largest pass-band deviation ${worst.deviationDb.toFixed(3)} dB at ${formatEngineering(worst.frequencyHz, 'Hz')} ` +
+        `Largest pass-band deviation ${formatFixed(worst.deviationDb, 3)} dB at ${formatEngineering(worst.frequencyHz, 'Hz')} ` +
           `${ok ? 'within' : 'exceeds'} the limit ±${limits.maxDeviationDb} dB.`,
       );
     }
@@ -48,7 +48,7 @@ export function judge(inputs: VerdictInputs): Verdict | null {
       pass &&= ok;
       reasons.push(
         `−3 dB point ${formatEngineering(nearest, 'Hz')} vs theory ${formatEngineering(theoryHz, 'Hz')}: ` +
-          `${(relative * 100).toFixed(2)} % ${ok ? 'within' : 'outside'} ±${(limits.cornerTolerance * 100).toFixed(2)} %.`,
+          `${formatFixed(relative * 100, 2)} % ${ok ? 'within' : 'outside'} ±${(limits.cornerTolerance * 100).toFixed(2)} %.`,
       );
     }
   }
@@ -61,7 +61,7 @@ export function judge(inputs: VerdictInputs): Verdict | null {
     reasons.push(
       gain === undefined
         ? 'Pass-band gain could not be measured.'
-        : `Pass-band gain ${gain.toFixed(3)} dB ${ok ? 'inside' : 'outside'} [${lowDb}, ${highDb}] dB.`,
+        : `Pass-band gain ${formatFixed(gain, 3)} dB ${ok ? 'inside' : 'outside'} [${withTrueMinus(String(lowDb))}, ${withTrueMinus(String(highDb))}] dB.`,
     );
   }
   return { pass, reasons };

@@ -10,7 +10,7 @@
  * first reaches −180°. Phase is unwrapped from the lowest scan frequency,
  * where negative feedback gives ∠T ≈ 0°.
  */
-import { dbFromRatio, degreesFromRadians, unwrapPhaseDeg } from '../units';
+import { dbFromRatio, degreesFromRadians, formatFixed, unwrapPhaseDeg } from '../units';
 import { AcSolver } from './ac-solver';
 import { bisectLogF } from './bisect-log-f';
 import { openLoopGainAt } from './opamp-gain';
@@ -162,11 +162,11 @@ export function stabilityWarnings(stability: OpAmpStability[], minPhaseMarginDeg
   const warnings: TheoryWarning[] = [];
   for (const s of stability) {
     if (s.phaseMarginDeg === undefined || s.phaseMarginDeg >= minPhaseMarginDeg) continue;
-    const pm = s.phaseMarginDeg.toFixed(1);
+    const pm = formatFixed(s.phaseMarginDeg, 1);
     const what =
       s.phaseMarginDeg <= 0
         ? 'the loop has no phase margin left: the stage will oscillate'
-        : `the stage will ring and its response peaks by ${s.peakingDb.toFixed(1)} dB; a little more load capacitance may make it oscillate`;
+        : `the stage will ring and its response peaks by ${formatFixed(s.peakingDb, 1)} dB; a little more load capacitance may make it oscillate`;
     warnings.push({
       kind: 'low-phase-margin',
       opAmpId: s.id,

@@ -9,15 +9,16 @@ import { FIGURE_NAMES } from '../contract/vocabulary';
 
 /** Figures shown side by side, with how to print a value and its delta. */
 const COMPARED_FIGURES: Array<{ key: keyof RunFigures; label: string; format: (v: number) => string; formatDelta: (v: number) => string }> = [
-  { key: 'passbandGainDb', label: 'Pass-band gain', format: (v) => formatDb(v), formatDelta: (v) => signed(v.toFixed(2)) + ' dB' },
-  { key: 'minus3dbHz', label: '−3 dB', format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
+  { key: 'passbandGainDb', label: FIGURE_NAMES.passbandGainDb, format: (v) => formatDb(v), formatDelta: (v) => signed(formatDb(v)) },
+  { key: 'minus3dbHz', label: FIGURE_NAMES.minus3dbHz, format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
   { key: 'gainLimitHz', label: FIGURE_NAMES.gainLimitHz, format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
-  { key: 'gbwEstimateHz', label: 'GBW estimate', format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
-  { key: 'maxDeviationDb', label: FIGURE_NAMES.maxDeviationDb, format: (v) => formatDb(v), formatDelta: (v) => signed(v.toFixed(2)) + ' dB' },
+  { key: 'gbwEstimateHz', label: `${FIGURE_NAMES.gbwEstimateHz} estimate`, format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
+  { key: 'maxDeviationDb', label: FIGURE_NAMES.maxDeviationDb, format: (v) => formatDb(v), formatDelta: (v) => signed(formatDb(v)) },
 ];
 
+/** A delta with its sign always written: "+1.20 dB", "−3 Hz" (the formatters write the true minus). */
 function signed(text: string): string {
-  return text.startsWith('-') ? `−${text.slice(1)}` : `+${text}`;
+  return text.startsWith('−') ? text : `+${text}`;
 }
 
 function figureValue(figures: RunFigures, key: keyof RunFigures, format: (v: number) => string): string {

@@ -4,7 +4,7 @@
  * 1-2-5 steps. One place maps values to the 0…1 span of an axis, shared by the
  * SVG and PDF plots so both draw the same picture.
  */
-import { formatEngineering } from '../units';
+import { formatEngineering, withTrueMinus } from '../units';
 
 export type AxisScale = 'log' | 'linear';
 
@@ -61,7 +61,7 @@ export function linearAxis(values: Iterable<number | null>, title: string, unit:
   const ticks: AxisTick[] = [];
   for (let i = 0; min + i * step <= max + step * 1e-6; i++) {
     const value = Number((min + i * step).toPrecision(12));
-    ticks.push({ value, label: unit ? formatEngineering(value, unit, 4) : Number(value.toPrecision(6)).toString(), major: true });
+    ticks.push({ value, label: unit ? formatEngineering(value, unit, 4) : withTrueMinus(Number(value.toPrecision(6)).toString()), major: true });
   }
   return { scale: 'linear', min, max, title, ticks };
 }

@@ -1,6 +1,6 @@
 /** Words and number formats a record uses, shared by every format so they say the same thing. */
 import { PointFlag, type InstrumentIdentity, type RunFigures, type Verdict } from '../contract/contract';
-import { formatEngineering, formatWithUncertainty } from '../units';
+import { formatEngineering, formatFixed, formatPrecision, formatWithUncertainty } from '../units';
 import type { MaybeNumber } from './model';
 import { FIGURE_NAMES } from '../contract/vocabulary';
 
@@ -13,8 +13,8 @@ export function formatMaybe(value: MaybeNumber | undefined, format: (v: number) 
 
 export const formatHz = (value: number) => formatEngineering(value, 'Hz', 4);
 export const formatVolts = (value: number) => formatEngineering(value, 'V', 4);
-export const formatDb = (value: number, decimals = 2) => `${value.toFixed(decimals)} dB`;
-export const formatDeg = (value: number, decimals = 1) => `${value.toFixed(decimals)}°`;
+export const formatDb = (value: number, decimals = 2) => `${formatFixed(value, decimals)} dB`;
+export const formatDeg = (value: number, decimals = 1) => `${formatFixed(value, decimals)}°`;
 /** Uncertainties to two significant digits (GUM JCGM 100:2008 §7.2.6, recalled from memory). */
 export const formatUncertainty = (value: number) => Number(value.toPrecision(2)).toString();
 
@@ -37,9 +37,9 @@ export interface FigureLine {
 /** Extracted figures as labelled lines; only figures the run has. */
 export function figureLines(figures: RunFigures): FigureLine[] {
   const lines: FigureLine[] = [];
-  if (isNumber(figures.passbandGainDb)) lines.push({ key: 'passbandGainDb', label: 'Pass-band gain', value: formatDb(figures.passbandGainDb) });
+  if (isNumber(figures.passbandGainDb)) lines.push({ key: 'passbandGainDb', label: FIGURE_NAMES.passbandGainDb, value: formatDb(figures.passbandGainDb) });
   if (figures.minus3dbHz && figures.minus3dbHz.length > 0) lines.push({ key: 'minus3dbHz', label: FIGURE_NAMES.minus3dbHz, value: figures.minus3dbHz.map(formatHz).join(', ') });
-  if (isNumber(figures.rolloffDbPerDecade)) lines.push({ key: 'rolloffDbPerDecade', label: 'Roll-off', value: `${figures.rolloffDbPerDecade.toFixed(1)} dB/decade` });
+  if (isNumber(figures.rolloffDbPerDecade)) lines.push({ key: 'rolloffDbPerDecade', label: FIGURE_NAMES.rolloffDbPerDecade, value: `${formatFixed(figures.rolloffDbPerDecade, 1)} dB/decade` });
   if (isNumber(figures.gainLimitHz)) lines.push({ key: 'gainLimitHz', label: `${FIGURE_NAMES.gainLimitHz} (loop gain = 1)`, value: formatHz(figures.gainLimitHz) });
   if (isNumber(figures.gbwEstimateHz)) {
     const value = isNumber(figures.gbwUncertaintyHz) ? `${formatWithUncertainty(figures.gbwEstimateHz, figures.gbwUncertaintyHz, 'Hz')} (1σ)` : formatHz(figures.gbwEstimateHz);
@@ -51,15 +51,15 @@ export function figureLines(figures: RunFigures): FigureLine[] {
     lines.push({ key: 'closedLoopPeakingDb', label: 'Closed-loop peaking (measured over ideal gain)', value: formatDb(figures.closedLoopPeakingDb) + theory });
   }
   if (isNumber(figures.phaseMarginEstimateDeg)) {
-    const theory = isNumber(figures.theoryPhaseMarginDeg) ? ` (computed ${figures.theoryPhaseMarginDeg.toFixed(1)}°)` : '';
+    const theory = isNumber(figures.theoryPhaseMarginDeg) ? ` (computed ${formatDeg(figures.theoryPhaseMarginDeg)})` : '';
     const bound = figures.phaseMarginEstimateIsLowerBound ? 'at least ' : '';
-    lines.push({ key: 'phaseMarginEstimateDeg', label: 'Phase margin estimated from the peaking (second-order loop)', value: `${bound}${figures.phaseMarginEstimateDeg.toFixed(1)}°${theory}` });
+    lines.push({ key: 'phaseMarginEstimateDeg', label: 'Phase margin estimated from the peaking (second-order loop)', value: `${bound}${formatDeg(figures.phaseMarginEstimateDeg)}${theory}` });
   }
   for (const warning of figures.theoryWarnings ?? []) lines.push({ key: 'theoryWarnings', label: 'Warning (computed theory)', value: warning });
   const fit = figures.logFit;
   if (fit) {
     const ci = (pair: [number, number], format: (v: number) => string) => `95 % interval ${format(pair[0])} … ${format(pair[1])}`;
-    const plain = (v: number) => v.toPrecision(4);
+    const plain = (v: number) => formatPrecision(v, 4);
     lines.push({ key: 'logFit.n', label: FIGURE_NAMES.diodeIdealityN, value: `${plain(fit.n)} (${ci(fit.nCi, plain)})` });
     lines.push({ key: 'logFit.isA', label: 'Saturation current I_S', value: `${formatEngineering(fit.isA, 'A', 4)} (${ci(fit.isCi, (v) => formatEngineering(v, 'A', 4))})` });
     lines.push({ key: 'logFit.rsOhm', label: 'Series resistance R_S', value: `${formatEngineering(fit.rsOhm, 'Ω', 4)} (${ci(fit.rsCi, (v) => formatEngineering(v, 'Ω', 4))})` });

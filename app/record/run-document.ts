@@ -1,5 +1,5 @@
 /** The content of a run record, in reading order (see record-document.ts). */
-import { formatEngineering, parseEngineering } from '../units';
+import { formatEngineering, formatFixed, parseEngineering } from '../units';
 import type { Block, RecordDocument } from './record-document';
 import type { RecordDesign, RunRecord } from './model';
 import { runPlots } from './record-plots';
@@ -140,7 +140,7 @@ function designBlocks(design: RecordDesign, record: RunRecord): Block[] {
   const rows = parts.map((p) => {
     const unit = UNIT_BY_KIND[p.kind] ?? '';
     const measured = actual[p.id];
-    const deviation = measured !== undefined && p.value ? `${(((measured - p.value) / p.value) * 100).toFixed(2)} %` : '—';
+    const deviation = measured !== undefined && p.value ? `${formatFixed(((measured - p.value) / p.value) * 100, 2)} %` : '—';
     return [p.id, p.kind, p.nodes, p.modelText ?? formatMaybe(p.value, (v) => formatEngineering(v, unit)), measured === undefined ? '—' : formatEngineering(measured, unit), deviation];
   });
   for (const [id, value] of Object.entries(actual)) if (!partIds.has(id)) rows.push([id, '', '', '—', formatEngineering(value), '—']);
@@ -160,7 +160,7 @@ function planBlocks(record: RunRecord): Block[] {
     ? [
         limits.maxDeviationDb !== undefined ? `|measured − theory| ≤ ${limits.maxDeviationDb} dB` : null,
         limits.cornerTolerance !== undefined ? `${FIGURE_NAMES.minus3dbHz} within ±${(limits.cornerTolerance * 100).toFixed(1)} %` : null,
-        limits.passbandGainDb ? `pass-band gain ${limits.passbandGainDb[0]} … ${limits.passbandGainDb[1]} dB` : null,
+        limits.passbandGainDb ? `pass-band gain ${formatDb(limits.passbandGainDb[0])} … ${formatDb(limits.passbandGainDb[1])}` : null,
       ].filter(Boolean).join('; ') || 'none'
     : 'none';
   return [

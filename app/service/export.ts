@@ -4,7 +4,7 @@ import type { ExportedRecord, RecordFormat, RunDetail } from '../contract/contra
 import type { RolloffService } from './service';
 import { inputResistor, logStageIdeal, type DiodePart } from '../circuit';
 import { designOf } from '../read-model/stored-design';
-import { logGrid } from '../units';
+import { formatEngineering, formatPrecision, logGrid } from '../units';
 
 /** What an export reads: the service, or a read-only store behind the same three members (`rolloff export`). */
 export type RecordSource = Pick<RolloffService, 'store' | 'getRun' | 'compareRuns'>;
@@ -49,6 +49,6 @@ function dcFitCurve(detail: RunDetail, designRecord: { id: number; name: string;
   return {
     inputV,
     outputV: inputV.map((v) => logStageIdeal(v, resistor.value, model, design.temperatureC)),
-    description: `fitted n = ${fit.n.toPrecision(4)}, IS = ${fit.isA.toPrecision(3)} A, RS = ${fit.rsOhm.toPrecision(3)} Ω`,
+    description: `fitted n = ${formatPrecision(fit.n, 4)}, IS = ${formatEngineering(fit.isA, 'A', 3)}, RS = ${formatEngineering(fit.rsOhm, 'Ω', 3)}`,
   };
 }

@@ -26,7 +26,7 @@ const PREFIX_EXPONENTS: Record<string, number> = {
 /** Unit words a user may append ("10 kHz", "4.7uF"); anything else is refused. */
 const UNIT_WORDS = '(?:Hz|F|H|V|Vpp|Vrms|Vpk|A|s|Ω|ohm|ohms|deg|dB)';
 const NUMBER_PATTERN = new RegExp(
-  `^\\s*([+-]?(?:\\d+\\.?\\d*|\\.\\d+)(?:[eE][+-]?\\d+)?)\\s*(meg|Meg|MEG|[fpnuµμmkKMGT])?\\s*(${UNIT_WORDS})?\\s*$`,
+  `^\\s*([+\\-−]?(?:\\d+\\.?\\d*|\\.\\d+)(?:[eE][+-]?\\d+)?)\\s*(meg|Meg|MEG|[fpnuµμmkKMGT])?\\s*(${UNIT_WORDS})?\\s*$`,
 );
 
 /**
@@ -46,7 +46,8 @@ export function parseEngineering(text: string | number, where = 'value'): number
       'Use a plain number or engineering notation such as 1k, 15n, 4.7u, 2meg, 1e-3.',
     );
   }
-  const mantissa = Number(match[1]);
+  // People copy numbers from Rolloff's own output, which writes the true minus.
+  const mantissa = Number(match[1].replace('−', '-'));
   const prefix = match[2];
   const exponent = prefix === undefined ? 0 : PREFIX_EXPONENTS[prefix];
   const value = mantissa * 10 ** exponent;
@@ -67,9 +68,29 @@ export const FORMAT_PREFIXES: Array<[number, string]> = [
   [-15, 'f'],
 ];
 
-/** Formats with an SI prefix, e.g. formatEngineering(15e-9, 'F') → "15 nF". */
+/**
+ * Numbers written for people use the true minus sign "−" (U+2212 MINUS SIGN,
+ * the sign ISO 80000-2 gives); CSV, JSON and command options keep ASCII
+ * "-" so every program can read them back.
+ */
+export function withTrueMinus(numberText: string): string {
+  return numberText.replace(/-/g, '−');
+}
+
+/** value.toFixed(decimals) for people: true minus, and no sign on a value that rounds to zero. */
+export function formatFixed(value: number, decimals: number): string {
+  const text = value.toFixed(decimals);
+  return /^-[0.]*$/.test(text) ? text.slice(1) : withTrueMinus(text);
+}
+
+/** value.toPrecision(digits) for people, with the true minus. */
+export function formatPrecision(value: number, digits: number): string {
+  return withTrueMinus(value.toPrecision(digits));
+}
+
+/** Formats with an SI prefix for people, e.g. formatEngineering(15e-9, 'F') → "15 nF", formatEngineering(-2e-3, 'V') → "−2 mV". */
 export function formatEngineering(value: number, unit = '', significantDigits = 4): string {
-  if (!Number.isFinite(value)) return `${value}${unit ? ' ' + unit : ''}`;
+  if (!Number.isFinite(value)) return `${withTrueMinus(String(value))}${unit ? ' ' + unit : ''}`;
   if (value === 0) return `0${unit ? ' ' + unit : ''}`;
   const exponent = Math.floor(Math.log10(Math.abs(value)) / 3) * 3;
   let clamped = Math.max(-15, Math.min(12, exponent));
@@ -80,6 +101,6 @@ export function formatEngineering(value: number, unit = '', significantDigits = 
     rounded = Number((rounded / 1000).toPrecision(significantDigits));
   }
   const entry = FORMAT_PREFIXES.find(([e]) => e === clamped)!;
-  const text = rounded.toString();
+  const text = withTrueMinus(rounded.toString());
   return `${text} ${entry[1]}${unit}`.trimEnd();
 }

@@ -1,19 +1,20 @@
 /** Display formatting for views; numbers go through app/units, the one formatter. */
-import { formatEngineering } from '../../app/units';
+import { formatEngineering, formatFixed } from '../../app/units';
 
-export { formatDuration } from '../../app/units';
+export { formatDuration, formatFixed } from '../../app/units';
 
 export function formatHz(frequencyHz: number | undefined): string {
   return frequencyHz === undefined || !Number.isFinite(frequencyHz) ? '—' : formatEngineering(frequencyHz, 'Hz', 3);
 }
 
 export function formatDb(gainDb: number | undefined, digits = 2): string {
-  return gainDb === undefined || !Number.isFinite(gainDb) ? '—' : `${gainDb.toFixed(digits)} dB`;
+  return gainDb === undefined || !Number.isFinite(gainDb) ? '—' : `${formatFixed(gainDb, digits)} dB`;
 }
 
 /** A signed difference for figure tables, e.g. "+1.20 dB" or "−3.1 %". */
 export function formatDelta(value: number | undefined, unit: string, digits = 2): string {
   if (value === undefined || !Number.isFinite(value)) return '—';
-  const sign = value > 0 ? '+' : value < 0 ? '−' : '±';
-  return `${sign}${Math.abs(value).toFixed(digits)}${unit ? ' ' + unit : ''}`;
+  const magnitude = formatFixed(Math.abs(value), digits);
+  const sign = /^[0.]*$/.test(magnitude) ? '±' : value > 0 ? '+' : '−';
+  return `${sign}${magnitude}${unit ? ' ' + unit : ''}`;
 }

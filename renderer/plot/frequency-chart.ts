@@ -6,7 +6,7 @@
  */
 import uPlot from 'uplot';
 import type { AlignedColumns } from '../model/aligned-series';
-import { formatEngineering } from '../../app/units';
+import { formatEngineering, formatFixed, withTrueMinus } from '../../app/units';
 import { placeMarkerLabels } from '../../app/plot-layout/marker-label-placement';
 
 /** The marker labels' font, as styles.css sets it on .marker-label (measured on the canvas to place them). */
@@ -86,7 +86,7 @@ export class FrequencyChart {
           stroke: '#33404d',
           grid: { stroke: '#dde3e8', width: 1 },
           ticks: { stroke: '#b9c3cc', width: 1 },
-          values: (_u, splits) => splits.map((v) => (v == null ? '' : `${Number(v.toPrecision(4))}`)),
+          values: (_u, splits) => splits.map((v) => (v == null ? '' : withTrueMinus(`${Number(v.toPrecision(4))}`))),
           size: 56,
         },
       ],
@@ -172,7 +172,7 @@ export class FrequencyChart {
 }
 
 function seriesOptions(style: SeriesStyle, unit: string): uPlot.Series {
-  const value = (_u: uPlot, v: number | null) => (v == null ? '—' : `${v.toFixed(2)} ${unit}`);
+  const value = (_u: uPlot, v: number | null) => (v == null ? '—' : `${formatFixed(v, 2)} ${unit}`);
   switch (style.kind) {
     case 'line':
       return { label: style.label, stroke: style.color, width: style.width ?? 2, spanGaps: true, points: { show: false }, value };

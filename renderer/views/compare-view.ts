@@ -6,7 +6,7 @@
 import { UserError } from '../../app/errors';
 import type { Comparison, RolloffClient, RunFigures, RunSummary } from '../../app/contract/contract';
 import { field, h, replaceChildren } from '../dom';
-import { formatDb, formatDelta, formatHz } from '../model/format';
+import { formatDb, formatDelta, formatFixed, formatHz } from '../model/format';
 import { compareColumns, runColor } from '../model/compare-data';
 import { guarded } from '../notices';
 import { FrequencyChart } from '../plot/frequency-chart';
@@ -122,7 +122,7 @@ export class CompareView implements View {
       ['Pass-band gain', 'passbandGainDb', (v) => formatDb(v), 'dB'],
       [FIGURE_NAMES.gainLimitHz, 'gainLimitHz', formatHz, 'Hz'],
       ['GBW estimate', 'gbwEstimateHz', formatHz, 'Hz'],
-      ['Roll-off (dB/decade)', 'rolloffDbPerDecade', (v) => (v === undefined ? '—' : v.toFixed(1)), 'dB/dec'],
+      ['Roll-off (dB/decade)', 'rolloffDbPerDecade', (v) => (v === undefined ? '—' : formatFixed(v, 1)), 'dB/dec'],
       [FIGURE_NAMES.maxDeviationDb, 'maxDeviationDb', (v) => formatDb(v), 'dB'],
     ];
     replaceChildren(

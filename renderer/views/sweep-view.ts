@@ -6,7 +6,7 @@
 import { SWEEP_DEFAULTS, SWEEP_RANGE_DEFAULTS } from '../../app/sweep/plan/defaults';
 import { UserError } from '../../app/errors';
 import type { BuildRecord, RolloffClient, RunDetail, RunFigures, RunProgress, RunStatus, RunSummary, SweepRequest, Verdict } from '../../app/contract/contract';
-import { formatEngineering, formatWithUncertainty, logGrid, parseEngineering } from '../../app/units';
+import { formatEngineering, formatFixed, formatWithUncertainty, logGrid, parseEngineering } from '../../app/units';
 import { parseDesign, solveDcTransfer, withActualValues } from '../../app/circuit';
 import { debounce, field, h, replaceChildren, select } from '../dom';
 import { formatDb, formatDuration, formatHz } from '../model/format';
@@ -303,21 +303,21 @@ export class SweepView implements View {
     if (figures.minus3dbHz.length > 0) rows.push([FIGURE_NAMES.minus3dbHz, figures.minus3dbHz.map((f) => formatHz(f)).join(', ')]);
     if (figures.gainLimitHz !== undefined) rows.push([`${FIGURE_NAMES.gainLimitHz} (measured)`, formatHz(figures.gainLimitHz)]);
     if (figures.gbwEstimateHz !== undefined) rows.push([`${FIGURE_NAMES.gbwEstimateHz} estimate`, figures.gbwUncertaintyHz !== undefined ? `${formatWithUncertainty(figures.gbwEstimateHz, figures.gbwUncertaintyHz, 'Hz')} (1σ)` : formatHz(figures.gbwEstimateHz)]);
-    if (figures.rolloffDbPerDecade !== undefined) rows.push(['Roll-off', `${figures.rolloffDbPerDecade.toFixed(1)} dB/decade`]);
+    if (figures.rolloffDbPerDecade !== undefined) rows.push(['Roll-off', `${formatFixed(figures.rolloffDbPerDecade, 1)} dB/decade`]);
     if (figures.maxDeviationDb !== undefined) rows.push([FIGURE_NAMES.maxDeviationDb, formatDb(figures.maxDeviationDb)]);
     if (figures.closedLoopPeakingDb !== undefined) {
       rows.push(['Closed-loop peaking', `${formatDb(figures.closedLoopPeakingDb)}${figures.theoryPeakingDb !== undefined ? ` (computed ${formatDb(figures.theoryPeakingDb)})` : ''}`]);
     }
     if (figures.phaseMarginEstimateDeg !== undefined) {
       const bound = figures.phaseMarginEstimateIsLowerBound ? '≥ ' : '';
-      const computed = figures.theoryPhaseMarginDeg !== undefined ? ` (computed ${figures.theoryPhaseMarginDeg.toFixed(1)}°)` : '';
-      rows.push(['Phase margin from peaking (estimate)', `${bound}${figures.phaseMarginEstimateDeg.toFixed(1)}°${computed}`]);
+      const computed = figures.theoryPhaseMarginDeg !== undefined ? ` (computed ${formatFixed(figures.theoryPhaseMarginDeg, 1)}°)` : '';
+      rows.push(['Phase margin from peaking (estimate)', `${bound}${formatFixed(figures.phaseMarginEstimateDeg, 1)}°${computed}`]);
     }
     for (const warning of figures.theoryWarnings ?? []) rows.push(['Warning (computed theory)', warning]);
     const fit = figures.logFit;
     if (fit) {
       const interval = (value: number, ci: [number, number], unit: string) => `${formatEngineering(value, unit)} (95 %: ${formatEngineering(ci[0], unit)} … ${formatEngineering(ci[1], unit)})`;
-      rows.push([FIGURE_NAMES.diodeIdealityN, `${fit.n.toFixed(3)} (95 %: ${fit.nCi[0].toFixed(3)} … ${fit.nCi[1].toFixed(3)})`]);
+      rows.push([FIGURE_NAMES.diodeIdealityN, `${formatFixed(fit.n, 3)} (95 %: ${formatFixed(fit.nCi[0], 3)} … ${formatFixed(fit.nCi[1], 3)})`]);
       rows.push(['Saturation current IS', interval(fit.isA, fit.isCi, 'A')]);
       rows.push(['Series resistance RS', interval(fit.rsOhm, fit.rsCi, 'Ω')]);
     }

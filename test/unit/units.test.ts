@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { parseEngineering, formatEngineering, dbFromRatio, ratioFromDb, unwrapPhaseDeg, logGrid } from '../../app/units';
+import { parseEngineering, formatEngineering, formatFixed, formatPrecision, dbFromRatio, ratioFromDb, unwrapPhaseDeg, logGrid } from '../../app/units';
 import { ValidationError } from '../../app/errors';
 
 // Expected values: SI prefixes per the SI Brochure (BIPM, 9th ed., Table 7);
@@ -21,6 +21,22 @@ describe('engineering notation', () => {
     expect(formatEngineering(15e-9, 'F')).toBe('15 nF');
     expect(formatEngineering(1590.5, 'Hz')).toBe('1.591 kHz');
     expect(formatEngineering(0, 'V')).toBe('0 V');
+  });
+
+  // The minus sign of ISO 80000-2 (mathematical signs) is Unicode U+2212 MINUS SIGN, not the hyphen-minus U+002D.
+  it('writes a negative number for people with the true minus sign, and reads it back', () => {
+    expect(formatEngineering(-2e-3, 'V')).toBe('−2 mV');
+    expect(formatEngineering(-Infinity, 'dB')).toBe('−Infinity dB');
+    expect(formatFixed(-20.04, 1)).toBe('−20.0');
+    expect(formatFixed(20.04, 1)).toBe('20.0');
+    expect(formatPrecision(-0.000123456, 3)).toBe('−0.000123');
+    expect(parseEngineering('−2 mV')).toBeCloseTo(-2e-3, 15);
+    expect(parseEngineering(formatEngineering(-15e-9, 'F'))).toBeCloseTo(-15e-9, 20);
+  });
+
+  it('gives no sign to a value that rounds to zero (no "−0.00")', () => {
+    expect(formatFixed(-0.001, 2)).toBe('0.00');
+    expect(formatFixed(-0, 1)).toBe('0.0');
   });
 });
 

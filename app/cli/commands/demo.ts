@@ -7,7 +7,7 @@ import { makeDesignFromTemplate } from '../../circuit';
 import { DATABASE_OPTION } from '../sweep/sweep-options';
 import { followRun } from '../sweep/follow-run';
 import { figureLines } from '../sweep/summary-text';
-import { formatEngineering } from '../../units';
+import { formatEngineering, formatFixed } from '../../units';
 import type { RunDetail, SweepRequest } from '../../contract/contract';
 
 /**
@@ -76,7 +76,7 @@ and two builds of it in the database, sweeps both and prints how they differ. Al
       out(`  gain-limit point ${hz(a.figures.gainLimitHz)} → ${hz(b.figures.gainLimitHz)}`);
       const worst = comparison.differences[1];
       const largest = worst.deltaDb.reduce((best, d, i) => (Number.isFinite(d) && Math.abs(d) > Math.abs(best.d) ? { d, f: worst.stimulus[i] } : best), { d: 0, f: NaN });
-      out(`  largest gain difference ${largest.d.toFixed(1)} dB at ${hz(largest.f)}`);
+      out(`  largest gain difference ${formatFixed(largest.d, 1)} dB at ${hz(largest.f)}`);
       out();
       const cornerRatio = (a.figures.minus3dbHz[0] ?? NaN) / (b.figures.minus3dbHz[0] ?? NaN);
       out(`Reading: unit 2's −3 dB point is ${cornerRatio.toFixed(1)}× lower than unit 1's, and it agrees with the theory of its`);

@@ -4,7 +4,7 @@ import { ValidationError } from '../../errors';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
 import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, openService, prepareSweep, reportReusedLimit } from '../sweep/sweep-options';
 import { followRun } from '../sweep/follow-run';
-import { formatEngineering } from '../../units';
+import { formatEngineering, formatFixed } from '../../units';
 
 export const scheduleCommand: CommandSpec = {
   name: 'schedule',
@@ -38,7 +38,7 @@ and ends the schedule.`,
       out('drift (first → last, spread):');
       for (const row of report.drift) {
         if (row.first === undefined) continue;
-        const show = (v: number) => (row.unit === 'Hz' ? formatEngineering(v, 'Hz') : `${v.toFixed(3)} ${row.unit}`);
+        const show = (v: number) => (row.unit === 'Hz' ? formatEngineering(v, 'Hz') : `${formatFixed(v, 3)} ${row.unit}`);
         out(`  ${row.figure.padEnd(20)} ${show(row.first)} → ${show(row.last!)}   change ${show(row.change!)}, spread ${show(row.spread!)}`);
       }
       return report.runs.every((r) => r.status === 'done') ? 0 : 1;

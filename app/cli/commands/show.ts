@@ -1,6 +1,6 @@
 import type { CommandSpec } from '../args';
 import { optionFlag, optionString, requirePositional } from '../args';
-import { formatEngineering } from '../../units';
+import { formatEngineering, formatFixed, formatPrecision } from '../../units';
 import { ValidationError } from '../../errors';
 import { flagWords } from '../../contract/vocabulary';
 import { openServiceAt } from '../../service/open-service';
@@ -33,8 +33,8 @@ export const showCommand: CommandSpec = {
         process.stdout.write(`\n${'step'.padEnd(5)} ${(detail.kind === 'ac' ? 'frequency' : 'input').padEnd(12)} ${'amplitude'.padEnd(11)} ${(detail.kind === 'ac' ? 'gain dB' : 'output V').padEnd(16)} ${'phase °'.padEnd(16)} flags\n`);
         for (let i = 0; i < p.step.length; i++) {
           const flags = flagWords(p.flags[i]);
-          const main = detail.kind === 'ac' ? `${p.gainDb[i].toFixed(3)} ±${p.gainUncertaintyDb[i].toPrecision(2)}` : `${p.outputV[i].toPrecision(6)}`;
-          const phase = Number.isFinite(p.phaseDeg[i]) ? `${p.phaseDeg[i].toFixed(2)} ±${p.phaseUncertaintyDeg[i].toPrecision(2)}` : '—';
+          const main = detail.kind === 'ac' ? `${formatFixed(p.gainDb[i], 3)} ±${formatPrecision(p.gainUncertaintyDb[i], 2)}` : formatPrecision(p.outputV[i], 6);
+          const phase = Number.isFinite(p.phaseDeg[i]) ? `${formatFixed(p.phaseDeg[i], 2)} ±${formatPrecision(p.phaseUncertaintyDeg[i], 2)}` : '—';
           process.stdout.write(`${String(p.step[i]).padEnd(5)} ${formatEngineering(p.stimulus[i], detail.kind === 'ac' ? 'Hz' : 'V').padEnd(12)} ${formatEngineering(p.amplitudeVpp[i], 'Vpp').padEnd(11)} ${main.padEnd(16)} ${phase.padEnd(16)} ${flags}\n`);
         }
       }

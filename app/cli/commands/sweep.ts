@@ -5,7 +5,7 @@ import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, namedForTheCommandLine, ope
 import { followRun } from '../sweep/follow-run';
 import { formatDuration } from '../../units';
 import { runDetailText } from '../sweep/summary-text';
-import { formatEngineering } from '../../units';
+import { formatEngineering, formatFixed } from '../../units';
 
 export const sweepCommand: CommandSpec = {
   name: 'sweep',
@@ -55,7 +55,7 @@ the same bench reuse it, saying so. Every point is stored the moment it is measu
       if (status === 'paused') process.stderr.write(`run ${run.id} paused; continue with: rolloff resume ${run.id} --db ${service.databaseLocation}\n`);
       if (detail.kind === 'ac' && detail.figures.gainLimitHz !== undefined && detail.theoryGainLimitHz !== undefined) {
         const ratio = detail.figures.gainLimitHz / detail.theoryGainLimitHz - 1;
-        process.stderr.write(`gain-limit point ${formatEngineering(detail.figures.gainLimitHz, 'Hz')} measured, ${(ratio * 100).toFixed(1)} % from theory\n`);
+        process.stderr.write(`gain-limit point ${formatEngineering(detail.figures.gainLimitHz, 'Hz')} measured, ${formatFixed(ratio * 100, 1)} % from theory\n`);
       }
       return status === 'done' || status === 'paused' ? 0 : 1;
     } finally {

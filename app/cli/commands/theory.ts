@@ -6,7 +6,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { UserError, ValidationError } from '../../errors';
-import { formatEngineering, logGrid, parseEngineering } from '../../units';
+import { formatEngineering, formatFixed, logGrid, parseEngineering } from '../../units';
 import {
   analyzeStability,
   bandNoise,
@@ -157,9 +157,9 @@ function stabilityOf(design: Design, parsed: ParsedArgs, ideal: boolean): Stabil
 
 function stabilityLines(stability: Stability): string[] {
   const lines = stability.opamps.map((s) => {
-    const pm = s.phaseMarginDeg === undefined ? 'no loop-gain crossover' : `phase margin ${s.phaseMarginDeg.toFixed(1)}° at ${formatEngineering(s.crossoverHz as number, 'Hz')}`;
-    const gm = Number.isFinite(s.gainMarginDb) ? `gain margin ${s.gainMarginDb.toFixed(1)} dB at ${formatEngineering(s.phaseCrossoverHz as number, 'Hz')}` : 'gain margin infinite (phase never reaches −180°)';
-    const peaking = s.peakingHz === undefined ? 'no closed-loop peaking' : `closed-loop peaking ${s.peakingDb.toFixed(2)} dB at ${formatEngineering(s.peakingHz, 'Hz')}`;
+    const pm = s.phaseMarginDeg === undefined ? 'no loop-gain crossover' : `phase margin ${formatFixed(s.phaseMarginDeg, 1)}° at ${formatEngineering(s.crossoverHz as number, 'Hz')}`;
+    const gm = Number.isFinite(s.gainMarginDb) ? `gain margin ${formatFixed(s.gainMarginDb, 1)} dB at ${formatEngineering(s.phaseCrossoverHz as number, 'Hz')}` : 'gain margin infinite (phase never reaches −180°)';
+    const peaking = s.peakingHz === undefined ? 'no closed-loop peaking' : `closed-loop peaking ${formatFixed(s.peakingDb, 2)} dB at ${formatEngineering(s.peakingHz, 'Hz')}`;
     return `Stability of ${s.id}: ${pm}, ${gm}, ${peaking}`;
   });
   return [...lines, ...stability.warnings.map((w) => `Warning: ${w.message}`)];
@@ -234,7 +234,7 @@ function noiseTable(design: Design, n: NoiseResponse): string {
   for (let i = 0; i < n.frequencyHz.length; i++) {
     rows.push([formatEngineering(n.frequencyHz[i], 'Hz'), density(n.outputVPerRtHz[i]), density(n.inputReferredVPerRtHz[i]), ...n.contributionsVPerRtHz.map((c) => density(c[i]))]);
   }
-  return `${design.name} — output noise density at ${(n.temperatureK - 273.15).toFixed(2)} °C\n\n${alignColumns(rows)}`;
+  return `${design.name} — output noise density at ${formatFixed(n.temperatureK - 273.15, 2)} °C\n\n${alignColumns(rows)}`;
 }
 
 function noiseSummaryLines(design: Design, n: NoiseResponse, band: BandNoise): string[] {
@@ -282,8 +282,8 @@ function acTable(design: Design, r: AcResponse, band: MonteCarloBand | undefined
   if (band) header.push('band low dB', 'band high dB');
   const rows = [header];
   for (let i = 0; i < r.frequencyHz.length; i++) {
-    const row = [formatEngineering(r.frequencyHz[i], 'Hz'), r.gainDb[i].toFixed(3), r.phaseDeg[i].toFixed(2), r.idealGainDb[i].toFixed(3), r.idealPhaseDeg[i].toFixed(2)];
-    if (band) row.push(band.gainLowDb[i].toFixed(3), band.gainHighDb[i].toFixed(3));
+    const row = [formatEngineering(r.frequencyHz[i], 'Hz'), formatFixed(r.gainDb[i], 3), formatFixed(r.phaseDeg[i], 2), formatFixed(r.idealGainDb[i], 3), formatFixed(r.idealPhaseDeg[i], 2)];
+    if (band) row.push(formatFixed(band.gainLowDb[i], 3), formatFixed(band.gainHighDb[i], 3));
     rows.push(row);
   }
   return `${design.name}\n\n${alignColumns(rows)}`;
@@ -293,11 +293,11 @@ function summaryLines(design: Design, s: AcSummary, tauS: number): string[] {
   const hz = (value: number | undefined) => (value === undefined ? 'not in reach' : formatEngineering(value, 'Hz'));
   const lines = [
     `Design: ${design.name}`,
-    `Pass-band gain:     ${s.passbandGainDb.toFixed(3)} dB`,
+    `Pass-band gain:     ${formatFixed(s.passbandGainDb, 3)} dB`,
     `${(FIGURE_NAMES.minus3dbHz + ':').padEnd(20)}${s.minus3dbHz.length ? s.minus3dbHz.map((f) => formatEngineering(f, 'Hz')).join(', ') : 'none in the sweep'}`,
     `${(FIGURE_NAMES.gainLimitHz + ':').padEnd(20)}${hz(s.gainLimitHz)} (loop gain 1: above it the op-amp, not the design, sets the response)`,
-    `Peak gain:          ${s.peakGainDb.toFixed(3)} dB at ${formatEngineering(s.peakFrequencyHz, 'Hz')}`,
-    `Roll-off, top decade: ${s.rolloffDbPerDecade === undefined ? 'n/a' : `${s.rolloffDbPerDecade.toFixed(1)} dB/decade`}`,
+    `Peak gain:          ${formatFixed(s.peakGainDb, 3)} dB at ${formatEngineering(s.peakFrequencyHz, 'Hz')}`,
+    `Roll-off, top decade: ${s.rolloffDbPerDecade === undefined ? 'n/a' : `${formatFixed(s.rolloffDbPerDecade, 1)} dB/decade`}`,
     `Slowest time constant: ${formatEngineering(tauS, 's')}`,
   ];
   const vpk = maxUndistortedOutputVpk(design, 1e3);
@@ -344,7 +344,7 @@ function dcTransfer(design: Design, parsed: ParsedArgs, format: Format): string 
   }
   const rows = [['input', 'output', '']];
   for (let i = 0; i < inputs.length; i++) {
-    rows.push([formatEngineering(transfer.inputV[i], 'V'), `${transfer.outputV[i].toFixed(6)} V`, transfer.clipped[i] ? 'at the rail' : '']);
+    rows.push([formatEngineering(transfer.inputV[i], 'V'), `${formatFixed(transfer.outputV[i], 6)} V`, transfer.clipped[i] ? 'at the rail' : '']);
   }
   return `${design.name} — DC transfer\n\n${alignColumns(rows)}`;
 }

@@ -1,22 +1,22 @@
 /** Plain-text summaries of runs for the terminal. */
 import type { RunDetail, RunFigures, RunSummary } from '../../contract/contract';
 import { shownStatus } from '../../contract/run-owner-text';
-import { formatEngineering, formatWithUncertainty } from '../../units';
+import { formatEngineering, formatFixed, formatPrecision, formatWithUncertainty } from '../../units';
 import { FIGURE_NAMES, pointCountText } from '../../contract/vocabulary';
 import { offlinePeriodsText } from '../../record/pure';
 
 export function figureLines(figures: RunFigures, theory?: { gainLimitHz?: number; minus3dbHz: number[] }): string[] {
   const lines: string[] = [];
   const hz = (v: number | undefined) => (v === undefined ? '—' : formatEngineering(v, 'Hz'));
-  if (figures.passbandGainDb !== undefined) lines.push(`pass-band gain      ${figures.passbandGainDb.toFixed(3)} dB`);
+  if (figures.passbandGainDb !== undefined) lines.push(`pass-band gain      ${formatFixed(figures.passbandGainDb, 3)} dB`);
   if (figures.logFit) return logFitLines(figures.logFit);
   lines.push(`${FIGURE_NAMES.minus3dbHz.padEnd(20)}${figures.minus3dbHz.length ? figures.minus3dbHz.map(hz).join(', ') : '—'}${theory ? `   (theory ${theory.minus3dbHz.length ? theory.minus3dbHz.map(hz).join(', ') : '—'})` : ''}`);
-  if (figures.rolloffDbPerDecade !== undefined) lines.push(`roll-off            ${figures.rolloffDbPerDecade.toFixed(1)} dB/decade`);
+  if (figures.rolloffDbPerDecade !== undefined) lines.push(`roll-off            ${formatFixed(figures.rolloffDbPerDecade, 1)} dB/decade`);
   lines.push(`gain-limit point    ${hz(figures.gainLimitHz)}${theory ? `   (theory ${hz(theory.gainLimitHz)})` : ''}`);
   if (figures.gbwEstimateHz !== undefined) {
     lines.push(`${`${FIGURE_NAMES.gbwEstimateHz} estimate`.padEnd(20)}${figures.gbwUncertaintyHz !== undefined ? `${formatWithUncertainty(figures.gbwEstimateHz, figures.gbwUncertaintyHz, 'Hz')} (1σ)` : hz(figures.gbwEstimateHz)}`);
   }
-  if (figures.maxDeviationDb !== undefined) lines.push(`largest deviation   ${figures.maxDeviationDb.toFixed(3)} dB from theory (pass band)`);
+  if (figures.maxDeviationDb !== undefined) lines.push(`largest deviation   ${formatFixed(figures.maxDeviationDb, 3)} dB from theory (pass band)`);
   lines.push(...stabilityLines(figures));
   return lines;
 }
@@ -24,8 +24,8 @@ export function figureLines(figures: RunFigures, theory?: { gainLimitHz?: number
 /** Measured closed-loop peaking and its phase-margin estimate, beside the computed values. */
 export function stabilityLines(figures: RunFigures): string[] {
   const lines: string[] = [];
-  const deg = (v: number | undefined) => (v === undefined ? '—' : `${v.toFixed(1)}°`);
-  const db = (v: number | undefined) => (v === undefined ? '—' : `${v.toFixed(2)} dB`);
+  const deg = (v: number | undefined) => (v === undefined ? '—' : `${formatFixed(v, 1)}°`);
+  const db = (v: number | undefined) => (v === undefined ? '—' : `${formatFixed(v, 2)} dB`);
   if (figures.closedLoopPeakingDb !== undefined) lines.push(`closed-loop peaking ${db(figures.closedLoopPeakingDb)}   (theory ${db(figures.theoryPeakingDb)})`);
   if (figures.phaseMarginEstimateDeg !== undefined) {
     const estimate = `${figures.phaseMarginEstimateIsLowerBound ? '≥ ' : ''}${deg(figures.phaseMarginEstimateDeg)}`;
@@ -37,7 +37,7 @@ export function stabilityLines(figures: RunFigures): string[] {
 
 function logFitLines(f: NonNullable<RunFigures['logFit']>): string[] {
   return [
-    `log fit n           ${f.n.toPrecision(4)}  [${f.nCi.map((v) => v.toPrecision(4)).join(', ')}] (95 %)`,
+    `log fit n           ${formatPrecision(f.n, 4)}  [${f.nCi.map((v) => formatPrecision(v, 4)).join(', ')}] (95 %)`,
     `log fit IS          ${formatEngineering(f.isA, 'A')}  [${f.isCi.map((v) => formatEngineering(v, 'A')).join(', ')}]`,
     `log fit RS          ${formatEngineering(f.rsOhm, 'Ω')}  [${f.rsCi.map((v) => formatEngineering(v, 'Ω')).join(', ')}]`,
   ];

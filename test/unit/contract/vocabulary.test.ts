@@ -11,7 +11,9 @@ import { formatCommandHelp } from '../../../app/cli/args';
 import { FIGURE_NAMES, FLAG_WORDS, RETIRED_FIGURE_NAMES, RETIRED_SETTING_NAMES, pointCountText } from '../../../app/contract/vocabulary';
 import { PointFlag } from '../../../app/contract/contract';
 import { buildRunRecord, renderRecord } from '../../../app/record';
-import { acRunDetail, fixtureBuild, FIXTURE_DESIGN } from '../record/fixtures';
+import { acRunDetail, dcRunDetail, fixtureBuild, FIXTURE_DESIGN, LOG_STAGE_DESIGN } from '../record/fixtures';
+import { runDetailText } from '../../../app/cli/sweep/summary-text';
+
 
 const ROOT = new URL('../../../', import.meta.url).pathname;
 
@@ -65,5 +67,45 @@ describe('a run\'s point count in words (CLI, Sweep view, records)', () => {
   it('says how far a run that stopped early got', () => {
     expect(pointCountText(41, planned(20))).toBe('20 of 41 planned');
     expect(pointCountText(41, [])).toBe('0 of 41 planned');
+  });
+});
+
+/**
+ * A hyphen-minus written as a sign: "-" before a digit that does not follow a letter, digit or dot
+ * (so dates such as 2026-12-01, SHA-256 and serial numbers are not taken for numbers).
+ */
+const ASCII_MINUS = /(?<![\p{L}\p{N}.])-(?=\.?\d)/gu;
+
+/** The text a person reads in an HTML record: no tags, and without the design file's JSON. */
+function htmlText(html: string): string {
+  return html.replace(/<pre[\s\S]*?<\/pre>/g, ' ').replace(/<style[\s\S]*?<\/style>/g, ' ').replace(/<[^>]+>/g, ' ');
+}
+
+function asciiMinusesIn(text: string): string[] {
+  return [...text.matchAll(ASCII_MINUS)].map((m) => text.slice(Math.max(0, m.index - 20), m.index + 12));
+}
+
+describe('numbers for people write the true minus "−" (U+2212), machine formats ASCII "-"', () => {
+  it('the HTML records of an AC run (negative phase and roll-off) and a DC run (negative output)', async () => {
+    const { detail, build, dcFit } = dcRunDetail();
+    const records = [
+      buildRunRecord(acRunDetail(), { design: FIXTURE_DESIGN, build: fixtureBuild(), designId: 1, generatedAt: '2026-12-01T12:00:00.000Z' }),
+      buildRunRecord(detail, { design: LOG_STAGE_DESIGN, build, dcFit, generatedAt: '2026-12-01T12:00:00.000Z' }),
+    ];
+    for (const record of records) {
+      const text = htmlText(new TextDecoder().decode((await renderRecord(record, 'html')).bytes));
+      expect(text).toContain('−');
+      expect(asciiMinusesIn(text)).toEqual([]);
+      // The same record's CSV keeps ASCII for programs.
+      const csv = new TextDecoder().decode((await renderRecord(record, 'csv')).bytes);
+      expect(csv).toMatch(/,-\d/);
+      expect(csv).not.toContain('−');
+    }
+  });
+
+  it('the terminal summary of a run', () => {
+    const text = runDetailText(acRunDetail());
+    expect(text).toMatch(/roll-off\s+−\d/);
+    expect(asciiMinusesIn(text)).toEqual([]);
   });
 });
