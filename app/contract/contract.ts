@@ -246,8 +246,11 @@ export const SweepRequestSchema = fields(
     /** AC: frequency limits in Hz; DC: input level limits in volts. */
     from: finiteNumber,
     to: finiteNumber,
+    /** Log spacing: points per decade. */
     pointsPerDecade: wholeNumber(1, LIMITS.pointsPerDecade),
     spacing: oneOf(SPACINGS),
+    /** Linear spacing: how many points from `from` to `to`. Runs stored without it had as many as the log grid would. */
+    points: optional(wholeNumber(2, LIMITS.count)),
     amplitude: AmplitudeSchema,
     measurement: oneOf(['scope', 'meter'] as const),
     minCycles: wholeNumber(1, LIMITS.count),
@@ -293,6 +296,11 @@ export const SweepRequestSchema = fields(
     fieldRule<{ kind: RunKind; from: number; to: number; spacing: string }>(({ kind, from, to, spacing }) =>
       kind === 'dc' && spacing === 'log' && (from <= 0 || to <= 0)
         ? { key: 'from', message: withHint('log-spaced input levels must be above 0 V', 'Use linear spacing for ranges that cross zero.') }
+        : undefined,
+    ),
+    fieldRule<{ spacing: string; points?: number }>(({ spacing, points }) =>
+      spacing === 'log' && points !== undefined
+        ? { key: 'points', message: withHint('applies to linear spacing only', 'A log sweep takes pointsPerDecade.') }
         : undefined,
     ),
   ],

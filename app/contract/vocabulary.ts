@@ -87,6 +87,33 @@ export const SETTINGS = {
     /** Said wherever the limit is set: how a DC level is counted against it. */
     explanation: 'the generator is never driven above this peak-to-peak amplitude; a DC level V counts as 2·|V| against it',
   },
+  /** Automatic amplitude (the default): chosen per point from theory, as large as keeps the stage linear. */
+  automaticAmplitude: {
+    label: 'Automatic amplitude',
+    explanation: 'chosen per point from theory: as large as keeps the output inside the rails and the slew limit',
+  },
+  fixedAmplitude: {
+    label: 'Fixed amplitude',
+    unit: 'Vpp',
+    cliOption: 'amplitude',
+    explanation: 'the same stimulus at every point, instead of the automatic amplitude',
+  },
+  targetOutput: {
+    label: 'Target output',
+    unit: 'Vpp',
+    cliOption: 'target-output',
+    explanation: 'automatic amplitude aiming for this output, never above what stays linear (empty: as large as stays linear)',
+  },
+  linearPoints: {
+    label: 'Points (linear)',
+    cliOption: 'points',
+    explanation: 'linear spacing: how many points from start to end',
+  },
+  pointsPerDecade: {
+    label: 'Points per decade (log)',
+    cliOption: 'per-decade',
+    explanation: 'log spacing: points per decade',
+  },
 } as const;
 
 /** How the output was read: the scope gives its peak, the meter its RMS, a DC run its DC level. */

@@ -153,8 +153,8 @@ function planBlocks(record: RunRecord): Block[] {
   const plan = record.run.plan;
   const unitFormat = record.run.kind === 'ac' ? formatHz : formatVolts;
   const amplitude = plan.amplitude.mode === 'fixed'
-    ? `fixed ${formatEngineering(plan.amplitude.vpp, 'Vpp')}`
-    : `chosen per point from theory${plan.amplitude.targetOutputVpp ? `, target output ${formatEngineering(plan.amplitude.targetOutputVpp, 'Vpp')}` : ''}`;
+    ? `${SETTINGS.fixedAmplitude.label} ${formatEngineering(plan.amplitude.vpp, 'Vpp')}`
+    : `${SETTINGS.automaticAmplitude.label}, ${SETTINGS.automaticAmplitude.explanation}${plan.amplitude.targetOutputVpp ? `; ${SETTINGS.targetOutput.label.toLowerCase()} ${formatEngineering(plan.amplitude.targetOutputVpp, 'Vpp')}` : ''}`;
   const limits = plan.limits;
   const limitText = limits
     ? [
@@ -168,7 +168,7 @@ function planBlocks(record: RunRecord): Block[] {
     {
       kind: 'keyValues',
       rows: [
-        ['Sweep', `${unitFormat(plan.from)} to ${unitFormat(plan.to)}, ${plan.spacing}, ${plan.pointsPerDecade} points per decade`],
+        ['Sweep', `${unitFormat(plan.from)} to ${unitFormat(plan.to)}, ${plan.spacing === 'linear' ? `linear, ${plan.points ?? 'as many as the log grid'} points` : `log, ${plan.pointsPerDecade} points per decade`}`],
         ['Stimulus amplitude', amplitude],
         [`${SETTINGS.maxStimulus.label} in force`, plan.maxStimulusVpp !== undefined ? formatEngineering(plan.maxStimulusVpp, 'Vpp') : 'not recorded'],
         ['Output read by', `${plan.measurement}${plan.through ? ' (through calibration: the stage was bypassed)' : ''}`],

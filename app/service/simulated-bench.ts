@@ -7,7 +7,7 @@
 import type { Design } from '../circuit';
 import { scaledClock, type BenchClock } from '../bench/clock';
 import type { InstrumentRole } from '../contract/contract';
-import { startSimulatedBench, type SimFault } from '../sim';
+import { SIMULATED_BENCH_DEFAULTS, startSimulatedBench, type SimFault } from '../sim';
 
 export interface SimulatedBenchSettings {
   /** Bench seconds per wall-clock second (1 = real time). */
@@ -33,7 +33,14 @@ export interface SimulatedBenchHandle {
   stop(): Promise<void>;
 }
 
-const DEFAULTS: SimulatedBenchSettings = { timeScale: 1, noiseVrms: 1e-4, circuitNoise: false, latencyS: 0, seed: 1, link: 'tcp' };
+const DEFAULTS: SimulatedBenchSettings = {
+  timeScale: SIMULATED_BENCH_DEFAULTS.timeScale,
+  noiseVrms: SIMULATED_BENCH_DEFAULTS.measurementNoiseVrms,
+  circuitNoise: false,
+  latencyS: 0,
+  seed: 1,
+  link: 'tcp',
+};
 
 export async function startSimulatedBenchFor(design: Design, settings: Partial<SimulatedBenchSettings>): Promise<SimulatedBenchHandle> {
   const chosen = { ...DEFAULTS, ...settings };

@@ -15,7 +15,7 @@ import { guarded, showError } from '../notices';
 import { BodePlot } from '../plot/bode-plot';
 import type { View } from '../shell';
 import type { AppState } from '../state';
-import { FIGURE_NAMES, pointCountText } from '../../app/contract/vocabulary';
+import { FIGURE_NAMES, pointCountText, SETTINGS } from '../../app/contract/vocabulary';
 import { runStateText, shownStatus } from '../../app/contract/run-owner-text';
 
 const EVENTS_KEPT = 300;
@@ -29,15 +29,24 @@ export class SweepView implements View {
     from: h('input', { type: 'text', name: 'from', value: String(SWEEP_RANGE_DEFAULTS.ac.from), 'data-testid': 'sweep-from' }),
     to: h('input', { type: 'text', name: 'to', value: String(SWEEP_RANGE_DEFAULTS.ac.to), 'data-testid': 'sweep-to' }),
     pointsPerDecade: h('input', { type: 'number', name: 'points-per-decade', value: String(SWEEP_RANGE_DEFAULTS.ac.pointsPerDecade), min: '1', max: '1000', 'data-testid': 'sweep-ppd' }),
+    linearPoints: h('input', { type: 'number', name: 'points', value: String(SWEEP_RANGE_DEFAULTS.ac.linearPoints), min: '2', 'data-testid': 'sweep-points' }),
     spacing: select([{ value: 'log', label: 'log' }, { value: 'linear', label: 'linear' }], 'log', { name: 'spacing' }),
-    amplitudeMode: select([{ value: 'auto', label: 'auto (stay linear)' }, { value: 'fixed', label: 'fixed' }], 'auto', { name: 'amplitude-mode' }),
-    amplitudeVpp: h('input', { type: 'text', name: 'amplitude', value: '1', 'data-testid': 'sweep-amplitude' }),
+    amplitudeMode: select([{ value: 'auto', label: SETTINGS.automaticAmplitude.label }, { value: 'fixed', label: SETTINGS.fixedAmplitude.label }], 'auto', { name: 'amplitude-mode' }),
+    fixedAmplitudeVpp: h('input', { type: 'text', name: 'amplitude', value: '', placeholder: 'e.g. 1', 'data-testid': 'sweep-amplitude' }),
+    targetOutputVpp: h('input', { type: 'text', name: 'target-output', value: '', placeholder: 'as large as stays linear', 'data-testid': 'sweep-target-output' }),
     measurement: select([{ value: 'scope', label: 'scope (gain and phase)' }, { value: 'meter', label: 'meter (gain only)' }], 'scope', { name: 'measurement' }),
     minCycles: h('input', { type: 'number', name: 'min-cycles', value: String(SWEEP_DEFAULTS.minCycles), min: '1', 'data-testid': 'sweep-cycles' }),
     averages: h('input', { type: 'number', name: 'averages', value: String(SWEEP_DEFAULTS.averages), min: '1' }),
     refine: h('input', { type: 'checkbox', name: 'refine', checked: SWEEP_DEFAULTS.refine }),
     operator: h('input', { type: 'text', name: 'operator', autocomplete: 'name' }),
     notes: h('textarea', { name: 'notes', rows: '2' }),
+  };
+  /** Fields shown for one spacing or amplitude mode only; the labels are the table's (app/contract/vocabulary.ts), as the CLI's help. */
+  private readonly shownWhen = {
+    log: field(SETTINGS.pointsPerDecade.label, this.inputs.pointsPerDecade),
+    linear: field(SETTINGS.linearPoints.label, this.inputs.linearPoints, `From start to end, evenly spaced (default ${SWEEP_RANGE_DEFAULTS.ac.linearPoints}).`),
+    fixed: field(`${SETTINGS.fixedAmplitude.label} (${SETTINGS.fixedAmplitude.unit})`, this.inputs.fixedAmplitudeVpp, 'Never above the bench maximum.'),
+    auto: field(`${SETTINGS.targetOutput.label} (${SETTINGS.targetOutput.unit}, optional)`, this.inputs.targetOutputVpp, 'Empty: as large as stays linear. Never above the bench maximum.'),
   };
   private readonly estimate = h('p', { className: 'estimate', 'data-testid': 'sweep-estimate', 'aria-live': 'polite' });
   private readonly buttons = {
@@ -71,10 +80,12 @@ export class SweepView implements View {
       field('Kind', this.inputs.kind),
       field('From (Hz or V)', this.inputs.from, 'Engineering notation: 10, 1k, 2meg.'),
       field('To (Hz or V)', this.inputs.to),
-      field('Points per decade', this.inputs.pointsPerDecade),
       field('Spacing', this.inputs.spacing),
-      field('Stimulus amplitude', this.inputs.amplitudeMode),
-      field('Amplitude (Vpp; fixed) or target output (Vpp; auto)', this.inputs.amplitudeVpp, 'Never above the bench maximum.'),
+      this.shownWhen.log,
+      this.shownWhen.linear,
+      field('Stimulus amplitude', this.inputs.amplitudeMode, SETTINGS.automaticAmplitude.explanation),
+      this.shownWhen.fixed,
+      this.shownWhen.auto,
       field('Measure with', this.inputs.measurement),
       field('Minimum cycles', this.inputs.minCycles),
       field('Averages', this.inputs.averages),
@@ -83,7 +94,11 @@ export class SweepView implements View {
       field('Notes', this.inputs.notes),
     );
     form.addEventListener('input', () => this.replan());
-    form.addEventListener('change', () => this.replan());
+    form.addEventListener('change', () => {
+      this.showChosenFields();
+      this.replan();
+    });
+    this.showChosenFields();
     form.addEventListener('submit', (event) => event.preventDefault());
     // Switching AC ⇄ DC swaps the range to the other kind's defaults unless the user typed one of their own.
     let shownKind: SweepRequest['kind'] = 'ac';
@@ -158,16 +173,16 @@ export class SweepView implements View {
   private request(): SweepRequest {
     const buildId = Number(this.buildSelect.value);
     if (!Number.isInteger(buildId) || buildId < 1) throw new UserError('No build picked for the sweep.', 'Create a build on the Design view (Alt+2), then pick it here.');
-    const amount = parseEngineering(this.inputs.amplitudeVpp.value, 'Amplitude');
-    const auto = this.inputs.amplitudeMode.value === 'auto';
+    const linear = this.inputs.spacing.value === 'linear';
     return {
       buildId,
       kind: this.inputs.kind.value as SweepRequest['kind'],
       from: parseEngineering(this.inputs.from.value, 'From'),
       to: parseEngineering(this.inputs.to.value, 'To'),
-      pointsPerDecade: Number(this.inputs.pointsPerDecade.value),
-      spacing: this.inputs.spacing.value as SweepRequest['spacing'],
-      amplitude: auto ? { mode: 'auto', targetOutputVpp: amount } : { mode: 'fixed', vpp: amount },
+      pointsPerDecade: linear ? SWEEP_RANGE_DEFAULTS.ac.pointsPerDecade : Number(this.inputs.pointsPerDecade.value),
+      spacing: linear ? 'linear' : 'log',
+      ...(linear ? { points: Number(this.inputs.linearPoints.value) } : {}),
+      amplitude: this.amplitude(),
       measurement: this.inputs.measurement.value as SweepRequest['measurement'],
       minCycles: Number(this.inputs.minCycles.value),
       averages: Number(this.inputs.averages.value),
@@ -175,6 +190,27 @@ export class SweepView implements View {
       operator: this.inputs.operator.value,
       notes: this.inputs.notes.value,
     };
+  }
+
+  /** The two amplitude settings of the CLI (--amplitude, --target-output), one field each. */
+  private amplitude(): SweepRequest['amplitude'] {
+    const { fixedAmplitude, targetOutput } = SETTINGS;
+    if (this.inputs.amplitudeMode.value === 'fixed') {
+      if (this.inputs.fixedAmplitudeVpp.value.trim() === '') throw new UserError(`${fixedAmplitude.label} is missing.`, `Give the stimulus in ${fixedAmplitude.unit}, or choose ${SETTINGS.automaticAmplitude.label.toLowerCase()}.`);
+      return { mode: 'fixed', vpp: parseEngineering(this.inputs.fixedAmplitudeVpp.value, `${fixedAmplitude.label} (${fixedAmplitude.unit})`) };
+    }
+    const target = this.inputs.targetOutputVpp.value.trim();
+    return target === '' ? { mode: 'auto' } : { mode: 'auto', targetOutputVpp: parseEngineering(target, `${targetOutput.label} (${targetOutput.unit})`) };
+  }
+
+  /** Only the fields that apply to the chosen spacing and amplitude mode are shown. */
+  private showChosenFields(): void {
+    const linear = this.inputs.spacing.value === 'linear';
+    const fixed = this.inputs.amplitudeMode.value === 'fixed';
+    this.shownWhen.log.hidden = linear;
+    this.shownWhen.linear.hidden = !linear;
+    this.shownWhen.fixed.hidden = !fixed;
+    this.shownWhen.auto.hidden = fixed;
   }
 
   private async updateEstimate(): Promise<void> {

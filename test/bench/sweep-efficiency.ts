@@ -71,11 +71,11 @@ async function main(): Promise<void> {
   const folder = mkdtempSync(join(tmpdir(), 'rolloff-bench-'));
   const designFile = makeDesignFromTemplate('inverting-lowpass', {});
   writeFileSync(join(folder, 'design.json'), JSON.stringify(designFile));
-  const simArgs = ['--design', join(folder, 'design.json'), '--latency', String(latencyMs / 1000), '--noise', '1e-4'];
+  const simArgs = ['--design', join(folder, 'design.json'), '--latency', String(latencyMs / 1000), '--measurement-noise', '1e-4'];
   // VXI-11 clients find the instruments through the portmapper: started here when none answers, as the tests do.
   if (links.includes('vxi11')) await ensurePortmapper();
   // One process serves the raw socket and VXI-11, another the PTYs (a sim serves TCP or PTYs, not both).
-  const lan = await startSimProcess([...simArgs, '--tcp', '0', ...(links.includes('vxi11') ? ['--vxi11'] : [])]);
+  const lan = await startSimProcess([...simArgs, '--port', '0', ...(links.includes('vxi11') ? ['--vxi11'] : [])]);
   const serial = links.includes('pty') ? await startSimProcess([...simArgs, '--pty', mkdtempSync(join(folder, 'pty-'))]).catch((error: Error) => {
     lan.stop();
     throw error;

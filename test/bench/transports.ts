@@ -61,7 +61,7 @@ async function main(): Promise<void> {
   writeFileSync(join(folder, 'design.json'), JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
   const ptyFolder = mkdtempSync(join(folder, 'pty-'));
   await ensurePortmapper(); // VXI-11 clients find the instruments through it; started as in the tests when none answers
-  const lan = await startSimProcess(['--design', join(folder, 'design.json'), '--tcp', '0', '--vxi11']);
+  const lan = await startSimProcess(['--design', join(folder, 'design.json'), '--port', '0', '--vxi11']);
   const serial = await startSimProcess(['--design', join(folder, 'design.json'), '--pty', ptyFolder]).catch((error: Error) => {
     lan.stop();
     throw error;

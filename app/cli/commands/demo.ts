@@ -1,10 +1,10 @@
 import type { CommandSpec } from '../args';
-import { optionFlag, optionString } from '../args';
+import { optionString } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { makeDesignFromTemplate } from '../../circuit';
-import { DATABASE_OPTION } from '../sweep/sweep-options';
+import { DATABASE_OPTION, TIME_SCALE_OPTION, timeScaleFrom } from '../common-options';
 import { followRun } from '../sweep/follow-run';
 import { figureLines } from '../sweep/summary-text';
 import { formatEngineering, formatFixed } from '../../units';
@@ -27,17 +27,18 @@ const SCENARIO = {
 export const demoCommand: CommandSpec = {
   name: 'demo',
   summary: 'Invented scenario on the simulated bench: one design, two builds that differ, swept and compared',
-  usage: '[--db PATH] [--fast]',
-  options: [DATABASE_OPTION, { name: 'fast', kind: 'flag', description: 'run the simulated bench 20× faster than real time' }],
+  usage: '[--db PATH] [--time-scale X]',
+  options: [DATABASE_OPTION, TIME_SCALE_OPTION],
   details: `
 Starts the simulated bench (simulated instruments on 127.0.0.1, ephemeral ports), stores an invented design
-and two builds of it in the database, sweeps both and prints how they differ. All data is simulated.`,
+and two builds of it in the database, sweeps both and prints how they differ. All data is simulated.
+--time-scale 20 shows it in a few seconds.`,
   async run(parsed) {
     process.stderr.write(`${SAFETY_NOTICE_SHORT}\n\n`);
     const out = (line = '') => process.stdout.write(line + '\n');
     const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')), {
       maxStimulusVpp: 1,
-      simulatedBench: { timeScale: optionFlag(parsed, 'fast') ? 20 : 1, noiseVrms: 2e-4, latencyS: 0.001 },
+      simulatedBench: { timeScale: timeScaleFrom(parsed), noiseVrms: 2e-4, latencyS: 0.001 },
     });
     try {
       out('Rolloff demo — INVENTED SCENARIO, SIMULATED DATA (no real board or instrument is involved).');
@@ -85,7 +86,7 @@ and two builds of it in the database, sweeps both and prints how they differ. Al
       out('op-amp\'s limit far higher up. Unit 1 follows its design up to the gain-limit point, where the op-amp\'s');
       out('open-loop gain takes over from the feedback network.');
       out();
-      out(`Stored in ${service.databaseLocation}. Look closer with: rolloff show ${a.id} --points --db ${service.databaseLocation}`);
+      out(`Stored in ${service.databaseLocation}. Look closer with: rolloff show ${a.id} --list-points --db ${service.databaseLocation}`);
       out(`Export a record with: rolloff export ${a.id} ${b.id} --pdf --db ${service.databaseLocation}`);
       return 0;
     } finally {

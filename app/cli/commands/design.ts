@@ -3,7 +3,8 @@ import { optionString, requirePositional } from '../args';
 import { ValidationError } from '../../errors';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
-import { DATABASE_OPTION, readJsonFile } from '../sweep/sweep-options';
+import { DATABASE_OPTION } from '../common-options';
+import { readDesignFile } from '../design-option';
 
 export const designCommand: CommandSpec = {
   name: 'design',
@@ -17,7 +18,7 @@ export const designCommand: CommandSpec = {
     try {
       if (action === 'add') {
         const path = requirePositional(parsed, 1, 'FILE.json');
-        const saved = await service.saveDesign(readJsonFile(path, 'FILE.json'));
+        const saved = await service.saveDesign(readDesignFile(path, 'FILE.json'));
         process.stdout.write(`design ${saved.id} "${saved.name}" stored\n`);
         return 0;
       }

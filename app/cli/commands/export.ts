@@ -15,6 +15,7 @@ import { runDetail } from '../../read-model/run-detail';
 import { compareDetails } from '../../read-model/compare';
 import { runOwnerOf, STALE_AFTER_MS } from '../../service/run-ownership';
 import { optionFlag, optionString, type CommandSpec, type ParsedArgs } from '../args';
+import { DATABASE_OPTION } from '../common-options';
 
 /** A file that already exists and is not ours to replace. */
 export class ExportTargetExistsError extends UserError {}
@@ -126,7 +127,7 @@ export const exportCommand: CommandSpec = {
     { name: 'json', kind: 'flag', description: 'everything needed to rebuild the record (schema: app/record/record.schema.json)' },
     { name: 'out', kind: 'string', placeholder: 'PATH', description: 'file to write, or an existing folder; "-" writes to standard output (default: record name in the current folder)' },
     { name: 'force', kind: 'flag', description: 'replace the --out file if it exists' },
-    { name: 'db', kind: 'string', placeholder: 'PATH', description: 'database file, opened read-only (default: ROLLOFF_DB or the user data folder)' },
+    { ...DATABASE_OPTION, description: `${DATABASE_OPTION.description}; only read` },
     { name: 'reference', kind: 'string', placeholder: 'RUN|theory', description: 'comparisons: difference against this run or against each run\'s own theory (default theory)' },
   ],
   details: `

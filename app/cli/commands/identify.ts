@@ -8,7 +8,8 @@ import { connect } from '../../scpi/connect';
 import { ScpiError, ScpiMalformedReplyError, ScpiTimeoutError } from '../../scpi/errors';
 import type { ScpiSession } from '../../scpi/session';
 import type { InstrumentIdentity } from '../../contract/contract';
-import { optionNumber, optionString, requirePositional, type CommandSpec } from '../args';
+import { optionString, requirePositional, type CommandSpec } from '../args';
+import { replyTimeoutFrom, replyTimeoutOption } from '../common-options';
 
 export const identifyCommand: CommandSpec = {
   name: 'identify',
@@ -17,7 +18,7 @@ export const identifyCommand: CommandSpec = {
   usage: 'ADDRESS [--bauds 9600,19200,…] [--timeout S]',
   options: [
     { name: 'bauds', kind: 'string', placeholder: 'LIST', description: 'serial only: baud rates to try in order, comma-separated' },
-    { name: 'timeout', kind: 'number', placeholder: 'S', description: 'seconds to wait for each reply', defaultValue: 2 },
+    replyTimeoutOption(),
   ],
   details: `
 Addresses: serial:///dev/ttyUSB0?baud=9600&data=8&parity=none&stop=1&flow=none,
@@ -27,8 +28,7 @@ Examples:
   rolloff identify serial:///dev/ttyUSB0 --bauds 9600,19200,115200`,
   async run(parsed) {
     const address = parseAddress(requirePositional(parsed, 0, 'ADDRESS'));
-    const timeoutS = optionNumber(parsed, 'timeout')!;
-    if (!(timeoutS > 0)) throw new ValidationError('--timeout', 'must be a positive number of seconds');
+    const timeoutS = replyTimeoutFrom(parsed);
     const candidates = candidateAddresses(address, optionString(parsed, 'bauds'));
     let lastError: unknown;
     for (const candidate of candidates) {

@@ -1,5 +1,5 @@
 /**
- * `rolloff profile list | show ID | new ID --from ID | check ADDRESS --profile ID`:
+ * `rolloff profile list | show ID | new ID --based-on ID | check ADDRESS --profile ID`:
  * the instrument profiles, a copy to edit in the profile folder, and the
  * checker that tells which of a profile's commands an instrument accepts.
  */
@@ -9,6 +9,7 @@ import { ValidationError } from '../../errors';
 import { checkProfile, loadProfiles, PROFILE_DIR_ENV, validateProfile, type Profile } from '../../bench';
 import type { ProfileCheckReport } from '../../contract/contract';
 import { optionNumber, optionString, requirePositional, type CommandSpec, type OptionSpec } from '../args';
+import { maxStimulusFrom, maxStimulusOption, replyTimeoutFrom, replyTimeoutOption } from '../common-options';
 
 /** The profile folder option; every command that loads profiles takes it. */
 export const PROFILE_DIR_OPTION: OptionSpec = { name: 'profile-dir', kind: 'string', placeholder: 'DIR', description: `folder of your own profiles (else ${PROFILE_DIR_ENV})` };
@@ -16,13 +17,14 @@ export const PROFILE_DIR_OPTION: OptionSpec = { name: 'profile-dir', kind: 'stri
 export const profileCommand: CommandSpec = {
   name: 'profile',
   summary: 'List, show, copy and check instrument profiles',
-  usage: 'list | show ID | new ID --from ID | check ADDRESS --profile ID [--max-amplitude VPP]  [--profile-dir DIR]',
+  usage: 'list | show ID | new ID --based-on ID | check ADDRESS --profile ID [--max-amplitude VPP]  [--profile-dir DIR]',
   options: [
     PROFILE_DIR_OPTION,
-    { name: 'from', kind: 'string', placeholder: 'ID', description: 'new: the profile to copy' },
+    // Not --from: elsewhere --from is where a sweep starts.
+    { name: 'based-on', kind: 'string', placeholder: 'ID', description: 'new: the profile to copy' },
     { name: 'profile', kind: 'string', placeholder: 'ID', description: 'check: the profile to check' },
-    { name: 'timeout', kind: 'number', placeholder: 'S', description: 'check: seconds to wait for each reply (default: the profile\'s); a refused query costs this long' },
-    { name: 'max-amplitude', kind: 'number', placeholder: 'VPP', description: 'check of a generator: largest output ever used, peak-to-peak (the check uses the smallest amplitude it can)' },
+    { ...replyTimeoutOption(' (check; default: the profile\'s); a refused query costs this long'), defaultValue: undefined },
+    maxStimulusOption('check of a generator: the check itself uses the smallest amplitude it can'),
   ],
   details: `
 check connects, sends each operation of the profile once in a harmless order (a generator's output
@@ -31,7 +33,7 @@ again at the end whatever happens), and prints per operation: accepted, refused 
 error), timed out, or a reply not in the form the profile expects (with the bytes received).
 Examples:
   rolloff profile list
-  rolloff profile new lab-scope --from scpi-scope --profile-dir ~/rolloff-profiles
+  rolloff profile new lab-scope --based-on scpi-scope --profile-dir ~/rolloff-profiles
   rolloff profile check tcp://127.0.0.1:5025 --profile lab-scope --profile-dir ~/rolloff-profiles`,
   async run(parsed) {
     const action = requirePositional(parsed, 0, 'ACTION (list, show, new or check)');
@@ -53,10 +55,10 @@ Examples:
     }
     if (action === 'new') {
       const id = requirePositional(parsed, 1, 'ID');
-      const from = optionString(parsed, 'from');
-      if (!from) throw new ValidationError('--from', 'is required: the profile to copy', 'e.g. rolloff profile new lab-scope --from scpi-scope');
+      const from = optionString(parsed, 'based-on');
+      if (!from) throw new ValidationError('--based-on', 'is required: the profile to copy', 'e.g. rolloff profile new lab-scope --based-on scpi-scope');
       if (!folder) throw new ValidationError('--profile-dir', 'no profile folder given', `Give --profile-dir DIR or set ${PROFILE_DIR_ENV}.`);
-      const json = { ...profileFileJson(byId(from, '--from')), id, description: `copy of ${from}: describe your instrument here` };
+      const json = { ...profileFileJson(byId(from, '--based-on')), id, description: `copy of ${from}: describe your instrument here` };
       const file = join(folder, `${id}.json`);
       validateProfile(json, file); // the new id must be a valid one
       if (profiles.some((p) => p.id === id)) throw new ValidationError('ID', `"${id}" is already a profile`, 'Choose another id.');
@@ -70,7 +72,7 @@ Examples:
       const address = requirePositional(parsed, 1, 'ADDRESS');
       const id = optionString(parsed, 'profile');
       if (!id) throw new ValidationError('--profile', 'is required: the profile to check');
-      const report = await checkProfile(address, byId(id, '--profile'), { maxStimulusVpp: optionNumber(parsed, 'max-amplitude'), timeoutS: optionNumber(parsed, 'timeout') });
+      const report = await checkProfile(address, byId(id, '--profile'), { maxStimulusVpp: maxStimulusFrom(parsed), timeoutS: optionNumber(parsed, 'timeout') === undefined ? undefined : replyTimeoutFrom(parsed) });
       process.stdout.write(formatCheckReport(report));
       return report.checks.every((c) => c.outcome === 'accepted') ? 0 : 3;
     }

@@ -7,7 +7,8 @@ import { isQuery } from '../../bench/template';
 import { connect } from '../../scpi/connect';
 import { ScpiTimeoutError } from '../../scpi/errors';
 import { preview } from '../../scpi/reply-framer';
-import { optionNumber, requirePositional, type CommandSpec } from '../args';
+import { requirePositional, type CommandSpec } from '../args';
+import { replyTimeoutFrom, replyTimeoutOption } from '../common-options';
 
 /** Exit status when the instrument queued errors (distinct from a usage error). */
 export const EXIT_INSTRUMENT_ERRORS = 3;
@@ -16,7 +17,7 @@ export const queryCommand: CommandSpec = {
   name: 'query',
   summary: 'Send raw SCPI commands, print the replies and any queued errors',
   usage: 'ADDRESS COMMAND… [--timeout S]',
-  options: [{ name: 'timeout', kind: 'number', placeholder: 'S', description: 'seconds to wait for each reply', defaultValue: 5 }],
+  options: [replyTimeoutOption()],
   details: `
 A command whose header ends in "?" is a query and its reply is printed; binary
 block replies are shown as their length and first bytes. After the last
@@ -28,8 +29,7 @@ Quote commands that contain spaces or semicolons:
     const address = requirePositional(parsed, 0, 'ADDRESS');
     const commands = parsed.positionals.slice(1);
     if (commands.length === 0) throw new ValidationError('COMMAND', 'is missing', 'Give at least one SCPI command after the address.');
-    const timeoutS = optionNumber(parsed, 'timeout')!;
-    if (!(timeoutS > 0)) throw new ValidationError('--timeout', 'must be a positive number of seconds');
+    const timeoutS = replyTimeoutFrom(parsed);
     const session = await connect(address, { timeoutS });
     try {
       for (const command of commands) {

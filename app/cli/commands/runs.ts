@@ -6,7 +6,7 @@ import { RUN_STATUSES as STATUSES, type RunStatus } from '../../contract/contrac
 import { checkBenchName } from '../../bench/bench-name';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
-import { DATABASE_OPTION } from '../sweep/sweep-options';
+import { DATABASE_OPTION } from '../common-options';
 import { runTable } from '../sweep/summary-text';
 
 

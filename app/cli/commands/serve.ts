@@ -11,7 +11,6 @@ import { startWebHost } from '../../host/web-host';
 import { openHostedService } from '../../host/hosted-service';
 import { SETTINGS } from '../../contract/vocabulary';
 import { benchDescription, limitSourceText } from '../../contract/bench-text';
-import { checkMaxStimulusVpp } from '../../service/stimulus-limits';
 import type { RolloffService } from '../../service/service';
 
 /** Which limit the window starts with, and whose it is. */
@@ -20,9 +19,7 @@ function maximumStimulusLine(service: RolloffService): string {
   if (limit) return `${SETTINGS.maxStimulus.label}: ${limitSourceText(limit)}.`;
   return `${SETTINGS.maxStimulus.label}: not set for ${service.bench ? benchDescription(service.bench) : 'this bench'}; set it on the Bench view.`;
 }
-
-/** Simulated bench seconds per wall second with --simulated: a 40-point sweep takes seconds, not minutes (common practice, no source). */
-const DEFAULT_SIMULATED_TIME_SCALE = 10;
+import { DATABASE_OPTION, SIMULATED_BENCH_OPTIONS, maxStimulusFrom, maxStimulusOption, simulatedBenchFrom } from '../common-options';
 
 export const serveCommand: CommandSpec = {
   name: 'serve',
@@ -30,11 +27,11 @@ export const serveCommand: CommandSpec = {
   usage: '[options]',
   options: [
     { name: 'host', kind: 'string', description: 'address to listen on; anything but loopback requires the printed access token', defaultValue: '127.0.0.1', placeholder: 'ADDRESS' },
-    { name: 'port', kind: 'integer', description: 'TCP port (0 picks a free one)', defaultValue: 8765, placeholder: 'N' },
-    { name: 'db', kind: 'string', description: 'database file (default: ROLLOFF_DB or the per-user data folder)', placeholder: 'PATH' },
-    { name: 'simulated', kind: 'flag', aliases: ['virtual'], description: 'run the simulated bench on a fast clock (simulated instruments; start it on the Bench view)' },
-    { name: 'time-scale', kind: 'number', description: 'simulated bench seconds per wall-clock second, with --simulated', defaultValue: DEFAULT_SIMULATED_TIME_SCALE, placeholder: 'N' },
-    { name: 'max-amplitude', kind: 'number', description: `${SETTINGS.maxStimulus.label}, V peak-to-peak: ${SETTINGS.maxStimulus.explanation} (saved for the bench served: the simulated bench with --simulated, else the real instruments; without it that bench's saved limit applies, or set it on the Bench view)`, placeholder: 'VPP' },
+    { name: 'port', kind: 'integer', description: 'TCP port of the window\'s address (0 picks a free one)', defaultValue: 8765, placeholder: 'PORT' },
+    DATABASE_OPTION,
+    { name: 'simulated', kind: 'flag', aliases: ['virtual'], description: 'serve the window for the simulated bench (simulated instruments; start it on the Bench view, which uses the simulated bench options with or without this flag)' },
+    ...SIMULATED_BENCH_OPTIONS,
+    maxStimulusOption('saved for the bench served: the simulated bench with --simulated, else the real instruments; without it that bench\'s saved limit applies, or set it on the Bench view'),
     { name: 'require-token', kind: 'flag', description: 'require the access token even on a loopback address' },
   ],
   details: `
@@ -45,7 +42,7 @@ address and has the token can drive your instruments, so share it with care.
 Stop with Ctrl+C: running sweeps are paused (resumable), nothing is lost.
 
 Examples:
-  rolloff serve --simulated --max-amplitude 2
+  rolloff serve --simulated --time-scale 10 --max-amplitude 2
   rolloff serve --db bench.sqlite --port 9000`,
 
   async run(parsed) {
@@ -53,10 +50,8 @@ Examples:
     const port = optionNumber(parsed, 'port') ?? 8765;
     if (port < 0 || port > 65_535) throw new UserError(`--port ${port} is not a TCP port`, 'Use a number from 1 to 65535, or 0 for any free port.');
     const simulated = optionFlag(parsed, 'simulated');
-    const timeScale = optionNumber(parsed, 'time-scale') ?? DEFAULT_SIMULATED_TIME_SCALE;
-    if (!(timeScale > 0)) throw new UserError(`--time-scale ${timeScale} must be above 0`, 'Use 1 for real time, 10 for ten times faster.');
-    const maxStimulusVpp = optionNumber(parsed, 'max-amplitude');
-    if (maxStimulusVpp !== undefined) checkMaxStimulusVpp(maxStimulusVpp, '--max-amplitude');
+    const simulatedBench = simulatedBenchFrom(parsed);
+    const maxStimulusVpp = maxStimulusFrom(parsed);
     const databasePath = resolveDatabasePath(optionString(parsed, 'db'));
 
     const files = await bundleRenderer();
@@ -64,7 +59,7 @@ Examples:
       maxStimulusVpp,
       startOn: simulated ? 'simulated bench' : 'real instruments',
       ownerLabel: 'rolloff serve',
-      simulatedBench: simulated ? { timeScale } : undefined,
+      simulatedBench,
     });
     let webHost: Awaited<ReturnType<typeof startWebHost>>;
     try {

@@ -5,16 +5,17 @@ import { ValidationError } from '../../errors';
 import { flagWords } from '../../contract/vocabulary';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
-import { DATABASE_OPTION } from '../sweep/sweep-options';
+import { DATABASE_OPTION } from '../common-options';
 import { runDetailText } from '../sweep/summary-text';
 
 export const showCommand: CommandSpec = {
   name: 'show',
   summary: 'Show one run: figures against theory, verdict, and optionally its points and events',
-  usage: 'RUN [--points] [--events] [--json] [--db PATH]',
+  usage: 'RUN [--list-points] [--list-events] [--json] [--db PATH]',
   options: [
-    { name: 'points', kind: 'flag', description: 'list the measured points with uncertainties and flags' },
-    { name: 'events', kind: 'flag', description: 'list the run\'s events' },
+    // Not --points: on sweep that is how many points a linear sweep has.
+    { name: 'list-points', kind: 'flag', description: 'list the measured points with uncertainties and flags' },
+    { name: 'list-events', aliases: ['events'], kind: 'flag', description: 'list the run\'s events' },
     { name: 'json', kind: 'flag', description: 'print the whole run as JSON: plan, figures, verdict, points and events' },
     DATABASE_OPTION,
   ],
@@ -28,7 +29,7 @@ export const showCommand: CommandSpec = {
         return 0;
       }
       process.stdout.write(runDetailText(detail, await service.diodeOfRun(runId)));
-      if (optionFlag(parsed, 'points')) {
+      if (optionFlag(parsed, 'list-points')) {
         const p = detail.points;
         process.stdout.write(`\n${'step'.padEnd(5)} ${(detail.kind === 'ac' ? 'frequency' : 'input').padEnd(12)} ${'amplitude'.padEnd(11)} ${(detail.kind === 'ac' ? 'gain dB' : 'output V').padEnd(16)} ${'phase °'.padEnd(16)} flags\n`);
         for (let i = 0; i < p.step.length; i++) {
@@ -38,7 +39,7 @@ export const showCommand: CommandSpec = {
           process.stdout.write(`${String(p.step[i]).padEnd(5)} ${formatEngineering(p.stimulus[i], detail.kind === 'ac' ? 'Hz' : 'V').padEnd(12)} ${formatEngineering(p.amplitudeVpp[i], 'Vpp').padEnd(11)} ${main.padEnd(16)} ${phase.padEnd(16)} ${flags}\n`);
         }
       }
-      if (optionFlag(parsed, 'events')) {
+      if (optionFlag(parsed, 'list-events')) {
         process.stdout.write('\n');
         for (const e of detail.events) process.stdout.write(`${e.at}  ${e.level.padEnd(7)}  ${e.message}\n`);
       }

@@ -14,7 +14,7 @@ export const templateCommand: CommandSpec = {
   usage: '[ID] [--param name=value ...] [--out FILE]',
   options: [
     { name: 'param', kind: 'string', placeholder: 'NAME=VALUE', repeatable: true, description: 'set a template parameter (SI units, engineering notation: rf=10k, cf=15n)' },
-    { name: 'out', kind: 'string', placeholder: 'FILE', description: 'write the design file here instead of printing it' },
+    { name: 'out', kind: 'string', placeholder: 'PATH', description: 'write the design file here instead of printing it' },
     { name: 'force', kind: 'flag', description: 'allow --out to replace an existing file' },
     { name: 'info', kind: 'flag', description: 'show the template\'s parameters and defaults instead of writing a design' },
   ],

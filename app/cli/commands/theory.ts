@@ -4,8 +4,7 @@
  * noise density with each source's share, or the DC transfer — as a table,
  * CSV or JSON, with each op-amp's stability figures and warnings.
  */
-import { readFileSync } from 'node:fs';
-import { UserError, ValidationError } from '../../errors';
+import { ValidationError } from '../../errors';
 import { formatEngineering, formatFixed, logGrid, parseEngineering } from '../../units';
 import {
   analyzeStability,
@@ -33,17 +32,24 @@ import {
 import { SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
 import { optionFlag, optionNumber, optionString, requirePositional, type CommandSpec, type ParsedArgs } from '../args';
 import { FIGURE_NAMES } from '../../contract/vocabulary';
+import { DATABASE_OPTION } from '../common-options';
+import { chooseDesign, designContent, DESIGN_PLACEHOLDER } from '../design-option';
+import { openServiceAt } from '../../service/open-service';
+import { resolveDatabasePath } from '../../store';
+
+const AC = SWEEP_RANGE_DEFAULTS.ac;
+const DC = SWEEP_RANGE_DEFAULTS.dc;
 
 type Format = 'table' | 'csv' | 'json';
 
 export const theoryCommand: CommandSpec = {
   name: 'theory',
   summary: 'Computed response of a design: AC gain/phase with op-amp limits, tolerance band, output noise, or DC transfer',
-  usage: 'DESIGN.json [options]',
+  usage: `${DESIGN_PLACEHOLDER} [options]`,
   options: [
-    { name: 'from', kind: 'number', placeholder: 'HZ|V', description: 'start of the sweep (AC default 10 Hz, DC default 1 mV; engineering notation works: 1m)' },
-    { name: 'to', kind: 'number', placeholder: 'HZ|V', description: 'end of the sweep (AC default 1 MHz, DC default 10 V; engineering notation works: 1meg)' },
-    { name: 'per-decade', kind: 'integer', placeholder: 'N', description: 'log-spaced points per decade (AC default 20, DC default 10)' },
+    { name: 'from', kind: 'number', placeholder: 'HZ|V', description: `start of the sweep (default ${formatEngineering(AC.from, 'Hz')}; DC ${formatEngineering(DC.from, 'V')}; engineering notation works: 1m is 1 mV)` },
+    { name: 'to', kind: 'number', placeholder: 'HZ|V', description: `end of the sweep (default ${formatEngineering(AC.to, 'Hz')}; DC ${formatEngineering(DC.to, 'V')}; engineering notation works: 1meg is 1 MHz)` },
+    { name: 'per-decade', kind: 'integer', placeholder: 'N', description: `log-spaced points per decade (default ${AC.pointsPerDecade}; DC ${DC.pointsPerDecade})` },
     { name: 'csv', kind: 'flag', description: 'print CSV (full precision) instead of a table' },
     { name: 'json', kind: 'flag', description: 'print JSON (columns plus summary) instead of a table' },
     { name: 'summary', kind: 'flag', description: 'print only the figures: pass-band gain, −3 dB frequencies, gain-limit point, roll-off, phase and gain margin (with --noise: margins, peaking and band noise)' },
@@ -56,8 +62,12 @@ export const theoryCommand: CommandSpec = {
     { name: 'distribution', kind: 'string', placeholder: 'uniform|gaussian', description: 'part value distribution within tolerance', defaultValue: 'uniform' },
     { name: 'ideal', kind: 'flag', description: 'ideal op-amps (no gain or bandwidth limit) for the main curve or the DC transfer' },
     { name: 'dc', kind: 'flag', description: 'DC transfer (input_v, output_v) instead of AC, e.g. for the log stage' },
+    { ...DATABASE_OPTION, description: `with a stored design's id: ${DATABASE_OPTION.description}` },
   ],
   details: `
+The design is a design file, or a stored design's id (rolloff design list).
+The defaults are those of rolloff sweep and the Sweep view, so theory and
+measurement cover the same range unless you ask otherwise.
 Numbers accept engineering notation: --from 1m, --to 2meg.
 The tolerance band is the 2.5th–97.5th percentile of gain and phase over the samples
 (xoshiro128** generator, so a seed always gives the same band).
@@ -78,7 +88,7 @@ Examples:
   rolloff theory design.json --noise --band 10:100k --summary
   rolloff theory design.json --noise --csv --from 1 --to 10meg > noise.csv`,
   async run(parsed) {
-    const design = readDesignFile(requirePositional(parsed, 0, 'DESIGN.json'));
+    const design = await readDesign(requirePositional(parsed, 0, DESIGN_PLACEHOLDER), parsed);
     const format = outputFormat(parsed);
     if (optionFlag(parsed, 'noise') && optionFlag(parsed, 'dc')) throw new ValidationError('--noise/--dc', 'noise is computed for AC only', 'Drop --dc or --noise.');
     if (optionString(parsed, 'band') !== undefined && !optionFlag(parsed, 'noise')) throw new ValidationError('--band', 'only applies with --noise', 'Add --noise to integrate the noise over a band.');
@@ -96,8 +106,8 @@ function outputFormat(parsed: ParsedArgs): Format {
 }
 
 function sweepLimits(parsed: ParsedArgs): { fromHz: number; toHz: number } {
-  const fromHz = optionNumber(parsed, 'from') ?? 10;
-  const toHz = optionNumber(parsed, 'to') ?? 1e6;
+  const fromHz = optionNumber(parsed, 'from') ?? AC.from;
+  const toHz = optionNumber(parsed, 'to') ?? AC.to;
   if (!(fromHz > 0)) throw new ValidationError('--from', `${fromHz} Hz: the AC sweep is log-spaced and must start above 0 Hz`, 'For example --from 10.');
   if (!(toHz > fromHz)) throw new ValidationError('--to', `${toHz} Hz is not above --from (${fromHz} Hz)`, 'Give an end frequency above the start, e.g. --to 1meg.');
   return { fromHz, toHz };
@@ -105,7 +115,7 @@ function sweepLimits(parsed: ParsedArgs): { fromHz: number; toHz: number } {
 
 function acResponse(design: Design, parsed: ParsedArgs, format: Format): string {
   const { fromHz, toHz } = sweepLimits(parsed);
-  const frequencies = logGrid(fromHz, toHz, optionNumber(parsed, 'per-decade') ?? 20);
+  const frequencies = logGrid(fromHz, toHz, optionNumber(parsed, 'per-decade') ?? AC.pointsPerDecade);
   const ideal = optionFlag(parsed, 'ideal');
   const response = solveAc(design, frequencies, { idealOpAmps: ideal });
   const summary = summarizeAc(design, response);
@@ -187,7 +197,7 @@ function warnOnStderr(warnings: TheoryWarning[]): void {
 function noiseResponse(design: Design, parsed: ParsedArgs, format: Format): string {
   if (optionFlag(parsed, 'tolerance')) throw new ValidationError('--tolerance', 'the tolerance band is computed for the AC response only', 'Drop --noise or --tolerance.');
   const { fromHz, toHz } = sweepLimits(parsed);
-  const frequencies = logGrid(fromHz, toHz, optionNumber(parsed, 'per-decade') ?? 20);
+  const frequencies = logGrid(fromHz, toHz, optionNumber(parsed, 'per-decade') ?? AC.pointsPerDecade);
   const ideal = optionFlag(parsed, 'ideal');
   const noise = solveNoise(design, frequencies, { idealOpAmps: ideal });
   const bandText = optionString(parsed, 'band');
@@ -326,9 +336,9 @@ function acJson(design: Design, r: AcResponse, summary: AcSummary, band: MonteCa
 
 function dcTransfer(design: Design, parsed: ParsedArgs, format: Format): string {
   if (optionFlag(parsed, 'tolerance')) throw new ValidationError('--tolerance', 'the tolerance band is computed for AC only', 'Drop --dc or --tolerance.');
-  const from = optionNumber(parsed, 'from') ?? SWEEP_RANGE_DEFAULTS.dc.from;
-  const to = optionNumber(parsed, 'to') ?? SWEEP_RANGE_DEFAULTS.dc.to;
-  const perDecade = optionNumber(parsed, 'per-decade') ?? SWEEP_RANGE_DEFAULTS.dc.pointsPerDecade;
+  const from = optionNumber(parsed, 'from') ?? DC.from;
+  const to = optionNumber(parsed, 'to') ?? DC.to;
+  const perDecade = optionNumber(parsed, 'per-decade') ?? DC.pointsPerDecade;
   let inputs: Float64Array;
   if (from > 0 && to > 0) inputs = logGrid(from, to, perDecade);
   else if (from < 0 && to < 0) inputs = logGrid(-from, -to, perDecade).map((v) => -v);
@@ -354,21 +364,14 @@ function alignColumns(rows: string[][]): string {
   return rows.map((row) => row.map((cell, c) => (c === 0 ? cell.padEnd(widths[c]) : cell.padStart(widths[c]))).join('  ').trimEnd()).join('\n') + '\n';
 }
 
-/** Reads and checks a design file; file and JSON errors name the file. */
-function readDesignFile(path: string): Design {
-  let text: string;
+/** The design named (a file, or a stored design's id read from --db), checked. */
+async function readDesign(text: string, parsed: ParsedArgs): Promise<Design> {
+  const choice = chooseDesign(text, 'design');
+  if ('content' in choice) return parseDesign(choice.content, choice.path);
+  const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
   try {
-    text = readFileSync(path, 'utf8');
-  } catch (error) {
-    const code = (error as NodeJS.ErrnoException).code;
-    const reason = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a directory' : code === 'EACCES' ? 'permission denied' : String((error as Error).message);
-    throw new UserError(`cannot read design file ${path}: ${reason}`, 'Give the path of a design JSON file, or write one with "rolloff template ID --out FILE".');
+    return parseDesign(await designContent(service, choice), `stored design ${choice.storedId}`);
+  } finally {
+    await service.close();
   }
-  let json: unknown;
-  try {
-    json = JSON.parse(text);
-  } catch (error) {
-    throw new ValidationError(path, `is not valid JSON (${(error as Error).message})`, 'Fix the syntax; a design file is one JSON object.');
-  }
-  return parseDesign(json, path);
 }

@@ -3,7 +3,6 @@
  * the bench, the plan and the database, and the one way to turn them into a
  * service call. Every command goes through the service, like the window does.
  */
-import { readFileSync } from 'node:fs';
 import type { OptionSpec, ParsedArgs } from '../../cli/args';
 import { optionFlag, optionNumber, optionString } from '../../cli/args';
 import { ValidationError } from '../../errors';
@@ -14,9 +13,10 @@ import { resolveDatabasePath } from '../../store';
 import { DEFAULT_PROFILE_ID, resolveBenchName } from '../../bench';
 import { parseEngineering } from '../../units';
 import { SWEEP_DEFAULTS, SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
+import { DATABASE_OPTION, SIMULATED_BENCH_OPTIONS, maxStimulusFrom, maxStimulusOption, simulatedBenchFrom } from '../common-options';
+import { chooseDesign, designContent, designOption, storedDesignId } from '../design-option';
 import { SETTINGS } from '../../contract/vocabulary';
 import { benchDescription, limitReuseText } from '../../contract/bench-text';
-import { checkMaxStimulusVpp } from '../../service/stimulus-limits';
 
 /** "reusing the limit of 2 Vpp set on … for bench "lab-3"" on stderr, when the limit in force was saved earlier. */
 export function reportReusedLimit(service: RolloffService): void {
@@ -24,13 +24,9 @@ export function reportReusedLimit(service: RolloffService): void {
   if (limit?.reused) process.stderr.write(`${limitReuseText(limit)}\n`);
 }
 
-export const DATABASE_OPTION: OptionSpec = { name: 'db', kind: 'string', placeholder: 'PATH|URL', description: 'database file, or a lab store postgres://USER@HOST:PORT/DATABASE (default: ROLLOFF_DB or the user data folder)' };
-
 export const BENCH_OPTIONS: OptionSpec[] = [
   { name: 'simulated', kind: 'flag', aliases: ['virtual'], description: 'use the simulated bench (simulated instruments on 127.0.0.1) with the build\'s circuit' },
-  { name: 'time-scale', kind: 'number', placeholder: 'X', description: 'simulated bench: bench seconds per wall second', defaultValue: 1 },
-  { name: 'noise', kind: 'number', placeholder: 'VRMS', description: 'simulated bench: flat white noise on every reading (the measurement\'s own), volts RMS', defaultValue: 1e-4 },
-  { name: 'circuit-noise', kind: 'flag', description: 'simulated bench: also add the circuit\'s own output noise, shaped by the circuit (as `rolloff theory --noise` computes it)' },
+  ...SIMULATED_BENCH_OPTIONS,
   { name: 'generator', kind: 'string', placeholder: 'ADDRESS', description: 'generator address, e.g. tcp://HOST:5025 or serial:///dev/ttyUSB0?baud=9600' },
   { name: 'scope', kind: 'string', placeholder: 'ADDRESS', description: 'scope address (scope measurement)' },
   { name: 'meter', kind: 'string', placeholder: 'ADDRESS', description: 'meter address (meter or DC measurement)' },
@@ -38,7 +34,7 @@ export const BENCH_OPTIONS: OptionSpec[] = [
   { name: 'scope-profile', kind: 'string', placeholder: 'ID', description: 'scope profile', defaultValue: DEFAULT_PROFILE_ID.scope },
   { name: 'meter-profile', kind: 'string', placeholder: 'ID', description: 'meter profile', defaultValue: DEFAULT_PROFILE_ID.meter },
   { name: 'give-up', kind: 'number', placeholder: 'S', description: 'mark the run failed (points kept) when the instruments stay unreachable this long', defaultValue: 120 },
-  { name: 'max-amplitude', kind: 'number', placeholder: 'VPP', description: `${SETTINGS.maxStimulus.label}, V peak-to-peak: ${SETTINGS.maxStimulus.explanation} (saved for this bench: the simulated bench and real instruments each keep their own; later runs on the same bench reuse it)` },
+  maxStimulusOption('saved for this bench: the simulated bench and real instruments each keep their own; later runs on the same bench reuse it'),
   { name: 'bench', kind: 'string', placeholder: 'NAME', description: 'name of this bench, recorded with each run (default: ROLLOFF_BENCH or the host name)' },
   DATABASE_OPTION,
 ];
@@ -47,10 +43,12 @@ export const PLAN_OPTIONS: OptionSpec[] = [
   { name: 'dc', kind: 'flag', description: 'DC transfer sweep (log stage) instead of a frequency sweep' },
   { name: 'from', kind: 'number', placeholder: 'HZ|V', description: `start frequency, or DC level with --dc (default ${SWEEP_RANGE_DEFAULTS.ac.from} Hz; DC ${SWEEP_RANGE_DEFAULTS.dc.from} V)` },
   { name: 'to', kind: 'number', placeholder: 'HZ|V', description: `end frequency, or DC level with --dc (default ${SWEEP_RANGE_DEFAULTS.ac.to} Hz; DC ${SWEEP_RANGE_DEFAULTS.dc.to} V)` },
-  { name: 'per-decade', kind: 'integer', placeholder: 'N', description: 'points per decade', defaultValue: SWEEP_RANGE_DEFAULTS.ac.pointsPerDecade },
-  { name: 'linear', kind: 'flag', description: 'linear spacing (same number of points)' },
-  { name: 'amplitude', kind: 'number', placeholder: 'VPP', description: 'fixed stimulus amplitude (default: automatic per frequency from theory)' },
-  { name: 'target-output', kind: 'number', placeholder: 'VPP', description: 'automatic amplitude: aim for this output' },
+  // No defaultValue on per-decade and points: which of them was given is how a spacing mix-up is caught.
+  { name: SETTINGS.pointsPerDecade.cliOption, kind: 'integer', placeholder: 'N', description: `${SETTINGS.pointsPerDecade.explanation} (default ${SWEEP_RANGE_DEFAULTS.ac.pointsPerDecade})` },
+  { name: 'linear', kind: 'flag', description: `linear spacing instead of log; give --${SETTINGS.linearPoints.cliOption}` },
+  { name: SETTINGS.linearPoints.cliOption, kind: 'integer', placeholder: 'N', description: `${SETTINGS.linearPoints.explanation} (default ${SWEEP_RANGE_DEFAULTS.ac.linearPoints})` },
+  { name: SETTINGS.fixedAmplitude.cliOption, kind: 'number', placeholder: 'VPP', description: `${SETTINGS.fixedAmplitude.label}, V peak-to-peak: ${SETTINGS.fixedAmplitude.explanation} (default: ${SETTINGS.automaticAmplitude.label.toLowerCase()}, ${SETTINGS.automaticAmplitude.explanation})` },
+  { name: SETTINGS.targetOutput.cliOption, kind: 'number', placeholder: 'VPP', description: `${SETTINGS.targetOutput.label}, V peak-to-peak: ${SETTINGS.targetOutput.explanation}` },
   { name: 'measure', kind: 'string', placeholder: 'scope|meter', description: 'how to measure AC points', defaultValue: 'scope' },
   { name: 'through', kind: 'flag', description: 'through-calibration run (meter measures the generator directly; stage bypassed)' },
   { name: 'cycles', kind: 'integer', placeholder: 'N', description: 'minimum whole cycles per acquisition', defaultValue: SWEEP_DEFAULTS.minCycles },
@@ -64,7 +62,7 @@ export const PLAN_OPTIONS: OptionSpec[] = [
 
 export const BUILD_OPTIONS: OptionSpec[] = [
   { name: 'build', kind: 'integer', placeholder: 'ID', description: 'stored build to sweep' },
-  { name: 'design', kind: 'string', placeholder: 'FILE', description: 'design file: stores it and a new build of it' },
+  designOption('design of a new build to sweep (a file is stored first)'),
   { name: 'label', kind: 'string', placeholder: 'TEXT', description: 'label of the new build (with --design)', defaultValue: 'build' },
   { name: 'actual', kind: 'string', placeholder: 'PART=VALUE', repeatable: true, description: 'measured part value of the new build, e.g. C1=16.2n' },
 ];
@@ -76,17 +74,14 @@ export const BUILD_OPTIONS: OptionSpec[] = [
  * the run decides.
  */
 export async function openService(parsed: ParsedArgs, overrides: { timeScale?: number; latencyS?: number; benchFromOptions?: boolean } = {}): Promise<RolloffService> {
-  const timeScale = overrides.timeScale ?? optionNumber(parsed, 'time-scale') ?? 1;
-  if (!(timeScale > 0)) throw new ValidationError('--time-scale', `${timeScale} is not a positive number`);
-  const maxStimulusVpp = optionNumber(parsed, 'max-amplitude');
-  if (maxStimulusVpp !== undefined) checkMaxStimulusVpp(maxStimulusVpp, '--max-amplitude');
+  const simulated = simulatedBenchFrom(parsed);
   return openServiceAt(resolveDatabasePath(optionString(parsed, 'db')), {
-    maxStimulusVpp,
+    maxStimulusVpp: maxStimulusFrom(parsed),
     ...(overrides.benchFromOptions === false ? {} : { startOn: optionFlag(parsed, 'simulated') ? 'simulated bench' : 'real instruments' }),
     giveUpAfterS: optionNumber(parsed, 'give-up') ?? 120,
     benchName: resolveBenchName(optionString(parsed, 'bench')),
     ownerLabel: 'rolloff (command line)',
-    simulatedBench: { timeScale, noiseVrms: optionNumber(parsed, 'noise') ?? 1e-4, circuitNoise: optionFlag(parsed, 'circuit-noise'), latencyS: overrides.latencyS ?? 0 },
+    simulatedBench: { ...simulated, timeScale: overrides.timeScale ?? simulated.timeScale, latencyS: overrides.latencyS ?? 0 },
   });
 }
 
@@ -126,6 +121,7 @@ const OPTION_OF_FIELD: Record<string, string> = {
   amplitude: '--amplitude',
   'target output': '--target-output',
   pointsPerDecade: '--per-decade',
+  points: '--points',
   minCycles: '--cycles',
   averages: '--averages',
 };
@@ -137,34 +133,20 @@ export function namedForTheCommandLine(error: unknown): unknown {
   return new ValidationError(option, error.message.slice(error.where.length + 2), error.hint);
 }
 
-/** The build to sweep: --build ID, or a new build of --design FILE. */
+/** The build to sweep: --build ID, or a new build of --design ID|FILE. */
 async function resolveBuildId(service: RolloffService, parsed: ParsedArgs): Promise<number> {
   const buildId = optionNumber(parsed, 'build');
-  const designFile = optionString(parsed, 'design');
-  if (buildId !== undefined && designFile !== undefined) throw new ValidationError('--build/--design', 'give one, not both');
+  const designText = optionString(parsed, 'design');
+  if (buildId !== undefined && designText !== undefined) throw new ValidationError('--build/--design', 'give one, not both');
   if (buildId !== undefined) return (await service.getBuild(buildId)).id;
-  if (designFile === undefined) throw new ValidationError('--build', 'is missing', 'Give --build ID (see rolloff build list) or --design FILE.json [--label TEXT] [--actual PART=VALUE …].');
-  const design = readJsonFile(designFile, '--design');
+  if (designText === undefined) throw new ValidationError('--build', 'is missing', 'Give --build ID (see rolloff build list) or --design ID|FILE [--label TEXT] [--actual PART=VALUE …].');
+  const design = chooseDesign(designText);
   const actualValues = actualValuesFrom(parsed);
   // Design, measured values and plan are all checked before anything is stored.
-  service.planForUnsavedBuild(requestFrom(parsed, 0), design, actualValues);
-  const saved = await service.saveDesign(design);
-  const build = await service.createBuild({ designId: saved.id, label: optionString(parsed, 'label') ?? 'build', notes: '', actualValues });
+  service.planForUnsavedBuild(requestFrom(parsed, 0), await designContent(service, design), actualValues);
+  const designId = await storedDesignId(service, design);
+  const build = await service.createBuild({ designId, label: optionString(parsed, 'label') ?? 'build', notes: '', actualValues });
   return build.id;
-}
-
-export function readJsonFile(path: string, where: string): unknown {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch (error) {
-    throw new ValidationError(where, `cannot read ${path}: ${(error as NodeJS.ErrnoException).code ?? (error as Error).message}`, 'Check the path.');
-  }
-  try {
-    return JSON.parse(text);
-  } catch (error) {
-    throw new ValidationError(`${where} ${path}`, `is not valid JSON (${(error as Error).message})`, 'Fix the file, or make one with rolloff template.');
-  }
 }
 
 /** Refuses a sweep that could not start (no ceiling, no instruments) before anything is stored. */
@@ -203,8 +185,8 @@ export function requestFrom(parsed: ParsedArgs, buildId: number): SweepRequest {
   const measure = optionString(parsed, 'measure') ?? 'scope';
   if (measure !== 'scope' && measure !== 'meter') throw new ValidationError('--measure', `"${measure}" is not scope or meter`);
   const through = optionFlag(parsed, 'through');
-  const fixed = optionNumber(parsed, 'amplitude');
-  const target = optionNumber(parsed, 'target-output');
+  const fixed = optionNumber(parsed, SETTINGS.fixedAmplitude.cliOption);
+  const target = optionNumber(parsed, SETTINGS.targetOutput.cliOption);
   if (fixed !== undefined && target !== undefined) throw new ValidationError('--amplitude/--target-output', 'give one, not both', '--amplitude fixes the stimulus; --target-output sets it per frequency from theory.');
   const limits: VerdictLimits = {};
   const maxDeviation = optionNumber(parsed, 'max-deviation');
@@ -213,13 +195,19 @@ export function requestFrom(parsed: ParsedArgs, buildId: number): SweepRequest {
   if (cornerTolerance !== undefined) limits.cornerTolerance = cornerTolerance;
   const kind = optionFlag(parsed, 'dc') ? 'dc' : 'ac';
   const range = SWEEP_RANGE_DEFAULTS[kind];
+  const linear = optionFlag(parsed, 'linear');
+  const perDecade = optionNumber(parsed, SETTINGS.pointsPerDecade.cliOption);
+  const points = optionNumber(parsed, SETTINGS.linearPoints.cliOption);
+  if (linear && perDecade !== undefined) throw new ValidationError('--per-decade', 'applies to log spacing', 'With --linear, give the number of points with --points N.');
+  if (!linear && points !== undefined) throw new ValidationError('--points', 'applies to --linear sweeps', 'A log sweep takes --per-decade N; add --linear for evenly spaced points.');
   return {
     buildId,
     kind,
     from: optionNumber(parsed, 'from') ?? range.from,
     to: optionNumber(parsed, 'to') ?? range.to,
-    pointsPerDecade: optionNumber(parsed, 'per-decade') ?? range.pointsPerDecade,
-    spacing: optionFlag(parsed, 'linear') ? 'linear' : 'log',
+    pointsPerDecade: perDecade ?? range.pointsPerDecade,
+    spacing: linear ? 'linear' : 'log',
+    ...(linear ? { points: points ?? range.linearPoints } : {}),
     amplitude: fixed !== undefined ? { mode: 'fixed', vpp: fixed } : { mode: 'auto', ...(target !== undefined ? { targetOutputVpp: target } : {}) },
     measurement: through ? 'meter' : measure,
     minCycles: optionNumber(parsed, 'cycles') ?? SWEEP_DEFAULTS.minCycles,

@@ -7,9 +7,10 @@
  */
 import type { RunKind } from '../../contract/contract';
 
-export const SWEEP_RANGE_DEFAULTS: Record<RunKind, { from: number; to: number; pointsPerDecade: number }> = {
-  ac: { from: 10, to: 100_000, pointsPerDecade: 10 },
-  dc: { from: 1e-3, to: 10, pointsPerDecade: 10 },
+export const SWEEP_RANGE_DEFAULTS: Record<RunKind, { from: number; to: number; pointsPerDecade: number; linearPoints: number }> = {
+  // linearPoints: as many as the log grid over the same range, so switching the spacing keeps the work the same.
+  ac: { from: 10, to: 100_000, pointsPerDecade: 10, linearPoints: 41 },
+  dc: { from: 1e-3, to: 10, pointsPerDecade: 10, linearPoints: 41 },
 };
 
 export const SWEEP_DEFAULTS = {

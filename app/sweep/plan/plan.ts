@@ -98,9 +98,12 @@ export function toPlanSummary(plan: SweepPlan): SweepPlanSummary {
 }
 
 function frequencyGrid(request: SweepRequest): Float64Array {
-  const log = logGrid(request.from, request.to, request.pointsPerDecade);
-  // Linear spacing keeps the same number of points as the log grid would have.
-  return request.spacing === 'linear' ? linearGrid(request.from, request.to, Math.max(2, log.length)) : log;
+  return request.spacing === 'linear' ? linearGrid(request.from, request.to, linearPointCount(request, request.from, request.to)) : logGrid(request.from, request.to, request.pointsPerDecade);
+}
+
+/** The points of a linear sweep: as asked, or for a run stored before `points` existed, as many as its log grid had. */
+function linearPointCount(request: SweepRequest, low: number, high: number): number {
+  return request.points ?? Math.max(2, logGrid(low, high, request.pointsPerDecade).length);
 }
 
 /** DC transfer levels: log-spaced in magnitude, keeping the sign of the limits (the log stage needs one polarity). */
@@ -108,7 +111,7 @@ function dcLevels(request: SweepRequest): Float64Array {
   const sign = Math.sign(request.from);
   const low = Math.min(Math.abs(request.from), Math.abs(request.to));
   const high = Math.max(Math.abs(request.from), Math.abs(request.to));
-  const magnitudes = request.spacing === 'linear' ? linearGrid(low, high, Math.max(2, logGrid(low, high, request.pointsPerDecade).length)) : logGrid(low, high, request.pointsPerDecade);
+  const magnitudes = request.spacing === 'linear' ? linearGrid(low, high, linearPointCount(request, low, high)) : logGrid(low, high, request.pointsPerDecade);
   return magnitudes.map((m) => sign * m);
 }
 

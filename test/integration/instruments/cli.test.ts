@@ -29,7 +29,7 @@ describe('rolloff sim / identify / query', () => {
     dir = mkdtempSync(join(tmpdir(), 'rolloff-cli-'));
     const designPath = join(dir, 'design.json');
     writeFileSync(designPath, JSON.stringify(TEST_DESIGN_JSON));
-    sim = spawn(process.execPath, [BIN, 'sim', '--design', designPath, '--tcp', '0', '--time-scale', '10'], { cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'] });
+    sim = spawn(process.execPath, [BIN, 'sim', '--design', designPath, '--port', '0', '--time-scale', '10'], { cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'] });
     sim.stdout!.on('data', (chunk: Buffer) => (simOutput += chunk.toString()));
     sim.stderr!.on('data', (chunk: Buffer) => (simOutput += chunk.toString()));
     const deadline = Date.now() + 20_000;
@@ -99,7 +99,7 @@ describe('rolloff sim / identify / query', () => {
     const noPort = rolloff('identify', 'serial:///dev/rolloff-no-such-port', '--bauds', '9600,19200');
     expect(noPort.status).toBe(2);
     expect(noPort.stderr).toMatch(/cannot open serial/);
-    const noDesign = rolloff('sim', '--tcp', '0');
+    const noDesign = rolloff('sim', '--port', '0');
     expect(noDesign.status).toBe(2);
     expect(noDesign.stderr).toMatch(/--design: is required/);
   });

@@ -92,7 +92,7 @@ describe('profile checker against the simulated bench', () => {
   });
 
   it('CLI: profile new writes a user profile to --profile-dir, list shows it, check names the refused operations and exits 3', async () => {
-    const made = await run(process.execPath, [BIN, 'profile', 'new', 'lab-scope', '--from', 'scpi-scope', '--profile-dir', folder]);
+    const made = await run(process.execPath, [BIN, 'profile', 'new', 'lab-scope', '--based-on', 'scpi-scope', '--profile-dir', folder]);
     expect(made.stdout).toContain(join(folder, 'lab-scope.json'));
     expect(JSON.parse(readFileSync(join(folder, 'lab-scope.json'), 'utf8')).operations.waveformData).toBe('TRACe:DATA? CH{channel}');
     const listed = await run(process.execPath, [BIN, 'profile', 'list', '--profile-dir', folder]);

@@ -1,5 +1,5 @@
 /**
- * The command line over a lab store: `rolloff demo --fast` sweeps into a
+ * The command line over a lab store: `rolloff demo --time-scale 20` sweeps into a
  * PostgreSQL database named with --db, `rolloff runs` on another process lists
  * what it stored, and the password (in the address) appears in no output. Two
  * benches sweeping at once each keep their own maximum stimulus.
@@ -35,7 +35,7 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
   const rolloff = (...args: string[]) => spawnSync(process.execPath, [BIN, ...args], { encoding: 'utf8', timeout: 90_000 });
 
   it('sweeps into the lab store and lists the runs from another process, never printing the password', async () => {
-    const demo = rolloff('demo', '--fast', '--db', cluster.urlWithPassword);
+    const demo = rolloff('demo', '--time-scale', '20', '--db', cluster.urlWithPassword);
     expect(demo.status, demo.stderr).toBe(0);
     expect(demo.stdout).toMatch(/gain-limit point/);
     const runs = rolloff('runs', '--db', cluster.urlWithPassword);

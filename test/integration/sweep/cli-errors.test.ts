@@ -27,6 +27,10 @@ describe('sweep command errors', () => {
     // DC defaults are theory --dc's (1 mV to 10 V): 10 V is a 20 Vpp excursion, above 1 Vpp; the error names --to.
     [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--dc'], /rolloff sweep: --to: a DC level of 10 V is a 20 Vpp excursion/],
     [['sweep', '--design', join(folder.path, 'missing.json'), '--simulated', '--max-amplitude', '1'], /--design: cannot read/],
+    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--linear', '--per-decade', '3'], /--per-decade: applies to log spacing\n.*--points N/],
+    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--points', '5'], /--points: applies to --linear sweeps/],
+    [['sweep', '--design', '7', '--simulated', '--max-amplitude', '1'], /--design: no stored design 7/],
+    [['build', 'add', '--design', design, '--label', 'x', '--actual', 'R9=1k'], /R9/],
     [['show', 'x1'], /RUN: "x1" is not a run number/],
   ])('%j is refused cleanly', (args, message) => {
     const result = spawnSync(process.execPath, [BIN, ...args, '--db', db], { encoding: 'utf8' });
@@ -41,6 +45,7 @@ describe('sweep command errors', () => {
     try {
       expect(await store.listRuns()).toEqual([]);
       expect(await store.listBuilds()).toEqual([]);
+      expect(await store.listDesigns()).toEqual([]);
     } finally {
       await store.close();
     }

@@ -1,5 +1,5 @@
 /**
- * `rolloff demo --fast` as a user runs it: completes well within a minute,
+ * `rolloff demo --time-scale 20` as a user runs it: completes well within a minute,
  * says the data is invented and simulated, and reports both builds'
  * gain-limit points within 10 % of their theory (loop gain 1, DEVELOPERS.md "Theory").
  */
@@ -16,7 +16,7 @@ describe('rolloff demo', () => {
 
   it('runs the invented scenario, labels it, and finds both gain-limit points', () => {
     const started = Date.now();
-    const result = spawnSync(process.execPath, [BIN, 'demo', '--fast', '--db', join(folder.path, 'demo.sqlite')], { encoding: 'utf8', timeout: 60_000 });
+    const result = spawnSync(process.execPath, [BIN, 'demo', '--time-scale', '20', '--db', join(folder.path, 'demo.sqlite')], { encoding: 'utf8', timeout: 60_000 });
     expect(result.status, result.stderr).toBe(0);
     expect(Date.now() - started).toBeLessThan(60_000);
     expect(result.stderr).toMatch(/^Safety:/);

@@ -260,7 +260,7 @@ describe.skipIf(!tools)('a full sweep over VXI-11 agrees with the same sweep ove
 describe.skipIf(!tools)('rolloff sim --vxi11', () => {
   it('prints the VXI-11 resource strings, answers on them, and leaves the portmapper clean when stopped', async () => {
     await ensurePortmapper();
-    const sim = await startSimProcess(['--design', join(__dirname, '../../../app/circuit/examples/inverting-lowpass.json'), '--tcp', '0', '--vxi11']);
+    const sim = await startSimProcess(['--design', join(__dirname, '../../../app/circuit/examples/inverting-lowpass.json'), '--port', '0', '--vxi11']);
     try {
       expect(sim.addresses.vxi11).toEqual({ generator: 'TCPIP::127.0.0.1::INSTR', meter: 'TCPIP::127.0.0.1::inst1::INSTR', scope: 'TCPIP::127.0.0.1::inst2::INSTR' });
       const session = await connect(sim.addresses.vxi11.scope!);

@@ -13,6 +13,7 @@ import { promisify } from 'node:util';
 import { afterAll, describe, expect, it } from 'vitest';
 import { analyzeStability, bandNoise, makeDesignFromTemplate, parseDesign, solveNoise } from '../../../app/circuit';
 import { logGrid } from '../../../app/units';
+import { SWEEP_RANGE_DEFAULTS } from '../../../app/sweep/plan/defaults';
 
 const BIN = resolve(__dirname, '../../../app/cli/bin.mjs');
 const dir = mkdtempSync(join(tmpdir(), 'rolloff-cli-noise-'));
@@ -75,8 +76,9 @@ describe('rolloff theory --noise', () => {
     const json = JSON.parse(result.stdout);
     expect(json.sources.map((s: { name: string }) => s.name)).toEqual(['RG', 'RF', 'U1_en', 'U1_in_minus']);
     expect(json.sources[2].vPerRtHz).toHaveLength(json.frequencyHz.length);
-    expect(json.band.fromHz).toBe(10);
-    expect(json.band.toHz).toBe(1e6);
+    // Without --band the band is the sweep, and the sweep is the one default of sweep and the Sweep view.
+    expect(json.band.fromHz).toBe(SWEEP_RANGE_DEFAULTS.ac.from);
+    expect(json.band.toHz).toBe(SWEEP_RANGE_DEFAULTS.ac.to);
     expect(json.stability[0].gainMarginDb).toBeNull();
     expect(json.warnings).toEqual([]);
   });

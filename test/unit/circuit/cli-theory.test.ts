@@ -11,7 +11,8 @@ import { join, resolve } from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, describe, expect, it } from 'vitest';
 import { parseDesign, solveAc } from '../../../app/circuit';
-import { logGrid } from '../../../app/units';
+import { formatEngineering, logGrid } from '../../../app/units';
+import { SWEEP_RANGE_DEFAULTS } from '../../../app/sweep/plan/defaults';
 
 const BIN = resolve(__dirname, '../../../app/cli/bin.mjs');
 const dir = mkdtempSync(join(tmpdir(), 'rolloff-cli-theory-'));
@@ -47,7 +48,7 @@ describe('rolloff template + theory', () => {
   it('summary names the gain-limit point, −3 dB frequencies and pass-band gain; the band adds columns', async () => {
     const path = join(dir, 'summary.json');
     await rolloff('template', 'non-inverting', '--out', path);
-    const summary = await rolloff('theory', path, '--summary');
+    const summary = await rolloff('theory', path, '--summary', '--to', '1meg');
     expect(summary.code).toBe(0);
     // 1 + RF/RG = 10 → 20 dB, less 0.0009 dB for A0 = 1e5 (finite-gain error, DEVELOPERS.md "Theory").
     expect(summary.stdout).toMatch(/Pass-band gain: +19\.999 dB/);
@@ -55,6 +56,21 @@ describe('rolloff template + theory', () => {
     expect(summary.stdout).toMatch(/−3 dB frequencies: +100 kHz/);
     const band = await rolloff('theory', path, '--csv', '--tolerance', '--samples', '50', '--seed', '3', '--per-decade', '1');
     expect(band.stdout.split('\n')[0]).toMatch(/band_low_db,band_high_db/);
+  });
+
+  it('without a range the AC response covers the sweep defaults of rolloff sweep and the Sweep view (one source)', async () => {
+    const path = join(dir, 'defaults.json');
+    await rolloff('template', 'inverting-lowpass', '--out', path);
+    const result = await rolloff('theory', path, '--csv');
+    expect(result.code).toBe(0);
+    const frequencies = result.stdout.trim().split('\n').slice(1).map((line) => Number(line.split(',')[0]));
+    const { from, to, pointsPerDecade } = SWEEP_RANGE_DEFAULTS.ac;
+    expect(frequencies[0]).toBe(from);
+    expect(frequencies.at(-1)).toBeCloseTo(to, 6);
+    expect(frequencies).toHaveLength(logGrid(from, to, pointsPerDecade).length);
+    const help = await rolloff('theory', '--help');
+    expect(help.stdout).toContain(`default ${formatEngineering(from, 'Hz')}`);
+    expect(help.stdout).toContain(`default ${pointsPerDecade};`);
   });
 
   it('DC transfer of the log stage as CSV', async () => {

@@ -95,7 +95,7 @@ describe('rolloff serve', () => {
   it('refuses bad options with a message and exit code 2', () => {
     const cases: Array<[string[], RegExp]> = [
       [['--port', '70000'], /--port 70000 is not a TCP port/],
-      [['--time-scale', '0', '--simulated'], /--time-scale 0 must be above 0/],
+      [['--time-scale', '0', '--simulated'], /--time-scale: 0 is not above 0/],
       [['--max-amplitude', '-1'], /--max-amplitude: -1 Vpp is not a positive amplitude/],
       [['--colour'], /--colour: unknown option/],
     ];

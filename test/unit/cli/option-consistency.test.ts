@@ -1,0 +1,103 @@
+/**
+ * One option, one meaning: every command's option list is walked, and an option
+ * name that means two things, a second name for one thing, or a default that
+ * differs between commands fails. The rules are the project's own (common
+ * practice, no source); the names come from app/cli/common-options.ts,
+ * app/cli/design-option.ts and the vocabulary table.
+ */
+import { describe, expect, it } from 'vitest';
+import { COMMANDS } from '../../../app/cli/commands';
+import type { CommandSpec, OptionSpec } from '../../../app/cli/args';
+import { DESIGN_PLACEHOLDER } from '../../../app/cli/design-option';
+import { SETTINGS } from '../../../app/contract/vocabulary';
+import { SIMULATED_BENCH_DEFAULTS } from '../../../app/sim';
+
+const uses = COMMANDS.flatMap((command) => command.options.map((option) => ({ command, option })));
+
+function withOption(name: string): Array<{ command: CommandSpec; option: OptionSpec }> {
+  return uses.filter((u) => u.option.name === name);
+}
+
+describe('command options', () => {
+  it('an option name has one kind, one placeholder and one default in every command', () => {
+    const problems: string[] = [];
+    for (const name of new Set(uses.map((u) => u.option.name))) {
+      const all = withOption(name);
+      const [first] = all;
+      for (const { command, option } of all.slice(1)) {
+        if (option.kind !== first.option.kind) problems.push(`--${name}: ${option.kind} in ${command.name}, ${first.option.kind} in ${first.command.name}`);
+        if (option.placeholder !== first.option.placeholder) problems.push(`--${name}: ${option.placeholder} in ${command.name}, ${first.option.placeholder} in ${first.command.name}`);
+      }
+      const defaults = all.filter((u) => u.option.defaultValue !== undefined);
+      for (const { command, option } of defaults.slice(1)) {
+        if (option.defaultValue !== defaults[0].option.defaultValue) problems.push(`--${name}: default ${option.defaultValue} in ${command.name}, ${defaults[0].option.defaultValue} in ${defaults[0].command.name}`);
+      }
+    }
+    expect(uses.length).toBeGreaterThan(100);
+    expect(problems).toEqual([]);
+  });
+
+  it('an old name kept for scripts is no other option\'s name, and no command has two options of one name', () => {
+    const names = new Set(uses.map((u) => u.option.name));
+    const problems: string[] = [];
+    for (const command of COMMANDS) {
+      const seen = new Set<string>();
+      for (const option of command.options) {
+        for (const name of [option.name, ...(option.aliases ?? [])]) {
+          if (seen.has(name)) problems.push(`${command.name}: --${name} twice`);
+          seen.add(name);
+        }
+        for (const alias of option.aliases ?? []) if (names.has(alias)) problems.push(`${command.name}: old name --${alias} of --${option.name} is another option elsewhere`);
+      }
+    }
+    expect(problems).toEqual([]);
+  });
+
+  it('a TCP port is --port PORT everywhere (the simulated bench and the window alike)', () => {
+    const ports = uses.filter((u) => u.option.placeholder === 'PORT' || u.option.name === 'port');
+    expect(ports.map((u) => u.command.name).sort()).toEqual(['serve', 'sim']);
+    for (const { command, option } of ports) expect([command.name, option.name, option.placeholder, option.kind]).toEqual([command.name, 'port', 'PORT', 'integer']);
+    expect(withOption('tcp')).toEqual([]);
+  });
+
+  it('a design is given the same way everywhere: a stored id or a file', () => {
+    const designs = withOption('design');
+    expect(designs.map((u) => u.command.name).sort()).toEqual(['build', 'schedule', 'sim', 'sweep']);
+    for (const { option } of designs) expect([option.kind, option.placeholder]).toEqual(['string', DESIGN_PLACEHOLDER]);
+    const theory = COMMANDS.find((c) => c.name === 'theory')!;
+    expect(theory.usage.startsWith(DESIGN_PLACEHOLDER)).toBe(true);
+  });
+
+  it('the simulated bench runs at one speed and one noise unless told otherwise, with one speed option', () => {
+    expect(withOption('fast')).toEqual([]);
+    const simulatedBenchCommands = COMMANDS.filter((c) => c.options.some((o) => o.name === 'simulated') || c.name === 'sim' || c.name === 'demo');
+    expect(simulatedBenchCommands.map((c) => c.name).sort()).toEqual(['demo', 'resume', 'schedule', 'serve', 'sim', 'sweep']);
+    for (const command of simulatedBenchCommands) {
+      expect(command.options.find((o) => o.name === 'time-scale')?.defaultValue, command.name).toBe(SIMULATED_BENCH_DEFAULTS.timeScale);
+      if (command.name !== 'demo') expect(command.options.find((o) => o.name === 'measurement-noise')?.defaultValue, command.name).toBe(SIMULATED_BENCH_DEFAULTS.measurementNoiseVrms);
+    }
+  });
+
+  it('the maximum stimulus has the table\'s option name and label everywhere it is set', () => {
+    const limits = withOption(SETTINGS.maxStimulus.cliOption);
+    expect(limits.length).toBeGreaterThanOrEqual(5);
+    for (const { command, option } of limits) {
+      expect(option.description.startsWith(SETTINGS.maxStimulus.label), command.name).toBe(true);
+      expect(option.description, command.name).toContain(SETTINGS.maxStimulus.explanation);
+    }
+  });
+
+  it('a linear sweep has its own --points; log and linear counts state their defaults and are not filled in', () => {
+    for (const { command } of withOption('linear')) {
+      const names = command.options.map((o) => o.name);
+      expect(names, command.name).toContain(SETTINGS.linearPoints.cliOption);
+      expect(names, command.name).toContain(SETTINGS.pointsPerDecade.cliOption);
+    }
+    for (const name of [SETTINGS.linearPoints.cliOption, SETTINGS.pointsPerDecade.cliOption]) {
+      for (const { command, option } of withOption(name)) {
+        expect(option.defaultValue, `${command.name} --${name}`).toBeUndefined();
+        expect(option.description, `${command.name} --${name}`).toMatch(/default \d+/);
+      }
+    }
+  });
+});
