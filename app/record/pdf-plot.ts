@@ -2,6 +2,7 @@
 import type PDFDocument from 'pdfkit';
 import { layoutPlot, type Frame, type PlotSpec, type XY } from './plot-spec';
 import type { PdfFontSet } from './pdf-fonts';
+import { TOLERANCE_BAND_OPACITY } from '../contract/plot-palette';
 
 type Doc = InstanceType<typeof PDFDocument>;
 
@@ -38,7 +39,7 @@ export function drawPdfPlot(doc: Doc, fonts: PdfFontSet, spec: PlotSpec, left: n
   for (const band of layout.bands) {
     for (const polygon of band.polygons) {
       doc.save();
-      doc.fillOpacity(0.45);
+      doc.fillOpacity(TOLERANCE_BAND_OPACITY);
       polyline(doc, polygon);
       doc.closePath().fill(band.color);
       doc.restore();
@@ -82,7 +83,7 @@ export function drawPdfPlot(doc: Doc, fonts: PdfFontSet, spec: PlotSpec, left: n
   layout.legend.forEach((entry, i) => {
     const y = frame.top + 6 + i * 11;
     doc.save();
-    if (entry.style === 'band') doc.fillOpacity(0.45).rect(legendLeft, y - 3, 14, 6).fill(entry.color);
+    if (entry.style === 'band') doc.fillOpacity(TOLERANCE_BAND_OPACITY).rect(legendLeft, y - 3, 14, 6).fill(entry.color);
     else if (entry.style === 'points') doc.circle(legendLeft + 7, y, 1.8).fill(entry.color);
     else {
       doc.lineWidth(1);

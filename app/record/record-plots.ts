@@ -11,19 +11,12 @@ import { FIGURE_NAMES } from '../contract/vocabulary';
 import { linearAxis, logAxis, type Axis } from './plot-axes';
 import type { ComparisonRecord, MaybeNumber, RunRecord } from './model';
 import type { PlotMarker, PlotSeries, PlotSpec } from './plot-spec';
+import { CURVE_NAMES, PLOT_PALETTE, runColour } from '../contract/plot-palette';
 
-export const PLOT_COLORS = {
-  measured: '#1f4fbf',
-  theory: '#202020',
-  ideal: '#8a8a8a',
-  band: '#9fd3a8',
-  measuredMarker: '#c0392b',
-  theoryMarker: '#6d6d6d',
-  gainLimit: '#b7720b',
-};
-
-/** Distinct colours for runs in a comparison, in order. */
-export const RUN_COLORS = ['#1f4fbf', '#c0392b', '#2e8b57', '#8e44ad', '#d35400', '#16a085', '#7a5c12', '#555555'];
+/** The window's palette and curve names (app/contract/plot-palette.ts). */
+const PLOT_COLORS = PLOT_PALETTE;
+const THEORY_NAME = `${CURVE_NAMES.theory} (actual circuit)`;
+const MEASURED_NAME = `${CURVE_NAMES.measured} ± uncertainty`;
 
 export function runPlots(record: RunRecord): PlotSpec[] {
   return record.run.kind === 'dc' ? [dcTransferPlot(record)] : [gainPlot(record), phasePlot(record)];
@@ -41,16 +34,16 @@ function stimulusAxis(record: RunRecord, extra: MaybeNumber[] = []): Axis {
 function gainMarkers(record: RunRecord): PlotMarker[] {
   const markers: PlotMarker[] = [];
   if (record.theory.gainLimitHz !== null) {
-    markers.push({ name: `${FIGURE_NAMES.gainLimitHz} (theory)`, color: PLOT_COLORS.gainLimit, x: record.theory.gainLimitHz, label: `gain limit ${formatEngineering(record.theory.gainLimitHz, 'Hz', 3)}` });
+    markers.push({ name: `${FIGURE_NAMES.gainLimitHz} (theory)`, color: PLOT_COLORS.gainLimitTheory, x: record.theory.gainLimitHz, label: `gain limit ${formatEngineering(record.theory.gainLimitHz, 'Hz', 3)}` });
   }
   if (record.figures.gainLimitHz !== undefined && record.figures.gainLimitHz !== null) {
-    markers.push({ name: `${FIGURE_NAMES.gainLimitHz} (measured)`, color: PLOT_COLORS.measuredMarker, x: record.figures.gainLimitHz, label: `meas. gain limit ${formatEngineering(record.figures.gainLimitHz, 'Hz', 3)}` });
+    markers.push({ name: `${FIGURE_NAMES.gainLimitHz} (measured)`, color: PLOT_COLORS.gainLimitMeasured, x: record.figures.gainLimitHz, label: `meas. gain limit ${formatEngineering(record.figures.gainLimitHz, 'Hz', 3)}` });
   }
   for (const f of record.theory.minus3dbHz) {
-    markers.push({ name: '−3 dB (theory)', color: PLOT_COLORS.theoryMarker, x: f, label: `−3 dB ${formatEngineering(f, 'Hz', 3)}` });
+    markers.push({ name: '−3 dB (theory)', color: PLOT_COLORS.minus3dbTheory, x: f, label: `−3 dB ${formatEngineering(f, 'Hz', 3)}` });
   }
   for (const f of record.figures.minus3dbHz ?? []) {
-    markers.push({ name: '−3 dB (measured)', color: PLOT_COLORS.measuredMarker, x: f, label: `meas. −3 dB ${formatEngineering(f, 'Hz', 3)}` });
+    markers.push({ name: '−3 dB (measured)', color: PLOT_COLORS.minus3dbMeasured, x: f, label: `meas. −3 dB ${formatEngineering(f, 'Hz', 3)}` });
   }
   return markers;
 }
@@ -59,14 +52,14 @@ function gainPlot(record: RunRecord): PlotSpec {
   const { points, theory } = record;
   const yValues = [...points.gainDb, ...theory.gainDb, ...(theory.bandLowDb ?? []), ...(theory.bandHighDb ?? [])];
   const series: PlotSeries[] = [];
-  if (theory.idealGainDb.some((v) => v !== null)) series.push({ name: 'Ideal op-amp', color: PLOT_COLORS.ideal, style: 'dashed', xs: theory.stimulus, ys: theory.idealGainDb });
-  if (theory.stimulus.length) series.push({ name: 'Theory (actual circuit)', color: PLOT_COLORS.theory, style: 'line', xs: theory.stimulus, ys: theory.gainDb });
-  series.push({ name: 'Measured ± uncertainty', color: PLOT_COLORS.measured, style: 'points', xs: points.stimulus, ys: points.gainDb, errors: points.gainUncertaintyDb });
+  if (theory.idealGainDb.some((v) => v !== null)) series.push({ name: CURVE_NAMES.ideal, color: PLOT_COLORS.ideal, style: 'dashed', xs: theory.stimulus, ys: theory.idealGainDb });
+  if (theory.stimulus.length) series.push({ name: THEORY_NAME, color: PLOT_COLORS.theory, style: 'line', xs: theory.stimulus, ys: theory.gainDb });
+  series.push({ name: MEASURED_NAME, color: PLOT_COLORS.measured, style: 'points', xs: points.stimulus, ys: points.gainDb, errors: points.gainUncertaintyDb });
   return {
     title: 'Gain',
     x: stimulusAxis(record),
     y: linearAxis(yValues, 'Gain (dB)', ''),
-    bands: theory.bandLowDb && theory.bandHighDb ? [{ name: 'Tolerance band', color: PLOT_COLORS.band, xs: theory.stimulus, lows: theory.bandLowDb, highs: theory.bandHighDb }] : [],
+    bands: theory.bandLowDb && theory.bandHighDb ? [{ name: CURVE_NAMES.toleranceBand, color: PLOT_COLORS.toleranceBand, xs: theory.stimulus, lows: theory.bandLowDb, highs: theory.bandHighDb }] : [],
     series,
     markers: gainMarkers(record),
   };
@@ -116,9 +109,9 @@ function phasePlot(record: RunRecord): PlotSpec {
   const idealPhase = alignToReference(unwrapColumn(theory.idealPhaseDeg, theory.stimulus), theory.stimulus, theory.stimulus, theoryPhase);
   const measuredPhase = alignToReference(unwrapColumn(points.phaseDeg, points.stimulus), points.stimulus, theory.stimulus, theoryPhase);
   const series: PlotSeries[] = [];
-  if (idealPhase.some((v) => v !== null)) series.push({ name: 'Ideal op-amp', color: PLOT_COLORS.ideal, style: 'dashed', xs: theory.stimulus, ys: idealPhase });
-  if (theory.stimulus.length) series.push({ name: 'Theory (actual circuit)', color: PLOT_COLORS.theory, style: 'line', xs: theory.stimulus, ys: theoryPhase });
-  series.push({ name: 'Measured ± uncertainty', color: PLOT_COLORS.measured, style: 'points', xs: points.stimulus, ys: measuredPhase, errors: points.phaseUncertaintyDeg });
+  if (idealPhase.some((v) => v !== null)) series.push({ name: CURVE_NAMES.ideal, color: PLOT_COLORS.ideal, style: 'dashed', xs: theory.stimulus, ys: idealPhase });
+  if (theory.stimulus.length) series.push({ name: THEORY_NAME, color: PLOT_COLORS.theory, style: 'line', xs: theory.stimulus, ys: theoryPhase });
+  series.push({ name: MEASURED_NAME, color: PLOT_COLORS.measured, style: 'points', xs: points.stimulus, ys: measuredPhase, errors: points.phaseUncertaintyDeg });
   return {
     title: 'Phase',
     x: stimulusAxis(record),
@@ -139,7 +132,7 @@ function dcTransferPlot(record: RunRecord): PlotSpec {
   const { points, dcFit } = record;
   const series: PlotSeries[] = [];
   if (dcFit) series.push({ name: 'Fitted curve', color: PLOT_COLORS.theory, style: 'line', xs: dcFit.inputV, ys: dcFit.outputV });
-  series.push({ name: 'Measured', color: PLOT_COLORS.measured, style: 'points', xs: points.stimulus, ys: points.outputV });
+  series.push({ name: CURVE_NAMES.measured, color: PLOT_COLORS.measured, style: 'points', xs: points.stimulus, ys: points.outputV });
   return {
     title: 'DC transfer',
     x: inputAxis([...points.stimulus, ...(dcFit?.inputV ?? [])]),
@@ -159,10 +152,10 @@ function overlayPlot(record: ComparisonRecord): PlotSpec {
   const series: PlotSeries[] = [];
   const first = record.runs[0];
   if (!dc && record.reference === 'theory' && first.theory.stimulus.length) {
-    series.push({ name: `Theory (run ${first.run.id})`, color: PLOT_COLORS.theory, style: 'dashed', xs: first.theory.stimulus, ys: first.theory.gainDb });
+    series.push({ name: `${CURVE_NAMES.theory} (run ${first.run.id})`, color: PLOT_COLORS.theory, style: 'dashed', xs: first.theory.stimulus, ys: first.theory.gainDb });
   }
   record.runs.forEach((run, i) => {
-    const color = RUN_COLORS[i % RUN_COLORS.length];
+    const color = runColour(i, record.runs.length);
     // Points are stored in measuring order (refinement points last); the line runs in stimulus order.
     const curve = curveSortedByX({ xs: run.points.stimulus, ys: dc ? run.points.outputV : run.points.gainDb });
     series.push({ name: runLegendName(run) + (run.run.id === record.reference ? ' (reference)' : ''), color, style: 'line', ...curve });
@@ -185,7 +178,7 @@ function differencePlot(record: ComparisonRecord): PlotSpec {
     const index = record.runs.findIndex((r) => r.run.id === difference.runId);
     const run = record.runs[index];
     const curve = curveSortedByX({ xs: difference.stimulus, ys: difference.deltaDb });
-    return { name: run ? runLegendName(run) : `Run ${difference.runId}`, color: RUN_COLORS[Math.max(0, index) % RUN_COLORS.length], style: 'line' as const, ...curve };
+    return { name: run ? runLegendName(run) : `Run ${difference.runId}`, color: runColour(Math.max(0, index), record.runs.length), style: 'line' as const, ...curve };
   });
   const xs = series.flatMap((s) => s.xs);
   const reference = record.reference === 'theory' ? 'theory' : `run ${record.reference}`;

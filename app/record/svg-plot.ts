@@ -1,5 +1,6 @@
 /** Renders a laid-out plot (plot-spec.ts) as inline SVG: vector paths, decade grid, legend. */
 import { escapeHtml } from './html-escape';
+import { TOLERANCE_BAND_OPACITY } from '../contract/plot-palette';
 import { layoutPlot, type PlotSpec, type XY } from './plot-spec';
 
 const WIDTH = 800;
@@ -39,7 +40,7 @@ export function svgPlot(spec: PlotSpec): string {
     out.push(`<line x1="${num(line.from.x)}" y1="${num(line.from.y)}" x2="${num(line.to.x)}" y2="${num(line.to.y)}" class="${line.major ? 'grid-major' : 'grid-minor'}"/>`);
   }
   for (const band of layout.bands) {
-    for (const polygon of band.polygons) out.push(`<polygon points="${pointsAttr(polygon)}" fill="${band.color}" fill-opacity="0.45" stroke="none"/>`);
+    for (const polygon of band.polygons) out.push(`<polygon points="${pointsAttr(polygon)}" fill="${band.color}" fill-opacity="${TOLERANCE_BAND_OPACITY}" stroke="none"/>`);
   }
   for (const line of layout.lines) {
     for (const path of line.paths) out.push(`<polyline points="${pointsAttr(path)}" fill="none" stroke="${line.color}" stroke-width="1.5"${line.dashed ? ' stroke-dasharray="5 3"' : ''}/>`);
@@ -63,7 +64,7 @@ export function svgPlot(spec: PlotSpec): string {
   const legendX = FRAME.left + FRAME.width + 14;
   layout.legend.forEach((entry, i) => {
     const y = FRAME.top + 8 + i * 16;
-    if (entry.style === 'band') out.push(`<rect x="${legendX}" y="${y - 5}" width="18" height="10" fill="${entry.color}" fill-opacity="0.45"/>`);
+    if (entry.style === 'band') out.push(`<rect x="${legendX}" y="${y - 5}" width="18" height="10" fill="${entry.color}" fill-opacity="${TOLERANCE_BAND_OPACITY}"/>`);
     else if (entry.style === 'points') out.push(`<circle cx="${legendX + 9}" cy="${y}" r="3" fill="${entry.color}"/>`);
     else out.push(`<line x1="${legendX}" y1="${y}" x2="${legendX + 18}" y2="${y}" stroke="${entry.color}" stroke-width="1.5"${entry.style === 'line' ? '' : ' stroke-dasharray="4 2"'}/>`);
     const shown = entry.name.length > LEGEND_CHARACTERS ? `${entry.name.slice(0, LEGEND_CHARACTERS - 1)}…` : entry.name;

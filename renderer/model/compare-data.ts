@@ -13,8 +13,5 @@ export function compareColumns(comparison: Comparison): { overlay: AlignedColumn
   return { overlay, difference };
 }
 
-/** Distinct hues around the colour wheel, dark enough to read on the light plot background. */
-export function runColor(index: number, count: number): string {
-  const hue = Math.round((index * 360) / Math.max(1, count) + 20) % 360;
-  return `hsl(${hue}, 70%, ${index % 2 === 0 ? 38 : 46}%)`;
-}
+/** The run colours of the records too (app/contract/plot-palette.ts). */
+export { runColour as runColor } from '../../app/contract/plot-palette';

@@ -10,6 +10,7 @@ import { alignSeries } from '../model/aligned-series';
 import { formatHz } from '../model/format';
 import { h } from '../dom';
 import { FrequencyChart, type Marker } from './frequency-chart';
+import { AC_GAIN_BANDS, AC_GAIN_SERIES, AC_PHASE_SERIES, DC_TRANSFER_SERIES, PLOT_COLORS } from './bode-series';
 
 export interface MeasuredColumns {
   stimulus: number[];
@@ -26,16 +27,7 @@ export interface MarkerSet {
   measuredMinus3dbHz?: number[];
 }
 
-export const PLOT_COLORS = {
-  theory: '#1d4f91',
-  band: 'rgba(29, 79, 145, 0.14)',
-  bandEdge: 'rgba(29, 79, 145, 0.35)',
-  ideal: '#7d8790',
-  measured: '#c25e00',
-  distorted: '#c0132d',
-  gainLimit: '#6b2fa3',
-  corner: '#0b7a55',
-};
+export { PLOT_COLORS } from './bode-series';
 
 export class BodePlot {
   readonly element: HTMLElement;
@@ -59,26 +51,15 @@ export class BodePlot {
         yLabel: 'Gain (dB)',
         yUnit: 'dB',
         height: 300,
-        series: [
-          { label: 'Theory', color: PLOT_COLORS.theory, kind: 'line' },
-          { label: 'Band high', color: PLOT_COLORS.bandEdge, kind: 'band-edge' },
-          { label: 'Band low', color: PLOT_COLORS.bandEdge, kind: 'band-edge' },
-          { label: 'Ideal op-amp', color: PLOT_COLORS.ideal, kind: 'dashed' },
-          { label: 'Measured', color: PLOT_COLORS.measured, kind: 'points-line' },
-          { label: 'Distorted', color: PLOT_COLORS.distorted, kind: 'points', pointSize: 12 },
-        ],
-        bands: [{ high: 2, low: 3, fill: PLOT_COLORS.band }],
+        series: AC_GAIN_SERIES,
+        bands: AC_GAIN_BANDS,
       });
       this.phaseChart = new FrequencyChart(phaseHost, {
         yLabel: 'Phase (°)',
         yUnit: '°',
         height: 200,
         markerLabels: false,
-        series: [
-          { label: 'Theory', color: PLOT_COLORS.theory, kind: 'line' },
-          { label: 'Ideal op-amp', color: PLOT_COLORS.ideal, kind: 'dashed' },
-          { label: 'Measured', color: PLOT_COLORS.measured, kind: 'points-line' },
-        ],
+        series: AC_PHASE_SERIES,
       });
     } else {
       this.gainChart = new FrequencyChart(gainHost, {
@@ -89,11 +70,7 @@ export class BodePlot {
         xLinear: false,
         xUnit: 'V',
         xLabel: 'Input level',
-        series: [
-          { label: 'Theory', color: PLOT_COLORS.theory, kind: 'line' },
-          { label: 'Measured', color: PLOT_COLORS.measured, kind: 'points-line' },
-          { label: 'Distorted', color: PLOT_COLORS.distorted, kind: 'points', pointSize: 12 },
-        ],
+        series: DC_TRANSFER_SERIES,
       });
     }
   }
@@ -178,9 +155,9 @@ export class BodePlot {
     const lines: Marker[] = [];
     const { theoryGainLimitHz, measuredGainLimitHz, theoryMinus3dbHz = [], measuredMinus3dbHz = [] } = this.markers;
     if (theoryGainLimitHz !== undefined) lines.push({ xHz: theoryGainLimitHz, label: `gain limit (theory) ${formatHz(theoryGainLimitHz)}`, color: PLOT_COLORS.gainLimit });
-    if (measuredGainLimitHz !== undefined) lines.push({ xHz: measuredGainLimitHz, label: `gain limit (measured) ${formatHz(measuredGainLimitHz)}`, color: PLOT_COLORS.measured });
-    for (const hz of theoryMinus3dbHz) lines.push({ xHz: hz, label: `−3 dB (theory) ${formatHz(hz)}`, color: PLOT_COLORS.corner });
-    for (const hz of measuredMinus3dbHz) lines.push({ xHz: hz, label: `−3 dB (measured) ${formatHz(hz)}`, color: PLOT_COLORS.measured });
+    if (measuredGainLimitHz !== undefined) lines.push({ xHz: measuredGainLimitHz, label: `gain limit (measured) ${formatHz(measuredGainLimitHz)}`, color: PLOT_COLORS.gainLimitMeasured });
+    for (const hz of theoryMinus3dbHz) lines.push({ xHz: hz, label: `−3 dB (theory) ${formatHz(hz)}`, color: PLOT_COLORS.minus3dbTheory });
+    for (const hz of measuredMinus3dbHz) lines.push({ xHz: hz, label: `−3 dB (measured) ${formatHz(hz)}`, color: PLOT_COLORS.minus3dbMeasured });
     return lines;
   }
 

@@ -7,6 +7,7 @@
 import uPlot from 'uplot';
 import type { AlignedColumns } from '../model/aligned-series';
 import { formatEngineering, formatFixed, withTrueMinus } from '../../app/units';
+import { PLOT_PALETTE } from '../../app/contract/plot-palette';
 import { placeMarkerLabels } from '../../app/plot-layout/marker-label-placement';
 
 /** The marker labels' font, as styles.css sets it on .marker-label (measured on the canvas to place them). */
@@ -24,6 +25,8 @@ export interface SeriesStyle {
   kind: 'line' | 'points' | 'points-line' | 'band-edge' | 'dashed';
   width?: number;
   pointSize?: number;
+  /** false: drawn, but no legend entry (the lower edge of a band the upper edge names). */
+  inLegend?: boolean;
 }
 
 export interface Marker {
@@ -76,21 +79,24 @@ export class FrequencyChart {
       axes: [
         {
           label: options.xLabel ?? 'Frequency',
-          stroke: '#33404d',
-          grid: { stroke: '#dde3e8', width: 1 },
-          ticks: { stroke: '#b9c3cc', width: 1 },
+          stroke: PLOT_PALETTE.axis,
+          grid: { stroke: PLOT_PALETTE.grid, width: 1 },
+          ticks: { stroke: PLOT_PALETTE.tick, width: 1 },
           values: (_u, splits) => splits.map((v) => (v == null ? '' : formatEngineering(v, xUnit, 3))),
         },
         {
           label: options.yLabel,
-          stroke: '#33404d',
-          grid: { stroke: '#dde3e8', width: 1 },
-          ticks: { stroke: '#b9c3cc', width: 1 },
+          stroke: PLOT_PALETTE.axis,
+          grid: { stroke: PLOT_PALETTE.grid, width: 1 },
+          ticks: { stroke: PLOT_PALETTE.tick, width: 1 },
           values: (_u, splits) => splits.map((v) => (v == null ? '' : withTrueMinus(`${Number(v.toPrecision(4))}`))),
           size: 56,
         },
       ],
-      series: [{ label: options.xLinear ? 'Input' : 'Frequency', value: (_u, v) => (v == null ? '—' : formatEngineering(v, xUnit, 4)) }, ...options.series.map((style) => seriesOptions(style, options.yUnit))],
+      series: [
+        { label: options.xLinear ? 'Input' : 'Frequency', value: (_u, v) => (v == null ? '—' : formatEngineering(v, xUnit, 4)) },
+        ...options.series.map((style) => ({ ...seriesOptions(style, options.yUnit), ...(style.inLegend === false ? { class: 'not-in-legend' } : {}) })),
+      ],
       bands: (options.bands ?? []).map((band) => ({ series: [band.high, band.low] as [number, number], fill: band.fill })),
       hooks: {
         draw: [(u) => this.drawMarkers(u)],

@@ -16,6 +16,7 @@ import type { Page } from 'playwright-core';
 import { launchChromium } from './helpers/chromium';
 import { requireTool } from '../helpers/required-tool';
 import { startServe, type ServeProcess } from './helpers/serve-process';
+import { CURVE_NAMES } from '../../app/contract/plot-palette';
 
 const ARTIFACTS = resolve(__dirname, '../artifacts');
 
@@ -94,6 +95,10 @@ describe.skipIf(!requireTool('chromium'))('the window in Chromium against rollof
     await expect.poll(() => gainLimit.textContent()).not.toBe(before);
     await page.locator('input[data-part-input="RF value (Ω)"]').fill('100k');
     await expect.poll(() => gainLimit.textContent()).toBe(before);
+    // The template's parts have tolerances, so the theory plot shows the band: one legend entry for it, as in the records.
+    const legendEntries = page.locator('[data-chart="gain"] .u-legend .u-series:visible');
+    await expect.poll(() => legendEntries.filter({ hasText: CURVE_NAMES.toleranceBand }).count()).toBe(1);
+    expect(await legendEntries.filter({ hasText: /Band (high|low)|lower edge/ }).count()).toBe(0);
     await page.getByTestId('design-name').fill('Gain −100 stage (invented example)');
     await page.getByTestId('save-design').click();
     await expect.poll(() => page.getByTestId('design-saved-state').textContent()).toMatch(/Saved as #1/);
