@@ -25,7 +25,7 @@ export { logStageIdeal } from './log-stage';
 export { thermalVoltageV, BOLTZMANN_J_PER_K, ELEMENTARY_CHARGE_C } from './thermal-voltage';
 export { monteCarloAc, TOLERANCE_BAND_SETTINGS, type MonteCarloOptions, type MonteCarloBand, type ToleranceDistribution } from './monte-carlo';
 export { slowestTimeConstantS, circuitPoles, type Poles } from './time-constant';
-export { TEMPLATES, makeDesignFromTemplate, type DesignFile } from './templates';
+export { TEMPLATES, makeDesignFromTemplate, templateParameterText, type DesignFile } from './templates';
 export { toSpiceNetlist, spiceNames, type SpiceAnalysis, type SpiceOptions, type SpiceNames } from './spice-netlist';
 export { openLoopGainAt } from './opamp-gain';
 export { outputOpAmpIndex } from './output-opamp';

@@ -116,6 +116,44 @@ export const SETTINGS = {
   },
 } as const;
 
+/**
+ * Op-amp and diode model parameters as people read and type them: the design
+ * file keeps SI units (app/circuit/types.ts); a parameter with `perSi` is shown
+ * and entered in the trade's unit instead (slew rate in V/µs: 0.5 V/µs is
+ * 500 000 V/s in the file).
+ */
+export interface ModelParameterName {
+  /** Key in the design file's model object. */
+  key: string;
+  label: string;
+  /** Short symbol for tables, as on a data sheet. */
+  symbol: string;
+  /** The unit people read, already prefixed where perSi is set. */
+  unit: string;
+  /** Shown value = design-file value × perSi. */
+  perSi?: number;
+}
+
+export const OPAMP_MODEL_PARAMETERS: ModelParameterName[] = [
+  { key: 'openLoopGain', label: 'Open-loop gain A0', symbol: 'A0', unit: 'V/V' },
+  { key: 'gbw', label: 'Gain-bandwidth', symbol: 'GBW', unit: 'Hz' },
+  { key: 'slewRate', label: 'Slew rate', symbol: 'SR', unit: 'V/µs', perSi: 1e-6 },
+  { key: 'secondPoleHz', label: 'Second pole', symbol: '2nd pole', unit: 'Hz' },
+  { key: 'inputOffsetV', label: 'Input offset voltage', symbol: 'Vos', unit: 'V' },
+  { key: 'inputBiasA', label: 'Input bias current', symbol: 'Ib', unit: 'A' },
+  { key: 'voltageNoiseVPerRtHz', label: 'Input voltage noise', symbol: 'en', unit: 'V/√Hz' },
+  { key: 'voltageNoiseCornerHz', label: 'Voltage noise 1/f corner', symbol: 'en 1/f corner', unit: 'Hz' },
+  { key: 'currentNoiseAPerRtHz', label: 'Input current noise', symbol: 'in', unit: 'A/√Hz' },
+  { key: 'currentNoiseCornerHz', label: 'Current noise 1/f corner', symbol: 'in 1/f corner', unit: 'Hz' },
+  { key: 'outputResistanceOhm', label: 'Output resistance', symbol: 'Ro', unit: 'Ω' },
+];
+
+export const DIODE_MODEL_PARAMETERS: ModelParameterName[] = [
+  { key: 'is', label: 'Saturation current IS', symbol: 'IS', unit: 'A' },
+  { key: 'n', label: FIGURE_NAMES.diodeIdealityN, symbol: 'n', unit: '' },
+  { key: 'rs', label: 'Series resistance RS', symbol: 'RS', unit: 'Ω' },
+];
+
 /** How the output was read: the scope gives its peak, the meter its RMS, a DC run its DC level. */
 export type OutputReading = 'peak' | 'rms' | 'dc';
 

@@ -1,10 +1,10 @@
 /** The content of a run record, in reading order (see record-document.ts). */
-import { formatEngineering, formatFixed, parseEngineering } from '../units';
+import { formatEngineering, formatFixed, formatInUnit, parseEngineering } from '../units';
 import type { Block, RecordDocument } from './record-document';
 import type { RecordDesign, RunRecord } from './model';
 import { runPlots } from './record-plots';
 import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatUncertainty, formatVolts, idnText, offlinePeriodsText, verdictHeadline } from './record-formatting';
-import { FIGURE_NAMES, SETTINGS, pointCountText } from '../contract/vocabulary';
+import { DIODE_MODEL_PARAMETERS, FIGURE_NAMES, OPAMP_MODEL_PARAMETERS, SETTINGS, pointCountText } from '../contract/vocabulary';
 
 export const SIMULATED_BANNER = 'SIMULATED BENCH — these readings come from the simulated bench and describe a computed circuit, not a physical board.';
 
@@ -69,18 +69,18 @@ interface DesignPartView {
   modelText: string | null;
 }
 
-/** Op-amp and diode model fields (app/circuit design file) with their units, for the parts table. */
-const MODEL_FIELDS: Array<[string, string, string]> = [
-  ['openLoopGain', 'A0', ''], ['gbw', 'GBW', 'Hz'], ['slewRate', 'SR', 'V/s'], ['secondPoleHz', '2nd pole', 'Hz'],
-  ['inputOffsetV', 'Vos', 'V'], ['inputBiasA', 'Ib', 'A'],
-  ['voltageNoiseVPerRtHz', 'en', 'V/√Hz'], ['voltageNoiseCornerHz', 'en 1/f corner', 'Hz'],
-  ['currentNoiseAPerRtHz', 'in', 'A/√Hz'], ['currentNoiseCornerHz', 'in 1/f corner', 'Hz'], ['outputResistanceOhm', 'Ro', 'Ω'], ['is', 'IS', 'A'], ['n', 'N', ''], ['rs', 'RS', 'Ω'],
-];
+/** Op-amp and diode model fields with the names and units people read (app/contract/vocabulary.ts). */
+const MODEL_FIELDS = [...OPAMP_MODEL_PARAMETERS, ...DIODE_MODEL_PARAMETERS];
 
 function modelText(model: unknown): string | null {
   if (!model || typeof model !== 'object') return null;
   const m = model as Record<string, unknown>;
-  const fields = MODEL_FIELDS.filter(([key]) => typeof m[key] === 'number').map(([key, name, unit]) => `${name} ${formatEngineering(m[key] as number, unit)}`);
+  const fields = MODEL_FIELDS.filter(({ key }) => typeof m[key] === 'number').map((p) => {
+    const value = m[p.key] as number;
+    // A0 is a plain ratio: 100000, not "100 kV/V".
+    const text = p.perSi !== undefined ? formatInUnit(value, p.perSi, p.unit) : p.unit === 'V/V' ? formatInUnit(value, 1, '') : formatEngineering(value, p.unit);
+    return `${p.symbol} ${text}`;
+  });
   if (Array.isArray(m.rails)) fields.push(`rails ${m.rails.map((v) => formatEngineering(Number(v), 'V')).join(' / ')}`);
   if (m.ideal === true) fields.push('ideal');
   return fields.length ? fields.join(', ') : null;

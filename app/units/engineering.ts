@@ -104,3 +104,13 @@ export function formatEngineering(value: number, unit = '', significantDigits = 
   const text = withTrueMinus(rounded.toString());
   return `${text} ${entry[1]}${unit}`.trimEnd();
 }
+
+/**
+ * A value in a unit that carries its own prefix, as the trade writes some
+ * quantities (slew rate in V/µs): the SI value times perSi, no further prefix,
+ * e.g. formatInUnit(5e5, 1e-6, 'V/µs') → "0.5 V/µs".
+ */
+export function formatInUnit(valueSi: number, perSi: number, unit: string, significantDigits = 4): string {
+  const shown = withTrueMinus(String(Number((valueSi * perSi).toPrecision(significantDigits))));
+  return unit ? `${shown} ${unit}` : shown;
+}

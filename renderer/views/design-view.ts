@@ -6,15 +6,15 @@
  */
 import { UserError } from '../../app/errors';
 import type { BuildRecord, DesignRecord, RolloffClient, TemplateInfo, TheoryColumns } from '../../app/contract/contract';
-import { logGrid, parseEngineering, formatEngineering, formatFixed } from '../../app/units';
-import { analyzeStability, monteCarloAc, parseDesign, solveAc, stabilityWarnings, summarizeAc, TOLERANCE_BAND_SETTINGS } from '../../app/circuit';
+import { logGrid, parseEngineering, formatEngineering, formatFixed, formatInUnit } from '../../app/units';
+import { analyzeStability, monteCarloAc, parseDesign, solveAc, stabilityWarnings, summarizeAc, templateParameterText, TOLERANCE_BAND_SETTINGS } from '../../app/circuit';
 import { debounce, field, h, replaceChildren } from '../dom';
 import { formatDb, formatHz } from '../model/format';
 import { guarded, showError, showInfo } from '../notices';
 import { BodePlot } from '../plot/bode-plot';
 import type { View } from '../shell';
 import type { AppState } from '../state';
-import { FIGURE_NAMES } from '../../app/contract/vocabulary';
+import { DIODE_MODEL_PARAMETERS, FIGURE_NAMES, OPAMP_MODEL_PARAMETERS, type ModelParameterName } from '../../app/contract/vocabulary';
 
 /** The display range of the Design view's theory plot: wide enough for audio and instrumentation stages. */
 const THEORY_FROM_HZ = 1;
@@ -24,16 +24,9 @@ const THEORY_POINTS_PER_DECADE = 30;
 type DraftPart = Record<string, unknown> & { id: string; type: string; nodes: string[] };
 type Draft = Record<string, unknown> & { name: string; parts: DraftPart[] };
 
-const OPAMP_FIELDS: Array<{ key: string; label: string; unit: string }> = [
-  { key: 'openLoopGain', label: 'Open-loop gain A0', unit: 'V/V' },
-  { key: 'gbw', label: 'Gain-bandwidth', unit: 'Hz' },
-  { key: 'slewRate', label: 'Slew rate', unit: 'V/s' },
-];
-const DIODE_FIELDS: Array<{ key: string; label: string; unit: string }> = [
-  { key: 'is', label: 'Saturation current IS', unit: 'A' },
-  { key: 'n', label: FIGURE_NAMES.diodeIdealityN, unit: '' },
-  { key: 'rs', label: 'Series resistance RS', unit: 'Ω' },
-];
+/** The op-amp model fields edited here; names, units and the V/µs of the slew rate from the one table. */
+const OPAMP_FIELDS = OPAMP_MODEL_PARAMETERS.filter((p) => ['openLoopGain', 'gbw', 'slewRate'].includes(p.key));
+const DIODE_FIELDS = DIODE_MODEL_PARAMETERS;
 
 export class DesignView implements View {
   readonly id = 'design' as const;
@@ -134,7 +127,7 @@ export class DesignView implements View {
     replaceChildren(
       this.templateParams,
       (template?.parameters ?? []).map((p) =>
-        field(`${p.name}${p.unit ? ` (${p.unit})` : ''}`, h('input', { type: 'text', name: `template-${p.name}`, 'data-param': p.name, value: parameterText(p.defaultValue, p.unit), title: p.description }), p.description),
+        field(`${p.name}${p.unit ? ` (${p.unit})` : ''}`, h('input', { type: 'text', name: `template-${p.name}`, 'data-param': p.name, value: templateParameterText(p.defaultValue, p.unit), title: p.description }), p.description),
       ),
     );
     if (template) this.templateParams.prepend(h('p', { className: 'hint' }, template.description));
@@ -203,10 +196,12 @@ export class DesignView implements View {
       }
       const model = (part.model ?? {}) as Record<string, unknown>;
       const fields = part.type === 'opamp' ? OPAMP_FIELDS : DIODE_FIELDS;
+      // A field in the trade's unit (slew rate in V/µs) shows and takes that unit; the file keeps SI.
+      const shown = (f: ModelParameterName, value: number) => (f.perSi !== undefined ? formatInUnit(value, f.perSi, '', 6) : formatEngineering(value, '', 6).replace(' ', ''));
       const inputs = fields.map((f) =>
-        field(`${f.label}${f.unit ? ` (${f.unit})` : ''}`, this.numberInput(model[f.key] === undefined ? '' : formatEngineering(Number(model[f.key]), '', 6).replace(' ', ''), `${part.id} ${f.label}`, (text) => {
+        field(`${f.label}${f.unit ? ` (${f.unit})` : ''}`, this.numberInput(model[f.key] === undefined ? '' : shown(f, Number(model[f.key])), `${part.id} ${f.label}`, (text) => {
           if (text.trim() === '') delete model[f.key];
-          else model[f.key] = parseEngineering(text, `${part.id} ${f.key}`);
+          else model[f.key] = parseEngineering(text, `${part.id} ${f.label} (${f.unit})`) / (f.perSi ?? 1);
         })),
       );
       if (part.type === 'opamp') {
@@ -318,8 +313,4 @@ export class DesignView implements View {
 }
 
 
-/** Part values read best with SI prefixes (15n, 4.7k); plain ratios such as a 0.01 tolerance do not ("10m"). */
-function parameterText(value: number, unit: string): string {
-  const prefixed = ['Ω', 'F', 'H', 'Hz', 'A', 'V/s', 'V/V'].includes(unit) || Math.abs(value) >= 1e4 || (value !== 0 && Math.abs(value) < 1e-3);
-  return prefixed ? formatEngineering(value, '', 6).replace(' ', '') : String(value);
-}
+

@@ -23,7 +23,7 @@ const PER_DECADE = 40;
 const REPEATS = 3;
 
 const design: Design = parseDesign(
-  makeDesignFromTemplate('sallen-key-lowpass-unity', { resistorTolerance: 0.01, capacitorTolerance: 0.05 }),
+  makeDesignFromTemplate('sallen-key-lowpass-unity', { rtol: 0.01, ctol: 0.05 }),
   'sallen-key-lowpass-unity',
 );
 const frequencies = logGrid(FROM_HZ, TO_HZ, PER_DECADE);

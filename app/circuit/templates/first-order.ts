@@ -1,7 +1,8 @@
 /** Single-op-amp first-order stages: inverting variants, non-inverting, integrator, differentiator. */
-import { capacitor, designFile, opamp, OPAMP_PARAMETERS, resistor, TOLERANCE_PARAMETERS, type DesignTemplate } from './template-kit';
+import { capacitor, designFile, opamp, OPAMP_PARAMETERS, resistor, type DesignTemplate } from './template-kit';
 
-const common = [...OPAMP_PARAMETERS, ...TOLERANCE_PARAMETERS];
+// Tolerance parameters are added for the part kinds each template has (templates/index.ts).
+const common = OPAMP_PARAMETERS;
 
 export const invertingGain: DesignTemplate = {
   id: 'inverting-gain',

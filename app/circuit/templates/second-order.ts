@@ -3,9 +3,10 @@
  * high-pass) and the multiple-feedback band-pass. The f0 and Q in each
  * description are what test/unit/circuit checks against the solver.
  */
-import { capacitor, designFile, opamp, OPAMP_PARAMETERS, resistor, TOLERANCE_PARAMETERS, type DesignTemplate } from './template-kit';
+import { capacitor, designFile, opamp, OPAMP_PARAMETERS, resistor, type DesignTemplate } from './template-kit';
 
-const common = [...OPAMP_PARAMETERS, ...TOLERANCE_PARAMETERS];
+// Tolerance parameters are added for the part kinds each template has (templates/index.ts).
+const common = OPAMP_PARAMETERS;
 
 export const sallenKeyLowPassUnity: DesignTemplate = {
   id: 'sallen-key-lowpass-unity',

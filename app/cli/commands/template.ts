@@ -4,8 +4,8 @@
  */
 import { writeFileSync } from 'node:fs';
 import { UserError, ValidationError } from '../../errors';
-import { formatEngineering, parseEngineering } from '../../units';
-import { makeDesignFromTemplate, parseDesign, TEMPLATES } from '../../circuit';
+import { parseEngineering } from '../../units';
+import { makeDesignFromTemplate, parseDesign, templateParameterText, TEMPLATES } from '../../circuit';
 import { optionFlag, optionString, type CommandSpec, type ParsedArgs } from '../args';
 
 export const templateCommand: CommandSpec = {
@@ -13,7 +13,7 @@ export const templateCommand: CommandSpec = {
   summary: 'List design templates, show their parameters, or write a design file from one',
   usage: '[ID] [--param name=value ...] [--out FILE]',
   options: [
-    { name: 'param', kind: 'string', placeholder: 'NAME=VALUE', repeatable: true, description: 'set a template parameter (SI units, engineering notation: rf=10k, cf=15n)' },
+    { name: 'param', kind: 'string', placeholder: 'NAME=VALUE', repeatable: true, description: 'set a template parameter (SI units, engineering notation: rf=10k, cf=15n; the slew rate sr in V/µs)' },
     { name: 'out', kind: 'string', placeholder: 'PATH', description: 'write the design file here instead of printing it' },
     { name: 'force', kind: 'flag', description: 'allow --out to replace an existing file' },
     { name: 'info', kind: 'flag', description: 'show the template\'s parameters and defaults instead of writing a design' },
@@ -79,7 +79,7 @@ function parameterTable(id: string): string {
   const width = Math.max(...template.parameters.map((p) => p.name.length)) + 2;
   const lines = [template.title, '', template.description, '', 'Parameters (--param name=value):'];
   for (const p of template.parameters) {
-    const value = p.unit === '' || p.unit === 'V/V' ? String(p.defaultValue) : formatEngineering(p.defaultValue, p.unit);
+    const value = templateParameterText(p.defaultValue, p.unit, { withUnit: true });
     lines.push(`  ${p.name.padEnd(width)}${value.padEnd(12)}${p.description}`);
   }
   return lines.join('\n') + '\n';

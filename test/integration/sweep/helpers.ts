@@ -13,7 +13,7 @@ export function tempFolder(): { path: string; remove(): void } {
 
 /** Inverting stage, gain −RF/RN = −100, single-pole op-amp A0 = 1e5, GBW = 1 MHz (template defaults otherwise). */
 export function invertingGain100(): unknown {
-  return makeDesignFromTemplate('inverting-gain', { rn: 1e3, rf: 100e3, gbw: 1e6, openLoopGain: 1e5 });
+  return makeDesignFromTemplate('inverting-gain', { rn: 1e3, rf: 100e3, gbw: 1e6, a0: 1e5 });
 }
 
 export function sweepRequest(buildId: number, overrides: Partial<SweepRequest> = {}): SweepRequest {

@@ -80,7 +80,7 @@ describe('DC transfer sweep of the log stage', () => {
 
   beforeAll(async () => {
     service = await openServiceAt(join(folder.path, 'dc.sqlite'), { maxStimulusVpp: 20, simulatedBench: { timeScale: 50, noiseVrms: 1e-4 } });
-    const design = await service.saveDesign(makeDesignFromTemplate('log-stage', { r: R_OHM, is: IS_A, n: 1, rs: 0 }));
+    const design = await service.saveDesign(makeDesignFromTemplate('log-stage', { r1: R_OHM, is: IS_A, n: 1, rs: 0 }));
     const buildId = (await service.createBuild({ designId: design.id, label: 'log', notes: '', actualValues: {} })).id;
     await service.startSimulatedBenchForBuild(buildId);
     const run = await service.startRun(sweepRequest(buildId, { kind: 'dc', from: 1e-3, to: 10, pointsPerDecade: 4, refine: false, averages: 2 }));
@@ -105,7 +105,7 @@ describe('DC transfer sweep of the log stage', () => {
     // The fit assumes an ideal op-amp and I = Vin/R. The bench has the generator's 50 Ω in series with R and an
     // op-amp with A0 = 1e5, whose −Vout/A0 at the inverting node shifts low-input points (DEVELOPERS.md "Theory": deviation at low
     // input). Expected values: the same fit applied to the theory engine's noise-free DC transfer of that circuit.
-    const benchCircuit = parseDesign(makeDesignFromTemplate('log-stage', { r: R_OHM + SIM_SOURCE_IMPEDANCE_OHM, is: IS_A, n: 1, rs: 0 }));
+    const benchCircuit = parseDesign(makeDesignFromTemplate('log-stage', { r1: R_OHM + SIM_SOURCE_IMPEDANCE_OHM, is: IS_A, n: 1, rs: 0 }));
     const levels = Float64Array.from(detail.points.stimulus);
     const expected = fitLogStage(levels, solveDcTransfer(benchCircuit, levels).outputV, R_OHM, 25);
     // A 95 % interval misses 1 time in 20 by design; doubling its half-width (≈ 3.9 σ) keeps this check from

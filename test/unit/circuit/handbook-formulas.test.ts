@@ -68,7 +68,7 @@ describe('first-order stages', () => {
 
   it('with finite A0 the inverting gain is (RF/RN)/(1 + (1 + RF/RN)/A0) at low frequency [GTH, DEVELOPERS.md "Theory"]', () => {
     const a0 = 2e4;
-    const r = at(design('inverting-gain', { rn: 1e3, rf: 100e3, openLoopGain: a0 }), [0.01], false);
+    const r = at(design('inverting-gain', { rn: 1e3, rf: 100e3, a0 }), [0.01], false);
     const expected = 100 / (1 + 101 / a0);
     expect(Math.hypot(r.re[0], r.im[0])).toBeCloseTo(expected, 6);
   });
@@ -90,7 +90,7 @@ describe('first-order stages', () => {
   it('gain-limit point: |A(f)| = noise gain, i.e. f = (GBW/A0)·√((A0/NG)² − 1) for a single pole [GTH, derived from A(s)]', () => {
     const a0 = 1e5;
     const gbw = 1e6;
-    const d = design('inverting-gain', { rn: 1e3, rf: 49e3, openLoopGain: a0, gbw });
+    const d = design('inverting-gain', { rn: 1e3, rf: 49e3, a0, gbw });
     const response = solveAc(d, logGrid(10, 1e6, 10));
     const noiseGain = 50;
     const expectedHz = (gbw / a0) * Math.sqrt((a0 / noiseGain) ** 2 - 1);
@@ -172,7 +172,7 @@ describe('log stage and thermal voltage', () => {
   it('slope is n·VT·ln(10) per decade of input [SH]', () => {
     const n = 1.7;
     const temperatureC = 40;
-    const file = makeDesignFromTemplate('log-stage', { n, r: 10e3 });
+    const file = makeDesignFromTemplate('log-stage', { n, r1: 10e3 });
     file.temperatureC = temperatureC;
     (file.parts[2].model as Record<string, unknown>).ideal = true;
     const d = parseDesign(file, 'log-stage');
@@ -185,7 +185,7 @@ describe('log stage and thermal voltage', () => {
 
   it('the DC solver with an ideal op-amp matches −(n·VT·ln(I/IS + 1) + I·RS) [SH, DEVELOPERS.md "Theory"]', () => {
     const diode = { is: 3e-12, n: 1.3, rs: 4 };
-    const file = makeDesignFromTemplate('log-stage', { ...diode, r: 4.7e3 });
+    const file = makeDesignFromTemplate('log-stage', { ...diode, r1: 4.7e3 });
     (file.parts[2].model as Record<string, unknown>).ideal = true;
     const d = parseDesign(file, 'log-stage');
     const inputs = logGrid(1e-3, 10, 3);

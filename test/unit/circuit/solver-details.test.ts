@@ -65,7 +65,7 @@ describe('phase', () => {
 
 describe('output limits', () => {
   it('full-power bandwidth: Vpk ≤ SR/(2π·f), and never above the rails (slew-rate limit of a sine, handbook formula)', () => {
-    const design = parseDesign(makeDesignFromTemplate('inverting-gain', { slewRate: 1e6, railV: 10 }));
+    const design = parseDesign(makeDesignFromTemplate('inverting-gain', { sr: 1, rail: 10 }));
     expect(maxUndistortedOutputVpk(design, 100)).toBe(10);
     expect(maxUndistortedOutputVpk(design, 100e3)).toBeCloseTo(1e6 / (2 * Math.PI * 100e3), 12);
     // Crossover where SR/(2π·f) = 10 V.
@@ -75,7 +75,7 @@ describe('output limits', () => {
   });
 
   it('stimulus limit = output limit / |H(f)|', () => {
-    const design = parseDesign(makeDesignFromTemplate('inverting-gain', { rn: 1e3, rf: 10e3, railV: 12 }));
+    const design = parseDesign(makeDesignFromTemplate('inverting-gain', { rn: 1e3, rf: 10e3, rail: 12 }));
     const gain = Math.hypot(solveAc(design, Float64Array.from([1e3])).re[0], solveAc(design, Float64Array.from([1e3])).im[0]);
     expect(stimulusLimitVpk(design, 1e3)).toBeCloseTo(12 / gain, 9);
   });

@@ -53,6 +53,10 @@ describe('one vocabulary', () => {
     expect(html).toContain(FIGURE_NAMES.gainLimitHz);
     expect(html).not.toMatch(/pastGainLimit|notANumber|outsideToleranceBand/);
     expect(Object.values(FLAG_WORDS).some((word) => html.includes(word))).toBe(true);
+    // Slew rate in the trade's unit (the fixture's op-amp: 0.5e6 V/s in the design file), A0 as a plain ratio.
+    expect(html).toContain('SR 0.5 V/µs');
+    expect(html).toContain('A0 100000');
+    expect(html).not.toMatch(/\d V\/s\b|kV\/s/);
   });
 });
 

@@ -44,6 +44,6 @@ describe('DC (log stage) run record', () => {
     const html = new TextDecoder().decode((await renderRecord(dcRecord(), 'html')).bytes);
     expect(html).toContain('Diode ideality factor n');
     expect(html).toContain('10 kΩ'); // "10k" in the design file, parsed with app/units
-    expect(html).toContain('IS 10 fA, N 1, RS 500 mΩ');
+    expect(html).toContain('IS 10 fA, n 1, RS 500 mΩ');
   });
 });
