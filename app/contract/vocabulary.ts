@@ -162,8 +162,11 @@ export function outputReadingOf(kind: 'ac' | 'dc', measurement: 'scope' | 'meter
   return measurement === 'meter' ? 'rms' : 'peak';
 }
 
-/** CSV/JSON column for the output voltage, naming its unit. */
+/** CSV column for the output voltage, naming its unit. */
 export const OUTPUT_COLUMN: Record<OutputReading, string> = { peak: 'output_v_peak', rms: 'output_v_rms', dc: 'output_v_dc' };
+
+/** The same column in a JSON record's points (app/record/record.schema.json). */
+export const OUTPUT_KEY = { peak: 'outputVPeak', rms: 'outputVRms', dc: 'outputVDc' } as const satisfies Record<OutputReading, string>;
 
 /** CSV columns of a point, each naming what it holds and its unit. */
 export const POINT_COLUMNS = {

@@ -7,6 +7,7 @@ import { ValidationError } from '../errors';
 import type { BuildRecord, PointColumns, RunDetail, TheoryColumns } from '../contract/contract';
 import { SAFETY_NOTICE_POINTS } from '../contract/safety';
 import { SOFTWARE_VERSION } from '../contract/version';
+import { OUTPUT_KEY, outputReadingOf, type OutputReading } from '../contract/vocabulary';
 import { runDigest } from './digest';
 import {
   RECORD_FORMAT_VERSION,
@@ -39,7 +40,7 @@ export function buildRunRecord(detail: RunDetail, context: RunRecordContext): Ru
   if (context.build.id !== detail.buildId) {
     throw new ValidationError(`${where}.build`, `build ${context.build.id} was given but the run belongs to build ${detail.buildId}`);
   }
-  const points = normalisePoints(detail.points, `${where}.points`);
+  const points = normalisePoints(detail.points, `${where}.points`, outputReadingOf(detail.kind, detail.request.measurement));
   const theory = normaliseTheory(detail, `${where}.theory`);
   const body = {
     run: {
@@ -98,7 +99,7 @@ function column(values: unknown, length: number, where: string): MaybeNumber[] {
   return values.map(finiteOrNull);
 }
 
-function normalisePoints(points: PointColumns, where: string): RecordPoints {
+function normalisePoints(points: PointColumns, where: string, reading: OutputReading): RecordPoints {
   if (!points || !Array.isArray(points.step)) throw new ValidationError(where, 'the points of the run are missing');
   const length = points.step.length;
   const flags = column(points.flags, length, `${where}.flags`).map((f) => f ?? 0);
@@ -107,12 +108,12 @@ function normalisePoints(points: PointColumns, where: string): RecordPoints {
   return {
     step: column(points.step, length, `${where}.step`).map((s, i) => s ?? i),
     stimulus: column(points.stimulus, length, `${where}.stimulus`),
-    amplitudeVpp: column(points.amplitudeVpp, length, `${where}.amplitudeVpp`),
+    stimulusSettingVpp: column(points.amplitudeVpp, length, `${where}.amplitudeVpp`),
     gainDb: column(points.gainDb, length, `${where}.gainDb`),
     gainUncertaintyDb: column(points.gainUncertaintyDb, length, `${where}.gainUncertaintyDb`),
     phaseDeg: column(points.phaseDeg, length, `${where}.phaseDeg`),
     phaseUncertaintyDeg: column(points.phaseUncertaintyDeg, length, `${where}.phaseUncertaintyDeg`),
-    outputV: column(points.outputV, length, `${where}.outputV`),
+    [OUTPUT_KEY[reading]]: column(points.outputV, length, `${where}.outputV`),
     flags,
     measuredAt: measuredAt.map(String),
   };

@@ -8,7 +8,7 @@
  * every run's points with a run_id column and the difference from the reference.
  */
 import { writeCsv } from './csv';
-import type { ComparisonRecord, MaybeNumber, RunRecord } from './model';
+import { recordOutputV, type ComparisonRecord, type MaybeNumber, type RunRecord } from './model';
 import { flagWords, OUTPUT_COLUMN, outputReadingOf, POINT_COLUMNS as C, type OutputReading } from '../contract/vocabulary';
 
 const numberText = (value: MaybeNumber) => (value === null ? '' : String(value));
@@ -35,14 +35,15 @@ function tableFor(records: RunRecord[]): Table {
   const rows = (record: RunRecord) => {
     const p = record.points;
     const own = readingOf(record);
+    const output = recordOutputV(p);
     return p.step.map((step, i) => [
       String(record.run.id),
       record.build.label,
       String(step),
       numberText(p.stimulus[i]),
-      numberText(p.amplitudeVpp[i]),
+      numberText(p.stimulusSettingVpp[i]),
       ...(withGain ? [numberText(p.gainDb[i]), numberText(p.gainUncertaintyDb[i]), numberText(p.phaseDeg[i]), numberText(p.phaseUncertaintyDeg[i])] : []),
-      ...readings.map((reading) => (reading === own ? numberText(p.outputV[i]) : '')),
+      ...readings.map((reading) => (reading === own ? numberText(output[i]) : '')),
       String(p.flags[i]),
       flagWords(p.flags[i]),
       p.measuredAt[i],

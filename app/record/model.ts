@@ -17,24 +17,39 @@ import type {
   Verdict,
 } from '../contract/contract';
 
-/** Bumped when the record layout changes; readers refuse versions they do not know. */
-export const RECORD_FORMAT_VERSION = 1;
+/** Bumped when the record layout changes; readers refuse versions they do not know. 2: point keys named for what they hold. */
+export const RECORD_FORMAT_VERSION = 2;
+/** Formats a reader accepts: 1 is read back (and written again) with its own point keys, amplitudeVpp and outputV (json-record.ts). */
+export type RecordFormatVersion = 1 | typeof RECORD_FORMAT_VERSION;
 
 export type MaybeNumber = number | null;
 
-/** Columnar measured points; index i of every array is one point. */
+/**
+ * Columnar measured points; index i of every array is one point. Keys say what
+ * they hold (app/contract/vocabulary.ts, as the CSV columns do): the output is
+ * exactly one of outputVPeak (scope runs), outputVRms (meter runs) and
+ * outputVDc (DC runs).
+ */
 export interface RecordPoints {
   step: number[];
-  /** Hz for AC runs, input volts for DC runs. */
+  /** Hz for AC runs, input volts for DC runs (run.kind says which). */
   stimulus: MaybeNumber[];
-  amplitudeVpp: MaybeNumber[];
+  /** The generator's amplitude setting, V peak-to-peak, not a measured input. */
+  stimulusSettingVpp: MaybeNumber[];
   gainDb: MaybeNumber[];
   gainUncertaintyDb: MaybeNumber[];
   phaseDeg: MaybeNumber[];
   phaseUncertaintyDeg: MaybeNumber[];
-  outputV: MaybeNumber[];
+  outputVPeak?: MaybeNumber[];
+  outputVRms?: MaybeNumber[];
+  outputVDc?: MaybeNumber[];
   flags: number[];
   measuredAt: string[];
+}
+
+/** The output readings of a record's points, whichever key holds them. */
+export function recordOutputV(points: RecordPoints): MaybeNumber[] {
+  return points.outputVPeak ?? points.outputVRms ?? points.outputVDc ?? [];
 }
 
 /** Theory of the actual circuit on its own grid (Hz for AC, input volts for DC). */
@@ -105,7 +120,7 @@ export interface RecordBuild {
 
 export interface RunRecord {
   recordType: 'run';
-  formatVersion: typeof RECORD_FORMAT_VERSION;
+  formatVersion: RecordFormatVersion;
   title: string;
   generatedAt: string;
   /** Software that wrote this record. */
@@ -134,7 +149,7 @@ export interface ComparisonFigureRow {
 
 export interface ComparisonRecord {
   recordType: 'comparison';
-  formatVersion: typeof RECORD_FORMAT_VERSION;
+  formatVersion: RecordFormatVersion;
   title: string;
   generatedAt: string;
   generatedBy: string;

@@ -9,7 +9,7 @@ import { formatEngineering, unwrapPhaseDeg } from '../units';
 import { ascendingOrder, curveSortedByX } from '../numeric';
 import { FIGURE_NAMES } from '../contract/vocabulary';
 import { linearAxis, logAxis, type Axis } from './plot-axes';
-import type { ComparisonRecord, MaybeNumber, RunRecord } from './model';
+import { recordOutputV, type ComparisonRecord, type MaybeNumber, type RunRecord } from './model';
 import type { PlotMarker, PlotSeries, PlotSpec } from './plot-spec';
 import { CURVE_NAMES, PLOT_PALETTE, runColour } from '../contract/plot-palette';
 
@@ -132,11 +132,11 @@ function dcTransferPlot(record: RunRecord): PlotSpec {
   const { points, dcFit } = record;
   const series: PlotSeries[] = [];
   if (dcFit) series.push({ name: 'Fitted curve', color: PLOT_COLORS.theory, style: 'line', xs: dcFit.inputV, ys: dcFit.outputV });
-  series.push({ name: CURVE_NAMES.measured, color: PLOT_COLORS.measured, style: 'points', xs: points.stimulus, ys: points.outputV });
+  series.push({ name: CURVE_NAMES.measured, color: PLOT_COLORS.measured, style: 'points', xs: points.stimulus, ys: recordOutputV(points) });
   return {
     title: 'DC transfer',
     x: inputAxis([...points.stimulus, ...(dcFit?.inputV ?? [])]),
-    y: linearAxis([...points.outputV, ...(dcFit?.outputV ?? [])], 'Output (V)', 'V'),
+    y: linearAxis([...recordOutputV(points), ...(dcFit?.outputV ?? [])], 'Output (V)', 'V'),
     bands: [],
     series,
     markers: [],
@@ -157,7 +157,7 @@ function overlayPlot(record: ComparisonRecord): PlotSpec {
   record.runs.forEach((run, i) => {
     const color = runColour(i, record.runs.length);
     // Points are stored in measuring order (refinement points last); the line runs in stimulus order.
-    const curve = curveSortedByX({ xs: run.points.stimulus, ys: dc ? run.points.outputV : run.points.gainDb });
+    const curve = curveSortedByX({ xs: run.points.stimulus, ys: dc ? recordOutputV(run.points) : run.points.gainDb });
     series.push({ name: runLegendName(run) + (run.run.id === record.reference ? ' (reference)' : ''), color, style: 'line', ...curve });
   });
   const xs = series.flatMap((s) => s.xs);

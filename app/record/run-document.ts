@@ -1,7 +1,7 @@
 /** The content of a run record, in reading order (see record-document.ts). */
 import { formatEngineering, formatFixed, formatInUnit, parseEngineering } from '../units';
 import type { Block, RecordDocument } from './record-document';
-import type { RecordDesign, RunRecord } from './model';
+import { recordOutputV, type RecordDesign, type RunRecord } from './model';
 import { runPlots } from './record-plots';
 import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatUncertainty, formatVolts, idnText, offlinePeriodsText, verdictHeadline } from './record-formatting';
 import { DIODE_MODEL_PARAMETERS, FIGURE_NAMES, OPAMP_MODEL_PARAMETERS, SETTINGS, pointCountText } from '../contract/vocabulary';
@@ -191,15 +191,16 @@ function figureBlocks(record: RunRecord): Block[] {
 
 function pointBlocks(record: RunRecord): Block[] {
   const p = record.points;
+  const output = recordOutputV(p);
   const ac = record.run.kind === 'ac';
   const rows = p.step.map((step, i) => {
     const gain = formatMaybe(p.gainDb[i], (v) => `${formatDb(v, 3)} ± ${formatMaybe(p.gainUncertaintyDb[i], formatUncertainty)}`);
     const phase = formatMaybe(p.phaseDeg[i], (v) => `${formatDeg(v, 2)} ± ${formatMaybe(p.phaseUncertaintyDeg[i], formatUncertainty)}`);
     const stimulus = formatMaybe(p.stimulus[i], ac ? formatHz : formatVolts);
-    const amplitude = formatMaybe(p.amplitudeVpp[i], (v) => formatEngineering(v, 'Vpp'));
+    const amplitude = formatMaybe(p.stimulusSettingVpp[i], (v) => formatEngineering(v, 'Vpp'));
     return ac
       ? [String(step), stimulus, amplitude, gain, phase, flagWords(p.flags[i]), p.measuredAt[i]]
-      : [String(step), stimulus, formatMaybe(p.outputV[i], formatVolts), flagWords(p.flags[i]), p.measuredAt[i]];
+      : [String(step), stimulus, formatMaybe(output[i], formatVolts), flagWords(p.flags[i]), p.measuredAt[i]];
   });
   const columns = ac
     ? ['#', 'Frequency', 'Amplitude', 'Gain ± u', 'Phase ± u', 'Flags', 'Measured at']

@@ -43,9 +43,9 @@ const csvOf = async (record: RunRecord) => new TextDecoder().decode((await rende
 
 describe.skipIf(!hasPython)('CSV columns read by Python csv (RFC 4180)', () => {
   const cases = [
-    { name: 'scope run', make: scopeRecord, stimulus: 'frequency_hz', output: 'output_v_peak', gain: true },
-    { name: 'meter run', make: meterRecord, stimulus: 'frequency_hz', output: 'output_v_rms', gain: true },
-    { name: 'DC run', make: dcRecord, stimulus: 'input_v_dc', output: 'output_v_dc', gain: false },
+    { name: 'scope run', make: scopeRecord, stimulus: 'frequency_hz', output: 'output_v_peak', jsonKey: 'outputVPeak', gain: true },
+    { name: 'meter run', make: meterRecord, stimulus: 'frequency_hz', output: 'output_v_rms', jsonKey: 'outputVRms', gain: true },
+    { name: 'DC run', make: dcRecord, stimulus: 'input_v_dc', output: 'output_v_dc', jsonKey: 'outputVDc', gain: false },
   ];
   for (const c of cases) {
     it(`${c.name}: every column names its unit; ${c.output} holds the output`, async () => {
@@ -59,8 +59,10 @@ describe.skipIf(!hasPython)('CSV columns read by Python csv (RFC 4180)', () => {
       expect(rows).toHaveLength(record.points.step.length);
       const column = (name: string) => rows.map((row) => row[header.indexOf(name)]).map((cell) => (cell === '' ? null : Number(cell)));
       expect(column(c.stimulus)).toEqual(record.points.stimulus);
-      expect(column(c.output)).toEqual(record.points.outputV);
-      expect(column('stimulus_setting_vpp')).toEqual(record.points.amplitudeVpp);
+      // The JSON record's points carry the same reading under the key of the same meaning, and no other output key.
+      expect(Object.keys(record.points).filter((key) => key.startsWith('outputV'))).toEqual([c.jsonKey]);
+      expect(column(c.output)).toEqual(record.points[c.jsonKey as 'outputVPeak']);
+      expect(column('stimulus_setting_vpp')).toEqual(record.points.stimulusSettingVpp);
       if (c.gain) expect(column('gain_db')).toEqual(record.points.gainDb);
     });
   }

@@ -28,7 +28,7 @@ describe('DC (log stage) run record', () => {
     const record = dcRecord();
     const [header, ...rows] = readCsv(new TextDecoder().decode((await renderRecord(record, 'csv')).bytes));
     expect(header[3]).toBe('input_v_dc');
-    expect(rows.map((r) => Number(r[header.indexOf('output_v_dc')]))).toEqual(record.points.outputV);
+    expect(rows.map((r) => Number(r[header.indexOf('output_v_dc')]))).toEqual(record.points.outputVDc);
     expect(header.filter((name) => /gain|phase/.test(name))).toEqual([]);
   });
 

@@ -25,7 +25,7 @@ describe('run record', () => {
   it('stores non-finite readings as null and keeps every point', () => {
     const r = record({ overrangeIndex: 5 });
     expect(r.points.gainDb[5]).toBeNull();
-    expect(r.points.outputV.every((v) => v === null)).toBe(true);
+    expect(r.points.outputVPeak!.every((v) => v === null)).toBe(true);
     expect(r.points.step.length).toBe(41);
     expect(r.run.pointCount).toBe(41);
   });
@@ -115,6 +115,63 @@ describe('run record', () => {
     expect(() => recordFromJson(JSON.stringify(broken), 'run.json')).toThrow(ValidationError);
     expect(() => recordFromJson(JSON.stringify(broken), 'run.json')).toThrow(/points\/flags\/2/);
     expect(() => recordFromJson('{"recordType":', 'run.json')).toThrow(/not valid JSON/);
+  });
+
+  it('DIGEST.md\'s recipe, followed by hand on the JSON text, gives the record\'s digest, and it names every point key', async () => {
+    const json = JSON.parse(await text(record(), 'json'));
+    const { run, build, design, bench, points } = json;
+    // The object of DIGEST.md step 1, built from the file without the project's own helper.
+    const { buildId: _buildId, ...plan } = run.plan;
+    const input = {
+      digest: 'rolloff-run-digest-2',
+      run: { uid: run.uid, kind: run.kind, startedAt: run.startedAt, endedAt: run.endedAt, simulated: run.simulated, plan },
+      build: { uid: build.uid, label: build.label, actualValues: build.actualValues },
+      design: { uid: design.uid, name: design.name },
+      instruments: bench.map((i: Record<string, unknown>) => ({ role: i.role, address: i.address, profileId: i.profileId, simulated: i.simulated, identity: i.identity })),
+      points,
+    };
+    expect(createHash('sha256').update(canonicalJson(input), 'utf8').digest('hex')).toBe(json.digest.hex);
+    const digestMd = readFileSync(new URL('../../../app/record/DIGEST.md', import.meta.url), 'utf8');
+    expect(digestMd).toContain(`"digest": "${input.digest}"`);
+    expect(Object.keys(points)).toHaveLength(10);
+    for (const key of Object.keys(points)) expect(digestMd, key).toContain(key);
+  });
+
+  it('names the point columns for what they hold (format 2), and refuses an output key that does not fit the run', async () => {
+    const json = JSON.parse(await text(record(), 'json'));
+    expect(json.formatVersion).toBe(2);
+    expect(Object.keys(json.points)).toEqual(expect.arrayContaining(['stimulusSettingVpp', 'outputVPeak']));
+    expect(Object.keys(json.points)).not.toEqual(expect.arrayContaining(['amplitudeVpp']));
+    expect(() => recordFromJson(JSON.stringify({ ...json, formatVersion: 3 }), 'new.json')).toThrow(/new\.json\.formatVersion: is 3; this Rolloff reads formats 1 and 2/);
+    // A scope run whose output is filed under the meter's key is refused, not misread.
+    const { outputVPeak, ...others } = json.points;
+    expect(() => recordFromJson(JSON.stringify({ ...json, points: { ...others, outputVRms: outputVPeak } }), 'moved.json')).toThrow(/moved\.json run 12\.points: has no outputVPeak/);
+  });
+
+  it('a format-1 file (amplitudeVpp, outputV) still verifies, renders like its format-2 twin, and is written back as it was', async () => {
+    const current = record();
+    const json = JSON.parse(await text(current, 'json'));
+    // Format 1 as it was written: the same points under their old keys, and the digest over them (DIGEST.md).
+    const { stimulusSettingVpp, outputVPeak, ...same } = json.points;
+    const oldPoints = { step: same.step, stimulus: same.stimulus, amplitudeVpp: stimulusSettingVpp, gainDb: same.gainDb, gainUncertaintyDb: same.gainUncertaintyDb, phaseDeg: same.phaseDeg, phaseUncertaintyDeg: same.phaseUncertaintyDeg, outputV: outputVPeak, flags: same.flags, measuredAt: same.measuredAt };
+    const { buildId: _buildId, ...plan } = json.run.plan;
+    const input = {
+      digest: 'rolloff-run-digest-2',
+      run: { uid: json.run.uid, kind: json.run.kind, startedAt: json.run.startedAt, endedAt: json.run.endedAt, simulated: json.run.simulated, plan },
+      build: { uid: json.build.uid, label: json.build.label, actualValues: json.build.actualValues },
+      design: { uid: json.design.uid, name: json.design.name },
+      instruments: json.bench.map((i: Record<string, unknown>) => ({ role: i.role, address: i.address, profileId: i.profileId, simulated: i.simulated, identity: i.identity })),
+      points: oldPoints,
+    };
+    const formatOne = { ...json, formatVersion: 1, points: oldPoints, digest: { ...json.digest, hex: createHash('sha256').update(canonicalJson(input), 'utf8').digest('hex') } };
+    const fileText = JSON.stringify(formatOne, null, 2) + '\n';
+    const read = recordFromJson(fileText, 'old.json') as RunRecord;
+    expect(read.points).toEqual(current.points);
+    expect(await text(read, 'csv')).toBe(await text(current, 'csv'));
+    expect(await text(read, 'json')).toBe(fileText);
+    const altered = structuredClone(formatOne);
+    altered.points.outputV[3] = 1;
+    expect(() => recordFromJson(JSON.stringify(altered), 'old.json')).toThrow(/digest: does not match/);
   });
 
   it('the schema file rejects what it should (guards against a schema that accepts anything)', async () => {
