@@ -35,7 +35,7 @@ export const RETIRED_FIGURE_NAMES: Record<string, FigureKey> = {
 };
 
 /** Names the maximum stimulus had on some surfaces before this table; the vocabulary test refuses them. */
-export const RETIRED_SETTING_NAMES = ['Safety limit', 'maximum stimulus,'];
+export const RETIRED_SETTING_NAMES = ['Safety limit', 'maximum stimulus,', 'or target output (Vpp', 'Band high', 'Band low', 'emission coefficient'];
 
 /** Point flags as words (records, CLI tables, the window). */
 export const FLAG_WORDS: Record<keyof typeof PointFlag, string> = {
