@@ -28,7 +28,7 @@ describe.skipIf(!ready)('rolloff sim --vxi11 with no portmapper', () => {
     const script = `${toolPath('ip')} link set lo up && exec "$0" "$@"`;
     const result = spawnSync(
       toolPath('unshare')!,
-      ['-n', 'sh', '-c', script, process.execPath, ROLLOFF_CLI, 'sim', '--design', EXAMPLE_DESIGN, '--tcp', '0', '--vxi11'],
+      ['-n', 'sh', '-c', script, process.execPath, ROLLOFF_CLI, 'sim', '--design', EXAMPLE_DESIGN, '--port', '0', '--vxi11'],
       { encoding: 'utf8', timeout: 30_000 },
     );
     expect(result.status, result.stderr).toBe(2);

@@ -74,7 +74,7 @@ describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () 
     expect((refusal as UserError).message).toMatch(new RegExp(`another VXI-11 server is registered with the portmapper \\(port ${bench.vxi11Server!.corePort}\\)`));
     expect((refusal as UserError).hint).toMatch(/rpcinfo -d 395183 1/);
     // rolloff sim prints it plainly: message and hint, exit code 2, no "internal error" and no stack trace.
-    const cli = await run(process.execPath, [ROLLOFF_CLI, 'sim', '--design', EXAMPLE_DESIGN, '--tcp', '0', '--vxi11'], { timeout: 30_000 }).then(
+    const cli = await run(process.execPath, [ROLLOFF_CLI, 'sim', '--design', EXAMPLE_DESIGN, '--port', '0', '--vxi11'], { timeout: 30_000 }).then(
       () => ({ code: 0, stderr: '' }),
       (error: { code: number; stderr: string }) => error,
     );
