@@ -5,7 +5,7 @@
  */
 import { ValidationError } from '../errors';
 import { SETTINGS } from '../contract/vocabulary';
-import { SIMULATED_BENCH_DEFAULTS } from '../sim';
+import { SIMULATED_BENCH_DEFAULTS } from '../sim/defaults';
 import { checkMaxStimulusVpp } from '../service/stimulus-limits';
 import { optionFlag, optionNumber, type OptionSpec, type ParsedArgs } from './args';
 

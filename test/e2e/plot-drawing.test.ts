@@ -8,6 +8,7 @@
  *
  * The stage: the low-pass of helpers/low-pass-bench.ts, −3 dB at ≈ 1.06 kHz.
  */
+import { runColour } from '../../app/contract/plot-palette';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdirSync } from 'node:fs';
 import { join, resolve } from 'node:path';
@@ -92,13 +93,13 @@ describe.skipIf(!requireTool('chromium'))('what the plots draw, in Chromium agai
     await page.getByTestId('compare-picked').click();
     await expect.poll(() => page.locator('section[data-view="compare"]').getAttribute('data-compared-runs'), { timeout: 20_000 }).toBe('1');
     await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => r(null))));
-    const strokes = await page.evaluate(() => {
-      // The one run's colour (renderer/model/compare-data.ts runColor(0, 1)), as the canvas spells it.
+    const strokes = await page.evaluate((runColourText) => {
+      // The one run's colour (app/contract/plot-palette.ts runColour(0, 1)), as the canvas spells it.
       const probe = document.createElement('canvas').getContext('2d')!;
-      probe.strokeStyle = 'hsl(20, 70%, 38%)';
+      probe.strokeStyle = runColourText;
       const color = String(probe.strokeStyle);
       return (window as unknown as { __strokes: RecordedStroke[] }).__strokes.filter((s) => s.color === color);
-    });
+    }, runColour(0, 1));
     // What each plot has to draw: every finite gain, and every finite difference from theory.
     const comparison = await callService<Comparison>(serve, 'compareRuns', [[run.id], 'theory']);
     const expected = {
