@@ -1,5 +1,5 @@
 /**
- * `rolloff store copy --from DB --to DB [--skip-existing]`: a bench's history
+ * `rolloff store copy --from-db DB --to-db DB [--skip-existing]`: a bench's history
  * into the lab store and back out (app/store/copy/copy-history.ts does the work).
  */
 import { existsSync } from 'node:fs';
@@ -13,10 +13,11 @@ import { optionFlag, optionString, requirePositional, type CommandSpec } from '.
 export const storeCommand: CommandSpec = {
   name: 'store',
   summary: 'Copy a store\'s history into another: a bench\'s SQLite file into the lab store, or back out',
-  usage: 'copy --from PATH|URL --to PATH|URL [--skip-existing]',
+  usage: 'copy --from-db PATH|URL --to-db PATH|URL [--skip-existing]',
   options: [
-    { name: 'from', kind: 'string', placeholder: 'PATH|URL', description: 'copy: the store to read (a SQLite file or postgres://…); nothing in it is changed, but an older one is first brought to the current schema' },
-    { name: 'to', kind: 'string', placeholder: 'PATH|URL', description: 'copy: the store to add to (a new SQLite file is created)' },
+    // --from-db, not --from: elsewhere --from is where a sweep starts; the stores are named as --db names one.
+    { name: 'from-db', kind: 'string', placeholder: 'PATH|URL', description: 'copy: the store to read (a SQLite file or postgres://…); nothing in it is changed, but an older one is first brought to the current schema' },
+    { name: 'to-db', kind: 'string', placeholder: 'PATH|URL', description: 'copy: the store to add to (a new SQLite file is created)' },
     { name: 'skip-existing', kind: 'flag', description: 'copy: leave runs the target already holds as they are there and copy the others (default: refuse)' },
   ],
   details: `
@@ -27,17 +28,17 @@ there (same uid) is used, not doubled. If the target already holds some of the r
 copied unless --skip-existing is given; a copy cut short is finished by running it again with
 --skip-existing. Runs being measured right now are refused.
 Examples:
-  rolloff store copy --from ~/.local/share/rolloff/rolloff.sqlite --to postgres://bench3@labserver:5432/lab
-  rolloff store copy --from postgres://bench3@labserver:5432/lab --to ./lab-copy.sqlite`,
+  rolloff store copy --from-db ~/.local/share/rolloff/rolloff.sqlite --to-db postgres://bench3@labserver:5432/lab
+  rolloff store copy --from-db postgres://bench3@labserver:5432/lab --to-db ./lab-copy.sqlite`,
   async run(parsed) {
     const action = requirePositional(parsed, 0, 'ACTION (copy)');
-    if (action !== 'copy') throw new ValidationError('ACTION', `"${action}" is not copy`, 'rolloff store copy --from PATH|URL --to PATH|URL');
-    const from = requiredOption(parsed, 'from');
-    const to = requiredOption(parsed, 'to');
-    if (from === to) throw new ValidationError('--to', 'is the same store as --from', 'Give two different stores.');
+    if (action !== 'copy') throw new ValidationError('ACTION', `"${action}" is not copy`, 'rolloff store copy --from-db PATH|URL --to-db PATH|URL');
+    const from = requiredOption(parsed, 'from-db');
+    const to = requiredOption(parsed, 'to-db');
+    if (from === to) throw new ValidationError('--to-db', 'is the same store as --from-db', 'Give two different stores.');
     // Opening a missing file would make an empty store and copy nothing: say so instead.
     const fromFile = databaseUrlScheme(from) === undefined ? (/^file:\/\//i.test(from) ? fileURLToPath(from) : from.replace(/^file:/i, '')) : undefined;
-    if (fromFile !== undefined && !existsSync(fromFile)) throw new ValidationError('--from', `no database at ${fromFile}`, `Give the path of the bench's .sqlite file (the default one is ${defaultDatabasePath()}).`);
+    if (fromFile !== undefined && !existsSync(fromFile)) throw new ValidationError('--from-db', `no database at ${fromFile}`, `Give the path of the bench's .sqlite file (the default one is ${defaultDatabasePath()}).`);
     const source = await openStore(from);
     let target: RolloffStore | undefined;
     try {
@@ -59,7 +60,7 @@ Examples:
 
 function requiredOption(parsed: Parameters<CommandSpec['run']>[0], name: string): string {
   const value = optionString(parsed, name);
-  if (!value) throw new ValidationError(`--${name}`, 'is required', 'rolloff store copy --from PATH|URL --to PATH|URL');
+  if (!value) throw new ValidationError(`--${name}`, 'is required', 'rolloff store copy --from-db PATH|URL --to-db PATH|URL');
   return value;
 }
 

@@ -57,9 +57,9 @@ describe.skipIf(!hasPostgres)('rolloff store copy: SQLite → PostgreSQL → SQL
     const back = join(folder.path, 'back.sqlite');
     const lab = cluster.urlWithPassword;
     // The lab store already has a run of its own, so the copied rows cannot keep their ids by chance.
-    const own = rolloff('demo', '--fast', '--db', lab);
+    const own = rolloff('demo', '--time-scale', '20', '--db', lab);
     expect(own.status, own.stderr).toBe(0);
-    const demo = rolloff('demo', '--fast', '--db', bench);
+    const demo = rolloff('demo', '--time-scale', '20', '--db', bench);
     expect(demo.status, demo.stderr).toBe(0);
     const source = await openStore(bench);
     const [newest] = await source.listRuns({ limit: 1 });
@@ -68,7 +68,7 @@ describe.skipIf(!hasPostgres)('rolloff store copy: SQLite → PostgreSQL → SQL
     const before = await digestsIn(bench);
     expect(before.runs.size).toBe(2);
 
-    const copied = rolloff('store', 'copy', '--from', bench, '--to', lab);
+    const copied = rolloff('store', 'copy', '--from-db', bench, '--to-db', lab);
     expect(copied.status, copied.stderr).toBe(0);
     expect(copied.stdout).toMatch(/copied 2 run\(s\) with [\d,]+ point\(s\)/);
     expect(copied.stdout).not.toContain(cluster.password);
@@ -78,11 +78,11 @@ describe.skipIf(!hasPostgres)('rolloff store copy: SQLite → PostgreSQL → SQL
     for (const uid of copiedUids) expect(inLab.ids.get(uid)).not.toBe(before.ids.get(uid)); // new row ids, same digests
 
     // Same runs again: refused, nothing copied, the runs named.
-    const again = rolloff('store', 'copy', '--from', bench, '--to', lab);
+    const again = rolloff('store', 'copy', '--from-db', bench, '--to-db', lab);
     expect(again.status).toBe(2);
     expect(again.stderr).toMatch(/already holds 2 of these runs: run \d+ \(there as run \d+\).*Nothing was copied/);
     expect(again.stderr).toMatch(/--skip-existing/);
-    const skipped = rolloff('store', 'copy', '--from', bench, '--to', lab, '--skip-existing');
+    const skipped = rolloff('store', 'copy', '--from-db', bench, '--to-db', lab, '--skip-existing');
     expect(skipped.status, skipped.stderr).toBe(0);
     expect(skipped.stdout).toMatch(/copied 0 run\(s\)/);
     expect(skipped.stdout).toMatch(/skipped 2 run\(s\) already there/);
@@ -92,7 +92,7 @@ describe.skipIf(!hasPostgres)('rolloff store copy: SQLite → PostgreSQL → SQL
     await lab2.close();
 
     // And back out into a new file: the lab's four runs, the copied ones with their digests and offline period.
-    const out = rolloff('store', 'copy', '--from', lab, '--to', back);
+    const out = rolloff('store', 'copy', '--from-db', lab, '--to-db', back);
     expect(out.status, out.stderr).toBe(0);
     expect(out.stdout).toMatch(/copied 4 run\(s\)/);
     expect(out.stdout).toMatch(/designs: 2 copied, 0 already there/); // the demo's design, stored once on each bench: two uids
@@ -110,14 +110,14 @@ describe.skipIf(!hasPostgres)('rolloff store copy: SQLite → PostgreSQL → SQL
     expect(await comparisonDigestIn(back, copiedUids)).toBe(comparison);
   }, 300_000);
 
-  it('refuses a copy without --to, or onto itself, with the fix named', () => {
-    const noTarget = rolloff('store', 'copy', '--from', join(folder.path, 'bench.sqlite'));
+  it('refuses a copy without --to-db, or onto itself, with the fix named', () => {
+    const noTarget = rolloff('store', 'copy', '--from-db', join(folder.path, 'bench.sqlite'));
     expect(noTarget.status).toBe(2);
-    expect(noTarget.stderr).toMatch(/--to.*is required/s);
-    const missing = rolloff('store', 'copy', '--from', join(folder.path, 'no-such.sqlite'), '--to', join(folder.path, 'out.sqlite'));
+    expect(noTarget.stderr).toMatch(/--to-db.*is required/s);
+    const missing = rolloff('store', 'copy', '--from-db', join(folder.path, 'no-such.sqlite'), '--to-db', join(folder.path, 'out.sqlite'));
     expect(missing.status).toBe(2);
-    expect(missing.stderr).toMatch(/--from.*no database at/s);
-    const same = rolloff('store', 'copy', '--from', 'x.sqlite', '--to', 'x.sqlite');
+    expect(missing.stderr).toMatch(/--from-db.*no database at/s);
+    const same = rolloff('store', 'copy', '--from-db', 'x.sqlite', '--to-db', 'x.sqlite');
     expect(same.status).toBe(2);
     expect(same.stderr).toMatch(/same store/);
   }, 60_000);
