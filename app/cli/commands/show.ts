@@ -7,6 +7,7 @@ import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../common-options';
 import { runDetailText } from '../sweep/summary-text';
+import { RUN_JSON_DESCRIPTION, runRecordJson } from '../run-json';
 
 export const showCommand: CommandSpec = {
   name: 'show',
@@ -16,18 +17,18 @@ export const showCommand: CommandSpec = {
     // Not --points: on sweep that is how many points a linear sweep has.
     { name: 'list-points', kind: 'flag', description: 'list the measured points with uncertainties and flags' },
     { name: 'list-events', aliases: ['events'], kind: 'flag', description: 'list the run\'s events' },
-    { name: 'json', kind: 'flag', description: 'print the whole run as JSON: plan, figures, verdict, points and events' },
+    { name: 'json', kind: 'flag', description: `print ${RUN_JSON_DESCRIPTION}` },
     DATABASE_OPTION,
   ],
   async run(parsed) {
     const runId = parseRunId(requirePositional(parsed, 0, 'RUN'));
     const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
     try {
-      const detail = await service.getRun(runId);
       if (optionFlag(parsed, 'json')) {
-        process.stdout.write(JSON.stringify(detail) + '\n');
+        process.stdout.write(await runRecordJson(service, runId));
         return 0;
       }
+      const detail = await service.getRun(runId);
       process.stdout.write(runDetailText(detail, await service.diodeOfRun(runId)));
       if (optionFlag(parsed, 'list-points')) {
         const p = detail.points;

@@ -6,12 +6,13 @@ import { followRun } from '../sweep/follow-run';
 import { formatDuration } from '../../units';
 import { runDetailText } from '../sweep/summary-text';
 import { formatEngineering, formatFixed } from '../../units';
+import { RUN_JSON_DESCRIPTION, runRecordJson } from '../run-json';
 
 export const sweepCommand: CommandSpec = {
   name: 'sweep',
   summary: 'Sweep a build (frequency or DC transfer), store every point, compare with theory',
   usage: '(--build ID | --design FILE.json [--label TEXT] [--actual PART=VALUE …]) (--simulated | --generator ADDR --scope ADDR|--meter ADDR) [options]',
-  options: [...BUILD_OPTIONS, ...BENCH_OPTIONS, ...PLAN_OPTIONS, { name: 'json', kind: 'flag', description: 'print the finished run as JSON on stdout (as rolloff show RUN --json)' }],
+  options: [...BUILD_OPTIONS, ...BENCH_OPTIONS, ...PLAN_OPTIONS, { name: 'json', kind: 'flag', description: `print the finished run on stdout as ${RUN_JSON_DESCRIPTION} (as show RUN --json)` }],
   details: `
 Examples:
   rolloff sweep --design lowpass.json --label "board A" --simulated --max-amplitude 2
@@ -50,7 +51,7 @@ the same bench reuse it, saying so. Every point is stored the moment it is measu
         throw error;
       });
       const detail = await service.getRun(run.id);
-      if (optionFlag(parsed, 'json')) process.stdout.write(JSON.stringify(detail) + '\n');
+      if (optionFlag(parsed, 'json')) process.stdout.write(await runRecordJson(service, run.id));
       else process.stdout.write(runDetailText(detail, await service.diodeOfRun(run.id)));
       if (status === 'paused') process.stderr.write(`run ${run.id} paused; continue with: rolloff resume ${run.id} --db ${service.databaseLocation}\n`);
       if (detail.kind === 'ac' && detail.figures.gainLimitHz !== undefined && detail.theoryGainLimitHz !== undefined) {

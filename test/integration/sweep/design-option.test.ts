@@ -10,7 +10,9 @@ import { writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { SqliteStore } from '../../../app/store';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
-import type { RunDetail } from '../../../app/contract/contract';
+import type { RunRecord } from '../../../app/record/model';
+import { RECORD_SCHEMA } from '../../../app/record/json-record';
+import { validateAgainstSchema } from '../../../app/record/schema-validator';
 import { tempFolder } from './helpers';
 
 const BIN = join(resolve(__dirname, '../../..'), 'app/cli/bin.mjs');
@@ -40,10 +42,17 @@ describe('--design ID|FILE', () => {
   it('sweep --design ID sweeps a new build of the stored design, storing no second copy; --linear --points N', async () => {
     const out = rolloff('sweep', '--design', '1', '--label', 'swept', '--simulated', '--time-scale', '50', '--max-amplitude', '1',
       '--from', '100', '--to', '1k', '--linear', '--points', '5', '--no-refine', '--json');
-    const run = JSON.parse(out) as RunDetail;
-    expect(run.request.spacing).toBe('linear');
-    expect(run.request.points).toBe(5);
-    expect(run.points.stimulus).toEqual([100, 325, 550, 775, 1000]);
+    // sweep --json prints the run's JSON record: keys that name their quantity and unit, valid against the record schema.
+    const record = JSON.parse(out) as RunRecord;
+    expect(validateAgainstSchema(record, RECORD_SCHEMA)).toEqual([]);
+    expect(record.run.plan.spacing).toBe('linear');
+    expect(record.run.plan.points).toBe(5);
+    expect(record.points.stimulus).toEqual([100, 325, 550, 775, 1000]);
+    expect(Object.keys(record.points)).toEqual(expect.arrayContaining(['stimulusSettingVpp', 'outputVPeak']));
+    expect(Object.keys(record.points)).not.toEqual(expect.arrayContaining(['outputV']));
+    // show --json prints the same record of the same run (only the moment it was written differs).
+    const shown = JSON.parse(rolloff('show', String(record.run.id), '--json')) as RunRecord;
+    expect({ ...shown, generatedAt: '' }).toEqual({ ...record, generatedAt: '' });
     const store = SqliteStore.open(db, { readonly: true });
     try {
       expect((await store.listDesigns()).map((d) => d.id)).toEqual([1, 2]);
