@@ -37,7 +37,8 @@ function totalPointsOption(): number {
   return value;
 }
 const TOTAL_POINTS = totalPointsOption();
-const SINGLE_COMMITS = 500;
+/** One run's worth: enough for a p99 that is not one stall (its 10 largest of 1,000). */
+const SINGLE_COMMITS = POINTS_PER_RUN;
 const RUNS_PER_TRANSACTION = 100;
 
 
@@ -65,14 +66,22 @@ interface Figures {
   searchMs: number;
   loadMs: number;
   loadedPoints: number;
+  /** Load average right after the per-point commits. */
+  commitLoad: number;
 }
 
-/** Per-point commit times (ms) of SINGLE_COMMITS points into a new run of the store. */
-async function commitTimes(store: RolloffStore, createRuns: (count: number) => Promise<number[]>): Promise<number[]> {
-  const [singleRun] = await createRuns(1);
-  const commits: number[] = [];
-  for (let step = 0; step < SINGLE_COMMITS; step++) commits.push(await timeMs(() => store.insertPoint(singleRun, points[step])));
-  return commits;
+/**
+ * Per-point commit times (ms) of SINGLE_COMMITS points into a new run of each
+ * store given, the stores taking turns point by point, so a direct commit and
+ * one through the outbox see the same moments of a shared machine.
+ */
+async function commitTimes(stores: RolloffStore[], createRuns: (count: number) => Promise<number[]>): Promise<number[][]> {
+  const runIds = await createRuns(stores.length);
+  const times = stores.map((): number[] => []);
+  for (let step = 0; step < SINGLE_COMMITS; step++) {
+    for (const [i, store] of stores.entries()) times[i].push(await timeMs(() => store.insertPoint(runIds[i], points[step])));
+  }
+  return times;
 }
 
 /** A bench's SQLite file with BULK_POINTS points (1,000-point runs), the source of the bulk import. */
@@ -106,8 +115,8 @@ async function measure(store: RolloffStore, source: SqliteStore, outboxOf?: (sto
   };
 
   // Per-point commits first, on an empty database, as a sweep stores them.
-  const commits = await commitTimes(store, createRuns);
-  const outboxCommits = outboxOf ? await commitTimes(outboxOf(store), createRuns) : undefined;
+  const [commits, outboxCommits] = await commitTimes(outboxOf ? [store, outboxOf(store)] : [store], createRuns);
+  const commitLoad = loadavg()[0];
 
   // The bulk import as a user makes it: rolloff store copy of a bench's file.
   let copiedPoints = 0;
@@ -142,6 +151,7 @@ async function measure(store: RolloffStore, source: SqliteStore, outboxOf?: (sto
     searchMs: percentile(search, 50),
     loadMs: percentile(load, 50),
     loadedPoints,
+    commitLoad,
   };
 }
 
@@ -158,6 +168,7 @@ try {
   await postgres.close();
   await source.close();
 
+  console.log(`load average after the per-point commits: SQLite ${sqliteFigures.commitLoad.toFixed(1)}, PostgreSQL ${postgresFigures.commitLoad.toFixed(1)}`);
   console.log(`machine load average ${loadavg()[0].toFixed(1)} on ${cpus().length} cores (wall times include waiting for the CPU); PostgreSQL on loopback, same disk`);
   console.log(`points stored: ${sqliteFigures.storedPoints.toLocaleString('en')} in each store (SQLite built in ${sqliteFigures.buildS.toFixed(1)} s, PostgreSQL in ${postgresFigures.buildS.toFixed(1)} s beyond the bulk import)`);
   const row = (name: string, unit: string, s: number, p: number, target?: { limit: number; label: string }) =>
