@@ -43,7 +43,8 @@ export const runsCommand: CommandSpec = {
       const interrupted = await service.interruptedRuns();
       if (interrupted.length > 0) {
         process.stderr.write(`\n${interrupted.length} run(s) were left running or paused: ${interrupted.map((r) => r.id).join(', ')}.\n`);
-        process.stderr.write(`Continue one with: rolloff resume RUN${optionString(parsed, 'db') ? ` --db ${optionString(parsed, 'db')}` : ''}\n`);
+        // The store's own location: a lab store's address without its password (given again by PGPASSWORD or a password file).
+        process.stderr.write(`Continue one with: rolloff resume RUN${optionString(parsed, 'db') ? ` --db ${service.databaseLocation}` : ''}\n`);
       }
       return 0;
     } finally {

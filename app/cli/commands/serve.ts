@@ -83,7 +83,7 @@ Examples:
 
     const lines = [
       `Rolloff is serving the window${simulated ? ' with the simulated bench (SIMULATED instruments)' : ''}.`,
-      `Database: ${hosted.service.store.location}`, // a lab store's address without its password
+      `Database: ${hosted.service.databaseLocation}`, // a lab store's address without its password
       maximumStimulusLine(hosted.service),
       `Open ${webHost.url}`,
     ];

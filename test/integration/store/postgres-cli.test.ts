@@ -52,9 +52,16 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
         expect(runs.stdout).toContain(run.buildLabel);
       }
       expect(await store.integrityProblems()).toEqual([]);
+      // A run left running with nobody driving it: runs then says how to resume it, with the address but not the password.
+      const done = await store.getRun(stored[0].id);
+      const [left] = await store.createRuns([{ buildId: done.buildId, kind: done.kind, request: done.request, plan: done.plan, softwareVersion: done.softwareVersion, bench: done.bench, operator: 'left running', notes: '', simulated: done.simulated }]);
+      await store.updateRunStatus(left.id, 'running');
     } finally {
       await store.close();
     }
+    const withInterrupted = rolloff('runs', '--db', cluster.urlWithPassword);
+    expect(withInterrupted.stderr).toMatch(/Continue one with: rolloff resume RUN --db postgres:\/\//);
+    expect(withInterrupted.stderr + withInterrupted.stdout).not.toContain(cluster.password);
   });
 
   it('two benches (processes named by ROLLOFF_BENCH) sweeping into one new lab database at once both complete, every step stored once, each run with its bench and its bench\'s own maximum stimulus', async () => {
