@@ -2,7 +2,7 @@
  * Pass-band gain and the −3 dB corners relative to it.
  */
 import { HALF_POWER_DB } from '../units';
-import { medianOfSorted } from '../numeric/percentile';
+import { median } from '../numeric/percentile';
 import { ascendingOrder } from '../numeric/ascending-order';
 import { crossingsLogF } from './crossing';
 
@@ -29,10 +29,6 @@ export function passbandGainDb(frequencyHz: ArrayLike<number>, gainDb: ArrayLike
   const lowEnd = median(order.filter((i) => frequencyHz[i] <= lowEndHz).map((i) => gainDb[i]));
   if (lowEnd >= peak + HALF_POWER_DB) return lowEnd;
   return median(order.filter((i) => gainDb[i] >= peak - windowDb).map((i) => gainDb[i]));
-}
-
-function median(values: number[]): number {
-  return medianOfSorted([...values].sort((a, b) => a - b));
 }
 
 /** Frequencies where the gain crosses pass band − 3.01 dB, interpolated in log f. */

@@ -5,6 +5,6 @@
  * imports at all.
  */
 export { SeededRandom } from './random';
-export { medianOfSorted, percentileOfSorted } from './percentile';
+export { median, medianOfSorted, percentile, percentileOfSorted } from './percentile';
 export { solveComplexInPlace, solveRealInPlace } from './dense-solve';
 export { ascendingOrder, curveSortedByX, sortedAscending } from './ascending-order';

@@ -25,3 +25,13 @@ export function medianOfSorted(sorted: ArrayLike<number>): number {
   const middle = sorted.length >> 1;
   return sorted.length % 2 === 1 ? sorted[middle] : 0.5 * (sorted[middle - 1] + sorted[middle]);
 }
+
+/** Median of data in any order. */
+export function median(values: Iterable<number>): number {
+  return medianOfSorted(Float64Array.from(values).sort());
+}
+
+/** Percentile (type 7, as percentileOfSorted) of data in any order. */
+export function percentile(values: Iterable<number>, percent: number): number {
+  return percentileOfSorted(Float64Array.from(values).sort(), percent);
+}

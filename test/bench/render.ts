@@ -23,6 +23,7 @@ import { openHostedService } from '../../app/host/hosted-service';
 import { makeDesignFromTemplate } from '../../app/circuit';
 import type { Comparison, RunDetail } from '../../app/contract/contract';
 import { CHROMIUM_ARGS, CHROMIUM_PATH } from '../e2e/helpers/chromium';
+import { percentile } from '../../app/numeric';
 
 const ROOT = resolve(fileURLToPath(new URL('.', import.meta.url)), '../..');
 const RUNS = 50;
@@ -30,11 +31,6 @@ const POINTS = 400;
 const COMPARE_REPEATS = 15;
 const COMPARE_TARGET_MS = 50;
 const LIVE_TARGET_MS = 100;
-
-function percentile(values: number[], p: number): number {
-  const sorted = [...values].sort((a, b) => a - b);
-  return sorted[Math.min(sorted.length - 1, Math.floor((p / 100) * sorted.length))];
-}
 
 function summary(values: number[]): string {
   return `median ${percentile(values, 50).toFixed(1)} ms, p95 ${percentile(values, 95).toFixed(1)} ms, max ${Math.max(...values).toFixed(1)} ms (n = ${values.length})`;

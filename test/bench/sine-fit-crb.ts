@@ -5,7 +5,7 @@
  * from memory). Target ≤ 1.05. Run: npx tsx test/bench/sine-fit-crb.ts
  */
 import { cramerRaoSinusoid, cramerRaoSinusoidExact, sineFit3 } from '../../app/signal';
-import { noisySine, seededGaussian } from '../unit/signal/seeded-random';
+import { noisySine, seededGaussian } from '../helpers/test-signals';
 
 const trials = Number(process.env.TRIALS ?? 20000);
 const record = { frequencyHz: 1234.5, sampleIntervalS: 1 / 250e3, sampleCount: 2000 }; // ≈ 9.9 cycles, not whole

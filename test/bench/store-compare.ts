@@ -24,6 +24,8 @@ import { PostgresStore } from '../../app/store/postgres/postgres-store';
 import { OutboxStore } from '../../app/store/outbox/outbox-store';
 import { copyHistory } from '../../app/store/copy/copy-history';
 import { startPostgresCluster } from '../helpers/postgres-cluster';
+import { percentile } from '../../app/numeric';
+import { timeMs } from './timing';
 
 const BULK_POINTS = 1_000_000;
 /** --points N (engineering-free whole number), else TOTAL_POINTS, else 10M. */
@@ -40,18 +42,6 @@ const TOTAL_POINTS = totalPointsOption();
 /** One run's worth: enough for a p99 that is not one stall (its 10 largest of 1,000). */
 const SINGLE_COMMITS = POINTS_PER_RUN;
 const RUNS_PER_TRANSACTION = 100;
-
-
-function percentile(values: number[], p: number): number {
-  const sorted = [...values].sort((a, b) => a - b);
-  return sorted[Math.min(sorted.length - 1, Math.floor((p / 100) * sorted.length))];
-}
-
-async function timeMs(work: () => unknown): Promise<number> {
-  const start = performance.now();
-  await work();
-  return performance.now() - start;
-}
 
 interface Figures {
   commitMedianMs: number;

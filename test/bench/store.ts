@@ -13,6 +13,8 @@ import { join } from 'node:path';
 import { POINTS_PER_RUN, plan, points, request } from './store-fixture';
 import { SOFTWARE_VERSION } from '../../app/contract/version';
 import { SqliteStore } from '../../app/store';
+import { median } from '../../app/numeric';
+import { timeMs } from './timing';
 
 const BULK_POINTS = 1_000_000;
 const TOTAL_POINTS = Number(process.env.TOTAL_POINTS ?? 10_000_000);
@@ -21,7 +23,6 @@ const SINGLE_COMMITS = 300;
 const folder = mkdtempSync(join(tmpdir(), 'rolloff-bench-store-'));
 const path = join(folder, 'bench.sqlite');
 const store = SqliteStore.open(path);
-
 
 const design = await store.saveDesign({ name: 'benchmark stage (invented)', design: { parts: [] } });
 const builds = await Promise.all(Array.from({ length: 20 }, (_, i) => store.createBuild({ designId: design.id, label: `bench board ${i}`, notes: '', actualValues: {} })));
@@ -42,17 +43,6 @@ async function fill(runIds: number[]): Promise<void> {
   for (let i = 0; i < runIds.length; i += RUNS_PER_TRANSACTION) {
     await store.insertPointsOfRuns(runIds.slice(i, i + RUNS_PER_TRANSACTION).map((runId) => ({ runId, points })));
   }
-}
-
-function median(values: number[]): number {
-  const sorted = [...values].sort((a, b) => a - b);
-  return sorted[Math.floor(sorted.length / 2)];
-}
-
-async function timeMs(work: () => unknown): Promise<number> {
-  const start = performance.now();
-  await work();
-  return performance.now() - start;
 }
 
 /** CPU time of this process, ms: a fairer figure than wall time on a shared machine. */

@@ -19,16 +19,11 @@ import { makeDesignFromTemplate } from '../../app/circuit/templates';
 import { connect, type ScpiSession } from '../../app/scpi';
 import { startSimProcess } from '../helpers/sim-process';
 import { ensurePortmapper } from '../helpers/portmapper';
+import { median } from '../../app/numeric';
 
 function argument(name: string, fallback: number): number {
   const at = process.argv.indexOf(`--${name}`);
   return at > 0 ? Number(process.argv[at + 1]) : fallback;
-}
-
-function median(values: number[]): number {
-  const sorted = [...values].sort((a, b) => a - b);
-  const middle = Math.floor(sorted.length / 2);
-  return sorted.length % 2 ? sorted[middle] : (sorted[middle - 1] + sorted[middle]) / 2;
 }
 
 async function measure(session: ScpiSession, queries: number, transfers: number): Promise<{ queryMs: number; transferMs: number; blockBytes: number }> {

@@ -20,7 +20,7 @@ import { describe, expect, it } from 'vitest';
 import { monteCarloAc, parseDesign, solveAc, type Design } from '../../../app/circuit';
 import { normalCdf } from '../../helpers/normal-distribution';
 import { covers, expectCoverage, scaledInterval } from '../../helpers/coverage';
-import { seededUniform } from '../signal/seeded-random';
+import { seededUniform } from '../../helpers/test-signals';
 
 const R0 = 10e3;
 const C0 = 15.9e-9;

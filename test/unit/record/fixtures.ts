@@ -13,16 +13,14 @@ import { dbFromRatio, degreesFromRadians, logGrid } from '../../../app/units';
 import { logStageIdeal } from '../../../app/circuit/log-stage';
 import { fitLogStage, logFitFigures } from '../../../app/signal';
 import type { RecordDcFit } from '../../../app/record';
+import { SeededRandom } from '../../../app/numeric';
 
 export const INVENTED_NOTE = 'Invented demo data for tests (theory plus seeded noise), not a measurement.';
 
-/** Park–Miller minimal standard generator: deterministic noise for reproducible fixtures. */
+/** Deterministic noise for reproducible fixtures, uniform in [−0.5, 0.5): the project's seeded generator (app/numeric). */
 function seededNoise(seed: number): () => number {
-  let state = seed % 2147483647 || 1;
-  return () => {
-    state = (state * 48271) % 2147483647;
-    return state / 2147483647 - 0.5;
-  };
+  const random = new SeededRandom(seed);
+  return () => random.nextUniform() - 0.5;
 }
 
 export interface StageValues {

@@ -10,7 +10,7 @@ import {
   studentTQuantile,
 } from '../../../app/signal';
 import { thermalVoltageV } from '../../../app/circuit/thermal-voltage';
-import { seededGaussian } from './seeded-random';
+import { seededGaussian } from '../../helpers/test-signals';
 import { covers, expectCoverage, scaledInterval } from '../../helpers/coverage';
 import { normalCdf } from '../../helpers/normal-distribution';
 

@@ -8,7 +8,7 @@ import {
   sineFit3,
   twoChannelResponse,
 } from '../../../app/signal';
-import { noisySine, seededGaussian } from './seeded-random';
+import { noisySine, seededGaussian } from '../../helpers/test-signals';
 
 const record = { frequencyHz: 1000, sampleIntervalS: 1e-5, sampleCount: 500 }; // 5 cycles
 

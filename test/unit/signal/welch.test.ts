@@ -12,7 +12,7 @@
 import { describe, expect, it } from 'vitest';
 import { ValidationError } from '../../../app/errors';
 import { welchPsd } from '../../../app/signal';
-import { seededGaussian } from './seeded-random';
+import { seededGaussian } from '../../helpers/test-signals';
 import { covers, expectCoverage, scaledInterval } from '../../helpers/coverage';
 
 const SAMPLE_RATE_HZ = 100e3;
