@@ -8,7 +8,8 @@ import { optionFlag, optionNumber, optionString } from '../../cli/args';
 import { ValidationError } from '../../errors';
 import type { RolloffService } from '../../service/service';
 import { openServiceAt } from '../../service/open-service';
-import type { ConnectRequest, SweepRequest, VerdictLimits } from '../../contract/contract';
+import { SweepRequestSchema, type ConnectRequest, type SweepRequest, type VerdictLimits } from '../../contract/contract';
+import { checkValue } from '../../contract/check-call';
 import { resolveDatabasePath } from '../../store';
 import { DEFAULT_PROFILE_ID, resolveBenchName } from '../../bench';
 import { parseEngineering } from '../../units';
@@ -113,22 +114,32 @@ export async function prepareSweep(service: RolloffService, parsed: ParsedArgs):
   }
 }
 
-/** The command-line option behind each field of a sweep request, so a refused plan names what the user typed. */
+/**
+ * The command-line option behind each field of a sweep request (as the plan
+ * names it, or as the schema's path `request.…`), so a refusal names what the
+ * user typed.
+ */
 const OPTION_OF_FIELD: Record<string, string> = {
   from: '--from',
   to: '--to',
   'from/to': '--from/--to',
   amplitude: '--amplitude',
+  'amplitude.vpp': '--amplitude',
   'target output': '--target-output',
+  'amplitude.targetOutputVpp': '--target-output',
   pointsPerDecade: '--per-decade',
   points: '--points',
   minCycles: '--cycles',
   averages: '--averages',
+  'limits.maxDeviationDb': '--max-deviation',
+  'limits.cornerTolerance': '--corner-tolerance',
+  operator: '--operator',
+  notes: '--notes',
 };
 
 export function namedForTheCommandLine(error: unknown): unknown {
   if (!(error instanceof ValidationError)) return error;
-  const option = OPTION_OF_FIELD[error.where];
+  const option = OPTION_OF_FIELD[error.where.replace(/^request\./, '')];
   if (option === undefined) return error;
   return new ValidationError(option, error.message.slice(error.where.length + 2), error.hint);
 }
@@ -181,7 +192,19 @@ export function connectRequestsFrom(parsed: ParsedArgs): ConnectRequest[] {
   });
 }
 
+/**
+ * The sweep request the options describe, checked by the contract's own schema
+ * (as a window's call is at the host boundary); a refusal names the option.
+ * `buildId` 0: a build not stored yet (--design), checked before it is.
+ */
 export function requestFrom(parsed: ParsedArgs, buildId: number): SweepRequest {
+  const request = requestOfOptions(parsed, buildId);
+  // The build is checked where --build/--design are read; any stored id stands in for one not stored yet.
+  const checked = checkValue(SweepRequestSchema, { ...request, buildId: buildId || 1 }, 'request');
+  return { ...checked, buildId };
+}
+
+function requestOfOptions(parsed: ParsedArgs, buildId: number): SweepRequest {
   const measure = optionString(parsed, 'measure') ?? 'scope';
   if (measure !== 'scope' && measure !== 'meter') throw new ValidationError('--measure', `"${measure}" is not scope or meter`);
   const through = optionFlag(parsed, 'through');
