@@ -36,8 +36,10 @@ describe('shipped profiles', () => {
     for (const profile of builtInProfiles()) expect(profile.id).toMatch(/^scpi-(generator|meter|scope)$/);
   });
 
-  it('name where each scope and meter command comes from', () => {
-    for (const profile of builtInProfiles().filter((p) => p.role !== 'generator')) {
+  it('name where each command comes from (generator, meter and scope)', () => {
+    const profiles = builtInProfiles();
+    expect(profiles.map((p) => p.role).sort()).toEqual(['generator', 'meter', 'scope']);
+    for (const profile of profiles) {
       for (const name of Object.keys(profile.operations)) expect(profile.references[`operations.${name}`], `${profile.id} ${name}`).toMatch(/SCPI-1999 Vol\. \d|IEEE 488\.2|our own/);
       profile.init.forEach((_, i) => expect(profile.references[`init[${i}]`], `${profile.id} init[${i}]`).toBeDefined());
     }
@@ -47,6 +49,12 @@ describe('shipped profiles', () => {
     const scope = builtInProfiles().find((p) => p.id === 'scpi-scope')!;
     const sent = [...scope.init, ...Object.values(scope.operations).flat()].join(' ');
     for (const word of ['CHANnel', 'TIMebase', 'WAVeform', 'MEASure', 'PREamble', 'ACQuire']) expect(sent).not.toContain(word);
+  });
+
+  it('the generator profile sends no load or unit-selection header: SCPI-1999 defines neither for a source amplitude', () => {
+    const generator = builtInProfiles().find((p) => p.id === 'scpi-generator')!;
+    const sent = [...generator.init, ...Object.values(generator.operations).flat()].join(' ');
+    for (const word of ['OUTPut:LOAD', 'UNIT:VOLTage']) expect(sent.toUpperCase()).not.toContain(word.toUpperCase());
   });
 });
 
