@@ -8,6 +8,7 @@
 import { describe, expect, it } from 'vitest';
 import { HeaderPattern, splitProgramMessage } from '../../../app/sim/program-message';
 import { SimGenerator } from '../../../app/sim/sim-generator';
+import { SimScope } from '../../../app/sim/sim-scope';
 import { BenchModel } from '../../../app/sim/bench-model';
 import { CircuitUnderTest } from '../../../app/sim/circuit-under-test';
 import { scaledClock } from '../../../app/bench';
@@ -59,6 +60,16 @@ describe('simulated instrument errors', () => {
     await gen.execute('BOGUS');
     expect(await gen.execute('*ESR?')).toBe('32');
     expect(await gen.execute('*ESR?')).toBe('0');
+  });
+
+  it('the simulated scope refuses old maker-dialect headers with -113 and answers nothing, as an instrument of SCPI-1999 terms only', async () => {
+    const clock = scaledClock(1);
+    const scope = new SimScope(new BenchModel(new CircuitUnderTest(DESIGN, 50), clock, 0, 1), clock);
+    for (const header of ['WAVeform:DATA?', 'WAV:PRE?', 'CHANnel1:SCALe 0.5', 'TIMebase:SCALe 1E-3', 'ACQuire:POINts 1000', 'MEASure:VPP? CHANnel1']) {
+      expect(await scope.execute(header), header).toBeUndefined();
+      expect(await scope.execute('SYST:ERR?'), header).toMatch(/^-113,"Undefined header/);
+    }
+    expect(await scope.execute('SYST:ERR?')).toBe('0,"No error"');
   });
 
   it('queues -222 "Data out of range" for a frequency beyond the generator and keeps the old value', async () => {
