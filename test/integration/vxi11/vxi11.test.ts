@@ -35,7 +35,9 @@ const EXAMPLE_DESIGN = join(__dirname, '../../../app/circuit/examples/inverting-
 /** Small on purpose: a 10,000-point record (20,000 bytes) then needs several device_write/device_read calls. */
 const SMALL_MAX_RECV_SIZE_BYTES = 16;
 
-const tools = requireTool('rpcbind', 'pyvisaPy', 'lxi');
+const tools = requireTool('rpcbind', 'pyvisaPy');
+/** lxi-tools is optional (not in every Debian release): its one check skips alone, pyvisa-py's still run. */
+const hasLxi = requireTool('lxi');
 
 describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () => {
   let bench: SimulatedBench;
@@ -114,7 +116,7 @@ describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () 
     expect(out.trace).toEqual(socketTrace);
   }, 30_000);
 
-  it('lxi-tools reads *IDN? of the default device inst0 (the generator)', async () => {
+  it.skipIf(!hasLxi)('lxi-tools reads *IDN? of the default device inst0 (the generator)', async () => {
     const { stdout } = await run('lxi', ['scpi', '--address', '127.0.0.1', '*IDN?'], { timeout: 15_000 });
     expect(stdout).toMatch(/simulated bench \(simulated\),simulated generator,/);
   }, 20_000);
