@@ -33,6 +33,13 @@ export class Vxi11Transport extends TransportListeners implements Transport {
   private readonly operations = new OperationQueue();
   /** device_read calls made so far (the benchmark and tests count them). */
   deviceReadCalls = 0;
+  /**
+   * A response read failed (a timeout, an abort): the instrument may still
+   * hold that response, or deliver it later, and the next device_read would
+   * take it for the next query's. The next message is preceded by
+   * device_clear, which empties the instrument's buffers.
+   */
+  private clearBeforeNextMessage = false;
 
   constructor(private readonly settings: Vxi11Settings) {
     super();
@@ -64,7 +71,13 @@ export class Vxi11Transport extends TransportListeners implements Transport {
       const timeoutS = options.timeoutS ?? this.settings.ioTimeoutS ?? 5;
       // No read after a failed write: the instrument has no query to answer, and the write's own error reaches the session.
       this.operations.run(async () => {
-        if (await written.then(() => true, () => false)) await this.readMessage(link, timeoutS, command);
+        if (!(await written.then(() => true, () => false))) return;
+        try {
+          await this.readMessage(link, timeoutS, command);
+        } catch (error) {
+          this.clearBeforeNextMessage = true;
+          throw error;
+        }
       }).catch((error: Error) => this.emitFailure(this.named(error, command)));
     }
     return written.catch((error: Error) => {
@@ -102,6 +115,10 @@ export class Vxi11Transport extends TransportListeners implements Transport {
 
   private async writeMessage(link: Vxi11Link, bytes: Uint8Array, command: string): Promise<void> {
     const ioTimeoutS = this.settings.ioTimeoutS ?? 5;
+    if (this.clearBeforeNextMessage) {
+      await link.clear(ioTimeoutS);
+      this.clearBeforeNextMessage = false;
+    }
     let at = 0;
     do {
       const chunk = bytes.subarray(at, Math.min(bytes.length, at + link.maxRecvSize));
