@@ -39,6 +39,18 @@ const tools = requireTool('rpcbind', 'pyvisaPy');
 /** lxi-tools is optional (not in every Debian release): its one check skips alone, pyvisa-py's still run. */
 const hasLxi = requireTool('lxi');
 
+/** The status byte's MAV bit: a response is waiting in the output buffer (IEEE 488.2 §11.2, bit 4, recalled from memory). */
+const MAV = 0x10;
+
+/** Waits (up to 2 s) until the device reports a response waiting, so a test knows one is queued. */
+async function responseQueued(link: Vxi11Link): Promise<void> {
+  for (let i = 0; i < 200; i++) {
+    if ((await link.readStatusByte()) & MAV) return;
+    await new Promise((resolve) => setTimeout(resolve, 10));
+  }
+  throw new Error('no response was queued within 2 s');
+}
+
 describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () => {
   let bench: SimulatedBench;
   /** The same scope record as read over the raw socket, big-endian int16 codes (the power-on format). */
@@ -167,6 +179,61 @@ describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () 
     await link.write(new TextEncoder().encode('*IDN?\n'), true, 1);
     expect(new TextDecoder().decode((await link.read(1024, 2)).data)).toMatch(/simulated meter/);
     await link.destroy();
+    await session.close();
+  }, 20_000);
+
+  it('device_clear drops a response not yet read: the next query reads its own reply, not the stale one', async () => {
+    const link = await Vxi11Link.open({ host: '127.0.0.1', device: 'inst1' }, 'test link');
+    const send = (text: string) => link.write(new TextEncoder().encode(text), true, 2);
+    const readText = async () => new TextDecoder().decode((await link.read(1024, 2)).data).trim();
+    await send('*CLS');
+    // Control, no clear: a response left unread is what the next query's read gets.
+    await send('*IDN?');
+    await responseQueued(link);
+    await send('SYSTem:ERRor?');
+    expect(await readText()).toMatch(/simulated meter/);
+    expect(await readText()).toBe('0,"No error"');
+    // With a clear in between, the queued *IDN? response is gone (MAV falls, IEEE 488.2 §11.2 bit 4, recalled).
+    await send('*IDN?');
+    await responseQueued(link);
+    await link.clear();
+    expect(await link.readStatusByte() & MAV).toBe(0);
+    await send('SYSTem:ERRor?');
+    expect(await readText()).toBe('0,"No error"');
+    await link.destroy();
+  }, 20_000);
+
+  it('device_clear drops a partial command in the input buffer: what follows is parsed on its own', async () => {
+    const link = await Vxi11Link.open({ host: '127.0.0.1', device: 'inst1' }, 'test link');
+    const encode = (text: string) => new TextEncoder().encode(text);
+    const readText = async () => new TextDecoder().decode((await link.read(1024, 2)).data).trim();
+    await link.write(encode('*CLS'), true, 2);
+    // Control, no clear: "SYSTem:ERR" without END joins the next write into one unknown header, −113 and no reply.
+    await link.write(encode('SYSTem:ERR'), false, 2);
+    await link.write(encode('*IDN?'), true, 2);
+    await expect(link.read(1024, 0.5)).rejects.toBeInstanceOf(ScpiTimeoutError);
+    await link.write(encode('SYSTem:ERRor?'), true, 2);
+    expect(await readText()).toMatch(/^-113,"Undefined header/);
+    // With a clear after the partial command, *IDN? arrives alone and no error is queued.
+    await link.write(encode('SYSTem:ERR'), false, 2);
+    await link.clear();
+    await link.write(encode('*IDN?'), true, 2);
+    expect(await readText()).toMatch(/simulated meter/);
+    await link.write(encode('SYSTem:ERRor?'), true, 2);
+    expect(await readText()).toBe('0,"No error"');
+    await link.destroy();
+  }, 20_000);
+
+  it('a session query that timed out: its late reply is cleared (device_clear), the next query gets its own reply', async () => {
+    const session = await connect(bench.vxi11Addresses!.meter);
+    await session.clearStatus();
+    await bench.setFault('meter', { kind: 'slow', delayS: 0.6 });
+    await expect(session.query('*IDN?', { timeoutS: 0.2 })).rejects.toBeInstanceOf(ScpiTimeoutError);
+    await bench.setFault('meter', null);
+    // The late *IDN? response is in the instrument's output buffer by now.
+    await new Promise((resolve) => setTimeout(resolve, 800));
+    expect(await session.query('SYSTem:ERRor?')).toBe('0,"No error"');
+    expect((await session.identify()).model).toBe('simulated meter');
     await session.close();
   }, 20_000);
 
