@@ -16,7 +16,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { connect, ScpiDisconnectedError, ScpiLinkError, ScpiLockedError, ScpiSession, ScpiTimeoutError, Vxi11Transport } from '../../../app/scpi';
 import { Vxi11Link } from '../../../app/scpi/vxi11/vxi11-client';
 import { getPort } from '../../../app/scpi/vxi11/portmapper';
-import { DEVICE_CORE_PROGRAM, DEVICE_CORE_VERSION } from '../../../app/scpi/vxi11/protocol';
+import { DEVICE_CORE_PROGRAM, DEVICE_CORE_VERSION, Reason } from '../../../app/scpi/vxi11/protocol';
 import { startSimulatedBench, type SimulatedBench } from '../../../app/sim';
 import { Vxi11RegistrationError } from '../../../app/sim/vxi11-server';
 import { UserError } from '../../../app/errors';
@@ -234,6 +234,61 @@ describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () 
     await new Promise((resolve) => setTimeout(resolve, 800));
     expect(await session.query('SYSTem:ERRor?')).toBe('0,"No error"');
     expect((await session.identify()).model).toBe('simulated meter');
+    await session.close();
+  }, 20_000);
+
+  /*
+   * device_read's term char (VXI-11 rev 1.0, device_read; recalled from memory, section number
+   * not checked): flag termchrset (bit 7, 0x80) turns it on; a read that stops after that byte
+   * gives reason CHR (bit 1, 0x02), one that fills the request REQCNT (bit 0, 0x01), the message's
+   * last byte END (bit 2, 0x04). Rolloff's transport sets no term char and reads to END (see below).
+   */
+  it('device_read with a term char stops after it with reason CHR; END only on the last piece; REQCNT on a full request', async () => {
+    const link = await Vxi11Link.open({ host: '127.0.0.1', device: 'inst1' }, 'test link');
+    const decode = (bytes: Uint8Array) => new TextDecoder().decode(bytes);
+    await link.write(new TextEncoder().encode('*IDN?'), true, 2);
+    const whole = await link.read(1024, 2);
+    expect(whole.reason).toBe(Reason.end);
+    // *IDN? has four fields (IEEE 488.2 §10.14, recalled): three commas, so four pieces.
+    await link.write(new TextEncoder().encode('*IDN?'), true, 2);
+    const pieces = [];
+    for (let i = 0; i < 10; i++) {
+      const piece = await link.read(1024, 2, undefined, ','.charCodeAt(0));
+      pieces.push(piece);
+      if (piece.reason & Reason.end) break;
+    }
+    expect(pieces.map((p) => p.reason)).toEqual([Reason.termChar, Reason.termChar, Reason.termChar, Reason.end]);
+    pieces.slice(0, 3).forEach((p) => expect(decode(p.data)).toMatch(/,$/));
+    expect(pieces.map((p) => decode(p.data)).join('')).toBe(decode(whole.data));
+    // A request smaller than the response: REQCNT, the rest in the next read.
+    await link.write(new TextEncoder().encode('*IDN?'), true, 2);
+    const first = await link.read(8, 2);
+    expect(first.reason).toBe(Reason.requestCount);
+    expect(first.data).toHaveLength(8);
+    const rest = await link.read(1024, 2);
+    expect(rest.reason).toBe(Reason.end);
+    expect(decode(first.data) + decode(rest.data)).toBe(decode(whole.data));
+    await link.destroy();
+  }, 20_000);
+
+  it('why the transport reads to END: a block may hold any byte, so a term char would stop a block read inside the block', async () => {
+    const blockBytes = new Uint8Array(socketTrace.length * 2);
+    const view = new DataView(blockBytes.buffer);
+    socketTrace.forEach((code, i) => view.setInt16(2 * i, code, false));
+    const message = new Uint8Array([...new TextEncoder().encode(`#5${String(blockBytes.length).padStart(5, '0')}`), ...blockBytes, 0x0a]);
+    // Whatever byte is chosen as term char, a record can hold it: take one from the middle of this one.
+    const termChar = blockBytes[blockBytes.length >> 1];
+    const link = await Vxi11Link.open({ host: '127.0.0.1', device: 'inst2' }, 'test link');
+    await link.write(new TextEncoder().encode('TRACe:DATA? CH1'), true, 5);
+    const piece = await link.read(1 << 20, 5, undefined, termChar);
+    expect(piece.reason).toBe(Reason.termChar);
+    expect(piece.data).toEqual(message.subarray(0, message.indexOf(termChar) + 1));
+    expect(piece.data.length).toBeLessThan(message.length);
+    await link.clear();
+    await link.destroy();
+    // The transport (no term char) reads the same block whole.
+    const session = await connect(bench.vxi11Addresses!.scope);
+    expect(await session.queryBlock('TRACe:DATA? CH1')).toEqual(blockBytes);
     await session.close();
   }, 20_000);
 
