@@ -321,6 +321,38 @@ describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () 
     await holder.close();
   }, 20_000);
 
+  it('device_lock while another link holds the lock: waits lock_timeout then a named lock error; 0 fails at once; a lock freed during the wait is taken', async () => {
+    const holder = new Vxi11Transport({ host: '127.0.0.1', device: 'inst1' });
+    const other = new Vxi11Transport({ host: '127.0.0.1', device: 'inst1', lockTimeoutS: 0.3 });
+    await holder.open();
+    await other.open();
+    await holder.lock();
+    let started = performance.now();
+    const refused = await other.lock().catch((e: unknown) => e);
+    expect(performance.now() - started).toBeGreaterThanOrEqual(290);
+    expect(refused).toBeInstanceOf(ScpiLockedError);
+    expect((refused as ScpiLockedError).message).toMatch(/locked by another connection \(device_lock, waited 0\.3 s\)/);
+    expect((refused as ScpiLockedError).lockTimeoutS).toBe(0.3);
+    // lock_timeout 0: no waitlock flag, refused at once (well under the 0.3 s wait above).
+    started = performance.now();
+    await expect(other.lock(0)).rejects.toBeInstanceOf(ScpiLockedError);
+    expect(performance.now() - started).toBeLessThan(290);
+    // A lock released while the other link waits for it is taken then (not at the end of the 5 s wait), not refused.
+    started = performance.now();
+    const waiting = other.lock(5);
+    await new Promise((resolve) => setTimeout(resolve, 100));
+    await holder.unlock();
+    await waiting;
+    expect(performance.now() - started).toBeLessThan(2500);
+    // Now the first link is the one kept out: its write (lock_timeout 0) fails with the lock error, not a hang.
+    const holderSession = new ScpiSession(holder);
+    await expect(holderSession.write('*CLS')).rejects.toBeInstanceOf(ScpiLockedError);
+    await other.unlock();
+    await holderSession.write('*CLS');
+    await holder.close();
+    await other.close();
+  }, 20_000);
+
   it('an unknown device name is refused at create_link with VXI-11 error 3, named', async () => {
     const error = await connect('TCPIP::127.0.0.1::inst9::INSTR').catch((e: unknown) => e);
     expect(error).toBeInstanceOf(ScpiLinkError);
