@@ -62,7 +62,6 @@ export class ScpiSession {
     this.traffic = options.traffic ?? new TrafficLog();
     transport.onData((bytes) => this.receive(bytes));
     transport.onClose((reason) => this.linkClosed(reason));
-    transport.onFailure((error) => this.requestFailed(error));
     if (!transport.isOpen) this.closedReason = 'not opened';
   }
 
@@ -190,14 +189,14 @@ export class ScpiSession {
     return this.queue.run(operation);
   }
 
-  /** `reply`: the command is a query; a message-based transport then reads its response within timeoutS. */
-  private async send(command: string, reply?: { timeoutS: number }): Promise<void> {
+  /** `reply`: the command is a query; a message-based transport then reads its response within timeoutS, or calls `failed`. */
+  private async send(command: string, reply?: { timeoutS: number; failed: (error: Error) => void }): Promise<void> {
     if (/[\r\n]/.test(command)) throw new ValidationError('command', `"${command.replace(/[\r\n]/g, '⏎')}" contains a line break`, 'Send one command per line.');
     if (this.closedReason !== undefined) throw new ScpiDisconnectedError(this.link, this.closedReason, command);
     this.discardStaleInput();
     this.traffic.add('sent', command, this.link);
     try {
-      await this.transport.write(encoder.encode(`${command}\n`), reply ? { replyExpected: true, timeoutS: reply.timeoutS } : undefined);
+      await this.transport.write(encoder.encode(`${command}\n`), reply ? { replyExpected: true, timeoutS: reply.timeoutS, onReplyFailure: reply.failed } : undefined);
     } catch (error) {
       if (error instanceof ScpiError) throw error; // already named by the transport (a VXI-11 lock or timeout, say)
       throw new ScpiDisconnectedError(this.link, (error as Error).message ?? String(error), command);
@@ -225,7 +224,7 @@ export class ScpiSession {
         },
       };
       this.pending = pending;
-      this.send(command, { timeoutS }).then(
+      this.send(command, { timeoutS, failed: (error) => this.requestFailed(pending, error) }).then(
         () => this.deliver(),
         (error: Error) => {
           if (this.pending === pending) this.pending = undefined;
@@ -289,10 +288,9 @@ export class ScpiSession {
     this.buffer = new Uint8Array(0);
   }
 
-  /** A message-based transport could not get the response (its own timeout, a lock): the waiting query fails with that error. */
-  private requestFailed(error: Error): void {
-    const pending = this.pending;
-    if (!pending) return; // the query already timed out here
+  /** A message-based transport could not get this query's response (its own timeout, a lock): the query fails with that error. */
+  private requestFailed(pending: PendingReply, error: Error): void {
+    if (this.pending !== pending) return; // it already timed out here; a later query is not its to fail
     this.pending = undefined;
     pending.reject(error);
   }

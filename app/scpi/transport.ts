@@ -19,8 +19,6 @@ export interface Transport {
   onData(listener: (bytes: Uint8Array) => void): void;
   /** Called once when the link closes for any reason, including close(). */
   onClose(listener: (reason: string) => void): void;
-  /** A message-based link's request for a response failed without closing the link (a timeout, a lock held elsewhere). */
-  onFailure(listener: (error: Error) => void): void;
   close(): Promise<void>;
 }
 
@@ -29,6 +27,12 @@ export interface WriteOptions {
   replyExpected?: boolean;
   /** How long the instrument may take to respond, seconds (the command's time limit). */
   timeoutS?: number;
+  /**
+   * A message-based link could not read this message's response without the
+   * link closing (a timeout, a lock held elsewhere). Given per message, so the
+   * late failure of a query the session already gave up on cannot fail the next one.
+   */
+  onReplyFailure?: (error: Error) => void;
 }
 
 /**
@@ -38,7 +42,6 @@ export interface WriteOptions {
 export abstract class TransportListeners {
   private readonly dataListeners: Array<(bytes: Uint8Array) => void> = [];
   private readonly closeListeners: Array<(reason: string) => void> = [];
-  private readonly failureListeners: Array<(error: Error) => void> = [];
   /** The close has been reported: the link is closed for good. */
   protected closeReported = false;
 
@@ -48,14 +51,6 @@ export abstract class TransportListeners {
 
   onClose(listener: (reason: string) => void): void {
     this.closeListeners.push(listener);
-  }
-
-  onFailure(listener: (error: Error) => void): void {
-    this.failureListeners.push(listener);
-  }
-
-  protected emitFailure(error: Error): void {
-    for (const listener of this.failureListeners) listener(error);
   }
 
   protected emitData(bytes: Uint8Array): void {

@@ -84,7 +84,7 @@ export class UsbtmcTransport extends TransportListeners implements Transport {
         try {
           await this.readResponse(node);
         } catch (error) {
-          this.emitFailure(this.failed(error as NodeJS.ErrnoException, command, timeoutS));
+          options.onReplyFailure?.(this.failed(error as NodeJS.ErrnoException, command, timeoutS));
         }
       });
     }

@@ -78,7 +78,7 @@ export class Vxi11Transport extends TransportListeners implements Transport {
           this.clearBeforeNextMessage = true;
           throw error;
         }
-      }).catch((error: Error) => this.emitFailure(this.named(error, command)));
+      }).catch((error: Error) => options.onReplyFailure?.(this.named(error, command)));
     }
     return written.catch((error: Error) => {
       throw this.named(error, command);
