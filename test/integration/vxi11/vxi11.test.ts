@@ -292,6 +292,17 @@ describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () 
     await session.close();
   }, 20_000);
 
+  it('a query sent at once after a timed-out one gets its own reply, not the earlier query\'s late timeout', async () => {
+    const session = await connect(bench.vxi11Addresses!.meter);
+    await session.clearStatus();
+    await bench.setFault('meter', { kind: 'slow', delayS: 0.6 });
+    await expect(session.query('*IDN?', { timeoutS: 0.2 })).rejects.toBeInstanceOf(ScpiTimeoutError);
+    await bench.setFault('meter', null);
+    // No pause: the *IDN? device_read is still ending (error 15) when this query starts.
+    expect(await session.query('SYSTem:ERRor?')).toBe('0,"No error"');
+    await session.close();
+  }, 20_000);
+
   it('device_abort on the abort channel ends a waiting read with VXI-11 error 23', async () => {
     await bench.setFault('meter', { kind: 'no-reply' });
     const link = await Vxi11Link.open({ host: '127.0.0.1', device: 'inst1' }, 'test link');
