@@ -42,6 +42,14 @@ const hasLxi = requireTool('lxi');
 /** The status byte's MAV bit: a response is waiting in the output buffer (IEEE 488.2 §11.2, bit 4, recalled from memory). */
 const MAV = 0x10;
 
+/** A bare link to the meter (inst1): `send` writes one message (END on it unless `end` is false), `readText` reads one response. */
+async function meterLink() {
+  const link = await Vxi11Link.open({ host: '127.0.0.1', device: 'inst1' }, 'test link');
+  const send = (text: string, end = true) => link.write(new TextEncoder().encode(text), end, 2);
+  const readText = async () => new TextDecoder().decode((await link.read(1024, 2)).data).trim();
+  return { link, send, readText };
+}
+
 /** Waits (up to 2 s) until the device reports a response waiting, so a test knows one is queued. */
 async function responseQueued(link: Vxi11Link): Promise<void> {
   for (let i = 0; i < 200; i++) {
@@ -183,9 +191,7 @@ describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () 
   }, 20_000);
 
   it('device_clear drops a response not yet read: the next query reads its own reply, not the stale one', async () => {
-    const link = await Vxi11Link.open({ host: '127.0.0.1', device: 'inst1' }, 'test link');
-    const send = (text: string) => link.write(new TextEncoder().encode(text), true, 2);
-    const readText = async () => new TextDecoder().decode((await link.read(1024, 2)).data).trim();
+    const { link, send, readText } = await meterLink();
     await send('*CLS');
     // Control, no clear: a response left unread is what the next query's read gets.
     await send('*IDN?');
@@ -204,22 +210,20 @@ describe.skipIf(!tools)('simulated bench over VXI-11 (portmapper: rpcbind)', () 
   }, 20_000);
 
   it('device_clear drops a partial command in the input buffer: what follows is parsed on its own', async () => {
-    const link = await Vxi11Link.open({ host: '127.0.0.1', device: 'inst1' }, 'test link');
-    const encode = (text: string) => new TextEncoder().encode(text);
-    const readText = async () => new TextDecoder().decode((await link.read(1024, 2)).data).trim();
-    await link.write(encode('*CLS'), true, 2);
+    const { link, send, readText } = await meterLink();
+    await send('*CLS');
     // Control, no clear: "SYSTem:ERR" without END joins the next write into one unknown header, −113 and no reply.
-    await link.write(encode('SYSTem:ERR'), false, 2);
-    await link.write(encode('*IDN?'), true, 2);
+    await send('SYSTem:ERR', false);
+    await send('*IDN?');
     await expect(link.read(1024, 0.5)).rejects.toBeInstanceOf(ScpiTimeoutError);
-    await link.write(encode('SYSTem:ERRor?'), true, 2);
+    await send('SYSTem:ERRor?');
     expect(await readText()).toMatch(/^-113,"Undefined header/);
     // With a clear after the partial command, *IDN? arrives alone and no error is queued.
-    await link.write(encode('SYSTem:ERR'), false, 2);
+    await send('SYSTem:ERR', false);
     await link.clear();
-    await link.write(encode('*IDN?'), true, 2);
+    await send('*IDN?');
     expect(await readText()).toMatch(/simulated meter/);
-    await link.write(encode('SYSTem:ERRor?'), true, 2);
+    await send('SYSTem:ERRor?');
     expect(await readText()).toBe('0,"No error"');
     await link.destroy();
   }, 20_000);
