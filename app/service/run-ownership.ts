@@ -94,6 +94,31 @@ export async function claimOrRefuse(store: RolloffStore, runId: number, me: RunC
 }
 
 /**
+ * Claims a run for a resume, which commands its bench's instruments again: refused
+ * with RunOwnedElsewhereError while the run has a live owner, and with
+ * BenchInUseError naming the run that holds its bench while another run of that
+ * bench has one (RunStore.claimRunOnFreeBench: the check and the claim are one
+ * transaction). A holder or owner whose process is gone on this host is released
+ * and the claim tried again. `benchOfUnnamedRun`: the bench a run stored before benches had names is resumed on.
+ */
+export async function claimForResumeOrRefuse(store: RolloffStore, run: Pick<StoredRun, 'id' | 'benchName'>, benchOfUnnamedRun: string, me: RunClaimant, staleAfterMs: number): Promise<void> {
+  const claim = () => store.claimRunOnFreeBench(run.id, me, staleAfterMs, benchOfUnnamedRun);
+  let result = await claim();
+  // The bench first, then the run's own owner: a refused resume leaves even a dead owner's run as it was.
+  if ('benchHeldBy' in result && (await releaseIfGone(store, result.benchHeldBy.runId, result.benchHeldBy.ownership, me))) result = await claim();
+  if (!('benchHeldBy' in result) && !result.claimed && (await releaseIfGone(store, run.id, result.ownership, me))) result = await claim();
+  if ('benchHeldBy' in result) throw new BenchInUseError(run.benchName || benchOfUnnamedRun, result.benchHeldBy.runId, result.benchHeldBy.ownership);
+  if (!result.claimed) throw new RunOwnedElsewhereError(run.id, result.ownership, 'resumed');
+}
+
+/** Releases a run whose owner's process is gone on this host (killed a moment ago); true when it did. */
+async function releaseIfGone(store: RolloffStore, runId: number, ownership: RunOwnership, me: RunClaimant): Promise<boolean> {
+  if (ownership.ownerId === me.ownerId || !ownerProcessIsGone(ownership)) return false;
+  await store.releaseRun(runId, ownership.ownerId);
+  return true;
+}
+
+/**
  * Creates the run owned by me, or throws BenchInUseError naming the run that
  * holds the bench (RunStore.createOwnedRun: the check and the creation are one
  * transaction). A holder whose process is gone on this host is released first,
@@ -102,8 +127,7 @@ export async function claimOrRefuse(store: RolloffStore, runId: number, me: RunC
  */
 export async function createOwnedRunOrRefuse(store: RolloffStore, input: NewRun & { benchName: string }, me: RunClaimant, staleAfterMs: number): Promise<StoredRun> {
   let result = await store.createOwnedRun(input, me, staleAfterMs);
-  if (!result.created && result.benchHeldBy.ownership.ownerId !== me.ownerId && ownerProcessIsGone(result.benchHeldBy.ownership)) {
-    await store.releaseRun(result.benchHeldBy.runId, result.benchHeldBy.ownership.ownerId);
+  if (!result.created && (await releaseIfGone(store, result.benchHeldBy.runId, result.benchHeldBy.ownership, me))) {
     result = await store.createOwnedRun(input, me, staleAfterMs);
   }
   if (!result.created) throw new BenchInUseError(input.benchName, result.benchHeldBy.runId, result.benchHeldBy.ownership);

@@ -36,7 +36,7 @@ import { startSimulatedBenchFor, type SimulatedBenchHandle, type SimulatedBenchS
 import { exportRecordFor } from './export';
 import { StimulusLimits } from './stimulus-limits';
 import { benchDescription } from '../contract/bench-text';
-import { claimOrRefuse, createOwnedRunOrRefuse, HEARTBEAT_INTERVAL_MS, runOwnerOf, STALE_AFTER_MS, thisProcessClaimant } from './run-ownership';
+import { claimForResumeOrRefuse, claimOrRefuse, createOwnedRunOrRefuse, HEARTBEAT_INTERVAL_MS, runOwnerOf, STALE_AFTER_MS, thisProcessClaimant } from './run-ownership';
 
 export interface RolloffServiceOptions {
   /**
@@ -442,11 +442,12 @@ export class RolloffService implements RolloffApi {
   private async resumeOnHeldBench(run: StoredRun, instruments: ConnectRequest[]): Promise<RunSummary> {
     const runId = run.id;
     if (run.status === 'done') throw new RunStateError(runId, 'is finished; nothing to resume', 'Start a new run of the same build instead.');
-    // One conditional update in the store: of two processes resuming a stale run, one wins, the other is told who.
-    await claimOrRefuse(this.store, runId, this.claimant, this.staleAfterMs, 'resumed');
+    // One store transaction: of two processes resuming a stale run, one wins, the other is told who; and a run
+    // commands its bench's instruments only while no other run of that bench is driven.
+    // Runs stored before benches had names were this machine's.
+    await claimForResumeOrRefuse(this.store, run, this.benchName, this.claimant, this.staleAfterMs);
     try {
       // The limit of the run's own bench, never the one recorded with the run (it may be older than the bench's setting).
-      // Runs stored before benches had names were this machine's.
       const runBench: BenchIdentity = { name: run.benchName || this.benchName, simulated: run.simulated };
       await this.enterBench(runBench);
       const maxStimulusVpp = this.requireMaxStimulus(`run ${runId} was measured on ${benchDescription(runBench)}, which has no maximum stimulus set`);

@@ -89,6 +89,7 @@ import type {
   RunClaimant,
   RunClaimResult,
   OwnedRunResult,
+  BenchClaimResult,
   RunOwnership,
 } from './types';
 
@@ -125,6 +126,7 @@ export class SqliteStore implements RolloffStore {
   private readonly insertPointTransaction: (runId: number, point: NewPoint, asOwner: string | null) => void;
   private readonly insertPointsTransaction: (batches: readonly PointBatch[]) => void;
   private readonly createOwnedRunTransaction: Database.Transaction<(input: NewRun, reservation: BenchReservation) => { holder: Row } | { runId: number }>;
+  private readonly claimOnFreeBenchTransaction: Database.Transaction<(runId: number, benchOfUnnamedRun: string, claim: Omit<BenchReservation, 'bench'>) => { holder: Row } | { claimed: boolean }>;
 
   private constructor(path: string, db: Database.Database, readonly_: boolean, applied: number[], now: () => string) {
     this.location = path;
@@ -143,6 +145,16 @@ export class SqliteStore implements RolloffStore {
       const runId = this.insertRun(input);
       this.statements.claimRun.run({ ...reservation, runId });
       return { runId };
+    });
+    this.claimOnFreeBenchTransaction = db.transaction((runId: number, benchOfUnnamedRun: string, claim: Omit<BenchReservation, 'bench'>) => {
+      const row = this.statements.getOwner.get(runId) as Row | undefined;
+      if (!row) throw new RecordNotFoundError('run', runId);
+      const bench = (row.bench_name as string) || benchOfUnnamedRun;
+      const holder = this.statements.otherBenchHolder.get({ ...claim, bench, runId }) as Row | undefined;
+      if (holder) return { holder };
+      const claimed = this.statements.claimRun.run({ ...claim, runId }).changes === 1;
+      if (claimed) this.statements.nameUnnamedRun.run(bench, runId);
+      return { claimed };
     });
     this.insertPointsTransaction = db.transaction((batches: readonly PointBatch[]) => {
       for (const { runId, points } of batches) {
@@ -292,9 +304,12 @@ export class SqliteStore implements RolloffStore {
       renewHeartbeat: db.prepare(`UPDATE runs SET owner_heartbeat_ms = @nowMs WHERE id = @runId AND owner_id = @ownerId`),
       releaseRun: db.prepare(`UPDATE runs SET owner_id = NULL, owner_pid = NULL, owner_host = NULL, owner_label = NULL,
         owner_since_ms = NULL, owner_heartbeat_ms = NULL WHERE id = @runId AND owner_id = @ownerId`),
-      getOwner: db.prepare(`SELECT id, owner_id, owner_pid, owner_host, owner_label, owner_since_ms, owner_heartbeat_ms FROM runs WHERE id = ?`),
+      getOwner: db.prepare(`SELECT id, bench_name, owner_id, owner_pid, owner_host, owner_label, owner_since_ms, owner_heartbeat_ms FROM runs WHERE id = ?`),
       benchHolder: db.prepare(`SELECT id, owner_id, owner_pid, owner_host, owner_label, owner_since_ms, owner_heartbeat_ms FROM runs
         WHERE bench_name = @bench AND owner_id IS NOT NULL AND owner_heartbeat_ms >= @staleBeforeMs ORDER BY id LIMIT 1`),
+      otherBenchHolder: db.prepare(`SELECT id, owner_id, owner_pid, owner_host, owner_label, owner_since_ms, owner_heartbeat_ms FROM runs
+        WHERE bench_name = @bench AND id <> @runId AND owner_id IS NOT NULL AND owner_heartbeat_ms >= @staleBeforeMs ORDER BY id LIMIT 1`),
+      nameUnnamedRun: db.prepare(`UPDATE runs SET bench_name = ? WHERE id = ? AND bench_name = ''`),
       insertPoint: db.prepare(`INSERT INTO points (run_id, step, stimulus, amplitude_vpp, input_reading, output_reading,
         gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at_ms) VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?)`),
       countPoints: db.prepare('UPDATE runs SET point_count = point_count + ? WHERE id = ?'),
@@ -513,6 +528,20 @@ export class SqliteStore implements RolloffStore {
     const ownership = await this.getRunOwnership(runId);
     if (!ownership) throw new RecordNotFoundError('run', runId);
     return { claimed: result.changes === 1, ownership };
+  }
+
+  async claimRunOnFreeBench(runId: number, claimant: RunClaimant, staleAfterMs: number, benchOfUnnamedRun: string): Promise<BenchClaimResult> {
+    this.requireWritable();
+    const { ownerId, pid, host, label } = checkRunClaimant(claimant, staleAfterMs);
+    const unnamedBench = checkBenchToReserve(benchOfUnnamedRun);
+    const nowMs = this.nowMs();
+    // BEGIN IMMEDIATE, as a start's: the bench check and the claim see no other process's start or resume in between.
+    const outcome = this.guard(() =>
+      this.claimOnFreeBenchTransaction.immediate(requireId(runId, 'runId'), unnamedBench, { ownerId, pid, host, label, nowMs, staleBeforeMs: nowMs - staleAfterMs }),
+    );
+    if ('holder' in outcome) return { claimed: false, benchHeldBy: { runId: outcome.holder.id as number, ownership: ownershipFromRow(outcome.holder)! } };
+    const claim: RunClaimResult = { claimed: outcome.claimed, ownership: (await this.getRunOwnership(runId))! };
+    return claim;
   }
 
   async createOwnedRun(input: NewRun, claimant: RunClaimant, staleAfterMs: number): Promise<OwnedRunResult> {

@@ -33,6 +33,7 @@ import type {
 } from '../contract/contract';
 import type {
   BenchSettings,
+  BenchClaimResult,
   BenchSettingsInput,
   CalibrationRecord,
   InstrumentRecord,
@@ -111,6 +112,16 @@ export interface RunStore {
    * winner. Claiming stamps since and heartbeatAt with now.
    */
   claimRun(runId: number, claimant: RunClaimant, staleAfterMs: number): Promise<RunClaimResult>;
+  /**
+   * claimRun for a run about to command its bench's instruments again (a resume):
+   * in ONE transaction, also refused when ANOTHER run of the run's bench has a live
+   * owner, the claimant itself included (as createOwnedRun checks for a new run);
+   * then nothing changes and the result names that run and its owner. Else it is
+   * claimRun: claimed, or claimed: false with the run's own live owner. A run
+   * stored before benches had names (benchName '') is of benchOfUnnamedRun, and
+   * is recorded as that bench's with the claim, so it holds the bench from then on.
+   */
+  claimRunOnFreeBench(runId: number, claimant: RunClaimant, staleAfterMs: number, benchOfUnnamedRun: string): Promise<BenchClaimResult>;
   /** Renews the heartbeat; false (and nothing changed) when ownerId no longer owns the run. */
   renewRunHeartbeat(runId: number, ownerId: string): Promise<boolean>;
   /**

@@ -237,7 +237,19 @@ export type RunClaimResult = { claimed: true; ownership: RunOwnership } | { clai
  */
 export type OwnedRunResult =
   | { created: true; run: StoredRun; ownership: RunOwnership }
-  | { created: false; benchHeldBy: { runId: number; ownership: RunOwnership } };
+  | { created: false; benchHeldBy: BenchHolder };
+
+/** The run whose live owner holds a bench, and that owner. */
+export interface BenchHolder {
+  runId: number;
+  ownership: RunOwnership;
+}
+
+/**
+ * What claimRunOnFreeBench did: claimed the run, found it kept by its own live
+ * owner (as claimRun), or found its bench held by another run's live owner.
+ */
+export type BenchClaimResult = RunClaimResult | { claimed: false; benchHeldBy: BenchHolder };
 // ── history transfer (rolloff store copy) ──────────────────────────────────
 
 /** A point as stored, raw readings and time included (NaN where nothing was read). */

@@ -5,14 +5,15 @@
  */
 import { describe, expect, it } from 'vitest';
 import { STORE_CONFORMANCE_CHECKS, failingChecks } from './store-conformance';
-import { checksBenchThenCreates, dropsStepOrder, halfAppliesBatches, ignoresOwnerCondition, storesPointTwice, unbrokenStore } from './broken-stores';
+import { checksBenchThenCreates, claimsThenChecksBench, resumesWithoutBenchCheck, dropsStepOrder, halfAppliesBatches, ignoresOwnerCondition, storesPointTwice, unbrokenStore } from './broken-stores';
 
 const names = STORE_CONFORMANCE_CHECKS.map((check) => check.name);
 const ROUND_TRIP = names[0];
 const STEP_ORDER = names[1];
 const DUPLICATE = names[2];
 const BULK = names[3];
-const BENCH_RESERVATION = names.find((name) => name.startsWith('bench reservation'))!;
+const BENCH_RESERVATION = names.find((name) => name.startsWith('bench reservation:'))!;
+const RESUME_RESERVATION = names.find((name) => name.startsWith('bench reservation on resume'))!;
 const OWNER_WRITES = names.find((name) => name.startsWith("run ownership: an owner's status and point writes"))!;
 
 describe('the store conformance suite fails broken stores', () => {
@@ -43,5 +44,14 @@ describe('the store conformance suite fails broken stores', () => {
 
   it('fails a store whose start checks the bench and creates the run in separate steps', async () => {
     expect(await failingChecks(checksBenchThenCreates)).toEqual([BENCH_RESERVATION]);
+  });
+
+  it('fails a store whose resume claim does not check the bench', async () => {
+    expect(RESUME_RESERVATION).toBeDefined();
+    expect(await failingChecks(resumesWithoutBenchCheck)).toEqual([RESUME_RESERVATION]);
+  });
+
+  it('fails a store whose resume claims the run and checks the bench in separate steps', async () => {
+    expect(await failingChecks(claimsThenChecksBench)).toEqual([RESUME_RESERVATION]);
   });
 });

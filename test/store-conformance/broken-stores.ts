@@ -116,3 +116,26 @@ export const ignoresOwnerCondition = broken((inner) => ({
     await inner.insertPoint(runId, point);
   },
 }));
+
+/** Resumes a run by claiming it and checking its bench in separate steps: two resumes on one bench can both see it free. */
+export const claimsThenChecksBench = broken((inner, options) => ({
+  async claimRunOnFreeBench(runId, claimant, staleAfterMs, benchOfUnnamedRun) {
+    checkRunClaimant(claimant, staleAfterMs);
+    const unnamedBench = checkBenchToReserve(benchOfUnnamedRun);
+    const run = await inner.getRun(runId);
+    const bench = run.benchName || unnamedBench;
+    const nowMs = Date.parse(options?.now?.() ?? new Date().toISOString()); // the store's clock, as the real check uses
+    for (const summary of await inner.listRuns({ bench })) {
+      const ownership = summary.id === runId ? undefined : await inner.getRunOwnership(summary.id);
+      if (ownership && nowMs - Date.parse(ownership.heartbeatAt) <= staleAfterMs) return { claimed: false, benchHeldBy: { runId: summary.id, ownership } };
+    }
+    return inner.claimRun(runId, claimant, staleAfterMs);
+  },
+}));
+
+/** Resumes a run with claimRun alone: the bench is never checked, so a resume can start beside a live run of the same bench. */
+export const resumesWithoutBenchCheck = broken((inner) => ({
+  async claimRunOnFreeBench(runId, claimant, staleAfterMs) {
+    return inner.claimRun(runId, claimant, staleAfterMs);
+  },
+}));

@@ -463,6 +463,65 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
     },
   },
   {
+    name: 'bench reservation on resume: claimRunOnFreeBench claims a run only while no other run of its bench has a live owner, checked with the claim; of resumes racing on one bench exactly one claims',
+    async run(open) {
+      let nowMs = Date.UTC(2026, 0, 1, 12, 0, 0);
+      const store = await open({ now: () => new Date(nowMs).toISOString() });
+      const { build, run: unnamed } = await seedRun(store);
+      const claimants = Array.from({ length: 8 }, (_, i) => ({ ownerId: `resume-${i}`, pid: 4000 + i, host: 'h', label: `resume ${i}` }));
+      const crashed = { ownerId: 'crashed', pid: 1, host: 'h', label: 'crashed sweep' };
+      const onBench = (benchName: string) => store.createRun(newRun(build.id, { benchName }));
+      // Two interrupted runs of bench 3 (their owner crashed a minute ago) and one of bench 7.
+      const [left1, left2, left7] = [await onBench('bench 3'), await onBench('bench 3'), await onBench('bench 7')];
+      for (const run of [left1, left2, left7]) await store.claimRun(run.id, crashed, 10_000);
+      nowMs += 60_000;
+      // Many resumes at once, each of either run of bench 3 and from its own claimant: the bench lets exactly one claim.
+      await Promise.all(claimants.map(() => store.listRuns()));
+      const racing = await Promise.all(claimants.map((c, i) => store.claimRunOnFreeBench(i % 2 === 0 ? left1.id : left2.id, c, 10_000, 'bench 9')));
+      const won = racing.flatMap((r, i) => (r.claimed ? [{ result: r, claimant: claimants[i], runId: i % 2 === 0 ? left1.id : left2.id }] : []));
+      expect(won).toHaveLength(1);
+      const [{ result: winner, claimant: winnerClaimant, runId: heldRun }] = won;
+      const otherRun = heldRun === left1.id ? left2.id : left1.id;
+      expect(winner.ownership).toEqual({ ...winnerClaimant, since: '2026-01-01T12:01:00.000Z', heartbeatAt: '2026-01-01T12:01:00.000Z' });
+      for (const [i, refused] of racing.entries()) {
+        if (refused.claimed) continue;
+        // Refused for the bench (the other run of bench 3) or for the run itself (its winner), never claimed.
+        const runId = i % 2 === 0 ? left1.id : left2.id;
+        if (runId === heldRun) expect(refused).toEqual({ claimed: false, ownership: winner.ownership });
+        else expect(refused).toEqual({ claimed: false, benchHeldBy: { runId: heldRun, ownership: winner.ownership } });
+      }
+      expect((await store.getRunOwnership(otherRun))?.ownerId).toBe('crashed'); // a refused resume changes nothing
+
+      // The claimant's own live run holds the bench too; another bench's run is free.
+      expect(await store.claimRunOnFreeBench(otherRun, winnerClaimant, 10_000, 'bench 9')).toEqual({ claimed: false, benchHeldBy: { runId: heldRun, ownership: winner.ownership } });
+      expect((await store.claimRunOnFreeBench(left7.id, claimants[0], 10_000, 'bench 9')).claimed).toBe(true);
+      // A run's own live owner is named first, as claimRun names it.
+      expect(await store.claimRunOnFreeBench(heldRun, claimants[1], 10_000, 'bench 9')).toEqual({ claimed: false, ownership: winner.ownership });
+
+      nowMs += 11_000; // the winner's heartbeat is stale: the bench is free again
+      const afterStale = await store.claimRunOnFreeBench(otherRun, claimants[2], 10_000, 'bench 9');
+      expect(afterStale).toEqual({ claimed: true, ownership: { ...claimants[2], since: '2026-01-01T12:01:11.000Z', heartbeatAt: '2026-01-01T12:01:11.000Z' } });
+      await store.releaseRun(otherRun, claimants[2].ownerId);
+      expect((await store.claimRunOnFreeBench(otherRun, claimants[3], 10_000, 'bench 9')).claimed).toBe(true); // released: free
+
+      // A run stored before benches had names is of the bench given for it: held by a live run there, then recorded as that bench's.
+      const live5 = await store.createOwnedRun(newRun(build.id, { benchName: 'bench 5' }), claimants[4], 10_000);
+      expect(live5.created).toBe(true);
+      if (!live5.created) return;
+      expect(await store.claimRunOnFreeBench(unnamed.id, claimants[5], 10_000, 'bench 5')).toEqual({ claimed: false, benchHeldBy: { runId: live5.run.id, ownership: live5.ownership } });
+      expect((await store.getRun(unnamed.id)).benchName).toBe('');
+      await store.releaseRun(live5.run.id, claimants[4].ownerId);
+      expect((await store.claimRunOnFreeBench(unnamed.id, claimants[5], 10_000, 'bench 5')).claimed).toBe(true);
+      expect((await store.getRun(unnamed.id)).benchName).toBe('bench 5');
+      expect((await store.createOwnedRun(newRun(build.id, { benchName: 'bench 5' }), claimants[6], 10_000)).created).toBe(false); // it holds bench 5 now
+
+      await expect(store.claimRunOnFreeBench(999, claimants[6], 10_000, 'bench 9')).rejects.toThrow(RecordNotFoundError);
+      await expect(store.claimRunOnFreeBench(left7.id, { ...claimants[6], pid: 0 }, 10_000, 'bench 9')).rejects.toThrow(/claimant.pid/);
+      await expect(store.claimRunOnFreeBench(left7.id, claimants[6], 0, 'bench 9')).rejects.toThrow(/staleAfterMs/);
+      await expect(store.claimRunOnFreeBench(left7.id, claimants[6], 10_000, '')).rejects.toThrow(/benchName/);
+    },
+  },
+  {
     name: 'gives every design, build and run its own stable id (uid), found again by idsOfUids',
     async run(open) {
       const store = await open();

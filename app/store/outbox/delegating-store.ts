@@ -31,6 +31,7 @@ export class DelegatingStore implements RolloffStore {
   listRuns: Inner['listRuns'] = (...a) => this.inner.listRuns(...a);
   findInterruptedRuns: Inner['findInterruptedRuns'] = (...a) => this.inner.findInterruptedRuns(...a);
   claimRun: Inner['claimRun'] = (...a) => this.inner.claimRun(...a);
+  claimRunOnFreeBench: Inner['claimRunOnFreeBench'] = (...a) => this.inner.claimRunOnFreeBench(...a);
   renewRunHeartbeat: Inner['renewRunHeartbeat'] = (...a) => this.inner.renewRunHeartbeat(...a);
   releaseRun: Inner['releaseRun'] = (...a) => this.inner.releaseRun(...a);
   getRunOwnership: Inner['getRunOwnership'] = (...a) => this.inner.getRunOwnership(...a);

@@ -33,7 +33,7 @@ import { randomBytes } from 'node:crypto';
 import type { BuildRecord, DesignRecord } from '../../contract/contract';
 import { DuplicateStepError, RunTakenOverError, StoreUnreachableError } from '../errors';
 import type { RolloffStore } from '../store-interface';
-import type { RunClaimResult, RunOwnership, StoredRun } from '../types';
+import type { BenchClaimResult, RunClaimResult, RunOwnership, StoredRun } from '../types';
 import { DelegatingStore } from './delegating-store';
 import { OutboxFile, type OutboxEntry, type OutboxWrite, type OutboxWriter } from './outbox-file';
 import { RunMirror } from './run-mirror';
@@ -228,7 +228,14 @@ export class OutboxStore extends DelegatingStore {
 
   // ── claiming: never over points waiting in this bench's outbox ─────────
 
-  override claimRun: Inner['claimRun'] = async (runId, claimant, staleAfterMs) => {
+  override claimRun: Inner['claimRun'] = (runId, claimant, staleAfterMs) =>
+    this.claimUnlessKeptHere(runId, claimant.ownerId, () => this.inner.claimRun(runId, claimant, staleAfterMs));
+
+  override claimRunOnFreeBench: Inner['claimRunOnFreeBench'] = (runId, claimant, staleAfterMs, benchOfUnnamedRun) =>
+    this.claimUnlessKeptHere(runId, claimant.ownerId, () => this.inner.claimRunOnFreeBench(runId, claimant, staleAfterMs, benchOfUnnamedRun));
+
+  /** A claim of the server's, refused while a live process of this bench keeps points of the run; mirrored once claimed. */
+  private async claimUnlessKeptHere<R extends BenchClaimResult>(runId: number, claimantOwnerId: string, claim: () => Promise<R>): Promise<R | RunClaimResult> {
     for (const owner of this.outbox.ownersOf(runId)) {
       if (owner.ownerId === this.writer.ownerId || this.adoptIfGone(owner)) continue;
       const since = this.outbox.offlineSince(runId) ?? this.now();
@@ -240,10 +247,10 @@ export class OutboxStore extends DelegatingStore {
     }
     // What a gone process kept goes first, so the claimant continues after it.
     if (this.outbox.pendingOfRun(runId) > 0 || this.outbox.offlineSince(runId) !== undefined) await this.flush();
-    const result = await this.inner.claimRun(runId, claimant, staleAfterMs);
-    if (result.claimed) this.mirrors.set(runId, new RunMirror(await this.inner.getRun(runId), await this.inner.loadPoints(runId), await this.inner.listEvents(runId), claimant.ownerId));
+    const result = await claim();
+    if (result.claimed) this.mirrors.set(runId, new RunMirror(await this.inner.getRun(runId), await this.inner.loadPoints(runId), await this.inner.listEvents(runId), claimantOwnerId));
     return result;
-  };
+  }
 
   /** A run started here is driven from here: mirrored from the start. */
   override createOwnedRun: Inner['createOwnedRun'] = async (input, claimant, staleAfterMs) => {

@@ -74,6 +74,7 @@ import type {
   RunClaimant,
   RunClaimResult,
   OwnedRunResult,
+  BenchClaimResult,
   RunOwnership,
   BuildImport,
   DesignImport,
@@ -495,6 +496,44 @@ export class PostgresStore implements RolloffStore {
     const ownership = await this.getRunOwnership(runId);
     if (!ownership) throw new RecordNotFoundError('run', runId);
     return { claimed: result.rowCount === 1, ownership };
+  }
+
+  /**
+   * The bench's advisory lock, as a start takes it, so the check of the bench and
+   * the claim see no start or resume on that bench in between; the claim itself is
+   * claimRun's conditional UPDATE, so a plain claimRun racing for the run still loses or wins whole.
+   */
+  async claimRunOnFreeBench(runId: number, claimant: RunClaimant, staleAfterMs: number, benchOfUnnamedRun: string): Promise<BenchClaimResult> {
+    this.requireWritable();
+    const { ownerId, pid, host, label } = checkRunClaimant(claimant, staleAfterMs);
+    const unnamedBench = checkBenchToReserve(benchOfUnnamedRun);
+    requireId(runId, 'runId');
+    const nowMs = this.nowMs();
+    const staleBeforeMs = nowMs - staleAfterMs;
+    const outcome = await this.transaction(async (client): Promise<{ holder: Row } | { claimed: boolean }> => {
+      const { rows: [run] } = await this.query('SELECT bench_name FROM runs WHERE id = $1', [runId], client);
+      if (!run) throw new RecordNotFoundError('run', runId);
+      const bench = (run.bench_name as string) || unnamedBench;
+      await this.query('SELECT pg_advisory_xact_lock($1::integer, hashtext($2))', [BENCH_LOCK_CLASS, bench], client);
+      const { rows: held } = await this.query(
+        `SELECT id, ${OWNER_COLUMNS} FROM runs WHERE bench_name = $1 AND id <> $2 AND owner_id IS NOT NULL AND owner_heartbeat_ms >= $3 ORDER BY id LIMIT 1`,
+        [bench, runId, staleBeforeMs],
+        client,
+      );
+      if (held.length > 0) return { holder: held[0] };
+      const result = await this.query(
+        `UPDATE runs SET owner_id = $2, owner_pid = $3, owner_host = $4, owner_label = $5,
+           owner_since_ms = CASE WHEN owner_id = $2 THEN owner_since_ms ELSE $6 END, owner_heartbeat_ms = $6,
+           bench_name = CASE WHEN bench_name = '' THEN $8 ELSE bench_name END
+         WHERE id = $1 AND (owner_id IS NULL OR owner_id = $2 OR owner_heartbeat_ms < $7)`,
+        [runId, ownerId, pid, host, label, nowMs, staleBeforeMs, bench],
+        client,
+      );
+      return { claimed: result.rowCount === 1 };
+    });
+    if ('holder' in outcome) return { claimed: false, benchHeldBy: { runId: outcome.holder.id as number, ownership: ownershipFromRow(outcome.holder)! } };
+    const claim: RunClaimResult = { claimed: outcome.claimed, ownership: (await this.getRunOwnership(runId))! };
+    return claim;
   }
 
   async createOwnedRun(input: NewRun, claimant: RunClaimant, staleAfterMs: number): Promise<OwnedRunResult> {

@@ -144,4 +144,56 @@ describe('two processes on one store file', () => {
     expect(events.slice(resumedAt).filter((m) => /^paused before step|^sweep failed|^stopped by the user/.test(m))).toEqual([]);
     expect(events.filter((m) => m === 'sweep finished')).toHaveLength(1);
   }, 180_000);
+
+  it('a resume never starts beside a live run of the same bench: refused naming the run that holds the bench, nothing written', async () => {
+    const designPath = join(folder.path, 'bench-held.json');
+    const dbPath = join(folder.path, 'bench-held.sqlite');
+    writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
+    const sweepOnBench = () => spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'held', '--simulated', '--time-scale', '0.2',
+      '--max-amplitude', '1', '--db', dbPath, '--bench', 'lab-x', '--from', '3', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'ignore', 'pipe'] });
+    const waitForPointsOf = async (runId: number) => {
+      const deadline = Date.now() + 30_000;
+      while ((await pointsOfLatestRun(dbPath)) < 1 || (await latestRunId(dbPath)) !== runId) {
+        if (Date.now() > deadline) throw new Error(`run ${runId} made no progress`);
+        await new Promise((r) => setTimeout(r, 50));
+      }
+    };
+    const killed = (child: ReturnType<typeof spawn>) => new Promise<void>((done) => { child.on('exit', () => done()); child.kill('SIGKILL'); });
+    // Run 1 of bench lab-x is interrupted (its process killed); run 2 of lab-x then sweeps, driven by a live process.
+    const first = sweepOnBench();
+    await waitForPointsOf(1);
+    await killed(first);
+    const second = sweepOnBench();
+    try {
+      await waitForPointsOf(2);
+      const before = await snapshotOfRun(dbPath, 1);
+      expect(before.run.status).toBe('running');
+
+      const refused = spawnSync(process.execPath, [BIN, 'resume', '1', '--db', dbPath, '--bench', 'lab-x', '--simulated'], { encoding: 'utf8', timeout: 30_000 });
+      expect(refused.status).not.toBe(0);
+      expect(refused.stderr).toMatch(new RegExp(`bench "lab-x" is in use: run 2 is being driven by rolloff \\(command line\\) pid ${second.pid} on ${hostname()}`));
+      expect(await snapshotOfRun(dbPath, 1)).toEqual(before); // no status, point, event or owner of run 1 changed
+    } finally {
+      await killed(second);
+    }
+  }, 90_000);
 });
+
+async function latestRunId(dbPath: string): Promise<number | undefined> {
+  const store = SqliteStore.open(dbPath, { readonly: true });
+  try {
+    return (await store.listRuns({ limit: 1 }))[0]?.id;
+  } finally {
+    await store.close();
+  }
+}
+
+/** Everything stored of one run: its row (owner included), points and events. */
+async function snapshotOfRun(dbPath: string, runId: number) {
+  const store = SqliteStore.open(dbPath, { readonly: true });
+  try {
+    return { run: await store.getRun(runId), points: await store.loadPoints(runId), events: await store.listEvents(runId) };
+  } finally {
+    await store.close();
+  }
+}
