@@ -307,6 +307,16 @@ export const SweepRequestSchema = fields(
 );
 export type SweepRequest = v.InferOutput<typeof SweepRequestSchema>;
 
+/** How a run is resumed (resumeRun). */
+export const ResumeRequestSchema = fields({
+  /**
+   * For a run of another bench: that bench's name, repeated to confirm this bench
+   * takes the run over (app/contract/bench-take-over.ts); refused when it is not the run's bench.
+   */
+  takeOverFromBench: optional(v.pipe(shortText(false), v.transform((name) => name.trim()))),
+});
+export type ResumeRequest = v.InferOutput<typeof ResumeRequestSchema>;
+
 /** The History view's filter (listRuns). */
 export const RunFilterSchema = fields({
   search: optional(shortText(true)),
@@ -547,7 +557,8 @@ export interface RolloffApi {
   planSweep(request: SweepRequest): Promise<SweepPlanSummary>;
   startRun(request: SweepRequest): Promise<RunSummary>;
   pauseRun(runId: number): Promise<RunSummary>;
-  resumeRun(runId: number): Promise<RunSummary>;
+  /** A run of another bench is refused (TakeOverNotConfirmedError) unless request.takeOverFromBench names it. */
+  resumeRun(runId: number, request?: ResumeRequest): Promise<RunSummary>;
   stopRun(runId: number): Promise<RunSummary>;
 
   // History, Compare, Record
@@ -598,7 +609,7 @@ export const API_ARGUMENTS: { readonly [M in RolloffMethodName]: readonly Argume
   planSweep: [required('request', SweepRequestSchema)],
   startRun: [required('request', SweepRequestSchema)],
   pauseRun: [required('runId', storeId)],
-  resumeRun: [required('runId', storeId)],
+  resumeRun: [required('runId', storeId), optionalArgument('request', ResumeRequestSchema)],
   stopRun: [required('runId', storeId)],
   listRuns: [optionalArgument('filter', RunFilterSchema)],
   getRun: [required('runId', storeId)],

@@ -21,7 +21,7 @@ import { driftSummary, type DriftRow } from '../analysis';
 import { INSTRUMENT_ROLES as ROLES, PointFlag } from '../contract/contract';
 import type {
   RunFigures, BenchIdentity, BenchStatus, BuildRecord, Comparison, ConnectRequest, ProfileCheckReport, ProfileCheckRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
-  PointColumns, PortListing, ProfileSummary, RecordFormat, RolloffApi, RolloffClient, RunFilter, RunStatus, RunSummary, ServiceEventName,
+  PointColumns, PortListing, ProfileSummary, RecordFormat, ResumeRequest, RolloffApi, RolloffClient, RunFilter, RunStatus, RunSummary, ServiceEventName,
   ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
 } from '../contract/contract';
 import { ServiceEventBus } from '../contract/event-bus';
@@ -36,6 +36,7 @@ import { startSimulatedBenchFor, type SimulatedBenchHandle, type SimulatedBenchS
 import { exportRecordFor } from './export';
 import { StimulusLimits } from './stimulus-limits';
 import { benchDescription } from '../contract/bench-text';
+import { takeOverEventText, takeOverFrom } from '../contract/bench-take-over';
 import { claimForResumeOrRefuse, claimOrRefuse, createOwnedRunOrRefuse, HEARTBEAT_INTERVAL_MS, runOwnerOf, STALE_AFTER_MS, thisProcessClaimant } from './run-ownership';
 
 export interface RolloffServiceOptions {
@@ -428,18 +429,20 @@ export class RolloffService implements RolloffApi {
    * bench of its build; a real one reconnects to the addresses it was measured
    * with unless instruments are already connected.
    */
-  async resumeRun(runId: number): Promise<RunSummary> {
-    return this.resumeRunWith(runId);
+  async resumeRun(runId: number, request: ResumeRequest = {}): Promise<RunSummary> {
+    return this.resumeRunWith(runId, request);
   }
 
   /** resumeRun, with instruments at other addresses than the run was measured with (CLI --generator …). */
-  async resumeRunWith(runId: number, extra: { instruments?: ConnectRequest[] } = {}): Promise<RunSummary> {
+  async resumeRunWith(runId: number, extra: ResumeRequest & { instruments?: ConnectRequest[] } = {}): Promise<RunSummary> {
     const run = await this.store.getRun(runId);
     if (this.active.has(runId)) throw new RunStateError(runId, 'is already running');
-    return this.holdingBench(() => this.resumeOnHeldBench(run, extra.instruments ?? []));
+    // Another bench's run only with its bench named again: a take-over is never given by accident.
+    const fromBench = takeOverFrom(run, this.benchName, extra.takeOverFromBench);
+    return this.holdingBench(() => this.resumeOnHeldBench(run, extra.instruments ?? [], fromBench));
   }
 
-  private async resumeOnHeldBench(run: StoredRun, instruments: ConnectRequest[]): Promise<RunSummary> {
+  private async resumeOnHeldBench(run: StoredRun, instruments: ConnectRequest[], takenOverFromBench: string | undefined): Promise<RunSummary> {
     const runId = run.id;
     if (run.status === 'done') throw new RunStateError(runId, 'is finished; nothing to resume', 'Start a new run of the same build instead.');
     // One store transaction: of two processes resuming a stale run, one wins, the other is told who; and a run
@@ -463,6 +466,7 @@ export class RolloffService implements RolloffApi {
         }
       }
       this.requireInstrumentsFor(run.request);
+      if (takenOverFromBench !== undefined) await this.logRunEvent(runId, 'warning', takeOverEventText(takenOverFromBench, this.benchName));
       await this.logRunEvent(runId, 'info', `resumed (maximum stimulus ${maxStimulusVpp} Vpp of ${benchDescription(runBench)})`);
       await this.launch(runId);
     } catch (error) {

@@ -7,6 +7,7 @@ import { RUN_STATUSES, type RolloffClient, type RunFilter, type RunStatus, type 
 import { runStateText, shownStatus } from '../../app/contract/run-owner-text';
 import { debounce, field, h, replaceChildren, select } from '../dom';
 import { guarded } from '../notices';
+import { resumeConfirmingTakeOver } from './take-over-dialog';
 import type { View } from '../shell';
 import type { AppState } from '../state';
 
@@ -131,7 +132,7 @@ export class HistoryView implements View {
   private resumeButton(run: RunSummary): HTMLButtonElement {
     const button = h('button', { type: 'button', className: 'small', 'data-resume-run': String(run.id) }, 'Resume');
     button.addEventListener('click', () => void guarded(button, `Resuming run #${run.id}`, async () => {
-      await this.client.resumeRun(run.id);
+      if (!(await resumeConfirmingTakeOver(this.client, run))) return;
       this.state.update({ sweepRunId: run.id });
       this.state.showView('sweep');
     }));

@@ -17,6 +17,7 @@ import type { View } from '../shell';
 import type { AppState } from '../state';
 import { FIGURE_NAMES, pointCountText, SETTINGS } from '../../app/contract/vocabulary';
 import { runStateText, shownStatus } from '../../app/contract/run-owner-text';
+import { resumeConfirmingTakeOver } from './take-over-dialog';
 
 const EVENTS_KEPT = 300;
 
@@ -115,7 +116,10 @@ export class SweepView implements View {
 
     this.buttons.start.addEventListener('click', () => void guarded(this.buttons.start, 'Starting the sweep', () => this.start()));
     this.buttons.pause.addEventListener('click', () => void guarded(this.buttons.pause, 'Pausing', async () => this.applySummary(await client.pauseRun(this.run!.id))));
-    this.buttons.resume.addEventListener('click', () => void guarded(this.buttons.resume, 'Resuming', async () => this.applySummary(await client.resumeRun(this.run!.id))));
+    this.buttons.resume.addEventListener('click', () => void guarded(this.buttons.resume, 'Resuming', async () => {
+      const summary = await resumeConfirmingTakeOver(client, this.run!);
+      if (summary) this.applySummary(summary);
+    }));
     this.buttons.stop.addEventListener('click', () => void guarded(this.buttons.stop, 'Stopping', async () => this.applySummary(await client.stopRun(this.run!.id))));
 
     this.element = h(

@@ -1,5 +1,5 @@
 import type { CommandSpec } from '../args';
-import { optionFlag, requirePositional } from '../args';
+import { optionFlag, optionString, requirePositional } from '../args';
 import { ValidationError } from '../../errors';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
 import { BENCH_OPTIONS, connectRequestsFrom, openService, reportReusedLimit } from '../sweep/sweep-options';
@@ -10,16 +10,24 @@ import { parseRunId } from './show';
 export const resumeCommand: CommandSpec = {
   name: 'resume',
   summary: 'Continue a paused, interrupted or failed run at its next step (no point lost or repeated)',
-  usage: 'RUN [--db PATH] [--max-amplitude VPP] [--generator ADDR …]',
+  usage: 'RUN [--db PATH] [--max-amplitude VPP] [--generator ADDR …] [--take-over-from BENCH]',
   // The options sweep took for the same bench, --simulated included, so the command that started a run also resumes it.
-  options: BENCH_OPTIONS,
+  options: [
+    ...BENCH_OPTIONS,
+    { name: 'take-over-from', kind: 'string', placeholder: 'BENCH', description: 'continue a run of another bench here: repeat the name of the bench the run belongs to, as confirmation' },
+  ],
   details: `
 A simulated run continues on a fresh simulated bench of its build (--simulated may be given, as
 with sweep, and changes nothing); a real run never continues on the simulated bench. A real run reconnects to the
 addresses it was measured with, unless other addresses are given. The maximum stimulus is the one
 saved for the run's bench (the simulated bench, or the real instruments, of the bench named with
 the run), never one recorded with the run or another bench's; --max-amplitude saves a new one for
-that bench. Without either, resume is refused.`,
+that bench. Without either, resume is refused.
+
+A run belongs to the bench it was started on (--bench, ROLLOFF_BENCH or the host name); only that
+bench resumes it. To continue another bench's run here (its machine is gone, its process silent),
+repeat that bench's name: --take-over-from NAME. A wrong name is refused, naming the right one; the
+run's events record the take-over.`,
   async run(parsed) {
     process.stderr.write(`${SAFETY_NOTICE_SHORT}\n\n`);
     const runId = parseRunId(requirePositional(parsed, 0, 'RUN'));
@@ -31,7 +39,7 @@ that bench. Without either, resume is refused.`,
         throw new ValidationError('--simulated', `run ${runId} was measured on real instruments and continues only on them`, 'Drop --simulated; give the instrument addresses if they changed (--generator, --scope, --meter).');
       }
       if (stored.simulated) process.stderr.write(`run ${runId} was measured on the simulated bench and continues on a fresh simulated bench\n`);
-      await service.resumeRunWith(runId, { instruments: stored.simulated ? [] : connectRequestsFrom(parsed) });
+      await service.resumeRunWith(runId, { instruments: stored.simulated ? [] : connectRequestsFrom(parsed), takeOverFromBench: optionString(parsed, 'take-over-from') });
       reportReusedLimit(service);
       process.stderr.write(`run ${runId} continues at step ${await service.nextStep(runId)}\n`);
       const status = await followRun(service, runId);

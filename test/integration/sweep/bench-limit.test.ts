@@ -145,14 +145,15 @@ describe('the maximum stimulus belongs to one bench', () => {
     await store.saveBenchSettings(benchKey({ name: 'bench B', simulated: true }), { maxStimulusVpp: 5 });
     await store.close();
 
-    const refused = await rolloff(['resume', String(run.id), '--db', dbPath, '--bench', 'bench B', '--time-scale', '50']);
+    // Bench B continues bench A's run only as a take-over, confirmed with bench A's name (app/contract/bench-take-over.ts).
+    const refused = await rolloff(['resume', String(run.id), '--db', dbPath, '--bench', 'bench B', '--take-over-from', 'bench A', '--time-scale', '50']);
     expect(refused.status).toBe(2);
     expect(refused.stderr).toMatch(new RegExp(`maximum stimulus: run ${run.id} was measured on the simulated bench of "bench A", which has no maximum stimulus set`));
     const untouched = SqliteStore.open(dbPath, { readonly: true });
     expect((await untouched.getRun(run.id)).status).toBe('paused');
     expect(await untouched.getRunOwnership(run.id)).toBeUndefined(); // given back for the next try
     await untouched.close();
-    const resumed = await rolloff(['resume', String(run.id), '--db', dbPath, '--bench', 'bench B', '--time-scale', '50', '--max-amplitude', '3']);
+    const resumed = await rolloff(['resume', String(run.id), '--db', dbPath, '--bench', 'bench B', '--take-over-from', 'bench A', '--time-scale', '50', '--max-amplitude', '3']);
     expect(resumed.status, resumed.stderr).toBe(0);
 
     const after = SqliteStore.open(dbPath, { readonly: true });

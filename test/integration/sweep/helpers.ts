@@ -1,4 +1,5 @@
 /** Shared set-up for the sweep integration tests: a temp database and designs from the templates. */
+import type { ChildProcess } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -37,4 +38,22 @@ export async function pointsOfLatestRun(dbPath: string): Promise<number> {
   } catch {
     return 0; // not created yet
   }
+}
+
+/** Everything stored of one run in a SQLite file (read-only): its row (owner included), points and events. */
+export async function storedRun(dbPath: string, runId: number) {
+  const store = SqliteStore.open(dbPath, { readonly: true });
+  try {
+    return { run: await store.getRun(runId), points: await store.loadPoints(runId), events: await store.listEvents(runId) };
+  } finally {
+    await store.close();
+  }
+}
+
+/** SIGKILL, resolved once the process is gone. */
+export function killed(child: ChildProcess): Promise<void> {
+  return new Promise((done) => {
+    child.on('exit', () => done());
+    child.kill('SIGKILL');
+  });
 }

@@ -16,7 +16,7 @@ import { SqliteStore } from '../../../app/store';
 import { openServiceAt } from '../../../app/service/open-service';
 import { RunOwnedElsewhereError } from '../../../app/service/run-ownership';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
-import { pointsOfLatestRun, tempFolder } from './helpers';
+import { killed, pointsOfLatestRun, storedRun, tempFolder } from './helpers';
 
 const ROOT = resolve(__dirname, '../../..');
 const BIN = join(ROOT, 'app/cli/bin.mjs');
@@ -158,7 +158,6 @@ describe('two processes on one store file', () => {
         await new Promise((r) => setTimeout(r, 50));
       }
     };
-    const killed = (child: ReturnType<typeof spawn>) => new Promise<void>((done) => { child.on('exit', () => done()); child.kill('SIGKILL'); });
     // Run 1 of bench lab-x is interrupted (its process killed); run 2 of lab-x then sweeps, driven by a live process.
     const first = sweepOnBench();
     await waitForPointsOf(1);
@@ -166,13 +165,13 @@ describe('two processes on one store file', () => {
     const second = sweepOnBench();
     try {
       await waitForPointsOf(2);
-      const before = await snapshotOfRun(dbPath, 1);
+      const before = await storedRun(dbPath, 1);
       expect(before.run.status).toBe('running');
 
       const refused = spawnSync(process.execPath, [BIN, 'resume', '1', '--db', dbPath, '--bench', 'lab-x', '--simulated'], { encoding: 'utf8', timeout: 30_000 });
       expect(refused.status).not.toBe(0);
       expect(refused.stderr).toMatch(new RegExp(`bench "lab-x" is in use: run 2 is being driven by rolloff \\(command line\\) pid ${second.pid} on ${hostname()}`));
-      expect(await snapshotOfRun(dbPath, 1)).toEqual(before); // no status, point, event or owner of run 1 changed
+      expect(await storedRun(dbPath, 1)).toEqual(before); // no status, point, event or owner of run 1 changed
     } finally {
       await killed(second);
     }
@@ -183,16 +182,6 @@ async function latestRunId(dbPath: string): Promise<number | undefined> {
   const store = SqliteStore.open(dbPath, { readonly: true });
   try {
     return (await store.listRuns({ limit: 1 }))[0]?.id;
-  } finally {
-    await store.close();
-  }
-}
-
-/** Everything stored of one run: its row (owner included), points and events. */
-async function snapshotOfRun(dbPath: string, runId: number) {
-  const store = SqliteStore.open(dbPath, { readonly: true });
-  try {
-    return { run: await store.getRun(runId), points: await store.loadPoints(runId), events: await store.listEvents(runId) };
   } finally {
     await store.close();
   }

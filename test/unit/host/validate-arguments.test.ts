@@ -122,4 +122,13 @@ describe('validateCall', () => {
     expect(rejection('disconnect', ['oscilloscope']).where).toBe('disconnect(role)');
     expect(rejection('makeTemplate', ['inverting', { R1: 'big' }]).where).toBe('makeTemplate(parameters [argument 2]).R1');
   });
+
+  it('checks a resume\'s take-over confirmation: optional, a bench name, trimmed, no other fields', () => {
+    expect(validateCall('resumeRun', [4]).args).toEqual([4]);
+    expect(validateCall('resumeRun', [4, {}]).args).toEqual([4, {}]);
+    expect(validateCall('resumeRun', [4, { takeOverFromBench: ' lab-a ' }]).args).toEqual([4, { takeOverFromBench: 'lab-a' }]);
+    expect(rejection('resumeRun', [4, { takeOverFromBench: '  ' }]).where).toBe('resumeRun(request [argument 2]).takeOverFromBench');
+    expect(rejection('resumeRun', [4, { takeOverFromBench: 7 }]).message).toMatch(/must be text/);
+    expect(rejection('resumeRun', [4, { force: true }]).where).toBe('resumeRun(request [argument 2]).force');
+  });
 });
