@@ -46,6 +46,8 @@ export type RunKind = (typeof RUN_KINDS)[number];
 /** Every state a run can be in, in the order a run passes through them. */
 export const RUN_STATUSES = ['planned', 'running', 'paused', 'done', 'stopped', 'failed'] as const;
 export type RunStatus = (typeof RUN_STATUSES)[number];
+/** The states a run never leaves: nothing drives it any more (it has no owner, app/service/run-ownership.ts). */
+export const FINISHED_RUN_STATUSES: ReadonlySet<RunStatus> = new Set(['done', 'stopped', 'failed']);
 
 /** Every instrument role, in the order a bench lists them. */
 export const INSTRUMENT_ROLES = ['generator', 'meter', 'scope'] as const;

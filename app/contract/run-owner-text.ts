@@ -32,12 +32,13 @@ export function shownStatus(run: Pick<RunSummary, 'status' | 'owner'>): RunStatu
 
 /**
  * How a run stands with its driver, in a line: "running, driven by … heartbeat
- * 1 s ago" while a process drives it; "interrupted, last driven by …" or
- * "interrupted, no process drives it" when it is left running; else undefined.
+ * 1 s ago" (or "paused, …") while a process drives it; "interrupted, last driven
+ * by …" or "interrupted, no process drives it" when it is left running; else
+ * undefined: a finished run has no driver, whatever owner is recorded with it.
  */
 export function runStateText(run: Pick<RunSummary, 'status' | 'owner'>): string | undefined {
   const owner = run.owner;
-  if (owner?.live) return `${run.status}, ${drivenByText(owner)}`;
+  if (owner?.live && (run.status === 'running' || run.status === 'paused')) return `${run.status}, ${drivenByText(owner)}`;
   if (!isInterrupted(run)) return undefined;
   return owner ? `interrupted, last ${drivenByText(owner)}` : 'interrupted, no process drives it';
 }

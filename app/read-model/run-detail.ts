@@ -3,7 +3,7 @@
  * run's frequencies with the tolerance band, figures, flags and verdict.
  */
 import type { RunOwnership, RunReadStore, StoredRun, StoredRunSummary } from '../store';
-import type { PointColumns, RunDetail, RunFigures, RunOwner, RunSummary, TheoryColumns, Verdict } from '../contract/contract';
+import { FINISHED_RUN_STATUSES, type PointColumns, type RunDetail, type RunFigures, type RunOwner, type RunSummary, type TheoryColumns, type Verdict } from '../contract/contract';
 import { analyzeAcRun, usablePointIndexes } from '../analysis';
 import { analyzeStability, inputResistor, outputOpAmpIndex, stabilityWarnings, throughDesign, type OpAmpStability, type AcResponse, type Design, type DiodePart } from '../circuit';
 import { fitLogStage, logFitFigures, FitError } from '../signal';
@@ -115,10 +115,15 @@ export async function diodeOfRun(store: RunReadStore, runId: number): Promise<{ 
  */
 export type OwnerJudge = (ownership: RunOwnership) => RunOwner;
 
-/** The contract's summary of a stored run, with its owner as judged. */
+/**
+ * The contract's summary of a stored run, with its owner as judged. A finished
+ * run has no driver: an owner still recorded with it (stored before finished runs
+ * were released, or by a process killed before it released the run) is not shown.
+ */
 export function summaryOf(run: StoredRunSummary, judgeOwner: OwnerJudge): RunSummary {
   const { id, uid, buildId, buildLabel, designName, kind, status, startedAt, endedAt, pointCount, plannedCount, simulated, benchName, owner } = run;
-  return { id, uid, buildId, buildLabel, designName, kind, status, startedAt, endedAt, pointCount, plannedCount, simulated, benchName, owner: owner ? judgeOwner(owner) : null };
+  const driver = owner && !FINISHED_RUN_STATUSES.has(status) ? judgeOwner(owner) : null;
+  return { id, uid, buildId, buildLabel, designName, kind, status, startedAt, endedAt, pointCount, plannedCount, simulated, benchName, owner: driver };
 }
 
 export async function runDetail(store: RunReadStore, runId: number, judgeOwner: OwnerJudge): Promise<RunDetail> {

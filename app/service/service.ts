@@ -417,8 +417,8 @@ export class RolloffService implements RolloffApi {
         await this.asOwnerOf(runId, 'stopped', async (asOwner) => {
           await this.store.updateRunStatus(runId, 'stopped', undefined, asOwner);
           await this.logRunEvent(runId, 'info', 'stopped by the user');
-          await this.finalize(runId);
         });
+        await this.finalize(runId); // released already: a stopped run has no driver
       }
     }
     return this.summaryOf(runId);
@@ -801,6 +801,8 @@ export class RolloffService implements RolloffApi {
     heartbeat.unref();
     let first = true;
     let takenOver = false;
+    let ended: RunStatus = 'failed';
+    const release = () => this.store.releaseRun(runId, this.claimant.ownerId).catch(() => undefined);
     const finished = runSweep({
       store: this.store,
       runId,
@@ -820,16 +822,22 @@ export class RolloffService implements RolloffApi {
         return this.reconnectAll();
       },
     })
-      .catch((error: unknown) => {
-        takenOver = error instanceof RunTakenOverError;
-        throw error;
-      })
+      .then(
+        (status) => (ended = status),
+        (error: unknown) => {
+          takenOver = error instanceof RunTakenOverError;
+          throw error;
+        },
+      )
       .finally(async () => {
         clearInterval(heartbeat);
         this.active.delete(runId);
         if (takenOver) return; // the figures are the new owner's to store
+        // A finished run (done, stopped, failed) is nobody's from the moment it ends, so it is never listed as
+        // driven while its analysis runs; a paused one stays this process's until its figures are stored.
+        if (ended !== 'paused') await release();
         await this.finalize(runId);
-        await this.store.releaseRun(runId, this.claimant.ownerId).catch(() => undefined);
+        if (ended === 'paused') await release();
       });
     // The caller learns the outcome through waitForRun/events; an unobserved rejection must not crash the process.
     finished.catch(() => undefined);

@@ -4,13 +4,12 @@
  * same ValidationError naming the same field.
  */
 import { ValidationError } from '../errors';
-import { RUN_STATUSES, type OfflinePeriod, type RunEvent, type RunStatus } from '../contract/contract';
+import { FINISHED_RUN_STATUSES, RUN_STATUSES, type OfflinePeriod, type RunEvent, type RunStatus } from '../contract/contract';
 import { checkBenchName } from '../bench/bench-name';
 import type { BenchSettingsInput, NewCalibration, NewPoint, NewRun, NewSchedule, OwnerCondition, RunClaimant, RunFilter, RunImport } from './types';
 
-/** The one list of run states lives in the contract; re-exported for the store's checks. */
-export { RUN_STATUSES };
-export const FINISHED_STATUSES: ReadonlySet<RunStatus> = new Set(['done', 'stopped', 'failed']);
+/** The one list of run states (and of the finished ones) lives in the contract; re-exported for the store's checks. */
+export { RUN_STATUSES, FINISHED_RUN_STATUSES as FINISHED_STATUSES };
 const EVENT_LEVELS: ReadonlySet<RunEvent['level']> = new Set(['info', 'warning', 'error']);
 export const DEFAULT_LIST_LIMIT = 200;
 
