@@ -5,7 +5,7 @@
  * owner and keeps its hands off; only a stale heartbeat (or, on the same host, an
  * owner process that no longer exists) lets it take the run over, and the
  * take-over is the store's one conditional update (RunStore.claimRun). Every
- * status and point an owner writes is conditional on still owning the run
+ * status, point and event line an owner writes is conditional on still owning the run
  * (OwnerCondition, checked in the write's own statement), so an owner that lost
  * the run to another process writes nothing more to it.
  */

@@ -58,7 +58,7 @@ export class RecordNotFoundError extends UserError {
 }
 
 /**
- * A write by a run's owner (updateRunStatus or insertPoint with asOwner) after
+ * A write by a run's owner (updateRunStatus, insertPoint or appendEvent with asOwner) after
  * another process took the run over, or after the run was given up: nothing
  * was written. The process that gets it must stop driving the run.
  */

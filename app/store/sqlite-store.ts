@@ -322,6 +322,8 @@ export class SqliteStore implements RolloffStore {
       nextStep: db.prepare('SELECT COALESCE(MAX(step), -1) + 1 AS next FROM points WHERE run_id = ?'),
       runExists: db.prepare('SELECT 1 FROM runs WHERE id = ?'),
       insertEvent: db.prepare('INSERT INTO run_events (run_id, at, level, message) VALUES (?, ?, ?, ?)'),
+      insertOwnedEvent: db.prepare(`INSERT INTO run_events (run_id, at, level, message)
+        SELECT id, @at, @level, @message FROM runs WHERE id = @runId AND owner_id = @asOwner`),
       listEvents: db.prepare('SELECT at, level, message FROM run_events WHERE run_id = ? ORDER BY id'),
       insertCalibration: db.prepare(`INSERT INTO calibrations (bench_key, bench_json, frequencies_hz_json, gain_db_json, phase_deg_json, notes, created_at)
         VALUES (?, ?, ?, ?, ?, ?, ?)`),
@@ -719,10 +721,17 @@ export class SqliteStore implements RolloffStore {
 
   // ── events ─────────────────────────────────────────────────────────────
 
-  async appendEvent(runId: number, level: RunEvent['level'], message: string, at?: string): Promise<RunEvent> {
+  async appendEvent(runId: number, level: RunEvent['level'], message: string, at?: string, condition?: OwnerCondition): Promise<RunEvent> {
     this.requireWritable();
     checkEventLevel(level);
     const event: RunEvent = { at: at ?? this.now(), level, message: requireText(message, 'event.message') };
+    const asOwner = checkOwnerCondition(condition);
+    if (asOwner !== null) {
+      // One statement: the owner check and the insert, so no claim comes between them.
+      const result = this.guard(() => this.statements.insertOwnedEvent.run({ runId: requireId(runId, 'runId'), asOwner, ...event }));
+      if (result.changes === 0) this.refuseWrite(runId, asOwner);
+      return event;
+    }
     try {
       this.guard(() => this.statements.insertEvent.run(requireId(runId, 'runId'), event.at, event.level, event.message));
     } catch (error) {

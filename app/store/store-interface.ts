@@ -165,7 +165,8 @@ export interface PointStore {
 
 /** The log lines of a run (info, warning, error), in the order they were appended. */
 export interface RunEventStore {
-  appendEvent(runId: number, level: RunEvent['level'], message: string, at?: string): Promise<RunEvent>;
+  /** With condition.asOwner, only while that owner owns the run, in the same statement: else RunTakenOverError, nothing written. */
+  appendEvent(runId: number, level: RunEvent['level'], message: string, at?: string, condition?: OwnerCondition): Promise<RunEvent>;
   listEvents(runId: number): Promise<RunEvent[]>;
 }
 

@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { STORE_CONFORMANCE_CHECKS, failingChecks } from './store-conformance';
-import { checksBenchThenCreates, claimsThenChecksBench, resumesWithoutBenchCheck, dropsStepOrder, halfAppliesBatches, ignoresOwnerCondition, storesPointTwice, unbrokenStore } from './broken-stores';
+import { checksBenchThenCreates, claimsThenChecksBench, ignoresOwnerConditionOnEvents, resumesWithoutBenchCheck, dropsStepOrder, halfAppliesBatches, ignoresOwnerCondition, storesPointTwice, unbrokenStore } from './broken-stores';
 
 const names = STORE_CONFORMANCE_CHECKS.map((check) => check.name);
 const ROUND_TRIP = names[0];
@@ -15,6 +15,7 @@ const BULK = names[3];
 const BENCH_RESERVATION = names.find((name) => name.startsWith('bench reservation:'))!;
 const RESUME_RESERVATION = names.find((name) => name.startsWith('bench reservation on resume'))!;
 const OWNER_WRITES = names.find((name) => name.startsWith("run ownership: an owner's status and point writes"))!;
+const OWNER_EVENTS = names.find((name) => name.startsWith("run ownership: an owner's event lines"))!;
 
 describe('the store conformance suite fails broken stores', () => {
   it('passes a correct store behind the same wrapper (the wrapper alone breaks nothing)', async () => {
@@ -53,5 +54,10 @@ describe('the store conformance suite fails broken stores', () => {
 
   it('fails a store whose resume claims the run and checks the bench in separate steps', async () => {
     expect(await failingChecks(claimsThenChecksBench)).toEqual([RESUME_RESERVATION]);
+  });
+
+  it('fails a store that adds event lines for an owner that lost the run', async () => {
+    expect(OWNER_EVENTS).toBeDefined();
+    expect(await failingChecks(ignoresOwnerConditionOnEvents)).toEqual([OWNER_EVENTS]);
   });
 });

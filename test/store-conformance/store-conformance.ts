@@ -398,6 +398,36 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
     },
   },
   {
+    name: 'run ownership: an owner\'s event lines are added only while it owns the run; after a take-over or release they are refused and add nothing',
+    async run(open) {
+      let nowMs = Date.UTC(2026, 0, 1, 12, 0, 0);
+      const store = await open({ now: () => new Date(nowMs).toISOString() });
+      const { run } = await seedRun(store);
+      const first = { ownerId: 'host-a:100:x', pid: 100, host: 'host-a', label: 'rolloff (command line)' };
+      const second = { ownerId: 'host-b:200:y', pid: 200, host: 'host-b', label: 'rolloff serve' };
+      await expect(store.appendEvent(run.id, 'info', 'before any claim', undefined, { asOwner: first.ownerId })).rejects.toThrow(RunTakenOverError);
+      await store.claimRun(run.id, first, 10_000);
+      expect(await store.appendEvent(run.id, 'info', 'sweep started', '2026-01-01T12:00:00.500Z', { asOwner: first.ownerId }))
+        .toEqual({ at: '2026-01-01T12:00:00.500Z', level: 'info', message: 'sweep started' });
+      nowMs += 11_000; // first's heartbeat is stale: second takes the run over
+      expect((await store.claimRun(run.id, second, 10_000)).claimed).toBe(true);
+      await store.appendEvent(run.id, 'info', 'sweep continued at step 1', undefined, { asOwner: second.ownerId });
+
+      // The old owner wakes up: its line is refused, naming who drives the run now, and is not stored.
+      const late = store.appendEvent(run.id, 'warning', 'link lost; reconnecting', undefined, { asOwner: first.ownerId });
+      await expect(late).rejects.toThrow(RunTakenOverError);
+      await expect(late).rejects.toMatchObject({ nowOwnedBy: { pid: 200, host: 'host-b', label: 'rolloff serve' } });
+      await store.releaseRun(run.id, second.ownerId);
+      await expect(store.appendEvent(run.id, 'info', 'after release', undefined, { asOwner: second.ownerId })).rejects.toMatchObject({ nowOwnedBy: undefined });
+      await store.appendEvent(run.id, 'info', 'a line with no owner in mind'); // unconditional, as before
+      expect((await store.listEvents(run.id)).map((e) => e.message)).toEqual(['sweep started', 'sweep continued at step 1', 'a line with no owner in mind']);
+
+      await expect(store.appendEvent(777, 'info', 'x', undefined, { asOwner: first.ownerId })).rejects.toThrow(RecordNotFoundError);
+      await expect(store.appendEvent(777, 'info', 'x')).rejects.toThrow(RecordNotFoundError);
+      await expect(store.appendEvent(run.id, 'info', 'x', undefined, { asOwner: ' ' })).rejects.toThrow(/condition.asOwner/);
+    },
+  },
+  {
     name: 'run ownership: of many claimants racing for one stale run at the same instant, exactly one wins',
     async run(open) {
       let nowMs = Date.UTC(2026, 0, 1, 12, 0, 0);

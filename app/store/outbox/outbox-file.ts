@@ -21,8 +21,8 @@ import type { NewPoint } from '../types';
 /** A write waiting for the server, as the store interface would have made it. */
 export type OutboxWrite =
   | { kind: 'point'; point: NewPoint & { measuredAt: string } }
-  | { kind: 'event'; level: 'info' | 'warning' | 'error'; message: string; at: string }
-  /** asOwner: the owner it was written as (OwnerCondition); sent only while that owner still owns the run. */
+  /** asOwner (events and status): the owner it was written as (OwnerCondition); sent only while that owner still owns the run. */
+  | { kind: 'event'; level: 'info' | 'warning' | 'error'; message: string; at: string; asOwner?: string }
   | { kind: 'status'; status: RunStatus; at: string; asOwner?: string }
   | { kind: 'results'; figures: RunFigures; verdict: Verdict | null }
   | { kind: 'release'; ownerId: string };

@@ -33,7 +33,7 @@ import { randomBytes } from 'node:crypto';
 import type { BuildRecord, DesignRecord } from '../../contract/contract';
 import { DuplicateStepError, RunTakenOverError, StoreUnreachableError } from '../errors';
 import type { RolloffStore } from '../store-interface';
-import type { BenchClaimResult, RunClaimResult, RunOwnership, StoredRun } from '../types';
+import type { BenchClaimResult, OwnerCondition, RunClaimResult, RunOwnership, StoredRun } from '../types';
 import { DelegatingStore } from './delegating-store';
 import { OutboxFile, type OutboxEntry, type OutboxWrite, type OutboxWriter } from './outbox-file';
 import { RunMirror } from './run-mirror';
@@ -53,6 +53,11 @@ export interface OutboxOptions {
 }
 
 type Inner = RolloffStore;
+
+/** The owner condition a kept write was made under, if any. */
+function ownerCondition(write: { asOwner?: string }): OwnerCondition | undefined {
+  return write.asOwner === undefined ? undefined : { asOwner: write.asOwner };
+}
 
 function processExists(pid: number): boolean {
   try {
@@ -187,9 +192,15 @@ export class OutboxStore extends DelegatingStore {
     this.mirrorOf(runId)?.addPoint(kept);
   };
 
-  override appendEvent: Inner['appendEvent'] = async (runId, level, message, at) => {
+  /** An event kept while cut off keeps its owner condition, as a status does. */
+  override appendEvent: Inner['appendEvent'] = async (runId, level, message, at, condition) => {
     const when = at ?? this.now();
-    const event = await this.write(runId, { kind: 'event', level, message, at: when }, () => this.inner.appendEvent(runId, level, message, when), () => ({ at: when, level, message }));
+    const event = await this.write(
+      runId,
+      { kind: 'event', level, message, at: when, ...(condition ? { asOwner: condition.asOwner } : {}) },
+      () => this.inner.appendEvent(runId, level, message, when, condition),
+      () => ({ at: when, level, message }),
+    );
     this.mirrorOf(runId)?.addEvent(event);
     return event;
   };
@@ -367,16 +378,10 @@ export class OutboxStore extends DelegatingStore {
         }
         return;
       case 'event':
-        await this.inner.appendEvent(runId, write.level, write.message, write.at);
+        await this.sendUnlessTakenOver(runId, `line "${write.message}"`, () => this.inner.appendEvent(runId, write.level, write.message, write.at, ownerCondition(write)));
         return;
       case 'status':
-        try {
-          await this.inner.updateRunStatus(runId, write.status, write.at, write.asOwner === undefined ? undefined : { asOwner: write.asOwner });
-        } catch (error) {
-          // Taken over while this bench was cut off: the new owner's state stands (the warning event says so).
-          if (!(error instanceof RunTakenOverError)) throw error;
-          this.options.log(`run ${runId} was taken over while this bench was cut off: its kept change to "${write.status}" is not sent`);
-        }
+        await this.sendUnlessTakenOver(runId, `change to "${write.status}"`, () => this.inner.updateRunStatus(runId, write.status, write.at, ownerCondition(write)));
         return;
       case 'results':
         await this.inner.setRunResults(runId, write.figures, write.verdict);
@@ -384,6 +389,16 @@ export class OutboxStore extends DelegatingStore {
       case 'release':
         await this.inner.releaseRun(runId, write.ownerId);
         return;
+    }
+  }
+
+  /** Sends a kept owner's write; taken over while this bench was cut off, the new owner's state stands (the warning event says so). */
+  private async sendUnlessTakenOver(runId: number, what: string, send: () => Promise<unknown>): Promise<void> {
+    try {
+      await send();
+    } catch (error) {
+      if (!(error instanceof RunTakenOverError)) throw error;
+      this.options.log(`run ${runId} was taken over while this bench was cut off: its kept ${what} is not sent`);
     }
   }
 

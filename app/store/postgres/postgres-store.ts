@@ -823,9 +823,22 @@ export class PostgresStore implements RolloffStore {
 
   // ── events ─────────────────────────────────────────────────────────────
 
-  async appendEvent(runId: number, level: RunEvent['level'], message: string, at?: string): Promise<RunEvent> {
+  async appendEvent(runId: number, level: RunEvent['level'], message: string, at?: string, condition?: OwnerCondition): Promise<RunEvent> {
     this.requireWritable();
     const event: RunEvent = { at: at ?? this.now(), level: checkEventLevel(level), message: requireText(message, 'event.message') };
+    const asOwner = checkOwnerCondition(condition);
+    if (asOwner !== null) {
+      // FOR SHARE waits for a concurrent claim's row lock and re-checks owner_id on the row it left (READ COMMITTED),
+      // so an owner that lost the run a moment ago adds no line to it.
+      const { rowCount } = await this.query(
+        `INSERT INTO run_events (run_id, at, level, message)
+         SELECT id, $2, $3, $4 FROM (SELECT id FROM runs WHERE id = $1 AND owner_id = $5 FOR SHARE) owned`,
+        [requireId(runId, 'runId'), event.at, event.level, event.message, asOwner],
+      );
+      if (rowCount === 0) await this.refuseWrite(runId, asOwner);
+      await this.notify({ kind: 'event', runId });
+      return event;
+    }
     try {
       await this.query('INSERT INTO run_events (run_id, at, level, message) VALUES ($1, $2, $3, $4)', [requireId(runId, 'runId'), event.at, event.level, event.message]);
     } catch (error) {

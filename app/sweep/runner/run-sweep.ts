@@ -21,7 +21,7 @@ export interface SweepRunOptions {
   runId: number;
   /**
    * The owner id this process holds the run under (RunStore.claimRun): every
-   * status and point it writes is conditional on still owning the run, so once
+   * status, point and event line it writes is conditional on still owning the run, so once
    * another process has taken it over nothing of this sweep reaches the store.
    */
   ownerId?: string;
@@ -42,7 +42,7 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
   const { store, runId, clock, control } = options;
   const asOwner = options.ownerId === undefined ? undefined : { asOwner: options.ownerId };
   const log = async (level: RunEvent['level'], message: string) => {
-    const event = await store.appendEvent(runId, level, message);
+    const event = await store.appendEvent(runId, level, message, undefined, asOwner);
     options.emit('runEvent', { runId, ...event });
   };
   const setStatus = (status: RunStatus) => store.updateRunStatus(runId, status, undefined, asOwner);

@@ -169,7 +169,7 @@ describe.skipIf(!postgresAvailable())('PostgreSQL stopped mid-sweep and started 
     }
   }, 120_000);
 
-  it('a bench that finds its run taken over by another bench when it comes back keeps the other\'s points and state, and says so on the run', async () => {
+  it('a bench that finds its run taken over by another bench when it comes back keeps the other\'s points, state and event lines, and says so on the run', async () => {
     const url = cluster.createDatabase('taken_over').replace(`${cluster.role}@`, `${cluster.role}:${encodeURIComponent(cluster.password)}@`);
     // A long retry interval: the kept point is sent only when this bench closes, after the other bench took the run.
     const cutOff = OutboxStore.open(await PostgresStore.open(url), { path: join(folder.path, 'taken-over-outbox.sqlite'), log: () => {}, retryIntervalMs: 600_000, flushOnCloseMs: 10_000 });
@@ -182,6 +182,7 @@ describe.skipIf(!postgresAvailable())('PostgreSQL stopped mid-sweep and started 
     await cutOff.insertPoint(run.id, point(2, { gainDb: 12 })); // kept
     // The cut-off bench's sweep ends (as its owner): kept too, with its owner condition.
     expect((await cutOff.updateRunStatus(run.id, 'paused', undefined, { asOwner: 'bench-3' })).status).toBe('paused'); // the mirror's answer
+    await cutOff.appendEvent(run.id, 'info', 'paused before step 3', undefined, { asOwner: 'bench-3' }); // kept, with its owner condition
     cluster.start();
 
     // Another machine sees a stale heartbeat (here: older than 1 ms) and takes the run, measuring step 1 again.
@@ -201,6 +202,7 @@ describe.skipIf(!postgresAvailable())('PostgreSQL stopped mid-sweep and started 
       const after = await other.getRun(run.id);
       expect(after.status).toBe('running');
       expect(after.owner?.ownerId).toBe('bench-7');
+      expect((await other.listEvents(run.id)).map((event) => event.message)).not.toContain('paused before step 3'); // nor its kept line
     } finally {
       await other.close();
     }

@@ -5,7 +5,8 @@
  * names who drives it. After SIGKILL of the owner the other process takes the
  * run over (its owner process is gone on this host) and completes it with every
  * step measured once. An owner frozen (SIGSTOP) past its heartbeat loses the run
- * to another process; woken, it stops and writes no status over the new owner's.
+ * to another process; woken, it stops and writes no status, point or event line
+ * over the new owner's. A resume never starts beside a live run of its bench.
  */
 import { afterAll, describe, expect, it } from 'vitest';
 import { spawn, spawnSync } from 'node:child_process';
@@ -143,6 +144,11 @@ describe('two processes on one store file', () => {
     // Nothing of the old owner's ending after the take-over: no pause, no failure, no finish of its own.
     expect(events.slice(resumedAt).filter((m) => /^paused before step|^sweep failed|^stopped by the user/.test(m))).toEqual([]);
     expect(events.filter((m) => m === 'sweep finished')).toHaveLength(1);
+    // Event lines are owner-checked too: the woken owner added none (its own line was the start, before it froze),
+    // so the log is its start and then the new owner's lines alone (re-measure notes of a step aside).
+    expect(events.filter((m) => !/^step \d+: /.test(m))).toEqual(['sweep started', expect.stringMatching(/^resumed \(/), expect.stringMatching(/^sweep continued at step \d+$/), 'sweep finished']);
+    const continuedAt = Number(/^sweep continued at step (\d+)$/.exec(events.find((m) => m.startsWith('sweep continued')) ?? '')?.[1]);
+    expect(continuedAt).toBeGreaterThanOrEqual(frozenAt); // after every point stored before the take-over
   }, 180_000);
 
   it('a resume never starts beside a live run of the same bench: refused naming the run that holds the bench, nothing written', async () => {
