@@ -24,6 +24,16 @@ export interface ConformanceCheck {
 /** RFC 4122 §4.4 version 4 (random) UUID text: version nibble 4, variant bits 10. */
 const UUID_V4 = /^[0-9a-f]{8}-[0-9a-f]{4}-4[0-9a-f]{3}-[89ab][0-9a-f]{3}-[0-9a-f]{12}$/;
 
+/** A fresh store on a clock the check moves (advanceMs), one seeded run, and two claimants on two hosts. */
+async function ownedRunSetting(open: OpenFreshStore) {
+  let nowMs = Date.UTC(2026, 0, 1, 12, 0, 0);
+  const store = await open({ now: () => new Date(nowMs).toISOString() });
+  const { run } = await seedRun(store);
+  const first = { ownerId: 'host-a:100:x', pid: 100, host: 'host-a', label: 'rolloff (command line)' };
+  const second = { ownerId: 'host-b:200:y', pid: 200, host: 'host-b', label: 'rolloff serve' };
+  return { store, run, first, second, advanceMs: (ms: number) => void (nowMs += ms) };
+}
+
 /** Every check, in order. Each opens its own fresh store(s). */
 export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
   {
@@ -355,17 +365,13 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
   {
     name: 'run ownership: an owner\'s status and point writes apply only while it owns the run; after a take-over or release they are refused and change nothing',
     async run(open) {
-      let nowMs = Date.UTC(2026, 0, 1, 12, 0, 0);
-      const store = await open({ now: () => new Date(nowMs).toISOString() });
-      const { run } = await seedRun(store);
-      const first = { ownerId: 'host-a:100:x', pid: 100, host: 'host-a', label: 'rolloff (command line)' };
-      const second = { ownerId: 'host-b:200:y', pid: 200, host: 'host-b', label: 'rolloff serve' };
+      const { store, run, first, second, advanceMs } = await ownedRunSetting(open);
       // Not claimed yet: an owner's write is refused; an unconditional one (a store without owners in mind) is not.
       await expect(store.updateRunStatus(run.id, 'running', undefined, { asOwner: first.ownerId })).rejects.toThrow(RunTakenOverError);
       await store.claimRun(run.id, first, 10_000);
       expect((await store.updateRunStatus(run.id, 'running', undefined, { asOwner: first.ownerId })).status).toBe('running');
       await store.insertPoint(run.id, point(0), { asOwner: first.ownerId });
-      nowMs += 11_000; // first's heartbeat is stale: second takes the run over and drives it
+      advanceMs(11_000); // first's heartbeat is stale: second takes the run over and drives it
       expect((await store.claimRun(run.id, second, 10_000)).claimed).toBe(true);
       await store.insertPoint(run.id, point(1), { asOwner: second.ownerId });
 
@@ -400,16 +406,12 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
   {
     name: 'run ownership: an owner\'s event lines are added only while it owns the run; after a take-over or release they are refused and add nothing',
     async run(open) {
-      let nowMs = Date.UTC(2026, 0, 1, 12, 0, 0);
-      const store = await open({ now: () => new Date(nowMs).toISOString() });
-      const { run } = await seedRun(store);
-      const first = { ownerId: 'host-a:100:x', pid: 100, host: 'host-a', label: 'rolloff (command line)' };
-      const second = { ownerId: 'host-b:200:y', pid: 200, host: 'host-b', label: 'rolloff serve' };
+      const { store, run, first, second, advanceMs } = await ownedRunSetting(open);
       await expect(store.appendEvent(run.id, 'info', 'before any claim', undefined, { asOwner: first.ownerId })).rejects.toThrow(RunTakenOverError);
       await store.claimRun(run.id, first, 10_000);
       expect(await store.appendEvent(run.id, 'info', 'sweep started', '2026-01-01T12:00:00.500Z', { asOwner: first.ownerId }))
         .toEqual({ at: '2026-01-01T12:00:00.500Z', level: 'info', message: 'sweep started' });
-      nowMs += 11_000; // first's heartbeat is stale: second takes the run over
+      advanceMs(11_000); // first's heartbeat is stale: second takes the run over
       expect((await store.claimRun(run.id, second, 10_000)).claimed).toBe(true);
       await store.appendEvent(run.id, 'info', 'sweep continued at step 1', undefined, { asOwner: second.ownerId });
 
