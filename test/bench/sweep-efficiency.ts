@@ -36,15 +36,19 @@
  * settle-before-acquire.test.ts checks captures against the bench's own
  * record). Everything else (read-back, next time base, storing) overlaps.
  *
- * A second table says where each point's time goes, from the link traffic the
- * service reports (its own timestamps, nothing from inside the runner): the
+ * A second table attributes every millisecond of the wall time beyond the
+ * plan's Σ (settle + record), from the link traffic the service reports (its
+ * own timestamps, nothing from inside the runner): set-up before the first
+ * generator command, the first step's generator configuration, per point the
  * acquisition's reply beyond its record length, the wait for the generator's
- * acknowledgement, and the "late start" — the time from the end of settling to
- * the next acquisition start, which is the runner's own work (fits, store
- * commit, events) that did not fit inside the settling. Beside it the CPU
- * time of this process per point (process.cpuUsage) and the load average, so
- * a loaded machine, which stretches the replies of the simulated bench's
- * process, can be told apart from the runner's own cost.
+ * acknowledgement of the next setting and the "late start" (end of settling to
+ * the next acquisition start: the runner's own work that did not fit inside
+ * the settling), re-measured steps, and the last point's read-back and commit.
+ * The parts add up exactly (scopeBreakdown says how); their sum is printed
+ * beside them. Beside it the CPU time of this process per point
+ * (process.cpuUsage) and the load average before and after, so a loaded
+ * machine, which stretches the replies of the simulated bench's process, can
+ * be told apart from the runner's own cost.
  */
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
@@ -121,6 +125,7 @@ async function main(): Promise<void> {
         if (!firstSentMs && t.role === 'generator' && t.direction === 'sent') firstSentMs = performance.now();
         timeline.push({ atMs: performance.now(), role: t.role, direction: t.direction, text: t.text });
       });
+      const loadBefore = loadavg()[0];
       const cpuBefore = process.cpuUsage();
       const started = performance.now();
       if (tracing) trace(`START ${c.name}`);
@@ -140,11 +145,10 @@ async function main(): Promise<void> {
       const ratio = wallS / minimumS;
       const overheadMs = ((wallS - minimumS) / plan.steps.length) * 1000;
       const floorRatio = (minimumS + plan.steps.length * 2 * (latencyMs / 1000)) / minimumS;
-      const parts = c.request.measurement === 'scope' ? scopeBreakdown(timeline, plan.steps, request.averages) : undefined;
+      const parts = c.request.measurement === 'scope' ? scopeBreakdown(timeline, plan.steps, request.averages, started, lastPointMs) : undefined;
       const cpuMsPerPoint = (cpu.user + cpu.system) / 1000 / plan.steps.length;
-      breakdowns.push(
-        `${link.padEnd(7)} ${c.name.padEnd(38)} ${parts ? `${parts.acquisitionMs.toFixed(1).padStart(8)} ms  ${parts.generatorMs.toFixed(1).padStart(6)} ms  ${parts.lateMs.toFixed(1).padStart(6)} ms (${parts.lateMedianMs.toFixed(1)}/${parts.lateMaxMs.toFixed(1)})` : '       —             —           —                '}   ${cpuMsPerPoint.toFixed(1).padStart(6)} ms   ${loadavg()[0].toFixed(2)}`,
-      );
+      breakdowns.push(`${link.padEnd(7)} ${c.name.padEnd(38)} ${parts ? describeParts(parts, plan.steps.length) : describeNoParts()}   ${cpuMsPerPoint.toFixed(1).padStart(5)} ms  ${loadBefore.toFixed(2)}/${loadavg()[0].toFixed(2)}`);
+      if (parts && parts.settlingShort > 0) breakdowns.push(`        ^ ${parts.settlingShort} acquisition(s) started before the settling counted from the generator's acknowledgement was over`);
       console.log(
         `${link.padEnd(7)} ${c.name.padEnd(38)} ${String(plan.steps.length).padStart(6)}  ${minimumS.toFixed(3).padStart(8)} s (${plan.estimatedDurationS.toFixed(3)})  ${wallS.toFixed(3).padStart(8)} s  ${ratio.toFixed(3).padStart(6)}  ${setupMs.toFixed(0).padStart(4)} ms  ${overheadMs.toFixed(1).padStart(8)} ms  ${floorRatio.toFixed(3).padStart(13)}  ${analysisMs.toFixed(0).padStart(8)} ms`,
       );
@@ -152,13 +156,19 @@ async function main(): Promise<void> {
     }
     console.log('target: ratio ≤ 1.10 (scope case, one acquisition per point, 3 ms per reply)');
     console.log('');
-    console.log('where a point\'s time goes (ms per point, mean over points; scope cases, from the link traffic):');
-    console.log('  acquisition = start of acquisition to "complete", less the record length (the physical part)');
-    console.log('  generator   = "complete" to the generator\'s acknowledgement of the next setting (waiting)');
-    console.log('  late start  = end of settling (acknowledgement + settle time) to the next acquisition start: the runner\'s');
-    console.log('                own work (fits, store commit, events, scope set-up) that did not fit inside the settling');
-    console.log('  CPU         = this process\'s user+system CPU (runner, store, fits; the simulated bench runs apart)');
-    console.log('link    case                                   acquisition  generator  late start (median/max)   CPU/point   load avg');
+    console.log('where the wall time beyond the physical minimum goes, from the link traffic (scope cases; ms in all, per point in brackets):');
+    console.log('  set-up       = start of the run to the first generator command (store, plan, events)');
+    console.log('  first stim.  = the first step\'s generator configuration, to its acknowledgement');
+    console.log('  acquisition  = start of acquisition to "complete", less the record length (the physical part)');
+    console.log('  generator    = "complete" to the generator\'s acknowledgement of the next setting');
+    console.log('  late start   = end of settling (acknowledgement + settle time) to the next acquisition start: the runner\'s');
+    console.log('                 own work (fits, store commit, events, scope set-up) that did not fit inside the settling');
+    console.log('  re-measure   = acquisitions repeated with a wider scale (clipped records)');
+    console.log('  end          = the last "complete" to the commit of the last point (read-back, fits, store)');
+    console.log('  sum          = all of these; equals wall time − the plan\'s Σ (settle + record)');
+    console.log('  CPU          = this process\'s user+system CPU per point (runner, store, fits; the simulated bench runs apart)');
+    console.log('  load avg     = 1-minute load average before/after the case (2 cores: above ~1 the figures stretch)');
+    console.log('link    case                                    set-up  first stim.  acquisition    generator      late start (median/max)  re-measure   end      sum (per point)   CPU/point  load avg');
     for (const line of breakdowns) console.log(line);
   } finally {
     await service.close();
@@ -176,39 +186,91 @@ interface TrafficMoment {
   text: string;
 }
 
+/** Wall time beyond the physical minimum, ms, by where it went (see scopeBreakdown). */
+interface OverheadParts {
+  setUpMs: number;
+  firstStimulusMs: number;
+  acquisitionMs: number[];
+  generatorMs: number[];
+  lateMs: number[];
+  remeasureMs: number;
+  endMs: number;
+  /** Late starts below zero: an acquisition that began before its settling was over (must not happen). */
+  settlingShort: number;
+}
+
 /**
- * Per point, from the link traffic alone: the scope's acquisition start (its
- * INITiate) and "complete" reply, the generator's acknowledgement of the next
- * setting that follows, and the next acquisition start. Settling is counted
- * from that acknowledgement, as the runner does; whatever lies between the end
- * of settling and the next start is the runner's own work.
+ * Every millisecond of the timed window beyond Σ (settle + record), from the link traffic alone (the
+ * service's own timestamps, nothing from inside the runner). With s_j the scope's acquisition starts
+ * (INITiate), c_j the "complete" reply after each, a_j the last generator acknowledgement before s_j and
+ * settle_j, record_j the plan's figures for its step:
+ *   set-up         start of the run → first generator command
+ *   first stimulus first generator command → a_0 (the first step's whole configuration)
+ *   acquisition    c_j − s_j − record_j                   (the "complete" reply beyond the record)
+ *   generator      a_{j+1} − c_j                           (waiting for the next setting's acknowledgement)
+ *   late start     s_j − (a_j + settle_j)                   (settling is counted from a_j)
+ *   re-measure     s_{j+1} − s_j when no new setting came between them (a clipped record measured again)
+ *   end            commit of the last point − its c_j        (read-back, fits, store)
+ * They add up to the wall time less Σ (settle + record) over the plan's steps, exactly: the window is
+ * set-up + first stimulus + Σ (s_{j+1} − s_j) + the last step's part, and each interval splits as above.
  */
-function scopeBreakdown(timeline: TrafficMoment[], steps: Array<{ settleS: number; integrateS: number }>, averages: number) {
-  const starts: number[] = [];
-  for (const [i, t] of timeline.entries()) if (t.role === 'scope' && t.direction === 'sent' && /^:?INIT/i.test(t.text)) starts.push(i);
-  const acquisition: number[] = [];
-  const generator: number[] = [];
-  const late: number[] = [];
-  for (const [k, at] of starts.entries()) {
-    const complete = timeline.findIndex((t, i) => i > at && t.role === 'scope' && t.direction === 'received');
-    if (complete < 0 || !steps[k]) break;
-    acquisition.push(timeline[complete].atMs - timeline[at].atMs - averages * steps[k].integrateS * 1000);
-    const next = starts[k + 1];
-    if (next === undefined) break;
-    const acknowledged = timeline.findIndex((t, i) => i > complete && i < next && t.role === 'generator' && t.direction === 'received');
-    if (acknowledged < 0) continue; // a re-measured step: no new setting
-    generator.push(timeline[acknowledged].atMs - timeline[complete].atMs);
-    late.push(Math.max(0, timeline[next].atMs - (timeline[acknowledged].atMs + steps[k + 1].settleS * 1000)));
-  }
-  const mean = (values: number[]) => values.reduce((a, b) => a + b, 0) / Math.max(1, values.length);
-  const sorted = [...late].sort((a, b) => a - b);
-  return {
-    acquisitionMs: mean(acquisition),
-    generatorMs: mean(generator),
-    lateMs: mean(late),
-    lateMedianMs: sorted[Math.floor(sorted.length / 2)] ?? 0,
-    lateMaxMs: sorted[sorted.length - 1] ?? 0,
+function scopeBreakdown(timeline: TrafficMoment[], steps: Array<{ settleS: number; integrateS: number }>, averages: number, startedMs: number, lastPointMs: number): OverheadParts | undefined {
+  const starts = timeline.flatMap((t, i) => (t.role === 'scope' && t.direction === 'sent' && /^:?INIT/i.test(t.text) ? [i] : []));
+  const firstSent = timeline.findIndex((t) => t.role === 'generator' && t.direction === 'sent');
+  if (starts.length === 0 || firstSent < 0) return undefined;
+  const completeAfter = (i: number) => timeline.findIndex((t, k) => k > i && t.role === 'scope' && t.direction === 'received');
+  /** The last generator acknowledgement in (from, to), or -1. */
+  const lastAckBetween = (from: number, to: number) => {
+    for (let k = to - 1; k > from; k--) if (timeline[k].role === 'generator' && timeline[k].direction === 'received') return k;
+    return -1;
   };
+  const ms = (i: number) => timeline[i].atMs;
+  const parts: OverheadParts = { setUpMs: ms(firstSent) - startedMs, firstStimulusMs: 0, acquisitionMs: [], generatorMs: [], lateMs: [], remeasureMs: 0, endMs: 0, settlingShort: 0 };
+  let step = -1;
+  let previousComplete = -1;
+  for (const [j, start] of starts.entries()) {
+    const ack = lastAckBetween(previousComplete < 0 ? firstSent - 1 : previousComplete, start);
+    if (ack < 0) {
+      // The same step again: the acquisition before was of no use, all of it is overhead.
+      parts.remeasureMs += ms(start) - ms(starts[j - 1]);
+      parts.acquisitionMs.pop();
+    } else {
+      step++;
+      if (step === 0) parts.firstStimulusMs = ms(ack) - ms(firstSent);
+      else parts.generatorMs.push(ms(ack) - ms(previousComplete));
+      const late = ms(start) - (ms(ack) + steps[step].settleS * 1000);
+      if (late < 0) parts.settlingShort++;
+      parts.lateMs.push(late);
+    }
+    const complete = completeAfter(start);
+    if (complete < 0) return undefined;
+    parts.acquisitionMs.push(ms(complete) - ms(start) - averages * steps[step].integrateS * 1000);
+    previousComplete = complete;
+  }
+  if (step !== steps.length - 1) return undefined; // not the plan's steps (refinement, a failed run): no exact split
+  parts.endMs = lastPointMs - ms(previousComplete);
+  return parts;
+}
+
+function describeParts(parts: OverheadParts, points: number): string {
+  const sum = (values: number[]) => values.reduce((a, b) => a + b, 0);
+  const sorted = [...parts.lateMs].sort((a, b) => a - b);
+  const total = parts.setUpMs + parts.firstStimulusMs + sum(parts.acquisitionMs) + sum(parts.generatorMs) + sum(parts.lateMs) + parts.remeasureMs + parts.endMs;
+  const inAll = (values: number[]) => `${sum(values).toFixed(0).padStart(4)} (${(sum(values) / Math.max(1, values.length)).toFixed(2)})`;
+  return [
+    parts.setUpMs.toFixed(0).padStart(6),
+    parts.firstStimulusMs.toFixed(0).padStart(11),
+    inAll(parts.acquisitionMs).padStart(13),
+    inAll(parts.generatorMs).padStart(12),
+    `${inAll(parts.lateMs)} (${(sorted[Math.floor(sorted.length / 2)] ?? 0).toFixed(2)}/${(sorted[sorted.length - 1] ?? 0).toFixed(1)})`.padStart(24),
+    parts.remeasureMs.toFixed(0).padStart(10),
+    parts.endMs.toFixed(0).padStart(6),
+    `${total.toFixed(0).padStart(6)} (${(total / points).toFixed(2)})`.padStart(16),
+  ].join('  ');
+}
+
+function describeNoParts(): string {
+  return `${'—'.padStart(6)}  ${'—'.padStart(11)}  ${'—'.padStart(13)}  ${'—'.padStart(12)}  ${'—'.padStart(24)}  ${'—'.padStart(10)}  ${'—'.padStart(6)}  ${'—'.padStart(16)}`;
 }
 
 /** Σ (settle + averages · acquisition) from the design file and the request alone (see the file comment). */
