@@ -2,12 +2,16 @@
  * GeneratorControl over a profile. This is the single place the user's
  * maximum stimulus is enforced: every setting is checked before any byte is
  * sent, and amplitude/offset changes are ordered so no intermediate state
- * exceeds the limit either. Each level change is confirmed by the instrument
- * (its error queue) before the next goes out, and the state counts as applied
- * only for what was confirmed: an instrument that refuses the first of two
- * changes never receives the second. After any refusal the generator is
- * driven to a safe state — output off, then the smallest amplitude and no
- * offset — before anything else is sent, and must be configured afresh.
+ * exceeds the limit either. With the output on, each change is confirmed by
+ * the instrument (its error queue) before the next goes out, and the state
+ * counts as applied only for what was confirmed: an instrument that refuses
+ * the first of two changes never receives the second. With the output
+ * confirmed off nothing reaches the circuit, so the changes of one configure
+ * go out as one batch with one confirmation (a round trip instead of one per
+ * change); the output is switched on only after that confirmation. After any
+ * refusal the generator is driven to a safe state — output off, then the
+ * smallest amplitude and no offset — before anything else is sent, and must
+ * be configured afresh.
  */
 import { ValidationError } from '../errors';
 import type { ScpiSession } from '../scpi/session';
@@ -40,6 +44,8 @@ export class ProfileGenerator implements GeneratorControl {
   private load: LoadSetting = 'high-z';
   // The instrument's own settings are unknown until we set them; openInstrument switches the output off first.
   private state: OutputState = { shape: undefined, frequencyHz: undefined, amplitudeVpp: undefined, offsetV: undefined, outputOn: false };
+  /** The instrument has confirmed its output off, and nothing has switched it on since (batching relies on it). */
+  private offConfirmed = false;
 
   constructor(
     private readonly session: ScpiSession,
@@ -71,10 +77,7 @@ export class ProfileGenerator implements GeneratorControl {
     this.checkLimit('this sine setting', amplitudeVpp, offsetV, this.load);
 
     await this.withOutputOffForShapeChange('sine', async () => {
-      if (this.state.frequencyHz !== frequencyHz) {
-        await this.runner.set('frequency', { frequencyHz });
-        await this.confirm({ frequencyHz });
-      }
+      if (this.state.frequencyHz !== frequencyHz) await this.change('frequency', { frequencyHz }, { frequencyHz });
       await this.applyLevels(amplitudeVpp, offsetV);
     });
   }
@@ -84,10 +87,7 @@ export class ProfileGenerator implements GeneratorControl {
     this.checkLimit(`DC level ${levelV} V`, 0, levelV, this.load);
     // The offset command sets the DC level; the sine amplitude the instrument keeps does not reach the output.
     await this.withOutputOffForShapeChange('dc', async () => {
-      if (this.state.offsetV !== levelV) {
-        await this.runner.set('offset', { offsetV: levelV });
-        await this.confirm({ offsetV: levelV });
-      }
+      if (this.state.offsetV !== levelV) await this.change('offset', { offsetV: levelV }, { offsetV: levelV });
     });
   }
 
@@ -98,6 +98,7 @@ export class ProfileGenerator implements GeneratorControl {
     }
     await this.runner.set(on ? 'outputOn' : 'outputOff');
     await this.confirm({ outputOn: on });
+    this.offConfirmed = !on;
   }
 
   async setLoad(load: LoadSetting): Promise<void> {
@@ -132,27 +133,56 @@ export class ProfileGenerator implements GeneratorControl {
    * which could exceed the limit for a moment: do it with the output off.
    */
   private async withOutputOffForShapeChange(shape: 'sine' | 'dc', configure: () => Promise<void>): Promise<void> {
-    if (this.state.shape === shape) return configure();
+    if (this.state.shape === shape) return this.oneBatchWhileOff(configure);
     const wasOn = this.state.outputOn;
     if (wasOn) await this.setOutput(false);
-    await this.runner.set(shape === 'sine' ? 'sineFunction' : 'dcFunction');
-    await this.confirm({ shape });
-    await configure();
+    await this.oneBatchWhileOff(async () => {
+      await this.change(shape === 'sine' ? 'sineFunction' : 'dcFunction', {}, { shape });
+      await configure();
+    });
     if (wasOn) await this.setOutput(true);
+  }
+
+  /** A configure's changes collected here go out at its end as one batch, confirmed once (output confirmed off only). */
+  private batch: Partial<OutputState> | undefined;
+
+  /**
+   * Runs `configure` with its changes batched when the output is confirmed off: nothing reaches the circuit
+   * then, whatever order the instrument takes them in or whichever it refuses, and the state counts as
+   * applied only once the whole batch is confirmed. With the output on (or unknown) each change is
+   * confirmed as it is made.
+   */
+  private async oneBatchWhileOff(configure: () => Promise<void>): Promise<void> {
+    if (!this.offConfirmed || this.batch) return configure();
+    this.batch = {};
+    let applied: Partial<OutputState>;
+    try {
+      await configure();
+      applied = this.batch;
+    } catch (error) {
+      this.runner.discardUnsent();
+      throw error;
+    } finally {
+      this.batch = undefined;
+    }
+    if (Object.keys(applied).length > 0) await this.confirm(applied);
+  }
+
+  /** One setting: confirmed now, or, inside a batch, with the batch. */
+  private async change(name: string, values: Record<string, number>, applied: Partial<OutputState>): Promise<void> {
+    await this.runner.set(name, values);
+    if (this.batch) Object.assign(this.batch, applied);
+    else await this.confirm(applied);
   }
 
   /** Applies amplitude and offset, decreases first, so each intermediate state is within old or new. */
   private async applyLevels(amplitudeVpp: number, offsetV: number): Promise<void> {
     const setAmplitude = async () => {
       if (this.state.amplitudeVpp === amplitudeVpp) return;
-      const amplitude = amplitudeInUnit(amplitudeVpp, this.profile.generator.amplitudeUnit);
-      await this.runner.set('amplitude', { amplitude });
-      await this.confirm({ amplitudeVpp });
+      await this.change('amplitude', { amplitude: amplitudeInUnit(amplitudeVpp, this.profile.generator.amplitudeUnit) }, { amplitudeVpp });
     };
     const setOffset = async () => {
-      if (this.state.offsetV === offsetV) return;
-      await this.runner.set('offset', { offsetV });
-      await this.confirm({ offsetV });
+      if (this.state.offsetV !== offsetV) await this.change('offset', { offsetV }, { offsetV });
     };
     const offsetGrows = Math.abs(offsetV) > Math.abs(this.state.offsetV ?? 0);
     if (offsetGrows) {
@@ -187,16 +217,18 @@ export class ProfileGenerator implements GeneratorControl {
    */
   private async driveToSafeState(): Promise<void> {
     this.state = { shape: undefined, frequencyHz: undefined, amplitudeVpp: undefined, offsetV: undefined, outputOn: true };
+    this.offConfirmed = false;
     const attempt = async (send: () => Promise<void>, applied: Partial<OutputState>) => {
       try {
         await send();
         await this.runner.flush();
         this.state = { ...this.state, ...applied };
+        return true;
       } catch {
-        // Left unknown; the next configure sets it with the output off.
+        return false; // left unknown; the next configure sets it with the output off
       }
     };
-    await attempt(() => this.runner.set('outputOff'), { outputOn: false });
+    this.offConfirmed = await attempt(() => this.runner.set('outputOff'), { outputOn: false });
     const smallestVpp = this.limits.minAmplitudeVpp;
     const amplitude = amplitudeInUnit(smallestVpp, this.profile.generator.amplitudeUnit);
     await attempt(() => this.runner.set('amplitude', { amplitude }), { amplitudeVpp: smallestVpp });

@@ -47,6 +47,11 @@ export class OperationRunner {
     return templates.map((template, i) => ({ text: fillTemplate(template, values), waitS: waits?.[i] ?? 0 }));
   }
 
+  /** Drops the settings collected since the last flush (a caller that gave up before confirming them). */
+  discardUnsent(): void {
+    this.unsent = [];
+  }
+
   /** A setting: its commands go out, with the error check, at the next flush or query. */
   async set(name: string, values: Record<string, number> = {}): Promise<void> {
     this.unsent.push(...this.commands(name, values));

@@ -117,6 +117,16 @@ describe('stimulus limit when the generator refuses part of a setting (read from
     expectNothingAboveTheLimit();
   });
 
+  it('amplitude refused in the one batch sent with the output off: the output never comes on, and cannot until configured afresh', async () => {
+    await bench.setFault('generator', { kind: 'refuse', header: '[SOURce]:VOLTage[:LEVel][:IMMediate][:AMPLitude]' });
+    const error = await generator.configureSine(A).catch((e: unknown) => e);
+    expect(error).toBeInstanceOf(ScpiInstrumentError);
+    expect((error as ScpiInstrumentError).code).toBe(-222);
+    await expect(generator.setOutput(true)).rejects.toBeInstanceOf(ValidationError);
+    expect(bench.generator.held.on).toBe(false);
+    expect(heldWhileOn).toEqual([]);
+  });
+
   it('refuses an amplitude below the profile\'s minimum before sending anything', async () => {
     await startAt(A);
     const before = { ...bench.generator.held };

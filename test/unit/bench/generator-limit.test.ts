@@ -23,9 +23,11 @@ function calibratedProfile(amplitudeUnit = 'Vpp'): GeneratorProfile {
 }
 
 /** A fake generator that accepts everything and records what it got. */
-async function fakeGenerator(maxStimulusVpp: number, profile: GeneratorProfile = findProfile('scpi-generator', 'generator')): Promise<{ control: GeneratorControl; received: string[] }> {
+async function fakeGenerator(maxStimulusVpp: number, profile: GeneratorProfile = findProfile('scpi-generator', 'generator')): Promise<{ control: GeneratorControl; received: string[]; messages: string[] }> {
   const { a, b } = memoryTransportPair('fake generator');
   const received: string[] = [];
+  /** Whole program messages as they came, one per write. */
+  const messages: string[] = [];
   let pending = '';
   b.onData((bytes) => {
     pending += new TextDecoder().decode(bytes);
@@ -33,6 +35,7 @@ async function fakeGenerator(maxStimulusVpp: number, profile: GeneratorProfile =
     while ((at = pending.indexOf('\n')) >= 0) {
       const line = pending.slice(0, at);
       pending = pending.slice(at + 1);
+      messages.push(line);
       // A program message may hold several units (';'), headers rooted with ':' (IEEE 488.2 §7, SCPI-1999 §6.2,
       // recalled from memory); one response message answers its queries in order.
       const units = line.split(';').map((unit) => unit.replace(/^:/, ''));
@@ -44,7 +47,7 @@ async function fakeGenerator(maxStimulusVpp: number, profile: GeneratorProfile =
     }
   });
   const opened = await openInstrument('memory', 'generator', profile, { maxStimulusVpp, transport: a });
-  return { control: opened.control, received };
+  return { control: opened.control, received, messages };
 }
 
 const settings = (received: string[]) => received.filter((line) => !line.endsWith('?'));
@@ -146,6 +149,24 @@ describe('GeneratorControl stimulus limit', () => {
       'OUTPut:STATe OFF', 'SOURce:FUNCtion DC', 'SOURce:VOLTage:OFFSet 0.9', 'OUTPut:STATe ON',
       'OUTPut:STATe OFF', 'SOURce:FUNCtion SINusoid', 'SOURce:VOLTage:OFFSet 0', 'SOURce:VOLTage 0.2', 'OUTPut:STATe ON',
     ]);
+  });
+
+  it('with the output confirmed off, a configure goes out as one program message ending in the error check; the output comes on in the next', async () => {
+    const { control, messages } = await fakeGenerator(2);
+    messages.length = 0;
+    await control.configureSine({ frequencyHz: 1000, amplitudeVpp: 1.5, offsetV: 0.25 });
+    expect(messages).toEqual([':SOURce:FUNCtion SINusoid;:SOURce:FREQuency 1000;:SOURce:VOLTage 1.5;:SOURce:VOLTage:OFFSet 0.25;:SYSTem:ERRor?']);
+    await control.setOutput(true);
+    expect(messages.slice(1)).toEqual([':OUTPut:STATe ON;:SYSTem:ERRor?']);
+  });
+
+  it('with the output on, each change is its own message, confirmed before the next goes out', async () => {
+    const { control, messages } = await fakeGenerator(2);
+    await control.configureSine({ frequencyHz: 1000, amplitudeVpp: 1.5, offsetV: 0.25 });
+    await control.setOutput(true);
+    messages.length = 0;
+    await control.configureSine({ frequencyHz: 2000, amplitudeVpp: 1, offsetV: 0.5 });
+    expect(messages).toEqual([':SOURce:FREQuency 2000;:SYSTem:ERRor?', ':SOURce:VOLTage 1;:SYSTem:ERRor?', ':SOURce:VOLTage:OFFSet 0.5;:SYSTem:ERRor?']);
   });
 
   it('will not open a generator without a maximum stimulus', async () => {
