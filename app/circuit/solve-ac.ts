@@ -73,6 +73,21 @@ export function solveAc(design: Design, frequenciesHz: Float64Array, options: Ac
   };
 }
 
+/**
+ * |H| as a ratio at one frequency per call, from the same model response as solveAc: one solver, stamped
+ * once, for callers that ask frequency by frequency (a plan's amplitude choice, a scope's vertical scale)
+ * and need neither the ideal response nor the op-amp columns solveAc computes beside it.
+ */
+export function gainRatioFunction(design: Design): (frequencyHz: number) => number {
+  const solver = new AcSolver(design);
+  solver.stamp('model');
+  const h = new Float64Array(2);
+  return (frequencyHz) => {
+    solver.transferAt(frequencyHz, h);
+    return Math.hypot(h[0], h[1]);
+  };
+}
+
 function opAmpColumns(solver: AcSolver, index: number, id: string, model: OpAmpModel, frequenciesHz: Float64Array): OpAmpAcColumns {
   const count = frequenciesHz.length;
   const noiseGainDb = new Float64Array(count);

@@ -4,6 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import {
+  gainRatioFunction,
   makeDesignFromTemplate,
   maxUndistortedOutputVpk,
   parseDesign,
@@ -41,6 +42,29 @@ describe('op-amp loop quantities', () => {
     const f = 2e6;
     const op = solveAc(design, Float64Array.from([f])).opamps[0];
     expect(op.openLoopGainDb[0]).toBeCloseTo(dbFromRatio(1e5 / Math.hypot(1, (f * 1e5) / 1e6) / Math.SQRT2), 9);
+  });
+});
+
+describe('gain at one frequency per call', () => {
+  it('is |H| of the inverting low-pass with the single-pole op-amp, H = −(ZF/RN)/(1 + (1 + ZF/RN)/A), ZF = RF ∥ CF, A = A0/(1 + j·f·A0/GBW) (DEVELOPERS.md "Theory"), and solveAc\'s own figure', () => {
+    const design = parseDesign(makeDesignFromTemplate('inverting-lowpass', {}));
+    const part = (id: string) => design.parts.find((p) => p.id === id) as unknown as { value: number; model: { openLoopGain: number; gbw: number } };
+    const [rn, rf, cf] = [part('RN').value, part('RF').value, part('CF').value];
+    const { openLoopGain: a0, gbw } = part('U1').model;
+    const gainAt = gainRatioFunction(design);
+    const frequenciesHz = [10, 1e3, 3e4, 1e6];
+    const response = solveAc(design, Float64Array.from(frequenciesHz));
+    frequenciesHz.forEach((f, i) => {
+      // Complex arithmetic as [re, im].
+      const divide = ([a, b]: number[], [c, d]: number[]) => [(a * c + b * d) / (c * c + d * d), (b * c - a * d) / (c * c + d * d)];
+      const zf = divide([rf, 0], [1, 2 * Math.PI * f * rf * cf]);
+      const ratio = [zf[0] / rn, zf[1] / rn];
+      const openLoop = divide([a0, 0], [1, (f * a0) / gbw]);
+      const noiseGainOverA = divide([1 + ratio[0], ratio[1]], openLoop);
+      const h = divide(ratio, [1 + noiseGainOverA[0], noiseGainOverA[1]]);
+      expect(gainAt(f) / Math.hypot(h[0], h[1])).toBeCloseTo(1, 9);
+      expect(dbFromRatio(gainAt(f))).toBeCloseTo(response.gainDb[i], 10);
+    });
   });
 });
 
