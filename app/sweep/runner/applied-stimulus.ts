@@ -32,6 +32,19 @@ export class AppliedStimulus {
     if (this.step !== setting.step) await this.apply(instruments, setting, kind);
   }
 
+  /**
+   * Applies the step unless it is already applied, and meanwhile sets the measuring instrument up for it
+   * (another instrument on another link, so neither waits for the other's round trips). Waits for both;
+   * a failure of either is reported once both are done, the generator's first.
+   */
+  async ensureWhile(instruments: SweepInstruments, setting: StepSetting, kind: 'sine' | 'dc', setUp: () => Promise<void>): Promise<void> {
+    // When the generator has a command to send, the set-up starts one turn of the event loop later, so that
+    // command (its reply starts the settling) goes out first.
+    const settingUp = this.step === setting.step ? setUp() : new Promise<void>((resolve) => setImmediate(resolve)).then(setUp);
+    const results = await Promise.allSettled([this.ensure(instruments, setting, kind), settingUp]);
+    for (const result of results) if (result.status === 'rejected') throw result.reason;
+  }
+
   /** Waits until the step's settling time has passed since its stimulus was applied. */
   async settled(settleS: number): Promise<void> {
     const remainingS = this.changedAtS + settleS - this.clock.nowS();

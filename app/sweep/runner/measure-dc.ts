@@ -24,11 +24,12 @@ export function dcMeasurer(options: { clock: BenchClock }): StepMeasurer {
 
     async acquire(instruments: SweepInstruments, setting: StepSetting, acquiring: () => void) {
       const meter = instruments.meter!;
-      await stimulus.ensure(instruments, setting, 'dc');
-      if (apertureChanged(lastIntegrationS, setting.integrateS)) {
+      await stimulus.ensureWhile(instruments, setting, 'dc', async () => {
+        if (!apertureChanged(lastIntegrationS, setting.integrateS)) return;
+        lastIntegrationS = NaN;
         await meter.setIntegration(setting.integrateS);
         lastIntegrationS = setting.integrateS;
-      }
+      });
       await stimulus.settled(setting.settleS);
       const readings: Reading[] = [];
       for (let k = 0; k < setting.averages; k++) {

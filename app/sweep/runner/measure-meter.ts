@@ -50,9 +50,8 @@ export function meterMeasurer(options: MeterMeasurerOptions): StepMeasurer {
 
     async acquire(instruments: SweepInstruments, setting: StepSetting, acquiring: () => void) {
       const meter = instruments.meter!;
-      await stimulus.ensure(instruments, setting, 'sine');
-      // Usually done already, right after the previous step's readings (see below).
-      await setUp(meter, setting);
+      // The set-up is usually done already, right after the previous step's readings (see below).
+      await stimulus.ensureWhile(instruments, setting, 'sine', () => setUp(meter, setting));
       await stimulus.settled(setting.settleS);
       const readings: Reading[] = [];
       // Each reading integrates over the aperture set above (READ? returns when it is done).

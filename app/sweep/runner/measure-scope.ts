@@ -86,9 +86,8 @@ export function scopeMeasurer(options: ScopeMeasurerOptions): StepMeasurer {
 
     async acquire(instruments: SweepInstruments, setting: StepSetting, acquiring: () => void) {
       const scope = instruments.scope!;
-      await stimulus.ensure(instruments, setting, 'sine');
-      // Usually done already, right after the previous step's read-back (see below).
-      await setUp(scope, setting);
+      // The set-up is usually done already, right after the previous step's read-back (see below).
+      await stimulus.ensureWhile(instruments, setting, 'sine', () => setUp(scope, setting));
       await stimulus.settled(setting.settleS);
       // Both channels at once on one time base. Once captured the stimulus is free: the runner moves the
       // generator on while this record is read back.
