@@ -63,9 +63,11 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
   const startedS = clock.nowS();
   let physicalDoneS = 0;
 
-  // The last measured point waits here until the next step's acquisition is under way, then is stored while
-  // the instrument captures: a store commit (synchronous, fully durable) then neither delays the next
-  // acquisition's start nor shortens anything physical. It is stored before anything else reads the store.
+  // The last measured point waits here and is stored during the longer of the next step's two waits: the
+  // rest of its settling (stored at once) or its acquisition (stored once that is under way). A store
+  // commit is synchronous and fully durable, so it holds up whatever falls due while it runs; in the
+  // longer wait it usually ends first, and it never shortens anything physical. It is stored before
+  // anything else reads the store.
   let unstored: (() => Promise<void>) | undefined;
   let storing: Promise<void> | undefined;
   let storeError: unknown;
@@ -134,14 +136,17 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
       }
 
       const upcoming = queue[1];
+      /** When the generator acknowledged the next step's setting (bench seconds), once it has. */
+      let upcomingAppliedAtS = NaN;
       const attempt = async () => {
         for (let tries = 1; ; tries++) {
           try {
+            upcomingAppliedAtS = NaN;
             const read = await options.measurer.acquire(instruments!, setting, acquiring);
             // The stimulus of this step is no longer needed: move the generator on so the next step's settling
             // runs while this step's data are read back, reduced and stored.
             const next = upcoming && control.pending === 'none' ? upcoming : undefined;
-            const ahead = next ? options.measurer.apply(instruments!, next) : undefined;
+            const ahead = next ? options.measurer.apply(instruments!, next).then(() => void (upcomingAppliedAtS = clock.nowS())) : undefined;
             const [value] = await Promise.all([read(next), ahead]);
             return value;
           } catch (error) {
@@ -155,6 +160,8 @@ export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
       await stored();
       queue.shift();
       unstored = () => storePoint(setting, result, retried);
+      const settlingLeftS = upcomingAppliedAtS + (upcoming?.settleS ?? 0) - clock.nowS();
+      if (upcoming && settlingLeftS > upcoming.averages * upcoming.integrateS) startStoring();
     }
     await stored();
     await outputOff(instruments, log);
