@@ -27,6 +27,16 @@ describe('BenchClock', () => {
     expect(realClock.nowS() - start).toBeGreaterThanOrEqual(0.019);
   });
 
+  it('never ends a sleep before its deadline, polled or coarse (a settling cut short would corrupt a capture)', async () => {
+    for (const coarse of [false, true]) {
+      for (const seconds of [0.0005, 0.0015, 0.0025, 0.0037, 0.011]) {
+        const start = performance.now();
+        await realClock.sleepS(seconds, { coarse });
+        expect(performance.now() - start, `${seconds} s, coarse ${coarse}`).toBeGreaterThanOrEqual(seconds * 1000);
+      }
+    }
+  });
+
   it('refuses a zero, negative or infinite scale', () => {
     for (const bad of [0, -1, Infinity, Number.NaN]) expect(() => scaledClock(bad)).toThrow(RangeError);
   });
