@@ -10,7 +10,7 @@ import type { BenchModel } from './bench-model';
 import { booleanParam, formatNr3, numberParam, stringParam } from './parameters';
 import { SimCommandError } from './scpi-errors';
 import { SimInstrument, SIMULATED_MANUFACTURER } from './sim-instrument';
-import { sliceBounds } from './slices';
+import { sliceBounds, UNTIMED_BEFORE_END_S } from './slices';
 import { SOFTWARE_VERSION } from '../contract/version';
 
 /** −3 dB bandwidth of the AC converter (a plausible bench-meter figure, invented). */
@@ -88,6 +88,7 @@ export class SimMeter extends SimInstrument {
     // converter does): the reply then follows the aperture's end by one slice's computation, not by
     // the whole simulation, and a generator change during the aperture enters the slices after it.
     const bounds = sliceBounds(count, SAMPLES_PER_SLICE, FINAL_SLICE_SAMPLES);
+    const endS = startS + apertureS;
     let sum = 0;
     let sumSquares = 0;
     for (let k = 0; k + 1 < bounds.length; k++) {
@@ -95,7 +96,7 @@ export class SimMeter extends SimInstrument {
       const next = bounds[k + 1];
       const sliceStartS = startS + (first / count) * apertureS;
       const sliceEndS = startS + (next / count) * apertureS;
-      await this.clock.sleepS(sliceEndS - this.clock.nowS());
+      await this.clock.sleepS(sliceEndS - this.clock.nowS(), { coarse: (endS - sliceEndS) / this.clock.timeScale > UNTIMED_BEFORE_END_S });
       for (const v of this.model.sampleStratified('output', sliceStartS, sliceEndS - sliceStartS, next - first)) {
         sum += v;
         sumSquares += v * v;

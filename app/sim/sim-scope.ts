@@ -16,7 +16,7 @@ import { booleanParam, expectParamCount, formatNr3, keywordParam, numberParam } 
 import { keywordIs } from './program-message';
 import { SimCommandError } from './scpi-errors';
 import { SimInstrument, SIMULATED_MANUFACTURER } from './sim-instrument';
-import { sliceBounds } from './slices';
+import { sliceBounds, UNTIMED_BEFORE_END_S } from './slices';
 import { SOFTWARE_VERSION } from '../contract/version';
 
 /** Codes for the full range (SENSe:VOLTage:RANGe) per integer width; the converter reaches a little beyond it. */
@@ -164,7 +164,8 @@ export class SimScope extends SimInstrument {
     for (let k = 0; k + 1 < bounds.length; k++) {
       const first = bounds[k];
       const next = bounds[k + 1];
-      await this.clock.sleepS(startS + next * intervalS - this.clock.nowS());
+      const sliceEndS = startS + next * intervalS;
+      await this.clock.sleepS(sliceEndS - this.clock.nowS(), { coarse: (endS - sliceEndS) / this.clock.timeScale > UNTIMED_BEFORE_END_S });
       if (!isOver && (next === points || this.clock.nowS() >= endS)) {
         isOver = true;
         over();

@@ -12,3 +12,9 @@ export function sliceBounds(count: number, perSlice: number, lastSlice: number):
   if (count > 0) bounds.push(count);
   return bounds;
 }
+
+/**
+ * A slice ending this long (wall seconds) before its measurement's end may end late: only the end is
+ * timed (the reply), so the wait for an earlier slice is not polled and costs no CPU.
+ */
+export const UNTIMED_BEFORE_END_S = 0.003;
