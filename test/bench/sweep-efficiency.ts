@@ -50,7 +50,7 @@
  * machine, which stretches the replies of the simulated bench's process, can
  * be told apart from the runner's own cost.
  */
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { openServiceAt } from '../../app/service/open-service';
@@ -126,6 +126,8 @@ async function main(): Promise<void> {
         timeline.push({ atMs: performance.now(), role: t.role, direction: t.direction, text: t.text });
       });
       const loadBefore = loadavg()[0];
+      const simProcess = link === 'pty' ? serial! : lan;
+      const simCpuBeforeMs = cpuMsOfProcess(simProcess.process.pid!);
       const cpuBefore = process.cpuUsage();
       const started = performance.now();
       if (tracing) trace(`START ${c.name}`);
@@ -133,6 +135,7 @@ async function main(): Promise<void> {
       await service.waitForRun(run.id);
       const doneMs = performance.now();
       const cpu = process.cpuUsage(cpuBefore);
+      const simCpuMs = cpuMsOfProcess(simProcess.process.pid!) - simCpuBeforeMs;
       stopPoints();
       stopTraffic();
       const wallS = (lastPointMs - started) / 1000;
@@ -147,7 +150,8 @@ async function main(): Promise<void> {
       const floorRatio = (minimumS + plan.steps.length * 2 * (latencyMs / 1000)) / minimumS;
       const parts = c.request.measurement === 'scope' ? scopeBreakdown(timeline, plan.steps, request.averages, started, lastPointMs) : undefined;
       const cpuMsPerPoint = (cpu.user + cpu.system) / 1000 / plan.steps.length;
-      breakdowns.push(`${link.padEnd(7)} ${c.name.padEnd(38)} ${parts ? describeParts(parts, plan.steps.length) : describeNoParts()}   ${cpuMsPerPoint.toFixed(1).padStart(5)} ms  ${loadBefore.toFixed(2)}/${loadavg()[0].toFixed(2)}`);
+      const simCpuMsPerPoint = simCpuMs / plan.steps.length;
+      breakdowns.push(`${link.padEnd(7)} ${c.name.padEnd(38)} ${parts ? describeParts(parts, plan.steps.length) : describeNoParts()}   ${cpuMsPerPoint.toFixed(1).padStart(5)} ms  ${simCpuMsPerPoint.toFixed(1).padStart(5)} ms  ${loadBefore.toFixed(2)}/${loadavg()[0].toFixed(2)}`);
       if (parts && parts.settlingShort > 0) breakdowns.push(`        ^ ${parts.settlingShort} acquisition(s) started before the settling counted from the generator's acknowledgement was over`);
       console.log(
         `${link.padEnd(7)} ${c.name.padEnd(38)} ${String(plan.steps.length).padStart(6)}  ${minimumS.toFixed(3).padStart(8)} s (${plan.estimatedDurationS.toFixed(3)})  ${wallS.toFixed(3).padStart(8)} s  ${ratio.toFixed(3).padStart(6)}  ${setupMs.toFixed(0).padStart(4)} ms  ${overheadMs.toFixed(1).padStart(8)} ms  ${floorRatio.toFixed(3).padStart(13)}  ${analysisMs.toFixed(0).padStart(8)} ms`,
@@ -166,9 +170,9 @@ async function main(): Promise<void> {
     console.log('  re-measure   = acquisitions repeated with a wider scale (clipped records)');
     console.log('  end          = the last "complete" to the commit of the last point (read-back, fits, store)');
     console.log('  sum          = all of these; equals wall time − the plan\'s Σ (settle + record)');
-    console.log('  CPU          = this process\'s user+system CPU per point (runner, store, fits; the simulated bench runs apart)');
+    console.log('  CPU          = user+system CPU per point of this process (runner, store, fits) and of the simulated bench\'s process');
     console.log('  load avg     = 1-minute load average before/after the case (2 cores: above ~1 the figures stretch)');
-    console.log('link    case                                    set-up  first stim.  acquisition    generator      late start (median/max)  re-measure   end      sum (per point)   CPU/point  load avg');
+    console.log('link    case                                    set-up  first stim.  acquisition    generator      late start (median/max)  re-measure   end      sum (per point)   CPU/point: run   sim   load avg');
     for (const line of breakdowns) console.log(line);
   } finally {
     await service.close();
@@ -250,6 +254,13 @@ function scopeBreakdown(timeline: TrafficMoment[], steps: Array<{ settleS: numbe
   if (step !== steps.length - 1) return undefined; // not the plan's steps (refinement, a failed run): no exact split
   parts.endMs = lastPointMs - ms(previousComplete);
   return parts;
+}
+
+/** User+system CPU time of a process so far, ms (Linux /proc; clock ticks of 1/100 s). */
+function cpuMsOfProcess(pid: number): number {
+  const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').replace(/^.*\) /, '').split(' ');
+  // After "pid (comm) ", utime and stime are the 12th and 13th fields (proc(5)); USER_HZ is 100 on Linux.
+  return ((Number(fields[11]) + Number(fields[12])) * 1000) / 100;
 }
 
 function describeParts(parts: OverheadParts, points: number): string {
