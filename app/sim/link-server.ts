@@ -79,18 +79,19 @@ export class InstrumentLink {
     if (this.closed || message.trim() === '') return;
     await this.options.faults.whileHung();
     if (this.closed) return;
-    let reply: SimReply | undefined;
+    let execution: { reply: SimReply | undefined; readyAtMs: number };
     try {
-      reply = await this.instrument.execute(message);
+      execution = await this.instrument.run(message);
     } catch {
-      return; // execute() queues its own errors; anything else must not stop the link
+      return; // run() queues its own errors; anything else must not stop the link
     }
+    const { reply, readyAtMs } = execution;
     if (reply === undefined || this.closed) return;
     const fault = this.options.faults.current;
-    let delayS = this.options.latencyS;
+    // The latency counts from the moment the reply was determined (SimInstrument.run), so the simulation's
+    // own computing is not added to it; the clock's sleep never ends early, so a reply never comes sooner.
+    let delayS = Math.max(0, this.options.latencyS - (performance.now() - readyAtMs) / 1000);
     if (fault?.kind === 'slow') delayS += fault.delayS;
-    // The clock's sleep never ends early (a bare timer can fire ~1 ms before its delay): a reply is
-    // never faster than the latency asked for.
     if (delayS > 0) await realClock.sleepS(delayS);
     if (this.closed) return;
     if (fault?.kind === 'no-reply' && this.options.random.nextUniform() < (fault.probability ?? 1)) return;

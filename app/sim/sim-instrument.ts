@@ -79,6 +79,18 @@ export abstract class SimInstrument {
    * queued, never thrown: a bad command must not stop the instrument.
    */
   async execute(message: string): Promise<SimReply | undefined> {
+    return (await this.run(message)).reply;
+  }
+
+  /**
+   * execute(), and when the reply was determined (performance.now() ms): when execution began, or,
+   * if a unit waited — an asynchronous handler (*OPC?, a reading, a record's data) — when the last
+   * such handler finished. The link's latency counts from then: the simulation's own computing
+   * before it (parsing, matching, synchronous handlers) is not added on top, as a real instrument's
+   * stated reply time includes its processing; anything that waits counts in full.
+   */
+  async run(message: string): Promise<{ reply: SimReply | undefined; readyAtMs: number }> {
+    let readyAtMs = performance.now();
     const replies: SimReply[] = [];
     let units: ProgramUnit[];
     try {
@@ -87,26 +99,13 @@ export abstract class SimInstrument {
       if (this.oneUnitPerMessage && units.length > 1) throw new SimCommandError('commandError', 'one command per message (no ";")');
     } catch (error) {
       this.queue(error);
-      return undefined;
+      return { reply: undefined, readyAtMs };
     }
     for (const unit of units) {
-      const reply = await this.executeUnit(unit);
+      const reply = await this.executeUnit(unit, () => (readyAtMs = performance.now()));
       if (reply !== undefined) replies.push(reply);
     }
-    if (replies.length === 0) return undefined;
-    if (replies.length === 1) return replies[0];
-    // Several query replies in one response message are separated by ';' (IEEE 488.2 §8.4.1, recalled).
-    // Joined as bytes: a block unit is binary and must pass unchanged.
-    if (replies.every((r) => typeof r === 'string')) return replies.join(';');
-    const parts = replies.map((r) => (typeof r === 'string' ? new TextEncoder().encode(r) : r));
-    const joined = new Uint8Array(parts.reduce((sum, p) => sum + p.length, 0) + parts.length - 1);
-    let at = 0;
-    parts.forEach((part, i) => {
-      if (i > 0) joined[at++] = 0x3b; // ';'
-      joined.set(part, at);
-      at += part.length;
-    });
-    return joined;
+    return { reply: joinReplies(replies), readyAtMs };
   }
 
   /** The no-joined-messages fault: only one program message unit per message. */
@@ -117,7 +116,8 @@ export abstract class SimInstrument {
     this.refused = patterns.map((p) => new HeaderPattern(p));
   }
 
-  private async executeUnit(unit: ProgramUnit): Promise<SimReply | undefined> {
+  /** `waited` is called when an asynchronous handler has finished (see run). */
+  private async executeUnit(unit: ProgramUnit, waited: () => void): Promise<SimReply | undefined> {
     if (this.refusing?.match(unit.header)) {
       this.queue(new SimCommandError('dataOutOfRange', `${unit.header} refused (simulated fault)`));
       return undefined;
@@ -130,8 +130,13 @@ export abstract class SimInstrument {
       const suffixes = pattern.match(unit.header);
       if (!suffixes) continue;
       try {
-        const reply = await handler({ params: unit.params, suffixes, header: unit.header });
-        return reply === undefined ? undefined : reply;
+        const result = handler({ params: unit.params, suffixes, header: unit.header });
+        if (!(result instanceof Promise)) return result === undefined ? undefined : result;
+        try {
+          return (await result) ?? undefined;
+        } finally {
+          waited();
+        }
       } catch (error) {
         this.queue(error);
         return undefined;
@@ -152,4 +157,22 @@ export abstract class SimInstrument {
     else if (error.code <= -200 && error.code > -300) this.eventStatus |= ESR_EXECUTION_ERROR;
     else if (error.code <= -400 && error.code > -500) this.eventStatus |= ESR_QUERY_ERROR;
   }
+}
+
+/** The response message of a program message's replies: none, one, or several separated by ';'. */
+function joinReplies(replies: SimReply[]): SimReply | undefined {
+  if (replies.length === 0) return undefined;
+  if (replies.length === 1) return replies[0];
+  // Several query replies in one response message are separated by ';' (IEEE 488.2 §8.4.1, recalled).
+  // Joined as bytes: a block unit is binary and must pass unchanged.
+  if (replies.every((r) => typeof r === 'string')) return replies.join(';');
+  const parts = replies.map((r) => (typeof r === 'string' ? new TextEncoder().encode(r) : r));
+  const joined = new Uint8Array(parts.reduce((sum, p) => sum + p.length, 0) + parts.length - 1);
+  let at = 0;
+  parts.forEach((part, i) => {
+    if (i > 0) joined[at++] = 0x3b; // ';'
+    joined.set(part, at);
+    at += part.length;
+  });
+  return joined;
 }
