@@ -207,7 +207,12 @@ export class ProfileGenerator implements GeneratorControl {
       throw error;
     }
     this.state = { ...this.state, ...applied };
+    // The flush's last reply is this confirmation (one exchange at a time on the session); a later reply
+    // in between would only make the moment later.
+    this.confirmedAtMs = this.session.lastReplyAtMs;
   }
+
+  confirmedAtMs: number | undefined;
 
   /**
    * Output off first (whatever the levels are, nothing then reaches the

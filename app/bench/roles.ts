@@ -45,6 +45,11 @@ export interface GeneratorControl {
   setLoad(load: LoadSetting): Promise<void>;
   /** Reads the frequency back from the instrument (for checks and logs). */
   readFrequencyHz(): Promise<Reading>;
+  /**
+   * When the instrument's confirmation of the latest change to its output arrived (performance.now()
+   * ms), if known: settling can be counted from it rather than from when the call returned.
+   */
+  readonly confirmedAtMs?: number;
 }
 
 export interface MeterControl {

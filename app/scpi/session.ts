@@ -52,6 +52,7 @@ export class ScpiSession {
   private pending: PendingReply | undefined;
   private readonly queue = new OperationQueue();
   private closedReason: string | undefined;
+  private replyAtMs = Number.NaN;
 
   constructor(
     private readonly transport: Transport,
@@ -77,6 +78,11 @@ export class ScpiSession {
 
   get isOpen(): boolean {
     return this.closedReason === undefined;
+  }
+
+  /** When the latest complete reply was framed and logged (performance.now() ms; NaN before the first): not before its traffic entry. */
+  get lastReplyAtMs(): number {
+    return this.replyAtMs;
   }
 
   /** Sends a command that has no reply. */
@@ -253,9 +259,11 @@ export class ScpiSession {
     this.pending = undefined;
     if (frame.kind === 'text') {
       this.traffic.add('received', frame.text, this.link);
+      this.replyAtMs = performance.now();
       pending.resolve({ kind: 'text', text: frame.text });
     } else if (frame.kind === 'block') {
       this.traffic.add('received', `<block of ${frame.bytes.length} bytes>`, this.link);
+      this.replyAtMs = performance.now();
       pending.resolve({ kind: 'block', bytes: frame.bytes });
     } else {
       this.traffic.add('received', `<malformed> ${frame.preview}`, this.link);
@@ -270,6 +278,7 @@ export class ScpiSession {
     this.pending = undefined;
     if (frame.kind === 'units') {
       this.traffic.add('received', frame.units.map((u) => (u.kind === 'text' ? u.text : `<block of ${u.bytes.length} bytes>`)).join(';'), this.link);
+      this.replyAtMs = performance.now();
       pending.resolve(frame);
     } else {
       this.traffic.add('received', `<malformed> ${frame.preview}`, this.link);

@@ -23,7 +23,11 @@ export class AppliedStimulus {
       await instruments.generator.setOutput(true);
       this.outputOn = true;
     }
-    this.changedAtS = this.clock.nowS();
+    // Settling counts from the generator's confirmation: from its arrival where the control knows it,
+    // else from now (a little later, never sooner).
+    const confirmedAtMs = instruments.generator.confirmedAtMs;
+    const sinceConfirmedS = confirmedAtMs === undefined || !Number.isFinite(confirmedAtMs) ? 0 : Math.max(0, performance.now() - confirmedAtMs) / 1000;
+    this.changedAtS = this.clock.nowS() - sinceConfirmedS * this.clock.timeScale;
     this.step = setting.step;
   }
 

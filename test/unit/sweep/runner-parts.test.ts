@@ -15,7 +15,7 @@ import { reduceRmsReadings, interpolateLogF } from '../../../app/sweep/runner/me
 import { combineAcquisitions } from '../../../app/sweep/runner/combine';
 import { niceScale, scopeMeasurer, splitRecord } from '../../../app/sweep/runner/measure-scope';
 import { sineFit3 } from '../../../app/signal';
-import { apertureChanged } from '../../../app/sweep/runner/applied-stimulus';
+import { AppliedStimulus, apertureChanged } from '../../../app/sweep/runner/applied-stimulus';
 import { PointFlag } from '../../../app/contract/contract';
 import type { StageResponse } from '../../../app/signal';
 import type { StepSetting, SweepInstruments } from '../../../app/sweep/runner/types';
@@ -60,6 +60,31 @@ describe('withRecovery', () => {
     await expect(withRecovery(async () => { calls++; throw new ScpiInstrumentError(-222, 'Data out of range', 'FREQ 1e9', 'tcp x'); },
       { runId: 1, clock, giveUpAfterS: 60, reconnect: async () => {}, log: () => {} })).rejects.toThrow(ScpiInstrumentError);
     expect(calls).toBe(1);
+  });
+});
+
+describe('settling', () => {
+  const applyWith = async (confirmedAtMs: () => number | undefined) => {
+    const clock = manualClock();
+    const stimulus = new AppliedStimulus(clock);
+    const generator = { configureSine: async () => {}, setOutput: async () => {}, get confirmedAtMs() { return confirmedAtMs(); } };
+    await stimulus.apply({ generator } as unknown as SweepInstruments, setting(), 'sine');
+    await stimulus.settled(0.01);
+    return clock.slept;
+  };
+
+  it('counts from the arrival of the generator\'s confirmation when the control knows it (4 ms ago: about 6 ms left of 10)', async () => {
+    const before = performance.now();
+    const [sleptS] = await applyWith(() => before - 4);
+    // The confirmation is 4 ms old, plus however long applying took here (a loaded machine stretches it).
+    const tookMs = performance.now() - before;
+    expect(sleptS).toBeLessThanOrEqual(0.006);
+    expect(sleptS).toBeGreaterThanOrEqual(0.006 - tookMs / 1000);
+  });
+
+  it('counts from the return of the call when it does not, and never from a moment after now', async () => {
+    expect(await applyWith(() => undefined)).toEqual([0.01]);
+    expect(await applyWith(() => performance.now() + 50)).toEqual([0.01]);
   });
 });
 
