@@ -18,7 +18,7 @@
  * not measurement and is reported beside it ("analysis after"), as is the
  * set-up before the first stimulus ("set-up", inside the timed window).
  *
- * Run: npx tsx test/bench/sweep-efficiency.ts [--latency-ms 3] [--per-decade 10] [--links socket,vxi11,pty]
+ * Run: npx tsx test/bench/sweep-efficiency.ts [--latency-ms 3] [--per-decade 10] [--links socket,vxi11,pty] [--cases scope,scope-averages,meter]
  * Every case runs once per connection kind (raw socket, VXI-11 through the
  * portmapper, started as in the tests when none answers — and a socat PTY), the same link latency
  * added by the simulated instruments on each.
@@ -65,11 +65,24 @@ function argument(name: string, fallback: number): number {
 
 type Link = 'socket' | 'vxi11' | 'pty';
 const LINKS: Link[] = ['socket', 'vxi11', 'pty'];
+const CASES = [
+  { id: 'scope', name: 'scope, 10 Hz–100 kHz', request: { from: 10, to: 100e3, measurement: 'scope' as const, averages: 1 } },
+  { id: 'scope-averages', name: 'scope, 10 Hz–100 kHz, 3 averages', request: { from: 10, to: 100e3, measurement: 'scope' as const, averages: 3 } },
+  { id: 'meter', name: 'meter, 10 Hz–100 kHz', request: { from: 10, to: 100e3, measurement: 'meter' as const, averages: 1 } },
+];
+
+/** The comma-separated values of option `--name`, each one of `allowed`; all of them when absent. */
+function listArgument<T extends string>(name: string, allowed: readonly T[]): T[] {
+  const at = process.argv.indexOf(`--${name}`);
+  if (at < 0) return [...allowed];
+  const values = (process.argv[at + 1] ?? '').split(',') as T[];
+  for (const value of values) if (!allowed.includes(value)) throw new Error(`--${name}: "${value}" is not one of ${allowed.join(', ')}`);
+  return values;
+}
 
 async function main(): Promise<void> {
-  const at = process.argv.indexOf('--links');
-  const links = at > 0 ? (process.argv[at + 1].split(',') as Link[]) : LINKS;
-  for (const link of links) if (!LINKS.includes(link)) throw new Error(`--links: "${link}" is not one of ${LINKS.join(', ')}`);
+  const links = listArgument('links', LINKS);
+  const caseIds = listArgument('cases', CASES.map((c) => c.id));
   const latencyMs = argument('latency-ms', 3);
   const perDecade = argument('per-decade', 10);
   const folder = mkdtempSync(join(tmpdir(), 'rolloff-bench-'));
@@ -89,11 +102,7 @@ async function main(): Promise<void> {
   try {
     const design = await service.saveDesign(designFile);
     const build = await service.createBuild({ designId: design.id, label: 'bench', notes: '', actualValues: {} });
-    const cases = [
-      { name: 'scope, 10 Hz–100 kHz', request: { from: 10, to: 100e3, measurement: 'scope' as const, averages: 1 } },
-      { name: 'scope, 10 Hz–100 kHz, 3 averages', request: { from: 10, to: 100e3, measurement: 'scope' as const, averages: 3 } },
-      { name: 'meter, 10 Hz–100 kHz', request: { from: 10, to: 100e3, measurement: 'meter' as const, averages: 1 } },
-    ];
+    const cases = CASES.filter((c) => caseIds.includes(c.id));
     const tracing = process.argv.includes('--trace');
     const traceStart = performance.now();
     // Trace lines are kept in memory and written after each case, so writing them does not delay the sweep.
