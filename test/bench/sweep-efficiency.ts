@@ -169,7 +169,7 @@ async function main(): Promise<void> {
     }
     console.log('target: ratio ≤ 1.10 (scope case, one acquisition per point, 3 ms per reply)');
     console.log('');
-    console.log('where the wall time beyond the physical minimum goes, from the link traffic (scope cases; ms in all, per point in brackets):');
+    console.log('where the wall time beyond the physical minimum goes, from the link traffic (scope cases; ms in all, and per point in brackets: mean/median):');
     console.log('  set-up       = start of the run to the first generator command (store, plan, events)');
     console.log('  first stim.  = the first step\'s generator configuration, to its acknowledgement');
     console.log('  acquisition  = start of acquisition to "complete", less the record length (the physical part)');
@@ -181,7 +181,7 @@ async function main(): Promise<void> {
     console.log('  sum          = all of these; equals wall time − the plan\'s Σ (settle + record)');
     console.log('  CPU          = user+system CPU per point of this process (runner, store, fits) and of the simulated bench\'s process');
     console.log('  load avg     = 1-minute load average before/after the case (2 cores: above ~1 the figures stretch)');
-    console.log('link    case                                    set-up  first stim.  acquisition    generator      late start (median/max)  re-measure   end      sum (per point)   CPU/point: run   sim   load avg');
+    console.log('link    case                                    set-up  first stim.         acquisition           generator          late start  re-measure     end   sum (per point)   CPU/point: run   sim   load avg');
     for (const line of breakdowns) console.log(line);
   } finally {
     await service.close();
@@ -274,15 +274,16 @@ function cpuMsOfProcess(pid: number): number {
 
 function describeParts(parts: OverheadParts, points: number): string {
   const sum = (values: number[]) => values.reduce((a, b) => a + b, 0);
-  const sorted = [...parts.lateMs].sort((a, b) => a - b);
+  const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)] ?? 0;
   const total = parts.setUpMs + parts.firstStimulusMs + sum(parts.acquisitionMs) + sum(parts.generatorMs) + sum(parts.lateMs) + parts.remeasureMs + parts.endMs;
-  const inAll = (values: number[]) => `${sum(values).toFixed(0).padStart(4)} (${(sum(values) / Math.max(1, values.length)).toFixed(2)})`;
+  // In all, then mean and median per point: on a loaded machine the median shows the usual point, the mean its stalls.
+  const perPoint = (values: number[]) => `${sum(values).toFixed(0).padStart(4)} (${(sum(values) / Math.max(1, values.length)).toFixed(2)}/${median(values).toFixed(2)})`;
   return [
     parts.setUpMs.toFixed(0).padStart(6),
     parts.firstStimulusMs.toFixed(0).padStart(11),
-    inAll(parts.acquisitionMs).padStart(13),
-    inAll(parts.generatorMs).padStart(12),
-    `${inAll(parts.lateMs)} (${(sorted[Math.floor(sorted.length / 2)] ?? 0).toFixed(2)}/${(sorted[sorted.length - 1] ?? 0).toFixed(1)})`.padStart(24),
+    perPoint(parts.acquisitionMs).padStart(18),
+    perPoint(parts.generatorMs).padStart(18),
+    perPoint(parts.lateMs).padStart(18),
     parts.remeasureMs.toFixed(0).padStart(10),
     parts.endMs.toFixed(0).padStart(6),
     `${total.toFixed(0).padStart(6)} (${(total / points).toFixed(2)})`.padStart(16),
@@ -290,7 +291,7 @@ function describeParts(parts: OverheadParts, points: number): string {
 }
 
 function describeNoParts(): string {
-  return `${'—'.padStart(6)}  ${'—'.padStart(11)}  ${'—'.padStart(13)}  ${'—'.padStart(12)}  ${'—'.padStart(24)}  ${'—'.padStart(10)}  ${'—'.padStart(6)}  ${'—'.padStart(16)}`;
+  return [6, 11, 18, 18, 18, 10, 6, 16].map((width) => '—'.padStart(width)).join('  ');
 }
 
 /** Σ (settle + averages · acquisition) from the design file and the request alone (see the file comment). */
