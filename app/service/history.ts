@@ -34,11 +34,6 @@ export class RunHistory {
     return summaryOf(await this.store.getRun(runId), this.judgeOwner);
   }
 
-  /** The step a resumed run continues at. */
-  async nextStep(runId: number): Promise<number> {
-    return this.store.nextStep(runId);
-  }
-
   /** The build's diode model (log stage), for comparing a DC fit with theory. */
   async diodeOfRun(runId: number): Promise<{ n: number; isA: number; rsOhm: number } | undefined> {
     return diodeOfRun(this.store, runId);

@@ -29,8 +29,11 @@ export interface LaunchContext extends RunKindContext {
   active: Map<number, ActiveRun>;
 }
 
-/** Starts sweeping a run this service owns; resolves once it is under way (its end: context.active's entry). */
-export async function launchRun(context: LaunchContext, runId: number): Promise<void> {
+/**
+ * Starts sweeping a run this service owns; resolves once it is under way (its end: context.active's entry)
+ * with the step it starts at: the store's next step, read before the sweep stores any.
+ */
+export async function launchRun(context: LaunchContext, runId: number): Promise<number> {
   const { store, claimant, bench, options } = context;
   const run = await store.getRun(runId);
   const setup = await sweepSetupFor(context, run);
@@ -50,10 +53,12 @@ export async function launchRun(context: LaunchContext, runId: number): Promise<
   let takenOver = false;
   let ended: RunStatus = 'failed';
   const release = () => store.releaseRun(runId, claimant.ownerId).catch(() => undefined);
+  const firstStep = await store.nextStep(runId);
   const finished = runSweep({
     ...setup,
     store,
     runId,
+    firstStep,
     ownerId: claimant.ownerId,
     control,
     giveUpAfterS: options.giveUpAfterS ?? 120,
@@ -86,4 +91,5 @@ export async function launchRun(context: LaunchContext, runId: number): Promise<
   // The caller learns the outcome through waitForRun/events; an unobserved rejection must not crash the process.
   finished.catch(() => undefined);
   context.active.set(runId, { control, finished });
+  return firstStep;
 }

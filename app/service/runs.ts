@@ -21,6 +21,12 @@ import { launchRun, type ActiveRun, type LaunchContext } from './run-launch';
 import { finalizeRun } from './run-kinds';
 import type { RolloffServiceOptions } from './service-options';
 
+/** A resumed run and the step its sweep continues at. */
+export interface ResumedRun {
+  run: RunSummary;
+  continuesAtStep: number;
+}
+
 export interface RunsContext {
   store: RolloffStore;
   bench: BenchControl;
@@ -111,8 +117,12 @@ export class Runs {
     return this.context.history.summary(runId);
   }
 
-  /** resumeRun, with instruments at other addresses than the run was measured with (CLI --generator …). */
-  async resumeRunWith(runId: number, extra: ResumeRequest & { instruments?: ConnectRequest[] } = {}): Promise<RunSummary> {
+  /**
+   * resumeRun, with instruments at other addresses than the run was measured with (CLI --generator …), and
+   * the step the sweep continues at, as the sweep itself took it: read again afterwards, the store may
+   * already hold the resumed sweep's first points.
+   */
+  async resumeRunWith(runId: number, extra: ResumeRequest & { instruments?: ConnectRequest[] } = {}): Promise<ResumedRun> {
     const run = await this.context.store.getRun(runId);
     if (this.active.has(runId)) throw new RunStateError(runId, 'is already running');
     // Another bench's run only with its bench named again: a take-over is never given by accident.
@@ -185,7 +195,7 @@ export class Runs {
     return this.context.history.summary(run.id);
   }
 
-  private async resumeOnHeldBench(run: StoredRun, instruments: ConnectRequest[], takenOverFromBench: string | undefined): Promise<RunSummary> {
+  private async resumeOnHeldBench(run: StoredRun, instruments: ConnectRequest[], takenOverFromBench: string | undefined): Promise<ResumedRun> {
     const { bench, benchName, store, claimant } = this.context;
     const runId = run.id;
     if (run.status === 'done') throw new RunStateError(runId, 'is finished; nothing to resume', 'Start a new run of the same build instead.');
@@ -205,13 +215,13 @@ export class Runs {
       bench.requireInstrumentsFor(run.request);
       if (takenOverFromBench !== undefined) await this.logRunEvent(runId, 'warning', takeOverEventText(takenOverFromBench, benchName));
       await this.logRunEvent(runId, 'info', `resumed (maximum stimulus ${maxStimulusVpp} Vpp of ${benchDescription(runBench)})`);
-      await launchRun(this.launchContext, runId);
+      const continuesAtStep = await launchRun(this.launchContext, runId);
+      return { run: await this.context.history.summary(runId), continuesAtStep };
     } catch (error) {
       // Not resumed after all (no stimulus limit, an instrument missing): leave the run to whoever tries next.
       if (!this.active.has(runId)) await store.releaseRun(runId, claimant.ownerId).catch(() => undefined);
       throw error;
     }
-    return this.context.history.summary(runId);
   }
 
   /**

@@ -23,7 +23,7 @@ import { followLabChanges } from './lab-changes';
 import type { SimulatedBenchHandle } from './simulated-bench';
 import { BenchControl } from './bench-control';
 import { SweepPlanning } from './sweep-planning';
-import { Runs } from './runs';
+import { Runs, type ResumedRun } from './runs';
 import { RunHistory } from './history';
 import { Designs } from './designs';
 import { runSchedule, type ScheduleInput, type ScheduleReport } from './schedules';
@@ -239,11 +239,11 @@ export class RolloffService implements RolloffApi {
    * with unless instruments are already connected.
    */
   async resumeRun(runId: number, request: ResumeRequest = {}): Promise<RunSummary> {
-    return this.resumeRunWith(runId, request);
+    return (await this.resumeRunWith(runId, request)).run;
   }
 
-  /** resumeRun, with instruments at other addresses than the run was measured with (CLI --generator …). */
-  async resumeRunWith(runId: number, extra: ResumeRequest & { instruments?: ConnectRequest[] } = {}): Promise<RunSummary> {
+  /** resumeRun, with instruments at other addresses than the run was measured with (CLI --generator …), and the step it continues at. */
+  async resumeRunWith(runId: number, extra: ResumeRequest & { instruments?: ConnectRequest[] } = {}): Promise<ResumedRun> {
     return this.runs.resumeRunWith(runId, extra);
   }
 
@@ -274,11 +274,6 @@ export class RolloffService implements RolloffApi {
   /** A run's summary, without the analysis getRun does. */
   async getRunSummary(runId: number): Promise<RunSummary> {
     return this.history.summary(runId);
-  }
-
-  /** The step a resumed run continues at. */
-  async nextStep(runId: number): Promise<number> {
-    return this.history.nextStep(runId);
   }
 
   /** The build's diode model (log stage), for comparing a DC fit with theory. */

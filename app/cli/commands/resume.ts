@@ -39,9 +39,10 @@ run's events record the take-over.`,
         throw new ValidationError('--simulated', `run ${runId} was measured on real instruments and continues only on them`, 'Drop --simulated; give the instrument addresses if they changed (--generator, --scope, --meter).');
       }
       if (stored.simulated) process.stderr.write(`run ${runId} was measured on the simulated bench and continues on a fresh simulated bench\n`);
-      await service.resumeRunWith(runId, { instruments: stored.simulated ? [] : connectRequestsFrom(parsed), takeOverFromBench: optionString(parsed, 'take-over-from') });
+      // The step as the sweep took it: read afterwards, the store may already hold the resumed sweep's first points.
+      const { continuesAtStep } = await service.resumeRunWith(runId, { instruments: stored.simulated ? [] : connectRequestsFrom(parsed), takeOverFromBench: optionString(parsed, 'take-over-from') });
       reportReusedLimit(service);
-      process.stderr.write(`run ${runId} continues at step ${await service.nextStep(runId)}\n`);
+      process.stderr.write(`run ${runId} continues at step ${continuesAtStep}\n`);
       const status = await followRun(service, runId);
       process.stdout.write(runDetailText(await service.getRun(runId), await service.diodeOfRun(runId)));
       return status === 'done' || status === 'paused' ? 0 : 1;

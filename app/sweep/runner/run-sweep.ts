@@ -19,6 +19,8 @@ export interface SweepRunOptions {
   /** Only the few store methods a sweep uses: a fake of them drives the runner in tests. */
   store: SweepStore;
   runId: number;
+  /** The step to start at: the store's next step, read by the caller once the run is its own (it reports it). */
+  firstStep: number;
   /**
    * The owner id this process holds the run under (RunStore.claimRun): every
    * status, point and event line it writes is conditional on still owning the run, so once
@@ -39,14 +41,13 @@ export interface SweepRunOptions {
 }
 
 export async function runSweep(options: SweepRunOptions): Promise<RunStatus> {
-  const { store, runId, clock, control } = options;
+  const { store, runId, clock, control, firstStep } = options;
   const asOwner = options.ownerId === undefined ? undefined : { asOwner: options.ownerId };
   const log = async (level: RunEvent['level'], message: string) => {
     const event = await store.appendEvent(runId, level, message, undefined, asOwner);
     options.emit('runEvent', { runId, ...event });
   };
   const setStatus = (status: RunStatus) => store.updateRunStatus(runId, status, undefined, asOwner);
-  const firstStep = await store.nextStep(runId);
   await setStatus('running');
   await log('info', firstStep === 0 ? 'sweep started' : `sweep continued at step ${firstStep}`);
 

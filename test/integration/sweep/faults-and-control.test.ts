@@ -104,6 +104,25 @@ describe('faults and run control', () => {
     expect(stopped.events.map((e) => e.message)).toContain('stopped by the user');
   });
 
+  it('a resume answers the step it continues at as the sweep took it, not as the store has it by the time the caller asks', async () => {
+    service.on('point', (p) => {
+      if (p.index === 2) void service.pauseRun(p.runId);
+    });
+    const run = await service.startRun(sweepRequest(buildId, { from: 100, to: 100e3, refine: false }));
+    expect(await service.waitForRun(run.id)).toBe('paused');
+    const atPause = (await service.getRun(run.id)).points.step.length;
+
+    const firstResumedPoint = new Promise<number>((resolve) => service.on('point', (p) => resolve(p.index)));
+    const { continuesAtStep } = await service.resumeRunWith(run.id);
+    // By the time a slow caller looks, the resumed sweep has stored a point: reading the store's next step
+    // then (after launching) would name the step after the one it continued at.
+    expect(await firstResumedPoint).toBe(atPause);
+    expect((await service.getRun(run.id)).points.step.length).toBeGreaterThan(atPause);
+    expect(continuesAtStep).toBe(atPause);
+    expect(await service.waitForRun(run.id)).toBe('done');
+    expect((await service.getRun(run.id)).events.map((e) => e.message)).toContain(`sweep continued at step ${atPause}`);
+  });
+
   it('refuses a fixed amplitude above the maximum before anything is sent, and never exceeds it in auto mode', async () => {
     await expect(service.startRun(sweepRequest(buildId, { amplitude: { mode: 'fixed', vpp: 1.5 } }))).rejects.toThrow(/exceeds the maximum stimulus 1 Vpp/);
     expect(await service.listRuns()).toEqual([]);
