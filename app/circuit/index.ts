@@ -17,7 +17,7 @@ export { isGroundNode } from './types';
 export { DesignError, SingularCircuitError, DcConvergenceError } from './design-error';
 export { parseDesign, type ParseDesignOptions } from './parse-design';
 export { withActualValues } from './actual-values';
-export { solveAc, gainRatioFunction, type AcResponse, type AcOptions, type OpAmpAcColumns } from './solve-ac';
+export { solveAc, gainRatioFunction, transferFunction, type AcResponse, type AcOptions, type OpAmpAcColumns } from './solve-ac';
 export { summarizeAc, type AcSummary } from './summarize-ac';
 export { maxUndistortedOutputVpk, stimulusLimitVpk } from './output-limits';
 export { solveDcTransfer, type DcTransfer } from './solve-dc';

@@ -74,17 +74,27 @@ export function solveAc(design: Design, frequenciesHz: Float64Array, options: Ac
 }
 
 /**
- * |H| as a ratio at one frequency per call, from the same model response as solveAc: one solver, stamped
- * once, for callers that ask frequency by frequency (a plan's amplitude choice, a scope's vertical scale)
- * and need neither the ideal response nor the op-amp columns solveAc computes beside it.
+ * H at one frequency per call, from the same model response as solveAc: one solver, stamped once, for
+ * callers that ask frequency by frequency (a plan's amplitude choice, a scope's vertical scale, the
+ * simulated bench's steady state) and need neither the ideal response nor the op-amp columns solveAc
+ * computes beside it.
  */
-export function gainRatioFunction(design: Design): (frequencyHz: number) => number {
+export function transferFunction(design: Design): (frequencyHz: number) => { re: number; im: number } {
   const solver = new AcSolver(design);
   solver.stamp('model');
   const h = new Float64Array(2);
   return (frequencyHz) => {
     solver.transferAt(frequencyHz, h);
-    return Math.hypot(h[0], h[1]);
+    return { re: h[0], im: h[1] };
+  };
+}
+
+/** |H| as a ratio at one frequency per call (see transferFunction). */
+export function gainRatioFunction(design: Design): (frequencyHz: number) => number {
+  const transferAt = transferFunction(design);
+  return (frequencyHz) => {
+    const { re, im } = transferAt(frequencyHz);
+    return Math.hypot(re, im);
   };
 }
 

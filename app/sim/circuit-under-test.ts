@@ -5,7 +5,7 @@
  * impedance. Two views of it: the output node (scope ch2, meter) and the
  * design's input node (scope ch1).
  */
-import { outputOpAmpIndex, slowestTimeConstantS, solveAc, solveDcTransfer, type Design, type OpAmpModel } from '../circuit';
+import { outputOpAmpIndex, slowestTimeConstantS, solveDcTransfer, transferFunction, type Design, type OpAmpModel } from '../circuit';
 // Not re-exported by app/circuit/index.ts; the same rule the theory engine uses for output limits.
 
 const EMF_NODE = '__generator_emf';
@@ -27,6 +27,13 @@ export class CircuitUnderTest {
   readonly slewRateVPerS: number | undefined;
   private readonly acCache = new Map<number, { output: Phasor; input: Phasor }>();
   private readonly dcCache = new Map<number, { outputV: number; inputV: number }>();
+  /**
+   * Each view's response, one frequency per call from a solver stamped once: a new generator frequency
+   * costs two small solves, not a full AC analysis with its gain-limit search, in the simulated bench's
+   * process while the generator's reply is under way.
+   */
+  private readonly transferToOutput: (frequencyHz: number) => { re: number; im: number };
+  private readonly transferToInput: (frequencyHz: number) => { re: number; im: number };
 
   constructor(
     readonly design: Design,
@@ -40,18 +47,19 @@ export class CircuitUnderTest {
     const model = index === undefined ? undefined : (design.parts.filter((p) => p.type === 'opamp')[index] as { model: OpAmpModel }).model;
     this.rails = model?.rails;
     this.slewRateVPerS = model?.slewRate;
+    this.transferToOutput = transferFunction(this.toOutput);
+    this.transferToInput = transferFunction(this.toInput);
   }
 
   /** Output and input-node phasors per volt of generator EMF at `frequencyHz`. */
   ac(frequencyHz: number): { output: Phasor; input: Phasor } {
     const cached = this.acCache.get(frequencyHz);
     if (cached) return cached;
-    const frequencies = Float64Array.of(frequencyHz);
-    const phasor = (design: Design): Phasor => {
-      const response = solveAc(design, frequencies);
-      return { gain: Math.hypot(response.re[0], response.im[0]), phaseRad: Math.atan2(response.im[0], response.re[0]) };
+    const phasor = (transferAt: (frequencyHz: number) => { re: number; im: number }): Phasor => {
+      const { re, im } = transferAt(frequencyHz);
+      return { gain: Math.hypot(re, im), phaseRad: Math.atan2(im, re) };
     };
-    const result = { output: phasor(this.toOutput), input: phasor(this.toInput) };
+    const result = { output: phasor(this.transferToOutput), input: phasor(this.transferToInput) };
     if (this.acCache.size > 10_000) this.acCache.clear();
     this.acCache.set(frequencyHz, result);
     return result;

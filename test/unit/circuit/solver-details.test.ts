@@ -5,6 +5,7 @@
 import { describe, expect, it } from 'vitest';
 import {
   gainRatioFunction,
+  transferFunction,
   makeDesignFromTemplate,
   maxUndistortedOutputVpk,
   parseDesign,
@@ -158,5 +159,17 @@ describe('inductors and DC', () => {
     });
     const out = solveDcTransfer(follower, Float64Array.from([1])).outputV[0];
     expect(out).toBeCloseTo(1 + 1e-3 - 1e-8 * 100e3, 7);
+  });
+
+  it('gives H itself, real and imaginary parts as solveAc has them, asked in any order', () => {
+    const design = parseDesign(makeDesignFromTemplate('inverting-lowpass', {}));
+    const transferAt = transferFunction(design);
+    const frequenciesHz = [1e6, 10, 3e4, 1e3];
+    const response = solveAc(design, Float64Array.from(frequenciesHz));
+    frequenciesHz.forEach((f, i) => {
+      const h = transferAt(f);
+      expect(h.re).toBe(response.re[i]);
+      expect(h.im).toBe(response.im[i]);
+    });
   });
 });
