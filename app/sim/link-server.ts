@@ -40,6 +40,8 @@ export class InstrumentLink {
   private unterminatedBytes = 0;
   private chain: Promise<void> = Promise.resolve();
   private closed = false;
+  /** When the instrument finished its latest message (performance.now() ms): the next one begins no sooner. */
+  private idleSinceMs = 0;
 
   constructor(
     private readonly instrument: SimInstrument,
@@ -70,18 +72,32 @@ export class InstrumentLink {
     const parser = new ReadlineParser({ delimiter: '\n', encoding: 'latin1' });
     parser.on('data', (line: string) => {
       const message = line.endsWith('\r') ? line.slice(0, -1) : line;
-      this.chain = this.chain.then(() => this.handle(message));
+      const arrivedAtMs = performance.now();
+      this.chain = this.chain.then(() => this.handle(message, arrivedAtMs));
     });
     return parser;
   }
 
-  private async handle(message: string): Promise<void> {
+  private async handle(message: string, arrivedAtMs: number): Promise<void> {
+    try {
+      await this.reply(message, arrivedAtMs);
+    } finally {
+      this.idleSinceMs = performance.now();
+    }
+  }
+
+  private async reply(message: string, arrivedAtMs: number): Promise<void> {
     if (this.closed || message.trim() === '') return;
+    const hung = this.options.faults.current?.kind === 'hang';
     await this.options.faults.whileHung();
     if (this.closed) return;
+    // The instrument takes the message up when it has arrived and the one before is done (or a hang is over),
+    // not when this process's event loop gets round to it: a turn of the loop is the simulation's, not the
+    // instrument's.
+    const beganAtMs = hung ? performance.now() : Math.max(arrivedAtMs, this.idleSinceMs);
     let execution: { reply: SimReply | undefined; readyAtMs: number };
     try {
-      execution = await this.instrument.run(message);
+      execution = await this.instrument.run(message, beganAtMs);
     } catch {
       return; // run() queues its own errors; anything else must not stop the link
     }

@@ -83,14 +83,15 @@ export abstract class SimInstrument {
   }
 
   /**
-   * execute(), and when the reply was determined (performance.now() ms): when execution began, or,
+   * execute(), and when the reply was determined (performance.now() ms): when execution began (`beganAtMs`,
+   * by default now: the link passes when the message arrived, or when the one before was done), or,
    * if a unit waited — an asynchronous handler (*OPC?, a reading, a record's data) — when the last
    * such handler finished. The link's latency counts from then: the simulation's own computing
    * before it (parsing, matching, synchronous handlers) is not added on top, as a real instrument's
    * stated reply time includes its processing; anything that waits counts in full.
    */
-  async run(message: string): Promise<{ reply: SimReply | undefined; readyAtMs: number }> {
-    let readyAtMs = performance.now();
+  async run(message: string, beganAtMs = performance.now()): Promise<{ reply: SimReply | undefined; readyAtMs: number }> {
+    let readyAtMs = beganAtMs;
     const replies: SimReply[] = [];
     let units: ProgramUnit[];
     try {
