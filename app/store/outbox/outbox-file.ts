@@ -109,17 +109,21 @@ export class OutboxFile {
       throw new StoreUnavailableError(path, `the outbox cannot be opened: ${(error as Error).message}`, 'Check that the folder exists and you may write to it, or set ROLLOFF_OUTBOX_DIR to another folder.');
     }
     try {
+      db.pragma('busy_timeout = 5000'); // first: another bench process may be creating the same outbox
       db.pragma('journal_mode = WAL');
       db.pragma('synchronous = FULL'); // an entry is on disk before the sweep moves on
-      db.pragma('busy_timeout = 5000');
-      const version = db.pragma('user_version', { simple: true }) as number;
-      const tables = (db.prepare("SELECT count(*) AS n FROM sqlite_master WHERE type = 'table'").get() as { n: number }).n;
-      if (version === 0 && tables === 0) {
-        db.exec(SCHEMA);
-        db.pragma(`user_version = ${OUTBOX_FORMAT}`);
-      } else if (version !== OUTBOX_FORMAT) {
-        throw new StoreDamagedError(path, `an outbox of format ${version}, not ${OUTBOX_FORMAT}, or another program's database`);
-      }
+      // Look and create under the write lock, in one transaction: a second process opening the outbox at the
+      // same moment waits, then finds the tables and the format number both there, never one without the other.
+      db.transaction(() => {
+        const version = db.pragma('user_version', { simple: true }) as number;
+        const tables = (db.prepare("SELECT count(*) AS n FROM sqlite_master WHERE type = 'table'").get() as { n: number }).n;
+        if (version === 0 && tables === 0) {
+          db.exec(SCHEMA);
+          db.pragma(`user_version = ${OUTBOX_FORMAT}`);
+        } else if (version !== OUTBOX_FORMAT) {
+          throw new StoreDamagedError(path, `an outbox of format ${version}, not ${OUTBOX_FORMAT}, or another program's database`);
+        }
+      }).immediate();
       return new OutboxFile(path, db);
     } catch (error) {
       db.close();
