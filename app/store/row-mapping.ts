@@ -16,6 +16,12 @@ export interface ColumnReading {
   json(value: unknown): unknown;
   /** A boolean column: SQLite's 0/1, PostgreSQL's true/false. */
   flag(value: unknown): boolean;
+  /**
+   * An owner time (owner_since_ms, owner_heartbeat_ms) in this process's clock: a
+   * lab store keeps them in the server's clock (PostgresStore), one file in the
+   * machine's own. Default: as stored.
+   */
+  ownerTimeToLocalMs?(storedMs: number): number;
 }
 
 /** The row-to-record functions of one store, over its way of reading columns. */
@@ -48,7 +54,7 @@ export function rowMapping(read: ColumnReading): RowMapping {
     plannedCount: row.planned_count as number,
     simulated: read.flag(row.simulated),
     benchName: (row.bench_name as string | null) ?? '',
-    owner: ownershipFromRow(row) ?? null,
+    owner: ownershipFromRow(row, read.ownerTimeToLocalMs) ?? null,
   });
   return {
     design: (row) => ({ id: row.id as number, uid: row.uid as string, name: row.name as string, design: read.json(row.design_json), createdAt: row.created_at as string }),
@@ -112,15 +118,15 @@ export function rowMapping(read: ColumnReading): RowMapping {
 }
 
 /** The owner columns of a runs row (owner_id … owner_heartbeat_ms), or undefined when nobody drives the run. */
-export function ownershipFromRow(row: Row): RunOwnership | undefined {
+export function ownershipFromRow(row: Row, toLocalMs: (storedMs: number) => number = (ms) => ms): RunOwnership | undefined {
   if (row.owner_id === null || row.owner_id === undefined) return undefined;
   return {
     ownerId: String(row.owner_id),
     pid: Number(row.owner_pid),
     host: String(row.owner_host),
     label: String(row.owner_label),
-    since: new Date(Number(row.owner_since_ms)).toISOString(),
-    heartbeatAt: new Date(Number(row.owner_heartbeat_ms)).toISOString(),
+    since: new Date(toLocalMs(Number(row.owner_since_ms))).toISOString(),
+    heartbeatAt: new Date(toLocalMs(Number(row.owner_heartbeat_ms))).toISOString(),
   };
 }
 

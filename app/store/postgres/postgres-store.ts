@@ -48,7 +48,7 @@ import {
   checkInstant,
   checkUids,
 } from '../record-checks';
-import { ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, storedPointFromRow, type Row } from '../row-mapping';
+import { ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, storedPointFromRow, type Row, type RowMapping } from '../row-mapping';
 import type { RolloffStore } from '../store-interface';
 import type {
   BenchSettings,
@@ -90,7 +90,6 @@ import { connectionFailure, isUnreachable, poolConfigFor, redactDatabaseUrl, sql
 import { loadPostgresMigrations, migratePostgres, schemaVersionIn } from './migrations';
 
 /** node-postgres parses json columns and booleans itself. */
-const toRecord = rowMapping({ json: (value) => value, flag: (value) => value === true });
 type Queryable = Pick<PoolClient, 'query'>;
 
 /** Type OIDs (pg_type.oid, stable across PostgreSQL versions). */
@@ -150,12 +149,27 @@ export class PostgresStore implements RolloffStore {
   private listenConfig: pg.ClientConfig = {};
   private readonly feeds = new Set<StoreChangeFeed>();
 
-  private constructor(location: string, pool: pg.Pool, readonly_: boolean, applied: number[], now: () => string) {
+  private constructor(location: string, pool: pg.Pool, readonly_: boolean, applied: number[], now: () => string, serverClockAheadMs: number) {
     this.location = location;
     this.pool = pool;
     this.readonly = readonly_;
     this.appliedMigrations = applied;
     this.now = now;
+    this.serverClockAheadMs = serverClockAheadMs;
+    this.toRecord = rowMapping({ json: (value) => value, flag: (value) => value === true, ownerTimeToLocalMs: (ms) => ms - serverClockAheadMs });
+  }
+
+  /**
+   * How far the server's clock is ahead of this bench's (ms), measured when the
+   * store opens. Owner times (claims, heartbeats, staleness) are written and
+   * compared in the server's clock, so benches whose clocks disagree still agree
+   * on whose heartbeat is fresh; they are read back in this bench's clock.
+   */
+  private readonly serverClockAheadMs: number;
+  private readonly toRecord: RowMapping;
+
+  private ownershipOf(row: Row): RunOwnership | undefined {
+    return ownershipFromRow(row, (ms) => ms - this.serverClockAheadMs);
   }
 
   /**
@@ -182,8 +196,9 @@ export class PostgresStore implements RolloffStore {
     }
     try {
       const applied = await migratePostgres(client, shown, migrations, { readonly, now });
+      const serverClockAheadMs = await serverClockAhead(client, now);
       client.release();
-      const store = new PostgresStore(shown, pool, readonly, applied, now);
+      const store = new PostgresStore(shown, pool, readonly, applied, now, serverClockAheadMs);
       store.listenConfig = { ...config, types: typeParsers };
       return store;
     } catch (error) {
@@ -271,17 +286,17 @@ export class PostgresStore implements RolloffStore {
       instant(this.now()),
       randomUUID(),
     ]);
-    return toRecord.design(rows[0]);
+    return this.toRecord.design(rows[0]);
   }
 
   async getDesign(designId: number): Promise<DesignRecord> {
     const { rows } = await this.query('SELECT * FROM designs WHERE id = $1', [requireId(designId, 'designId')]);
     if (rows.length === 0) throw new RecordNotFoundError('design', designId);
-    return toRecord.design(rows[0]);
+    return this.toRecord.design(rows[0]);
   }
 
   async listDesigns(): Promise<DesignRecord[]> {
-    return (await this.query('SELECT * FROM designs ORDER BY id')).rows.map(toRecord.design);
+    return (await this.query('SELECT * FROM designs ORDER BY id')).rows.map(this.toRecord.design);
   }
 
   async createBuild(input: NewBuild): Promise<BuildRecord> {
@@ -294,7 +309,7 @@ export class PostgresStore implements RolloffStore {
         'INSERT INTO builds (uid, design_id, label, notes, actual_values_json, created_at) VALUES ($6, $1, $2, $3, $4, $5) RETURNING *',
         [input.designId, label, requireText(input.notes ?? '', 'build.notes'), toJson(actualValues, 'build.actualValues'), instant(this.now()), randomUUID()],
       );
-      return toRecord.build(rows[0]);
+      return this.toRecord.build(rows[0]);
     } catch (error) {
       if (sqlState(error) === FOREIGN_KEY_VIOLATION) throw new RecordNotFoundError('design', input.designId);
       throw error;
@@ -304,12 +319,12 @@ export class PostgresStore implements RolloffStore {
   async getBuild(buildId: number): Promise<BuildRecord> {
     const { rows } = await this.query('SELECT * FROM builds WHERE id = $1', [requireId(buildId, 'buildId')]);
     if (rows.length === 0) throw new RecordNotFoundError('build', buildId);
-    return toRecord.build(rows[0]);
+    return this.toRecord.build(rows[0]);
   }
 
   async listBuilds(designId?: number): Promise<BuildRecord[]> {
     const id = designId === undefined ? null : requireId(designId, 'designId');
-    return (await this.query('SELECT * FROM builds WHERE ($1::bigint IS NULL OR design_id = $1) ORDER BY id', [id])).rows.map(toRecord.build);
+    return (await this.query('SELECT * FROM builds WHERE ($1::bigint IS NULL OR design_id = $1) ORDER BY id', [id])).rows.map(this.toRecord.build);
   }
 
   // ── instruments ────────────────────────────────────────────────────────
@@ -326,11 +341,11 @@ export class PostgresStore implements RolloffStore {
        RETURNING *`,
       [sighting.role, identityText, toJson(sighting.identity, 'instrument.identity'), address, at],
     );
-    return toRecord.instrument(rows[0]);
+    return this.toRecord.instrument(rows[0]);
   }
 
   async listInstruments(): Promise<InstrumentRecord[]> {
-    return (await this.query('SELECT * FROM instruments ORDER BY last_seen_at DESC, id DESC')).rows.map(toRecord.instrument);
+    return (await this.query('SELECT * FROM instruments ORDER BY last_seen_at DESC, id DESC')).rows.map(this.toRecord.instrument);
   }
 
   // ── runs ───────────────────────────────────────────────────────────────
@@ -445,7 +460,7 @@ export class PostgresStore implements RolloffStore {
       [requireId(runId, 'runId')],
     );
     if (rows.length === 0) throw new RecordNotFoundError('run', runId);
-    return toRecord.storedRun(rows[0]);
+    return this.toRecord.storedRun(rows[0]);
   }
 
   async listRuns(filter: RunFilter = {}): Promise<StoredRunSummary[]> {
@@ -458,7 +473,7 @@ export class PostgresStore implements RolloffStore {
        ORDER BY r.id DESC LIMIT $4`,
       [status, buildId, search, limit, bench],
     );
-    return rows.map(toRecord.runSummary);
+    return rows.map(this.toRecord.runSummary);
   }
 
   async findInterruptedRuns(staleAfterMs: number): Promise<StoredRun[]> {
@@ -474,8 +489,9 @@ export class PostgresStore implements RolloffStore {
 
   // ── run ownership ──────────────────────────────────────────────────────
 
+  /** Now in the server's clock (serverClockAheadMs): the clock of every owner time. */
   private nowMs(): number {
-    return Date.parse(this.now());
+    return Date.parse(this.now()) + this.serverClockAheadMs;
   }
 
   /**
@@ -531,7 +547,7 @@ export class PostgresStore implements RolloffStore {
       );
       return { claimed: result.rowCount === 1 };
     });
-    if ('holder' in outcome) return { claimed: false, benchHeldBy: { runId: outcome.holder.id as number, ownership: ownershipFromRow(outcome.holder)! } };
+    if ('holder' in outcome) return { claimed: false, benchHeldBy: { runId: outcome.holder.id as number, ownership: this.ownershipOf(outcome.holder)! } };
     const claim: RunClaimResult = { claimed: outcome.claimed, ownership: (await this.getRunOwnership(runId))! };
     return claim;
   }
@@ -558,7 +574,7 @@ export class PostgresStore implements RolloffStore {
       );
       return { runId };
     });
-    if ('holder' in outcome) return { created: false, benchHeldBy: { runId: outcome.holder.id as number, ownership: ownershipFromRow(outcome.holder)! } };
+    if ('holder' in outcome) return { created: false, benchHeldBy: { runId: outcome.holder.id as number, ownership: this.ownershipOf(outcome.holder)! } };
     return { created: true, run: await this.getRun(outcome.runId), ownership: (await this.getRunOwnership(outcome.runId))! };
   }
 
@@ -583,7 +599,7 @@ export class PostgresStore implements RolloffStore {
       [requireId(runId, 'runId')],
     );
     if (rows.length === 0) throw new RecordNotFoundError('run', runId);
-    return ownershipFromRow(rows[0]);
+    return this.ownershipOf(rows[0]);
   }
 
   async recordOfflinePeriod(runId: number, period: OfflinePeriod): Promise<void> {
@@ -862,12 +878,12 @@ export class PostgresStore implements RolloffStore {
        VALUES ($1, $2, $3, $4, $5, $6, $7) RETURNING *`,
       [...checkCalibration(input), instant(this.now())],
     );
-    return toRecord.calibration(rows[0]);
+    return this.toRecord.calibration(rows[0]);
   }
 
   async latestCalibration(instrumentPairKey: string): Promise<CalibrationRecord | undefined> {
     const { rows } = await this.query('SELECT * FROM calibrations WHERE bench_key = $1 ORDER BY id DESC LIMIT 1', [requireText(instrumentPairKey, 'instrumentPairKey')]);
-    return rows.length === 0 ? undefined : toRecord.calibration(rows[0]);
+    return rows.length === 0 ? undefined : this.toRecord.calibration(rows[0]);
   }
 
   // ── schedules ──────────────────────────────────────────────────────────
@@ -880,20 +896,20 @@ export class PostgresStore implements RolloffStore {
       `INSERT INTO schedules (build_id, request_json, every_minutes, run_count, until_at, created_at) VALUES ($1, $2, $3, $4, $5, $6) RETURNING *`,
       [input.buildId, toJson(input.request, 'schedule.request'), input.everyMinutes, count, until === null ? null : instant(until), instant(this.now())],
     );
-    return toRecord.schedule(rows[0]);
+    return this.toRecord.schedule(rows[0]);
   }
 
   async getSchedule(scheduleId: number): Promise<ScheduleRecord> {
     const { rows } = await this.query('SELECT * FROM schedules WHERE id = $1', [requireId(scheduleId, 'scheduleId')]);
     if (rows.length === 0) throw new RecordNotFoundError('schedule', scheduleId);
-    return toRecord.schedule(rows[0]);
+    return this.toRecord.schedule(rows[0]);
   }
 
   // ── per-bench settings ─────────────────────────────────────────────────
 
   async getBenchSettings(benchKey: string): Promise<BenchSettings | undefined> {
     const { rows } = await this.query('SELECT * FROM bench_settings WHERE bench_key = $1', [requireText(benchKey, 'benchKey')]);
-    return rows.length === 0 ? undefined : toRecord.benchSettings(rows[0]);
+    return rows.length === 0 ? undefined : this.toRecord.benchSettings(rows[0]);
   }
 
   async saveBenchSettings(benchKey: string, settings: BenchSettingsInput): Promise<BenchSettings> {
@@ -906,7 +922,7 @@ export class PostgresStore implements RolloffStore {
        RETURNING *`,
       [key, maxStimulusVpp, instant(this.now())],
     );
-    return toRecord.benchSettings(rows[0]);
+    return this.toRecord.benchSettings(rows[0]);
   }
 
   // ── maintenance ────────────────────────────────────────────────────────
@@ -930,3 +946,15 @@ export class PostgresStore implements RolloffStore {
 
 /** Points per INSERT … unnest statement in bulk work: large enough to amortise a round trip, small enough for one message. */
 const POINTS_PER_STATEMENT = 5000;
+
+/**
+ * The server's clock minus this bench's (ms): the server's time against the
+ * middle of the round trip that asked it (Cristian's method), so the error is
+ * at most half the round trip — well under a heartbeat on a lab network.
+ */
+async function serverClockAhead(client: PoolClient, now: () => string): Promise<number> {
+  const sentMs = Date.parse(now());
+  const { rows } = await client.query<{ ms: number }>('SELECT (extract(epoch FROM clock_timestamp()) * 1000)::float8 AS ms');
+  const receivedMs = Date.parse(now());
+  return Math.round(Number(rows[0].ms) - (sentMs + receivedMs) / 2); // whole ms: the owner columns are bigint
+}

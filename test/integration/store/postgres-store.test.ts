@@ -164,6 +164,32 @@ describe.skipIf(!hasPostgres)('PostgreSQL store', () => {
     await expect(reader.saveDesign({ name: 'x', design: {} })).rejects.toThrow(/read-only/);
     await reader.close();
   });
+
+  it('benches whose clocks disagree agree on whose heartbeat is fresh: owner times are kept in the server\'s clock', async () => {
+    const url = freshUrl();
+    const minuteMs = 60_000;
+    // Bench A's clock runs a minute slow, bench B's is right: without the server's clock, A's fresh heartbeat
+    // reads a minute old to B, which would take a live run over.
+    const slow = await PostgresStore.open(url, { now: () => new Date(Date.now() - minuteMs).toISOString() });
+    const right = await PostgresStore.open(url);
+    try {
+      const { run } = await seedRun(slow);
+      const a = { ownerId: 'bench-a:1:x', pid: 1, host: 'bench-a', label: 'rolloff sweep' };
+      const b = { ownerId: 'bench-b:2:y', pid: 2, host: 'bench-b', label: 'rolloff sweep' };
+      expect((await slow.claimRun(run.id, a, 10_000)).claimed).toBe(true);
+      const refused = await right.claimRun(run.id, b, 10_000);
+      expect(refused.claimed).toBe(false);
+      // Each bench reads the heartbeat in its own clock: a moment ago for both.
+      const ageSeenByRightMs = Date.now() - Date.parse((await right.getRunOwnership(run.id))!.heartbeatAt);
+      const ageSeenBySlowMs = Date.now() - minuteMs - Date.parse((await slow.getRunOwnership(run.id))!.heartbeatAt);
+      expect(Math.abs(ageSeenByRightMs)).toBeLessThan(5_000);
+      expect(Math.abs(ageSeenBySlowMs)).toBeLessThan(5_000);
+      expect((await right.listRuns()).find((r) => r.id === run.id)!.owner!.ownerId).toBe(a.ownerId);
+    } finally {
+      await slow.close();
+      await right.close();
+    }
+  });
 });
 
 describe.skipIf(!hasPostgres)('PostgreSQL store durability', () => {
