@@ -5,7 +5,7 @@
  */
 import { UserError } from '../../app/errors';
 import type { Comparison, RolloffClient, RunFigures, RunSummary } from '../../app/contract/contract';
-import { field, h, replaceChildren } from '../dom';
+import { debounce, field, h, replaceChildren } from '../dom';
 import { formatDb, formatDelta, formatFixed, formatHz } from '../model/format';
 import { compareColumns, runColor } from '../model/compare-data';
 import { guarded } from '../notices';
@@ -13,12 +13,17 @@ import { FrequencyChart } from '../plot/frequency-chart';
 import { PLOT_COLORS } from '../plot/bode-plot';
 import type { View } from '../shell';
 import type { AppState } from '../state';
+import { benchFilter, benchLabel } from './bench-filter';
 import { FIGURE_NAMES } from '../../app/contract/vocabulary';
 
 export class CompareView implements View {
   readonly id = 'compare' as const;
   readonly element: HTMLElement;
   private readonly runPicker = h('div', { className: 'run-picker', 'data-testid': 'compare-runs' });
+  /** Narrows the runs offered to one bench's; runs picked before stay picked. */
+  private readonly bench = benchFilter('compare');
+  private readonly hiddenPicked = h('p', { className: 'hint', 'data-testid': 'compare-hidden-picked', hidden: true });
+  private readonly refreshSoon = debounce(() => void guarded(undefined, 'Listing runs', () => this.listRuns()), 200);
   private readonly reference = h('select', { name: 'reference', 'data-testid': 'compare-reference' });
   private readonly overlayHost = h('div', { className: 'chart', 'data-testid': 'compare-overlay' });
   private readonly differenceHost = h('div', { className: 'chart', 'data-testid': 'compare-difference' });
@@ -35,20 +40,28 @@ export class CompareView implements View {
   ) {
     const compareButton = h('button', { type: 'button', className: 'primary', 'data-testid': 'compare-run' }, 'Compare');
     compareButton.addEventListener('click', () => void guarded(compareButton, 'Comparing runs', () => this.compare()));
+    this.bench.input.addEventListener('input', () => this.refreshSoon());
     this.element = h(
       'section',
       { 'aria-labelledby': 'compare-title' },
       h('h2', { id: 'compare-title' }, 'Compare'),
-      h('div', { className: 'panel' }, h('h3', {}, 'Runs'), this.runPicker, h('div', { className: 'row-form' }, field('Differences against', this.reference), compareButton)),
+      h('div', { className: 'panel' }, h('h3', {}, 'Runs'), h('div', { className: 'row-form' }, field('Bench', this.bench.input), this.bench.list), this.runPicker, this.hiddenPicked, h('div', { className: 'row-form' }, field('Differences against', this.reference), compareButton)),
       h('div', { className: 'panel' }, h('h3', {}, 'Gain'), this.overlayHost, this.differenceTitle, this.differenceHost),
       h('div', { className: 'panel' }, h('h3', {}, 'Figures'), this.table),
     );
   }
 
   async activate(): Promise<void> {
-    this.runs = await this.client.listRuns();
-    this.renderPicker();
+    await this.listRuns();
     if (this.state.current.pickedRunIds.length >= 1) await this.compare();
+  }
+
+  private async listRuns(): Promise<void> {
+    const bench = this.bench.value();
+    const [runs, all] = await Promise.all([this.client.listRuns(bench ? { bench } : {}), bench ? this.client.listRuns() : undefined]);
+    this.runs = runs;
+    this.bench.offer(all ?? runs);
+    this.renderPicker();
   }
 
   private renderPicker(): void {
@@ -56,7 +69,7 @@ export class CompareView implements View {
     replaceChildren(
       this.runPicker,
       this.runs.length === 0
-        ? h('p', { className: 'empty' }, 'No runs yet.')
+        ? h('p', { className: 'empty' }, this.bench.value() ? 'No runs of this bench.' : 'No runs yet.')
         : this.runs.map((run) => {
             const box = h('input', { type: 'checkbox', 'data-compare-run': String(run.id) });
             box.checked = picked.has(run.id);
@@ -64,9 +77,13 @@ export class CompareView implements View {
               this.state.togglePicked(run.id, box.checked);
               this.renderReference();
             });
-            return h('label', { className: 'run-chip' }, box, ` #${run.id} ${run.designName} — ${run.buildLabel} (${run.status})`);
+            return h('label', { className: 'run-chip', 'data-bench': run.benchName }, box, ` #${run.id} ${run.designName} — ${run.buildLabel} (${run.status}), bench ${benchLabel(run)}`);
           }),
     );
+    const shown = new Set(this.runs.map((run) => run.id));
+    const hidden = this.state.current.pickedRunIds.filter((id) => !shown.has(id)).length;
+    this.hiddenPicked.hidden = hidden === 0;
+    this.hiddenPicked.textContent = hidden === 0 ? '' : `${hidden} picked run${hidden === 1 ? '' : 's'} of other benches not listed here; still compared.`;
     this.renderReference();
   }
 

@@ -9,6 +9,7 @@ import { debounce, field, h, replaceChildren, select } from '../dom';
 import { guarded } from '../notices';
 import { resumeConfirmingTakeOver } from './take-over-dialog';
 import type { View } from '../shell';
+import { benchFilter, benchLabel } from './bench-filter';
 import type { AppState } from '../state';
 
 const STATUSES: Array<RunStatus | ''> = ['', ...RUN_STATUSES];
@@ -19,8 +20,7 @@ export class HistoryView implements View {
   private readonly search = h('input', { type: 'search', name: 'search', placeholder: 'design, build, operator, notes…', 'data-testid': 'history-search' });
   private readonly status = select(STATUSES.map((s) => ({ value: s, label: s || 'any status' })), '', { name: 'status' });
   /** A bench's exact name; the list offers the benches of the runs shown unfiltered. */
-  private readonly bench = h('input', { type: 'search', name: 'bench', list: 'history-bench-list', placeholder: 'any bench', 'data-testid': 'history-bench' });
-  private readonly benchList = h('datalist', { id: 'history-bench-list' });
+  private readonly bench = benchFilter('history');
   private readonly runsBody = h('tbody', { 'data-testid': 'history-runs' });
   private readonly designsBody = h('tbody');
   private readonly interrupted = h('div', { className: 'interrupted', 'data-testid': 'interrupted-runs' });
@@ -33,7 +33,7 @@ export class HistoryView implements View {
   ) {
     this.search.addEventListener('input', () => this.refreshSoon());
     this.status.addEventListener('change', () => this.refreshSoon());
-    this.bench.addEventListener('input', () => this.refreshSoon());
+    this.bench.input.addEventListener('input', () => this.refreshSoon());
     const compare = h('button', { type: 'button', className: 'primary', 'data-testid': 'compare-picked' }, 'Compare picked runs');
     compare.addEventListener('click', () => state.showView('compare'));
     const record = h('button', { type: 'button' }, 'Record of picked runs');
@@ -44,7 +44,7 @@ export class HistoryView implements View {
       h('h2', { id: 'history-title' }, 'History'),
       this.interrupted,
       h('div', { className: 'panel' },
-        h('div', { className: 'row-form' }, field('Search', this.search), field('Status', this.status), field('Bench', this.bench), this.benchList, h('div', { className: 'actions' }, this.pickedText, compare, record)),
+        h('div', { className: 'row-form' }, field('Search', this.search), field('Status', this.status), field('Bench', this.bench.input), this.bench.list, h('div', { className: 'actions' }, this.pickedText, compare, record)),
         h('table', { className: 'data-table' },
           h('thead', {}, h('tr', {}, ['Pick', 'Run', 'Design', 'Build', 'Bench', 'Kind', 'Status', 'Started', 'Points', ''].map((t) => h('th', { scope: 'col' }, t)))),
           this.runsBody,
@@ -66,7 +66,8 @@ export class HistoryView implements View {
     const filter: RunFilter = {};
     if (this.search.value.trim()) filter.search = this.search.value.trim();
     if (this.status.value) filter.status = this.status.value as RunStatus;
-    if (this.bench.value.trim()) filter.bench = this.bench.value.trim();
+    const bench = this.bench.value();
+    if (bench) filter.bench = bench;
     const [runs, designs, builds, allOpen] = await Promise.all([
       this.client.listRuns(filter),
       this.client.listDesigns(),
@@ -74,8 +75,7 @@ export class HistoryView implements View {
       this.client.listRuns(),
     ]);
     replaceChildren(this.runsBody, runs.length === 0 ? h('tr', {}, h('td', { colspan: '10', className: 'empty' }, 'No runs match.')) : runs.map((run) => this.runRow(run)));
-    const benchNames = [...new Set(allOpen.map((run) => run.benchName).filter((name) => name !== ''))].sort();
-    replaceChildren(this.benchList, benchNames.map((name) => h('option', { value: name })));
+    this.bench.offer(allOpen);
     // The same search words narrow the designs table (by design name or build label).
     const words = this.search.value.trim().toLowerCase();
     const matching = words === '' ? designs : designs.filter((d) => d.name.toLowerCase().includes(words) || builds.some((b) => b.designId === d.id && b.label.toLowerCase().includes(words)));
@@ -116,7 +116,7 @@ export class HistoryView implements View {
       h('th', { scope: 'row' }, `#${run.id}`),
       h('td', {}, run.designName),
       h('td', {}, run.buildLabel),
-      h('td', {}, run.benchName || '—'),
+      h('td', {}, benchLabel(run)),
       h('td', {}, run.kind.toUpperCase()),
       h('td', { 'data-testid': 'run-state' },
         h('span', { className: `badge status-${status}` }, status),
