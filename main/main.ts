@@ -7,8 +7,8 @@
 import { app, BrowserWindow, ipcMain, protocol, shell } from 'electron';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { openHostedService } from '../app/host/hosted-service';
-import { resolveDatabasePath } from '../app/store';
+import { openDesktopService } from '../app/host/desktop-store';
+import { SETTINGS_FILE_NAME } from '../app/host/user-settings-file';
 import { registerIpc } from './ipc';
 import { registerRendererScheme, serveRendererBundle } from './renderer-protocol';
 import { isRendererPageUrl } from './renderer-scheme';
@@ -21,7 +21,7 @@ const rendererDir = join(here, 'renderer');
 // Privileged schemes can only be registered before the ready event.
 registerRendererScheme(protocol);
 
-/** `--db PATH` after the entry, as for the CLI; else ROLLOFF_DB or the per-user data folder. */
+/** `--db PATH` after the entry, as for the CLI; else ROLLOFF_DB, the store saved in the window's settings, or the per-user data folder. */
 function databaseFromArgs(argv: string[]): string | undefined {
   const at = argv.indexOf('--db');
   return at >= 0 ? argv[at + 1] : argv.find((a) => a.startsWith('--db='))?.slice('--db='.length);
@@ -36,7 +36,10 @@ async function start(): Promise<void> {
   await app.whenReady();
   await serveRendererBundle(protocol, rendererDir);
   // The desktop window starts on this machine's real instruments: their saved maximum stimulus applies (the simulated bench has its own).
-  const hosted = await openHostedService(resolveDatabasePath(databaseFromArgs(process.argv)), { startOn: 'real instruments', ownerLabel: 'the desktop window' });
+  // The store chosen in the window is saved beside Electron's own per-user data.
+  const settingsFile = join(app.getPath('userData'), SETTINGS_FILE_NAME);
+  const hosted = await openDesktopService(databaseFromArgs(process.argv), settingsFile, { startOn: 'real instruments', ownerLabel: 'the desktop window' });
+  for (const note of (await hosted.api.storeInUse()).notes) process.stderr.write(`Rolloff: ${note}\n`);
   const wiring = registerIpc({
     ipcMain,
     api: hosted.api,

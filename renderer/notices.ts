@@ -54,14 +54,22 @@ export async function guarded<T>(button: HTMLButtonElement | undefined, context:
  */
 export function showPartResult(slot: HTMLElement, what: string, result: PromiseSettledResult<unknown>): void {
   if (result.status === 'fulfilled') {
-    slot.replaceChildren();
-    slot.hidden = true;
+    clearProblem(slot);
     return;
   }
-  const error = result.reason;
+  showProblem(slot, `${what} could not be loaded: `, result.reason);
+}
+
+/** Says in a slot beside a part of a view what went wrong there (the lead, the message, the hint). */
+export function showProblem(slot: HTMLElement, lead: string, error: unknown): void {
   const message = error instanceof Error ? error.message : String(error);
   const hint = error instanceof UserError ? error.hint : undefined;
-  slot.replaceChildren(h('p', {}, `${what} could not be loaded: ${message}`), hint ? h('p', { className: 'hint' }, hint) : '');
+  slot.replaceChildren(h('p', {}, `${lead}${message}`), hint ? h('p', { className: 'hint' }, hint) : '');
   slot.hidden = false;
   if (!(error instanceof UserError)) console.error(error);
+}
+
+export function clearProblem(slot: HTMLElement): void {
+  slot.replaceChildren();
+  slot.hidden = true;
 }

@@ -39,6 +39,7 @@ import {
   withHint,
 } from './field-schemas';
 import type { ServiceEventName, ServiceEvents } from './events';
+import { StoreLocationSchema, type StoreInUse } from './store-choice';
 
 export const RUN_KINDS = ['ac', 'dc'] as const;
 export type RunKind = (typeof RUN_KINDS)[number];
@@ -532,6 +533,7 @@ export interface TrafficLine {
 }
 
 export type { ServiceEventName, ServiceEvents } from './events';
+export type { StoreInUse, DatabaseSource } from './store-choice';
 export { SERVICE_EVENT_NAMES } from './events';
 
 /** Every method a window may call. Arguments are validated where they arrive. */
@@ -568,7 +570,17 @@ export interface RolloffApi {
   getRun(runId: number): Promise<RunDetail>;
   compareRuns(runIds: number[], reference: number | 'theory'): Promise<Comparison>;
   exportRecord(runIds: number[], format: RecordFormat): Promise<ExportedRecord>;
+
+  // Store (answered by the host, which reopens the service on another store; the CLI takes --db)
+  storeInUse(): Promise<StoreInUse>;
+  /** Reopens the service on a SQLite file or a lab store's address; refused while a run of this service is active. */
+  chooseStore(location: string): Promise<StoreInUse>;
 }
+
+/** The methods the host answers itself rather than the service (app/host/switchable-service.ts). */
+export type StoreChoiceMethodName = 'storeInUse' | 'chooseStore';
+/** What the service itself implements: the contract without the store choice. */
+export type ServiceApi = Omit<RolloffApi, StoreChoiceMethodName>;
 
 export type RolloffMethodName = keyof RolloffApi;
 
@@ -617,4 +629,6 @@ export const API_ARGUMENTS: { readonly [M in RolloffMethodName]: readonly Argume
   getRun: [required('runId', storeId)],
   compareRuns: [required('runIds', RunIdListSchema), required('reference', ComparisonReferenceSchema)],
   exportRecord: [required('runIds', RunIdListSchema), required('format', oneOf(RECORD_FORMATS))],
+  storeInUse: [],
+  chooseStore: [required('location', StoreLocationSchema)],
 };

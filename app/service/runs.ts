@@ -56,6 +56,11 @@ export class Runs {
     return this.active.has(runId);
   }
 
+  /** The runs this service drives now. */
+  get drivenRunIds(): number[] {
+    return [...this.active.keys()];
+  }
+
   /** One sweep at a time: the instruments are shared. */
   requireIdleBench(): void {
     const running = [...this.active.keys()];

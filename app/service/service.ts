@@ -14,7 +14,7 @@ import { resolveBenchName, type BenchClock } from '../bench';
 import { listPorts } from '../scpi/ports';
 import type {
   BenchIdentity, BenchStatus, BuildRecord, Comparison, ConnectRequest, ProfileCheckReport, ProfileCheckRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
-  PortListing, ProfileSummary, RecordFormat, ResumeRequest, RolloffApi, RolloffClient, RunDetail, RunFilter, RunStatus, RunSummary, ServiceEventName,
+  PortListing, ProfileSummary, RecordFormat, ResumeRequest, RolloffClient, ServiceApi, RunDetail, RunFilter, RunStatus, RunSummary, ServiceEventName,
   ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
 } from '../contract/contract';
 import { ServiceEventBus } from '../contract/event-bus';
@@ -33,7 +33,7 @@ import type { RolloffServiceOptions } from './service-options';
 export type { RolloffServiceOptions } from './service-options';
 export type { ScheduleReport } from './schedules';
 
-export class RolloffService implements RolloffApi {
+export class RolloffService implements ServiceApi {
   readonly store: RolloffStore;
   readonly events = new ServiceEventBus();
   /** This bench's name (--bench, ROLLOFF_BENCH or the host name). */
@@ -200,6 +200,16 @@ export class RolloffService implements RolloffApi {
   /** Where the runs are stored (the --db value: a file path or a database URL). */
   get databaseLocation(): string {
     return this.store.location;
+  }
+
+  /** The runs this service drives now (the host refuses to reopen it on another store meanwhile). */
+  get drivenRunIds(): number[] {
+    return this.runs.drivenRunIds;
+  }
+
+  /** Refuses while a run of this service is active or being started. */
+  requireIdleBench(): void {
+    this.runs.requireIdleBench();
   }
 
   // ── Sweeps ─────────────────────────────────────────────────────────────

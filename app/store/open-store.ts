@@ -30,12 +30,17 @@ export function databaseUrlScheme(location: string): string | undefined {
   return /^([a-z][a-z0-9+.-]*):\/\//i.exec(location)?.[1]?.toLowerCase();
 }
 
-export async function openStore(location: string, options: StoreOpenOptions = {}): Promise<RolloffStore> {
-  if (/^file:/i.test(location)) return SqliteStore.open(sqlitePathOf(location), options);
+/**
+ * Refuses a location no store can open (an unknown scheme, a scheme without
+ * "//") with the accepted forms; gives the server store's opener for a
+ * database address, undefined for a SQLite file path. Opens nothing.
+ */
+export function checkDatabaseLocation(location: string): StoreOpener | undefined {
+  if (/^file:/i.test(location)) return undefined;
   const scheme = databaseUrlScheme(location);
   // "postgres:lab" (no //) is a typo for an address far more often than a file name; C:\… (one letter) is a drive.
   const bareScheme = scheme === undefined ? /^([a-z][a-z0-9+.-]+):/i.exec(location)?.[1] : undefined;
-  if (scheme === undefined && bareScheme === undefined) return SqliteStore.open(location, options);
+  if (scheme === undefined && bareScheme === undefined) return undefined;
   const opener = scheme === undefined ? undefined : SERVER_STORES[scheme];
   if (!opener) {
     throw new StoreUnavailableError(
@@ -44,5 +49,10 @@ export async function openStore(location: string, options: StoreOpenOptions = {}
       `Give ${ACCEPTED_DATABASE_FORMS}.`,
     );
   }
-  return opener(location, options);
+  return opener;
+}
+
+export async function openStore(location: string, options: StoreOpenOptions = {}): Promise<RolloffStore> {
+  const serverStore = checkDatabaseLocation(location);
+  return serverStore ? serverStore(location, options) : SqliteStore.open(sqlitePathOf(location), options);
 }

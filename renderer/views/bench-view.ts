@@ -1,7 +1,8 @@
 /**
  * Bench: connect instruments by address or from the port list, see their
  * identities, set the maximum stimulus amplitude, start the simulated bench
- * (always labelled simulated) and watch the SCPI traffic.
+ * (always labelled simulated), watch the SCPI traffic, and see or change the
+ * store the window works on (store-panel.ts).
  */
 import { INSTRUMENT_ROLES as ROLES, type BenchStatus, type DesignRecord, type InstrumentRole, type ProfileCheckReport, type ProfileSummary, type RolloffClient, type TrafficLine } from '../../app/contract/contract';
 import { parseEngineering } from '../../app/units';
@@ -12,6 +13,7 @@ import type { View } from '../shell';
 import type { AppState } from '../state';
 import { SETTINGS } from '../../app/contract/vocabulary';
 import { benchDescription, limitSourceText } from '../../app/contract/bench-text';
+import { StorePanel } from './store-panel';
 
 /** Enough scroll-back to see a sweep's recent exchanges without the page growing without bound. */
 const TRAFFIC_LINES_KEPT = 400;
@@ -38,11 +40,14 @@ export class BenchView implements View {
   private readonly portsFailure = partFailureSlot('ports-failure');
   private readonly profilesFailure = partFailureSlot('profiles-failure');
   private readonly designsFailure = partFailureSlot('designs-failure');
+  private readonly storePanel: StorePanel;
+  private readonly storeFailure = partFailureSlot('store-failure');
 
   constructor(
     private readonly client: RolloffClient,
     private readonly state: AppState,
   ) {
+    this.storePanel = new StorePanel(client, state);
     const connectButton = h('button', { type: 'submit', className: 'primary' }, 'Connect');
     const checkButton = h('button', { type: 'button', 'data-testid': 'check-profile' }, 'Check profile');
     checkButton.addEventListener('click', () => {
@@ -121,6 +126,8 @@ export class BenchView implements View {
         h('table', { className: 'data-table' }, h('thead', {}, h('tr', {}, ['Operation', 'Outcome', 'Instrument said / received', 'Reply', 'Commands sent'].map((t) => h('th', { scope: 'col' }, t)))), this.checkBody),
       ),
       h('div', { className: 'panel' }, h('h3', {}, 'Traffic ', clearTraffic), this.traffic),
+      this.storeFailure,
+      this.storePanel.element,
     );
 
     client.on('traffic', (line) => this.appendTraffic(line));
@@ -131,7 +138,8 @@ export class BenchView implements View {
   }
 
   async activate(): Promise<void> {
-    const [ports, profiles, designs] = await Promise.allSettled([this.client.listPorts(), this.client.listProfiles(), this.client.listDesigns()]);
+    const [ports, profiles, designs, store] = await Promise.allSettled([this.client.listPorts(), this.client.listProfiles(), this.client.listDesigns(), this.storePanel.refresh()]);
+    showPartResult(this.storeFailure, 'The store in use', store);
     showPartResult(this.portsFailure, 'The port list', ports);
     showPartResult(this.profilesFailure, 'The instrument profiles', profiles);
     showPartResult(this.designsFailure, 'The saved designs', designs);

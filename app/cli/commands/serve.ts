@@ -5,7 +5,7 @@
 import { UserError } from '../../errors';
 import { optionFlag, optionNumber, optionString, type CommandSpec } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
-import { resolveDatabasePath } from '../../store';
+import { resolveDatabaseChoice } from '../../store';
 import { bundleRenderer } from '../../host/renderer-bundle';
 import { startWebHost } from '../../host/web-host';
 import { openHostedService } from '../../host/hosted-service';
@@ -40,6 +40,8 @@ machine can connect. With --host set to any other address a random access token
 is printed and every request without it is refused; anyone who can reach the
 address and has the token can drive your instruments, so share it with care.
 Stop with Ctrl+C: running sweeps are paused (resumable), nothing is lost.
+Another store can be chosen on the Bench view; it applies until this process
+stops (the next start opens --db, ROLLOFF_DB or the default file again).
 
 Examples:
   rolloff serve --simulated --time-scale 10 --max-amplitude 2
@@ -52,15 +54,16 @@ Examples:
     const simulated = optionFlag(parsed, 'simulated');
     const simulatedBench = simulatedBenchFrom(parsed);
     const maxStimulusVpp = maxStimulusFrom(parsed);
-    const databasePath = resolveDatabasePath(optionString(parsed, 'db'));
+    const database = resolveDatabaseChoice(optionString(parsed, 'db'));
 
     const files = await bundleRenderer();
-    const hosted = await openHostedService(databasePath, {
+    // A store chosen in the window (Bench view) applies to this process until it stops; nothing is saved.
+    const hosted = await openHostedService(database.location, {
       maxStimulusVpp,
       startOn: simulated ? 'simulated bench' : 'real instruments',
       ownerLabel: 'rolloff serve',
       simulatedBench,
-    });
+    }, { source: database.source });
     let webHost: Awaited<ReturnType<typeof startWebHost>>;
     try {
       webHost = await startWebHost({

@@ -35,6 +35,7 @@ describe('the main process, bundled, on a stand-in for Electron', () => {
     // (restored earlier, the shell would open the user's own database in the per-user data folder).
     const database = join(shell.root, 'bench.sqlite');
     process.argv = [...argv, '--db', database];
+    journal.userDataPath = join(shell.root, 'user-data');
     try {
       await import(pathToFileURL(join(outDir, 'main.mjs')).href);
       expect(journal.calls).toEqual(['protocol.registerSchemesAsPrivileged', 'app.whenReady']);
@@ -68,6 +69,10 @@ describe('the main process, bundled, on a stand-in for Electron', () => {
     expect(fromPage.ok).toBe(true);
     expect(fromPage.result!.length).toBeGreaterThan(3);
     const fromFile = (await call({ senderFrame: { url: pathToFileURL(join(outDir, 'renderer', 'index.html')).href } }, 'listTemplates', [])) as { ok: boolean; error?: { message: string } };
+    // The store choice is saved in Electron's per-user folder; --db given at start is said to win at the next start too.
+    const store = (await call({ senderFrame: { url: 'rolloff://app/index.html' } }, 'storeInUse', [])) as { ok: boolean; result?: Record<string, unknown> };
+    expect(store.result).toMatchObject({ location: database, kind: 'sqlite file', source: 'command line', choiceKept: 'saved', settingsFile: join(shell.root, 'user-data', 'settings.json') });
+    expect(store.result!.notes).toEqual([expect.stringMatching(/--db wins at the next start/)]);
     expect(fromFile).toMatchObject({ ok: false, error: { message: expect.stringMatching(/are refused/) } });
 
     // Quitting pauses nothing here (no run), closes the store, then quits.

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { defaultDatabasePath, resolveDatabasePath } from '../../../app/store/paths';
+import { defaultDatabasePath, resolveDatabaseChoice, resolveDatabasePath } from '../../../app/store/paths';
 
 // Expected folders: XDG Base Directory Specification (XDG_DATA_HOME, default ~/.local/share) on Linux;
 // ~/Library/Application Support on macOS and %APPDATA% on Windows (each platform's documented convention, recalled from memory).
@@ -23,5 +23,16 @@ describe('database path', () => {
     expect(defaultDatabasePath(environment)).toBe('/tmp/bench.sqlite');
     expect(resolveDatabasePath('/work/other.sqlite', environment)).toBe('/work/other.sqlite');
     expect(resolveDatabasePath(undefined, environment)).toBe('/tmp/bench.sqlite');
+  });
+
+  it('takes --db, then ROLLOFF_DB, then the window\'s saved setting, then the default file (our own order, README "Lab store")', () => {
+    const linux = (env: Record<string, string>) => ({ env: { XDG_DATA_HOME: '/data/me', ...env }, platform: 'linux' as const, homeDir: '/home/me' });
+    const saved = 'postgres://rolloff@lab:5432/runs';
+    expect(resolveDatabaseChoice('/work/a.sqlite', saved, linux({ ROLLOFF_DB: '/tmp/b.sqlite' }))).toEqual({ location: '/work/a.sqlite', source: 'command line' });
+    expect(resolveDatabaseChoice(undefined, saved, linux({ ROLLOFF_DB: '/tmp/b.sqlite' }))).toEqual({ location: '/tmp/b.sqlite', source: 'environment' });
+    expect(resolveDatabaseChoice(undefined, saved, linux({}))).toEqual({ location: saved, source: 'saved setting' });
+    expect(resolveDatabaseChoice(undefined, undefined, linux({}))).toEqual({ location: '/data/me/rolloff/rolloff.sqlite', source: 'default' });
+    // The CLI has no saved setting: its path is the same choice without one.
+    expect(resolveDatabasePath(undefined, linux({}))).toBe('/data/me/rolloff/rolloff.sqlite');
   });
 });

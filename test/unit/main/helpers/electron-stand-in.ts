@@ -16,6 +16,8 @@ export interface ElectronJournal {
   windows: StandInWindow[];
   loadedUrls: string[];
   exitCode: number | undefined;
+  /** What app.getPath('userData') answers (the test sets a temporary folder). */
+  userDataPath: string;
   /** One app object for every copy of this module, so the test can emit its events. */
   app: EventEmitter;
   /** Lets the test decide when the app becomes ready. */
@@ -30,7 +32,7 @@ export function electronJournal(): ElectronJournal {
   if (!holder[JOURNAL_KEY]) {
     let becomeReady = () => {};
     const ready = new Promise<void>((resolve) => (becomeReady = resolve));
-    holder[JOURNAL_KEY] = { calls: [], privilegedSchemes: [], protocolHandlers: new Map(), ipcHandlers: new Map(), windows: [], loadedUrls: [], exitCode: undefined, app: new StandInApp(), becomeReady, ready };
+    holder[JOURNAL_KEY] = { calls: [], privilegedSchemes: [], protocolHandlers: new Map(), ipcHandlers: new Map(), windows: [], loadedUrls: [], exitCode: undefined, userDataPath: '', app: new StandInApp(), becomeReady, ready };
   }
   return holder[JOURNAL_KEY]!;
 }
@@ -39,6 +41,11 @@ class StandInApp extends EventEmitter {
   whenReady(): Promise<void> {
     journal.calls.push('app.whenReady');
     return journal.ready;
+  }
+  getPath(name: string): string {
+    journal.calls.push(`app.getPath(${name})`);
+    if (name !== 'userData' || !journal.userDataPath) throw new Error(`the stand-in knows only app.getPath('userData'), once the test sets it; asked for ${name}`);
+    return journal.userDataPath;
   }
   quit(): void {
     journal.calls.push('app.quit');
