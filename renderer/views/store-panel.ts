@@ -83,7 +83,7 @@ export class StorePanel {
     replaceChildren(this.inUse, `In use: ${store.kind === 'lab store' ? 'lab store' : 'SQLite file'} `, h('code', { 'data-testid': 'store-location-in-use' }, store.location));
     const kept = store.choiceKept === 'saved'
       ? `A store chosen here is saved${store.settingsFile ? ` in ${store.settingsFile}` : ''} and opened at the next start.`
-      : 'A store chosen here applies until this host (rolloff serve) stops; it starts again on its --db store.';
+      : 'A store chosen here applies until this host (rolloff serve) stops; its next start opens the store it is started with.';
     replaceChildren(this.about, [SOURCE_TEXT[store.source], kept, ...store.notes].map((line) => h('p', {}, line)));
   }
 }
