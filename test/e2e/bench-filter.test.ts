@@ -5,40 +5,26 @@
  * lists only the runs of the bench typed, and each run shows its bench.
  */
 import { afterAll, describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join, resolve } from 'node:path';
+import { join } from 'node:path';
 import { launchChromium } from './helpers/chromium';
 import { requireTool } from '../helpers/required-tool';
 import { callService, startServe, type ServeProcess } from './helpers/serve-process';
-import { makeDesignFromTemplate } from '../../app/circuit';
+import { sweepAsBench } from './helpers/bench-sweep';
 import type { RunSummary } from '../../app/contract/contract';
 
-const ROOT = resolve(__dirname, '../..');
-
-/** One short simulated sweep by the bench named `bench`. */
-function sweepAs(bench: string, designPath: string, dbPath: string): void {
-  const result = spawnSync(process.execPath, ['app/cli/bin.mjs', 'sweep', '--design', designPath, '--label', `board of ${bench}`, '--simulated', '--time-scale', '20',
-    '--max-amplitude', '1', '--db', dbPath, '--from', '100', '--to', '1k', '--per-decade', '2'], { cwd: ROOT, encoding: 'utf8', env: { ...process.env, ROLLOFF_BENCH: bench } });
-  if (result.status !== 0) throw new Error(`rolloff sweep as ${bench} exited ${result.status}: ${result.stderr}`);
-}
-
 describe.skipIf(!requireTool('chromium'))('the bench filter of History and Compare', () => {
-  const dir = mkdtempSync(join(tmpdir(), 'rolloff-benches-'));
-  const dbPath = join(dir, 'lab.sqlite');
+  const folder = mkdtempSync(join(tmpdir(), 'rolloff-benches-'));
   let serve: ServeProcess | undefined;
   afterAll(async () => {
     await serve?.stop();
-    rmSync(dir, { recursive: true, force: true });
+    rmSync(folder, { recursive: true, force: true });
   });
 
   it('shows only the runs of the bench typed, each labelled with its bench', async () => {
-    const designPath = join(dir, 'lowpass.json');
-    writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
-    sweepAs('bench 3', designPath, dbPath);
-    sweepAs('bench 3', designPath, dbPath);
-    sweepAs('bench 7', designPath, dbPath);
+    const dbPath = join(folder, 'lab.sqlite');
+    for (const bench of ['bench 3', 'bench 3', 'bench 7']) sweepAsBench({ db: dbPath, bench, buildLabel: `board of ${bench}`, folder });
     serve = await startServe([], { dbPath });
     const runs = await callService<RunSummary[]>(serve, 'listRuns', []);
     const idsOf = (bench: string) => runs.filter((run) => run.benchName === bench).map((run) => String(run.id)).sort();

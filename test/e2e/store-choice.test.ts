@@ -9,18 +9,17 @@
  * and a server that cannot be reached.
  */
 import { afterAll, describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { launchChromium } from './helpers/chromium';
 import { requireTool } from '../helpers/required-tool';
 import { freeLoopbackPort, postgresAvailable, startPostgresCluster, type PostgresCluster } from '../helpers/postgres-cluster';
 import { callService, startServe, type ServeProcess } from './helpers/serve-process';
+import { sweepAsBench } from './helpers/bench-sweep';
 import { makeDesignFromTemplate } from '../../app/circuit';
 import type { RunSummary, SweepRequest } from '../../app/contract/contract';
 
-const ROOT = resolve(__dirname, '../..');
 const ARTIFACTS = resolve(__dirname, '../artifacts');
 
 describe.skipIf(!requireTool('chromium') || !postgresAvailable())('choosing the store on the Bench view', () => {
@@ -38,11 +37,7 @@ describe.skipIf(!requireTool('chromium') || !postgresAvailable())('choosing the 
     const labUrl = cluster.createDatabase('window_choice');
     // Each process finds the password in the cluster's password file; its outbox stays in this test's folder.
     const env = { PGPASSFILE: cluster.passwordFile, ROLLOFF_OUTBOX_DIR: join(dir, 'outbox') };
-    const designPath = join(dir, 'lowpass.json');
-    writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
-    const sweep = spawnSync(process.execPath, ['app/cli/bin.mjs', 'sweep', '--design', designPath, '--label', 'board on the lab store', '--simulated', '--time-scale', '20',
-      '--max-amplitude', '1', '--db', labUrl, '--from', '100', '--to', '1k', '--per-decade', '2'], { cwd: ROOT, encoding: 'utf8', env: { ...process.env, ...env, ROLLOFF_BENCH: 'lab bench 2' } });
-    expect(sweep.status, sweep.stderr).toBe(0);
+    sweepAsBench({ db: labUrl, bench: 'lab bench 2', buildLabel: 'board on the lab store', folder: dir, env });
 
     serve = await startServe(['--simulated', '--time-scale', '0.2', '--max-amplitude', '1'], { env });
     // A slow run on the SQLite file (3 Hz at a time scale of 0.2 takes minutes): this bench is busy.
