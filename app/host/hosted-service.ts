@@ -11,7 +11,7 @@ import { isAbsolute, resolve } from 'node:path';
 import type { RolloffService, RolloffServiceOptions } from '../service/service';
 import { openServiceAt } from '../service/open-service';
 import { API_METHOD_NAMES } from '../contract/check-call';
-import type { DatabaseSource, RolloffApi, ServiceEventName, StoreInUse } from '../contract/contract';
+import type { DatabaseSource, RolloffApi, ServiceEventName, StoreChoiceMethodName, StoreInUse } from '../contract/contract';
 import { checkDatabaseLocation, databaseUrlScheme } from '../store';
 import { UserError } from '../errors';
 import { readUserSettings, saveDatabaseSetting } from './user-settings-file';
@@ -98,10 +98,12 @@ export async function openHostedService(databaseLocation: string, options: Rollo
     }
   }
 
+  // Every other method goes to the service in use at the moment of the call.
+  const storeChoice: Record<StoreChoiceMethodName, (...args: never[]) => Promise<StoreInUse>> = { storeInUse: async () => storeInUse(), chooseStore };
   const serviceMethods = Object.fromEntries(
-    API_METHOD_NAMES.map((name) => [name, (...args: unknown[]) => (service[name as keyof RolloffService] as (...values: unknown[]) => Promise<unknown>).apply(service, args)]),
+    API_METHOD_NAMES.filter((name) => !(name in storeChoice)).map((name) => [name, (...args: unknown[]) => (service[name as keyof RolloffService] as (...values: unknown[]) => Promise<unknown>).apply(service, args)]),
   );
-  const api = { ...serviceMethods, storeInUse: async () => storeInUse(), chooseStore } as RolloffApi;
+  const api = { ...serviceMethods, ...storeChoice } as RolloffApi;
 
   return {
     api,
