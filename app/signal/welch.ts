@@ -84,12 +84,8 @@ export function welchPsd(samplesV: ArrayLike<number>, sampleRateHz: number, opti
   const step = Math.max(1, Math.round(n * (1 - overlap)));
   const segments = Math.floor((samples.length - n) / step) + 1;
   const weights = makeWindow(options.window ?? 'hann', n);
-  let s1 = 0;
   let s2 = 0;
-  for (let i = 0; i < n; i++) {
-    s1 += weights[i];
-    s2 += weights[i] * weights[i];
-  }
+  for (let i = 0; i < n; i++) s2 += weights[i] * weights[i];
 
   const fft = new FFT(n);
   const segment = new Float64Array(n);
@@ -105,20 +101,43 @@ export function welchPsd(samplesV: ArrayLike<number>, sampleRateHz: number, opti
     fft.realTransform(spectrum, segment);
     for (let b = 0; b < bins; b++) psd[b] += spectrum[2 * b] * spectrum[2 * b] + spectrum[2 * b + 1] * spectrum[2 * b + 1];
   }
-  const frequencyHz = new Float64Array(bins);
-  const densityVPerRtHz = new Float64Array(bins);
   for (let b = 0; b < bins; b++) {
     const oneSided = b === 0 || b === n / 2 ? 1 : 2;
     psd[b] = (oneSided * psd[b]) / (segments * sampleRateHz * s2);
-    densityVPerRtHz[b] = Math.sqrt(psd[b]);
-    frequencyHz[b] = (b * sampleRateHz) / n;
   }
+  return welchEstimateOf(psd, segments, equivalentDegreesOfFreedom(weights, segments, step), { sampleRateHz, segmentLength: n, window: options.window ?? 'hann' });
+}
 
-  const nu = equivalentDegreesOfFreedom(weights, segments, step);
+/** What fixes a Welch estimate's frequency axis and its bins' equivalent noise bandwidth. */
+export interface WelchAxis {
+  sampleRateHz: number;
+  segmentLength: number;
+  window: WelchWindow;
+}
+
+/**
+ * The estimate around an averaged one-sided PSD (V²/Hz, bins k·fs/N for
+ * k = 0 … N/2) of `segments` segments with ν degrees of freedom: the axis, the
+ * density, the relative errors and the 95 % interval. welchPsd ends here, and
+ * so does an estimate combined from stored ones (welch-records.ts).
+ */
+export function welchEstimateOf(psdV2PerHz: Float64Array, segments: number, nu: number, axis: WelchAxis): WelchEstimate {
+  const { sampleRateHz, segmentLength: n } = axis;
+  const bins = n / 2 + 1;
+  if (psdV2PerHz.length !== bins) throw new ValidationError('Welch estimate', `has ${psdV2PerHz.length} bins where a segment of ${n} gives ${bins}`, 'Combine only estimates of one segment length.');
+  const weights = makeWindow(axis.window, n);
+  let s1 = 0;
+  let s2 = 0;
+  for (let i = 0; i < n; i++) {
+    s1 += weights[i];
+    s2 += weights[i] * weights[i];
+  }
+  const frequencyHz = new Float64Array(bins);
+  for (let b = 0; b < bins; b++) frequencyHz[b] = (b * sampleRateHz) / n;
   return {
     frequencyHz,
-    psdV2PerHz: psd,
-    densityVPerRtHz,
+    psdV2PerHz,
+    densityVPerRtHz: psdV2PerHz.map(Math.sqrt),
     segments,
     degreesOfFreedom: nu,
     psdRelativeStdError: Math.sqrt(2 / nu),

@@ -7,7 +7,7 @@
  * variables add; Percival & Walden 1993).
  */
 import { describe, expect, it } from 'vitest';
-import { welchPsd, welchPsdOfRecords } from '../../../app/signal';
+import { combineWelchEstimates, welchPsd, welchPsdOfRecords } from '../../../app/signal';
 import { SeededRandom } from '../../../app/numeric';
 
 const whiteRecord = (random: SeededRandom, count: number, sigmaV: number) => Float64Array.from({ length: count }, () => sigmaV * random.nextGaussian());
@@ -30,6 +30,22 @@ describe('welchPsdOfRecords', () => {
     expect(Math.abs(mean - 1)).toBeLessThan((4 * estimate.psdRelativeStdError) / Math.sqrt(ratios.length));
     // The spread over bins estimates √(2/ν) to about 1/√(2·127) ≈ 6 % relative; allow 25 %.
     expect(Math.abs(spread / estimate.psdRelativeStdError - 1)).toBeLessThan(0.25);
+  });
+
+  it('records estimated one by one (as a noise run stores them) combine to the estimate of all records at once', () => {
+    const random = new SeededRandom(12);
+    const fs = 2e4;
+    const records = Array.from({ length: 3 }, () => whiteRecord(random, 3000, 1e-3));
+    const together = welchPsdOfRecords(records, fs, { segmentLength: 512 });
+    const stored = records.map((record) => welchPsd(record, fs, { segmentLength: 512 }));
+    const combined = combineWelchEstimates(stored, { sampleRateHz: fs, segmentLength: 512, window: 'hann' });
+    expect(Array.from(combined.psdV2PerHz)).toEqual(Array.from(together.psdV2PerHz));
+    expect(combined.degreesOfFreedom).toBe(together.degreesOfFreedom);
+    // Hann's equivalent noise bandwidth is 1.5 bins (Heinzel, Rüdiger, Schilling 2002, Table/§C.1 Hanning: NENBW 1.5).
+    expect(combined.enbwHz).toBeCloseTo((1.5 * fs) / 512, 9);
+    // A record of another segment length cannot join: its bins are other frequencies.
+    const other = welchPsd(records[0], fs, { segmentLength: 256 });
+    expect(() => combineWelchEstimates([...stored, other], { sampleRateHz: fs, segmentLength: 512, window: 'hann' })).toThrow(/noise record 3.*129 bins where 257/);
   });
 
   it('refuses an empty list of records', () => {
