@@ -43,3 +43,4 @@ export {
   type LowPhaseMarginWarning,
 } from './stability';
 export { throughDesign, THROUGH_NODE } from './through';
+export { withSourceResistance, SOURCE_EMF_NODE, SOURCE_RESISTOR_ID } from './source-resistance';

@@ -5,11 +5,7 @@
  * impedance. Two views of it: the output node (scope ch2, meter) and the
  * design's input node (scope ch1).
  */
-import { outputOpAmpIndex, slowestTimeConstantS, solveDcTransfer, transferFunction, type Design, type OpAmpModel } from '../circuit';
-// Not re-exported by app/circuit/index.ts; the same rule the theory engine uses for output limits.
-
-const EMF_NODE = '__generator_emf';
-const SOURCE_RESISTOR_ID = '__generator_source_resistance';
+import { outputOpAmpIndex, slowestTimeConstantS, solveDcTransfer, transferFunction, withSourceResistance, type Design, type OpAmpModel } from '../circuit';
 
 export interface Phasor {
   gain: number;
@@ -39,9 +35,8 @@ export class CircuitUnderTest {
     readonly design: Design,
     readonly sourceImpedanceOhm: number,
   ) {
-    const parts = [...design.parts, { id: SOURCE_RESISTOR_ID, type: 'resistor' as const, nodes: [EMF_NODE, design.input] as [string, string], value: sourceImpedanceOhm }];
-    this.toOutput = { ...design, input: EMF_NODE, parts };
-    this.toInput = { ...design, input: EMF_NODE, output: design.input, parts };
+    this.toOutput = withSourceResistance(design, sourceImpedanceOhm);
+    this.toInput = { ...this.toOutput, output: design.input };
     this.timeConstantS = Math.min(MAX_SIMULATED_TIME_CONSTANT_S, slowestTimeConstantS(this.toOutput));
     const index = outputOpAmpIndex(design);
     const model = index === undefined ? undefined : (design.parts.filter((p) => p.type === 'opamp')[index] as { model: OpAmpModel }).model;
