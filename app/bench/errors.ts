@@ -28,3 +28,13 @@ export class StimulusLimitError extends UserError {
     this.maxStimulusVpp = maxStimulusVpp;
   }
 }
+
+/** The generator reports its output on after being told to switch it off: nothing that needs a quiet input may go ahead. */
+export class GeneratorOutputOnError extends UserError {
+  constructor(command: string, reply: string) {
+    super(
+      `the generator still reports its output on (${command} answered "${reply}") after it was switched off`,
+      'Switch the output off at the generator (or unplug its cable and terminate the stage input with a resistor of the generator\'s source resistance), then start again.',
+    );
+  }
+}

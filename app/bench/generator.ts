@@ -17,10 +17,11 @@ import { ValidationError } from '../errors';
 import type { ScpiSession } from '../scpi/session';
 import type { Reading } from '../scpi/reading';
 import { parseReading } from '../scpi/reading';
-import { StimulusLimitError } from './errors';
+import { ScpiMalformedReplyError } from '../scpi/errors';
+import { GeneratorOutputOnError, StimulusLimitError } from './errors';
 import { OperationRunner } from './operation';
 import type { GeneratorProfile } from './profile';
-import type { GeneratorControl, GeneratorLimits, LoadSetting, SineSetting } from './roles';
+import type { GeneratorControl, GeneratorLimits, LoadSetting, OutputOffCheck, SineSetting } from './roles';
 import { amplitudeInUnit, worstCaseStimulusVpp } from './stimulus';
 
 export interface GeneratorOptions {
@@ -40,6 +41,7 @@ interface OutputState {
 export class ProfileGenerator implements GeneratorControl {
   readonly limits: GeneratorLimits;
   readonly maxStimulusVpp: number;
+  readonly sourceImpedanceOhm: number;
   private readonly runner: OperationRunner;
   private load: LoadSetting = 'high-z';
   // The instrument's own settings are unknown until we set them; openInstrument switches the output off first.
@@ -57,6 +59,7 @@ export class ProfileGenerator implements GeneratorControl {
     }
     this.maxStimulusVpp = options.maxStimulusVpp;
     this.limits = profile.generator.limits;
+    this.sourceImpedanceOhm = profile.generator.sourceImpedanceOhm;
     this.runner = new OperationRunner(session, profile);
   }
 
@@ -99,6 +102,20 @@ export class ProfileGenerator implements GeneratorControl {
     await this.runner.set(on ? 'outputOn' : 'outputOff');
     await this.confirm({ outputOn: on });
     this.offConfirmed = !on;
+  }
+
+  async holdOff(): Promise<OutputOffCheck> {
+    const smallestVpp = this.limits.minAmplitudeVpp;
+    this.checkLimit('the quiet setting (smallest amplitude, no offset)', smallestVpp, 0, this.load);
+    await this.setOutput(false);
+    await this.applyLevels(smallestVpp, 0);
+    if (!this.runner.has('readOutput')) return 'commanded';
+    const command = this.runner.describe('readOutput');
+    const reply = (await this.runner.queryText('readOutput')).trim();
+    // OUTPut[:STATe]? answers 1 or 0 (SCPI-1999 Vol. 1 §7.3 boolean response data, recalled from memory); ON/OFF accepted too.
+    if (/^(0|OFF)$/i.test(reply)) return 'read back';
+    if (/^(1|ON)$/i.test(reply)) throw new GeneratorOutputOnError(command, reply);
+    throw new ScpiMalformedReplyError(command, reply, '1 or 0 (ON or OFF)');
   }
 
   async setLoad(load: LoadSetting): Promise<void> {

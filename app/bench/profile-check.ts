@@ -31,8 +31,8 @@ export interface ProfileCheckOptions extends Pick<OpenInstrumentOptions, 'traffi
   timeoutS?: number;
 }
 
-/** Placeholder values for a check: small and ordinary (1 kHz, 1 V/div, a 10 ms record, 20 ms aperture). */
-const CHECK_VALUES: Record<string, number> = { channel: 1, voltsPerDiv: 1, rangeVpp: 10, rangeV: 5, secondsPerRecord: 0.01, secondsPerDiv: 0.001, integrationS: 0.02, powerLineCycles: 1 };
+/** Placeholder values for a check: small and ordinary (1 kHz, 1 V/div, a 10 ms record of 2000 samples, 20 ms aperture). */
+const CHECK_VALUES: Record<string, number> = { channel: 1, voltsPerDiv: 1, rangeVpp: 10, rangeV: 5, secondsPerRecord: 0.01, secondsPerDiv: 0.001, points: 2000, integrationS: 0.02, powerLineCycles: 1 };
 const CHECK_FREQUENCY_HZ = 1000;
 
 export async function checkProfile(address: string | InstrumentAddress, asLoaded: Profile, options: ProfileCheckOptions = {}): Promise<ProfileCheckReport> {
@@ -133,6 +133,7 @@ async function checkScope(session: ScpiSession, profile: ScopeProfile, probe: Pr
   for (const channel of [1, 2]) await probe.setting(`channelOn (channel ${channel})`, filled(profile, 'channelOn', { ...CHECK_VALUES, channel }));
   for (const channel of [1, 2]) await probe.setting(`verticalScale (channel ${channel})`, filled(profile, 'verticalScale', { ...CHECK_VALUES, channel }));
   await probe.setting('timebase', filled(profile, 'timebase'));
+  if (profile.operations.recordPoints) await probe.setting('recordPoints', filled(profile, 'recordPoints'));
   // The acquisition as a sweep runs it (start plus *OPC? or the status poll).
   const control = new ProfileScope(session, profile);
   await control.setTimebase(CHECK_VALUES.secondsPerRecord).catch(() => undefined);
@@ -198,7 +199,8 @@ function safeFixedScaling(profile: ScopeProfile): WaveformScaling {
  * The generator, in a harmless order, through its control: output off; load
  * high-Z; sine at 1 kHz and the smallest amplitude, no offset; read the
  * frequency back; DC at 0 V and back to sine; the output on at that smallest
- * amplitude and off again; the 50 Ω load setting with the output off. Each
+ * amplitude and off again, and (with readOutput) its state read back off; the
+ * 50 Ω load setting with the output off. Each
  * step's failure is the operation it names; what an earlier refusal kept from
  * being sent is reported as not checked.
  */
@@ -253,6 +255,13 @@ async function checkGenerator(session: ScpiSession, profile: GeneratorProfile, m
         await generator.setOutput(true);
         await generator.setOutput(false);
       });
+      if (profile.operations.readOutput) {
+        await probe.run('readOutput', filled(profile, 'readOutput'), async () => {
+          // Read with the output just switched off: the quiet state a noise run relies on.
+          const check = await generator.holdOff();
+          return check === 'read back' ? 'off' : undefined;
+        });
+      }
     }
     if (calibrated) {
       await step(['load50Ohm'], async () => {

@@ -33,6 +33,7 @@ export const OPERATION_RULES: Record<InstrumentRole, Record<string, OperationRul
     loadHighZ: op('amplitude calibrated for a high-impedance load', [], false, false),
     load50Ohm: op('amplitude calibrated for a 50 Ω load', [], false, false),
     readFrequency: op('read the frequency back', [], true),
+    readOutput: op('read the output state back (1 or ON: on, 0 or OFF: off)', [], true, false),
   },
   meter: {
     readAcRms: op('read AC RMS volts', [], true),
@@ -47,6 +48,7 @@ export const OPERATION_RULES: Record<InstrumentRole, Record<string, OperationRul
     channelOn: op('turn a channel on', ['channel']),
     verticalScale: op('vertical scale of a channel', ['channel', 'voltsPerDiv', 'rangeV', 'rangeVpp']),
     timebase: op('horizontal scale', ['secondsPerDiv', 'secondsPerRecord']),
+    recordPoints: op('number of samples in one record (noise runs set it; without it they take the record as it comes)', ['points'], false, false),
     // Completion (scope.acquisitionComplete) is added by the control: *OPC? in the same message, or a status poll.
     acquire: op('start one record of both channels'),
     waveformScaling: op('the numbers that scale a channel\'s data (scope.scaling.fields)', ['channel'], true, false),

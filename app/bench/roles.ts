@@ -32,8 +32,13 @@ export interface GeneratorLimits {
   minAmplitudeVpp: number;
 }
 
+/** How a quiet generator was confirmed: its own report of the output state, or only its acceptance of the command (the profile has no readOutput). */
+export type OutputOffCheck = 'read back' | 'commanded';
+
 export interface GeneratorControl {
   readonly limits: GeneratorLimits;
+  /** Resistance behind the output terminal (profile), ohms: what the stage input sees from a connected generator, on or off. */
+  readonly sourceImpedanceOhm: number;
   /** The user's ceiling, open-circuit peak-to-peak volts including |offset| as peak. */
   readonly maxStimulusVpp: number;
   /** Throws StimulusLimitError before anything is sent if the setting exceeds maxStimulusVpp. */
@@ -41,6 +46,13 @@ export interface GeneratorControl {
   /** DC output at `levelV` (into the set load). Same limit check, |level| as peak. */
   configureDc(levelV: number): Promise<void>;
   setOutput(on: boolean): Promise<void>;
+  /**
+   * The quiet state a noise measurement needs: output off, then the smallest
+   * amplitude and no offset, each confirmed and checked against maxStimulusVpp
+   * like any setting; then, where the profile can read the output state back,
+   * the instrument's own report (GeneratorOutputOnError if it says on).
+   */
+  holdOff(): Promise<OutputOffCheck>;
   /** Re-checks the present setting: switching to '50-ohm' doubles the open-circuit voltage. */
   setLoad(load: LoadSetting): Promise<void>;
   /** Reads the frequency back from the instrument (for checks and logs). */
@@ -79,6 +91,8 @@ export interface ScopeControl {
   setupChannels(voltsPerDiv: { 1: number; 2: number }): Promise<void>;
   /** Horizontal extent of one record in seconds (the profile knows the division count). */
   setTimebase(secondsPerRecord: number): Promise<void>;
+  /** Present only when the profile has recordPoints: samples per record (the sample interval is then record time ÷ points). */
+  setRecordPoints?(points: number): Promise<void>;
   readonly divisions: number;
   /**
    * Captures one record of both channels at once (same time base, so the phase

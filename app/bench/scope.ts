@@ -21,6 +21,7 @@ export class ProfileScope implements ScopeControl {
   private scalings = new Map<ScopeChannel, WaveformScaling>();
   measureAmplitudeVpp?: (channel: ScopeChannel) => Promise<Reading>;
   measurePhaseDeg?: () => Promise<Reading>;
+  setRecordPoints?: (points: number) => Promise<void>;
 
   constructor(
     private readonly session: ScpiSession,
@@ -31,6 +32,14 @@ export class ProfileScope implements ScopeControl {
     // Optional measurements exist only when the profile has them, so callers can feature-test.
     if (this.runner.has('measureAmplitudeVpp')) {
       this.measureAmplitudeVpp = async (channel) => parseReading(await this.runner.queryText('measureAmplitudeVpp', { channel: checkChannel(channel) }), this.runner.describe('measureAmplitudeVpp', { channel }));
+    }
+    if (this.runner.has('recordPoints')) {
+      this.setRecordPoints = async (points) => {
+        if (!(Number.isInteger(points) && points > 0)) throw new ValidationError('record points', `${points} is not a whole number of samples`);
+        await this.runner.set('recordPoints', { points });
+        this.scalings.clear();
+        await this.runner.flush();
+      };
     }
     if (this.runner.has('measurePhaseDeg')) {
       this.measurePhaseDeg = async () => parseReading(await this.runner.queryText('measurePhaseDeg'), this.runner.describe('measurePhaseDeg'));

@@ -6,7 +6,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { memoryTransportPair } from '../../../app/scpi';
-import { findProfile, openInstrument, StimulusLimitError, validateProfile, type GeneratorControl, type GeneratorProfile } from '../../../app/bench';
+import { openInstrument, StimulusLimitError, validateProfile, type GeneratorProfile } from '../../../app/bench';
+import { fakeGenerator } from './fake-generator';
 import { ValidationError } from '../../../app/errors';
 import scpiGenerator from '../../../app/bench/profiles/scpi-generator.json';
 
@@ -20,34 +21,6 @@ function calibratedProfile(amplitudeUnit = 'Vpp'): GeneratorProfile {
   json.operations.load50Ohm = 'LOADcal 50';
   delete json.references;
   return validateProfile(json, 'calibrated-generator.json') as GeneratorProfile;
-}
-
-/** A fake generator that accepts everything and records what it got. */
-async function fakeGenerator(maxStimulusVpp: number, profile: GeneratorProfile = findProfile('scpi-generator', 'generator')): Promise<{ control: GeneratorControl; received: string[]; messages: string[] }> {
-  const { a, b } = memoryTransportPair('fake generator');
-  const received: string[] = [];
-  /** Whole program messages as they came, one per write. */
-  const messages: string[] = [];
-  let pending = '';
-  b.onData((bytes) => {
-    pending += new TextDecoder().decode(bytes);
-    let at: number;
-    while ((at = pending.indexOf('\n')) >= 0) {
-      const line = pending.slice(0, at);
-      pending = pending.slice(at + 1);
-      messages.push(line);
-      // A program message may hold several units (';'), headers rooted with ':' (IEEE 488.2 §7, SCPI-1999 §6.2,
-      // recalled from memory); one response message answers its queries in order.
-      const units = line.split(';').map((unit) => unit.replace(/^:/, ''));
-      received.push(...units);
-      const replies = units
-        .filter((unit) => unit.split(' ')[0].endsWith('?'))
-        .map((unit) => (unit === '*IDN?' ? 'Test,Fake generator,1,1' : unit === 'SYSTem:ERRor?' ? '0,"No error"' : '+1.0E+03'));
-      if (replies.length > 0) void b.write(new TextEncoder().encode(`${replies.join(';')}\n`));
-    }
-  });
-  const opened = await openInstrument('memory', 'generator', profile, { maxStimulusVpp, transport: a });
-  return { control: opened.control, received, messages };
 }
 
 const settings = (received: string[]) => received.filter((line) => !line.endsWith('?'));
