@@ -40,9 +40,14 @@ import {
 } from './field-schemas';
 import type { ServiceEventName, ServiceEvents } from './events';
 import { StoreLocationSchema, type StoreInUse } from './store-choice';
+import { NoiseRequestSchema, type NoiseFigures, type NoisePlanSummary, type NoiseRequest, type NoiseRunDetail } from './noise';
 
-export const RUN_KINDS = ['ac', 'dc'] as const;
+/** Every kind of run: a frequency sweep, a DC transfer sweep, or a noise run (generator off, the output's noise recorded). */
+export const RUN_KINDS = ['ac', 'dc', 'noise'] as const;
 export type RunKind = (typeof RUN_KINDS)[number];
+/** The kinds that sweep a stimulus (SweepRequest); a noise run has its own request (NoiseRequest). */
+export type SweepKind = Exclude<RunKind, 'noise'>;
+export const SWEEP_KINDS = RUN_KINDS.filter((kind): kind is SweepKind => kind !== 'noise');
 
 /** Every state a run can be in, in the order a run passes through them. */
 export const RUN_STATUSES = ['planned', 'running', 'paused', 'done', 'stopped', 'failed'] as const;
@@ -55,6 +60,7 @@ export const INSTRUMENT_ROLES = ['generator', 'meter', 'scope'] as const;
 export type InstrumentRole = (typeof INSTRUMENT_ROLES)[number];
 
 export const RunKindSchema = oneOf(RUN_KINDS);
+const SweepKindSchema = oneOf(SWEEP_KINDS);
 export const RunStatusSchema = oneOf(RUN_STATUSES);
 export const InstrumentRoleSchema = oneOf(INSTRUMENT_ROLES);
 
@@ -245,7 +251,7 @@ const SPACINGS = ['log', 'linear'] as const;
 export const SweepRequestSchema = fields(
   {
     buildId: storeId,
-    kind: RunKindSchema,
+    kind: SweepKindSchema,
     /** AC: frequency limits in Hz; DC: input level limits in volts. */
     from: finiteNumber,
     to: finiteNumber,
@@ -283,10 +289,10 @@ export const SweepRequestSchema = fields(
   },
   [
     // The range is checked before the other fields, as a reader scans a request.
-    fieldFirst('kind', RunKindSchema),
+    fieldFirst('kind', SweepKindSchema),
     fieldFirst('from', finiteNumber),
     fieldFirst('to', finiteNumber),
-    fieldRule<{ kind: RunKind; from: number; to: number }>(({ kind, from, to }) => {
+    fieldRule<{ kind: SweepKind; from: number; to: number }>(({ kind, from, to }) => {
       if (kind === 'ac') {
         if (from <= 0) return { key: 'from', message: `must be a frequency above 0 Hz, got ${from}` };
         if (to <= from) return { key: 'to', message: withHint(`must be above the start frequency (${from} Hz), got ${to}`, 'Sweeps run from low to high frequency.') };
@@ -296,7 +302,7 @@ export const SweepRequestSchema = fields(
       return undefined;
     }),
     fieldFirst('spacing', oneOf(SPACINGS)),
-    fieldRule<{ kind: RunKind; from: number; to: number; spacing: string }>(({ kind, from, to, spacing }) =>
+    fieldRule<{ kind: SweepKind; from: number; to: number; spacing: string }>(({ kind, from, to, spacing }) =>
       kind === 'dc' && spacing === 'log' && (from <= 0 || to <= 0)
         ? { key: 'from', message: withHint('log-spaced input levels must be above 0 V', 'Use linear spacing for ranges that cross zero.') }
         : undefined,
@@ -427,6 +433,8 @@ export interface RunFigures {
   theoryPeakingDb?: number;
   /** Plain warnings of the computed theory for the build's circuit (e.g. a phase margin below 45°). */
   theoryWarnings?: string[];
+  /** Noise runs: measured against computed over the band. */
+  noise?: NoiseFigures;
   /** DC runs: fitted log-stage parameters with 95 % intervals. */
   logFit?: { n: number; nCi: [number, number]; isA: number; isCi: [number, number]; rsOhm: number; rsCi: [number, number] };
 }
@@ -483,7 +491,9 @@ export interface RunEvent {
   message: string;
 }
 
+/** A sweep run (AC or DC) with its points, theory and figures; a noise run's is NoiseRunDetail (getNoiseRun). */
 export interface RunDetail extends RunSummary {
+  kind: SweepKind;
   request: SweepRequest;
   bench: InstrumentInfo[];
   softwareVersion: string;
@@ -534,6 +544,7 @@ export interface TrafficLine {
 
 export type { ServiceEventName, ServiceEvents } from './events';
 export type { StoreInUse, DatabaseSource } from './store-choice';
+export * from './noise';
 export { SERVICE_EVENT_NAMES } from './events';
 
 /** Every method a window may call. Arguments are validated where they arrive. */
@@ -565,9 +576,17 @@ export interface RolloffApi {
   resumeRun(runId: number, request?: ResumeRequest): Promise<RunSummary>;
   stopRun(runId: number): Promise<RunSummary>;
 
+  // Noise runs (generator held off; pause, resume and stop as for sweeps)
+  planNoiseRun(request: NoiseRequest): Promise<NoisePlanSummary>;
+  startNoiseRun(request: NoiseRequest): Promise<RunSummary>;
+
   // History, Compare, Record
   listRuns(filter?: RunFilter): Promise<RunSummary[]>;
+  /** One run's summary (its kind says whether getRun or getNoiseRun reads it). */
+  getRunSummary(runId: number): Promise<RunSummary>;
+  /** A sweep run; a noise run is refused with a hint to getNoiseRun. */
   getRun(runId: number): Promise<RunDetail>;
+  getNoiseRun(runId: number): Promise<NoiseRunDetail>;
   compareRuns(runIds: number[], reference: number | 'theory'): Promise<Comparison>;
   exportRecord(runIds: number[], format: RecordFormat): Promise<ExportedRecord>;
 
@@ -625,8 +644,12 @@ export const API_ARGUMENTS: { readonly [M in RolloffMethodName]: readonly Argume
   pauseRun: [required('runId', storeId)],
   resumeRun: [required('runId', storeId), optionalArgument('request', ResumeRequestSchema)],
   stopRun: [required('runId', storeId)],
+  planNoiseRun: [required('request', NoiseRequestSchema)],
+  startNoiseRun: [required('request', NoiseRequestSchema)],
   listRuns: [optionalArgument('filter', RunFilterSchema)],
+  getRunSummary: [required('runId', storeId)],
   getRun: [required('runId', storeId)],
+  getNoiseRun: [required('runId', storeId)],
   compareRuns: [required('runIds', RunIdListSchema), required('reference', ComparisonReferenceSchema)],
   exportRecord: [required('runIds', RunIdListSchema), required('format', oneOf(RECORD_FORMATS))],
   storeInUse: [],

@@ -11,8 +11,8 @@ import type {
   OfflinePeriod,
   RunEvent,
   RunFigures,
-  RunKind,
   RunStatus,
+  SweepKind,
   SweepRequest,
   Verdict,
 } from '../contract/contract';
@@ -84,7 +84,7 @@ export interface RecordRun {
   id: number;
   /** Stable identity, kept by a copy between stores (absent in records exported before digest version 2). */
   uid?: string;
-  kind: RunKind;
+  kind: SweepKind;
   status: RunStatus;
   startedAt: string | null;
   endedAt: string | null;
