@@ -4,9 +4,9 @@
  * same ValidationError naming the same field.
  */
 import { ValidationError } from '../errors';
-import { FINISHED_RUN_STATUSES, RUN_STATUSES, type OfflinePeriod, type RunEvent, type RunStatus } from '../contract/contract';
+import { FINISHED_RUN_STATUSES, RUN_KINDS, RUN_STATUSES, type OfflinePeriod, type RunEvent, type RunKind, type RunStatus } from '../contract/contract';
 import { checkBenchName } from '../bench/bench-name';
-import type { BenchSettingsInput, NewCalibration, NewPoint, NewRun, NewSchedule, OwnerCondition, RunClaimant, RunFilter, RunImport } from './types';
+import type { BenchSettingsInput, NewCalibration, NewNoiseRecord, NewPoint, NewRun, NewSchedule, OwnerCondition, RunClaimant, RunFilter, RunImport, StoredNoiseRecords } from './types';
 
 /** The one list of run states (and of the finished ones) lives in the contract; re-exported for the store's checks. */
 export { RUN_STATUSES, FINISHED_RUN_STATUSES as FINISHED_STATUSES };
@@ -68,8 +68,13 @@ export function checkBenchToReserve(name: string | undefined): string {
   return bench;
 }
 
-export function checkRunKind(kind: unknown): 'ac' | 'dc' {
-  if (kind !== 'ac' && kind !== 'dc') throw new ValidationError('run.kind', `"${String(kind)}" is not ac or dc`);
+/** The run's kind, one of the contract's, and for a noise run a request that says so. */
+export function checkRunKind(input: Pick<NewRun, 'kind' | 'request'>): RunKind {
+  const kind = input.kind;
+  if (!RUN_KINDS.includes(kind)) throw new ValidationError('run.kind', `"${String(kind)}" is not a run kind`, `Use one of: ${RUN_KINDS.join(', ')}.`);
+  if ((kind === 'noise') !== (input.request?.kind === 'noise')) {
+    throw new ValidationError('run.request.kind', `"${String(input.request?.kind)}" does not match the run's kind "${kind}"`, 'A noise run carries a noise request; a sweep carries a sweep request.');
+  }
   return kind;
 }
 
@@ -83,7 +88,7 @@ export function checkRunStatus(status: unknown, where = 'run.status'): RunStatus
 /** A new run's column values, checked; the store adds its own existence checks (build, schedule) and the time. */
 export interface CheckedNewRun {
   buildId: number;
-  kind: 'ac' | 'dc';
+  kind: RunKind;
   requestJson: string;
   planJson: string;
   /** The plan's step count, kept beside the run so lists need not read the plan. */
@@ -100,7 +105,7 @@ export interface CheckedNewRun {
 export function checkNewRun(input: NewRun): CheckedNewRun {
   return {
     buildId: requireId(input.buildId, 'run.buildId'),
-    kind: checkRunKind(input.kind),
+    kind: checkRunKind(input),
     requestJson: toJson(input.request, 'run.request'),
     planJson: toJson(input.plan, 'run.plan'),
     plannedCount: Array.isArray(input.plan?.steps) ? input.plan.steps.length : 0,
@@ -142,6 +147,46 @@ export function checkPoint(point: NewPoint, where: string): void {
   if (point.measuredAt !== undefined && !Number.isFinite(Date.parse(point.measuredAt))) {
     throw new ValidationError(`${where}.measuredAt`, `"${point.measuredAt}" is not a date and time`, 'Use ISO 8601, e.g. 2026-12-01T16:45:00.000Z.');
   }
+}
+
+/** A noise record as both stores accept it; returns its PSD as bytes (little-endian float64) or null. */
+export function checkNoiseRecord(record: NewNoiseRecord, where: string): Uint8Array | null {
+  if (!Number.isInteger(record.step) || record.step < 0) throw new ValidationError(`${where}.step`, `${record.step} is not a whole number ≥ 0`);
+  if (!Number.isInteger(record.segments) || record.segments < 0) throw new ValidationError(`${where}.segments`, `${record.segments} is not a whole number ≥ 0`);
+  if (!(record.degreesOfFreedom >= 0)) throw new ValidationError(`${where}.degreesOfFreedom`, `${record.degreesOfFreedom} is not a number ≥ 0`);
+  if (!Number.isInteger(record.flags) || record.flags < 0) throw new ValidationError(`${where}.flags`, `${record.flags} is not a flag set`);
+  if (record.measuredAt !== undefined && !Number.isFinite(Date.parse(record.measuredAt))) {
+    throw new ValidationError(`${where}.measuredAt`, `"${record.measuredAt}" is not a date and time`, 'Use ISO 8601, e.g. 2026-12-01T16:45:00.000Z.');
+  }
+  if (record.psdV2PerHz === undefined) return null;
+  const psd = record.psdV2PerHz;
+  for (let i = 0; i < psd.length; i++) {
+    if (!(psd[i] >= 0) || !Number.isFinite(psd[i])) throw new ValidationError(`${where}.psdV2PerHz[${i}]`, `${psd[i]} is not a power density (finite, ≥ 0)`);
+  }
+  return float64Bytes(psd);
+}
+
+/** One record of stored noise records as a new one (a copy between stores writes it again). */
+export function noiseRecordAt(records: StoredNoiseRecords, i: number): NewNoiseRecord {
+  return {
+    step: records.step[i],
+    sampleRateHz: records.sampleRateHz[i],
+    segments: records.segments[i],
+    degreesOfFreedom: records.degreesOfFreedom[i],
+    ...(records.psdV2PerHz[i] ? { psdV2PerHz: records.psdV2PerHz[i]! } : {}),
+    rmsV: records.rmsV[i],
+    meanV: records.meanV[i],
+    flags: records.flags[i],
+    measuredAt: records.measuredAt[i],
+  };
+}
+
+/** Little-endian IEEE 754 doubles, the stored form of a PSD whatever the machine's byte order. */
+export function float64Bytes(values: ArrayLike<number>): Uint8Array {
+  const bytes = new Uint8Array(values.length * 8);
+  const view = new DataView(bytes.buffer);
+  for (let i = 0; i < values.length; i++) view.setFloat64(i * 8, values[i], true);
+  return bytes;
 }
 
 export function checkEventLevel(level: unknown): RunEvent['level'] {
@@ -253,10 +298,11 @@ export function checkOfflinePeriod(period: OfflinePeriod): OfflinePeriod {
 
 /** What importRuns checks before any row is written, the same in both stores. */
 export function checkRunImports(runs: readonly RunImport[]): void {
-  runs.forEach(({ run, points }, r) => {
+  runs.forEach(({ run, points, noiseRecords }, r) => {
     checkUids([run.uid]);
-    checkRunKind(run.kind);
+    checkRunKind(run);
     checkRunStatus(run.status);
     points.forEach((point, index) => checkPoint(point, `runs[${r}].points[${index}]`));
+    noiseRecords?.step.forEach((_, index) => checkNoiseRecord(noiseRecordAt(noiseRecords, index), `runs[${r}].noiseRecords[${index}]`));
   });
 }

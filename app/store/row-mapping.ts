@@ -6,7 +6,7 @@
  * PostgreSQL store's type parser turns timestamptz into it).
  */
 import type { BuildRecord, DesignRecord, OfflinePeriod, PointColumns, RunStatus, RunSummary } from '../contract/contract';
-import type { BenchSettings, CalibrationRecord, InstrumentRecord, NewPoint, RunOwnership, ScheduleRecord, StoredPoint, StoredRun, StoredRunSummary } from './types';
+import type { BenchSettings, CalibrationRecord, InstrumentRecord, NewPoint, RunOwnership, ScheduleRecord, StoredNoiseRecords, StoredPoint, StoredRun, StoredRunSummary } from './types';
 
 export type Row = Record<string, unknown>;
 
@@ -96,10 +96,11 @@ export function rowMapping(read: ColumnReading): RowMapping {
     }),
     benchSettings: (row) => ({ benchKey: row.bench_key as string, maxStimulusVpp: (row.max_stimulus_vpp as number | null) ?? null, updatedAt: row.updated_at as string }),
     runSummary,
+    // The kind, request and plan were checked to belong together when the run was created (checkRunKind).
     storedRun: (row) => ({
       ...runSummary(row),
-      request: read.json(row.request_json) as StoredRun['request'],
-      plan: read.json(row.plan_json) as StoredRun['plan'],
+      request: read.json(row.request_json),
+      plan: read.json(row.plan_json),
       softwareVersion: row.software_version as string,
       bench: read.json(row.bench_json) as StoredRun['bench'],
       operator: row.operator as string,
@@ -113,7 +114,7 @@ export function rowMapping(read: ColumnReading): RowMapping {
         from: new Date(Date.parse(period.from)).toISOString(),
         to: new Date(Date.parse(period.to)).toISOString(),
       })),
-    }),
+    }) as StoredRun,
   };
 }
 
@@ -182,6 +183,48 @@ export function pointColumnsFromRows(rows: readonly unknown[][]): PointColumns {
     columns.measuredAt[i] = new Date(Math.round(row[9] as number)).toISOString();
   }
   return columns;
+}
+
+/**
+ * The columns both stores select for loadNoiseRecords, in this order, one array
+ * per row: step, sample_rate_hz, segments, degrees_of_freedom, rms_v, mean_v,
+ * flags, the measuring time as UTC milliseconds, and the PSD bytes
+ * (little-endian doubles, or NULL for a meter reading).
+ */
+export function noiseRecordsFromRows(rows: readonly unknown[][]): StoredNoiseRecords {
+  const n = rows.length;
+  const records: StoredNoiseRecords = {
+    step: new Array<number>(n),
+    sampleRateHz: new Array<number>(n),
+    segments: new Array<number>(n),
+    degreesOfFreedom: new Array<number>(n),
+    rmsV: new Array<number>(n),
+    meanV: new Array<number>(n),
+    flags: new Array<number>(n),
+    measuredAt: new Array<string>(n),
+    psdV2PerHz: new Array<Float64Array | null>(n),
+  };
+  for (let i = 0; i < n; i++) {
+    const row = rows[i];
+    records.step[i] = Number(row[0]);
+    records.sampleRateHz[i] = numberOrNaN(row[1]);
+    records.segments[i] = Number(row[2]);
+    records.degreesOfFreedom[i] = Number(row[3]);
+    records.rmsV[i] = numberOrNaN(row[4]);
+    records.meanV[i] = numberOrNaN(row[5]);
+    records.flags[i] = Number(row[6]);
+    records.measuredAt[i] = new Date(Math.round(Number(row[7]))).toISOString();
+    records.psdV2PerHz[i] = row[8] === null || row[8] === undefined ? null : float64FromBytes(row[8] as Uint8Array);
+  }
+  return records;
+}
+
+/** The stored PSD bytes back as doubles (little-endian, as float64Bytes in record-checks.ts writes them). */
+export function float64FromBytes(bytes: Uint8Array): Float64Array {
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const values = new Float64Array(Math.floor(bytes.byteLength / 8));
+  for (let i = 0; i < values.length; i++) values[i] = view.getFloat64(i * 8, true);
+  return values;
 }
 
 /**

@@ -40,6 +40,8 @@ import {
   checkCalibration,
   checkDesignName,
   checkEventLevel,
+  checkNoiseRecord,
+  noiseRecordAt,
   checkPoint,
   checkRunFilter,
   checkRunStatus,
@@ -58,7 +60,7 @@ import {
   checkInstant,
   checkUids,
 } from './record-checks';
-import { ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, storedPointFromRow, type Row } from './row-mapping';
+import { noiseRecordsFromRows, nullable, ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, storedPointFromRow, type Row } from './row-mapping';
 import type { RolloffStore } from './store-interface';
 import type {
   BenchSettings,
@@ -69,6 +71,7 @@ import type {
   NewBuild,
   NewCalibration,
   NewDesign,
+  NewNoiseRecord,
   NewPoint,
   NewRun,
   NewSchedule,
@@ -83,6 +86,7 @@ import type {
   UidKind,
   ScheduleRecord,
   StoreOpenOptions,
+  StoredNoiseRecords,
   StoredRun,
   StoredRunSummary,
   OwnerCondition,
@@ -125,6 +129,7 @@ export class SqliteStore implements RolloffStore {
   private readonly statements: ReturnType<SqliteStore['prepareStatements']>;
   private readonly insertPointTransaction: (runId: number, point: NewPoint, asOwner: string | null) => void;
   private readonly insertPointsTransaction: (batches: readonly PointBatch[]) => void;
+  private readonly insertNoiseRecordTransaction: (runId: number, record: NewNoiseRecord, psd: Uint8Array | null, asOwner: string | null) => void;
   private readonly createOwnedRunTransaction: Database.Transaction<(input: NewRun, reservation: BenchReservation) => { holder: Row } | { runId: number }>;
   private readonly claimOnFreeBenchTransaction: Database.Transaction<(runId: number, benchOfUnnamedRun: string, claim: Omit<BenchReservation, 'bench'>) => { holder: Row } | { claimed: boolean }>;
 
@@ -155,6 +160,11 @@ export class SqliteStore implements RolloffStore {
       const claimed = this.statements.claimRun.run({ ...claim, runId }).changes === 1;
       if (claimed) this.statements.nameUnnamedRun.run(bench, runId);
       return { claimed };
+    });
+    // As a point's: the conditional count first, so no claim comes between the owner check and the record.
+    this.insertNoiseRecordTransaction = db.transaction((runId: number, record: NewNoiseRecord, psd: Uint8Array | null, asOwner: string | null) => {
+      if (this.statements.countOwnedPoint.run({ runId, asOwner }).changes === 0) this.refuseWrite(runId, asOwner);
+      this.bindNoiseRecord(runId, record, psd);
     });
     this.insertPointsTransaction = db.transaction((batches: readonly PointBatch[]) => {
       for (const { runId, points } of batches) {
@@ -319,7 +329,14 @@ export class SqliteStore implements RolloffStore {
         .prepare(`SELECT step, stimulus, amplitude_vpp, gain_db, gain_u_db, phase_deg, phase_u_deg, output_v, flags, measured_at_ms
           FROM points WHERE run_id = ? ORDER BY step`)
         .raw(true),
-      nextStep: db.prepare('SELECT COALESCE(MAX(step), -1) + 1 AS next FROM points WHERE run_id = ?'),
+      nextStep: db.prepare(`SELECT MAX(COALESCE((SELECT MAX(step) FROM points WHERE run_id = @runId), -1),
+        COALESCE((SELECT MAX(step) FROM noise_records WHERE run_id = @runId), -1)) + 1 AS next`),
+      insertNoiseRecord: db.prepare(`INSERT INTO noise_records (run_id, step, sample_rate_hz, segments, degrees_of_freedom, rms_v, mean_v, flags,
+        measured_at_ms, psd_v2_per_hz) VALUES (?,?,?,?,?,?,?,?,?,?)`),
+      loadNoiseRecords: db
+        .prepare(`SELECT step, sample_rate_hz, segments, degrees_of_freedom, rms_v, mean_v, flags, measured_at_ms, psd_v2_per_hz
+          FROM noise_records WHERE run_id = ? ORDER BY step`)
+        .raw(true),
       runExists: db.prepare('SELECT 1 FROM runs WHERE id = ?'),
       insertEvent: db.prepare('INSERT INTO run_events (run_id, at, level, message) VALUES (?, ?, ?, ?)'),
       insertOwnedEvent: db.prepare(`INSERT INTO run_events (run_id, at, level, message)
@@ -599,7 +616,7 @@ export class SqliteStore implements RolloffStore {
     const run = this.runById(runId);
     const rows = this.guard(() => this.statements.exportPoints.all(runId) as Row[]);
     const points: StoredPoint[] = rows.map(storedPointFromRow);
-    return { run, points, events: await this.listEvents(runId) };
+    return { run, points, ...(run.kind === 'noise' ? { noiseRecords: await this.loadNoiseRecords(runId) } : {}), events: await this.listEvents(runId) };
   }
 
   async importDesign(design: DesignImport): Promise<number> {
@@ -635,7 +652,7 @@ export class SqliteStore implements RolloffStore {
     checkRunImports(runs);
     return this.guard(() =>
       this.db.transaction(() =>
-        runs.map(({ run, points, events }) => {
+        runs.map(({ run, points, noiseRecords, events }) => {
           this.buildById(run.buildId);
           if (run.scheduleId !== null) this.scheduleById(run.scheduleId);
           const id = Number(this.statements.importRun.run({
@@ -647,7 +664,11 @@ export class SqliteStore implements RolloffStore {
           }).lastInsertRowid);
           this.statements.insertPlan.run(id, toJson(run.plan, 'run.plan'));
           for (const point of points) this.bindPoint(id, point);
-          this.statements.countPoints.run(points.length, id);
+          noiseRecords?.step.forEach((_, i) => {
+            const record = noiseRecordAt(noiseRecords, i);
+            this.bindNoiseRecord(id, record, checkNoiseRecord(record, 'noiseRecord'));
+          });
+          this.statements.countPoints.run(points.length + (noiseRecords?.step.length ?? 0), id);
           for (const event of events) this.statements.insertEvent.run(id, event.at, checkEventLevel(event.level), event.message);
           for (const period of run.offlinePeriods) {
             const { from, to } = checkOfflinePeriod(period);
@@ -716,7 +737,37 @@ export class SqliteStore implements RolloffStore {
   async nextStep(runId: number): Promise<number> {
     requireId(runId, 'runId');
     if (!this.statements.runExists.get(runId)) throw new RecordNotFoundError('run', runId);
-    return (this.guard(() => this.statements.nextStep.get(runId)) as { next: number }).next;
+    return (this.guard(() => this.statements.nextStep.get({ runId })) as { next: number }).next;
+  }
+
+  // ── noise records ──────────────────────────────────────────────────────
+
+  private bindNoiseRecord(runId: number, record: NewNoiseRecord, psd: Uint8Array | null): void {
+    try {
+      this.statements.insertNoiseRecord.run(runId, record.step, nullable(record.sampleRateHz), record.segments, record.degreesOfFreedom,
+        nullable(record.rmsV), nullable(record.meanV), record.flags, this.pointTimeMs(record.measuredAt), psd === null ? null : Buffer.from(psd.buffer, psd.byteOffset, psd.byteLength));
+    } catch (error) {
+      const code = sqliteCode(error);
+      if (code === 'SQLITE_CONSTRAINT_PRIMARYKEY' || code === 'SQLITE_CONSTRAINT_UNIQUE') throw new DuplicateStepError(runId, record.step);
+      if (code === 'SQLITE_CONSTRAINT_FOREIGNKEY') throw new RecordNotFoundError('run', runId);
+      throw error;
+    }
+  }
+
+  /** One record in its own transaction with the run's count (durable when this returns). A stored step is refused with DuplicateStepError. */
+  async insertNoiseRecord(runId: number, record: NewNoiseRecord, condition?: OwnerCondition): Promise<void> {
+    this.requireWritable();
+    requireId(runId, 'runId');
+    const psd = checkNoiseRecord(record, 'noiseRecord');
+    const asOwner = checkOwnerCondition(condition);
+    this.guard(() => this.insertNoiseRecordTransaction(runId, record, psd, asOwner));
+  }
+
+  async loadNoiseRecords(runId: number): Promise<StoredNoiseRecords> {
+    requireId(runId, 'runId');
+    const rows = this.guard(() => this.statements.loadNoiseRecords.all(runId) as unknown[][]);
+    if (rows.length === 0 && !this.statements.runExists.get(runId)) throw new RecordNotFoundError('run', runId);
+    return noiseRecordsFromRows(rows);
   }
 
   // ── events ─────────────────────────────────────────────────────────────

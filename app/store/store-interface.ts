@@ -41,6 +41,7 @@ import type {
   NewBuild,
   NewCalibration,
   NewDesign,
+  NewNoiseRecord,
   NewPoint,
   NewRun,
   NewSchedule,
@@ -60,6 +61,7 @@ import type {
   ScheduleRecord,
   StoreChange,
   StoreChangeFeed,
+  StoredNoiseRecords,
   StoredRun,
   StoredRunSummary,
 } from './types';
@@ -159,8 +161,19 @@ export interface PointStore {
   insertPointsOfRuns(batches: readonly PointBatch[]): Promise<void>;
   /** A run's points in step order, columnar (missing values NaN). RecordNotFoundError for an unknown run. */
   loadPoints(runId: number): Promise<PointColumns>;
-  /** One past the highest stored step (0 for a run with no points): where a resumed sweep continues. */
+  /** One past the highest stored step, points and noise records alike (0 for a run with none): where a resumed run continues. */
   nextStep(runId: number): Promise<number>;
+}
+
+/** The records of a noise run (one per step, like points: durable, never two for one step). */
+export interface NoiseRecordStore {
+  /**
+   * One record in its own transaction, counted in the run's point count: durable when this resolves. A stored step is refused with DuplicateStepError.
+   * With condition.asOwner, as insertPoint: only while that owner owns the run, else RunTakenOverError, nothing written.
+   */
+  insertNoiseRecord(runId: number, record: NewNoiseRecord, condition?: OwnerCondition): Promise<void>;
+  /** A run's records in step order. RecordNotFoundError for an unknown run. */
+  loadNoiseRecords(runId: number): Promise<StoredNoiseRecords>;
 }
 
 /** The log lines of a run (info, warning, error), in the order they were appended. */
@@ -245,6 +258,7 @@ export interface RolloffStore
   extends SharedStoreChanges, DesignAndBuildStore,
     RunStore,
     PointStore,
+    NoiseRecordStore,
     RunEventStore,
     CalibrationStore,
     ScheduleStore,
@@ -257,4 +271,4 @@ export interface RolloffStore
 export type SweepStore = Pick<RolloffStore, 'nextStep' | 'updateRunStatus' | 'appendEvent' | 'insertPoint' | 'loadPoints'>;
 
 /** What the read model (run detail, analysis, exports) reads. */
-export type RunReadStore = Pick<RolloffStore, 'getRun' | 'loadPoints' | 'listEvents' | 'getBuild' | 'getDesign'>;
+export type RunReadStore = Pick<RolloffStore, 'getRun' | 'loadPoints' | 'loadNoiseRecords' | 'listEvents' | 'getBuild' | 'getDesign'>;

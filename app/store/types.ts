@@ -10,20 +10,27 @@ import type {
   RunEvent,
   InstrumentInfo,
   InstrumentRole,
+  NoisePlanSummary,
+  NoiseRecordColumns,
+  NoiseRequest,
   RunFigures,
-  RunKind,
   RunStatus,
   RunSummary,
+  SweepKind,
   SweepPlanSummary,
   SweepRequest,
   Verdict,
 } from '../contract/contract';
 
-export interface NewRun {
+/** What a run was asked and planned, tied to its kind: a sweep's request and plan, or a noise run's. */
+export type RunAsked =
+  | { kind: SweepKind; request: SweepRequest; plan: SweepPlanSummary }
+  | { kind: 'noise'; request: NoiseRequest; plan: NoisePlanSummary };
+
+export type NewRun = RunAsked & NewRunCommon;
+
+interface NewRunCommon {
   buildId: number;
-  kind: RunKind;
-  request: SweepRequest;
-  plan: SweepPlanSummary;
   softwareVersion: string;
   bench: InstrumentInfo[];
   operator: string;
@@ -44,9 +51,11 @@ export interface StoredRunSummary extends Omit<RunSummary, 'owner'> {
 }
 
 /** A run as stored: the summary plus what was asked, planned and found. */
-export interface StoredRun extends StoredRunSummary {
-  request: SweepRequest;
-  plan: SweepPlanSummary;
+export type StoredRun = StoredSweepRun | StoredNoiseRun;
+export type StoredSweepRun = StoredRunCommon & Extract<RunAsked, { kind: SweepKind }>;
+export type StoredNoiseRun = StoredRunCommon & Extract<RunAsked, { kind: 'noise' }>;
+
+interface StoredRunCommon extends Omit<StoredRunSummary, 'kind'> {
   softwareVersion: string;
   bench: InstrumentInfo[];
   operator: string;
@@ -87,6 +96,31 @@ export interface NewPoint {
   flags: number;
   /** ISO 8601; defaults to now. */
   measuredAt?: string;
+}
+
+/**
+ * One record of a noise run as measured: a scope record's own Welch estimate
+ * (its one-sided PSD on the bins k·fs/N, k = 0 … N/2, with its segment count
+ * and degrees of freedom), or one meter reading of the output's AC RMS.
+ */
+export interface NewNoiseRecord {
+  step: number;
+  /** Scope: the record's sample rate, Hz; meter: NaN. */
+  sampleRateHz: number;
+  segments: number;
+  degreesOfFreedom: number;
+  /** Scope: V²/Hz per bin; absent for a meter reading. */
+  psdV2PerHz?: ArrayLike<number>;
+  rmsV: number;
+  meanV: number;
+  flags: number;
+  /** ISO 8601; defaults to now. */
+  measuredAt?: string;
+}
+
+/** A noise run's records in step order, with each scope record's PSD (null for meter readings). */
+export interface StoredNoiseRecords extends NoiseRecordColumns {
+  psdV2PerHz: Array<Float64Array | null>;
 }
 
 export interface InstrumentSighting {
@@ -259,10 +293,12 @@ export interface StoredPoint extends NewPoint {
   measuredAt: string;
 }
 
-/** Everything of one run a copy to another store keeps: the row as stored, its points, events and offline periods. */
+/** Everything of one run a copy to another store keeps: the row as stored, its points (a noise run: its records), events and offline periods. */
 export interface RunTransfer {
   run: StoredRun;
   points: StoredPoint[];
+  /** A noise run's records, spectra included; absent for a sweep. */
+  noiseRecords?: StoredNoiseRecords;
   events: RunEvent[];
 }
 

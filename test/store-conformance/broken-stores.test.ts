@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { STORE_CONFORMANCE_CHECKS, failingChecks } from './store-conformance';
-import { checksBenchThenCreates, claimsThenChecksBench, ignoresOwnerConditionOnEvents, resumesWithoutBenchCheck, dropsStepOrder, halfAppliesBatches, ignoresOwnerCondition, storesPointTwice, unbrokenStore } from './broken-stores';
+import { checksBenchThenCreates, claimsThenChecksBench, ignoresOwnerConditionOnEvents, ignoresOwnerConditionOnNoiseRecords, resumesWithoutBenchCheck, dropsStepOrder, halfAppliesBatches, ignoresOwnerCondition, roundsNoiseSpectra, storesPointTwice, unbrokenStore } from './broken-stores';
 
 const names = STORE_CONFORMANCE_CHECKS.map((check) => check.name);
 const ROUND_TRIP = names[0];
@@ -16,6 +16,8 @@ const BENCH_RESERVATION = names.find((name) => name.startsWith('bench reservatio
 const RESUME_RESERVATION = names.find((name) => name.startsWith('bench reservation on resume'))!;
 const OWNER_WRITES = names.find((name) => name.startsWith("run ownership: an owner's status and point writes"))!;
 const OWNER_EVENTS = names.find((name) => name.startsWith("run ownership: an owner's event lines"))!;
+const NOISE_OWNER_WRITES = names.find((name) => name.startsWith("run ownership: an owner's noise records"))!;
+const NOISE_ROUND_TRIP = names.find((name) => name.startsWith('stores a noise run'))!;
 
 describe('the store conformance suite fails broken stores', () => {
   it('passes a correct store behind the same wrapper (the wrapper alone breaks nothing)', async () => {
@@ -35,6 +37,15 @@ describe('the store conformance suite fails broken stores', () => {
   it('fails a store that writes for an owner that lost the run', async () => {
     expect(OWNER_WRITES).toBeDefined();
     expect(await failingChecks(ignoresOwnerCondition)).toEqual([OWNER_WRITES]);
+  });
+
+  it('fails a store that stores noise records for an owner that lost the run', async () => {
+    expect(NOISE_OWNER_WRITES).toBeDefined();
+    expect(await failingChecks(ignoresOwnerConditionOnNoiseRecords)).toEqual([NOISE_OWNER_WRITES]);
+  });
+
+  it('fails a store that keeps noise spectra less exactly than measured', async () => {
+    expect(await failingChecks(roundsNoiseSpectra)).toEqual([NOISE_ROUND_TRIP]);
   });
 
   it('fails a store that applies half a batch', async () => {

@@ -146,3 +146,18 @@ export const ignoresOwnerConditionOnEvents = broken((inner) => ({
     return inner.appendEvent(runId, level, message, at);
   },
 }));
+
+/** Stores an owner's noise records whether it still owns the run or not (its points keep the condition). */
+export const ignoresOwnerConditionOnNoiseRecords = broken((inner) => ({
+  async insertNoiseRecord(runId, record) {
+    await inner.insertNoiseRecord(runId, record);
+  },
+}));
+
+/** Keeps a noise record's spectrum as 32-bit floats: close, but not the numbers measured. */
+export const roundsNoiseSpectra = broken((inner) => ({
+  async loadNoiseRecords(runId) {
+    const records = await inner.loadNoiseRecords(runId);
+    return { ...records, psdV2PerHz: records.psdV2PerHz.map((psd) => (psd ? psd.map(Math.fround) : psd)) };
+  },
+}));

@@ -9,8 +9,8 @@
  */
 import { afterEach, describe, expect, it } from 'vitest';
 import { ValidationError } from '../../app/errors';
-import { DuplicateStepError, RecordNotFoundError, RunTakenOverError, type RolloffStore, type StoreOpenOptions } from '../../app/store';
-import { newRun, plan, point, request, seedRun } from './fixtures';
+import { DuplicateStepError, RecordNotFoundError, RunTakenOverError, type RolloffStore, type StoreOpenOptions, type StoredRun } from '../../app/store';
+import { newNoiseRun, newRun, noisePlan, noiseRecord, noiseRequest, plan, point, request, seedRun } from './fixtures';
 import { benchKey } from '../../app/bench/bench-key';
 
 /** Opens a new, empty store; `now` (when given) is the clock for every timestamp the store writes. */
@@ -182,7 +182,7 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
       const withResults = await store.setRunResults(run.id, { minus3dbHz: [15.9e3], passbandGainDb: 19.98 }, { pass: true, reasons: [] });
       expect(withResults.figures).toEqual({ minus3dbHz: [15.9e3], passbandGainDb: 19.98 });
       expect(withResults.verdict).toEqual({ pass: true, reasons: [] });
-      expect(withResults.request.from).toBe(10);
+      expect(withResults.kind !== 'noise' && withResults.request.from).toBe(10);
       expect(await store.getRun(run.id)).toEqual(withResults);
       await expect(store.updateRunStatus(run.id, 'exploded' as never)).rejects.toThrow(/not a run status/);
       await expect(store.updateRunStatus(77, 'done')).rejects.toThrow(RecordNotFoundError);
@@ -605,7 +605,7 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
       await target.saveDesign({ name: 'taken first, so the ids differ', design: {} });
       const designId = await target.importDesign(design);
       const buildId = await target.importBuild({ ...build, designId });
-      const [runId] = await target.importRuns([{ ...exported, run: { ...exported.run, buildId, request: { ...exported.run.request, buildId } } }]);
+      const [runId] = await target.importRuns([{ ...exported, run: { ...exported.run, buildId, request: { ...exported.run.request, buildId } } as StoredRun }]);
       expect(designId).not.toBe(design.id);
       const copied = await target.exportRun(runId);
       const { id: _a, buildId: _b, request: requestCopied, ...runCopied } = copied.run;
@@ -621,6 +621,108 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
       // The same run again is refused whole (its uid is taken), nothing half-stored.
       await expect(target.importRuns([{ ...exported, run: { ...exported.run, buildId } }])).rejects.toThrow();
       expect(await target.listRuns()).toHaveLength(1);
+    },
+  },
+  {
+    name: 'stores a noise run with its request and plan, and its records in step order with every PSD bit for bit, counted as the run\'s points',
+    async run(open) {
+      const store = await open();
+      const { build } = await seedRun(store);
+      const run = await store.createRun(newNoiseRun(build.id));
+      expect(run.kind).toBe('noise');
+      expect(run.request).toEqual({ ...noiseRequest, buildId: build.id });
+      expect(run.plan).toEqual(noisePlan);
+      expect(run.plannedCount).toBe(8);
+      for (const step of [1, 0, 2]) await store.insertNoiseRecord(run.id, noiseRecord(step));
+      // A meter reading: no spectrum, no sample rate.
+      await store.insertNoiseRecord(run.id, noiseRecord(3, { psdV2PerHz: undefined, sampleRateHz: Number.NaN, segments: 0, degreesOfFreedom: 0, meanV: Number.NaN, flags: 2 }));
+      const records = await store.loadNoiseRecords(run.id);
+      expect(records.step).toEqual([0, 1, 2, 3]);
+      for (const step of [0, 1, 2]) {
+        expect(Array.from(records.psdV2PerHz[step]!)).toEqual(Array.from(noiseRecord(step).psdV2PerHz!));
+        expect(records.degreesOfFreedom[step]).toBe(13.2);
+        expect(records.rmsV[step]).toBe(noiseRecord(step).rmsV);
+      }
+      expect(records.psdV2PerHz[3]).toBeNull();
+      expect(Number.isNaN(records.sampleRateHz[3])).toBe(true);
+      expect(Number.isNaN(records.meanV[3])).toBe(true);
+      expect(records.flags).toEqual([0, 0, 0, 2]);
+      expect(records.measuredAt[1]).toBe('2026-01-01T00:01:01.000Z');
+      expect((await store.getRun(run.id)).pointCount).toBe(4);
+      expect((await store.listRuns())[0]).toMatchObject({ id: run.id, kind: 'noise', pointCount: 4, plannedCount: 8 });
+      expect(await store.nextStep(run.id)).toBe(4);
+      expect((await store.loadPoints(run.id)).step).toEqual([]);
+      expect(await store.integrityProblems()).toEqual([]);
+    },
+  },
+  {
+    name: 'refuses a second noise record for a step, bad records, an unknown run, and a noise run without a noise request',
+    async run(open) {
+      const store = await open();
+      const { build } = await seedRun(store);
+      const run = await store.createRun(newNoiseRun(build.id));
+      await store.insertNoiseRecord(run.id, noiseRecord(0));
+      await expect(store.insertNoiseRecord(run.id, noiseRecord(0, { rmsV: 1 }))).rejects.toThrow(DuplicateStepError);
+      const records = await store.loadNoiseRecords(run.id);
+      expect(records.step).toEqual([0]);
+      expect(records.rmsV[0]).toBe(noiseRecord(0).rmsV);
+      expect((await store.getRun(run.id)).pointCount).toBe(1);
+      await expect(store.insertNoiseRecord(run.id, noiseRecord(-1))).rejects.toThrow(/noiseRecord.step/);
+      await expect(store.insertNoiseRecord(run.id, noiseRecord(1, { psdV2PerHz: [1e-16, Number.NaN] }))).rejects.toThrow(/noiseRecord.psdV2PerHz\[1\]/);
+      await expect(store.insertNoiseRecord(run.id, noiseRecord(1, { psdV2PerHz: [-1e-16] }))).rejects.toThrow(/power density/);
+      await expect(store.insertNoiseRecord(run.id, noiseRecord(1, { segments: 1.5 }))).rejects.toThrow(/noiseRecord.segments/);
+      await expect(store.insertNoiseRecord(run.id, noiseRecord(1, { measuredAt: 'soon' }))).rejects.toThrow(/noiseRecord.measuredAt/);
+      await expect(store.insertNoiseRecord(999, noiseRecord(0))).rejects.toThrow(RecordNotFoundError);
+      await expect(store.loadNoiseRecords(999)).rejects.toThrow(RecordNotFoundError);
+      expect(await store.nextStep(run.id)).toBe(1);
+      await expect(store.createRun(newNoiseRun(build.id, { request } as never))).rejects.toThrow(/run.request.kind/);
+      await expect(store.createRun(newRun(build.id, { request: noiseRequest } as never))).rejects.toThrow(/run.request.kind/);
+      expect((await store.listRuns({ buildId: build.id })).map((r) => r.kind)).toEqual(['noise', 'ac']);
+    },
+  },
+  {
+    name: 'run ownership: an owner\'s noise records are stored only while it owns the run; after a take-over or release they are refused and change nothing',
+    async run(open) {
+      const { store, run: sweep, first, second, advanceMs } = await ownedRunSetting(open);
+      const run = await store.createRun(newNoiseRun(sweep.buildId));
+      await expect(store.insertNoiseRecord(run.id, noiseRecord(0), { asOwner: first.ownerId })).rejects.toThrow(RunTakenOverError);
+      await store.claimRun(run.id, first, 10_000);
+      await store.insertNoiseRecord(run.id, noiseRecord(0), { asOwner: first.ownerId });
+      advanceMs(11_000); // first's heartbeat is stale: second takes the run over
+      expect((await store.claimRun(run.id, second, 10_000)).claimed).toBe(true);
+      await store.insertNoiseRecord(run.id, noiseRecord(1), { asOwner: second.ownerId });
+      const late = store.insertNoiseRecord(run.id, noiseRecord(2), { asOwner: first.ownerId });
+      await expect(late).rejects.toThrow(RunTakenOverError);
+      await expect(late).rejects.toMatchObject({ nowOwnedBy: { pid: 200, host: 'host-b', label: 'rolloff serve' } });
+      await store.releaseRun(run.id, second.ownerId);
+      await expect(store.insertNoiseRecord(run.id, noiseRecord(2), { asOwner: second.ownerId })).rejects.toMatchObject({ nowOwnedBy: undefined });
+      expect((await store.loadNoiseRecords(run.id)).step).toEqual([0, 1]);
+      expect((await store.getRun(run.id)).pointCount).toBe(2);
+      expect(await store.nextStep(run.id)).toBe(2);
+      await expect(store.insertNoiseRecord(777, noiseRecord(0), { asOwner: first.ownerId })).rejects.toThrow(RecordNotFoundError);
+      await expect(store.insertNoiseRecord(run.id, noiseRecord(2), { asOwner: '' })).rejects.toThrow(/condition.asOwner/);
+      expect(await store.integrityProblems()).toEqual([]);
+    },
+  },
+  {
+    name: 'exports a noise run with its records, spectra bit for bit, and imports it into another store unchanged but for its ids',
+    async run(open) {
+      const source = await open();
+      const { design, build } = await seedRun(source);
+      const run = await source.createRun(newNoiseRun(build.id));
+      for (const step of [0, 1, 2]) await source.insertNoiseRecord(run.id, noiseRecord(step));
+      const exported = await source.exportRun(run.id);
+      expect(exported.points).toEqual([]);
+      expect(exported.noiseRecords?.step).toEqual([0, 1, 2]);
+      const target = await open();
+      const designId = await target.importDesign(design);
+      const buildId = await target.importBuild({ ...build, designId });
+      const [runId] = await target.importRuns([{ ...exported, run: { ...exported.run, buildId, request: { ...exported.run.request, buildId } } as StoredRun }]);
+      const copied = await target.exportRun(runId);
+      expect(copied.run).toMatchObject({ kind: 'noise', pointCount: 3, plan: noisePlan, uid: run.uid });
+      expect(copied.noiseRecords).toEqual(exported.noiseRecords);
+      expect(await target.nextStep(runId)).toBe(3);
+      expect(await target.integrityProblems()).toEqual([]);
     },
   },
   {

@@ -12,7 +12,7 @@
  */
 import { UserError } from '../../errors';
 import type { RolloffStore } from '../store-interface';
-import type { RunImport, RunTransfer } from '../types';
+import type { RunImport, RunTransfer, StoredRun } from '../types';
 
 export interface CopyOptions {
   /** Leave runs the target already holds (same uid) where they are and copy the others; default: refuse. */
@@ -114,7 +114,8 @@ export async function copyHistory(source: RolloffStore, target: RolloffStore, op
 
 /** The run with the target's build and schedule ids; the owner is not copied (nobody drives the copy). */
 function remapped(exported: RunTransfer, buildId: number, scheduleId: number | null): RunImport {
-  return { ...exported, run: { ...exported.run, buildId, scheduleId, request: { ...exported.run.request, buildId } } };
+  // The spread keeps the run's kind with its request, which the type cannot follow through it.
+  return { ...exported, run: { ...exported.run, buildId, scheduleId, request: { ...exported.run.request, buildId } } as StoredRun };
 }
 
 async function copyDesigns(source: RolloffStore, target: RolloffStore) {

@@ -41,6 +41,8 @@ export class DelegatingStore implements RolloffStore {
   insertPointsOfRuns: Inner['insertPointsOfRuns'] = (...a) => this.inner.insertPointsOfRuns(...a);
   loadPoints: Inner['loadPoints'] = (...a) => this.inner.loadPoints(...a);
   nextStep: Inner['nextStep'] = (...a) => this.inner.nextStep(...a);
+  insertNoiseRecord: Inner['insertNoiseRecord'] = (...a) => this.inner.insertNoiseRecord(...a);
+  loadNoiseRecords: Inner['loadNoiseRecords'] = (...a) => this.inner.loadNoiseRecords(...a);
   appendEvent: Inner['appendEvent'] = (...a) => this.inner.appendEvent(...a);
   listEvents: Inner['listEvents'] = (...a) => this.inner.listEvents(...a);
   saveCalibration: Inner['saveCalibration'] = (...a) => this.inner.saveCalibration(...a);

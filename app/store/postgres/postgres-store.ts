@@ -30,6 +30,8 @@ import {
   checkCalibration,
   checkDesignName,
   checkEventLevel,
+  checkNoiseRecord,
+  noiseRecordAt,
   checkPoint,
   checkRunFilter,
   checkRunStatus,
@@ -48,7 +50,7 @@ import {
   checkInstant,
   checkUids,
 } from '../record-checks';
-import { ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, storedPointFromRow, type Row, type RowMapping } from '../row-mapping';
+import { noiseRecordsFromRows, nullable, ownershipFromRow, pointColumnsFromRows, pointValues, rowMapping, storedPointFromRow, type Row, type RowMapping } from '../row-mapping';
 import type { RolloffStore } from '../store-interface';
 import type {
   BenchSettings,
@@ -59,6 +61,7 @@ import type {
   NewBuild,
   NewCalibration,
   NewDesign,
+  NewNoiseRecord,
   NewPoint,
   NewRun,
   NewSchedule,
@@ -68,6 +71,7 @@ import type {
   StoreChange,
   StoreChangeFeed,
   StoreOpenOptions,
+  StoredNoiseRecords,
   StoredRun,
   StoredRunSummary,
   OwnerCondition,
@@ -131,6 +135,8 @@ const OWNER_COLUMNS = 'owner_id, owner_pid, owner_host, owner_label, owner_since
  * "Advisory Lock Functions").
  */
 const BENCH_LOCK_CLASS = 0x726f6c6c;
+
+const NOISE_RECORD_COLUMNS = 'run_id, step, sample_rate_hz, segments, degrees_of_freedom, rms_v, mean_v, flags, measured_at, psd_v2_per_hz';
 
 const RUN_SUMMARY_COLUMNS = `r.id, r.uid, r.build_id, b.label AS build_label, d.name AS design_name, r.kind, r.status,
   r.started_at, r.ended_at, r.point_count, r.planned_count, r.simulated, r.bench_name,
@@ -630,7 +636,7 @@ export class PostgresStore implements RolloffStore {
       [runId],
     );
     const points: StoredPoint[] = rows.map(storedPointFromRow);
-    return { run, points, events: await this.listEvents(runId) };
+    return { run, points, ...(run.kind === 'noise' ? { noiseRecords: await this.loadNoiseRecords(runId) } : {}), events: await this.listEvents(runId) };
   }
 
   async importDesign(design: DesignImport): Promise<number> {
@@ -671,7 +677,7 @@ export class PostgresStore implements RolloffStore {
     checkRunImports(runs);
     return this.transaction(async (client) => {
       const ids: number[] = [];
-      for (const { run, points, events } of runs) {
+      for (const { run, points, noiseRecords, events } of runs) {
         const timeOrNull = (text: string | null) => (text === null ? null : instant(text));
         let id: number;
         try {
@@ -685,7 +691,7 @@ export class PostgresStore implements RolloffStore {
               timeOrNull(run.startedAt), timeOrNull(run.endedAt), requireText(run.softwareVersion, 'run.softwareVersion'), toJson(run.bench ?? [], 'run.bench'),
               run.operator, run.notes, run.simulated, run.scheduleId, checkRunBenchName(run.benchName),
               run.figures === null ? null : toJson(run.figures, 'run.figures'), run.verdict === null ? null : toJson(run.verdict, 'run.verdict'),
-              toJson(run.plan, 'run.plan'), points.length],
+              toJson(run.plan, 'run.plan'), points.length + (noiseRecords?.step.length ?? 0)],
             client,
           ));
         } catch (error) {
@@ -694,6 +700,10 @@ export class PostgresStore implements RolloffStore {
         }
         for (let start = 0; start < points.length; start += POINTS_PER_STATEMENT) {
           await this.insertPointArrays(client, id, points.slice(start, start + POINTS_PER_STATEMENT));
+        }
+        for (let i = 0; i < (noiseRecords?.step.length ?? 0); i++) {
+          const record = noiseRecordAt(noiseRecords!, i);
+          await this.query(`INSERT INTO noise_records (${NOISE_RECORD_COLUMNS}) VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10)`, [id, ...this.noiseRecordValues(record, checkNoiseRecord(record, 'noiseRecord'))], client);
         }
         for (const event of events) {
           await this.query('INSERT INTO run_events (run_id, at, level, message) VALUES ($1, $2, $3, $4)', [id, event.at, checkEventLevel(event.level), event.message], client);
@@ -799,7 +809,7 @@ export class PostgresStore implements RolloffStore {
     return pointValues(point, instant(point.measuredAt ?? this.now()));
   }
 
-  private pointFailure(error: unknown, runId: number, points: readonly NewPoint[]): unknown {
+  private pointFailure(error: unknown, runId: number, points: readonly { step: number }[]): unknown {
     const state = sqlState(error);
     if (state === FOREIGN_KEY_VIOLATION) return new RecordNotFoundError('run', runId);
     if (state === UNIQUE_VIOLATION) {
@@ -830,11 +840,63 @@ export class PostgresStore implements RolloffStore {
   async nextStep(runId: number): Promise<number> {
     requireId(runId, 'runId');
     const { rows } = await this.query<{ exists: boolean; next: number }>(
-      `SELECT EXISTS (SELECT 1 FROM runs WHERE id = $1) AS exists, COALESCE((SELECT MAX(step) FROM points WHERE run_id = $1), -1) + 1 AS next`,
+      `SELECT EXISTS (SELECT 1 FROM runs WHERE id = $1) AS exists,
+         GREATEST(COALESCE((SELECT MAX(step) FROM points WHERE run_id = $1), -1), COALESCE((SELECT MAX(step) FROM noise_records WHERE run_id = $1), -1)) + 1 AS next`,
       [runId],
     );
     if (!rows[0].exists) throw new RecordNotFoundError('run', runId);
     return rows[0].next;
+  }
+
+  // ── noise records ──────────────────────────────────────────────────────
+
+  /** The values of a noise_records row after run_id, in NOISE_RECORD_COLUMNS order. */
+  private noiseRecordValues(record: NewNoiseRecord, psd: Uint8Array | null): unknown[] {
+    return [
+      record.step, nullable(record.sampleRateHz), record.segments, record.degreesOfFreedom, nullable(record.rmsV), nullable(record.meanV),
+      record.flags, instant(record.measuredAt ?? this.now()), psd === null ? null : Buffer.from(psd.buffer, psd.byteOffset, psd.byteLength),
+    ];
+  }
+
+  async insertNoiseRecord(runId: number, record: NewNoiseRecord, condition?: OwnerCondition): Promise<void> {
+    this.requireWritable();
+    requireId(runId, 'runId');
+    const psd = checkNoiseRecord(record, 'noiseRecord');
+    const asOwner = checkOwnerCondition(condition);
+    let inserted: number | null;
+    try {
+      // One statement, one transaction (as insertPoint): the conditional count first, then the record and the notification.
+      ({ rowCount: inserted } = await this.query(
+        {
+          name: 'rolloff-insert-noise-record',
+          text: `WITH counted AS (UPDATE runs SET point_count = point_count + 1 WHERE id = $1 AND ($12::text IS NULL OR owner_id = $12) RETURNING id),
+                 record AS (INSERT INTO noise_records (${NOISE_RECORD_COLUMNS})
+                   SELECT id, $2::integer, $3::float8, $4::integer, $5::float8, $6::float8, $7::float8, $8::integer, $9::timestamptz, $10::bytea
+                   FROM counted RETURNING run_id)
+                 SELECT pg_notify('${CHANGE_CHANNEL}', $11) FROM record`,
+        },
+        [runId, ...this.noiseRecordValues(record, psd), changePayload(this.origin, { kind: 'points', runId }), asOwner],
+      ));
+    } catch (error) {
+      throw this.pointFailure(error, runId, [record]);
+    }
+    if (inserted === 0) await this.refuseWrite(runId, asOwner);
+  }
+
+  async loadNoiseRecords(runId: number): Promise<StoredNoiseRecords> {
+    requireId(runId, 'runId');
+    const { rows } = await this.query<unknown[] & QueryResultRow>(
+      {
+        name: 'rolloff-load-noise-records',
+        text: `SELECT step, sample_rate_hz, segments, degrees_of_freedom, rms_v, mean_v, flags,
+                 (extract(epoch FROM measured_at) * 1000)::float8 AS measured_at_ms, psd_v2_per_hz
+               FROM noise_records WHERE run_id = $1 ORDER BY step`,
+        rowMode: 'array',
+      } as QueryConfig,
+      [runId],
+    );
+    if (rows.length === 0 && (await this.query('SELECT 1 FROM runs WHERE id = $1', [runId])).rowCount === 0) throw new RecordNotFoundError('run', runId);
+    return noiseRecordsFromRows(rows as unknown[][]);
   }
 
   // ── events ─────────────────────────────────────────────────────────────
@@ -934,9 +996,10 @@ export class PostgresStore implements RolloffStore {
    */
   async integrityProblems(): Promise<string[]> {
     const { rows } = await this.query<{ problem: string }>(
-      `SELECT format('run %s: point count %s but %s points stored', r.id, r.point_count, coalesce(p.n, 0)) AS problem
+      `SELECT format('run %s: point count %s but %s points and noise records stored', r.id, r.point_count, coalesce(p.n, 0) + coalesce(nr.n, 0)) AS problem
          FROM runs r LEFT JOIN (SELECT run_id, count(*) AS n FROM points GROUP BY run_id) p ON p.run_id = r.id
-        WHERE r.point_count <> coalesce(p.n, 0)
+                     LEFT JOIN (SELECT run_id, count(*) AS n FROM noise_records GROUP BY run_id) nr ON nr.run_id = r.id
+        WHERE r.point_count <> coalesce(p.n, 0) + coalesce(nr.n, 0)
        UNION ALL
        SELECT format('run %s: no plan stored', r.id) FROM runs r WHERE NOT EXISTS (SELECT 1 FROM run_plans p WHERE p.run_id = r.id)`,
     );

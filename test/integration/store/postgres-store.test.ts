@@ -5,15 +5,15 @@
  * unreachable server, and durable commits on a server whose default is not.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { existsSync, mkdtempSync, rmSync } from 'node:fs';
+import { copyFileSync, existsSync, mkdirSync, mkdtempSync, readdirSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { openStore, StoreDamagedError, StoreUnavailableError, StoreVersionError, type RolloffStore } from '../../../app/store';
+import { migrationsFolder, openStore, StoreDamagedError, StoreUnavailableError, StoreVersionError, type RolloffStore } from '../../../app/store';
 import { PostgresStore } from '../../../app/store/postgres/postgres-store';
 import { redactDatabaseUrl } from '../../../app/store/postgres/connection';
 import { loadPostgresMigrations } from '../../../app/store/postgres/migrations';
 import { freeLoopbackPort, postgresAvailable, startPostgresCluster, type PostgresCluster } from '../../helpers/postgres-cluster';
-import { point, seedRun } from '../../store-conformance/fixtures';
+import { newNoiseRun, noiseRecord, point, seedRun } from '../../store-conformance/fixtures';
 
 const hasPostgres = postgresAvailable();
 /** Every PostgreSQL schema version this Rolloff knows: 1, 2, … */
@@ -130,6 +130,32 @@ describe.skipIf(!hasPostgres)('PostgreSQL store', () => {
     const database = url.slice(url.lastIndexOf('/') + 1);
     expect(cluster.sql('SELECT version FROM schema_migrations ORDER BY version', database).trim().split('\n').map(Number)).toEqual(ALL_VERSIONS);
     await Promise.all(stores.map((s) => s.close()));
+  });
+
+  it('upgrades a lab database of schema 4 for noise runs (0005), keeping its runs and points', async () => {
+    const url = freshUrl();
+    const folder = mkdtempSync(join(tmpdir(), 'rolloff-pg-before-noise-'));
+    try {
+      const migrationsDir = join(folder, 'postgres');
+      mkdirSync(migrationsDir);
+      for (const name of readdirSync(migrationsFolder('postgres')).filter((file) => file.endsWith('.sql') && Number(file.slice(0, 4)) < 5)) copyFileSync(join(migrationsFolder('postgres'), name), join(migrationsDir, name));
+      const old = await PostgresStore.open(url, { migrationsDir });
+      expect(await old.schemaVersion()).toBe(4);
+      const { run, build } = await seedRun(old);
+      await old.insertPoints(run.id, [point(0), point(1)]);
+      await expect(old.createRun(newNoiseRun(build.id))).rejects.toThrow(/runs_kind_check/);
+      await old.close();
+      const upgraded = await PostgresStore.open(url);
+      expect(upgraded.appliedMigrations).toEqual([5]);
+      expect((await upgraded.loadPoints(run.id)).step).toEqual([0, 1]);
+      const noise = await upgraded.createRun(newNoiseRun(build.id));
+      await upgraded.insertNoiseRecord(noise.id, noiseRecord(0));
+      expect((await upgraded.listRuns()).map((r) => [r.kind, r.pointCount])).toEqual([['noise', 1], ['ac', 2]]);
+      expect(await upgraded.integrityProblems()).toEqual([]);
+      await upgraded.close();
+    } finally {
+      rmSync(folder, { recursive: true, force: true });
+    }
   });
 
   it('refuses a database of a newer schema, naming its version, and changes nothing', async () => {

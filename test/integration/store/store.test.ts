@@ -12,7 +12,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import Database from 'better-sqlite3';
 import { SOFTWARE_VERSION } from '../../../app/contract/version';
-import { point, seedRun } from '../../store-conformance/fixtures';
+import { newNoiseRun, noiseRecord, point, seedRun } from '../../store-conformance/fixtures';
 import {
   SqliteStore,
   StoreDamagedError,
@@ -21,6 +21,7 @@ import {
   loadMigrations,
   migrationsFolder,
 } from '../../../app/store';
+import { applyMigrations } from '../../../app/store/migrations';
 
 const SHIPPED_MIGRATIONS = migrationsFolder('sqlite');
 
@@ -87,6 +88,54 @@ describe('opening and migrations', () => {
     expect(upgraded.appliedMigrations).toEqual([next]);
     expect(await upgraded.schemaVersion()).toBe(next);
     expect((await upgraded.getRun(run.id)).notes).toBe('first light');
+  });
+
+  it('rebuilds runs for noise runs (0006) without losing a run, point, plan, event, stable id or owner, foreign keys on again after', async () => {
+    const migrationsDir = join(folder, 'before-noise');
+    mkdirSync(migrationsDir);
+    for (const name of readdirSync(SHIPPED_MIGRATIONS).filter((file) => file.endsWith('.sql') && Number(file.slice(0, 4)) < 6)) copyFileSync(join(SHIPPED_MIGRATIONS, name), join(migrationsDir, name));
+    // A file as the Rolloff before noise runs left it (schema 5), written with its own SQL: today's store cannot run on schema 5.
+    const path = join(folder, 'noise-upgrade.sqlite');
+    const raw = new Database(path);
+    raw.pragma('foreign_keys = ON');
+    applyMigrations(raw, loadMigrations(migrationsDir), 'before noise runs', () => '2026-01-01T00:00:00.000Z');
+    expect(raw.pragma('user_version', { simple: true })).toBe(5);
+    raw.exec(`INSERT INTO designs (id, name, design_json, created_at) VALUES (1, 'demo (invented)', '{"parts":[]}', '2026-01-01T00:00:00.000Z');
+      INSERT INTO builds (id, design_id, label, created_at) VALUES (1, 1, 'board 1', '2026-01-01T00:00:00.000Z');
+      INSERT INTO runs (id, build_id, kind, status, planned_count, point_count, created_at, started_at, software_version, request_json, bench_name,
+        owner_id, owner_pid, owner_host, owner_label, owner_since_ms, owner_heartbeat_ms, uid)
+        VALUES (7, 1, 'ac', 'running', 41, 3, '2026-01-01T00:00:00.000Z', '2026-01-01T00:00:01.000Z', '0.0.9', '{"kind":"ac","from":10}', 'bench 3',
+        'host:1:a', 1, 'host', 'rolloff sweep', 1767225600000, 1767225601000, '5b3b1c1e-2f1a-4c3d-9e8f-0a1b2c3d4e5f');
+      INSERT INTO run_plans (run_id, plan_json) VALUES (7, '{"steps":[],"estimatedDurationS":1,"warnings":[]}');
+      INSERT INTO points (run_id, step, stimulus, amplitude_vpp, gain_db, flags, measured_at_ms) VALUES (7, 0, 10, 1, 20, 0, 1767225601000), (7, 1, 12.6, 1, 19.9, 0, 1767225602000), (7, 2, 15.8, 1, 19.8, 1, 1767225603000);
+      INSERT INTO run_events (run_id, at, level, message) VALUES (7, '2026-01-01T00:00:01.000Z', 'info', 'sweep started');`);
+    // Without 0005 a noise run has no place: the kind is refused by the table itself.
+    expect(() => raw.exec(`INSERT INTO runs (build_id, kind, created_at, software_version, request_json) VALUES (1, 'noise', 'x', 'x', '{}')`)).toThrow(/CHECK constraint/);
+    raw.close();
+    const run = { id: 7 };
+    const build = { id: 1 };
+
+    const upgraded = openStore('noise-upgrade.sqlite');
+    expect(upgraded.appliedMigrations).toEqual([6]);
+    expect(await upgraded.getRun(run.id)).toMatchObject({ id: 7, kind: 'ac', status: 'running', pointCount: 3, plannedCount: 41, benchName: 'bench 3', startedAt: '2026-01-01T00:00:01.000Z', request: { kind: 'ac', from: 10 }, uid: '5b3b1c1e-2f1a-4c3d-9e8f-0a1b2c3d4e5f' });
+    const points = await upgraded.loadPoints(run.id);
+    expect(points.step).toEqual([0, 1, 2]);
+    expect(points.gainDb).toEqual([20, 19.9, 19.8]);
+    expect(points.flags).toEqual([0, 0, 1]);
+    expect((await upgraded.listEvents(run.id)).map((e) => e.message)).toEqual(['sweep started']);
+    expect(await upgraded.getRunOwnership(run.id)).toMatchObject({ ownerId: 'host:1:a', pid: 1, since: '2026-01-01T00:00:00.000Z', heartbeatAt: '2026-01-01T00:00:01.000Z' });
+    const noise = await upgraded.createRun(newNoiseRun(build.id));
+    expect(noise.id).toBeGreaterThan(run.id);
+    await upgraded.insertNoiseRecord(noise.id, noiseRecord(0));
+    // The rebuilt table still refers and is referred to: a point of no run is refused, and the check finds nothing broken.
+    await expect(upgraded.insertPoint(999, point(0))).rejects.toThrow(/run 999/);
+    const db = (upgraded as unknown as { db: Database.Database }).db;
+    expect(db.pragma('foreign_keys', { simple: true })).toBe(1);
+    expect(db.pragma('foreign_key_check')).toEqual([]);
+    expect(db.prepare("SELECT name FROM sqlite_master WHERE type = 'index' AND tbl_name = 'runs' AND name LIKE 'runs_by_%' ORDER BY name").all()).toEqual([
+      { name: 'runs_by_bench' }, { name: 'runs_by_build' }, { name: 'runs_by_status' }, { name: 'runs_by_uid' },
+    ]);
+    expect(await upgraded.integrityProblems()).toEqual([]);
   });
 
   it('rolls back a failing migration completely and leaves the version where it was', async () => {
