@@ -1,8 +1,8 @@
 /**
  * The outbox: a small SQLite file on the bench's own disk holding, in the
  * order they were made, the writes to a server store that could not be sent
- * when they were made (points, events, status changes, results, the release
- * of a run), and since when each run's bench has been cut off. Each entry is
+ * when they were made (points, a noise run's records, events, status changes,
+ * results, the release of a run), and since when each run's bench has been cut off. Each entry is
  * committed with synchronous=FULL before the sweep goes on, so a point kept
  * here is as safe as one on the server; an entry is deleted only after the
  * server has taken it.
@@ -16,11 +16,15 @@ import { dirname } from 'node:path';
 import Database from 'better-sqlite3';
 import type { RunFigures, RunStatus, Verdict } from '../../contract/contract';
 import { StoreDamagedError, StoreUnavailableError } from '../errors';
-import type { NewPoint } from '../types';
+import type { NewNoiseRecord, NewPoint } from '../types';
+
+/** A noise record as kept: its spectrum as plain numbers (JSON keeps a double exactly), its time fixed when it was made. */
+export type KeptNoiseRecord = Omit<NewNoiseRecord, 'psdV2PerHz' | 'measuredAt'> & { measuredAt: string; psdV2PerHz?: number[] };
 
 /** A write waiting for the server, as the store interface would have made it. */
 export type OutboxWrite =
   | { kind: 'point'; point: NewPoint & { measuredAt: string } }
+  | { kind: 'noiseRecord'; record: KeptNoiseRecord }
   /** asOwner (events and status): the owner it was written as (OwnerCondition); sent only while that owner still owns the run. */
   | { kind: 'event'; level: 'info' | 'warning' | 'error'; message: string; at: string; asOwner?: string }
   | { kind: 'status'; status: RunStatus; at: string; asOwner?: string }
@@ -71,6 +75,12 @@ function writeFromJson(text: string): OutboxWrite {
     const point = write.point as unknown as Record<string, unknown>;
     for (const name of ['inputReading', 'outputReading', 'gainDb', 'gainUncertaintyDb', 'phaseDeg', 'phaseUncertaintyDeg', 'outputV']) {
       if (point[name] === null) point[name] = Number.NaN;
+    }
+  }
+  if (write.kind === 'noiseRecord') {
+    const record = write.record as unknown as Record<string, unknown>;
+    for (const name of ['sampleRateHz', 'rmsV', 'meanV']) {
+      if (record[name] === null) record[name] = Number.NaN;
     }
   }
   return write;

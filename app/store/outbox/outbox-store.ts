@@ -3,13 +3,13 @@
  * behind the same RolloffStore interface, so a bench loses no point when the
  * network drops:
  *
- * - Writes of the runs a sweep drives (points, events, status, results, the
- *   release) go straight to the server. When the server cannot be reached, the
+ * - Writes of the runs a sweep drives (points, a noise run's records, events,
+ *   status, results, the release) go straight to the server. When the server cannot be reached, the
  *   write is kept in the outbox file (outbox-file.ts, durable) and the call
  *   succeeds: the sweep goes on. While anything of this process waits in the
  *   outbox, later writes queue behind it, so they reach the server in the order
  *   they were made.
- * - The sweep's own reads of its run (next step, points, the run) are answered
+ * - The sweep's own reads of its run (next step, points or noise records, the run) are answered
  *   from a mirror of the run (run-mirror.ts) while the server is away.
  * - A sender retries every retryIntervalMs; once the server answers, the kept
  *   writes go in order, each deleted from the outbox only after the server took
@@ -35,7 +35,7 @@ import { DuplicateStepError, RunTakenOverError, StoreUnreachableError } from '..
 import type { RolloffStore } from '../store-interface';
 import type { BenchClaimResult, OwnerCondition, RunClaimResult, RunOwnership, StoredRun } from '../types';
 import { DelegatingStore } from './delegating-store';
-import { OutboxFile, type OutboxEntry, type OutboxWrite, type OutboxWriter } from './outbox-file';
+import { OutboxFile, type KeptNoiseRecord, type OutboxEntry, type OutboxWrite, type OutboxWriter } from './outbox-file';
 import { RunMirror } from './run-mirror';
 
 export interface OutboxOptions {
@@ -192,6 +192,14 @@ export class OutboxStore extends DelegatingStore {
     this.mirrorOf(runId)?.addPoint(kept);
   };
 
+  /** A noise record is kept and sent as a point is: later, where its step is still free. */
+  override insertNoiseRecord: Inner['insertNoiseRecord'] = async (runId, record, condition) => {
+    const { psdV2PerHz, ...rest } = record;
+    const kept: KeptNoiseRecord = { ...rest, measuredAt: record.measuredAt ?? this.now(), ...(psdV2PerHz === undefined ? {} : { psdV2PerHz: Array.from(psdV2PerHz) }) };
+    await this.write(runId, { kind: 'noiseRecord', record: kept }, () => this.inner.insertNoiseRecord(runId, kept, condition), () => undefined);
+    this.mirrorOf(runId)?.addNoiseRecord(kept);
+  };
+
   /** An event kept while cut off keeps its owner condition, as a status does. */
   override appendEvent: Inner['appendEvent'] = async (runId, level, message, at, condition) => {
     const when = at ?? this.now();
@@ -259,7 +267,7 @@ export class OutboxStore extends DelegatingStore {
     // What a gone process kept goes first, so the claimant continues after it.
     if (this.outbox.pendingOfRun(runId) > 0 || this.outbox.offlineSince(runId) !== undefined) await this.flush();
     const result = await claim();
-    if (result.claimed) this.mirrors.set(runId, new RunMirror(await this.inner.getRun(runId), await this.inner.loadPoints(runId), await this.inner.listEvents(runId), claimantOwnerId));
+    if (result.claimed) this.mirrors.set(runId, await this.mirrorFromServer(runId, claimantOwnerId));
     return result;
   }
 
@@ -269,6 +277,12 @@ export class OutboxStore extends DelegatingStore {
     if (result.created) this.mirrors.set(result.run.id, new RunMirror(result.run, await this.inner.loadPoints(result.run.id), [], claimant.ownerId));
     return result;
   };
+
+  private async mirrorFromServer(runId: number, claimantOwnerId: string): Promise<RunMirror> {
+    const run = await this.inner.getRun(runId);
+    const noiseRecords = run.kind === 'noise' ? await this.inner.loadNoiseRecords(runId) : undefined;
+    return new RunMirror(run, await this.inner.loadPoints(runId), await this.inner.listEvents(runId), claimantOwnerId, noiseRecords);
+  }
 
   // ── reads: the mirror while the server is away or behind ──────────────
 
@@ -286,6 +300,7 @@ export class OutboxStore extends DelegatingStore {
 
   override getRun: Inner['getRun'] = (runId) => this.read(runId, () => this.inner.getRun(runId), (mirror) => mirror.storedRun());
   override loadPoints: Inner['loadPoints'] = (runId) => this.read(runId, () => this.inner.loadPoints(runId), (mirror) => mirror.pointColumns());
+  override loadNoiseRecords: Inner['loadNoiseRecords'] = (runId) => this.read(runId, () => this.inner.loadNoiseRecords(runId), (mirror) => mirror.noiseRecordColumns());
   override nextStep: Inner['nextStep'] = (runId) => this.read(runId, () => this.inner.nextStep(runId), (mirror) => mirror.nextStep());
   override listEvents: Inner['listEvents'] = (runId) => this.read(runId, () => this.inner.listEvents(runId), (mirror) => mirror.eventList());
 
@@ -375,6 +390,13 @@ export class OutboxStore extends DelegatingStore {
         } catch (error) {
           // Stored already: its commit's reply was lost, or whoever took the run over measured the step. Once either way.
           if (!(error instanceof DuplicateStepError)) throw error;
+        }
+        return;
+      case 'noiseRecord':
+        try {
+          await this.inner.insertNoiseRecord(runId, write.record);
+        } catch (error) {
+          if (!(error instanceof DuplicateStepError)) throw error; // as a point: stored once either way
         }
         return;
       case 'event':

@@ -5,15 +5,28 @@
  * the bench claimed it, with every write of the bench since applied.
  */
 import type { PointColumns, RunEvent, RunFigures, RunStatus, Verdict } from '../../contract/contract';
-import { FINISHED_STATUSES } from '../record-checks';
-import type { NewPoint, StoredRun } from '../types';
+import { FINISHED_STATUSES, noiseRecordAt } from '../record-checks';
+import type { NewNoiseRecord, NewPoint, StoredNoiseRecords, StoredRun } from '../types';
 
 type MirroredPoint = { [K in keyof PointColumns]: PointColumns[K][number] };
+type MirroredNoiseRecord = NewNoiseRecord & { measuredAt: string };
 
 export class RunMirror {
   private readonly points = new Map<number, MirroredPoint>();
+  /** A noise run's records (its steps), kept as the points are. */
+  private readonly noiseRecords = new Map<number, MirroredNoiseRecord>();
 
-  constructor(private run: StoredRun, stored: PointColumns, private readonly events: RunEvent[], readonly claimantOwnerId: string) {
+  constructor(
+    private run: StoredRun,
+    stored: PointColumns,
+    private readonly events: RunEvent[],
+    readonly claimantOwnerId: string,
+    storedNoiseRecords?: StoredNoiseRecords,
+  ) {
+    for (let i = 0; i < (storedNoiseRecords?.step.length ?? 0); i++) {
+      const record = noiseRecordAt(storedNoiseRecords!, i);
+      this.noiseRecords.set(record.step, { ...record, measuredAt: storedNoiseRecords!.measuredAt[i] }); // noiseRecordAt's measuredAt, typed as given
+    }
     for (let i = 0; i < stored.step.length; i++) {
       this.points.set(stored.step[i], {
         step: stored.step[i], stimulus: stored.stimulus[i], amplitudeVpp: stored.amplitudeVpp[i], gainDb: stored.gainDb[i],
@@ -25,7 +38,7 @@ export class RunMirror {
 
   /** The run as the server last told it, with the bench's later writes applied. */
   storedRun(): StoredRun {
-    return structuredClone({ ...this.run, pointCount: this.points.size });
+    return structuredClone({ ...this.run, pointCount: this.points.size + this.noiseRecords.size });
   }
 
   /** A fresher copy from the server. */
@@ -40,6 +53,11 @@ export class RunMirror {
       phaseDeg: point.phaseDeg, phaseUncertaintyDeg: point.phaseUncertaintyDeg, outputV: point.outputV, flags: point.flags,
       measuredAt: new Date(Date.parse(point.measuredAt)).toISOString(),
     });
+  }
+
+  addNoiseRecord(record: MirroredNoiseRecord): void {
+    if (this.noiseRecords.has(record.step)) return;
+    this.noiseRecords.set(record.step, { ...record, measuredAt: new Date(Date.parse(record.measuredAt)).toISOString() });
   }
 
   /** The same stamping rules as the stores (RunStore.updateRunStatus). */
@@ -69,7 +87,7 @@ export class RunMirror {
 
   nextStep(): number {
     let next = 0;
-    for (const step of this.points.keys()) next = Math.max(next, step + 1);
+    for (const step of [...this.points.keys(), ...this.noiseRecords.keys()]) next = Math.max(next, step + 1);
     return next;
   }
 
@@ -80,6 +98,16 @@ export class RunMirror {
       step: column('step'), stimulus: column('stimulus'), amplitudeVpp: column('amplitudeVpp'), gainDb: column('gainDb'),
       gainUncertaintyDb: column('gainUncertaintyDb'), phaseDeg: column('phaseDeg'), phaseUncertaintyDeg: column('phaseUncertaintyDeg'),
       outputV: column('outputV'), flags: column('flags'), measuredAt: column('measuredAt'),
+    };
+  }
+
+  noiseRecordColumns(): StoredNoiseRecords {
+    const ordered = [...this.noiseRecords.values()].sort((a, b) => a.step - b.step);
+    return {
+      step: ordered.map((r) => r.step), sampleRateHz: ordered.map((r) => r.sampleRateHz), segments: ordered.map((r) => r.segments),
+      degreesOfFreedom: ordered.map((r) => r.degreesOfFreedom), rmsV: ordered.map((r) => r.rmsV), meanV: ordered.map((r) => r.meanV),
+      flags: ordered.map((r) => r.flags), measuredAt: ordered.map((r) => r.measuredAt),
+      psdV2PerHz: ordered.map((r) => (r.psdV2PerHz === undefined ? null : Float64Array.from(r.psdV2PerHz))),
     };
   }
 }

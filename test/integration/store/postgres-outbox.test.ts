@@ -15,7 +15,7 @@ import Database from 'better-sqlite3';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import { PostgresStore } from '../../../app/store/postgres/postgres-store';
 import { OutboxStore } from '../../../app/store/outbox/outbox-store';
-import { newRun, point, seedRun } from '../../store-conformance/fixtures';
+import { newNoiseRun, newRun, noiseRecord, point, seedRun } from '../../store-conformance/fixtures';
 import { exportFromDatabase } from '../../../app/cli/commands/export';
 import { postgresAvailable, startPostgresCluster, type PostgresCluster } from '../../helpers/postgres-cluster';
 import { tempFolder } from '../sweep/helpers';
@@ -166,6 +166,44 @@ describe.skipIf(!postgresAvailable())('PostgreSQL stopped mid-sweep and started 
     } finally {
       await server.close();
       await asking.close();
+    }
+  }, 120_000);
+
+  it('a noise run\'s records go through the outbox as points do: kept while the server is away, read back from the mirror, sent with every spectrum bit for bit', async () => {
+    const url = cluster.createDatabase('noise_records').replace(`${cluster.role}@`, `${cluster.role}:${encodeURIComponent(cluster.password)}@`);
+    const store = OutboxStore.open(await PostgresStore.open(url), { path: join(folder.path, 'noise-outbox.sqlite'), log: () => {}, retryIntervalMs: 600_000, flushOnCloseMs: 10_000 });
+    const { build } = await seedRun(store);
+    const run = await store.createRun(newNoiseRun(build.id));
+    const me = { ownerId: 'bench-noise', pid: process.pid, host: 'this host', label: 'rolloff noise' };
+    expect((await store.claimRun(run.id, me, 10_000)).claimed).toBe(true);
+    await store.insertNoiseRecord(run.id, noiseRecord(0), { asOwner: me.ownerId });
+    cluster.stop();
+    await store.insertNoiseRecord(run.id, noiseRecord(1), { asOwner: me.ownerId }); // kept
+    // A meter reading: no spectrum, NaN sample rate and mean (the outbox file keeps them as null).
+    const meterReading = noiseRecord(2, { psdV2PerHz: undefined, sampleRateHz: Number.NaN, segments: 0, degreesOfFreedom: 0, meanV: Number.NaN });
+    await store.insertNoiseRecord(run.id, meterReading, { asOwner: me.ownerId }); // kept
+    expect(store.pendingWrites()).toBe(2);
+    expect(await store.nextStep(run.id)).toBe(3); // the mirror's answer
+    const mirrored = await store.loadNoiseRecords(run.id);
+    expect(mirrored.step).toEqual([0, 1, 2]);
+    expect(Array.from(mirrored.psdV2PerHz[1]!)).toEqual(Array.from(noiseRecord(1).psdV2PerHz!));
+    expect((await store.getRun(run.id)).pointCount).toBe(3);
+    cluster.start();
+    await store.close(); // back: sends what it kept
+    const server = await PostgresStore.open(url);
+    try {
+      const records = await server.loadNoiseRecords(run.id);
+      expect(records.step).toEqual([0, 1, 2]);
+      for (const step of [0, 1]) expect(Array.from(records.psdV2PerHz[step]!)).toEqual(Array.from(noiseRecord(step).psdV2PerHz!));
+      expect(records.psdV2PerHz[2]).toBeNull();
+      expect(Number.isNaN(records.sampleRateHz[2])).toBe(true);
+      expect(Number.isNaN(records.meanV[2])).toBe(true);
+      expect(records.rmsV[2]).toBe(meterReading.rmsV);
+      expect((await server.getRun(run.id)).pointCount).toBe(3);
+      expect((await server.getRun(run.id)).offlinePeriods).toHaveLength(1);
+      expect(await server.integrityProblems()).toEqual([]);
+    } finally {
+      await server.close();
     }
   }, 120_000);
 
