@@ -94,6 +94,8 @@ export interface ScopeControl {
   /** Present only when the profile has recordPoints: samples per record (the sample interval is then record time ÷ points). */
   setRecordPoints?(points: number): Promise<void>;
   readonly divisions: number;
+  /** Vertical divisions on screen: the range either side of 0 V is volts per division × verticalDivisions ÷ 2. */
+  readonly verticalDivisions: number;
   /**
    * Captures one record of both channels at once (same time base, so the phase
    * between them is meaningful) and waits until it is complete.

@@ -11,6 +11,7 @@ import { BYTES_PER_SAMPLE, decodeAsciiWaveform, decodeBinaryWaveform, describeBy
 
 export class ProfileScope implements ScopeControl {
   readonly divisions: number;
+  readonly verticalDivisions: number;
   private readonly runner: OperationRunner;
   private secondsPerRecord = 0;
   /**
@@ -29,6 +30,7 @@ export class ProfileScope implements ScopeControl {
   ) {
     this.runner = new OperationRunner(session, profile);
     this.divisions = profile.scope.divisions;
+    this.verticalDivisions = profile.scope.verticalDivisions;
     // Optional measurements exist only when the profile has them, so callers can feature-test.
     if (this.runner.has('measureAmplitudeVpp')) {
       this.measureAmplitudeVpp = async (channel) => parseReading(await this.runner.queryText('measureAmplitudeVpp', { channel: checkChannel(channel) }), this.runner.describe('measureAmplitudeVpp', { channel }));

@@ -43,7 +43,7 @@ export interface SweepInstruments {
  * link time with physics: while step k's data are read back and stored, the
  * generator already moves to step k+1 and its settling runs.
  */
-export interface StepMeasurer {
+export interface StepMeasurer<R = StepResult> {
   /** Called once per (re)connection before the first step; forgets any applied stimulus. */
   prepare(instruments: SweepInstruments): Promise<void>;
   /** Sets the generator to the step's stimulus and notes when (settling counts from then). */
@@ -60,5 +60,5 @@ export interface StepMeasurer {
    * done, the instrument capturing): the runner stores the previous point
    * while the capture runs, so that commit never delays the start.
    */
-  acquire(instruments: SweepInstruments, setting: StepSetting, acquiring: () => void): Promise<(next?: StepSetting) => Promise<StepResult>>;
+  acquire(instruments: SweepInstruments, setting: StepSetting, acquiring: () => void): Promise<(next?: StepSetting) => Promise<R>>;
 }

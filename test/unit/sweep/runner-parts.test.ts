@@ -145,7 +145,7 @@ describe('cross-check with the scope\'s own measurement', () => {
       samplesV: Float64Array.from({ length: 400 }, (_, i) => (channel === 1 ? 0.5 : 1) * Math.cos((2 * Math.PI * i) / 40)),
     });
     return {
-      divisions: 10, setVerticalScale: async () => {}, setupChannels: async () => {}, setTimebase: async () => {}, acquire: async () => {},
+      divisions: 10, verticalDivisions: 10, setVerticalScale: async () => {}, setupChannels: async () => {}, setTimebase: async () => {}, acquire: async () => {},
       fetchWaveform: async (channel) => wave(channel),
       fetchBoth: async () => ({ 1: wave(1), 2: wave(2) }),
       measureAmplitudeVpp: async (channel) => ({ value: reportedVpp(channel), flag: 'ok' }),
@@ -195,6 +195,7 @@ describe('scope scales', () => {
     };
     const scope: ScopeControl = {
       divisions: 10,
+      verticalDivisions: 10,
       setVerticalScale: async (channel, voltsPerDiv) => { current = { ...current, [channel]: voltsPerDiv }; scales.push([current[1], current[2]]); },
       setupChannels: async (v) => { current = { ...v }; scales.push([v[1], v[2]]); },
       setTimebase: async () => {},
