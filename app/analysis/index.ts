@@ -9,3 +9,4 @@ export * from './analyze-ac';
 export * from './drift';
 export * from './usable-points';
 export * from './stability-estimate';
+export * from './noise-figures';

@@ -5,3 +5,4 @@ export * from './amplitude';
 export * from './plan';
 export * from './refine';
 export * from './defaults';
+export * from './noise-plan';
