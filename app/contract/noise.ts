@@ -21,7 +21,7 @@ import {
   withDefault,
   withHint,
 } from './field-schemas';
-import type { InstrumentInfo, RunEvent, RunFigures, RunSummary, SweepPlanSummary } from './contract';
+import type { InstrumentInfo, OfflinePeriod, RunEvent, RunFigures, RunSummary, SweepPlanSummary } from './contract';
 
 export const NOISE_MEASUREMENTS = ['scope', 'meter'] as const;
 export type NoiseMeasurement = (typeof NOISE_MEASUREMENTS)[number];
@@ -161,6 +161,8 @@ export interface NoiseFigures {
 
 export interface NoiseRunDetail extends RunSummary {
   kind: 'noise';
+  /** When the bench could not reach the store, as for sweeps (RunDetail). */
+  offlinePeriods: OfflinePeriod[];
   request: NoiseRequest;
   acquisition: NoiseAcquisition;
   bench: InstrumentInfo[];

@@ -2,7 +2,7 @@
  * A run with everything a view or a record needs: points, theory over the
  * run's frequencies with the tolerance band, figures, flags and verdict.
  */
-import type { RunOwnership, RunReadStore, StoredRun, StoredRunSummary } from '../store';
+import type { RunOwnership, RunReadStore, StoredRun, StoredRunSummary, StoredSweepRun } from '../store';
 import { FINISHED_RUN_STATUSES, type PointColumns, type RunDetail, type RunFigures, type RunOwner, type RunSummary, type TheoryColumns, type Verdict } from '../contract/contract';
 import { analyzeAcRun, usablePointIndexes } from '../analysis';
 import { analyzeStability, inputResistor, outputOpAmpIndex, stabilityWarnings, throughDesign, type OpAmpStability, type AcResponse, type Design, type DiodePart } from '../circuit';
@@ -10,6 +10,7 @@ import { fitLogStage, logFitFigures, FitError } from '../signal';
 import { ValidationError } from '../errors';
 import { estimateGbw, theoryAtPoints, theoryColumns, theoryFigures } from './theory';
 import { buildDesign } from './stored-design';
+import { RunKindError } from './run-kind-error';
 
 export interface RunAnalysis {
   figures: RunFigures;
@@ -22,7 +23,7 @@ export interface RunAnalysis {
 
 /** The circuit a run measured: the build, or for a through-calibration the through connection of it. */
 export function designForRun(store: RunReadStore, run: StoredRun): Promise<Design> {
-  return designForBuild(store, run.buildId, run.request.through);
+  return designForBuild(store, run.buildId, run.kind === 'noise' ? undefined : run.request.through);
 }
 
 /** The build's circuit (its actual part values), or its through connection when `through` is set. */
@@ -32,13 +33,13 @@ export async function designForBuild(store: RunReadStore, buildId: number, throu
   return through ? throughDesign(design) : design;
 }
 
-/** Figures, flags and verdict of a run from its stored points. */
-export async function analyzeRun(store: RunReadStore, run: StoredRun, points?: PointColumns): Promise<RunAnalysis> {
+/** Figures, flags and verdict of a sweep from its stored points (a noise run's are in noise-run-detail.ts). */
+export async function analyzeRun(store: RunReadStore, run: StoredSweepRun, points?: PointColumns): Promise<RunAnalysis> {
   return analyzeRunOf(await designForRun(store, run), run, points ?? (await store.loadPoints(run.id)));
 }
 
 /** `columns`, when given, supply the tolerance band at the points (see theoryAtPoints). */
-function analyzeRunOf(design: Design, run: StoredRun, points: PointColumns, columns?: TheoryColumns): RunAnalysis & { theoryResponse?: AcResponse } {
+function analyzeRunOf(design: Design, run: StoredSweepRun, points: PointColumns, columns?: TheoryColumns): RunAnalysis & { theoryResponse?: AcResponse } {
   if (run.kind === 'dc') return analyzeDcRun(design, points);
   const from = Math.min(run.request.from, ...points.stimulus);
   const to = Math.max(run.request.to, ...points.stimulus);
@@ -128,6 +129,7 @@ export function summaryOf(run: StoredRunSummary, judgeOwner: OwnerJudge): RunSum
 
 export async function runDetail(store: RunReadStore, runId: number, judgeOwner: OwnerJudge): Promise<RunDetail> {
   const run = await store.getRun(runId);
+  if (run.kind === 'noise') throw new RunKindError(runId, run.kind, 'getNoiseRun');
   const points = await store.loadPoints(runId);
   const design = await designForRun(store, run);
   // One Monte Carlo run for the whole detail: the theory columns cover every measured frequency.
@@ -143,6 +145,7 @@ export async function runDetail(store: RunReadStore, runId: number, judgeOwner: 
   points.flags = analysis.flags;
   return {
     ...summaryOf(run, judgeOwner),
+    kind: run.kind,
     offlinePeriods: run.offlinePeriods,
     request: run.request,
     bench: run.bench,

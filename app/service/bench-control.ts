@@ -13,7 +13,8 @@ import { type Design, throughDesign } from '../circuit';
 import type { PlanInstruments } from '../sweep/plan';
 import type { SweepInstruments } from '../sweep/runner/types';
 import { INSTRUMENT_ROLES as ROLES } from '../contract/contract';
-import type { BenchIdentity, BenchStatus, ConnectRequest, InstrumentInfo, InstrumentRole, ProfileCheckReport, ProfileCheckRequest, ProfileSummary, ServiceEvents, SweepRequest } from '../contract/contract';
+import { genericGeneratorSourceOhm } from './noise-run';
+import type { BenchIdentity, BenchStatus, ConnectRequest, InstrumentInfo, InstrumentRole, NoiseRequest, ProfileCheckReport, ProfileCheckRequest, ProfileSummary, ServiceEvents, SweepRequest } from '../contract/contract';
 import { buildDesign, designOf } from '../read-model/stored-design';
 import { benchDescription } from '../contract/bench-text';
 import { startSimulatedBenchFor, type SimulatedBenchHandle } from './simulated-bench';
@@ -138,7 +139,7 @@ export class BenchControl {
    * being swept (its actual part values), or for a through-calibration the same
    * build with the meter moved to the stage input (app/circuit/through.ts).
    */
-  async matchSimulatedBench(request: SweepRequest): Promise<void> {
+  async matchSimulatedBench(request: Pick<SweepRequest, 'buildId' | 'through'>): Promise<void> {
     if (!this.simulatedBenchHandle || ![...this.instruments.values()].every((i) => i.simulated)) return;
     const key = request.through ? `through:${request.buildId}` : `build:${request.buildId}`;
     if (this.simulatedBenchHandle.key === key) return;
@@ -188,12 +189,13 @@ export class BenchControl {
     if (this.limits.maxStimulusVpp !== before) await this.applyLimitToGenerator();
   }
 
-  requireInstrumentsFor(request: SweepRequest): void {
-    const needed: InstrumentRole[] = ['generator', request.kind === 'ac' && request.measurement === 'scope' ? 'scope' : 'meter'];
+  requireInstrumentsFor(request: SweepRequest | NoiseRequest): void {
+    // A noise run needs the generator too: it is held off, and checked off, through its control.
+    const needed: InstrumentRole[] = ['generator', request.kind !== 'dc' && request.measurement === 'scope' ? 'scope' : 'meter'];
     const missing = needed.filter((role) => !this.instruments.has(role));
     if (missing.length > 0) {
       throw new UserError(
-        `no ${missing.join(' or ')} connected for this ${request.kind === 'dc' ? 'DC transfer' : request.measurement} sweep`,
+        `no ${missing.join(' or ')} connected for this ${request.kind === 'dc' ? 'DC transfer sweep' : request.kind === 'noise' ? `${request.measurement} noise run` : `${request.measurement} sweep`}`,
         'Connect it on the Bench view (or give its address, e.g. --generator tcp://127.0.0.1:5025), or use the simulated bench (--simulated).',
       );
     }
@@ -218,6 +220,18 @@ export class BenchControl {
       scope: this.instruments.get('scope')?.opened.control as SweepInstruments['scope'],
       meter: this.instruments.get('meter')?.opened.control as SweepInstruments['meter'],
     };
+  }
+
+  /** The connected generator's source resistance (its profile's), or the generic profile's while none is connected (a planning preview). */
+  generatorSourceOhm(): number {
+    const generator = this.instruments.get('generator')?.opened.control as SweepInstruments['generator'] | undefined;
+    return generator ? generator.sourceImpedanceOhm : genericGeneratorSourceOhm();
+  }
+
+  /** Re-opens one role at its address, so its profile's setup applies again (the scope's record length after a noise run). */
+  async reopen(role: InstrumentRole): Promise<void> {
+    const wanted = this.wanted.get(role);
+    if (wanted) await this.connectRole(wanted.request, wanted.simulated);
   }
 
   /** Re-opens every connected role at its address (after a timeout or a pulled link). */

@@ -5,7 +5,8 @@
  */
 import { ValidationError } from '../errors';
 import type { RolloffStore, RunOwnership } from '../store';
-import type { Comparison, ExportedRecord, RecordFormat, RunDetail, RunFilter, RunSummary } from '../contract/contract';
+import type { Comparison, ExportedRecord, NoiseRunDetail, RecordFormat, RunDetail, RunFilter, RunSummary } from '../contract/contract';
+import { noiseRunDetail } from '../read-model/noise-run-detail';
 import { diodeOfRun, runDetail, summaryOf } from '../read-model/run-detail';
 import { compareDetails } from '../read-model/compare';
 import { exportRecordFor } from './export';
@@ -27,6 +28,11 @@ export class RunHistory {
 
   async getRun(runId: number): Promise<RunDetail> {
     return runDetail(this.store, runId, this.judgeOwner);
+  }
+
+  /** A noise run: its records and the measured density beside the computed one. */
+  async getNoiseRun(runId: number): Promise<NoiseRunDetail> {
+    return noiseRunDetail(this.store, runId, this.judgeOwner);
   }
 
   /** A run's summary, without the analysis getRun does. */

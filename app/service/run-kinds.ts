@@ -2,9 +2,11 @@
  * What differs between the kinds of run: the steps, the measurer and any extra
  * steps (refinement) a run is swept with, and what is stored once it ends. The
  * one place a new kind of run slots in: its case in sweepSetupFor (its launch)
- * and in finalizeRun (its end); run-launch.ts and runs.ts stay as they are.
+ * and in finalizeRun (its end); run-launch.ts and runs.ts stay as they are. A
+ * noise run is driven by a loop of its own (noise-run.ts, which run-launch.ts
+ * hands it to); its end is finalizeNoiseRun.
  */
-import type { RolloffStore, StoredRun } from '../store';
+import type { RolloffStore, StoredRun, StoredSweepRun } from '../store';
 import type { BenchClock } from '../bench';
 import type { RunEvent } from '../contract/contract';
 import { scopeMeasurer } from '../sweep/runner/measure-scope';
@@ -16,6 +18,7 @@ import { analyzeRun, designForRun } from '../read-model/run-detail';
 import type { BenchControl } from './bench-control';
 import type { SweepPlanning } from './sweep-planning';
 import { refinementSteps } from './refinement';
+import { finalizeNoiseRun } from './noise-run';
 import type { RolloffServiceOptions } from './service-options';
 
 /** Writes a line to a run's events and tells the listeners. */
@@ -34,7 +37,7 @@ export interface RunKindContext {
 export type SweepSetup = Pick<SweepRunOptions, 'plannedSteps' | 'measurer' | 'nextExtraSteps' | 'clock'>;
 
 /** The launch of a run, by its kind. Refuses (before anything is sent) when the bench has no maximum stimulus. */
-export async function sweepSetupFor(context: RunKindContext, run: StoredRun): Promise<SweepSetup> {
+export async function sweepSetupFor(context: RunKindContext, run: StoredSweepRun): Promise<SweepSetup> {
   const design = await designForRun(context.store, run);
   const request = run.request;
   const planInput = context.planning.planInputFor(request, context.bench.requireMaxStimulus(), design);
@@ -59,19 +62,22 @@ export async function finalizeRun(context: RunKindContext, runId: number): Promi
       case 'dc':
         await storeAnalysis(context, run);
         return;
+      case 'noise':
+        await finalizeNoiseRun(context.store, runId, (level, message) => context.logRunEvent(runId, level, message));
+        return;
     }
   } catch (error) {
     await context.logRunEvent(runId, 'error', `analysis failed: ${(error as Error).message}`);
   }
 }
 
-function plannedStepsOf(run: StoredRun): StepSetting[] {
+function plannedStepsOf(run: StoredSweepRun): StepSetting[] {
   const averages = run.request.averages;
   return run.plan.steps.map((s) => ({ step: s.index, stimulus: s.stimulus, amplitudeVpp: s.amplitudeVpp, settleS: s.settleS, integrateS: s.integrateS, averages, refinement: false }));
 }
 
 /** An AC run measures with the meter (through-calibrated where the bench has a calibration) or the scope. */
-async function acMeasurerFor(context: RunKindContext, run: StoredRun, clock: BenchClock, gainRatioAt: ((f: number) => number) | undefined): Promise<StepMeasurer> {
+async function acMeasurerFor(context: RunKindContext, run: StoredSweepRun, clock: BenchClock, gainRatioAt: ((f: number) => number) | undefined): Promise<StepMeasurer> {
   if (run.request.measurement === 'meter') {
     const calibration = run.request.through ? undefined : await context.store.latestCalibration(context.bench.instrumentPairKey());
     if (calibration) await context.logRunEvent(run.id, 'info', `through-calibration ${calibration.id} of ${calibration.createdAt} applied`);
@@ -82,7 +88,7 @@ async function acMeasurerFor(context: RunKindContext, run: StoredRun, clock: Ben
 }
 
 /** Figures and verdict stored with the run; a through-calibration run becomes the bench's calibration. */
-async function storeAnalysis(context: RunKindContext, run: StoredRun): Promise<void> {
+async function storeAnalysis(context: RunKindContext, run: StoredSweepRun): Promise<void> {
   const { store } = context;
   const points = await store.loadPoints(run.id);
   if (points.step.length === 0) return;

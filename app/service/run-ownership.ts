@@ -12,8 +12,9 @@
 import { hostname } from 'node:os';
 import { randomBytes } from 'node:crypto';
 import { UserError } from '../errors';
-import type { NewRun, RolloffStore, RunClaimant, RunOwnership, StoredRun } from '../store';
-import type { RunOwner } from '../contract/contract';
+import { RunTakenOverError, type NewRun, type RolloffStore, type RunClaimant, type RunOwnership, type StoredRun } from '../store';
+import type { RunOwner, RunStatus } from '../contract/contract';
+import { RunControl } from '../sweep/runner/control';
 import { ownerWithTimes } from '../contract/run-owner-text';
 
 /** How often an owner renews its heartbeat (ms): "every few seconds". */
@@ -132,4 +133,74 @@ export async function createOwnedRunOrRefuse(store: RolloffStore, input: NewRun 
   }
   if (!result.created) throw new BenchInUseError(input.benchName, result.benchHeldBy.runId, result.benchHeldBy.ownership);
   return result.run;
+}
+
+/** A run being driven by this process: how to pause or stop it, and its end. */
+export interface DrivenRun {
+  control: RunControl;
+  finished: Promise<RunStatus>;
+}
+
+/**
+ * Drives a run this process has claimed: `drive` runs it (sweep or noise run)
+ * under RunControl while the owner's heartbeat is renewed every `intervalMs`.
+ * A refused renewal (our heartbeat went stale and another process claimed the
+ * run) gives the run up at once (RunControl.claimLost: the RunTakenOverError
+ * names the new owner). When the run ends, `wrapUp.ended` runs, the run is
+ * released (a paused one only after `wrapUp.finish`: figures, instrument setup),
+ * and `wrapUp.finish` runs — unless it was taken over: then the run, its
+ * figures and the instruments are the new owner's, and nothing more is done.
+ */
+export function driveOwnedRun(
+  store: RolloffStore,
+  runId: number,
+  ownerId: string,
+  intervalMs: number,
+  drive: (control: RunControl) => Promise<RunStatus>,
+  wrapUp: { ended(): void; finish(): Promise<void> },
+): DrivenRun {
+  const control = new RunControl();
+  const timer = setInterval(() => {
+    store.renewRunHeartbeat(runId, ownerId).then(
+      async (stillOurs) => {
+        if (!stillOurs) control.claimLost(new RunTakenOverError(runId, await store.getRunOwnership(runId).catch(() => undefined)));
+      },
+      () => undefined,
+    );
+  }, intervalMs);
+  timer.unref();
+  let takenOver = false;
+  let ended: RunStatus = 'failed';
+  const release = () => store.releaseRun(runId, ownerId).catch(() => undefined);
+  const finished = drive(control)
+    .then(
+      (status) => (ended = status),
+      (error: unknown) => {
+        takenOver = error instanceof RunTakenOverError;
+        throw error;
+      },
+    )
+    .finally(async () => {
+      clearInterval(timer);
+      wrapUp.ended();
+      if (takenOver) return;
+      // A finished run (done, stopped, failed) is nobody's from the moment it ends, so it is never listed as
+      // driven while its analysis runs; a paused one stays this process's until its figures are stored.
+      if (ended !== 'paused') await release();
+      await wrapUp.finish();
+      if (ended === 'paused') await release();
+    });
+  // The caller learns the outcome through waitForRun/events; an unobserved rejection must not crash the process.
+  finished.catch(() => undefined);
+  return { control, finished };
+}
+
+/** The instruments for a run's loop: those connected now the first time, a fresh connection after a drop. */
+export function firstThenReconnect<I>(current: () => I, reconnect: () => Promise<I>): () => Promise<I> {
+  let first = true;
+  return async () => {
+    if (!first) return reconnect();
+    first = false;
+    return current();
+  };
 }

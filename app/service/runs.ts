@@ -9,16 +9,17 @@ import { UserError, ValidationError } from '../errors';
 import type { OwnerCondition, RolloffStore, RunClaimant, StoredRun } from '../store';
 import { planSweep, toPlanSummary } from '../sweep/plan';
 import { RunStateError } from '../sweep/runner/errors';
-import type { BenchIdentity, ConnectRequest, ResumeRequest, RunEvent, RunStatus, RunSummary, ServiceEvents, SweepRequest } from '../contract/contract';
+import type { BenchIdentity, ConnectRequest, NoisePlanSummary, NoiseRequest, ResumeRequest, RunEvent, RunStatus, RunSummary, ServiceEvents, SweepRequest } from '../contract/contract';
 import { SOFTWARE_VERSION } from '../contract/version';
 import { benchDescription } from '../contract/bench-text';
 import { takeOverEventText, takeOverFrom } from '../contract/bench-take-over';
 import type { BenchControl } from './bench-control';
 import type { SweepPlanning } from './sweep-planning';
 import type { RunHistory } from './history';
-import { claimForResumeOrRefuse, claimOrRefuse, createOwnedRunOrRefuse } from './run-ownership';
+import { claimForResumeOrRefuse, claimOrRefuse, createOwnedRunOrRefuse, HEARTBEAT_INTERVAL_MS } from './run-ownership';
 import { launchRun, type ActiveRun, type LaunchContext } from './run-launch';
 import { finalizeRun } from './run-kinds';
+import { planNoiseRunOn, startNoiseRunOn, type NoiseRunBench } from './noise-run';
 import type { RolloffServiceOptions } from './service-options';
 
 /** A resumed run and the step its sweep continues at. */
@@ -32,7 +33,7 @@ export interface RunsContext {
   bench: BenchControl;
   planning: SweepPlanning;
   history: Pick<RunHistory, 'listRuns' | 'summary'>;
-  options: Pick<RolloffServiceOptions, 'maxRefinementPoints' | 'giveUpAfterS' | 'heartbeatIntervalMs'>;
+  options: Pick<RolloffServiceOptions, 'maxRefinementPoints' | 'giveUpAfterS' | 'heartbeatIntervalMs' | 'instrumentSettleS' | 'meterIntegrationS'>;
   /** This bench's name (--bench, ROLLOFF_BENCH or the host name). */
   benchName: string;
   /** This service as a run owner (RunStore.claimRun). */
@@ -48,7 +49,7 @@ export class Runs {
   private readonly launchContext: LaunchContext;
 
   constructor(private readonly context: RunsContext) {
-    this.launchContext = { ...context, logRunEvent: (runId, level, message) => this.logRunEvent(runId, level, message), active: this.active };
+    this.launchContext = { ...context, logRunEvent: (runId, level, message) => this.logRunEvent(runId, level, message), active: this.active, noiseBench: () => this.noiseBench() };
   }
 
   /** True while this service drives the run. */
@@ -81,13 +82,57 @@ export class Runs {
 
   /** startRun with the service-only options (schedule id). */
   async startRunWith(request: SweepRequest, extra: { scheduleId?: number } = {}): Promise<RunSummary> {
-    const { bench, benchName } = this.context;
     return this.holdingBench(async () => {
-      // After resuming another bench's run, a new run is this bench's again, under this bench's limit.
-      const current = bench.limits.currentBench;
-      if (current && current.name !== benchName) await bench.enterBench({ name: benchName, simulated: current.simulated });
-      return this.startOnHeldBench(request, bench.requireMaxStimulus(), extra);
+      await this.enterOwnBench();
+      return this.startOnHeldBench(request, this.context.bench.requireMaxStimulus(), extra);
     });
+  }
+
+  async planNoiseRun(request: NoiseRequest): Promise<NoisePlanSummary> {
+    return planNoiseRunOn(this.noiseBench(), request);
+  }
+
+  async startNoiseRun(request: NoiseRequest): Promise<RunSummary> {
+    return this.holdingBench(async () => {
+      await this.enterOwnBench();
+      return startNoiseRunOn(this.noiseBench(), request);
+    });
+  }
+
+  /** After resuming another bench's run, a new run is this bench's again, under this bench's limit. */
+  private async enterOwnBench(): Promise<void> {
+    const { bench, benchName } = this.context;
+    const current = bench.limits.currentBench;
+    if (current && current.name !== benchName) await bench.enterBench({ name: benchName, simulated: current.simulated });
+  }
+
+  /** What a noise run borrows from this service (app/service/noise-run.ts). */
+  private noiseBench(): NoiseRunBench {
+    const { store, bench, claimant, options } = this.context;
+    return {
+      store,
+      clock: bench.clock,
+      claimant,
+      staleAfterMs: this.context.staleAfterMs,
+      heartbeatIntervalMs: options.heartbeatIntervalMs ?? HEARTBEAT_INTERVAL_MS,
+      giveUpAfterS: options.giveUpAfterS ?? 120,
+      benchName: this.context.benchName,
+      instrumentSettleS: options.instrumentSettleS ?? 0.01,
+      meterApertureS: options.meterIntegrationS ?? 0.1,
+      requireMaxStimulus: () => bench.requireMaxStimulus(),
+      sourceImpedanceOhm: () => bench.generatorSourceOhm(),
+      matchSimulatedBench: (buildId) => bench.matchSimulatedBench({ buildId }),
+      requireInstruments: (request) => bench.requireInstrumentsFor(request),
+      instrumentInfos: () => bench.instrumentInfos(),
+      currentInstruments: () => bench.currentInstruments(),
+      reconnectAll: () => bench.reconnectAll(),
+      reopen: (role) => bench.reopen(role),
+      track: (runId, run) => this.active.set(runId, run),
+      untrack: (runId) => this.active.delete(runId),
+      emit: (event, payload) => this.context.emit(event, payload),
+      logRunEvent: (runId, level, message) => this.logRunEvent(runId, level, message),
+      summaryOf: (runId) => this.context.history.summary(runId),
+    };
   }
 
   async pauseRun(runId: number): Promise<RunSummary> {

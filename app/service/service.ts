@@ -3,7 +3,8 @@
  * pushes ServiceEvents to whoever listens. A facade over one part per concern,
  * each given only what it needs:
  * - bench-control.ts: the instruments, their reconnects, the maximum stimulus in force, the simulated bench;
- * - runs.ts: start, pause, stop, resume (run-launch.ts drives a run, run-kinds.ts is what each kind of run does);
+ * - runs.ts: start, pause, stop, resume (run-launch.ts drives a run, run-kinds.ts is what each kind of run does;
+ *   noise-run.ts plans, starts and drives noise runs);
  * - sweep-planning.ts: plans for the bench in force;
  * - schedules.ts: repeated sweeps;
  * - history.ts: the stored runs as the views and records read them;
@@ -13,6 +14,7 @@ import type { RolloffStore } from '../store';
 import { resolveBenchName, type BenchClock } from '../bench';
 import { listPorts } from '../scpi/ports';
 import type {
+  NoisePlanSummary, NoiseRequest, NoiseRunDetail,
   BenchIdentity, BenchStatus, BuildRecord, Comparison, ConnectRequest, ProfileCheckReport, ProfileCheckRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
   PortListing, ProfileSummary, RecordFormat, ResumeRequest, RolloffClient, ServiceApi, RunDetail, RunFilter, RunStatus, RunSummary, ServiceEventName,
   ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
@@ -233,6 +235,20 @@ export class RolloffService implements ServiceApi {
   /** startRun with the service-only options (schedule id). */
   async startRunWith(request: SweepRequest, extra: { scheduleId?: number } = {}): Promise<RunSummary> {
     return this.runs.startRunWith(request, extra);
+  }
+
+  // ── Noise runs (app/service/noise-run.ts) ──────────────────────────────
+
+  async planNoiseRun(request: NoiseRequest): Promise<NoisePlanSummary> {
+    return this.runs.planNoiseRun(request);
+  }
+
+  async startNoiseRun(request: NoiseRequest): Promise<RunSummary> {
+    return this.runs.startNoiseRun(request);
+  }
+
+  async getNoiseRun(runId: number): Promise<NoiseRunDetail> {
+    return this.history.getNoiseRun(runId);
   }
 
   async pauseRun(runId: number): Promise<RunSummary> {

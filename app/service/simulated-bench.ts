@@ -7,7 +7,7 @@
 import type { Design } from '../circuit';
 import { scaledClock, type BenchClock } from '../bench/clock';
 import type { InstrumentRole } from '../contract/contract';
-import { SIMULATED_BENCH_DEFAULTS, startSimulatedBench, type SimFault } from '../sim';
+import { SIMULATED_BENCH_DEFAULTS, startSimulatedBench, type GeneratorSettings, type SimFault } from '../sim';
 
 export interface SimulatedBenchSettings {
   /** Bench seconds per wall-clock second (1 = real time). */
@@ -30,6 +30,9 @@ export interface SimulatedBenchHandle {
   setFault(role: InstrumentRole | 'all', fault: SimFault | null): Promise<void>;
   /** Whether the simulated generator's output is on (tests check it is off after a sweep). */
   generatorOutputOn(): boolean;
+  /** What the simulated generator holds now, and every state it takes from now on (tests read the instrument, not the runner). */
+  generatorHeld(): Readonly<GeneratorSettings>;
+  onGeneratorChange(listener: (held: Readonly<GeneratorSettings>) => void): () => void;
   stop(): Promise<void>;
 }
 
@@ -60,6 +63,8 @@ export async function startSimulatedBenchFor(design: Design, settings: Partial<S
     clock,
     setFault: (role, fault) => bench.setFault(role, fault),
     generatorOutputOn: () => bench.model.generatorOutput.on,
+    generatorHeld: () => bench.generator.held,
+    onGeneratorChange: (listener) => bench.generator.onChange(listener),
     stop: () => bench.stop(),
   };
 }
