@@ -10,3 +10,4 @@ export * from './drift';
 export * from './usable-points';
 export * from './stability-estimate';
 export * from './noise-figures';
+export * from './noise-figure-rows';

@@ -8,7 +8,7 @@
  * writes the true minus "−" (U+2212); machine formats (CSV, JSON, command
  * options) write ASCII "-" so every reader parses them.
  */
-import { PointFlag } from './contract';
+import { PointFlag, type NoiseWindow } from './contract';
 
 /** Figures of a run or a theory, by the key they have in RunFigures / the theory summary. */
 export const FIGURE_NAMES = {
@@ -22,6 +22,11 @@ export const FIGURE_NAMES = {
   phaseMarginDeg: 'Phase margin',
   gainMarginDb: 'Gain margin',
   peakingDb: 'Peaking',
+  noiseMeasuredRmsV: 'Output noise over the band (measured)',
+  noiseComputedRmsV: 'Output noise over the band (computed)',
+  noiseDensity: 'Output noise density',
+  noiseShareWithin95: 'Bins whose 95 % interval holds the computed density',
+  noiseMeanDeviationDb: 'Mean deviation from the computed density',
 } as const;
 
 export type FigureKey = keyof typeof FIGURE_NAMES;
@@ -188,3 +193,16 @@ export const POINT_COLUMNS = {
   measuredAt: 'measured_at',
   deltaFromReferenceDb: 'delta_from_reference_db',
 } as const;
+
+/** CSV and JSON columns of a noise run's density (the first two as rolloff theory --noise writes them). */
+export const NOISE_COLUMNS = {
+  frequencyHz: 'frequency_hz',
+  densityVPerRtHz: 'noise_v_per_rthz',
+  uncertaintyVPerRtHz: 'noise_uncertainty_v_per_rthz',
+  low95VPerRtHz: 'noise_low95_v_per_rthz',
+  high95VPerRtHz: 'noise_high95_v_per_rthz',
+  computedVPerRtHz: 'computed_noise_v_per_rthz',
+} as const;
+
+/** Welch windows by the names people know them by. */
+export const WINDOW_NAMES: Record<NoiseWindow, string> = { hann: 'Hann', rectangular: 'rectangular' };

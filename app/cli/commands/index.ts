@@ -8,6 +8,7 @@ import { aboutCommand } from './about';
 import { theoryCommand } from './theory';
 import { templateCommand } from './template';
 import { sweepCommand } from './sweep';
+import { noiseCommand } from './noise';
 import { runsCommand } from './runs';
 import { showCommand } from './show';
 import { resumeCommand } from './resume';
@@ -37,6 +38,7 @@ export const COMMANDS: CommandSpec[] = [
   queryCommand,
   simCommand,
   sweepCommand,
+  noiseCommand,
   scheduleCommand,
   resumeCommand,
   runsCommand,

@@ -4,7 +4,7 @@ import { ValidationError } from '../../errors';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
 import { BENCH_OPTIONS, connectRequestsFrom, openService, reportReusedLimit } from '../sweep/sweep-options';
 import { followRun } from '../sweep/follow-run';
-import { runDetailText } from '../sweep/summary-text';
+import { runText } from '../sweep/run-text';
 import { parseRunId } from './show';
 
 export const resumeCommand: CommandSpec = {
@@ -18,7 +18,9 @@ export const resumeCommand: CommandSpec = {
   ],
   details: `
 A simulated run continues on a fresh simulated bench of its build (--simulated may be given, as
-with sweep, and changes nothing); a real run never continues on the simulated bench. A real run reconnects to the
+with sweep, and changes nothing; give the simulated bench's --circuit-noise and --measurement-noise
+as the run was started with, e.g. --circuit-noise --measurement-noise 0 for a noise run); a real run
+never continues on the simulated bench. A real run reconnects to the
 addresses it was measured with, unless other addresses are given. The maximum stimulus is the one
 saved for the run's bench (the simulated bench, or the real instruments, of the bench named with
 the run), never one recorded with the run or another bench's; --max-amplitude saves a new one for
@@ -44,7 +46,7 @@ run's events record the take-over.`,
       reportReusedLimit(service);
       process.stderr.write(`run ${runId} continues at step ${continuesAtStep}\n`);
       const status = await followRun(service, runId);
-      process.stdout.write(runDetailText(await service.getRun(runId), await service.diodeOfRun(runId)));
+      process.stdout.write(await runText(service, runId));
       return status === 'done' || status === 'paused' ? 0 : 1;
     } finally {
       await service.close();

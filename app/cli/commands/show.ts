@@ -8,14 +8,16 @@ import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../common-options';
 import { runDetailText } from '../sweep/summary-text';
 import { RUN_JSON_DESCRIPTION, runRecordJson } from '../run-json';
+import { noiseRecordTable, noiseRunText } from '../sweep/noise-text';
+import type { RunEvent } from '../../contract/contract';
 
 export const showCommand: CommandSpec = {
   name: 'show',
-  summary: 'Show one run: figures against theory, verdict, and optionally its points and events',
+  summary: 'Show one run: figures against theory, verdict, and optionally its points (a noise run: its records) and events',
   usage: 'RUN [--list-points] [--list-events] [--json] [--db PATH]',
   options: [
     // Not --points: on sweep that is how many points a linear sweep has.
-    { name: 'list-points', kind: 'flag', description: 'list the measured points with uncertainties and flags' },
+    { name: 'list-points', kind: 'flag', description: 'list the measured points with uncertainties and flags (a noise run: its records)' },
     { name: 'list-events', aliases: ['events'], kind: 'flag', description: 'list the run\'s events' },
     { name: 'json', kind: 'flag', description: `print ${RUN_JSON_DESCRIPTION}` },
     DATABASE_OPTION,
@@ -26,6 +28,13 @@ export const showCommand: CommandSpec = {
     try {
       if (optionFlag(parsed, 'json')) {
         process.stdout.write(await runRecordJson(service, runId));
+        return 0;
+      }
+      if ((await service.getRunSummary(runId)).kind === 'noise') {
+        const noise = await service.getNoiseRun(runId);
+        process.stdout.write(noiseRunText(noise));
+        if (optionFlag(parsed, 'list-points')) process.stdout.write(`\n${noiseRecordTable(noise)}`);
+        if (optionFlag(parsed, 'list-events')) writeEvents(noise.events);
         return 0;
       }
       const detail = await service.getRun(runId);
@@ -40,16 +49,18 @@ export const showCommand: CommandSpec = {
           process.stdout.write(`${String(p.step[i]).padEnd(5)} ${formatEngineering(p.stimulus[i], detail.kind === 'ac' ? 'Hz' : 'V').padEnd(12)} ${formatEngineering(p.amplitudeVpp[i], 'Vpp').padEnd(11)} ${main.padEnd(16)} ${phase.padEnd(16)} ${flags}\n`);
         }
       }
-      if (optionFlag(parsed, 'list-events')) {
-        process.stdout.write('\n');
-        for (const e of detail.events) process.stdout.write(`${e.at}  ${e.level.padEnd(7)}  ${e.message}\n`);
-      }
+      if (optionFlag(parsed, 'list-events')) writeEvents(detail.events);
       return 0;
     } finally {
       await service.close();
     }
   },
 };
+
+function writeEvents(events: RunEvent[]): void {
+  process.stdout.write('\n');
+  for (const e of events) process.stdout.write(`${e.at}  ${e.level.padEnd(7)}  ${e.message}\n`);
+}
 
 export function parseRunId(text: string): number {
   if (!/^\s*\d+\s*$/.test(text) || Number(text) <= 0) throw new ValidationError('RUN', `"${text}" is not a run number`, 'See rolloff runs for the list.');

@@ -30,6 +30,7 @@ import {
   type ToleranceDistribution,
 } from '../../circuit';
 import { SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
+import { parseBand } from '../sweep/band-option';
 import { optionFlag, optionNumber, optionString, requirePositional, type CommandSpec, type ParsedArgs } from '../args';
 import { FIGURE_NAMES } from '../../contract/vocabulary';
 import { DATABASE_OPTION } from '../common-options';
@@ -212,16 +213,6 @@ function noiseResponse(design: Design, parsed: ParsedArgs, format: Format): stri
     return noiseCsv(noise);
   }
   return noiseTable(design, noise) + '\n' + lines.join('\n') + '\n';
-}
-
-/** "10:100k" → [10, 100000], engineering notation on both sides. */
-function parseBand(text: string): [number, number] {
-  const parts = text.split(':');
-  if (parts.length !== 2) throw new ValidationError('--band', `"${text}" is not FROM:TO`, 'Give the band as two frequencies in Hz joined by a colon, e.g. --band 10:100k.');
-  const fromHz = parseEngineering(parts[0], '--band (from)');
-  const toHz = parseEngineering(parts[1], '--band (to)');
-  if (!(fromHz > 0) || !(toHz > fromHz)) throw new ValidationError('--band', `${fromHz} Hz to ${toHz} Hz is not a band`, 'The start must be above 0 Hz and the end above the start, e.g. --band 10:100k.');
-  return [fromHz, toHz];
 }
 
 /** One column name per source: the part id made CSV-safe, then the unit. */

@@ -16,6 +16,7 @@ import { parseEngineering } from '../../units';
 import { SWEEP_DEFAULTS, SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
 import { DATABASE_OPTION, SIMULATED_BENCH_OPTIONS, maxStimulusFrom, maxStimulusOption, simulatedBenchFrom } from '../common-options';
 import { chooseDesign, designContent, designOption, storedDesignId } from '../design-option';
+import { namedForOption } from '../field-option';
 import { SETTINGS } from '../../contract/vocabulary';
 import { benchDescription, limitReuseText } from '../../contract/bench-text';
 
@@ -105,7 +106,7 @@ export async function prepareSweep(service: RolloffService, parsed: ParsedArgs):
   try {
     requestFrom(parsed, 0);
     checkBenchOptions(service, parsed);
-    const buildId = await resolveBuildId(service, parsed);
+    const buildId = await resolveBuildId(service, parsed, (design, actualValues) => service.planForUnsavedBuild(requestFrom(parsed, 0), design, actualValues));
     const request = requestFrom(parsed, buildId);
     await connectBench(service, parsed, buildId);
     return { buildId, request };
@@ -138,14 +139,14 @@ const OPTION_OF_FIELD: Record<string, string> = {
 };
 
 export function namedForTheCommandLine(error: unknown): unknown {
-  if (!(error instanceof ValidationError)) return error;
-  const option = OPTION_OF_FIELD[error.where.replace(/^request\./, '')];
-  if (option === undefined) return error;
-  return new ValidationError(option, error.message.slice(error.where.length + 2), error.hint);
+  return namedForOption(error, OPTION_OF_FIELD, /^request\./);
 }
 
-/** The build to sweep: --build ID, or a new build of --design ID|FILE. */
-async function resolveBuildId(service: RolloffService, parsed: ParsedArgs): Promise<number> {
+/**
+ * The build to measure: --build ID, or a new build of --design ID|FILE. `checkUnsaved` refuses a design and
+ * measured values the run could not take, before anything is stored.
+ */
+export async function resolveBuildId(service: RolloffService, parsed: ParsedArgs, checkUnsaved: (design: unknown, actualValues: Record<string, number>) => void): Promise<number> {
   const buildId = optionNumber(parsed, 'build');
   const designText = optionString(parsed, 'design');
   if (buildId !== undefined && designText !== undefined) throw new ValidationError('--build/--design', 'give one, not both');
@@ -154,14 +155,14 @@ async function resolveBuildId(service: RolloffService, parsed: ParsedArgs): Prom
   const design = chooseDesign(designText);
   const actualValues = actualValuesFrom(parsed);
   // Design, measured values and plan are all checked before anything is stored.
-  service.planForUnsavedBuild(requestFrom(parsed, 0), await designContent(service, design), actualValues);
+  checkUnsaved(await designContent(service, design), actualValues);
   const designId = await storedDesignId(service, design);
   const build = await service.createBuild({ designId, label: optionString(parsed, 'label') ?? 'build', notes: '', actualValues });
   return build.id;
 }
 
-/** Refuses a sweep that could not start (no ceiling, no instruments) before anything is stored. */
-function checkBenchOptions(service: RolloffService, parsed: ParsedArgs): void {
+/** Refuses a run that could not start (no ceiling, no instruments) before anything is stored. */
+export function checkBenchOptions(service: RolloffService, parsed: ParsedArgs): void {
   if (service.maxStimulus === undefined) {
     const bench = service.bench ? benchDescription(service.bench) : 'this bench';
     throw new ValidationError(
