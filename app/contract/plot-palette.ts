@@ -36,6 +36,8 @@ export const CURVE_NAMES = {
   measured: 'Measured',
   distorted: 'Distorted',
   toleranceBand: 'Tolerance band',
+  /** A noise run's density: the measured one's 95 % interval, filled in the measurement's colour. */
+  measuredInterval: 'Measured, 95 % interval',
 } as const;
 
 /** Runs in a comparison: these eight in order, then evenly spread hues when there are more runs. */

@@ -92,7 +92,8 @@ function finiteOrNull(value: unknown): MaybeNumber {
   return typeof value === 'number' && Number.isFinite(value) ? value : null;
 }
 
-function column(values: unknown, length: number, where: string): MaybeNumber[] {
+/** One column of `length` values, non-finite ones null; a column of another length is refused. */
+export function column(values: unknown, length: number, where: string): MaybeNumber[] {
   if (!Array.isArray(values) || values.length !== length) {
     throw new ValidationError(where, `has ${Array.isArray(values) ? values.length : 'no'} values where ${length} were expected`, 'The run data is inconsistent; re-read it from the store.');
   }

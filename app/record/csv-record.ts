@@ -6,10 +6,13 @@
  * the output is output_v_peak (scope), output_v_rms (meter) or output_v_dc
  * (DC runs); a DC table carries no gain or phase columns. A comparison writes
  * every run's points with a run_id column and the difference from the reference.
+ * A noise run writes its density per bin (frequency_hz, noise_v_per_rthz as
+ * rolloff theory --noise does, then the uncertainty columns and the computed
+ * density); a meter noise run, its readings.
  */
 import { writeCsv } from './csv';
-import { recordOutputV, type ComparisonRecord, type MaybeNumber, type RunRecord } from './model';
-import { flagWords, OUTPUT_COLUMN, outputReadingOf, POINT_COLUMNS as C, type OutputReading } from '../contract/vocabulary';
+import { recordOutputV, type ComparisonRecord, type MaybeNumber, type NoiseRunRecord, type RunRecord } from './model';
+import { flagWords, NOISE_COLUMNS as N, OUTPUT_COLUMN, outputReadingOf, POINT_COLUMNS as C, type OutputReading } from '../contract/vocabulary';
 
 const numberText = (value: MaybeNumber) => (value === null ? '' : String(value));
 
@@ -75,4 +78,19 @@ export function comparisonCsv(record: ComparisonRecord): string {
     });
   });
   return writeCsv(header, rows);
+}
+
+export function noiseCsv(record: NoiseRunRecord): string {
+  if (record.run.acquisition.measurement === 'meter') {
+    const r = record.records;
+    return writeCsv(
+      [C.step, OUTPUT_COLUMN.rms, C.flags, C.flagWords, C.measuredAt],
+      r.step.map((step, i) => [String(step), numberText(r.rmsV[i]), String(r.flags[i]), flagWords(r.flags[i]), r.measuredAt[i]]),
+    );
+  }
+  const d = record.density;
+  return writeCsv(
+    [N.frequencyHz, N.densityVPerRtHz, N.uncertaintyVPerRtHz, N.low95VPerRtHz, N.high95VPerRtHz, N.computedVPerRtHz],
+    d.frequencyHz.map((f, i) => [f, d.measuredVPerRtHz[i], d.uncertaintyVPerRtHz[i], d.low95VPerRtHz[i], d.high95VPerRtHz[i], d.computedVPerRtHz[i]].map(numberText)),
+  );
 }

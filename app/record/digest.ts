@@ -9,12 +9,13 @@
  */
 import { canonicalJson } from './canonical-json';
 import { sha256Hex } from './sha256';
-import type { RecordDigest, RunRecord } from './model';
+import type { NoiseRunRecord, RecordDigest, RunRecord } from './model';
 
 export const RUN_DIGEST_TAG = 'rolloff-run-digest-2';
 export const COMPARISON_DIGEST_TAG = 'rolloff-comparison-digest-2';
 const RUN_DIGEST_TAG_1 = 'rolloff-run-digest-1';
 const COMPARISON_DIGEST_TAG_1 = 'rolloff-comparison-digest-1';
+export const NOISE_RUN_DIGEST_TAG = 'rolloff-noise-run-digest-1';
 
 export const RUN_DIGEST_METHOD =
   `SHA-256 (FIPS 180-4) of the UTF-8 RFC 8785 canonical JSON of {"digest":"${RUN_DIGEST_TAG}", ` +
@@ -28,6 +29,12 @@ const RUN_DIGEST_METHOD_1 =
   'instruments:bench[] as {role,address,profileId,simulated,identity}, points:all point columns}, ' +
   'with non-finite numbers as null. See app/record/DIGEST.md.';
 
+export const NOISE_RUN_DIGEST_METHOD =
+  `SHA-256 (FIPS 180-4) of the UTF-8 RFC 8785 canonical JSON of {"digest":"${NOISE_RUN_DIGEST_TAG}", ` +
+  'run:{uid,kind,startedAt,endedAt,simulated,plan without buildId,acquisition}, build:{uid,label,actualValues}, design:{uid,name}, ' +
+  'instruments:bench[] as {role,address,profileId,simulated,identity}, records:all record columns, ' +
+  'density:{frequencyHz,measuredVPerRtHz,uncertaintyVPerRtHz,low95VPerRtHz,high95VPerRtHz}}, with non-finite numbers as null. See app/record/DIGEST.md.';
+
 export const COMPARISON_DIGEST_METHOD =
   `SHA-256 (FIPS 180-4) of the UTF-8 RFC 8785 canonical JSON of {"digest":"${COMPARISON_DIGEST_TAG}", ` +
   'reference (the reference run\'s uid, or "theory"), runs:[each run digest hex, in record order]}. See app/record/DIGEST.md.';
@@ -35,7 +42,7 @@ export const COMPARISON_DIGEST_METHOD =
 type DigestedRun = Pick<RunRecord, 'run' | 'build' | 'design' | 'bench' | 'points'>;
 
 /** The instruments, the same in both versions. */
-function instrumentsOf(record: DigestedRun): unknown[] {
+function instrumentsOf(record: Pick<RunRecord, 'bench'>): unknown[] {
   return record.bench.map((instrument) => ({
     role: instrument.role,
     address: instrument.address,
@@ -71,6 +78,31 @@ function runDigestInputV1(record: DigestedRun): unknown {
     instruments: instrumentsOf(record),
     points,
   };
+}
+
+/** The measurement of a noise run: its records and the density they give; the computed density is derived, not hashed. */
+export function noiseRunDigestInput(record: Pick<NoiseRunRecord, 'run' | 'build' | 'design' | 'bench' | 'records' | 'density'>): unknown {
+  const { run, build, design, records, density } = record;
+  const { buildId: _buildId, ...plan } = run.plan;
+  return {
+    digest: NOISE_RUN_DIGEST_TAG,
+    run: { uid: run.uid, kind: run.kind, startedAt: run.startedAt, endedAt: run.endedAt, simulated: run.simulated, plan, acquisition: run.acquisition },
+    build: { uid: build.uid, label: build.label, actualValues: build.actualValues },
+    design: { uid: design.uid, name: design.name },
+    instruments: instrumentsOf(record),
+    records,
+    density: {
+      frequencyHz: density.frequencyHz,
+      measuredVPerRtHz: density.measuredVPerRtHz,
+      uncertaintyVPerRtHz: density.uncertaintyVPerRtHz,
+      low95VPerRtHz: density.low95VPerRtHz,
+      high95VPerRtHz: density.high95VPerRtHz,
+    },
+  };
+}
+
+export function noiseRunDigest(record: Pick<NoiseRunRecord, 'run' | 'build' | 'design' | 'bench' | 'records' | 'density'>): RecordDigest {
+  return { algorithm: 'SHA-256', method: NOISE_RUN_DIGEST_METHOD, hex: sha256Hex(canonicalJson(noiseRunDigestInput(record), 'record')) };
 }
 
 export function runDigest(record: DigestedRun): RecordDigest {

@@ -8,9 +8,9 @@
  * and written back with their own keys, so their digest still holds.
  */
 import { ValidationError } from '../errors';
-import { expectedComparisonDigestHex, expectedRunDigestHex } from './digest';
+import { expectedComparisonDigestHex, expectedRunDigestHex, noiseRunDigest } from './digest';
 import { OUTPUT_KEY, outputReadingOf } from '../contract/vocabulary';
-import { RECORD_FORMAT_VERSION, type AnyRecord, type RecordFormatVersion, type RunRecord } from './model';
+import { RECORD_FORMAT_VERSION, type AnyRecord, type NoiseRunRecord, type RecordFormatVersion, type RunRecord } from './model';
 import { validateAgainstSchema, type JsonSchema } from './schema-validator';
 import recordSchema from './record.schema.json';
 
@@ -73,6 +73,10 @@ export function recordFromJson(text: string, where = 'record'): AnyRecord {
     throw new ValidationError(where, `does not match the record schema: ${list}`, 'The file was not written by this version of Rolloff or was edited; see app/record/record.schema.json.');
   }
   const record = parsed as AnyRecord;
+  if (record.recordType === 'noise-run') {
+    checkNoiseRun(record, `${where} run ${record.run.id}`);
+    return record;
+  }
   const runs = record.recordType === 'run' ? [record] : record.runs;
   runs.forEach((run) => checkRun(run, `${where} run ${run.run.id}`));
   if (record.recordType === 'comparison') {
@@ -91,6 +95,18 @@ function checkRun(run: RunRecord, where: string): void {
     if ((values as unknown[]).length !== length) throw new ValidationError(`${where}.points.${name}`, `has ${(values as unknown[]).length} values where ${length} were expected`);
   }
   if (expectedRunDigestHex(run) !== run.digest.hex) {
+    throw new ValidationError(`${where}.digest`, 'does not match the data in the record', 'The numbers or identifying fields were altered after export.');
+  }
+}
+
+function checkNoiseRun(record: NoiseRunRecord, where: string): void {
+  for (const [part, columns] of [['records', record.records], ['density', record.density]] as const) {
+    const length = Object.values(columns)[0].length;
+    for (const [name, values] of Object.entries(columns)) {
+      if ((values as unknown[]).length !== length) throw new ValidationError(`${where}.${part}.${name}`, `has ${(values as unknown[]).length} values where ${length} were expected`);
+    }
+  }
+  if (noiseRunDigest(record).hex !== record.digest.hex) {
     throw new ValidationError(`${where}.digest`, 'does not match the data in the record', 'The numbers or identifying fields were altered after export.');
   }
 }

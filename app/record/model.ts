@@ -8,6 +8,9 @@
  */
 import type {
   InstrumentInfo,
+  NoiseAcquisition,
+  NoiseFigures,
+  NoiseRequest,
   OfflinePeriod,
   RunEvent,
   RunFigures,
@@ -165,4 +168,51 @@ export interface ComparisonRecord {
   digest: RecordDigest;
 }
 
-export type AnyRecord = RunRecord | ComparisonRecord;
+/** A noise run as the record lists it: what was asked (plan) and how the records were taken (acquisition). */
+export interface RecordNoiseRun extends Omit<RecordRun, 'kind' | 'plan'> {
+  kind: 'noise';
+  plan: NoiseRequest;
+  acquisition: NoiseAcquisition;
+}
+
+/** The stored records of a noise run, columnar (their spectra are summed up in the density). */
+export interface RecordNoiseRecords {
+  step: number[];
+  sampleRateHz: MaybeNumber[];
+  segments: number[];
+  degreesOfFreedom: number[];
+  rmsV: MaybeNumber[];
+  meanV: MaybeNumber[];
+  flags: number[];
+  measuredAt: string[];
+}
+
+/** The measured density over the band with its uncertainty, beside the computed one (empty for a meter run). */
+export interface RecordNoiseDensity {
+  frequencyHz: MaybeNumber[];
+  measuredVPerRtHz: MaybeNumber[];
+  uncertaintyVPerRtHz: MaybeNumber[];
+  low95VPerRtHz: MaybeNumber[];
+  high95VPerRtHz: MaybeNumber[];
+  computedVPerRtHz: MaybeNumber[];
+}
+
+export interface NoiseRunRecord {
+  recordType: 'noise-run';
+  formatVersion: typeof RECORD_FORMAT_VERSION;
+  title: string;
+  generatedAt: string;
+  generatedBy: string;
+  safetyNotice: string[];
+  run: RecordNoiseRun;
+  design: RecordDesign;
+  build: RecordBuild;
+  bench: InstrumentInfo[];
+  records: RecordNoiseRecords;
+  density: RecordNoiseDensity;
+  figures: NoiseFigures | null;
+  events: RunEvent[];
+  digest: RecordDigest;
+}
+
+export type AnyRecord = RunRecord | ComparisonRecord | NoiseRunRecord;

@@ -6,14 +6,15 @@
  */
 export { buildRunRecord, type RunRecordContext } from './build-run-record';
 export { buildComparisonRecord, type ComparisonRecordContext } from './build-comparison-record';
+export { buildNoiseRunRecord } from './build-noise-record';
 export { renderTextRecord, recordDocument, TEXT_MIME_TYPES, type TextRecordFormat } from './text-record';
 export { recordFromJson, recordToJson, RECORD_SCHEMA } from './json-record';
 export { readCsv, writeCsv } from './csv';
-export { runDigest, runDigestInput, comparisonDigest } from './digest';
+export { runDigest, runDigestInput, comparisonDigest, noiseRunDigest, noiseRunDigestInput } from './digest';
 export { offlinePeriodsText } from './record-formatting';
 export { sha256, sha256Hex } from './sha256';
 export { canonicalJson } from './canonical-json';
-export { runPlots, comparisonPlots } from './record-plots';
+export { runPlots, comparisonPlots, noisePlots } from './record-plots';
 export { svgPlot } from './svg-plot';
 export { recordFileName } from './record-file-name';
-export type { AnyRecord, ComparisonRecord, RunRecord, RecordDcFit } from './model';
+export type { AnyRecord, ComparisonRecord, NoiseRunRecord, RunRecord, RecordDcFit } from './model';

@@ -3,13 +3,15 @@
  * run (AC) → Bode gain and phase, measured over theory, tolerance band,
  *            gain-limit point and −3 dB frequencies marked;
  * run (DC) → transfer curve, measured points and the fitted curve;
- * comparison → overlay of all runs and their difference from the reference.
+ * comparison → overlay of all runs and their difference from the reference;
+ * noise run (scope) → the measured density with its 95 % interval over the
+ *            computed density, log-log.
  */
 import { formatEngineering, unwrapPhaseDeg } from '../units';
 import { ascendingOrder, curveSortedByX } from '../numeric';
 import { FIGURE_NAMES } from '../contract/vocabulary';
 import { linearAxis, logAxis, type Axis } from './plot-axes';
-import { recordOutputV, type ComparisonRecord, type MaybeNumber, type RunRecord } from './model';
+import { recordOutputV, type ComparisonRecord, type MaybeNumber, type NoiseRunRecord, type RunRecord } from './model';
 import type { PlotMarker, PlotSeries, PlotSpec } from './plot-spec';
 import { CURVE_NAMES, PLOT_PALETTE, runColour } from '../contract/plot-palette';
 
@@ -190,4 +192,20 @@ function differencePlot(record: ComparisonRecord): PlotSpec {
     series,
     markers: [],
   };
+}
+
+export function noisePlots(record: NoiseRunRecord): PlotSpec[] {
+  const { density } = record;
+  if (density.frequencyHz.length === 0) return [];
+  return [{
+    title: 'Output noise density',
+    x: logAxis(density.frequencyHz, 'Frequency (Hz)', 'Hz'),
+    y: logAxis([...density.low95VPerRtHz, ...density.high95VPerRtHz, ...density.computedVPerRtHz], 'Noise density (V/√Hz)', 'V/√Hz'),
+    bands: [{ name: CURVE_NAMES.measuredInterval, color: PLOT_COLORS.measured, xs: density.frequencyHz, lows: density.low95VPerRtHz, highs: density.high95VPerRtHz }],
+    series: [
+      { name: `${CURVE_NAMES.measured} (Welch estimate)`, color: PLOT_COLORS.measured, style: 'line', xs: density.frequencyHz, ys: density.measuredVPerRtHz },
+      { name: THEORY_NAME, color: PLOT_COLORS.theory, style: 'line', xs: density.frequencyHz, ys: density.computedVPerRtHz },
+    ],
+    markers: [],
+  }];
 }

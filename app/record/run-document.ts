@@ -49,7 +49,7 @@ export function runDocument(record: RunRecord): RecordDocument {
   };
 }
 
-function benchBlocks(record: RunRecord): Block[] {
+export function benchBlocks(record: Pick<RunRecord, 'bench'>): Block[] {
   return [
     { kind: 'heading', text: 'Bench' },
     {
@@ -123,7 +123,7 @@ function compactDesignJson(content: unknown): string {
 
 const UNIT_BY_KIND: Record<string, string> = { resistor: 'Ω', R: 'Ω', capacitor: 'F', C: 'F', inductor: 'H', L: 'H' };
 
-function designBlocks(design: RecordDesign, record: RunRecord): Block[] {
+export function designBlocks(design: RecordDesign, record: Pick<RunRecord, 'build'>): Block[] {
   const parts = designParts(design.content);
   const actual = record.build.actualValues;
   const blocks: Block[] = [{ kind: 'heading', text: 'Design and build' }];
@@ -217,7 +217,7 @@ function pointBlocks(record: RunRecord): Block[] {
   ];
 }
 
-function eventBlocks(record: RunRecord): Block[] {
+export function eventBlocks(record: Pick<RunRecord, 'events'>): Block[] {
   return [
     { kind: 'heading', text: 'Events and notes' },
     record.events.length

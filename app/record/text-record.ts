@@ -3,7 +3,8 @@
  * window can render them too: this file and everything it imports are pure.
  */
 import type { AnyRecord } from './model';
-import { comparisonCsv, runCsv } from './csv-record';
+import { comparisonCsv, noiseCsv, runCsv } from './csv-record';
+import { noiseDocument } from './noise-document';
 import { comparisonDocument } from './comparison-document';
 import { htmlRecord } from './html-record';
 import { recordToJson } from './json-record';
@@ -20,6 +21,7 @@ export const TEXT_MIME_TYPES: Record<TextRecordFormat, string> = {
 
 /** The blocks a record shows, in order (shared by HTML and PDF). */
 export function recordDocument(record: AnyRecord): RecordDocument {
+  if (record.recordType === 'noise-run') return noiseDocument(record);
   return record.recordType === 'run' ? runDocument(record) : comparisonDocument(record);
 }
 
@@ -28,6 +30,7 @@ export function renderTextRecord(record: AnyRecord, format: TextRecordFormat): s
     case 'html':
       return htmlRecord(recordDocument(record));
     case 'csv':
+      if (record.recordType === 'noise-run') return noiseCsv(record);
       return record.recordType === 'run' ? runCsv(record) : comparisonCsv(record);
     case 'json':
       return recordToJson(record);

@@ -1,13 +1,14 @@
 /** exportRecord: the run detail (or comparison) handed to the record module (app/record). */
-import { buildComparisonRecord, buildRunRecord, renderRecord, type RecordDcFit } from '../record';
+import { buildComparisonRecord, buildNoiseRunRecord, buildRunRecord, renderRecord, type RecordDcFit } from '../record';
 import type { ExportedRecord, RecordFormat, RunDetail } from '../contract/contract';
 import type { RolloffService } from './service';
 import { inputResistor, logStageIdeal, type DiodePart } from '../circuit';
 import { designOf } from '../read-model/stored-design';
 import { formatEngineering, formatPrecision, logGrid } from '../units';
+import { ValidationError } from '../errors';
 
 /** What an export reads: the service, or a read-only store behind the same three members (`rolloff export`). */
-export type RecordSource = Pick<RolloffService, 'store' | 'getRun' | 'compareRuns'>;
+export type RecordSource = Pick<RolloffService, 'store' | 'getRun' | 'getNoiseRun' | 'compareRuns'>;
 
 export async function exportRecordFor(service: RecordSource, runIds: number[], format: RecordFormat, reference: number | 'theory'): Promise<ExportedRecord> {
   const store = service.store;
@@ -16,8 +17,17 @@ export async function exportRecordFor(service: RecordSource, runIds: number[], f
     const design = await store.getDesign(build.designId);
     return { design: design.design, designId: design.id, designUid: design.uid, build, dcFit: dcFitCurve(detail, design) };
   };
+  const kinds = await Promise.all(runIds.map(async (id) => (await store.getRun(id)).kind));
   let rendered;
-  if (runIds.length === 1) {
+  if (runIds.length === 1 && kinds[0] === 'noise') {
+    const detail = await service.getNoiseRun(runIds[0]);
+    const build = await store.getBuild(detail.buildId);
+    const design = await store.getDesign(build.designId);
+    rendered = await renderRecord(buildNoiseRunRecord(detail, { design: design.design, designId: design.id, designUid: design.uid, build }), format);
+  } else if (kinds.includes('noise')) {
+    const noiseRun = runIds[kinds.indexOf('noise')];
+    throw new ValidationError('runIds', `run ${noiseRun} is a noise run, and a comparison record compares sweeps`, 'Export a noise run on its own (one run id).');
+  } else if (runIds.length === 1) {
     const detail = await service.getRun(runIds[0]);
     rendered = await renderRecord(buildRunRecord(detail, await contextOf(detail)), format);
   } else {

@@ -14,6 +14,7 @@ import { RECORD_FORMATS } from '../../record';
 import { runDetail } from '../../read-model/run-detail';
 import { compareDetails } from '../../read-model/compare';
 import { runOwnerOf, STALE_AFTER_MS } from '../../service/run-ownership';
+import { noiseRunDetail } from '../../read-model/noise-run-detail';
 import { optionFlag, optionString, type CommandSpec, type ParsedArgs } from '../args';
 import { DATABASE_OPTION } from '../common-options';
 
@@ -69,6 +70,7 @@ export async function exportFromDatabase(databaseLocation: string, runIds: numbe
     const source = {
       store,
       getRun: async (runId: number) => runDetail(store, runId, judgeOwner),
+      getNoiseRun: async (runId: number) => noiseRunDetail(store, runId, judgeOwner),
       compareRuns: async (ids: number[], ref: number | 'theory') => compareDetails(await Promise.all(ids.map((id) => runDetail(store, id, judgeOwner))), ref),
     };
     const exported = await exportRecordFor(source, runIds, format, reference);

@@ -28,6 +28,7 @@ import type { GeneratorSettings } from '../../../app/sim';
 import { tempFolder } from '../sweep/helpers';
 import { sweepRequest } from '../sweep/helpers';
 import { noiseRequest, noisyGain1000 } from './helpers';
+import { recordFromJson } from '../../../app/record';
 
 /** One query to a simulated instrument on its own connection, as any SCPI client would send it. */
 function query(address: string, text: string): Promise<string> {
@@ -126,6 +127,15 @@ describe('noise run on the simulated bench with the circuit\'s own noise', () =>
     expect(await service.waitForRun(sweep.id)).toBe('done');
     // The sweep's first point: gain −1000 is 60 dB (RF/RN; the loop gain of 10 MHz/1001 costs nothing at 100 Hz).
     expect((await service.getRun(sweep.id)).points.gainDb[0]).toBeCloseTo(60, 0);
+  });
+
+  it('exports its own record (the JSON passes the schema and its digest), and is refused in a comparison record', async () => {
+    const exported = await service.exportRecord([detail.id], 'json');
+    const record = recordFromJson(exported.content, exported.fileName);
+    expect(record.recordType).toBe('noise-run');
+    expect(exported.fileName).toBe(`rolloff-noise-run-${detail.id}-noisy-1000.json`);
+    const [sweep] = await service.listRuns({ search: 'noisy' }).then((runs) => runs.filter((r) => r.kind === 'ac'));
+    await expect(service.exportRecord([sweep.id, detail.id], 'pdf')).rejects.toThrow(/is a noise run, and a comparison record compares sweeps/);
   });
 
   it('is read by getNoiseRun only; getRun names the other reader', async () => {

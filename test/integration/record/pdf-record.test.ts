@@ -10,7 +10,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { requireTool } from '../../helpers/required-tool';
-import { buildComparisonRecord, buildRunRecord, renderRecord, type AnyRecord } from '../../../app/record';
+import { buildComparisonRecord, buildNoiseRunRecord, buildRunRecord, renderRecord, type AnyRecord } from '../../../app/record';
+import { FIGURE_NAMES } from '../../../app/contract/vocabulary';
+import { CURVE_NAMES } from '../../../app/contract/plot-palette';
+import { noiseRunFixture } from '../../unit/record/noise-fixtures';
 import { idnText } from '../../../app/record/record-formatting';
 import { acRunDetail, comparisonFixture, dcRunDetail, fixtureBuild, FIXTURE_DESIGN, LOG_STAGE_DESIGN } from '../../unit/record/fixtures';
 
@@ -111,6 +114,21 @@ describe.skipIf(!hasPoppler)('PDF DC (log stage) record', () => {
     expect(text).toContain('Verdict:NOVERDICT');
     expect(text).toContain('Logstageboard');
     expect(text).toContain(record.digest.hex);
+  });
+});
+
+describe.skipIf(!hasPoppler)('PDF noise run record', () => {
+  it('opens and shows the measured density against the computed one, the figures and the records', async () => {
+    const record = buildNoiseRunRecord(noiseRunFixture(), { design: FIXTURE_DESIGN, build: fixtureBuild(), designId: 1, generatedAt: '2026-12-01T12:00:00.000Z' });
+    const path = await writePdf(record, 'noise.pdf');
+    const pngs = renderPages(path, 'noise-page');
+    expect(pngs).toHaveLength(pageCount(path));
+    for (const png of pngs) expect(statSync(png).size).toBeGreaterThan(1000);
+    const text = squeezedText(path);
+    for (const words of ['Output noise density', CURVE_NAMES.measured, `${CURVE_NAMES.theory} (actual circuit)`, CURVE_NAMES.measuredInterval, 'Noise density (V/√Hz)',
+      FIGURE_NAMES.noiseMeasuredRmsV, FIGURE_NAMES.noiseShareWithin95, 'held off', 'Records']) expect(text, words).toContain(squeeze(words));
+    expect(text).toContain(record.digest.hex);
+    expect(text).toContain('SIMULATEDBENCH');
   });
 });
 

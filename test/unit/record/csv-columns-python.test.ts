@@ -6,7 +6,8 @@
  */
 import { spawnSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
-import { buildRunRecord, renderRecord } from '../../../app/record';
+import { buildNoiseRunRecord, buildRunRecord, renderRecord } from '../../../app/record';
+import { noiseRunFixture } from './noise-fixtures';
 import type { RunRecord } from '../../../app/record';
 import { requireTool, toolPath } from '../../helpers/required-tool';
 import { acRunDetail, dcRunDetail, fixtureBuild, FIXTURE_DESIGN, LOG_STAGE_DESIGN } from './fixtures';
@@ -66,4 +67,16 @@ describe.skipIf(!hasPython)('CSV columns read by Python csv (RFC 4180)', () => {
       if (c.gain) expect(column('gain_db')).toEqual(record.points.gainDb);
     });
   }
+
+  it('noise run: the density columns name their unit (V/√Hz) and read back to the record\'s numbers', async () => {
+    const record = buildNoiseRunRecord(noiseRunFixture(), { design: FIXTURE_DESIGN, build: fixtureBuild(), designId: 1, generatedAt: GENERATED_AT });
+    const { header, rows } = pythonCsv(new TextDecoder().decode((await renderRecord(record, 'csv')).bytes));
+    expect(header.slice(0, 2)).toEqual(['frequency_hz', 'noise_v_per_rthz']);
+    expect(header.filter((name) => !/_(hz|v_per_rthz)$/.test(name))).toEqual([]);
+    const column = (name: string) => rows.map((row) => Number(row[header.indexOf(name)]));
+    expect(column('frequency_hz')).toEqual(record.density.frequencyHz);
+    expect(column('noise_v_per_rthz')).toEqual(record.density.measuredVPerRtHz);
+    expect(column('noise_uncertainty_v_per_rthz')).toEqual(record.density.uncertaintyVPerRtHz);
+    expect(column('computed_noise_v_per_rthz')).toEqual(record.density.computedVPerRtHz);
+  });
 });

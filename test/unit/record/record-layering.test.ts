@@ -11,7 +11,7 @@ import { describe, expect, it } from 'vitest';
 const RECORD_DIR = new URL('../../../app/record/', import.meta.url).pathname;
 /** Files allowed to need Node or npm packages: PDF writing and what imports it. */
 const NODE_SIDE = new Set(['pdf-fonts.ts', 'pdf-plot.ts', 'pdf-record.ts', 'render-record.ts', 'index.ts']);
-const PURE_OUTSIDE = ['../errors', '../units', '../numeric', '../plot-layout/marker-label-placement', '../contract/contract', '../contract/safety', '../contract/version', '../contract/vocabulary', '../contract/plot-palette'];
+const PURE_OUTSIDE = ['../errors', '../units', '../numeric', '../plot-layout/marker-label-placement', '../contract/contract', '../contract/safety', '../contract/version', '../contract/vocabulary', '../contract/plot-palette', '../analysis/noise-figure-rows'];
 /** The one package the window-safe part may use: the JSON Schema validator (interprets, no eval). */
 const PURE_PACKAGES: Record<string, string> = { '@cfworker/json-schema': 'schema-validator.ts' };
 
