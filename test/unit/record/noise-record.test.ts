@@ -27,7 +27,7 @@ describe('noise run record', () => {
     const { density } = r;
     expect(density.frequencyHz[0]).toBeGreaterThanOrEqual(200);
     expect(density.frequencyHz.at(-1)).toBeLessThanOrEqual(10e3);
-    const meanRatio = density.measuredVPerRtHz.reduce((sum, d) => sum + d! / WHITE_DENSITY_V_PER_RTHZ, 0) / density.measuredVPerRtHz.length;
+    const meanRatio = density.measuredVPerRtHz.reduce<number>((sum, d) => sum + (d ?? Number.NaN) / WHITE_DENSITY_V_PER_RTHZ, 0) / density.measuredVPerRtHz.length;
     // ~98 bins of ν ≈ 50 each: the mean ratio is known to about 0.1/√98 · (correlation) ≈ 1.5 %; allow 5 %.
     expect(Math.abs(meanRatio - 1)).toBeLessThan(0.05);
     expect(r.figures!.computedRmsV).toBeGreaterThan(0);
