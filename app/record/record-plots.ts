@@ -203,7 +203,7 @@ export function noisePlots(record: NoiseRunRecord): PlotSpec[] {
     y: logAxis([...density.low95VPerRtHz, ...density.high95VPerRtHz, ...density.computedVPerRtHz], 'Noise density (V/√Hz)', 'V/√Hz'),
     bands: [{ name: CURVE_NAMES.measuredInterval, color: PLOT_COLORS.measured, xs: density.frequencyHz, lows: density.low95VPerRtHz, highs: density.high95VPerRtHz }],
     series: [
-      { name: `${CURVE_NAMES.measured} (Welch estimate)`, color: PLOT_COLORS.measured, style: 'line', xs: density.frequencyHz, ys: density.measuredVPerRtHz },
+      { name: CURVE_NAMES.measured, color: PLOT_COLORS.measured, style: 'line', xs: density.frequencyHz, ys: density.measuredVPerRtHz },
       { name: THEORY_NAME, color: PLOT_COLORS.theory, style: 'line', xs: density.frequencyHz, ys: density.computedVPerRtHz },
     ],
     markers: [],

@@ -51,6 +51,8 @@ export interface FrequencyChartOptions {
   legend?: boolean;
   /** Write marker labels on the plot (the upper plot of a pair; the lower one shows the lines only). */
   markerLabels?: boolean;
+  /** Logarithmic y axis, values and ticks in engineering notation of yUnit (noise densities). */
+  yLog?: boolean;
 }
 
 export class FrequencyChart {
@@ -75,7 +77,7 @@ export class FrequencyChart {
       height: options.height,
       legend: { show: options.legend ?? true, live: false },
       cursor: { drag: { x: true, y: false, setScale: true } },
-      scales: { x: { time: false, distr: options.xLinear ? 1 : 3 }, y: { auto: true } },
+      scales: { x: { time: false, distr: options.xLinear ? 1 : 3 }, y: options.yLog ? { auto: true, distr: 3 } : { auto: true } },
       axes: [
         {
           label: options.xLabel ?? 'Frequency',
@@ -89,13 +91,13 @@ export class FrequencyChart {
           stroke: PLOT_PALETTE.axis,
           grid: { stroke: PLOT_PALETTE.grid, width: 1 },
           ticks: { stroke: PLOT_PALETTE.tick, width: 1 },
-          values: (_u, splits) => splits.map((v) => (v == null ? '' : withTrueMinus(`${Number(v.toPrecision(4))}`))),
-          size: 56,
+          values: (_u, splits) => splits.map((v) => (v == null ? '' : options.yLog ? formatEngineering(v, options.yUnit, 3) : withTrueMinus(`${Number(v.toPrecision(4))}`))),
+          size: options.yLog ? 76 : 56,
         },
       ],
       series: [
         { label: options.xLinear ? 'Input' : 'Frequency', value: (_u, v) => (v == null ? '—' : formatEngineering(v, xUnit, 4)) },
-        ...options.series.map((style) => ({ ...seriesOptions(style, options.yUnit), ...(style.inLegend === false ? { class: 'not-in-legend' } : {}) })),
+        ...options.series.map((style) => ({ ...seriesOptions(style, options.yUnit, options.yLog === true), ...(style.inLegend === false ? { class: 'not-in-legend' } : {}) })),
       ],
       bands: (options.bands ?? []).map((band) => ({ series: [band.high, band.low] as [number, number], fill: band.fill })),
       hooks: {
@@ -177,8 +179,8 @@ export class FrequencyChart {
   }
 }
 
-function seriesOptions(style: SeriesStyle, unit: string): uPlot.Series {
-  const value = (_u: uPlot, v: number | null) => (v == null ? '—' : `${formatFixed(v, 2)} ${unit}`);
+function seriesOptions(style: SeriesStyle, unit: string, engineering: boolean): uPlot.Series {
+  const value = (_u: uPlot, v: number | null) => (v == null ? '—' : engineering ? formatEngineering(v, unit, 4) : `${formatFixed(v, 2)} ${unit}`);
   switch (style.kind) {
     case 'line':
       return { label: style.label, stroke: style.color, width: style.width ?? 2, spanGaps: true, points: { show: false }, value };

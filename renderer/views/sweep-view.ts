@@ -2,10 +2,12 @@
  * Sweep: plan settings with the estimated duration, start / pause / resume /
  * stop, the live Bode plot (measured over theory, band, gain-limit and −3 dB
  * points, distorted points marked), progress with ETA, and the run's events.
+ * A noise run opened here (from History) shows its density plot instead
+ * (noise-run-display.ts).
  */
 import { SWEEP_DEFAULTS, SWEEP_RANGE_DEFAULTS } from '../../app/sweep/plan/defaults';
 import { UserError } from '../../app/errors';
-import type { BuildRecord, RolloffClient, RunDetail, RunFigures, RunProgress, RunStatus, RunSummary, SweepRequest, Verdict } from '../../app/contract/contract';
+import type { BuildRecord, NoiseRunDetail, RolloffClient, RunDetail, RunFigures, RunProgress, RunStatus, RunSummary, SweepRequest, Verdict } from '../../app/contract/contract';
 import { formatEngineering, formatFixed, formatWithUncertainty, logGrid, parseEngineering } from '../../app/units';
 import { parseDesign, solveDcTransfer, withActualValues } from '../../app/circuit';
 import { debounce, field, h, replaceChildren, select } from '../dom';
@@ -13,6 +15,7 @@ import { formatDb, formatDuration, formatHz } from '../model/format';
 import { LivePoints } from '../model/live-points';
 import { guarded, showError } from '../notices';
 import { BodePlot } from '../plot/bode-plot';
+import { NoiseRunDisplay } from './noise-run-display';
 import type { View } from '../shell';
 import type { AppState } from '../state';
 import { FIGURE_NAMES, pointCountText, SETTINGS } from '../../app/contract/vocabulary';
@@ -63,6 +66,7 @@ export class SweepView implements View {
   private readonly events = h('ol', { className: 'events', 'aria-label': 'Run events', 'data-testid': 'run-events' });
   private readonly plotHost = h('div', { className: 'plot-host', 'data-testid': 'sweep-plot' });
   private plot: BodePlot | undefined;
+  private noise: NoiseRunDisplay | undefined;
   private live: LivePoints | undefined;
   private run: RunSummary | undefined;
   private builds: BuildRecord[] = [];
@@ -155,7 +159,7 @@ export class SweepView implements View {
   }
 
   async activate(): Promise<void> {
-    if (!this.plot) this.replacePlot('ac');
+    if (!this.plot && !this.noise) this.replacePlot('ac');
     const [designs, builds] = await Promise.all([this.client.listDesigns(), this.client.listBuilds()]);
     this.builds = builds;
     const names = new Map(designs.map((d) => [d.id, d.name]));
@@ -249,6 +253,11 @@ export class SweepView implements View {
     this.events.textContent = '';
     this.seenEvents.clear();
     try {
+      const kind = summary?.kind ?? (await this.client.getRunSummary(runId)).kind;
+      if (kind === 'noise') {
+        this.showNoiseDetail(await this.client.getNoiseRun(runId));
+        return;
+      }
       const detail = await this.client.getRun(runId);
       this.showDetail(detail);
     } catch (error) {
@@ -274,9 +283,25 @@ export class SweepView implements View {
   }
 
   private replacePlot(kind: RunDetail['kind']): void {
+    this.noise?.destroy();
+    this.noise = undefined;
     this.plot?.destroy();
     this.plot = new BodePlot(kind);
     replaceChildren(this.plotHost, this.plot.element);
+  }
+
+  private showNoiseDetail(detail: NoiseRunDetail): void {
+    if (this.noise?.runId !== detail.id) {
+      this.plot?.destroy();
+      this.plot = undefined;
+      this.noise?.destroy();
+      this.noise = new NoiseRunDisplay(detail.id, () => this.client.getNoiseRun(detail.id), this.figures, (fresh) => this.applySummary(fresh));
+      replaceChildren(this.plotHost, this.noise.plot.element);
+    }
+    this.noise.show(detail);
+    for (const event of detail.events.slice(-EVENTS_KEPT)) this.appendEvent(event.at, event.level, event.message);
+    this.applySummary(detail);
+    this.applyProgress({ runId: detail.id, step: detail.pointCount, total: detail.plannedCount, etaS: NaN, status: detail.status });
   }
 
   private applySummary(summary: RunSummary): void {
@@ -296,18 +321,28 @@ export class SweepView implements View {
 
   private applyProgress(progress: RunProgress): void {
     if (progress.runId !== this.run?.id) return;
+    if (this.noise?.runId === progress.runId && Number.isFinite(progress.etaS)) this.noise.recordArrived();
     this.progress.max = Math.max(1, progress.total);
     this.progress.value = Math.min(progress.step, progress.total);
     const eta = progress.status === 'running' && Number.isFinite(progress.etaS) ? `, about ${formatDuration(progress.etaS)} left` : '';
-    // Counted from the points shown (each flagged planned or refinement), so the words match the plot.
-    const flags = this.live?.runId === progress.runId ? this.live.flags : [];
-    this.progressText.textContent = `Points: ${pointCountText(this.run.plannedCount, flags)}${eta} (${progress.status})`;
+    if (this.run.kind === 'noise') {
+      // A noise run's steps are records, none of them refinement: the same words, counted from the progress.
+      this.progressText.textContent = `Records: ${pointCountText(progress.total, new Array<number>(Math.min(progress.step, progress.total)).fill(0))}${eta} (${progress.status})`;
+    } else {
+      // Counted from the points shown (each flagged planned or refinement), so the words match the plot.
+      const flags = this.live?.runId === progress.runId ? this.live.flags : [];
+      this.progressText.textContent = `Points: ${pointCountText(this.run.plannedCount, flags)}${eta} (${progress.status})`;
+    }
     // A run that leaves the running state is given up by its driver (the store releases it).
     if (progress.status !== this.run.status) this.applySummary({ ...this.run, status: progress.status, pointCount: progress.step, owner: progress.status === 'running' ? this.run.owner : null });
   }
 
   /** After a run ends the service has the measured figures: show their markers. */
   private async refreshFigures(runId: number): Promise<void> {
+    if (this.noise?.runId === runId) {
+      this.noise.recordArrived();
+      return;
+    }
     try {
       const detail = await this.client.getRun(runId);
       if (detail.id !== this.run?.id) return;

@@ -45,6 +45,7 @@ stops (the next start opens --db, ROLLOFF_DB or the default file again).
 
 Examples:
   rolloff serve --simulated --time-scale 10 --max-amplitude 2
+  rolloff serve --simulated --circuit-noise --measurement-noise 0 --max-amplitude 1   (for noise runs)
   rolloff serve --db bench.sqlite --port 9000`,
 
   async run(parsed) {
