@@ -24,7 +24,7 @@ export const TIME_SCALE_OPTION: OptionSpec = {
   defaultValue: SIMULATED_BENCH_DEFAULTS.timeScale,
 };
 
-/** The simulated bench's own settings: how fast its clock runs and how noisy its readings are. */
+/** The simulated bench's own settings: how fast its clock runs, how noisy its readings are, and which noise it draws. */
 export const SIMULATED_BENCH_OPTIONS: OptionSpec[] = [
   TIME_SCALE_OPTION,
   {
@@ -40,12 +40,21 @@ export const SIMULATED_BENCH_OPTIONS: OptionSpec[] = [
     kind: 'flag',
     description: 'simulated bench: also add the circuit\'s own output noise, shaped by the circuit (resistors, op-amp en and in, as `rolloff theory --noise` computes it)',
   },
+  {
+    // A fresh simulated bench after a crash need not replay the noise the one before made (resume --seed 2).
+    name: 'seed',
+    kind: 'integer',
+    placeholder: 'N',
+    description: 'simulated bench: random seed of its noise and faults (the same seed draws the same noise)',
+    defaultValue: SIMULATED_BENCH_DEFAULTS.seed,
+  },
 ];
 
 export interface SimulatedBenchChoice {
   timeScale: number;
   noiseVrms: number;
   circuitNoise: boolean;
+  seed: number;
 }
 
 /** The simulated bench settings the options ask for, checked. */
@@ -53,7 +62,9 @@ export function simulatedBenchFrom(parsed: ParsedArgs): SimulatedBenchChoice {
   const timeScale = timeScaleFrom(parsed);
   const noiseVrms = optionNumber(parsed, 'measurement-noise') ?? SIMULATED_BENCH_DEFAULTS.measurementNoiseVrms;
   if (!(noiseVrms >= 0)) throw new ValidationError('--measurement-noise', `${noiseVrms} V is below zero`, 'Give volts RMS, 0 for none.');
-  return { timeScale, noiseVrms, circuitNoise: optionFlag(parsed, 'circuit-noise') };
+  const seed = optionNumber(parsed, 'seed') ?? SIMULATED_BENCH_DEFAULTS.seed;
+  if (!Number.isSafeInteger(seed)) throw new ValidationError('--seed', `${seed} is not a whole number`, 'Give a whole number, e.g. --seed 2.');
+  return { timeScale, noiseVrms, circuitNoise: optionFlag(parsed, 'circuit-noise'), seed };
 }
 
 export function timeScaleFrom(parsed: ParsedArgs): number {

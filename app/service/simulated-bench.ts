@@ -41,7 +41,7 @@ const DEFAULTS: SimulatedBenchSettings = {
   noiseVrms: SIMULATED_BENCH_DEFAULTS.measurementNoiseVrms,
   circuitNoise: false,
   latencyS: 0,
-  seed: 1,
+  seed: SIMULATED_BENCH_DEFAULTS.seed,
   link: 'tcp',
 };
 

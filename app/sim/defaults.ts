@@ -11,4 +11,6 @@ export const SIMULATED_BENCH_DEFAULTS = {
   timeScale: 1,
   /** Flat white noise on every reading (the measurement's own), volts RMS. */
   measurementNoiseVrms: 1e-4,
+  /** Random seed of the noise and faults. */
+  seed: 1,
 } as const;

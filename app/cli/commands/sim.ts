@@ -24,7 +24,6 @@ export const simCommand: CommandSpec = {
     { name: 'vxi11', kind: 'flag', description: 'also serve the instruments over VXI-11 (LAN instruments inst0 generator, inst1 meter, inst2 scope), registered with the portmapper on 127.0.0.1 (needs rpcbind)' },
     ...SIMULATED_BENCH_OPTIONS,
     { name: 'latency', kind: 'number', placeholder: 'S', description: 'delay before each reply', defaultValue: 0 },
-    { name: 'seed', kind: 'integer', placeholder: 'N', description: 'noise and fault random seed', defaultValue: 1 },
     { name: 'fault', kind: 'string', placeholder: '[ROLE=]KIND[:VALUE]', repeatable: true, description: 'inject a fault: garbage[:P], no-reply[:P], slow:S, hang, overrange, nan' },
   ],
   details: `
@@ -45,7 +44,7 @@ Examples:
     const tcpPort = optionNumber(parsed, 'port');
     if (tcpPort !== undefined && (tcpPort < 0 || tcpPort > 65533)) throw new ValidationError('--port', `${tcpPort} is not a usable port (0–65533; three consecutive ports are used)`);
     const pty = optionString(parsed, 'pty');
-    const { timeScale, noiseVrms, circuitNoise } = simulatedBenchFrom(parsed);
+    const { timeScale, noiseVrms, circuitNoise, seed } = simulatedBenchFrom(parsed);
     if (!(optionNumber(parsed, 'latency')! >= 0)) throw new ValidationError('--latency', 'must be zero or more');
     const design = 'content' in choice ? choice.content : await storedDesignContent(optionString(parsed, 'db'), choice);
     const faults: Partial<Record<InstrumentRole, SimFault>> = {};
@@ -62,7 +61,7 @@ Examples:
       noiseVrms,
       circuitNoise,
       latencyS: optionNumber(parsed, 'latency')!,
-      seed: optionNumber(parsed, 'seed')!,
+      seed,
       faults,
       vxi11: optionFlag(parsed, 'vxi11'),
     }).catch((error: unknown) => {
