@@ -7,7 +7,7 @@ import { ValidationError } from '../errors';
 import type { NoiseRunDetail } from '../contract/contract';
 import { SAFETY_NOTICE_POINTS } from '../contract/safety';
 import { SOFTWARE_VERSION } from '../contract/version';
-import { column, jsonSafe, type RunRecordContext } from './build-run-record';
+import { column, jsonSafe, measuredOn, type RunRecordContext } from './build-run-record';
 import { noiseRunDigest } from './digest';
 import { RECORD_FORMAT_VERSION, type NoiseRunRecord, type RecordNoiseDensity, type RecordNoiseRecords } from './model';
 
@@ -36,16 +36,7 @@ export function buildNoiseRunRecord(detail: NoiseRunDetail, context: Omit<RunRec
       acquisition: detail.acquisition,
       offlinePeriods: (detail.offlinePeriods ?? []).map((period) => ({ from: period.from, to: period.to })),
     },
-    design: { id: context.designId ?? context.build.designId ?? null, uid: context.designUid ?? null, name: detail.designName, content: context.design ?? null },
-    build: {
-      id: context.build.id,
-      uid: context.build.uid,
-      label: context.build.label,
-      notes: context.build.notes ?? '',
-      actualValues: { ...(context.build.actualValues ?? {}) },
-      createdAt: context.build.createdAt ?? null,
-    },
-    bench: (detail.bench ?? []).map((instrument) => ({ ...instrument, identity: { ...instrument.identity } })),
+    ...measuredOn(detail, context),
     records,
     density,
   };

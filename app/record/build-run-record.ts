@@ -59,16 +59,7 @@ export function buildRunRecord(detail: RunDetail, context: RunRecordContext): Ru
       plan: detail.request,
       offlinePeriods: (detail.offlinePeriods ?? []).map((period) => ({ from: period.from, to: period.to })),
     },
-    design: { id: context.designId ?? context.build.designId ?? null, uid: context.designUid ?? null, name: detail.designName, content: context.design ?? null },
-    build: {
-      id: context.build.id,
-      uid: context.build.uid,
-      label: context.build.label,
-      notes: context.build.notes ?? '',
-      actualValues: { ...(context.build.actualValues ?? {}) },
-      createdAt: context.build.createdAt ?? null,
-    },
-    bench: (detail.bench ?? []).map((instrument) => ({ ...instrument, identity: { ...instrument.identity } })),
+    ...measuredOn(detail, context),
     points,
   };
   return jsonSafe({
@@ -86,6 +77,22 @@ export function buildRunRecord(detail: RunDetail, context: RunRecordContext): Ru
     events: detail.events ?? [],
     digest: runDigest(jsonSafe(body)),
   }) as RunRecord;
+}
+
+/** The design, build and instruments a run was measured on, as a record lists them. */
+export function measuredOn(detail: Pick<RunDetail, 'designName' | 'bench'>, context: Pick<RunRecordContext, 'design' | 'designId' | 'designUid' | 'build'>): Pick<RunRecord, 'design' | 'build' | 'bench'> {
+  return {
+    design: { id: context.designId ?? context.build.designId ?? null, uid: context.designUid ?? null, name: detail.designName, content: context.design ?? null },
+    build: {
+      id: context.build.id,
+      uid: context.build.uid,
+      label: context.build.label,
+      notes: context.build.notes ?? '',
+      actualValues: { ...(context.build.actualValues ?? {}) },
+      createdAt: context.build.createdAt ?? null,
+    },
+    bench: (detail.bench ?? []).map((instrument) => ({ ...instrument, identity: { ...instrument.identity } })),
+  };
 }
 
 function finiteOrNull(value: unknown): MaybeNumber {

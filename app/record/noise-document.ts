@@ -1,31 +1,16 @@
 /** The content of a noise run's record, in reading order (see record-document.ts). */
 import { formatEngineering, formatFixed } from '../units';
 import { noiseFigureRows } from '../analysis/noise-figure-rows';
-import { SETTINGS, WINDOW_NAMES, flagWords } from '../contract/vocabulary';
+import { SETTINGS, WINDOW_NAMES, flagWords, pointCountText } from '../contract/vocabulary';
 import type { Block, RecordDocument } from './record-document';
 import type { NoiseRunRecord } from './model';
 import { noisePlots } from './record-plots';
 import { formatMaybe, formatVolts } from './record-formatting';
-import { benchBlocks, designBlocks, eventBlocks, SIMULATED_BANNER } from './run-document';
+import { benchBlocks, designBlocks, eventBlocks, runFactsBlock, runRecordDocument } from './run-document';
 
 export function noiseDocument(record: NoiseRunRecord): RecordDocument {
-  const { run } = record;
-  const blocks: Block[] = [
-    {
-      kind: 'keyValues',
-      rows: [
-        ['Run', `${run.id} (noise run, ${run.status})`],
-        ['Build', record.build.label],
-        ['Design', record.design.name],
-        ['Operator', run.operator || '—'],
-        ['Started', run.startedAt ?? '—'],
-        ['Ended', run.endedAt ?? '—'],
-        ['Records', `${run.pointCount} of ${run.plannedCount} planned`],
-        ['Software that measured the run', `Rolloff ${run.softwareVersion}`],
-        ['Bench', run.simulated ? 'simulated (simulated bench)' : 'physical instruments'],
-        ['Data digest (SHA-256)', record.digest.hex],
-      ],
-    },
+  return runRecordDocument(record, [
+    runFactsBlock(record, 'noise run', ['Records', pointCountText(record.run.plannedCount, record.records.flags)]),
     ...benchBlocks(record),
     ...designBlocks(record.design, record),
     ...planBlocks(record),
@@ -36,17 +21,7 @@ export function noiseDocument(record: NoiseRunRecord): RecordDocument {
       : { kind: 'paragraph', text: 'No usable record: no figures.' },
     ...recordBlocks(record),
     ...eventBlocks(record),
-    { kind: 'heading', text: 'Data digest' },
-    { kind: 'keyValues', rows: [['SHA-256', record.digest.hex], ['Method', record.digest.method]] },
-    { kind: 'heading', text: 'Safety' },
-    { kind: 'list', items: record.safetyNotice },
-  ];
-  return {
-    title: record.title,
-    banner: run.simulated ? SIMULATED_BANNER : null,
-    blocks,
-    footer: `${record.generatedBy} — record generated ${record.generatedAt} — run ${run.id} — SHA-256 ${record.digest.hex.slice(0, 16)}…`,
-  };
+  ]);
 }
 
 function planBlocks(record: NoiseRunRecord): Block[] {

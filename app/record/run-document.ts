@@ -12,22 +12,7 @@ export function runDocument(record: RunRecord): RecordDocument {
   const { run } = record;
   const blocks: Block[] = [
     { kind: 'verdict', pass: record.verdict ? record.verdict.pass : null, headline: verdictHeadline(record.verdict), reasons: record.verdict?.reasons ?? [] },
-    {
-      kind: 'keyValues',
-      rows: [
-        ['Run', `${run.id} (${run.kind === 'ac' ? 'AC frequency sweep' : 'DC transfer sweep'}, ${run.status})`],
-        ['Build', record.build.label],
-        ['Design', record.design.name],
-        ['Operator', run.operator || '—'],
-        ['Started', run.startedAt ?? '—'],
-        ['Ended', run.endedAt ?? '—'],
-        ['Points', pointCountText(run.plannedCount, record.points.flags)],
-        ['Software that measured the run', `Rolloff ${run.softwareVersion}`],
-        ['Bench', run.simulated ? 'simulated (simulated bench)' : 'physical instruments'],
-        ['Store unreachable (points kept in the bench\'s outbox)', offlinePeriodsText(run.offlinePeriods)],
-        ['Data digest (SHA-256)', record.digest.hex],
-      ],
-    },
+    runFactsBlock(record, run.kind === 'ac' ? 'AC frequency sweep' : 'DC transfer sweep', ['Points', pointCountText(run.plannedCount, record.points.flags)]),
     ...benchBlocks(record),
     ...designBlocks(record.design, record),
     ...planBlocks(record),
@@ -36,15 +21,44 @@ export function runDocument(record: RunRecord): RecordDocument {
     ...figureBlocks(record),
     ...pointBlocks(record),
     ...eventBlocks(record),
-    { kind: 'heading', text: 'Data digest' },
-    { kind: 'keyValues', rows: [['SHA-256', record.digest.hex], ['Method', record.digest.method]] },
-    { kind: 'heading', text: 'Safety' },
-    { kind: 'list', items: record.safetyNotice },
   ];
+  return runRecordDocument(record, blocks);
+}
+
+/** What a run's record names first: the run, what it measured, when, with what, and its digest. */
+export function runFactsBlock(record: Pick<RunRecord, 'build' | 'design' | 'digest'> & { run: Omit<RunRecord['run'], 'kind' | 'plan'> }, kindText: string, countRow: [string, string]): Block {
+  const { run } = record;
+  return {
+    kind: 'keyValues',
+    rows: [
+      ['Run', `${run.id} (${kindText}, ${run.status})`],
+      ['Build', record.build.label],
+      ['Design', record.design.name],
+      ['Operator', run.operator || '—'],
+      ['Started', run.startedAt ?? '—'],
+      ['Ended', run.endedAt ?? '—'],
+      countRow,
+      ['Software that measured the run', `Rolloff ${run.softwareVersion}`],
+      ['Bench', run.simulated ? 'simulated (simulated bench)' : 'physical instruments'],
+      ['Store unreachable (points kept in the bench\'s outbox)', offlinePeriodsText(run.offlinePeriods)],
+      ['Data digest (SHA-256)', record.digest.hex],
+    ],
+  };
+}
+
+/** A run's record around its blocks: the digest and the safety notice after them, the simulated banner and the footer. */
+export function runRecordDocument(record: Pick<RunRecord, 'title' | 'digest' | 'safetyNotice' | 'generatedBy' | 'generatedAt'> & { run: { id: number; simulated: boolean } }, blocks: Block[]): RecordDocument {
+  const { run } = record;
   return {
     title: record.title,
     banner: run.simulated ? SIMULATED_BANNER : null,
-    blocks,
+    blocks: [
+      ...blocks,
+      { kind: 'heading', text: 'Data digest' },
+      { kind: 'keyValues', rows: [['SHA-256', record.digest.hex], ['Method', record.digest.method]] },
+      { kind: 'heading', text: 'Safety' },
+      { kind: 'list', items: record.safetyNotice },
+    ],
     footer: `${record.generatedBy} — record generated ${record.generatedAt} — run ${run.id} — SHA-256 ${record.digest.hex.slice(0, 16)}…`,
   };
 }

@@ -98,18 +98,7 @@ export function noiseRecord(step: number, overrides: Partial<NewNoiseRecord> = {
 }
 
 export function newNoiseRun(buildId: number, overrides: Partial<NewRun> = {}): NewRun {
-  return {
-    buildId,
-    kind: 'noise',
-    request: { ...noiseRequest, buildId },
-    plan: noisePlan,
-    softwareVersion: SOFTWARE_VERSION,
-    bench: [],
-    operator: 'demo operator (invented)',
-    notes: 'first light',
-    simulated: true,
-    ...overrides,
-  } as NewRun;
+  return newRun(buildId, { kind: 'noise', request: { ...noiseRequest, buildId }, plan: noisePlan, ...overrides } as Partial<NewRun>);
 }
 
 export async function seedRun(store: RolloffStore, label = 'board 1', notes = 'first light') {

@@ -1,7 +1,7 @@
 /** A design whose output noise is shaped (op-amp en with a 1/f corner, the closed loop's roll-off), and the noise request the tests use. */
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
 import type { NoiseRequest } from '../../../app/contract/contract';
-import { SqliteStore } from '../../../app/store';
+import { stepsOfLatestRun } from '../sweep/helpers';
 
 /**
  * Inverting stage of gain −1000 (RN 100 Ω, RF 100 kΩ) on an op-amp of 10 MHz GBW with en = 20 nV/√Hz
@@ -24,16 +24,6 @@ export function noiseRequest(buildId: number, overrides: Partial<NoiseRequest> =
 }
 
 /** Records stored so far for the newest run in a SQLite file (read-only; 0 before the file or the run exists). */
-export async function recordsOfLatestRun(dbPath: string): Promise<number> {
-  try {
-    const store = SqliteStore.open(dbPath, { readonly: true });
-    try {
-      const [run] = await store.listRuns({ limit: 1 });
-      return run ? (await store.loadNoiseRecords(run.id)).step.length : 0;
-    } finally {
-      await store.close();
-    }
-  } catch {
-    return 0; // not created yet
-  }
+export function recordsOfLatestRun(dbPath: string): Promise<number> {
+  return stepsOfLatestRun(dbPath, async (store, runId) => (await store.loadNoiseRecords(runId)).step.length);
 }

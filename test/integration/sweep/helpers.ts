@@ -26,12 +26,17 @@ export function sweepRequest(buildId: number, overrides: Partial<SweepRequest> =
 }
 
 /** Points stored so far for the newest run in a SQLite file (read-only; 0 before the file or the run exists). */
-export async function pointsOfLatestRun(dbPath: string): Promise<number> {
+export function pointsOfLatestRun(dbPath: string): Promise<number> {
+  return stepsOfLatestRun(dbPath, async (store, runId) => (await store.loadPoints(runId)).step.length);
+}
+
+/** What `count` finds in the newest run of a SQLite file, read-only; 0 before the file or the run exists. */
+export async function stepsOfLatestRun(dbPath: string, count: (store: SqliteStore, runId: number) => Promise<number>): Promise<number> {
   try {
     const store = SqliteStore.open(dbPath, { readonly: true });
     try {
       const [run] = await store.listRuns({ limit: 1 });
-      return run ? (await store.loadPoints(run.id)).step.length : 0;
+      return run ? await count(store, run.id) : 0;
     } finally {
       await store.close();
     }
