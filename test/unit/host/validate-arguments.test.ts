@@ -145,4 +145,26 @@ describe('validateCall', () => {
     expect(rejection('resumeRun', [4, { takeOverFromBench: 7 }]).message).toMatch(/must be text/);
     expect(rejection('resumeRun', [4, { force: true }]).where).toBe('resumeRun(request [argument 2]).force');
   });
+
+  it('checks a noise request: defaults filled in, and each bad field refused by name with a hint', () => {
+    const { args } = validateCall('startNoiseRun', [{ buildId: 3, fromHz: 100, toHz: 20_000 }]);
+    // The documented defaults (NOISE_DEFAULTS in app/contract/noise.ts).
+    expect(args[0]).toEqual({ buildId: 3, kind: 'noise', fromHz: 100, toHz: 20_000, records: 16, segmentLength: 4096, window: 'hann', measurement: 'scope', operator: '', notes: '' });
+    const band = rejection('startNoiseRun', [{ buildId: 3, fromHz: 20_000, toHz: 100 }]);
+    expect(band.where).toBe('startNoiseRun(request).toHz');
+    expect(band.message).toMatch(/must be above the band's start \(20000 Hz\), got 100/);
+    expect(band.hint).toMatch(/low to high/);
+    const segment = rejection('planNoiseRun', [{ buildId: 3, fromHz: 100, toHz: 20_000, segmentLength: 1000 }]);
+    expect(segment.where).toBe('planNoiseRun(request).segmentLength');
+    expect(segment.message).toMatch(/must be a power of two, got 1000/);
+    expect(rejection('startNoiseRun', [{ buildId: 3, fromHz: 100, toHz: 20_000, segmentLength: 2 ** 20 }]).message).toMatch(/from 64 to 65536/);
+    expect(rejection('startNoiseRun', [{ buildId: 3, fromHz: 100, toHz: 20_000, window: 'flat-top' }]).message).toMatch(/must be one of hann, rectangular/);
+    expect(rejection('startNoiseRun', [{ buildId: 3, fromHz: 100, toHz: 20_000, measurement: 'analyzer' }]).where).toBe('startNoiseRun(request).measurement');
+    expect(rejection('startNoiseRun', [{ buildId: 3, fromHz: 100, toHz: 20_000, records: 0 }]).where).toBe('startNoiseRun(request).records');
+    expect(rejection('startNoiseRun', [{ buildId: 3, fromHz: 100, toHz: 20_000, kind: 'ac' }]).where).toBe('startNoiseRun(request).kind');
+    expect(rejection('startNoiseRun', [{ buildId: 3, fromHz: 100, toHz: 20_000, maxStimulusVpp: 50 }]).hint).toMatch(/Bench view/);
+    expect(rejection('startNoiseRun', [{ buildId: 3, fromHz: 100, toHz: 20_000, averages: 4 }]).hint).toMatch(/Known fields: buildId, kind, fromHz/);
+    // A sweep request no longer takes the noise kind: the kinds that sweep are their own list.
+    expect(rejection('startRun', [{ ...GOOD_SWEEP, kind: 'noise' }]).message).toMatch(/must be one of ac, dc, got "noise"/);
+  });
 });
