@@ -37,7 +37,8 @@ export async function followLabChanges(options: LabChangeOptions): Promise<Store
         });
       }
       pointsSent.set(runId, points.step.length);
-      const next = points.step.length === 0 ? 0 : points.step[points.step.length - 1] + 1;
+      // A noise run stores records, not points: its point count counts them (the window reads the run again on progress).
+      const next = run.kind === 'noise' ? run.pointCount : points.step.length === 0 ? 0 : points.step[points.step.length - 1] + 1;
       // The remaining time is known only to the process that drives the sweep.
       options.emit('progress', { runId, step: next, total: Math.max(run.plannedCount, next), etaS: 0, status: run.status });
     }

@@ -6,6 +6,8 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawn } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { WebSocket } from 'ws';
 import type { ServiceEvents } from '../../../app/contract/contract';
@@ -13,6 +15,7 @@ import { followLabChanges } from '../../../app/service/lab-changes';
 import { PostgresStore } from '../../../app/store/postgres/postgres-store';
 import { startServe } from '../../e2e/helpers/serve-process';
 import { postgresAvailable, startPostgresCluster, type PostgresCluster } from '../../helpers/postgres-cluster';
+import { noisyGain1000 } from '../noise/helpers';
 
 const BIN = join(resolve(__dirname, '../../..'), 'app/cli/bin.mjs');
 
@@ -99,6 +102,49 @@ describe.skipIf(!postgresAvailable())('live across the lab (PostgreSQL LISTEN/NO
       for (const run of runs) expect(points.filter((p) => p.runId === run.id).map((p) => p.index)).toEqual((await store.loadPoints(run.id)).step);
       expect(points).toHaveLength(storedCount);
     } finally {
+      await feed?.stop();
+      await store.close();
+    }
+  });
+
+  it('a noise run another process drives into the lab store reaches this one as progress by its records, and is stored whole', async () => {
+    const url = withPassword(cluster.createDatabase('live_noise'));
+    const store = await PostgresStore.open(url);
+    const progress: Array<ServiceEvents['progress']> = [];
+    const feed = await followLabChanges({
+      store,
+      drivesRun: () => false,
+      emit: (event, payload) => {
+        if (event === 'progress') progress.push(payload as ServiceEvents['progress']);
+      },
+      forcePolling: true,
+      pollIntervalMs: 50,
+    });
+    const folder = mkdtempSync(join(tmpdir(), 'rolloff-live-noise-'));
+    try {
+      const designPath = join(folder, 'noisy.json');
+      writeFileSync(designPath, JSON.stringify(noisyGain1000()));
+      // In its own process, not waited for synchronously: this one keeps looking while the run measures.
+      const noise = await new Promise<{ status: number | null; stderr: string }>((done) => {
+        const child = spawn(process.execPath, [BIN, 'noise', '--design', designPath, '--simulated', '--circuit-noise', '--time-scale', '5', '--max-amplitude', '1',
+          '--db', url, '--band', '200:20k', '--records', '6'], { stdio: ['ignore', 'ignore', 'pipe'], env: { ...process.env, ROLLOFF_BENCH: 'bench 6' } });
+        let stderr = '';
+        child.stderr.on('data', (chunk) => (stderr += chunk));
+        child.on('close', (status) => done({ status, stderr }));
+      });
+      expect(noise.status, noise.stderr).toBe(0);
+      const [run] = await store.listRuns();
+      expect(run).toMatchObject({ kind: 'noise', status: 'done', pointCount: 6, benchName: 'bench 6' });
+      for (let waited = 0; progress.at(-1)?.status !== 'done' && waited < 10_000; waited += 50) await new Promise((r) => setTimeout(r, 50));
+      expect(progress.at(-1)).toMatchObject({ runId: run.id, step: 6, total: 6, status: 'done' });
+      // Seen while it measured, record by record, not only at its end.
+      expect(progress.some((p) => p.status === 'running' && p.step > 0 && p.step < 6)).toBe(true);
+      expect((await store.loadNoiseRecords(run.id)).step).toEqual([0, 1, 2, 3, 4, 5]);
+      const stored = await store.getRun(run.id);
+      expect(stored.figures?.noise?.recordsUsed).toBe(6);
+      expect(await store.integrityProblems()).toEqual([]);
+    } finally {
+      rmSync(folder, { recursive: true, force: true });
       await feed?.stop();
       await store.close();
     }
