@@ -34,20 +34,25 @@ describe('rolloff noise', () => {
     const badBand = rolloff('noise', ...common, '--band', '50k:10');
     expect(badBand.status).toBe(2);
     expect(badBand.stderr).toMatch(/--band/);
-    const noLimit = rolloff('noise', '--design', designPath, '--simulated', '--db', dbPath);
+    // The maximum stimulus is the bench's setting: the refusals above saved 1 Vpp for the simulated bench of dbPath, so a bench without one is another file.
+    const noLimitDb = join(folder.path, 'no-limit.sqlite');
+    const noLimit = rolloff('noise', '--design', designPath, '--simulated', '--db', noLimitDb);
     expect(noLimit.status).toBe(2);
     expect(noLimit.stderr).toMatch(/--max-amplitude/);
-    if (existsSync(dbPath)) {
-      const store = SqliteStore.open(dbPath, { readonly: true });
+    for (const path of [dbPath, noLimitDb]) {
+      if (!existsSync(path)) continue;
+      const store = SqliteStore.open(path, { readonly: true });
       expect(await store.listDesigns()).toEqual([]);
       await store.close();
     }
   });
 
   it('measures, shows and exports a noise run', () => {
-    const measured = rolloff('noise', '--design', designPath, '--label', 'cli board', '--simulated', '--circuit-noise', '--time-scale', '20', '--max-amplitude', '1',
+    // No --max-amplitude: the simulated bench's limit saved by the first test applies, and is said to.
+    const measured = rolloff('noise', '--design', designPath, '--label', 'cli board', '--simulated', '--circuit-noise', '--time-scale', '20',
       '--db', dbPath, '--band', '200:20k', '--records', '6');
     expect(measured.status, measured.stderr).toBe(0);
+    expect(measured.stderr).toMatch(/reusing the limit of 1 Vpp set on .* for the simulated bench/);
     expect(measured.stdout).toMatch(/^run 1 {2}NOISE {2}done {2}\(SIMULATED: simulated bench\)/);
     expect(measured.stdout).toMatch(/Output noise over the band \(measured\) +\([\d.]+ ± [\d.]+\) mV RMS \(1σ\), from 6 records/);
     // show --json prints the run's JSON record, as for a sweep: it passes the schema and its own digest.
