@@ -6,6 +6,7 @@
  * Each refusal names the file, the field, what is known, and a hint.
  */
 import { describe, expect, it } from 'vitest';
+import { refusalOf } from '../../helpers/refusal';
 import { ProfileError, validateProfile } from '../../../app/bench';
 import scpiGenerator from '../../../app/bench/profiles/scpi-generator.json';
 import scpiMeter from '../../../app/bench/profiles/scpi-meter.json';
@@ -13,15 +14,7 @@ import scpiScope from '../../../app/bench/profiles/scpi-scope.json';
 
 const clone = <T>(value: T): Record<string, any> => JSON.parse(JSON.stringify(value));
 
-function refusal(json: unknown): ProfileError {
-  try {
-    validateProfile(json, 'lab.json');
-  } catch (error) {
-    expect(error).toBeInstanceOf(ProfileError);
-    return error as ProfileError;
-  }
-  throw new Error('expected the profile to be refused');
-}
+const refusal = (json: unknown): ProfileError => refusalOf(ProfileError, () => validateProfile(json, 'lab.json'));
 
 describe('names every object inherits are no operations and no references', () => {
   for (const name of ['constructor', 'toString', 'hasOwnProperty']) {
