@@ -5,7 +5,7 @@
  */
 import * as v from 'valibot';
 import type { InstrumentRole } from '../contract/contract';
-import { describeValue, fields, isPlainObject, optional, text, withDefault, withHint, LIMITS } from '../contract/field-schemas';
+import { describeValue, fields, isPlainObject, optional, required, text, withDefault, withHint, LIMITS } from '../contract/field-schemas';
 import { isQuery, templatePlaceholders } from './template';
 
 /** How an operation's command list must look. */
@@ -121,8 +121,10 @@ function operation(rule: OperationRule) {
   );
   const single = v.pipe(entry, v.transform((command) => [command]));
   return v.pipe(
-    v.custom<unknown>((input) => input !== undefined && input !== null, withHint(`is missing (needed to ${rule.description})`, `Add the command that does it to "operations".`)),
-    v.lazy((input) => (Array.isArray(input) ? list : single)),
+    required(
+      v.lazy((input) => (Array.isArray(input) ? list : single)),
+      withHint(`is missing (needed to ${rule.description})`, 'Add the command that does it to "operations".'),
+    ),
     v.rawCheck<Command[]>(({ dataset, addIssue }) => {
       if (!dataset.typed) return;
       const problem = queryRule(rule, dataset.value);

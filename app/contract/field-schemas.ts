@@ -267,6 +267,14 @@ export function optional<S extends v.GenericSchema>(schema: S) {
   return v.nullish(schema);
 }
 
+/** A field that must be given, with its own word for "missing" (what is needed, how to give it). */
+export function required<S extends v.GenericSchema>(schema: S, missingMessage: string) {
+  return v.pipe(
+    v.custom<unknown>((input) => input !== undefined && input !== null, missingMessage),
+    schema,
+  );
+}
+
 /** An optional field with a default for absent or null. */
 export function withDefault<S extends v.GenericSchema>(schema: S, value: v.InferOutput<S>) {
   return v.nullish(schema, value as never);

@@ -24,6 +24,7 @@ const PURE = PURE_PATHS.map((path) => `^${path.replace(/[.]/g, '[.]')}${path.end
 const PURE_PACKAGES = [
   { folder: '^app/signal/', packages: 'fft[.]js' },
   { folder: '^app/contract/', packages: 'valibot' },
+  { folder: '^app/circuit/', packages: 'valibot' },
 ];
 const HOSTS = '^(app/cli|app/host|main|renderer)/';
 
