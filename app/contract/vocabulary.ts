@@ -81,7 +81,9 @@ export const SETTINGS = {
     /** Window labels and record headings. */
     label: 'Maximum stimulus',
     unit: 'Vpp',
-    cliOption: 'max-amplitude',
+    cliOption: 'max-stimulus',
+    /** Its name before this table: still accepted on the command line, never shown in help. */
+    cliAliases: ['max-amplitude'],
     /** Field of the bench in the contract and the records. */
     field: 'maxStimulusVpp',
     /** Said wherever the limit is set: how a DC level is counted against it. */

@@ -1,6 +1,6 @@
 /**
  * Bench: connect instruments by address or from the port list, see their
- * identities, set the maximum stimulus amplitude, start the simulated bench
+ * identities, set the maximum stimulus and start the simulated bench
  * (always labelled simulated), watch the SCPI traffic, and see or change the
  * store the window works on (store-panel.ts).
  */
@@ -81,7 +81,7 @@ export class BenchView implements View {
     });
 
     const maxButton = h('button', { type: 'submit' }, 'Apply');
-    const maxForm = h('form', { className: 'stack-form', 'aria-label': 'Maximum stimulus amplitude' }, field(`${SETTINGS.maxStimulus.label} (V peak-to-peak)`, this.maxInput, `${asSentence(SETTINGS.maxStimulus.explanation)} Engineering notation works: 500m, 2.`), maxButton);
+    const maxForm = h('form', { className: 'stack-form', 'aria-label': SETTINGS.maxStimulus.label }, field(`${SETTINGS.maxStimulus.label} (${SETTINGS.maxStimulus.unit})`, this.maxInput, `${asSentence(SETTINGS.maxStimulus.explanation)} Engineering notation works: 500m, 2.`), maxButton);
     maxForm.addEventListener('submit', (event) => {
       event.preventDefault();
       void guarded(maxButton, 'Setting the maximum stimulus', async () => {

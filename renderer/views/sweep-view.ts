@@ -46,8 +46,8 @@ export class SweepView implements View {
   private readonly shownWhen = {
     log: field(SETTINGS.pointsPerDecade.label, this.inputs.pointsPerDecade),
     linear: field(SETTINGS.linearPoints.label, this.inputs.linearPoints, `From start to end, evenly spaced (default ${SWEEP_RANGE_DEFAULTS.ac.linearPoints}).`),
-    fixed: field(`${SETTINGS.fixedAmplitude.label} (${SETTINGS.fixedAmplitude.unit})`, this.inputs.fixedAmplitudeVpp, 'Never above the bench maximum.'),
-    auto: field(`${SETTINGS.targetOutput.label} (${SETTINGS.targetOutput.unit}, optional)`, this.inputs.targetOutputVpp, 'Empty: as large as stays linear. Never above the bench maximum.'),
+    fixed: field(`${SETTINGS.fixedAmplitude.label} (${SETTINGS.fixedAmplitude.unit})`, this.inputs.fixedAmplitudeVpp, `Never above the ${SETTINGS.maxStimulus.label.toLowerCase()}.`),
+    auto: field(`${SETTINGS.targetOutput.label} (${SETTINGS.targetOutput.unit}, optional)`, this.inputs.targetOutputVpp, `Empty: as large as stays linear. Never above the ${SETTINGS.maxStimulus.label.toLowerCase()}.`),
   };
   private readonly estimate = h('p', { className: 'estimate', 'data-testid': 'sweep-estimate', 'aria-live': 'polite' });
   private readonly buttons = {

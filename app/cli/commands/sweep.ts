@@ -15,11 +15,11 @@ export const sweepCommand: CommandSpec = {
   options: [...BUILD_OPTIONS, ...BENCH_OPTIONS, ...PLAN_OPTIONS, { name: 'json', kind: 'flag', description: `print the finished run on stdout as ${RUN_JSON_DESCRIPTION} (as show RUN --json)` }],
   details: `
 Examples:
-  rolloff sweep --design lowpass.json --label "board A" --simulated --max-amplitude 2
-  rolloff sweep --build 3 --generator tcp://192.0.2.10:5025 --scope tcp://192.0.2.11:5025 --max-amplitude 1 --from 10 --to 1meg
-  rolloff sweep --build 4 --dc --from 1m --to 10 --per-decade 5 --simulated --max-amplitude 20
+  rolloff sweep --design lowpass.json --label "board A" --simulated --max-stimulus 2
+  rolloff sweep --build 3 --generator tcp://192.0.2.10:5025 --scope tcp://192.0.2.11:5025 --max-stimulus 1 --from 10 --to 1meg
+  rolloff sweep --build 4 --dc --from 1m --to 10 --per-decade 5 --simulated --max-stimulus 20
 
-The maximum stimulus is a setting of the bench: --max-amplitude saves it for this bench (the
+The maximum stimulus is a setting of the bench: --max-stimulus saves it for this bench (the
 simulated bench and the real instruments of a bench each keep their own), and later sweeps on
 the same bench reuse it, saying so. Every point is stored the moment it is measured. Ctrl-C pauses after the current point;
 "rolloff resume RUN" continues where it stopped.`,

@@ -48,8 +48,8 @@ export const PLAN_OPTIONS: OptionSpec[] = [
   { name: SETTINGS.pointsPerDecade.cliOption, kind: 'integer', placeholder: 'N', description: `${SETTINGS.pointsPerDecade.explanation} (default ${SWEEP_RANGE_DEFAULTS.ac.pointsPerDecade})` },
   { name: 'linear', kind: 'flag', description: `linear spacing instead of log; give --${SETTINGS.linearPoints.cliOption}` },
   { name: SETTINGS.linearPoints.cliOption, kind: 'integer', placeholder: 'N', description: `${SETTINGS.linearPoints.explanation} (default ${SWEEP_RANGE_DEFAULTS.ac.linearPoints})` },
-  { name: SETTINGS.fixedAmplitude.cliOption, kind: 'number', placeholder: 'VPP', description: `${SETTINGS.fixedAmplitude.label}, V peak-to-peak: ${SETTINGS.fixedAmplitude.explanation} (default: ${SETTINGS.automaticAmplitude.label.toLowerCase()}, ${SETTINGS.automaticAmplitude.explanation})` },
-  { name: SETTINGS.targetOutput.cliOption, kind: 'number', placeholder: 'VPP', description: `${SETTINGS.targetOutput.label}, V peak-to-peak: ${SETTINGS.targetOutput.explanation}` },
+  { name: SETTINGS.fixedAmplitude.cliOption, kind: 'number', placeholder: 'VPP', description: `${SETTINGS.fixedAmplitude.label}, ${SETTINGS.fixedAmplitude.unit}: ${SETTINGS.fixedAmplitude.explanation} (default: ${SETTINGS.automaticAmplitude.label.toLowerCase()}, ${SETTINGS.automaticAmplitude.explanation})` },
+  { name: SETTINGS.targetOutput.cliOption, kind: 'number', placeholder: 'VPP', description: `${SETTINGS.targetOutput.label}, ${SETTINGS.targetOutput.unit}: ${SETTINGS.targetOutput.explanation}` },
   { name: 'measure', kind: 'string', placeholder: 'scope|meter', description: 'how to measure AC points', defaultValue: 'scope' },
   { name: 'through', kind: 'flag', description: 'through-calibration run (meter measures the generator directly; stage bypassed)' },
   { name: 'cycles', kind: 'integer', placeholder: 'N', description: 'minimum whole cycles per acquisition', defaultValue: SWEEP_DEFAULTS.minCycles },
@@ -165,9 +165,9 @@ function checkBenchOptions(service: RolloffService, parsed: ParsedArgs): void {
   if (service.maxStimulus === undefined) {
     const bench = service.bench ? benchDescription(service.bench) : 'this bench';
     throw new ValidationError(
-      '--max-amplitude',
+      '--max-stimulus',
       `is missing and ${bench} has no maximum stimulus saved`,
-      `Give the largest peak-to-peak voltage the circuit may see, e.g. --max-amplitude 2; it is saved for ${bench}${service.bench?.simulated ? '' : ' (a limit set for the simulated bench never applies to real instruments)'}.`,
+      `Give the largest peak-to-peak voltage the circuit may see, e.g. --max-stimulus 2; it is saved for ${bench}${service.bench?.simulated ? '' : ' (a limit set for the simulated bench never applies to real instruments)'}.`,
     );
   }
   if (!optionFlag(parsed, 'simulated') && !optionString(parsed, 'generator')) {

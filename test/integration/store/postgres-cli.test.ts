@@ -80,7 +80,7 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
       });
     // Each bench sweeps twice: first with its own limit, then reusing it (never the other bench's).
     const limitOf: Record<string, number> = { 'bench 3': 1.5, 'bench 7': 0.25 };
-    const twice = async (bench: string) => [await sweep(bench, ['--max-amplitude', String(limitOf[bench])]), await sweep(bench, [])];
+    const twice = async (bench: string) => [await sweep(bench, ['--max-stimulus', String(limitOf[bench])]), await sweep(bench, [])];
     // Both open the empty database at the same moment: one migrates under the advisory lock, the other waits.
     const results = (await Promise.all([twice('bench 3'), twice('bench 7')])).flat();
     for (const result of results) expect(result.status, result.stderr).toBe(0);

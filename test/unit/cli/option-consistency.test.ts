@@ -7,7 +7,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { COMMANDS } from '../../../app/cli/commands';
-import type { CommandSpec, OptionSpec } from '../../../app/cli/args';
+import { formatCommandHelp, parseArgs, type CommandSpec, type OptionSpec } from '../../../app/cli/args';
 import { DESIGN_PLACEHOLDER } from '../../../app/cli/design-option';
 import { SETTINGS } from '../../../app/contract/vocabulary';
 import { SIMULATED_BENCH_DEFAULTS } from '../../../app/sim';
@@ -84,6 +84,16 @@ describe('command options', () => {
     for (const { command, option } of limits) {
       expect(option.description.startsWith(SETTINGS.maxStimulus.label), command.name).toBe(true);
       expect(option.description, command.name).toContain(SETTINGS.maxStimulus.explanation);
+    }
+  });
+
+  it('the maximum stimulus\'s old name --max-amplitude is still accepted but never shown in help', () => {
+    const limits = withOption(SETTINGS.maxStimulus.cliOption);
+    for (const { command, option } of limits) {
+      expect(option.aliases, command.name).toEqual([...SETTINGS.maxStimulus.cliAliases]);
+      expect(parseArgs(['--max-amplitude', '2'], command.options).options[SETTINGS.maxStimulus.cliOption], command.name).toBe(2);
+      expect(formatCommandHelp(command), command.name).not.toContain('max-amplitude');
+      expect(formatCommandHelp(command), command.name).toContain(`--${SETTINGS.maxStimulus.cliOption} VPP`);
     }
   });
 
