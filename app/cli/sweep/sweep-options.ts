@@ -14,6 +14,7 @@ import { resolveDatabasePath } from '../../store';
 import { DEFAULT_PROFILE_ID, resolveBenchName } from '../../bench';
 import { parseEngineering } from '../../units';
 import { SWEEP_DEFAULTS, SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
+import { perDecadeDefaultText, sweepEndDefaultText } from '../help-defaults';
 import { DATABASE_OPTION, SIMULATED_BENCH_OPTIONS, maxStimulusFrom, maxStimulusOption, simulatedBenchFrom } from '../common-options';
 import { chooseDesign, designContent, designOption, storedDesignId } from '../design-option';
 import { SETTINGS } from '../../contract/vocabulary';
@@ -42,10 +43,10 @@ export const BENCH_OPTIONS: OptionSpec[] = [
 
 export const PLAN_OPTIONS: OptionSpec[] = [
   { name: 'dc', kind: 'flag', description: 'DC transfer sweep (log stage) instead of a frequency sweep' },
-  { name: 'from', kind: 'number', placeholder: 'HZ|V', description: `start frequency, or DC level with --dc (default ${SWEEP_RANGE_DEFAULTS.ac.from} Hz; DC ${SWEEP_RANGE_DEFAULTS.dc.from} V)` },
-  { name: 'to', kind: 'number', placeholder: 'HZ|V', description: `end frequency, or DC level with --dc (default ${SWEEP_RANGE_DEFAULTS.ac.to} Hz; DC ${SWEEP_RANGE_DEFAULTS.dc.to} V)` },
+  { name: 'from', kind: 'number', placeholder: 'HZ|V', description: `start frequency, or DC level with --dc (${sweepEndDefaultText('from')})` },
+  { name: 'to', kind: 'number', placeholder: 'HZ|V', description: `end frequency, or DC level with --dc (${sweepEndDefaultText('to')})` },
   // No defaultValue on per-decade and points: which of them was given is how a spacing mix-up is caught.
-  { name: SETTINGS.pointsPerDecade.cliOption, kind: 'integer', placeholder: 'N', description: `${SETTINGS.pointsPerDecade.explanation} (default ${SWEEP_RANGE_DEFAULTS.ac.pointsPerDecade})` },
+  { name: SETTINGS.pointsPerDecade.cliOption, kind: 'integer', placeholder: 'N', description: `${SETTINGS.pointsPerDecade.explanation} (${perDecadeDefaultText()})` },
   { name: 'linear', kind: 'flag', description: `linear spacing instead of log; give --${SETTINGS.linearPoints.cliOption}` },
   { name: SETTINGS.linearPoints.cliOption, kind: 'integer', placeholder: 'N', description: `${SETTINGS.linearPoints.explanation} (default ${SWEEP_RANGE_DEFAULTS.ac.linearPoints})` },
   { name: SETTINGS.fixedAmplitude.cliOption, kind: 'number', placeholder: 'VPP', description: `${SETTINGS.fixedAmplitude.label}, ${SETTINGS.fixedAmplitude.unit}: ${SETTINGS.fixedAmplitude.explanation} (default: ${SETTINGS.automaticAmplitude.label.toLowerCase()}, ${SETTINGS.automaticAmplitude.explanation})` },

@@ -11,6 +11,7 @@ import { formatCommandHelp, parseArgs, type CommandSpec, type OptionSpec } from 
 import { DESIGN_PLACEHOLDER } from '../../../app/cli/design-option';
 import { SETTINGS } from '../../../app/contract/vocabulary';
 import { SIMULATED_BENCH_DEFAULTS } from '../../../app/sim';
+import { TOLERANCE_BAND_SETTINGS } from '../../../app/circuit';
 
 const uses = COMMANDS.flatMap((command) => command.options.map((option) => ({ command, option })));
 
@@ -95,6 +96,18 @@ describe('command options', () => {
       expect(formatCommandHelp(command), command.name).not.toContain('max-amplitude');
       expect(formatCommandHelp(command), command.name).toContain(`--${SETTINGS.maxStimulus.cliOption} VPP`);
     }
+  });
+
+  it('a sweep\'s range and the tolerance band state one default in one notation on every command', () => {
+    for (const name of ['from', 'to', 'per-decade']) {
+      const descriptions = withOption(name).map(({ option }) => option.description.match(/default [^;)]*(; DC [^;)]*)?/)?.[0]);
+      expect(withOption(name).map((u) => u.command.name).sort(), name).toEqual(['schedule', 'sweep', 'theory']);
+      expect(new Set(descriptions).size, `--${name}: ${descriptions.join(' | ')}`).toBe(1);
+      expect(descriptions[0], name).not.toMatch(/\d{4,}|0\.0/);
+    }
+    const theory = COMMANDS.find((c) => c.name === 'theory')!;
+    expect(theory.options.find((o) => o.name === 'samples')?.description).toContain(`default ${TOLERANCE_BAND_SETTINGS.samples},`);
+    expect(theory.options.find((o) => o.name === 'seed')?.description).toContain(`default ${TOLERANCE_BAND_SETTINGS.seed},`);
   });
 
   it('a linear sweep has its own --points; log and linear counts state their defaults and are not filled in', () => {
