@@ -4,7 +4,7 @@ import type { Block, RecordDocument } from './record-document';
 import { recordOutputV, type RecordDesign, type RunRecord } from './model';
 import { runPlots } from './record-plots';
 import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatUncertainty, formatVolts, idnText, offlinePeriodsText, verdictHeadline } from './record-formatting';
-import { DIODE_MODEL_PARAMETERS, FIGURE_NAMES, OPAMP_MODEL_PARAMETERS, SETTINGS, pointCountText } from '../contract/vocabulary';
+import { BENCH_WORDS, DIODE_MODEL_PARAMETERS, FIGURE_NAMES, OPAMP_MODEL_PARAMETERS, SETTINGS, pointCountText } from '../contract/vocabulary';
 
 export const SIMULATED_BANNER = 'SIMULATED BENCH — these readings come from the simulated bench and describe a computed circuit, not a physical board.';
 
@@ -23,7 +23,7 @@ export function runDocument(record: RunRecord): RecordDocument {
         ['Ended', run.endedAt ?? '—'],
         ['Points', pointCountText(run.plannedCount, record.points.flags)],
         ['Software that measured the run', `Rolloff ${run.softwareVersion}`],
-        ['Bench', run.simulated ? 'simulated (simulated bench)' : 'physical instruments'],
+        ['Bench', run.simulated ? BENCH_WORDS.simulated : BENCH_WORDS.real],
         ['Store unreachable (points kept in the bench\'s outbox)', offlinePeriodsText(run.offlinePeriods)],
         ['Data digest (SHA-256)', record.digest.hex],
       ],
@@ -173,7 +173,7 @@ function planBlocks(record: RunRecord): Block[] {
         [`${SETTINGS.maxStimulus.label} in force`, plan.maxStimulusVpp !== undefined ? formatEngineering(plan.maxStimulusVpp, 'Vpp') : 'not recorded'],
         ['Output read by', `${plan.measurement}${plan.through ? ' (through calibration: the stage was bypassed)' : ''}`],
         ['Minimum cycles / averages', `${plan.minCycles} / ${plan.averages}`],
-        ['Refinement near corners', plan.refine ? 'yes' : 'no'],
+        [SETTINGS.refine.label, plan.refine ? 'yes' : 'no'],
         ['Limits', limitText],
         ['Run notes', record.run.notes || '—'],
       ],

@@ -12,6 +12,7 @@ import { guarded, showInfo, showPartResult } from '../notices';
 import type { View } from '../shell';
 import type { AppState } from '../state';
 import { SETTINGS } from '../../app/contract/vocabulary';
+import { asSentence } from '../model/format';
 import { benchDescription, limitSourceText } from '../../app/contract/bench-text';
 import { StorePanel } from './store-panel';
 
@@ -233,11 +234,6 @@ export function maxStimulusSourceText(bench: BenchStatus): string {
   if (bench.maxStimulusLimit) return asSentence(limitSourceText(bench.maxStimulusLimit));
   if (bench.maxStimulusVpp > 0) return 'Not saved yet: it becomes the setting of the bench you connect or start next.';
   return bench.bench ? `Not set for ${benchDescription(bench.bench)}: set it before connecting a generator.` : 'Not set: set it before connecting a generator.';
-}
-
-/** "reusing …" → "Reusing ….". */
-function asSentence(text: string): string {
-  return `${text[0].toUpperCase()}${text.slice(1)}.`;
 }
 
 function partFailureSlot(testId: string): HTMLElement {

@@ -269,16 +269,16 @@ export class DesignView implements View {
       const stability = analyzeStability(design);
       const margins = stability
         .filter((s) => s.phaseMarginDeg !== undefined)
-        .map((s) => `${s.id}: ${formatFixed(s.phaseMarginDeg!, 1)}° (peaking ${formatFixed(s.peakingDb, 2)} dB)`);
+        .map((s) => `${s.id}: ${formatFixed(s.phaseMarginDeg!, 1)}° (${FIGURE_NAMES.closedLoopPeakingDb.toLowerCase()} ${formatFixed(s.peakingDb, 2)} dB)`);
       const warnings = stabilityWarnings(stability);
       replaceChildren(
         this.figures,
-        h('dt', {}, 'Pass-band gain'), h('dd', { 'data-figure': 'passband' }, formatDb(summary.passbandGainDb)),
+        h('dt', {}, FIGURE_NAMES.passbandGainDb), h('dd', { 'data-figure': 'passband' }, formatDb(summary.passbandGainDb)),
         h('dt', {}, FIGURE_NAMES.minus3dbHz), h('dd', { 'data-figure': 'minus3db' }, summary.minus3dbHz.length ? summary.minus3dbHz.map((f) => formatHz(f)).join(', ') : 'none in range'),
         h('dt', {}, FIGURE_NAMES.gainLimitHz), h('dd', { 'data-figure': 'gain-limit' }, formatHz(summary.gainLimitHz)),
-        h('dt', {}, 'Roll-off'), h('dd', {}, summary.rolloffDbPerDecade === undefined ? '—' : `${formatFixed(summary.rolloffDbPerDecade, 1)} dB/decade`),
+        h('dt', {}, FIGURE_NAMES.rolloffDbPerDecade), h('dd', {}, summary.rolloffDbPerDecade === undefined ? '—' : `${formatFixed(summary.rolloffDbPerDecade, 1)} dB/decade`),
         h('dt', {}, 'Tolerance band'), h('dd', {}, hasTolerances ? `2.5–97.5 % of ${TOLERANCE_BAND_SETTINGS.samples} Monte Carlo samples` : 'no part tolerances given'),
-        h('dt', {}, 'Phase margin'), h('dd', { 'data-figure': 'phase-margin' }, margins.length ? margins.join('; ') : 'no loop-gain crossover (ideal op-amp)'),
+        h('dt', {}, FIGURE_NAMES.phaseMarginDeg), h('dd', { 'data-figure': 'phase-margin' }, margins.length ? margins.join('; ') : 'no loop-gain crossover (ideal op-amp)'),
         ...warnings.map((w) => h('dd', { className: 'inline-warning', role: 'alert', 'data-warning': w.kind }, w.message)),
       );
     } catch (error) {

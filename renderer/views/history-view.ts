@@ -5,6 +5,7 @@
  */
 import { RUN_STATUSES, type RolloffClient, type RunFilter, type RunStatus, type RunSummary } from '../../app/contract/contract';
 import { runStateText, shownStatus } from '../../app/contract/run-owner-text';
+import { RUN_KIND_NAMES, summaryPointCountText } from '../../app/contract/vocabulary';
 import { debounce, field, h, replaceChildren, select } from '../dom';
 import { guarded } from '../notices';
 import { resumeConfirmingTakeOver } from './take-over-dialog';
@@ -93,7 +94,7 @@ export class HistoryView implements View {
       resumable.length === 0
         ? null
         : h('div', { className: 'panel attention' }, h('h3', {}, 'Unfinished runs'), h('p', {}, 'These runs did not finish (paused, or interrupted when the app stopped). Every point measured so far is kept; resuming continues with the next step.'),
-            h('ul', {}, resumable.map((run) => h('li', {}, `Run #${run.id} ${run.designName} — ${run.buildLabel}: ${run.pointCount} of ${run.plannedCount} points (${shownStatus(run)}) `, this.resumeButton(run))))),
+            h('ul', {}, resumable.map((run) => h('li', {}, `Run #${run.id} ${run.designName} — ${run.buildLabel}: ${summaryPointCountText(run.plannedCount, run.pointCount)} points (${shownStatus(run)}) `, this.resumeButton(run))))),
     );
   }
 
@@ -117,14 +118,14 @@ export class HistoryView implements View {
       h('td', {}, run.designName),
       h('td', {}, run.buildLabel),
       h('td', {}, benchLabel(run)),
-      h('td', {}, run.kind.toUpperCase()),
+      h('td', {}, RUN_KIND_NAMES[run.kind]),
       h('td', { 'data-testid': 'run-state' },
         h('span', { className: `badge status-${status}` }, status),
         run.simulated ? h('span', { className: 'badge simulated' }, 'simulated') : null,
         state ? h('small', { className: 'run-driver' }, state) : null,
       ),
       h('td', {}, run.startedAt ? run.startedAt.slice(0, 16).replace('T', ' ') : '—'),
-      h('td', {}, `${run.pointCount}/${run.plannedCount}`),
+      h('td', {}, summaryPointCountText(run.plannedCount, run.pointCount)),
       h('td', {}, open, unfinished ? this.resumeButton(run) : null),
     );
   }

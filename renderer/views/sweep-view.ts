@@ -9,7 +9,8 @@ import type { BuildRecord, RolloffClient, RunDetail, RunFigures, RunProgress, Ru
 import { formatEngineering, formatFixed, formatWithUncertainty, logGrid, parseEngineering } from '../../app/units';
 import { parseDesign, solveDcTransfer, withActualValues } from '../../app/circuit';
 import { debounce, field, h, replaceChildren, select } from '../dom';
-import { formatDb, formatDuration, formatHz } from '../model/format';
+import { asSentence, formatDb, formatDuration, formatHz } from '../model/format';
+import { figureRows } from '../model/figure-rows';
 import { LivePoints } from '../model/live-points';
 import { guarded, showError } from '../notices';
 import { BodePlot } from '../plot/bode-plot';
@@ -90,7 +91,7 @@ export class SweepView implements View {
       field('Measure with', this.inputs.measurement),
       field('Minimum cycles', this.inputs.minCycles),
       field('Averages', this.inputs.averages),
-      field('Refine −3 dB and gain-limit points', this.inputs.refine),
+      field(SETTINGS.refine.label, this.inputs.refine, `${asSentence(SETTINGS.refine.explanation)}`),
       field('Operator', this.inputs.operator),
       field('Notes', this.inputs.notes),
     );
@@ -338,29 +339,7 @@ export class SweepView implements View {
   }
 
   private renderFigures(figures: RunFigures, verdict: Verdict | null): void {
-    const rows: Array<[string, string]> = [];
-    if (figures.passbandGainDb !== undefined) rows.push(['Pass-band gain', formatDb(figures.passbandGainDb)]);
-    if (figures.minus3dbHz.length > 0) rows.push([FIGURE_NAMES.minus3dbHz, figures.minus3dbHz.map((f) => formatHz(f)).join(', ')]);
-    if (figures.gainLimitHz !== undefined) rows.push([`${FIGURE_NAMES.gainLimitHz} (measured)`, formatHz(figures.gainLimitHz)]);
-    if (figures.gbwEstimateHz !== undefined) rows.push([`${FIGURE_NAMES.gbwEstimateHz} estimate`, figures.gbwUncertaintyHz !== undefined ? `${formatWithUncertainty(figures.gbwEstimateHz, figures.gbwUncertaintyHz, 'Hz')} (1σ)` : formatHz(figures.gbwEstimateHz)]);
-    if (figures.rolloffDbPerDecade !== undefined) rows.push(['Roll-off', `${formatFixed(figures.rolloffDbPerDecade, 1)} dB/decade`]);
-    if (figures.maxDeviationDb !== undefined) rows.push([FIGURE_NAMES.maxDeviationDb, formatDb(figures.maxDeviationDb)]);
-    if (figures.closedLoopPeakingDb !== undefined) {
-      rows.push(['Closed-loop peaking', `${formatDb(figures.closedLoopPeakingDb)}${figures.theoryPeakingDb !== undefined ? ` (computed ${formatDb(figures.theoryPeakingDb)})` : ''}`]);
-    }
-    if (figures.phaseMarginEstimateDeg !== undefined) {
-      const bound = figures.phaseMarginEstimateIsLowerBound ? '≥ ' : '';
-      const computed = figures.theoryPhaseMarginDeg !== undefined ? ` (computed ${formatFixed(figures.theoryPhaseMarginDeg, 1)}°)` : '';
-      rows.push(['Phase margin from peaking (estimate)', `${bound}${formatFixed(figures.phaseMarginEstimateDeg, 1)}°${computed}`]);
-    }
-    for (const warning of figures.theoryWarnings ?? []) rows.push(['Warning (computed theory)', warning]);
-    const fit = figures.logFit;
-    if (fit) {
-      const interval = (value: number, ci: [number, number], unit: string) => `${formatEngineering(value, unit)} (95 %: ${formatEngineering(ci[0], unit)} … ${formatEngineering(ci[1], unit)})`;
-      rows.push([FIGURE_NAMES.diodeIdealityN, `${formatFixed(fit.n, 3)} (95 %: ${formatFixed(fit.nCi[0], 3)} … ${formatFixed(fit.nCi[1], 3)})`]);
-      rows.push(['Saturation current IS', interval(fit.isA, fit.isCi, 'A')]);
-      rows.push(['Series resistance RS', interval(fit.rsOhm, fit.rsCi, 'Ω')]);
-    }
+    const rows = figureRows(figures);
     if (verdict) rows.push(['Verdict', `${verdict.pass ? 'pass' : 'fail'}${verdict.reasons.length ? ' — ' + verdict.reasons.join('; ') : ''}`]);
     replaceChildren(this.figures, rows.length === 0 ? h('p', { className: 'empty' }, 'Figures appear when the run has enough points.') : rows.flatMap(([term, value]) => [h('dt', {}, term), h('dd', {}, value)]));
   }

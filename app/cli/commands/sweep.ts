@@ -7,6 +7,7 @@ import { formatDuration } from '../../units';
 import { runDetailText } from '../sweep/summary-text';
 import { formatEngineering, formatFixed } from '../../units';
 import { RUN_JSON_DESCRIPTION, runRecordJson } from '../run-json';
+import { BENCH_WORDS } from '../../contract/vocabulary';
 
 export const sweepCommand: CommandSpec = {
   name: 'sweep',
@@ -46,7 +47,7 @@ the same bench reuse it, saying so. Every point is stored the moment it is measu
         process.stderr.write('through-calibration: the meter must read the generator output directly (stage bypassed); the result becomes this bench\'s calibration.\n');
       }
       const run = await service.startRun(request);
-      process.stderr.write(`run ${run.id} started${run.simulated ? ' on the simulated bench (simulated)' : ''}; database ${service.databaseLocation}\n`);
+      process.stderr.write(`run ${run.id} started on the ${run.simulated ? BENCH_WORDS.simulated : BENCH_WORDS.real}; database ${service.databaseLocation}\n`);
       const status = await followRun(service, run.id).catch((error) => {
         throw error;
       });

@@ -309,11 +309,11 @@ function summaryLines(design: Design, s: AcSummary, tauS: number): string[] {
   const hz = (value: number | undefined) => (value === undefined ? 'not in reach' : formatEngineering(value, 'Hz'));
   const lines = [
     `Design: ${design.name}`,
-    `Pass-band gain:     ${formatFixed(s.passbandGainDb, 3)} dB`,
+    `${(FIGURE_NAMES.passbandGainDb + ':').padEnd(20)}${formatFixed(s.passbandGainDb, 3)} dB`,
     `${(FIGURE_NAMES.minus3dbHz + ':').padEnd(20)}${s.minus3dbHz.length ? s.minus3dbHz.map((f) => formatEngineering(f, 'Hz')).join(', ') : 'none in the sweep'}`,
     `${(FIGURE_NAMES.gainLimitHz + ':').padEnd(20)}${hz(s.gainLimitHz)} (loop gain 1: above it the op-amp, not the design, sets the response)`,
     `Peak gain:          ${formatFixed(s.peakGainDb, 3)} dB at ${formatEngineering(s.peakFrequencyHz, 'Hz')}`,
-    `Roll-off, top decade: ${s.rolloffDbPerDecade === undefined ? 'n/a' : `${formatFixed(s.rolloffDbPerDecade, 1)} dB/decade`}`,
+    `${FIGURE_NAMES.rolloffDbPerDecade}, top decade: ${s.rolloffDbPerDecade === undefined ? 'n/a' : `${formatFixed(s.rolloffDbPerDecade, 1)} dB/decade`}`,
     `Slowest time constant: ${formatEngineering(tauS, 's')}`,
   ];
   const vpk = maxUndistortedOutputVpk(design, 1e3);

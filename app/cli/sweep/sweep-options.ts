@@ -55,7 +55,7 @@ export const PLAN_OPTIONS: OptionSpec[] = [
   { name: 'through', kind: 'flag', description: 'through-calibration run (meter measures the generator directly; stage bypassed)' },
   { name: 'cycles', kind: 'integer', placeholder: 'N', description: 'minimum whole cycles per acquisition', defaultValue: SWEEP_DEFAULTS.minCycles },
   { name: 'averages', kind: 'integer', placeholder: 'N', description: 'acquisitions per point (outliers rejected)', defaultValue: SWEEP_DEFAULTS.averages },
-  { name: 'no-refine', kind: 'flag', description: 'skip the extra points near the −3 dB and gain-limit points' },
+  { name: SETTINGS.refine.cliOption, kind: 'flag', description: `turn off the ${SETTINGS.refine.label.toLowerCase()} (${SETTINGS.refine.explanation}; default on)` },
   { name: 'max-deviation', kind: 'number', placeholder: 'DB', description: 'verdict: largest allowed |measured − theory| in the pass band' },
   { name: 'corner-tolerance', kind: 'number', placeholder: 'FRACTION', description: 'verdict: allowed relative error of each −3 dB point, e.g. 0.05' },
   { name: 'operator', kind: 'string', placeholder: 'NAME', description: 'who ran it (recorded)', defaultValue: '' },

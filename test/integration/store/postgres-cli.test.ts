@@ -37,7 +37,7 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
   it('sweeps into the lab store and lists the runs from another process, never printing the password', async () => {
     const demo = rolloff('demo', '--time-scale', '20', '--db', cluster.urlWithPassword);
     expect(demo.status, demo.stderr).toBe(0);
-    expect(demo.stdout).toMatch(/gain-limit point/);
+    expect(demo.stdout).toMatch(/Gain-limit point/);
     const runs = rolloff('runs', '--db', cluster.urlWithPassword);
     expect(runs.status, runs.stderr).toBe(0);
     for (const output of [demo.stdout, demo.stderr, runs.stdout, runs.stderr]) expect(output).not.toContain(cluster.password);

@@ -8,7 +8,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { COMMANDS } from '../../../app/cli/commands';
 import { formatCommandHelp } from '../../../app/cli/args';
-import { FIGURE_NAMES, FLAG_WORDS, RETIRED_FIGURE_NAMES, RETIRED_SETTING_NAMES, pointCountText } from '../../../app/contract/vocabulary';
+import { FIGURE_NAMES, FLAG_WORDS, RETIRED_FIGURE_NAMES, RETIRED_SETTING_NAMES, pointCountText, summaryPointCountText } from '../../../app/contract/vocabulary';
 import { PointFlag } from '../../../app/contract/contract';
 import { buildRunRecord, renderRecord } from '../../../app/record';
 import { acRunDetail, dcRunDetail, fixtureBuild, FIXTURE_DESIGN, LOG_STAGE_DESIGN } from '../record/fixtures';
@@ -68,6 +68,11 @@ describe('a run\'s point count in words (CLI, Sweep view, records)', () => {
     expect(pointCountText(41, [...planned(41), ...planned(2, PointFlag.refinement)])).toBe('41 planned + 2 refinement');
     expect(pointCountText(13, [...planned(13, PointFlag.distorted), PointFlag.refinement | PointFlag.retried])).toBe('13 planned + 1 refinement');
   });
+  it('a run summary (two counts, no flags) says the same as the points', () => {
+    expect(summaryPointCountText(41, 43)).toBe(pointCountText(41, [...planned(41), ...planned(2, PointFlag.refinement)]));
+    expect(summaryPointCountText(41, 20)).toBe('20 of 41 planned');
+    expect(summaryPointCountText(10, 10)).toBe('10 planned');
+  });
   it('says how far a run that stopped early got', () => {
     expect(pointCountText(41, planned(20))).toBe('20 of 41 planned');
     expect(pointCountText(41, [])).toBe('0 of 41 planned');
@@ -109,7 +114,7 @@ describe('numbers for people write the true minus "−" (U+2212), machine format
 
   it('the terminal summary of a run', () => {
     const text = runDetailText(acRunDetail());
-    expect(text).toMatch(/roll-off\s+−\d/);
+    expect(text).toMatch(/Roll-off\s+−\d/);
     expect(asciiMinusesIn(text)).toEqual([]);
   });
 });
