@@ -15,8 +15,14 @@ export const formatHz = (value: number) => formatEngineering(value, 'Hz', 4);
 export const formatVolts = (value: number) => formatEngineering(value, 'V', 4);
 export const formatDb = (value: number, decimals = 2) => `${formatFixed(value, decimals)} dB`;
 export const formatDeg = (value: number, decimals = 1) => `${formatFixed(value, decimals)}°`;
-/** Uncertainties to two significant digits (GUM JCGM 100:2008 §7.2.6, recalled from memory). */
-export const formatUncertainty = (value: number) => Number(value.toPrecision(2)).toString();
+/**
+ * A point's gain (dB) or phase (°) with its stored uncertainty, rounded together as the GUM
+ * reports them (app/units/uncertainty.ts), with no SI prefix on dB or °; the value alone
+ * (three decimals) when the point has no uncertainty.
+ */
+export function formatMeasured(value: number, uncertainty: MaybeNumber | undefined, unit: 'dB' | '°'): string {
+  return formatWithUncertainty(value, uncertainty ?? Number.NaN, unit, { prefix: false });
+}
 
 /** The reply an instrument gave to *IDN? (IEEE 488.2 §10.14: four comma-separated fields). */
 export function idnText(identity: InstrumentIdentity): string {
