@@ -5,6 +5,7 @@
  */
 import { RUN_STATUSES, type RolloffClient, type RunFilter, type RunStatus, type RunSummary } from '../../app/contract/contract';
 import { runStateText, shownStatus } from '../../app/contract/run-owner-text';
+import { instantText } from '../../app/contract/bench-text';
 import { RUN_KIND_NAMES, summaryPointCountText } from '../../app/contract/vocabulary';
 import { debounce, field, h, replaceChildren, select } from '../dom';
 import { guarded } from '../notices';
@@ -124,7 +125,7 @@ export class HistoryView implements View {
         run.simulated ? h('span', { className: 'badge simulated' }, 'simulated') : null,
         state ? h('small', { className: 'run-driver' }, state) : null,
       ),
-      h('td', {}, run.startedAt ? run.startedAt.slice(0, 16).replace('T', ' ') : '—'),
+      h('td', {}, run.startedAt ? instantText(run.startedAt) : '—'),
       h('td', {}, summaryPointCountText(run.plannedCount, run.pointCount)),
       h('td', {}, open, unfinished ? this.resumeButton(run) : null),
     );

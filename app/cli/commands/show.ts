@@ -7,7 +7,7 @@ import { flagWords } from '../../contract/vocabulary';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../common-options';
-import { runDetailText } from '../sweep/summary-text';
+import { runDetailText, timeText } from '../sweep/summary-text';
 import { RUN_JSON_DESCRIPTION, runRecordJson } from '../run-json';
 
 export const showCommand: CommandSpec = {
@@ -43,7 +43,7 @@ export const showCommand: CommandSpec = {
       }
       if (optionFlag(parsed, 'list-events')) {
         process.stdout.write('\n');
-        for (const e of detail.events) process.stdout.write(`${e.at}  ${e.level.padEnd(7)}  ${e.message}\n`);
+        for (const e of detail.events) process.stdout.write(`${timeText(e.at)}  ${e.level.padEnd(7)}  ${e.message}\n`);
       }
       return 0;
     } finally {

@@ -1,4 +1,5 @@
 import type { CommandSpec } from '../args';
+import { DESIGN_PLACEHOLDER } from '../design-option';
 import { optionFlag } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
 import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, namedForTheCommandLine, openService, prepareSweep, reportReusedLimit } from '../sweep/sweep-options';
@@ -12,7 +13,7 @@ import { BENCH_WORDS } from '../../contract/vocabulary';
 export const sweepCommand: CommandSpec = {
   name: 'sweep',
   summary: 'Sweep a build (frequency or DC transfer), store every point, compare with theory',
-  usage: '(--build ID | --design FILE.json [--label TEXT] [--actual PART=VALUE …]) (--simulated | --generator ADDR --scope ADDR|--meter ADDR) [options]',
+  usage: `(--build ID | --design ${DESIGN_PLACEHOLDER} [--label TEXT] [--actual PART=VALUE …]) (--simulated | --generator ADDR --scope ADDR|--meter ADDR) [options]`,
   options: [...BUILD_OPTIONS, ...BENCH_OPTIONS, ...PLAN_OPTIONS, { name: 'json', kind: 'flag', description: `print the finished run on stdout as ${RUN_JSON_DESCRIPTION} (as show RUN --json)` }],
   details: `
 Examples:

@@ -65,6 +65,8 @@ describe('command options', () => {
     const designs = withOption('design');
     expect(designs.map((u) => u.command.name).sort()).toEqual(['build', 'schedule', 'sim', 'sweep']);
     for (const { option } of designs) expect([option.kind, option.placeholder]).toEqual(['string', DESIGN_PLACEHOLDER]);
+    // The usage line says the same as the option list.
+    for (const { command } of designs) if (command.usage.includes('--design')) expect(command.usage, command.name).toContain(`--design ${DESIGN_PLACEHOLDER}`);
     const theory = COMMANDS.find((c) => c.name === 'theory')!;
     expect(theory.usage.startsWith(DESIGN_PLACEHOLDER)).toBe(true);
   });
