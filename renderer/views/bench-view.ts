@@ -8,7 +8,7 @@ import { INSTRUMENT_ROLES as ROLES, type BenchStatus, type DesignRecord, type In
 import { parseEngineering } from '../../app/units';
 import { UserError } from '../../app/errors';
 import { field, h, replaceChildren, select } from '../dom';
-import { guarded, showInfo, showPartResult } from '../notices';
+import { guarded, partFailureSlot, showInfo, showPartResult } from '../notices';
 import type { View } from '../shell';
 import type { AppState } from '../state';
 import { SETTINGS } from '../../app/contract/vocabulary';
@@ -234,8 +234,4 @@ export function maxStimulusSourceText(bench: BenchStatus): string {
   if (bench.maxStimulusLimit) return asSentence(limitSourceText(bench.maxStimulusLimit));
   if (bench.maxStimulusVpp > 0) return 'Not saved yet: it becomes the setting of the bench you connect or start next.';
   return bench.bench ? `Not set for ${benchDescription(bench.bench)}: set it before connecting a generator.` : 'Not set: set it before connecting a generator.';
-}
-
-function partFailureSlot(testId: string): HTMLElement {
-  return h('div', { className: 'part-failure', role: 'alert', 'data-testid': testId, hidden: true });
 }

@@ -12,7 +12,7 @@ import { debounce, field, h, replaceChildren, select } from '../dom';
 import { asSentence, formatDb, formatDuration, formatHz } from '../model/format';
 import { figureRows } from '../model/figure-rows';
 import { LivePoints } from '../model/live-points';
-import { guarded, showError } from '../notices';
+import { guarded, partFailureSlot, showError, showPartResult } from '../notices';
 import { BodePlot } from '../plot/bode-plot';
 import type { View } from '../shell';
 import type { AppState } from '../state';
@@ -25,6 +25,8 @@ const EVENTS_KEPT = 300;
 export class SweepView implements View {
   readonly id = 'sweep' as const;
   readonly element: HTMLElement;
+  private readonly buildsFailure = partFailureSlot('builds-failure');
+  private readonly designsFailure = partFailureSlot('design-names-failure');
   private readonly buildSelect = h('select', { name: 'build', 'data-testid': 'sweep-build' });
   private readonly inputs = {
     kind: select([{ value: 'ac', label: 'AC frequency sweep' }, { value: 'dc', label: 'DC transfer sweep' }], 'ac', { name: 'kind' }),
@@ -79,6 +81,8 @@ export class SweepView implements View {
       'form',
       { className: 'plan-form', 'aria-label': 'Sweep plan' },
       field('Build', this.buildSelect),
+      this.buildsFailure,
+      this.designsFailure,
       field('Kind', this.inputs.kind),
       field('From (Hz or V)', this.inputs.from, 'Engineering notation: 10, 1k, 2meg.'),
       field('To (Hz or V)', this.inputs.to),
@@ -157,9 +161,14 @@ export class SweepView implements View {
 
   async activate(): Promise<void> {
     if (!this.plot) this.replacePlot('ac');
-    const [designs, builds] = await Promise.all([this.client.listDesigns(), this.client.listBuilds()]);
+    // The builds fill the list even when the designs (only their names) cannot be read; each failure is said beside the list.
+    const [designList, buildList] = await Promise.allSettled([this.client.listDesigns(), this.client.listBuilds()]);
+    showPartResult(this.buildsFailure, 'The builds', buildList);
+    showPartResult(this.designsFailure, 'The design names', designList);
+    if (buildList.status === 'rejected') return;
+    const builds = buildList.value;
     this.builds = builds;
-    const names = new Map(designs.map((d) => [d.id, d.name]));
+    const names = new Map(designList.status === 'fulfilled' ? designList.value.map((d) => [d.id, d.name]) : []);
     // Keep what the user picked here if it still exists; else the build made on the Design view; else the newest.
     const previous = Number(this.buildSelect.value);
     const chosen = builds.some((b) => b.id === previous) ? previous : this.state.current.build?.id ?? builds.at(-1)?.id;
