@@ -6,8 +6,8 @@ import { BENCH_WORDS, FIGURE_NAMES, PHASE_MARGIN_ESTIMATE_BASIS, RUN_KIND_NAMES,
 import { instantText } from '../../contract/bench-text';
 import { offlinePeriodsText } from '../../record/pure';
 
-/** Labels padded to one column, so the values line up (as the earlier fixed layout did). */
-const LABEL_WIDTH = 24;
+/** Labels padded to one column wide enough for the longest figure name, so the values line up. */
+const LABEL_WIDTH = Math.max(...Object.values(FIGURE_NAMES).map((name) => name.length)) + 2;
 
 function line(label: string, value: string): string {
   return `${label.padEnd(LABEL_WIDTH - 1)} ${value}`;
