@@ -56,7 +56,7 @@ describe('two processes on one store file', () => {
     const listed = spawnSync(process.execPath, [BIN, 'runs', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
     expect(listed.status, listed.stderr).toBe(0);
     expect(listed.stdout, stderr).toMatch(new RegExp(`\\nrun ${run.id}: running, driven by rolloff \\(command line\\) pid ${child.pid} on ${hostname()}, heartbeat \\d+ s ago\\n`));
-    expect(listed.stdout).toMatch(new RegExp(`\\n${run.id} +ac +running `)); // the table's status column
+    expect(listed.stdout).toMatch(new RegExp(`\\n${run.id} +AC +running `)); // the table's status column
     expect(listed.stderr).not.toMatch(/left running or paused/);
     const listedJson = spawnSync(process.execPath, [BIN, 'runs', '--json', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
     expect(JSON.parse(listedJson.stdout)[0].owner, stderr).toMatchObject({ label: 'rolloff (command line)', pid: child.pid, host: hostname(), live: true });
@@ -78,7 +78,7 @@ describe('two processes on one store file', () => {
     const pointsBefore = await pointsOfLatestRun(dbPath);
     // Its process is gone on this host: listed as interrupted at once, naming who drove it last.
     const listedAfterKill = spawnSync(process.execPath, [BIN, 'runs', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
-    expect(listedAfterKill.stdout).toMatch(new RegExp(`\\n${run.id} +ac +interrupted `));
+    expect(listedAfterKill.stdout).toMatch(new RegExp(`\\n${run.id} +AC +interrupted `));
     expect(listedAfterKill.stdout).toMatch(new RegExp(`\\nrun ${run.id}: interrupted, last driven by rolloff \\(command line\\) pid ${child.pid} on ${hostname()}, heartbeat \\d+ s ago\\n`));
     expect(listedAfterKill.stderr).toMatch(new RegExp(`left running or paused: ${run.id}\\.`));
 
