@@ -52,6 +52,11 @@ export async function guarded<T>(button: HTMLButtonElement | undefined, context:
  * that loads several things uses one slot per thing, so one failing source
  * never hides the others.
  */
+/** Where one part of a view says it could not be loaded (filled by showPartResult); hidden while the part loads fine. */
+export function partFailureSlot(testId: string): HTMLElement {
+  return h('div', { className: 'part-failure', role: 'alert', 'data-testid': testId, hidden: true });
+}
+
 export function showPartResult(slot: HTMLElement, what: string, result: PromiseSettledResult<unknown>): void {
   if (result.status === 'fulfilled') {
     clearProblem(slot);

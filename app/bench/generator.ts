@@ -55,7 +55,7 @@ export class ProfileGenerator implements GeneratorControl {
     options: GeneratorOptions,
   ) {
     if (!(options.maxStimulusVpp > 0) || !Number.isFinite(options.maxStimulusVpp)) {
-      throw new ValidationError('maxStimulusVpp', `${options.maxStimulusVpp} is not a positive number of volts`, 'Set the maximum stimulus amplitude (e.g. --max-amplitude 2).');
+      throw new ValidationError('maxStimulusVpp', `${options.maxStimulusVpp} is not a positive number of volts`, 'Set the maximum stimulus (e.g. --max-stimulus 2).');
     }
     this.maxStimulusVpp = options.maxStimulusVpp;
     this.limits = profile.generator.limits;

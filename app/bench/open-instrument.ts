@@ -40,7 +40,7 @@ export async function openInstrument<R extends InstrumentRole>(
   const resolved = (typeof profile === 'string' ? findProfile(profile, role, options.profileFolder) : profile) as ProfileFor<R>;
   if (resolved.role !== role) throw new ValidationError('profile', `"${resolved.id}" is a ${resolved.role} profile, not a ${role} profile`);
   if (role === 'generator' && options.maxStimulusVpp === undefined) {
-    throw new ValidationError('maxStimulusVpp', 'is required to open a generator', 'Set the maximum stimulus amplitude (Bench view, or --max-amplitude VPP).');
+    throw new ValidationError('maxStimulusVpp', 'is required to open a generator', 'Set the maximum stimulus (Bench view, or --max-stimulus VPP).');
   }
   const { session, addressText } = await openProfileSession(address, resolved.timeoutS, options);
   try {

@@ -38,7 +38,7 @@ const CHECK_FREQUENCY_HZ = 1000;
 export async function checkProfile(address: string | InstrumentAddress, asLoaded: Profile, options: ProfileCheckOptions = {}): Promise<ProfileCheckReport> {
   const profile: Profile = options.timeoutS ? { ...asLoaded, timeoutS: options.timeoutS } : asLoaded;
   if (profile.role === 'generator' && !(options.maxStimulusVpp! > 0)) {
-    throw new ValidationError('maxStimulusVpp', 'is required to check a generator profile', 'Set the maximum stimulus amplitude (Bench view, or --max-amplitude VPP).');
+    throw new ValidationError('maxStimulusVpp', 'is required to check a generator profile', 'Set the maximum stimulus (Bench view, or --max-stimulus VPP).');
   }
   const { session, addressText } = await openProfileSession(address, profile.timeoutS, options);
   const checks: OperationCheck[] = [];

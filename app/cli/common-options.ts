@@ -77,9 +77,10 @@ export function timeScaleFrom(parsed: ParsedArgs): number {
 export function maxStimulusOption(note: string): OptionSpec {
   return {
     name: SETTINGS.maxStimulus.cliOption,
+    aliases: [...SETTINGS.maxStimulus.cliAliases],
     kind: 'number',
     placeholder: 'VPP',
-    description: `${SETTINGS.maxStimulus.label}, V peak-to-peak: ${SETTINGS.maxStimulus.explanation} (${note})`,
+    description: `${SETTINGS.maxStimulus.label}, ${SETTINGS.maxStimulus.unit}: ${SETTINGS.maxStimulus.explanation} (${note})`,
   };
 }
 

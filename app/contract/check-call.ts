@@ -10,10 +10,10 @@
  * Deep checks of a design's circuit (nodes, values) stay with the circuit
  * parser; here we check shape, types and ranges.
  */
-import * as v from 'valibot';
+import type * as v from 'valibot';
 import { ValidationError } from '../errors';
 import { API_ARGUMENTS, type ArgumentSpec, type RolloffApi, type RolloffMethodName } from './contract';
-import { splitHint } from './field-schemas';
+import { checkOrProblem } from './field-schemas';
 
 /** Every method a window may call (one per method of the contract, see API_ARGUMENTS). */
 export const API_METHOD_NAMES = Object.keys(API_ARGUMENTS) as readonly RolloffMethodName[];
@@ -64,19 +64,7 @@ export function checkArguments<M extends RolloffMethodName>(method: M, specs: re
  * path of the field (`.amplitude.vpp`, `[2]`).
  */
 export function checkValue<S extends v.GenericSchema>(schema: S, value: unknown, where: string): v.InferOutput<S> {
-  const result = v.safeParse(schema, value, { abortEarly: true, abortPipeEarly: true });
-  if (result.success) return result.output;
-  const issue = result.issues[0];
-  const { message, hint } = splitHint(issue.message);
-  throw new ValidationError(where + pathText(issue.path), message, hint);
-}
-
-function pathText(path: readonly v.IssuePathItem[] | undefined): string {
-  let text = '';
-  for (const item of path ?? []) {
-    if (item.origin === 'key') text += ' key';
-    else if (typeof item.key === 'number') text += `[${item.key}]`;
-    else text += `.${String(item.key).slice(0, 60)}`;
-  }
-  return text;
+  const result = checkOrProblem(schema, value);
+  if ('output' in result) return result.output;
+  throw new ValidationError(where + result.problem.path, result.problem.message, result.problem.hint);
 }

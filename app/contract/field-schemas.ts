@@ -44,11 +44,16 @@ export function describeValue(value: unknown): string {
   return String(value);
 }
 
-function isPlainObject(value: unknown): value is Record<string, unknown> {
+export function isPlainObject(value: unknown): value is Record<string, unknown> {
   return typeof value === 'object' && value !== null && !Array.isArray(value);
 }
 
 export const plainObject = v.custom<Record<string, unknown>>(isPlainObject, (issue) => `must be an object, got ${describeValue(issue.input)}`);
+
+/** An object, with a message that says which object is expected (its fields, an example). */
+export function objectExpected(message: string) {
+  return v.custom<Record<string, unknown>>(isPlainObject, message);
+}
 
 export const finiteNumber = v.pipe(
   v.number((issue) => `must be a finite number, got ${describeValue(issue.input)}`),
@@ -91,14 +96,14 @@ export function shortText(allowEmpty: boolean) {
 export const trueOrFalse = v.boolean((issue) => `must be true or false, got ${describeValue(issue.input)}`);
 
 /**
- * Names to numbers (part values, template parameters); keys are short
- * non-empty text. Every own key is kept, even one such as "constructor"
+ * Names to values (part values, template parameters, a file's notes); keys are
+ * short non-empty text. Every own key is kept, even one such as "constructor"
  * (valibot's record() leaves those out, which would lose a value silently).
  */
-export function numberRecord(values: v.GenericSchema<unknown, number>) {
+export function recordOf<T>(values: v.GenericSchema<unknown, T>, expected: v.GenericSchema<unknown, Record<string, unknown>> = plainObject) {
   const key = shortText(false);
   return v.pipe(
-    plainObject,
+    expected,
     v.check((o) => Object.keys(o).length <= LIMITS.count, (issue) => `has ${Object.keys(issue.input).length} entries; at most ${LIMITS.count} are accepted`),
     checkFirst((input, config) => {
       for (const [name, value] of Object.entries(input)) {
@@ -110,11 +115,16 @@ export function numberRecord(values: v.GenericSchema<unknown, number>) {
       return undefined;
     }),
     v.transform((input) => {
-      const result: Record<string, number> = {};
-      for (const [name, value] of Object.entries(input)) result[name] = value as number;
+      const result: Record<string, T> = {};
+      for (const [name, value] of Object.entries(input)) result[name] = value as T;
       return result;
     }),
   );
+}
+
+/** Names to numbers (part values, template parameters); see recordOf. */
+export function numberRecord(values: v.GenericSchema<unknown, number>) {
+  return recordOf(values);
 }
 
 /** Optional fields come out without null: absent and null both mean "not given". */
@@ -133,13 +143,14 @@ interface FieldProblem {
 
 /**
  * An object with exactly the given fields, checked in the order written.
- * Unknown fields are refused first (naming the known ones); a missing field is
+ * Unknown fields are refused first, naming the known ones (`what` words them:
+ * "field", "generator operation"); a missing field is
  * checked as undefined, so it gets its own field's message ("must be text,
  * got undefined") rather than a generic one. Optional fields absent or null
  * are left out of the result. `first` checks some fields before the others,
  * with rules between fields, in the order a reader expects.
  */
-export function fields<const E extends v.ObjectEntries>(entries: E, first: readonly FieldStep[] = []) {
+export function fields<const E extends v.ObjectEntries>(entries: E, first: readonly FieldStep[] = [], what = 'field') {
   const known = Object.keys(entries);
   return v.pipe(
     plainObject,
@@ -148,7 +159,7 @@ export function fields<const E extends v.ObjectEntries>(entries: E, first: reado
       const input = dataset.value;
       const unknown = Object.keys(input).find((key) => !known.includes(key));
       const problem: FieldProblem | undefined =
-        unknown !== undefined ? { key: unknown, message: withHint('is not a known field', `Known fields: ${known.join(', ')}.`) } : firstProblem(first, input, config as AnyConfig);
+        unknown !== undefined ? { key: unknown, message: withHint(`is not a known ${what}`, `Known ${what}s: ${known.join(', ')}.`) } : firstProblem(first, input, config as AnyConfig);
       if (problem) addIssue({ message: problem.message, path: [fieldPath(input, problem.key), ...(problem.path ?? [])] });
     }),
     v.transform((input: Record<string, unknown>) => ({ ...Object.fromEntries(known.map((key) => [key, undefined])), ...input })),
@@ -193,6 +204,57 @@ export function fieldRule<T>(rule: (input: T) => { key: keyof T & string; messag
   return (input) => rule(input as T);
 }
 
+/**
+ * A schema followed by a rule over its checked value, reported at a path
+ * inside it (["operations", "loadHighZ"], ["fields", 2]): for rules between
+ * fields of different depths.
+ */
+export function withRule<S extends v.GenericSchema>(schema: S, rule: (value: v.InferOutput<S>) => { at: readonly (string | number)[]; message: string } | undefined) {
+  return v.pipe(
+    schema,
+    v.rawCheck<v.InferOutput<S>>(({ dataset, addIssue }) => {
+      if (!dataset.typed) return;
+      const problem = rule(dataset.value);
+      if (problem) addIssue({ message: problem.message, path: pathItems(dataset.value, problem.at) as [v.IssuePathItem, ...v.IssuePathItem[]] });
+    }),
+  );
+}
+
+function pathItems(root: unknown, keys: readonly (string | number)[]): v.IssuePathItem[] {
+  let input = root as Record<string | number, unknown>;
+  return keys.map((key) => {
+    const value = input?.[key];
+    const item = { type: typeof key === 'number' ? 'array' : 'object', origin: 'value', input, key, value } as v.IssuePathItem;
+    input = value as Record<string | number, unknown>;
+    return item;
+  });
+}
+
+/** The first problem of a value against a schema: the field's path as text (`.amplitude.vpp`, `[2]`), the message and its hint. */
+export interface FirstProblem {
+  path: string;
+  message: string;
+  hint?: string;
+}
+
+/** Checks a value: the checked output, or the first problem found. */
+export function checkOrProblem<S extends v.GenericSchema>(schema: S, value: unknown): { output: v.InferOutput<S> } | { problem: FirstProblem } {
+  const result = v.safeParse(schema, value, { abortEarly: true, abortPipeEarly: true });
+  if (result.success) return { output: result.output };
+  const issue = result.issues[0];
+  return { problem: { path: pathText(issue.path), ...splitHint(issue.message) } };
+}
+
+function pathText(path: readonly v.IssuePathItem[] | undefined): string {
+  let text = '';
+  for (const item of path ?? []) {
+    if (item.origin === 'key') text += ' key';
+    else if (typeof item.key === 'number') text += `[${item.key}]`;
+    else text += `.${String(item.key).slice(0, 60)}`;
+  }
+  return text;
+}
+
 /** Leaves out the fields that are undefined or null (optional and not given). */
 function dropAbsent(object: Record<string, unknown>): Record<string, unknown> {
   const result: Record<string, unknown> = {};
@@ -203,6 +265,14 @@ function dropAbsent(object: Record<string, unknown>): Record<string, unknown> {
 /** An optional field: absent and null both mean "not given". */
 export function optional<S extends v.GenericSchema>(schema: S) {
   return v.nullish(schema);
+}
+
+/** A field that must be given, with its own word for "missing" (what is needed, how to give it). */
+export function required<S extends v.GenericSchema>(schema: S, missingMessage: string) {
+  return v.pipe(
+    v.custom<unknown>((input) => input !== undefined && input !== null, missingMessage),
+    schema,
+  );
 }
 
 /** An optional field with a default for absent or null. */

@@ -16,18 +16,36 @@ export const FIGURE_NAMES = {
   minus3dbHz: '−3 dB frequencies',
   rolloffDbPerDecade: 'Roll-off',
   gainLimitHz: 'Gain-limit point',
-  gbwEstimateHz: 'GBW',
+  gbwEstimateHz: 'GBW estimate',
   maxDeviationDb: 'Largest deviation from theory',
   diodeIdealityN: 'Diode ideality factor n',
+  diodeSaturationCurrentA: 'Saturation current IS',
+  diodeSeriesResistanceOhm: 'Series resistance RS',
+  /** Computed from the design (Design view, theory). */
   phaseMarginDeg: 'Phase margin',
+  /** Measured: from the closed-loop peaking, through a second-order loop. */
+  phaseMarginEstimateDeg: 'Phase margin estimate',
   gainMarginDb: 'Gain margin',
-  peakingDb: 'Peaking',
+  /** Measured over the ideal gain, or computed. */
+  closedLoopPeakingDb: 'Closed-loop peaking',
+  theoryWarning: 'Theory warning',
   noiseMeasuredRmsV: 'Output noise over the band (measured)',
   noiseComputedRmsV: 'Output noise over the band (computed)',
   noiseDensity: 'Output noise density',
   noiseShareWithin95: 'Bins whose 95 % interval holds the computed density',
   noiseMeanDeviationDb: 'Mean deviation from the computed density',
 } as const;
+
+/** How the phase margin estimate is reached, said beside its value. */
+export const PHASE_MARGIN_ESTIMATE_BASIS = 'from the closed-loop peaking, second-order loop';
+
+/** A measured figure's computed value beside it, on every surface: "(theory 1.59 kHz)". */
+export function theoryAside(text: string): string {
+  return `(theory ${text})`;
+}
+
+/** The two kinds of bench a run is measured on, as every surface names them. */
+export const BENCH_WORDS = { simulated: 'simulated bench', real: 'real instruments' } as const;
 
 export type FigureKey = keyof typeof FIGURE_NAMES;
 
@@ -37,10 +55,20 @@ export const RETIRED_FIGURE_NAMES: Record<string, FigureKey> = {
   '−3 dB points': 'minus3dbHz',
   'Max deviation': 'maxDeviationDb',
   'Gain limit (': 'gainLimitHz',
+  'log fit ': 'diodeIdealityN',
+  'current I_S': 'diodeSaturationCurrentA',
+  'resistance R_S': 'diodeSeriesResistanceOhm',
+  'Phase margin from peaking': 'phaseMarginEstimateDeg',
+  'Phase margin estimated': 'phaseMarginEstimateDeg',
+  'measured over ideal gain': 'closedLoopPeakingDb',
+  'computed theory': 'theoryWarning',
 };
 
 /** Names the maximum stimulus had on some surfaces before this table; the vocabulary test refuses them. */
-export const RETIRED_SETTING_NAMES = ['Safety limit', 'maximum stimulus,', 'or target output (Vpp', 'Band high', 'Band low', 'emission coefficient'];
+export const RETIRED_SETTING_NAMES = ['Safety limit', 'maximum stimulus,', 'or target output (Vpp', 'Band high', 'Band low', 'emission coefficient', 'maximum stimulus amplitude', 'Maximum stimulus amplitude', 'bench maximum', 'Refinement near corners', 'Refine −3 dB', 'physical instruments', 'simulated (simulated', 'SIMULATED: simulated'];
+
+/** A run's kind as people read it (CLI tables, the window, records); commands and files keep ac/dc. */
+export const RUN_KIND_NAMES = { ac: 'AC', dc: 'DC', noise: 'noise' } as const;
 
 /** Point flags as words (records, CLI tables, the window). */
 export const FLAG_WORDS: Record<keyof typeof PointFlag, string> = {
@@ -75,7 +103,19 @@ export function flagWords(flags: number, separator = '; '): string {
 export function pointCountText(plannedCount: number, pointFlags: ArrayLike<number>): string {
   let refinement = 0;
   for (let i = 0; i < pointFlags.length; i++) if ((pointFlags[i] & PointFlag.refinement) !== 0) refinement++;
-  const plannedMeasured = pointFlags.length - refinement;
+  return pointCountsText(plannedCount, pointFlags.length - refinement, refinement);
+}
+
+/**
+ * The same words from a run summary's two counts (lists of runs carry no
+ * flags): refinement points are measured only after every planned step, so
+ * points beyond the planned count are refinement points.
+ */
+export function summaryPointCountText(plannedCount: number, pointCount: number): string {
+  return pointCountsText(plannedCount, Math.min(pointCount, plannedCount), Math.max(0, pointCount - plannedCount));
+}
+
+function pointCountsText(plannedCount: number, plannedMeasured: number, refinement: number): string {
   const planned = plannedMeasured === plannedCount ? `${plannedCount} planned` : `${plannedMeasured} of ${plannedCount} planned`;
   return refinement > 0 ? `${planned} + ${refinement} refinement` : planned;
 }
@@ -86,7 +126,9 @@ export const SETTINGS = {
     /** Window labels and record headings. */
     label: 'Maximum stimulus',
     unit: 'Vpp',
-    cliOption: 'max-amplitude',
+    cliOption: 'max-stimulus',
+    /** Its name before this table: still accepted on the command line, never shown in help. */
+    cliAliases: ['max-amplitude'],
     /** Field of the bench in the contract and the records. */
     field: 'maxStimulusVpp',
     /** Said wherever the limit is set: how a DC level is counted against it. */
@@ -113,6 +155,12 @@ export const SETTINGS = {
     label: 'Points (linear)',
     cliOption: 'points',
     explanation: 'linear spacing: how many points from start to end',
+  },
+  refine: {
+    label: 'Refinement near the −3 dB and gain-limit points',
+    /** The CLI option turns it off; the default is on. */
+    cliOption: 'no-refine',
+    explanation: 'extra points near the −3 dB and gain-limit points, measured after the planned ones',
   },
   pointsPerDecade: {
     label: 'Points per decade (log)',
@@ -154,9 +202,9 @@ export const OPAMP_MODEL_PARAMETERS: ModelParameterName[] = [
 ];
 
 export const DIODE_MODEL_PARAMETERS: ModelParameterName[] = [
-  { key: 'is', label: 'Saturation current IS', symbol: 'IS', unit: 'A' },
+  { key: 'is', label: FIGURE_NAMES.diodeSaturationCurrentA, symbol: 'IS', unit: 'A' },
   { key: 'n', label: FIGURE_NAMES.diodeIdealityN, symbol: 'n', unit: '' },
-  { key: 'rs', label: 'Series resistance RS', symbol: 'RS', unit: 'Ω' },
+  { key: 'rs', label: FIGURE_NAMES.diodeSeriesResistanceOhm, symbol: 'RS', unit: 'Ω' },
 ];
 
 /** How the output was read: the scope gives its peak, the meter its RMS, a DC run its DC level. */

@@ -70,7 +70,7 @@ export async function openHostedService(databaseLocation: string, options: Rollo
     await refuseWhileRunIsActive(service);
     opening = true;
     try {
-      // The new store's own saved limit applies (a --max-amplitude given at start was for the store opened then).
+      // The new store's own saved limit applies (a --max-stimulus given at start was for the store opened then).
       const next = await openServiceAt(chosen, { ...serviceOptions, maxStimulusVpp: undefined });
       const previous = service;
       try {

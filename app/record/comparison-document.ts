@@ -5,14 +5,14 @@ import type { ComparisonRecord } from './model';
 import { comparisonPlots } from './record-plots';
 import { figureLines, formatDb, formatHz, formatMaybe, idnText, verdictHeadline } from './record-formatting';
 import { SIMULATED_BANNER } from './run-document';
-import { FIGURE_NAMES } from '../contract/vocabulary';
+import { BENCH_WORDS, FIGURE_NAMES } from '../contract/vocabulary';
 
 /** Figures shown side by side, with how to print a value and its delta. */
 const COMPARED_FIGURES: Array<{ key: keyof RunFigures; label: string; format: (v: number) => string; formatDelta: (v: number) => string }> = [
   { key: 'passbandGainDb', label: FIGURE_NAMES.passbandGainDb, format: (v) => formatDb(v), formatDelta: (v) => signed(formatDb(v)) },
   { key: 'minus3dbHz', label: FIGURE_NAMES.minus3dbHz, format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
   { key: 'gainLimitHz', label: FIGURE_NAMES.gainLimitHz, format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
-  { key: 'gbwEstimateHz', label: `${FIGURE_NAMES.gbwEstimateHz} estimate`, format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
+  { key: 'gbwEstimateHz', label: FIGURE_NAMES.gbwEstimateHz, format: formatHz, formatDelta: (v) => signed(formatHz(v)) },
   { key: 'maxDeviationDb', label: FIGURE_NAMES.maxDeviationDb, format: (v) => formatDb(v), formatDelta: (v) => signed(formatDb(v)) },
 ];
 
@@ -52,7 +52,7 @@ export function comparisonDocument(record: ComparisonRecord): RecordDocument {
       columns: ['Run', 'Build', 'Design', 'Kind', 'Status', 'Started', 'Operator', 'Bench', 'Points', 'Run digest (SHA-256)'],
       rows: record.runs.map((r) => [
         String(r.run.id), r.build.label, r.design.name, r.run.kind, r.run.status, r.run.startedAt ?? '—', r.run.operator || '—',
-        r.run.simulated ? 'simulated' : 'physical', String(r.run.pointCount), r.digest.hex,
+        r.run.simulated ? BENCH_WORDS.simulated : BENCH_WORDS.real, String(r.run.pointCount), r.digest.hex,
       ]),
     },
     { kind: 'heading', text: 'Overlay and difference' },

@@ -3,8 +3,8 @@ import { formatEngineering, formatFixed, formatInUnit, parseEngineering } from '
 import type { Block, RecordDocument } from './record-document';
 import { recordOutputV, type RecordDesign, type RunRecord } from './model';
 import { runPlots } from './record-plots';
-import { figureLines, flagWords, formatDb, formatDeg, formatHz, formatMaybe, formatUncertainty, formatVolts, idnText, offlinePeriodsText, verdictHeadline } from './record-formatting';
-import { DIODE_MODEL_PARAMETERS, FIGURE_NAMES, OPAMP_MODEL_PARAMETERS, SETTINGS, pointCountText } from '../contract/vocabulary';
+import { figureLines, flagWords, formatDb, formatHz, formatMaybe, formatMeasured, formatVolts, idnText, offlinePeriodsText, verdictHeadline } from './record-formatting';
+import { BENCH_WORDS, DIODE_MODEL_PARAMETERS, FIGURE_NAMES, OPAMP_MODEL_PARAMETERS, SETTINGS, pointCountText } from '../contract/vocabulary';
 
 export const SIMULATED_BANNER = 'SIMULATED BENCH — these readings come from the simulated bench and describe a computed circuit, not a physical board.';
 
@@ -39,7 +39,7 @@ export function runFactsBlock(record: Pick<RunRecord, 'build' | 'design' | 'dige
       ['Ended', run.endedAt ?? '—'],
       countRow,
       ['Software that measured the run', `Rolloff ${run.softwareVersion}`],
-      ['Bench', run.simulated ? 'simulated (simulated bench)' : 'physical instruments'],
+      ['Bench', run.simulated ? BENCH_WORDS.simulated : BENCH_WORDS.real],
       ['Store unreachable (points kept in the bench\'s outbox)', offlinePeriodsText(run.offlinePeriods)],
       ['Data digest (SHA-256)', record.digest.hex],
     ],
@@ -187,7 +187,7 @@ function planBlocks(record: RunRecord): Block[] {
         [`${SETTINGS.maxStimulus.label} in force`, plan.maxStimulusVpp !== undefined ? formatEngineering(plan.maxStimulusVpp, 'Vpp') : 'not recorded'],
         ['Output read by', `${plan.measurement}${plan.through ? ' (through calibration: the stage was bypassed)' : ''}`],
         ['Minimum cycles / averages', `${plan.minCycles} / ${plan.averages}`],
-        ['Refinement near corners', plan.refine ? 'yes' : 'no'],
+        [SETTINGS.refine.label, plan.refine ? 'yes' : 'no'],
         ['Limits', limitText],
         ['Run notes', record.run.notes || '—'],
       ],
@@ -208,8 +208,8 @@ function pointBlocks(record: RunRecord): Block[] {
   const output = recordOutputV(p);
   const ac = record.run.kind === 'ac';
   const rows = p.step.map((step, i) => {
-    const gain = formatMaybe(p.gainDb[i], (v) => `${formatDb(v, 3)} ± ${formatMaybe(p.gainUncertaintyDb[i], formatUncertainty)}`);
-    const phase = formatMaybe(p.phaseDeg[i], (v) => `${formatDeg(v, 2)} ± ${formatMaybe(p.phaseUncertaintyDeg[i], formatUncertainty)}`);
+    const gain = formatMaybe(p.gainDb[i], (v) => formatMeasured(v, p.gainUncertaintyDb[i], 'dB'));
+    const phase = formatMaybe(p.phaseDeg[i], (v) => formatMeasured(v, p.phaseUncertaintyDeg[i], '°'));
     const stimulus = formatMaybe(p.stimulus[i], ac ? formatHz : formatVolts);
     const amplitude = formatMaybe(p.stimulusSettingVpp[i], (v) => formatEngineering(v, 'Vpp'));
     return ac

@@ -171,7 +171,7 @@ export class BenchControl {
       throw new ValidationError(
         'maximum stimulus',
         why ?? (bench ? `is not set for ${benchDescription(bench)}` : 'is not set'),
-        'Set the largest peak-to-peak voltage the circuit may see: --max-amplitude VPP, or on the Bench view; it is saved for that bench.',
+        'Set the largest peak-to-peak voltage the circuit may see: --max-stimulus VPP, or on the Bench view; it is saved for that bench.',
       );
     }
     return maxStimulusVpp;

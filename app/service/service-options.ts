@@ -4,7 +4,7 @@ import type { SimulatedBenchSettings } from './simulated-bench';
 
 export interface RolloffServiceOptions {
   /**
-   * The user's ceiling on generator output (--max-amplitude): saved as the
+   * The user's ceiling on generator output (--max-stimulus): saved as the
    * setting of the bench the service starts on (startOn), or of the first bench
    * it uses. Left out, that bench's stored setting applies, else none.
    */

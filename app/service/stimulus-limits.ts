@@ -6,7 +6,7 @@
  * limit, or none. A limit is never taken from a run, another bench, or the
  * simulated bench for real instruments.
  *
- * A limit given before any bench is known (--max-amplitude of a command that
+ * A limit given before any bench is known (--max-stimulus of a command that
  * decides its bench later, the Bench view before anything is connected) waits
  * and is saved for the first bench entered.
  */

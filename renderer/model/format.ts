@@ -18,3 +18,8 @@ export function formatDelta(value: number | undefined, unit: string, digits = 2)
   const sign = /^[0.]*$/.test(magnitude) ? '±' : value > 0 ? '+' : '−';
   return `${sign}${magnitude}${unit ? ' ' + unit : ''}`;
 }
+
+/** "reusing …" → "Reusing ….": a phrase of the vocabulary table as a sentence of the window. */
+export function asSentence(text: string): string {
+  return `${text[0].toUpperCase()}${text.slice(1)}.`;
+}

@@ -1,6 +1,6 @@
 /**
  * Bench: connect instruments by address or from the port list, see their
- * identities, set the maximum stimulus amplitude, start the simulated bench
+ * identities, set the maximum stimulus and start the simulated bench
  * (always labelled simulated), watch the SCPI traffic, and see or change the
  * store the window works on (store-panel.ts).
  */
@@ -8,10 +8,11 @@ import { INSTRUMENT_ROLES as ROLES, type BenchStatus, type DesignRecord, type In
 import { parseEngineering } from '../../app/units';
 import { UserError } from '../../app/errors';
 import { field, h, replaceChildren, select } from '../dom';
-import { guarded, showInfo, showPartResult } from '../notices';
+import { guarded, partFailureSlot, showInfo, showPartResult } from '../notices';
 import type { View } from '../shell';
 import type { AppState } from '../state';
 import { SETTINGS } from '../../app/contract/vocabulary';
+import { asSentence } from '../model/format';
 import { benchDescription, limitSourceText } from '../../app/contract/bench-text';
 import { StorePanel } from './store-panel';
 
@@ -81,7 +82,7 @@ export class BenchView implements View {
     });
 
     const maxButton = h('button', { type: 'submit' }, 'Apply');
-    const maxForm = h('form', { className: 'stack-form', 'aria-label': 'Maximum stimulus amplitude' }, field(`${SETTINGS.maxStimulus.label} (V peak-to-peak)`, this.maxInput, `${asSentence(SETTINGS.maxStimulus.explanation)} Engineering notation works: 500m, 2.`), maxButton);
+    const maxForm = h('form', { className: 'stack-form', 'aria-label': SETTINGS.maxStimulus.label }, field(`${SETTINGS.maxStimulus.label} (${SETTINGS.maxStimulus.unit})`, this.maxInput, `${asSentence(SETTINGS.maxStimulus.explanation)} Engineering notation works: 500m, 2.`), maxButton);
     maxForm.addEventListener('submit', (event) => {
       event.preventDefault();
       void guarded(maxButton, 'Setting the maximum stimulus', async () => {
@@ -233,13 +234,4 @@ export function maxStimulusSourceText(bench: BenchStatus): string {
   if (bench.maxStimulusLimit) return asSentence(limitSourceText(bench.maxStimulusLimit));
   if (bench.maxStimulusVpp > 0) return 'Not saved yet: it becomes the setting of the bench you connect or start next.';
   return bench.bench ? `Not set for ${benchDescription(bench.bench)}: set it before connecting a generator.` : 'Not set: set it before connecting a generator.';
-}
-
-/** "reusing …" → "Reusing ….". */
-function asSentence(text: string): string {
-  return `${text[0].toUpperCase()}${text.slice(1)}.`;
-}
-
-function partFailureSlot(testId: string): HTMLElement {
-  return h('div', { className: 'part-failure', role: 'alert', 'data-testid': testId, hidden: true });
 }

@@ -10,7 +10,7 @@ import { logGrid, parseEngineering, formatEngineering, formatFixed, formatInUnit
 import { analyzeStability, monteCarloAc, parseDesign, solveAc, stabilityWarnings, summarizeAc, templateParameterText, TOLERANCE_BAND_SETTINGS } from '../../app/circuit';
 import { debounce, field, h, replaceChildren } from '../dom';
 import { formatDb, formatHz } from '../model/format';
-import { guarded, showError, showInfo } from '../notices';
+import { guarded, partFailureSlot, showError, showInfo, showPartResult } from '../notices';
 import { BodePlot } from '../plot/bode-plot';
 import type { View } from '../shell';
 import type { AppState } from '../state';
@@ -31,6 +31,8 @@ const DIODE_FIELDS = DIODE_MODEL_PARAMETERS;
 export class DesignView implements View {
   readonly id = 'design' as const;
   readonly element: HTMLElement;
+  private readonly templatesFailure = partFailureSlot('templates-failure');
+  private readonly designsFailure = partFailureSlot('saved-designs-failure');
   private readonly templateSelect = h('select', { name: 'template', 'data-testid': 'template' });
   private readonly templateParams = h('div', { className: 'param-grid' });
   private readonly savedSelect = h('select', { name: 'saved-design', 'data-testid': 'saved-design' });
@@ -81,8 +83,8 @@ export class DesignView implements View {
       { 'aria-labelledby': 'design-title' },
       h('h2', { id: 'design-title' }, 'Design'),
       h('div', { className: 'start-row' },
-        h('div', { className: 'panel' }, h('h3', {}, 'From a template'), field('Template', this.templateSelect), this.templateParams, makeButton),
-        h('div', { className: 'panel' }, h('h3', {}, 'A saved design'), field('Saved design', this.savedSelect), loadButton),
+        h('div', { className: 'panel' }, h('h3', {}, 'From a template'), field('Template', this.templateSelect), this.templatesFailure, this.templateParams, makeButton),
+        h('div', { className: 'panel' }, h('h3', {}, 'A saved design'), field('Saved design', this.savedSelect), this.designsFailure, loadButton),
         h('div', { className: 'panel' }, h('h3', {}, 'A design file'), field('Design file (JSON)', fileInput)),
       ),
       h('div', { className: 'columns design-columns' },
@@ -108,12 +110,17 @@ export class DesignView implements View {
       this.plot = new BodePlot('ac');
       this.plotHost.appendChild(this.plot.element);
     }
-    const [templates, designs] = await Promise.all([this.templates.length ? Promise.resolve(this.templates) : this.client.listTemplates(), this.client.listDesigns()]);
-    if (this.templates.length === 0) {
-      this.templates = templates;
-      replaceChildren(this.templateSelect, templates.map((t) => h('option', { value: t.id }, t.title)));
+    // Each list on its own: a failing one says so beside its control, the other still fills in.
+    const [templates, saved] = await Promise.allSettled([this.templates.length ? Promise.resolve(this.templates) : this.client.listTemplates(), this.client.listDesigns()]);
+    showPartResult(this.templatesFailure, 'The templates', templates);
+    showPartResult(this.designsFailure, 'The saved designs', saved);
+    if (this.templates.length === 0 && templates.status === 'fulfilled') {
+      this.templates = templates.value;
+      replaceChildren(this.templateSelect, this.templates.map((t) => h('option', { value: t.id }, t.title)));
       this.renderTemplateParams();
     }
+    if (saved.status === 'rejected') return;
+    const designs = saved.value;
     replaceChildren(this.savedSelect, designs.length === 0 ? h('option', { value: '' }, 'none saved yet') : designs.map((d) => h('option', { value: String(d.id) }, `${d.name} (#${d.id})`)));
     if (this.state.current.design) this.savedSelect.value = String(this.state.current.design.id);
     if (!this.draft && designs.length > 0) {
@@ -269,16 +276,16 @@ export class DesignView implements View {
       const stability = analyzeStability(design);
       const margins = stability
         .filter((s) => s.phaseMarginDeg !== undefined)
-        .map((s) => `${s.id}: ${formatFixed(s.phaseMarginDeg!, 1)}° (peaking ${formatFixed(s.peakingDb, 2)} dB)`);
+        .map((s) => `${s.id}: ${formatFixed(s.phaseMarginDeg!, 1)}° (${FIGURE_NAMES.closedLoopPeakingDb.toLowerCase()} ${formatFixed(s.peakingDb, 2)} dB)`);
       const warnings = stabilityWarnings(stability);
       replaceChildren(
         this.figures,
-        h('dt', {}, 'Pass-band gain'), h('dd', { 'data-figure': 'passband' }, formatDb(summary.passbandGainDb)),
+        h('dt', {}, FIGURE_NAMES.passbandGainDb), h('dd', { 'data-figure': 'passband' }, formatDb(summary.passbandGainDb)),
         h('dt', {}, FIGURE_NAMES.minus3dbHz), h('dd', { 'data-figure': 'minus3db' }, summary.minus3dbHz.length ? summary.minus3dbHz.map((f) => formatHz(f)).join(', ') : 'none in range'),
         h('dt', {}, FIGURE_NAMES.gainLimitHz), h('dd', { 'data-figure': 'gain-limit' }, formatHz(summary.gainLimitHz)),
-        h('dt', {}, 'Roll-off'), h('dd', {}, summary.rolloffDbPerDecade === undefined ? '—' : `${formatFixed(summary.rolloffDbPerDecade, 1)} dB/decade`),
+        h('dt', {}, FIGURE_NAMES.rolloffDbPerDecade), h('dd', {}, summary.rolloffDbPerDecade === undefined ? '—' : `${formatFixed(summary.rolloffDbPerDecade, 1)} dB/decade`),
         h('dt', {}, 'Tolerance band'), h('dd', {}, hasTolerances ? `2.5–97.5 % of ${TOLERANCE_BAND_SETTINGS.samples} Monte Carlo samples` : 'no part tolerances given'),
-        h('dt', {}, 'Phase margin'), h('dd', { 'data-figure': 'phase-margin' }, margins.length ? margins.join('; ') : 'no loop-gain crossover (ideal op-amp)'),
+        h('dt', {}, FIGURE_NAMES.phaseMarginDeg), h('dd', { 'data-figure': 'phase-margin' }, margins.length ? margins.join('; ') : 'no loop-gain crossover (ideal op-amp)'),
         ...warnings.map((w) => h('dd', { className: 'inline-warning', role: 'alert', 'data-warning': w.kind }, w.message)),
       );
     } catch (error) {

@@ -3,10 +3,12 @@
  * by a crash or a stop are offered for resume; runs can be picked for
  * Compare and Record, or reopened on the Sweep view.
  */
-import { RUN_STATUSES, type RolloffClient, type RunFilter, type RunStatus, type RunSummary } from '../../app/contract/contract';
+import { RUN_STATUSES, type BuildRecord, type DesignRecord, type RolloffClient, type RunFilter, type RunStatus, type RunSummary } from '../../app/contract/contract';
 import { runStateText, shownStatus } from '../../app/contract/run-owner-text';
+import { instantText } from '../../app/contract/bench-text';
+import { RUN_KIND_NAMES, summaryPointCountText } from '../../app/contract/vocabulary';
 import { debounce, field, h, replaceChildren, select } from '../dom';
-import { guarded } from '../notices';
+import { guarded, partFailureSlot, showPartResult } from '../notices';
 import { resumeConfirmingTakeOver } from './take-over-dialog';
 import type { View } from '../shell';
 import { benchFilter, benchLabel } from './bench-filter';
@@ -17,6 +19,8 @@ const STATUSES: Array<RunStatus | ''> = ['', ...RUN_STATUSES];
 export class HistoryView implements View {
   readonly id = 'history' as const;
   readonly element: HTMLElement;
+  private readonly runsFailure = partFailureSlot('runs-failure');
+  private readonly designsFailure = partFailureSlot('history-designs-failure');
   private readonly search = h('input', { type: 'search', name: 'search', placeholder: 'design, build, operator, notes…', 'data-testid': 'history-search' });
   private readonly status = select(STATUSES.map((s) => ({ value: s, label: s || 'any status' })), '', { name: 'status' });
   /** A bench's exact name; the list offers the benches of the runs shown unfiltered. */
@@ -44,13 +48,14 @@ export class HistoryView implements View {
       h('h2', { id: 'history-title' }, 'History'),
       this.interrupted,
       h('div', { className: 'panel' },
+        this.runsFailure,
         h('div', { className: 'row-form' }, field('Search', this.search), field('Status', this.status), field('Bench', this.bench.input), this.bench.list, h('div', { className: 'actions' }, this.pickedText, compare, record)),
         h('table', { className: 'data-table' },
           h('thead', {}, h('tr', {}, ['Pick', 'Run', 'Design', 'Build', 'Bench', 'Kind', 'Status', 'Started', 'Points', ''].map((t) => h('th', { scope: 'col' }, t)))),
           this.runsBody,
         ),
       ),
-      h('div', { className: 'panel' }, h('h3', {}, 'Designs and builds'), h('table', { className: 'data-table' }, h('thead', {}, h('tr', {}, ['Design', 'Saved', 'Builds'].map((t) => h('th', { scope: 'col' }, t)))), this.designsBody)),
+      h('div', { className: 'panel' }, h('h3', {}, 'Designs and builds'), this.designsFailure, h('table', { className: 'data-table' }, h('thead', {}, h('tr', {}, ['Design', 'Saved', 'Builds'].map((t) => h('th', { scope: 'col' }, t)))), this.designsBody)),
     );
     state.subscribe((s, changed) => {
       if (changed.includes('pickedRunIds')) this.pickedText.textContent = `${s.pickedRunIds.length} picked`;
@@ -68,23 +73,27 @@ export class HistoryView implements View {
     if (this.status.value) filter.status = this.status.value as RunStatus;
     const bench = this.bench.value();
     if (bench) filter.bench = bench;
-    const [runs, designs, builds, allOpen] = await Promise.all([
+    // Runs, designs and builds on their own: a failing one says so inline above its table, the others still fill in.
+    const [runList, designList, buildList, allList] = await Promise.allSettled([
       this.client.listRuns(filter),
       this.client.listDesigns(),
       this.client.listBuilds(),
       this.client.listRuns(),
     ]);
+    const designsAndBuilds = designList.status === 'rejected' ? designList : buildList;
+    showPartResult(this.runsFailure, 'The runs', runList.status === 'rejected' ? runList : allList);
+    showPartResult(this.designsFailure, 'The designs and builds', designsAndBuilds);
+    if (runList.status === 'fulfilled') this.renderRuns(runList.value);
+    if (allList.status === 'fulfilled') this.renderOpenRuns(allList.value);
+    if (designList.status === 'fulfilled' && buildList.status === 'fulfilled') this.renderDesigns(designList.value, buildList.value);
+  }
+
+  private renderRuns(runs: RunSummary[]): void {
     replaceChildren(this.runsBody, runs.length === 0 ? h('tr', {}, h('td', { colspan: '10', className: 'empty' }, 'No runs match.')) : runs.map((run) => this.runRow(run)));
+  }
+
+  private renderOpenRuns(allOpen: RunSummary[]): void {
     this.bench.offer(allOpen);
-    // The same search words narrow the designs table (by design name or build label).
-    const words = this.search.value.trim().toLowerCase();
-    const matching = words === '' ? designs : designs.filter((d) => d.name.toLowerCase().includes(words) || builds.some((b) => b.designId === d.id && b.label.toLowerCase().includes(words)));
-    replaceChildren(
-      this.designsBody,
-      matching.length === 0 ? h('tr', {}, h('td', { colspan: '3', className: 'empty' }, 'No designs match.')) : matching.map((design) =>
-        h('tr', {}, h('th', { scope: 'row' }, `${design.name} (#${design.id})`), h('td', {}, design.createdAt.slice(0, 16).replace('T', ' ')), h('td', {}, builds.filter((b) => b.designId === design.id).map((b) => b.label).join(', ') || '—')),
-      ),
-    );
     // A run some process drives now is not offered: only its driver may pause, stop or continue it. One paused on the
     // Sweep view is continued there; one interrupted is offered wherever it is shown.
     const resumable = allOpen.filter((run) => (run.status === 'running' || run.status === 'paused') && !run.owner?.live && (run.id !== this.state.current.sweepRunId || shownStatus(run) === 'interrupted'));
@@ -93,7 +102,19 @@ export class HistoryView implements View {
       resumable.length === 0
         ? null
         : h('div', { className: 'panel attention' }, h('h3', {}, 'Unfinished runs'), h('p', {}, 'These runs did not finish (paused, or interrupted when the app stopped). Every point measured so far is kept; resuming continues with the next step.'),
-            h('ul', {}, resumable.map((run) => h('li', {}, `Run #${run.id} ${run.designName} — ${run.buildLabel}: ${run.pointCount} of ${run.plannedCount} points (${shownStatus(run)}) `, this.resumeButton(run))))),
+            h('ul', {}, resumable.map((run) => h('li', {}, `Run #${run.id} ${run.designName} — ${run.buildLabel}: ${summaryPointCountText(run.plannedCount, run.pointCount)} points (${shownStatus(run)}) `, this.resumeButton(run))))),
+    );
+  }
+
+  private renderDesigns(designs: DesignRecord[], builds: BuildRecord[]): void {
+    // The same search words narrow the designs table (by design name or build label).
+    const words = this.search.value.trim().toLowerCase();
+    const matching = words === '' ? designs : designs.filter((d) => d.name.toLowerCase().includes(words) || builds.some((b) => b.designId === d.id && b.label.toLowerCase().includes(words)));
+    replaceChildren(
+      this.designsBody,
+      matching.length === 0 ? h('tr', {}, h('td', { colspan: '3', className: 'empty' }, 'No designs match.')) : matching.map((design) =>
+        h('tr', {}, h('th', { scope: 'row' }, `${design.name} (#${design.id})`), h('td', {}, design.createdAt.slice(0, 16).replace('T', ' ')), h('td', {}, builds.filter((b) => b.designId === design.id).map((b) => b.label).join(', ') || '—')),
+      ),
     );
   }
 
@@ -117,14 +138,14 @@ export class HistoryView implements View {
       h('td', {}, run.designName),
       h('td', {}, run.buildLabel),
       h('td', {}, benchLabel(run)),
-      h('td', {}, run.kind.toUpperCase()),
+      h('td', {}, RUN_KIND_NAMES[run.kind]),
       h('td', { 'data-testid': 'run-state' },
         h('span', { className: `badge status-${status}` }, status),
         run.simulated ? h('span', { className: 'badge simulated' }, 'simulated') : null,
         state ? h('small', { className: 'run-driver' }, state) : null,
       ),
-      h('td', {}, run.startedAt ? run.startedAt.slice(0, 16).replace('T', ' ') : '—'),
-      h('td', {}, `${run.pointCount}/${run.plannedCount}`),
+      h('td', {}, run.startedAt ? instantText(run.startedAt) : '—'),
+      h('td', {}, summaryPointCountText(run.plannedCount, run.pointCount)),
       h('td', {}, open, unfinished ? this.resumeButton(run) : null),
     );
   }

@@ -11,9 +11,10 @@ import type { BuildRecord, NoiseRunDetail, RolloffClient, RunDetail, RunFigures,
 import { formatEngineering, formatFixed, formatWithUncertainty, logGrid, parseEngineering } from '../../app/units';
 import { parseDesign, solveDcTransfer, withActualValues } from '../../app/circuit';
 import { debounce, field, h, replaceChildren, select } from '../dom';
-import { formatDb, formatDuration, formatHz } from '../model/format';
+import { asSentence, formatDb, formatDuration, formatHz } from '../model/format';
+import { figureRows } from '../model/figure-rows';
 import { LivePoints } from '../model/live-points';
-import { guarded, showError } from '../notices';
+import { guarded, partFailureSlot, showError, showPartResult } from '../notices';
 import { BodePlot } from '../plot/bode-plot';
 import { NoiseRunDisplay } from './noise-run-display';
 import type { View } from '../shell';
@@ -27,6 +28,8 @@ const EVENTS_KEPT = 300;
 export class SweepView implements View {
   readonly id = 'sweep' as const;
   readonly element: HTMLElement;
+  private readonly buildsFailure = partFailureSlot('builds-failure');
+  private readonly designsFailure = partFailureSlot('design-names-failure');
   private readonly buildSelect = h('select', { name: 'build', 'data-testid': 'sweep-build' });
   private readonly inputs = {
     kind: select([{ value: 'ac', label: 'AC frequency sweep' }, { value: 'dc', label: 'DC transfer sweep' }], 'ac', { name: 'kind' }),
@@ -49,8 +52,8 @@ export class SweepView implements View {
   private readonly shownWhen = {
     log: field(SETTINGS.pointsPerDecade.label, this.inputs.pointsPerDecade),
     linear: field(SETTINGS.linearPoints.label, this.inputs.linearPoints, `From start to end, evenly spaced (default ${SWEEP_RANGE_DEFAULTS.ac.linearPoints}).`),
-    fixed: field(`${SETTINGS.fixedAmplitude.label} (${SETTINGS.fixedAmplitude.unit})`, this.inputs.fixedAmplitudeVpp, 'Never above the bench maximum.'),
-    auto: field(`${SETTINGS.targetOutput.label} (${SETTINGS.targetOutput.unit}, optional)`, this.inputs.targetOutputVpp, 'Empty: as large as stays linear. Never above the bench maximum.'),
+    fixed: field(`${SETTINGS.fixedAmplitude.label} (${SETTINGS.fixedAmplitude.unit})`, this.inputs.fixedAmplitudeVpp, `Never above the ${SETTINGS.maxStimulus.label.toLowerCase()}.`),
+    auto: field(`${SETTINGS.targetOutput.label} (${SETTINGS.targetOutput.unit}, optional)`, this.inputs.targetOutputVpp, `Empty: as large as stays linear. Never above the ${SETTINGS.maxStimulus.label.toLowerCase()}.`),
   };
   private readonly estimate = h('p', { className: 'estimate', 'data-testid': 'sweep-estimate', 'aria-live': 'polite' });
   private readonly buttons = {
@@ -82,6 +85,8 @@ export class SweepView implements View {
       'form',
       { className: 'plan-form', 'aria-label': 'Sweep plan' },
       field('Build', this.buildSelect),
+      this.buildsFailure,
+      this.designsFailure,
       field('Kind', this.inputs.kind),
       field('From (Hz or V)', this.inputs.from, 'Engineering notation: 10, 1k, 2meg.'),
       field('To (Hz or V)', this.inputs.to),
@@ -94,7 +99,7 @@ export class SweepView implements View {
       field('Measure with', this.inputs.measurement),
       field('Minimum cycles', this.inputs.minCycles),
       field('Averages', this.inputs.averages),
-      field('Refine −3 dB and gain-limit points', this.inputs.refine),
+      field(SETTINGS.refine.label, this.inputs.refine, `${asSentence(SETTINGS.refine.explanation)}`),
       field('Operator', this.inputs.operator),
       field('Notes', this.inputs.notes),
     );
@@ -160,9 +165,14 @@ export class SweepView implements View {
 
   async activate(): Promise<void> {
     if (!this.plot && !this.noise) this.replacePlot('ac');
-    const [designs, builds] = await Promise.all([this.client.listDesigns(), this.client.listBuilds()]);
+    // The builds fill the list even when the designs (only their names) cannot be read; each failure is said beside the list.
+    const [designList, buildList] = await Promise.allSettled([this.client.listDesigns(), this.client.listBuilds()]);
+    showPartResult(this.buildsFailure, 'The builds', buildList);
+    showPartResult(this.designsFailure, 'The design names', designList);
+    if (buildList.status === 'rejected') return;
+    const builds = buildList.value;
     this.builds = builds;
-    const names = new Map(designs.map((d) => [d.id, d.name]));
+    const names = new Map(designList.status === 'fulfilled' ? designList.value.map((d) => [d.id, d.name]) : []);
     // Keep what the user picked here if it still exists; else the build made on the Design view; else the newest.
     const previous = Number(this.buildSelect.value);
     const chosen = builds.some((b) => b.id === previous) ? previous : this.state.current.build?.id ?? builds.at(-1)?.id;
@@ -373,29 +383,7 @@ export class SweepView implements View {
   }
 
   private renderFigures(figures: RunFigures, verdict: Verdict | null): void {
-    const rows: Array<[string, string]> = [];
-    if (figures.passbandGainDb !== undefined) rows.push(['Pass-band gain', formatDb(figures.passbandGainDb)]);
-    if (figures.minus3dbHz.length > 0) rows.push([FIGURE_NAMES.minus3dbHz, figures.minus3dbHz.map((f) => formatHz(f)).join(', ')]);
-    if (figures.gainLimitHz !== undefined) rows.push([`${FIGURE_NAMES.gainLimitHz} (measured)`, formatHz(figures.gainLimitHz)]);
-    if (figures.gbwEstimateHz !== undefined) rows.push([`${FIGURE_NAMES.gbwEstimateHz} estimate`, figures.gbwUncertaintyHz !== undefined ? `${formatWithUncertainty(figures.gbwEstimateHz, figures.gbwUncertaintyHz, 'Hz')} (1σ)` : formatHz(figures.gbwEstimateHz)]);
-    if (figures.rolloffDbPerDecade !== undefined) rows.push(['Roll-off', `${formatFixed(figures.rolloffDbPerDecade, 1)} dB/decade`]);
-    if (figures.maxDeviationDb !== undefined) rows.push([FIGURE_NAMES.maxDeviationDb, formatDb(figures.maxDeviationDb)]);
-    if (figures.closedLoopPeakingDb !== undefined) {
-      rows.push(['Closed-loop peaking', `${formatDb(figures.closedLoopPeakingDb)}${figures.theoryPeakingDb !== undefined ? ` (computed ${formatDb(figures.theoryPeakingDb)})` : ''}`]);
-    }
-    if (figures.phaseMarginEstimateDeg !== undefined) {
-      const bound = figures.phaseMarginEstimateIsLowerBound ? '≥ ' : '';
-      const computed = figures.theoryPhaseMarginDeg !== undefined ? ` (computed ${formatFixed(figures.theoryPhaseMarginDeg, 1)}°)` : '';
-      rows.push(['Phase margin from peaking (estimate)', `${bound}${formatFixed(figures.phaseMarginEstimateDeg, 1)}°${computed}`]);
-    }
-    for (const warning of figures.theoryWarnings ?? []) rows.push(['Warning (computed theory)', warning]);
-    const fit = figures.logFit;
-    if (fit) {
-      const interval = (value: number, ci: [number, number], unit: string) => `${formatEngineering(value, unit)} (95 %: ${formatEngineering(ci[0], unit)} … ${formatEngineering(ci[1], unit)})`;
-      rows.push([FIGURE_NAMES.diodeIdealityN, `${formatFixed(fit.n, 3)} (95 %: ${formatFixed(fit.nCi[0], 3)} … ${formatFixed(fit.nCi[1], 3)})`]);
-      rows.push(['Saturation current IS', interval(fit.isA, fit.isCi, 'A')]);
-      rows.push(['Series resistance RS', interval(fit.rsOhm, fit.rsCi, 'Ω')]);
-    }
+    const rows = figureRows(figures);
     if (verdict) rows.push(['Verdict', `${verdict.pass ? 'pass' : 'fail'}${verdict.reasons.length ? ' — ' + verdict.reasons.join('; ') : ''}`]);
     replaceChildren(this.figures, rows.length === 0 ? h('p', { className: 'empty' }, 'Figures appear when the run has enough points.') : rows.flatMap(([term, value]) => [h('dt', {}, term), h('dd', {}, value)]));
   }

@@ -50,7 +50,7 @@ describe.skipIf(!requireTool('chromium'))('the window in Chromium against rollof
     await page.goto(serve.url);
     const dialog = page.getByTestId('safety-dialog');
     await expect.poll(() => dialog.isVisible()).toBe(true);
-    expect(await dialog.textContent()).toMatch(/maximum stimulus amplitude you set/);
+    expect(await dialog.textContent()).toMatch(/maximum stimulus you set/);
     await shot('01-safety');
     await page.getByTestId('safety-ok').click();
     await page.reload();

@@ -29,7 +29,7 @@ describe.skipIf(!requireTool('chromium'))('the Bench view without udevadm, with 
   beforeAll(async () => {
     // Same id as the shipped generator profile: the profile list is refused as a whole.
     copyFileSync(join(ROOT, 'app/bench/profiles/scpi-generator.json'), join(profiles, 'copy-of-generator.json'));
-    serve = await startServe(['--simulated', '--time-scale', '4', '--max-amplitude', '1'], { env: { PATH: pathWithout(['udevadm']), ROLLOFF_SYSFS_ROOT: sysfs.root, ROLLOFF_PROFILE_DIR: profiles } });
+    serve = await startServe(['--simulated', '--time-scale', '4', '--max-stimulus', '1'], { env: { PATH: pathWithout(['udevadm']), ROLLOFF_SYSFS_ROOT: sysfs.root, ROLLOFF_PROFILE_DIR: profiles } });
     await callService(serve, 'saveDesign', [{ ...makeDesignFromTemplate('inverting-gain', { rf: 100_000 }), name: 'Gain −100 (invented example)' }]);
     browser = await launchChromium();
     page = await browser.context.newPage();

@@ -43,7 +43,7 @@ describe.skipIf(!requireTool('chromium'))('a noise run in the window', () => {
 
   beforeAll(async () => {
     mkdirSync(ARTIFACTS, { recursive: true });
-    serve = await startServe(['--simulated', '--time-scale', '2', '--circuit-noise', '--measurement-noise', '0', '--max-amplitude', '1']);
+    serve = await startServe(['--simulated', '--time-scale', '2', '--circuit-noise', '--measurement-noise', '0', '--max-stimulus', '1']);
     browser = await launchChromium({ width: 1280, height: 900 });
     page = await browser.context.newPage();
     page.on('console', (message) => {

@@ -26,7 +26,7 @@ describe.skipIf(!requireTool('chromium'))('resume after a crash, from the Histor
   });
 
   it('offers the killed run for resume and completes it without losing or repeating a step', async () => {
-    const first = await startServe(['--simulated', '--time-scale', '1', '--max-amplitude', '2'], { dbPath });
+    const first = await startServe(['--simulated', '--time-scale', '1', '--max-stimulus', '2'], { dbPath });
     const design = await callService<{ id: number }>(first, 'saveDesign', [makeDesignFromTemplate('inverting-gain', { rf: 100_000 })]);
     const build = await callService<{ id: number }>(first, 'createBuild', [{ designId: design.id, label: 'crash board', notes: 'invented example', actualValues: {} }]);
     await callService(first, 'startSimulatedBench', [design.id]);
@@ -43,7 +43,7 @@ describe.skipIf(!requireTool('chromium'))('resume after a crash, from the Histor
     expect(before!.pointCount).toBeLessThan(before!.plannedCount);
 
     second = await startServe(['--simulated', '--time-scale', '4'], { dbPath });
-    // No --max-amplitude this time: the simulated bench's saved 2 Vpp is reused, and both the command and the window say so.
+    // No --max-stimulus this time: the simulated bench's saved 2 Vpp is reused, and both the command and the window say so.
     const reused = /[Rr]eusing the limit of 2 Vpp set on \d{4}-\d\d-\d\d \d\d:\d\d:\d\d UTC for the simulated bench of "[^"]+"/;
     expect(second.output()).toMatch(reused);
     const browser = await launchChromium();

@@ -34,7 +34,7 @@ describe.skipIf(!requireTool('chromium'))('the driver of a run, in the History v
     writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
     // Slower than real time from 3 Hz (8.4 s of bench time at time scale 0.2: at least 42 s): the window sees it running.
     const sweep = spawn(process.execPath, ['app/cli/bin.mjs', 'sweep', '--design', designPath, '--label', 'driven board', '--simulated', '--time-scale', '0.2',
-      '--max-amplitude', '1', '--db', dbPath, '--from', '3', '--to', '10k', '--per-decade', '10'], { cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'] });
+      '--max-stimulus', '1', '--db', dbPath, '--from', '3', '--to', '10k', '--per-decade', '10'], { cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'] });
     let sweepErr = '';
     sweep.stderr.on('data', (chunk) => (sweepErr += chunk));
     const exited = new Promise<NodeJS.Signals | null>((done) => sweep.on('exit', (_code, signal) => done(signal)));

@@ -39,7 +39,7 @@ describe.skipIf(!requireTool('chromium') || !postgresAvailable())('choosing the 
     const env = { PGPASSFILE: cluster.passwordFile, ROLLOFF_OUTBOX_DIR: join(dir, 'outbox') };
     sweepAsBench({ db: labUrl, bench: 'lab bench 2', buildLabel: 'board on the lab store', folder: dir, env });
 
-    serve = await startServe(['--simulated', '--time-scale', '0.2', '--max-amplitude', '1'], { env });
+    serve = await startServe(['--simulated', '--time-scale', '0.2', '--max-stimulus', '1'], { env });
     // A slow run on the SQLite file (3 Hz at a time scale of 0.2 takes minutes): this bench is busy.
     const design = await callService<{ id: number }>(serve, 'saveDesign', [{ ...makeDesignFromTemplate('inverting-lowpass', {}), name: 'Low-pass on the file (invented example)' }]);
     const build = await callService<{ id: number }>(serve, 'createBuild', [{ designId: design.id, label: 'board on the file', notes: '', actualValues: {} }]);

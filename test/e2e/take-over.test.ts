@@ -33,7 +33,7 @@ describe.skipIf(!requireTool('chromium'))('taking over another bench\'s run in t
     const designPath = join(dir, 'lowpass.json');
     writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
     const sweep = spawn(process.execPath, ['app/cli/bin.mjs', 'sweep', '--design', designPath, '--label', 'bench a board', '--simulated', '--time-scale', '0.2',
-      '--max-amplitude', '1', '--db', dbPath, '--bench', 'lab-a', '--from', '3', '--to', '10k', '--per-decade', '10'], { cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'] });
+      '--max-stimulus', '1', '--db', dbPath, '--bench', 'lab-a', '--from', '3', '--to', '10k', '--per-decade', '10'], { cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'] });
     const exited = new Promise<void>((done) => sweep.on('exit', () => done()));
     const deadline = Date.now() + 60_000;
     while ((await pointsOfLatestRun(dbPath)) < 1) {

@@ -161,6 +161,28 @@ describe('dependency rules (dependency-cruiser)', () => {
 });
 
 describe('pure folders use no Node or DOM globals (tsc -p test/layering/tsconfig.pure.json)', () => {
+  it('fails on an installed package a pure folder may not use, and passes the packages it may', () => {
+    withScratchTree(
+      {
+        // valibot is allowed in app/contract, not in app/units; fft.js only in app/signal.
+        'app/units/uses-valibot.ts': "import * as v from 'valibot';\nexport const s = v.string();\n",
+        'app/numeric/uses-fft.ts': "import FFT from 'fft.js';\nexport const f = FFT;\n",
+        'app/contract/uses-valibot.ts': "import * as v from 'valibot';\nexport const s = v.string();\n",
+        'main/main.ts': 'export {};\n',
+        'renderer/view.ts': 'export {};\n',
+      },
+      (folder) => {
+        const result = depcruise(folder);
+        const report = result.stdout + result.stderr;
+        expect(result.status, report).not.toBe(0);
+        expect(report).toMatch(/pure-imports-only-allowed-packages: app\/units\/uses-valibot\.ts → \S*node_modules\/valibot\//);
+        expect(report).toMatch(/pure-imports-only-allowed-packages: app\/numeric\/uses-fft\.ts → \S*node_modules\/fft\.js\//);
+        expect(report).not.toMatch(/app\/contract\/uses-valibot\.ts/);
+      },
+      { packages: true },
+    );
+  });
+
   it('the source tree passes', () => {
     const result = typeCheckPure(ROOT);
     expect(result.stdout + result.stderr).toBe('');

@@ -15,12 +15,15 @@ const ROOT = resolve(__dirname, '../..');
  * The only packages a pure module may import: small, maintained, themselves
  * pure (no Node, no DOM). app/signal uses fft.js for Welch's method rather
  * than a hand-written transform; app/contract uses valibot for its schemas
- * (no eval, so it runs in the window as in Node; see app/contract/README.md).
+ * (no eval, so it runs in the window as in Node; see app/contract/README.md),
+ * and app/circuit for the design-file schema, built from the contract's field
+ * helpers.
  * The renderer reaches valibot through the contract.
  */
 const PURE_PACKAGES: Record<string, readonly string[]> = {
   'app/signal': ['fft.js'],
   'app/contract': ['valibot'],
+  'app/circuit': ['valibot'],
 };
 
 function allowedPackage(rel: string, specifier: string): boolean {

@@ -13,7 +13,7 @@ import type { RunDetail, SweepRequest } from '../../contract/contract';
 /**
  * The invented scenario. Nothing here is a measurement of a real board: the
  * workshop, the people and the parts are made up, and the instruments are the
- * simulated bench (simulated).
+ * simulated bench.
  */
 const SCENARIO = {
   lab: 'the Juniper Yard electronics workshop (an invented lab)',
@@ -55,7 +55,7 @@ and two builds of it in the database, sweeps both and prints how they differ. Al
         await service.startSimulatedBenchForBuild(build.id);
         const request: SweepRequest = {
           buildId: build.id, kind: 'ac', from: 100, to: 1e6, pointsPerDecade: 8, spacing: 'log', amplitude: { mode: 'auto' },
-          measurement: 'scope', minCycles: 5, averages: 1, refine: true, operator: 'demo', notes: 'Invented demo run on the simulated bench (simulated).',
+          measurement: 'scope', minCycles: 5, averages: 1, refine: true, operator: 'demo', notes: 'Invented demo run on the simulated bench.',
           limits: { maxDeviationDb: 0.5, cornerTolerance: 0.1 },
         };
         const run = await service.startRun(request);

@@ -54,7 +54,7 @@ read back off where its profile can. The computed density is the build's
 circuit with its input held by the generator's source resistance (the
 profile's, 50 Ω for the generic one); if your generator opens its output when
 off, terminate the input with a resistor of that value. The maximum stimulus
-is the bench's, as for sweep: --max-amplitude saves it for this bench and later
+is the bench's, as for sweep: --max-stimulus saves it for this bench and later
 runs on the same bench reuse it.
 
 Scope: records of the output (channel 2) at 2.56 × the band's top, each
@@ -69,7 +69,7 @@ Every record is stored the moment it is measured. Ctrl-C pauses after the
 current record; "rolloff resume RUN" continues where it stopped (a simulated
 run: give --circuit-noise and --measurement-noise as here).
 Examples:
-  rolloff noise --design preamp.json --simulated --circuit-noise --max-amplitude 1 --band 100:50k --segment 8192
+  rolloff noise --design preamp.json --simulated --circuit-noise --max-stimulus 1 --band 100:50k --segment 8192
   rolloff noise --build 3 --generator tcp://192.0.2.10:5025 --scope tcp://192.0.2.11:5025 --band 10:10k --segment 16384 --records 32`,
   async run(parsed) {
     process.stderr.write(`${SAFETY_NOTICE_SHORT}\n\n`);

@@ -25,7 +25,7 @@ and a last line says what could not be learned.`,
     } else {
       const rows = [
         ['PATH', 'USB VID:PID', 'SERIAL NUMBER', 'MANUFACTURER', 'ADDRESS'],
-        ...ports.map((p) => [p.path, p.vendorId ? `${p.vendorId}:${p.productId ?? '?'}` : '-', p.serialNumber ?? '-', p.manufacturer ?? '-', p.address ?? p.path]),
+        ...ports.map((p) => [p.path, p.vendorId ? `${p.vendorId}:${p.productId ?? '?'}` : '—', p.serialNumber ?? '—', p.manufacturer ?? '—', p.address ?? p.path]),
       ];
       const widths = rows[0].map((_, column) => Math.max(...rows.map((row) => row[column].length)));
       for (const row of rows) process.stdout.write(`${row.map((cell, i) => cell.padEnd(widths[i])).join('  ').trimEnd()}\n`);

@@ -17,7 +17,7 @@ export const PROFILE_DIR_OPTION: OptionSpec = { name: 'profile-dir', kind: 'stri
 export const profileCommand: CommandSpec = {
   name: 'profile',
   summary: 'List, show, copy and check instrument profiles',
-  usage: 'list | show ID | new ID --based-on ID | check ADDRESS --profile ID [--max-amplitude VPP]  [--profile-dir DIR]',
+  usage: 'list | show ID | new ID --based-on ID | check ADDRESS --profile ID [--max-stimulus VPP]  [--profile-dir DIR]',
   options: [
     PROFILE_DIR_OPTION,
     // Not --from: elsewhere --from is where a sweep starts.
@@ -28,7 +28,7 @@ export const profileCommand: CommandSpec = {
   ],
   details: `
 check connects, sends each operation of the profile once in a harmless order (a generator's output
-off first, the smallest amplitude the profile allows, never above --max-amplitude, and the output off
+off first, the smallest amplitude the profile allows, never above --max-stimulus, and the output off
 again at the end whatever happens), and prints per operation: accepted, refused (the instrument's SCPI
 error), timed out, or a reply not in the form the profile expects (with the bytes received).
 Examples:

@@ -10,7 +10,7 @@ import { parseRunId } from './show';
 export const resumeCommand: CommandSpec = {
   name: 'resume',
   summary: 'Continue a paused, interrupted or failed run at its next step (no point lost or repeated)',
-  usage: 'RUN [--db PATH] [--max-amplitude VPP] [--generator ADDR …] [--take-over-from BENCH]',
+  usage: 'RUN [--db PATH] [--max-stimulus VPP] [--generator ADDR …] [--take-over-from BENCH]',
   // The options sweep took for the same bench, --simulated included, so the command that started a run also resumes it.
   options: [
     ...BENCH_OPTIONS,
@@ -23,7 +23,7 @@ as the run was started with, e.g. --circuit-noise --measurement-noise 0 for a no
 never continues on the simulated bench. A real run reconnects to the
 addresses it was measured with, unless other addresses are given. The maximum stimulus is the one
 saved for the run's bench (the simulated bench, or the real instruments, of the bench named with
-the run), never one recorded with the run or another bench's; --max-amplitude saves a new one for
+the run), never one recorded with the run or another bench's; --max-stimulus saves a new one for
 that bench. Without either, resume is refused.
 
 A run belongs to the bench it was started on (--bench, ROLLOFF_BENCH or the host name); only that

@@ -1,4 +1,5 @@
 import type { CommandSpec } from '../args';
+import { DESIGN_PLACEHOLDER } from '../design-option';
 import { optionNumber, optionString } from '../args';
 import { ValidationError } from '../../errors';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
@@ -9,7 +10,7 @@ import { formatEngineering, formatFixed } from '../../units';
 export const scheduleCommand: CommandSpec = {
   name: 'schedule',
   summary: 'Repeat a sweep of one build every M minutes, N times or until a time, and report the drift',
-  usage: '(--build ID | --design FILE.json …) --every MIN (--count N | --until TIME) (--simulated | --generator ADDR …) [plan options]',
+  usage: `(--build ID | --design ${DESIGN_PLACEHOLDER} …) --every MIN (--count N | --until TIME) (--simulated | --generator ADDR …) [plan options]`,
   options: [
     { name: 'every', kind: 'number', placeholder: 'MIN', description: 'minutes from the start of one run to the start of the next' },
     { name: 'count', kind: 'integer', placeholder: 'N', description: 'number of runs' },

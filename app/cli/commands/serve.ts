@@ -44,8 +44,8 @@ Another store can be chosen on the Bench view; it applies until this process
 stops (the next start opens --db, ROLLOFF_DB or the default file again).
 
 Examples:
-  rolloff serve --simulated --time-scale 10 --max-amplitude 2
-  rolloff serve --simulated --circuit-noise --measurement-noise 0 --max-amplitude 1   (for noise runs)
+  rolloff serve --simulated --time-scale 10 --max-stimulus 2
+  rolloff serve --simulated --circuit-noise --measurement-noise 0 --max-stimulus 1   (for noise runs)
   rolloff serve --db bench.sqlite --port 9000`,
 
   async run(parsed) {

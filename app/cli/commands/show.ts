@@ -1,12 +1,13 @@
 import type { CommandSpec } from '../args';
 import { optionFlag, optionString, requirePositional } from '../args';
-import { formatEngineering, formatFixed, formatPrecision } from '../../units';
+import { formatEngineering, formatPrecision } from '../../units';
+import { formatMeasured } from '../../record/record-formatting';
 import { ValidationError } from '../../errors';
 import { flagWords } from '../../contract/vocabulary';
 import { openServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../common-options';
-import { runDetailText } from '../sweep/summary-text';
+import { runDetailText, timeText } from '../sweep/summary-text';
 import { RUN_JSON_DESCRIPTION, runRecordJson } from '../run-json';
 import { noiseRecordTable, noiseRunText } from '../sweep/noise-text';
 import type { RunEvent } from '../../contract/contract';
@@ -41,12 +42,12 @@ export const showCommand: CommandSpec = {
       process.stdout.write(runDetailText(detail, await service.diodeOfRun(runId)));
       if (optionFlag(parsed, 'list-points')) {
         const p = detail.points;
-        process.stdout.write(`\n${'step'.padEnd(5)} ${(detail.kind === 'ac' ? 'frequency' : 'input').padEnd(12)} ${'amplitude'.padEnd(11)} ${(detail.kind === 'ac' ? 'gain dB' : 'output V').padEnd(16)} ${'phase °'.padEnd(16)} flags\n`);
+        process.stdout.write(`\n${'step'.padEnd(5)} ${(detail.kind === 'ac' ? 'frequency' : 'input').padEnd(12)} ${'amplitude'.padEnd(11)} ${(detail.kind === 'ac' ? 'gain ± u' : 'output V').padEnd(26)} ${'phase ± u'.padEnd(20)} flags\n`);
         for (let i = 0; i < p.step.length; i++) {
           const flags = flagWords(p.flags[i]);
-          const main = detail.kind === 'ac' ? `${formatFixed(p.gainDb[i], 3)} ±${formatPrecision(p.gainUncertaintyDb[i], 2)}` : formatPrecision(p.outputV[i], 6);
-          const phase = Number.isFinite(p.phaseDeg[i]) ? `${formatFixed(p.phaseDeg[i], 2)} ±${formatPrecision(p.phaseUncertaintyDeg[i], 2)}` : '—';
-          process.stdout.write(`${String(p.step[i]).padEnd(5)} ${formatEngineering(p.stimulus[i], detail.kind === 'ac' ? 'Hz' : 'V').padEnd(12)} ${formatEngineering(p.amplitudeVpp[i], 'Vpp').padEnd(11)} ${main.padEnd(16)} ${phase.padEnd(16)} ${flags}\n`);
+          const main = detail.kind === 'ac' ? formatMeasured(p.gainDb[i], p.gainUncertaintyDb[i], 'dB') : formatPrecision(p.outputV[i], 6);
+          const phase = Number.isFinite(p.phaseDeg[i]) ? formatMeasured(p.phaseDeg[i], p.phaseUncertaintyDeg[i], '°') : '—';
+          process.stdout.write(`${String(p.step[i]).padEnd(5)} ${formatEngineering(p.stimulus[i], detail.kind === 'ac' ? 'Hz' : 'V').padEnd(12)} ${formatEngineering(p.amplitudeVpp[i], 'Vpp').padEnd(11)} ${main.padEnd(26)} ${phase.padEnd(20)} ${flags}\n`);
         }
       }
       if (optionFlag(parsed, 'list-events')) writeEvents(detail.events);
@@ -59,7 +60,7 @@ export const showCommand: CommandSpec = {
 
 function writeEvents(events: RunEvent[]): void {
   process.stdout.write('\n');
-  for (const e of events) process.stdout.write(`${e.at}  ${e.level.padEnd(7)}  ${e.message}\n`);
+  for (const e of events) process.stdout.write(`${timeText(e.at)}  ${e.level.padEnd(7)}  ${e.message}\n`);
 }
 
 export function parseRunId(text: string): number {

@@ -1,4 +1,5 @@
 import type { CommandSpec } from '../args';
+import { DESIGN_PLACEHOLDER } from '../design-option';
 import { optionFlag } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
 import { BENCH_OPTIONS, BUILD_OPTIONS, PLAN_OPTIONS, namedForTheCommandLine, openService, prepareSweep, reportReusedLimit } from '../sweep/sweep-options';
@@ -7,19 +8,20 @@ import { formatDuration } from '../../units';
 import { runDetailText } from '../sweep/summary-text';
 import { formatEngineering, formatFixed } from '../../units';
 import { RUN_JSON_DESCRIPTION, runRecordJson } from '../run-json';
+import { BENCH_WORDS } from '../../contract/vocabulary';
 
 export const sweepCommand: CommandSpec = {
   name: 'sweep',
   summary: 'Sweep a build (frequency or DC transfer), store every point, compare with theory',
-  usage: '(--build ID | --design FILE.json [--label TEXT] [--actual PART=VALUE …]) (--simulated | --generator ADDR --scope ADDR|--meter ADDR) [options]',
+  usage: `(--build ID | --design ${DESIGN_PLACEHOLDER} [--label TEXT] [--actual PART=VALUE …]) (--simulated | --generator ADDR --scope ADDR|--meter ADDR) [options]`,
   options: [...BUILD_OPTIONS, ...BENCH_OPTIONS, ...PLAN_OPTIONS, { name: 'json', kind: 'flag', description: `print the finished run on stdout as ${RUN_JSON_DESCRIPTION} (as show RUN --json)` }],
   details: `
 Examples:
-  rolloff sweep --design lowpass.json --label "board A" --simulated --max-amplitude 2
-  rolloff sweep --build 3 --generator tcp://192.0.2.10:5025 --scope tcp://192.0.2.11:5025 --max-amplitude 1 --from 10 --to 1meg
-  rolloff sweep --build 4 --dc --from 1m --to 10 --per-decade 5 --simulated --max-amplitude 20
+  rolloff sweep --design lowpass.json --label "board A" --simulated --max-stimulus 2
+  rolloff sweep --build 3 --generator tcp://192.0.2.10:5025 --scope tcp://192.0.2.11:5025 --max-stimulus 1 --from 10 --to 1meg
+  rolloff sweep --build 4 --dc --from 1m --to 10 --per-decade 5 --simulated --max-stimulus 20
 
-The maximum stimulus is a setting of the bench: --max-amplitude saves it for this bench (the
+The maximum stimulus is a setting of the bench: --max-stimulus saves it for this bench (the
 simulated bench and the real instruments of a bench each keep their own), and later sweeps on
 the same bench reuse it, saying so. Every point is stored the moment it is measured. Ctrl-C pauses after the current point;
 "rolloff resume RUN" continues where it stopped.`,
@@ -46,7 +48,7 @@ the same bench reuse it, saying so. Every point is stored the moment it is measu
         process.stderr.write('through-calibration: the meter must read the generator output directly (stage bypassed); the result becomes this bench\'s calibration.\n');
       }
       const run = await service.startRun(request);
-      process.stderr.write(`run ${run.id} started${run.simulated ? ' on the simulated bench (simulated)' : ''}; database ${service.databaseLocation}\n`);
+      process.stderr.write(`run ${run.id} started on the ${run.simulated ? BENCH_WORDS.simulated : BENCH_WORDS.real}; database ${service.databaseLocation}\n`);
       const status = await followRun(service, run.id).catch((error) => {
         throw error;
       });

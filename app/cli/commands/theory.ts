@@ -28,11 +28,13 @@ import {
   type Design,
   type MonteCarloBand,
   type ToleranceDistribution,
+  TOLERANCE_BAND_SETTINGS,
 } from '../../circuit';
 import { SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
 import { parseBand } from '../sweep/band-option';
+import { perDecadeDefaultText, sweepEndDefaultText } from '../help-defaults';
 import { optionFlag, optionNumber, optionString, requirePositional, type CommandSpec, type ParsedArgs } from '../args';
-import { FIGURE_NAMES } from '../../contract/vocabulary';
+import { FIGURE_NAMES, OUTPUT_COLUMN, POINT_COLUMNS } from '../../contract/vocabulary';
 import { DATABASE_OPTION } from '../common-options';
 import { chooseDesign, designContent, DESIGN_PLACEHOLDER } from '../design-option';
 import { openServiceAt } from '../../service/open-service';
@@ -43,14 +45,17 @@ const DC = SWEEP_RANGE_DEFAULTS.dc;
 
 type Format = 'table' | 'csv' | 'json';
 
+/** The DC transfer's CSV columns: input and output named as in a DC run's records. */
+const DC_COLUMNS = [POINT_COLUMNS.inputV, OUTPUT_COLUMN.dc, 'clipped'];
+
 export const theoryCommand: CommandSpec = {
   name: 'theory',
   summary: 'Computed response of a design: AC gain/phase with op-amp limits, tolerance band, output noise, or DC transfer',
   usage: `${DESIGN_PLACEHOLDER} [options]`,
   options: [
-    { name: 'from', kind: 'number', placeholder: 'HZ|V', description: `start of the sweep (default ${formatEngineering(AC.from, 'Hz')}; DC ${formatEngineering(DC.from, 'V')}; engineering notation works: 1m is 1 mV)` },
-    { name: 'to', kind: 'number', placeholder: 'HZ|V', description: `end of the sweep (default ${formatEngineering(AC.to, 'Hz')}; DC ${formatEngineering(DC.to, 'V')}; engineering notation works: 1meg is 1 MHz)` },
-    { name: 'per-decade', kind: 'integer', placeholder: 'N', description: `log-spaced points per decade (default ${AC.pointsPerDecade}; DC ${DC.pointsPerDecade})` },
+    { name: 'from', kind: 'number', placeholder: 'HZ|V', description: `start of the sweep (${sweepEndDefaultText('from')}; engineering notation works: 1m is 1 mV)` },
+    { name: 'to', kind: 'number', placeholder: 'HZ|V', description: `end of the sweep (${sweepEndDefaultText('to')}; engineering notation works: 1meg is 1 MHz)` },
+    { name: 'per-decade', kind: 'integer', placeholder: 'N', description: `log-spaced points per decade (${perDecadeDefaultText()})` },
     { name: 'csv', kind: 'flag', description: 'print CSV (full precision) instead of a table' },
     { name: 'json', kind: 'flag', description: 'print JSON (columns plus summary) instead of a table' },
     { name: 'summary', kind: 'flag', description: 'print only the figures: pass-band gain, −3 dB frequencies, gain-limit point, roll-off, phase and gain margin (with --noise: margins, peaking and band noise)' },
@@ -58,11 +63,12 @@ export const theoryCommand: CommandSpec = {
     { name: 'band', kind: 'string', placeholder: 'FROM:TO', description: 'with --noise: band for the RMS noise, Hz (default: the sweep, --from:--to)' },
     { name: 'min-phase-margin', kind: 'number', placeholder: 'DEG', description: 'warn when an op-amp\'s phase margin is below this', defaultValue: DEFAULT_MIN_PHASE_MARGIN_DEG },
     { name: 'tolerance', kind: 'flag', description: 'add a Monte Carlo tolerance band from the parts\' tolerances' },
-    { name: 'samples', kind: 'integer', placeholder: 'N', description: 'Monte Carlo samples', defaultValue: 1000 },
-    { name: 'seed', kind: 'integer', placeholder: 'N', description: 'Monte Carlo seed (same seed, same band)', defaultValue: 1 },
+    // No defaultValue on samples and seed: giving one without --tolerance is refused, so it must be seen as given.
+    { name: 'samples', kind: 'integer', placeholder: 'N', description: `Monte Carlo samples (default ${TOLERANCE_BAND_SETTINGS.samples}, as the Design view, the Sweep view and records draw the band)` },
+    { name: 'seed', kind: 'integer', placeholder: 'N', description: `Monte Carlo seed: same seed, same band (default ${TOLERANCE_BAND_SETTINGS.seed}, as the Design view, the Sweep view and records)` },
     { name: 'distribution', kind: 'string', placeholder: 'uniform|gaussian', description: 'part value distribution within tolerance', defaultValue: 'uniform' },
     { name: 'ideal', kind: 'flag', description: 'ideal op-amps (no gain or bandwidth limit) for the main curve or the DC transfer' },
-    { name: 'dc', kind: 'flag', description: 'DC transfer (input_v, output_v) instead of AC, e.g. for the log stage' },
+    { name: 'dc', kind: 'flag', description: `DC transfer (${DC_COLUMNS.slice(0, 2).join(', ')}) instead of AC, e.g. for the log stage` },
     { ...DATABASE_OPTION, description: `with a stored design's id: ${DATABASE_OPTION.description}` },
   ],
   details: `
@@ -131,12 +137,12 @@ function acResponse(design: Design, parsed: ParsedArgs, format: Format): string 
       throw new ValidationError('--tolerance', `no part of "${design.name}" has a tolerance`, 'Add "tolerance": 0.01 (for ±1 %) to the parts that vary.');
     }
     band = monteCarloAc(design, frequencies, {
-      samples: optionNumber(parsed, 'samples') as number,
-      seed: optionNumber(parsed, 'seed') as number,
+      samples: optionNumber(parsed, 'samples') ?? TOLERANCE_BAND_SETTINGS.samples,
+      seed: optionNumber(parsed, 'seed') ?? TOLERANCE_BAND_SETTINGS.seed,
       distribution: distribution as ToleranceDistribution,
       idealOpAmps: ideal,
     });
-  } else if (!optionFlag(parsed, 'tolerance') && (parsed.options.samples !== 1000 || parsed.options.seed !== 1)) {
+  } else if (!optionFlag(parsed, 'tolerance') && (parsed.options.samples !== undefined || parsed.options.seed !== undefined)) {
     // Silently ignoring a Monte Carlo setting would mislead; say it needs --tolerance.
     throw new ValidationError('--samples/--seed', 'only apply with --tolerance', 'Add --tolerance to compute the band.');
   }
@@ -294,11 +300,11 @@ function summaryLines(design: Design, s: AcSummary, tauS: number): string[] {
   const hz = (value: number | undefined) => (value === undefined ? 'not in reach' : formatEngineering(value, 'Hz'));
   const lines = [
     `Design: ${design.name}`,
-    `Pass-band gain:     ${formatFixed(s.passbandGainDb, 3)} dB`,
+    `${(FIGURE_NAMES.passbandGainDb + ':').padEnd(20)}${formatFixed(s.passbandGainDb, 3)} dB`,
     `${(FIGURE_NAMES.minus3dbHz + ':').padEnd(20)}${s.minus3dbHz.length ? s.minus3dbHz.map((f) => formatEngineering(f, 'Hz')).join(', ') : 'none in the sweep'}`,
     `${(FIGURE_NAMES.gainLimitHz + ':').padEnd(20)}${hz(s.gainLimitHz)} (loop gain 1: above it the op-amp, not the design, sets the response)`,
     `Peak gain:          ${formatFixed(s.peakGainDb, 3)} dB at ${formatEngineering(s.peakFrequencyHz, 'Hz')}`,
-    `Roll-off, top decade: ${s.rolloffDbPerDecade === undefined ? 'n/a' : `${formatFixed(s.rolloffDbPerDecade, 1)} dB/decade`}`,
+    `${FIGURE_NAMES.rolloffDbPerDecade}, top decade: ${s.rolloffDbPerDecade === undefined ? 'n/a' : `${formatFixed(s.rolloffDbPerDecade, 1)} dB/decade`}`,
     `Slowest time constant: ${formatEngineering(tauS, 's')}`,
   ];
   const vpk = maxUndistortedOutputVpk(design, 1e3);
@@ -339,7 +345,7 @@ function dcTransfer(design: Design, parsed: ParsedArgs, format: Format): string 
     return JSON.stringify({ design: design.name, inputV: Array.from(transfer.inputV), outputV: Array.from(transfer.outputV), clipped: Array.from(transfer.clipped, Boolean) }, null, 2) + '\n';
   }
   if (format === 'csv') {
-    const lines = ['input_v,output_v,clipped'];
+    const lines = [DC_COLUMNS.join(',')];
     for (let i = 0; i < inputs.length; i++) lines.push(`${transfer.inputV[i]},${transfer.outputV[i]},${transfer.clipped[i]}`);
     return lines.join('\n') + '\n';
   }

@@ -14,6 +14,7 @@ import { resolveDatabasePath } from '../../store';
 import { DEFAULT_PROFILE_ID, resolveBenchName } from '../../bench';
 import { parseEngineering } from '../../units';
 import { SWEEP_DEFAULTS, SWEEP_RANGE_DEFAULTS } from '../../sweep/plan/defaults';
+import { perDecadeDefaultText, sweepEndDefaultText } from '../help-defaults';
 import { DATABASE_OPTION, SIMULATED_BENCH_OPTIONS, maxStimulusFrom, maxStimulusOption, simulatedBenchFrom } from '../common-options';
 import { chooseDesign, designContent, designOption, storedDesignId } from '../design-option';
 import { namedForOption } from '../field-option';
@@ -43,19 +44,19 @@ export const BENCH_OPTIONS: OptionSpec[] = [
 
 export const PLAN_OPTIONS: OptionSpec[] = [
   { name: 'dc', kind: 'flag', description: 'DC transfer sweep (log stage) instead of a frequency sweep' },
-  { name: 'from', kind: 'number', placeholder: 'HZ|V', description: `start frequency, or DC level with --dc (default ${SWEEP_RANGE_DEFAULTS.ac.from} Hz; DC ${SWEEP_RANGE_DEFAULTS.dc.from} V)` },
-  { name: 'to', kind: 'number', placeholder: 'HZ|V', description: `end frequency, or DC level with --dc (default ${SWEEP_RANGE_DEFAULTS.ac.to} Hz; DC ${SWEEP_RANGE_DEFAULTS.dc.to} V)` },
+  { name: 'from', kind: 'number', placeholder: 'HZ|V', description: `start frequency, or DC level with --dc (${sweepEndDefaultText('from')})` },
+  { name: 'to', kind: 'number', placeholder: 'HZ|V', description: `end frequency, or DC level with --dc (${sweepEndDefaultText('to')})` },
   // No defaultValue on per-decade and points: which of them was given is how a spacing mix-up is caught.
-  { name: SETTINGS.pointsPerDecade.cliOption, kind: 'integer', placeholder: 'N', description: `${SETTINGS.pointsPerDecade.explanation} (default ${SWEEP_RANGE_DEFAULTS.ac.pointsPerDecade})` },
+  { name: SETTINGS.pointsPerDecade.cliOption, kind: 'integer', placeholder: 'N', description: `${SETTINGS.pointsPerDecade.explanation} (${perDecadeDefaultText()})` },
   { name: 'linear', kind: 'flag', description: `linear spacing instead of log; give --${SETTINGS.linearPoints.cliOption}` },
   { name: SETTINGS.linearPoints.cliOption, kind: 'integer', placeholder: 'N', description: `${SETTINGS.linearPoints.explanation} (default ${SWEEP_RANGE_DEFAULTS.ac.linearPoints})` },
-  { name: SETTINGS.fixedAmplitude.cliOption, kind: 'number', placeholder: 'VPP', description: `${SETTINGS.fixedAmplitude.label}, V peak-to-peak: ${SETTINGS.fixedAmplitude.explanation} (default: ${SETTINGS.automaticAmplitude.label.toLowerCase()}, ${SETTINGS.automaticAmplitude.explanation})` },
-  { name: SETTINGS.targetOutput.cliOption, kind: 'number', placeholder: 'VPP', description: `${SETTINGS.targetOutput.label}, V peak-to-peak: ${SETTINGS.targetOutput.explanation}` },
+  { name: SETTINGS.fixedAmplitude.cliOption, kind: 'number', placeholder: 'VPP', description: `${SETTINGS.fixedAmplitude.label}, ${SETTINGS.fixedAmplitude.unit}: ${SETTINGS.fixedAmplitude.explanation} (default: ${SETTINGS.automaticAmplitude.label.toLowerCase()}, ${SETTINGS.automaticAmplitude.explanation})` },
+  { name: SETTINGS.targetOutput.cliOption, kind: 'number', placeholder: 'VPP', description: `${SETTINGS.targetOutput.label}, ${SETTINGS.targetOutput.unit}: ${SETTINGS.targetOutput.explanation}` },
   { name: 'measure', kind: 'string', placeholder: 'scope|meter', description: 'how to measure AC points', defaultValue: 'scope' },
   { name: 'through', kind: 'flag', description: 'through-calibration run (meter measures the generator directly; stage bypassed)' },
   { name: 'cycles', kind: 'integer', placeholder: 'N', description: 'minimum whole cycles per acquisition', defaultValue: SWEEP_DEFAULTS.minCycles },
   { name: 'averages', kind: 'integer', placeholder: 'N', description: 'acquisitions per point (outliers rejected)', defaultValue: SWEEP_DEFAULTS.averages },
-  { name: 'no-refine', kind: 'flag', description: 'skip the extra points near the −3 dB and gain-limit points' },
+  { name: SETTINGS.refine.cliOption, kind: 'flag', description: `turn off the ${SETTINGS.refine.label.toLowerCase()} (${SETTINGS.refine.explanation}; default on)` },
   { name: 'max-deviation', kind: 'number', placeholder: 'DB', description: 'verdict: largest allowed |measured − theory| in the pass band' },
   { name: 'corner-tolerance', kind: 'number', placeholder: 'FRACTION', description: 'verdict: allowed relative error of each −3 dB point, e.g. 0.05' },
   { name: 'operator', kind: 'string', placeholder: 'NAME', description: 'who ran it (recorded)', defaultValue: '' },
@@ -166,9 +167,9 @@ export function checkBenchOptions(service: RolloffService, parsed: ParsedArgs): 
   if (service.maxStimulus === undefined) {
     const bench = service.bench ? benchDescription(service.bench) : 'this bench';
     throw new ValidationError(
-      '--max-amplitude',
+      '--max-stimulus',
       `is missing and ${bench} has no maximum stimulus saved`,
-      `Give the largest peak-to-peak voltage the circuit may see, e.g. --max-amplitude 2; it is saved for ${bench}${service.bench?.simulated ? '' : ' (a limit set for the simulated bench never applies to real instruments)'}.`,
+      `Give the largest peak-to-peak voltage the circuit may see, e.g. --max-stimulus 2; it is saved for ${bench}${service.bench?.simulated ? '' : ' (a limit set for the simulated bench never applies to real instruments)'}.`,
     );
   }
   if (!optionFlag(parsed, 'simulated') && !optionString(parsed, 'generator')) {

@@ -119,7 +119,7 @@ function validateRequest(input: PlanInput): void {
   const { request, maxStimulusVpp, instruments } = input;
   const gen = instruments.generator;
   if (!(Number.isFinite(maxStimulusVpp) && maxStimulusVpp > 0)) {
-    throw new ValidationError('maximum stimulus', `${maxStimulusVpp} Vpp is not a positive amplitude`, 'Set it with --max-amplitude VPP or on the Bench view.');
+    throw new ValidationError('maximum stimulus', `${maxStimulusVpp} Vpp is not a positive amplitude`, 'Set it with --max-stimulus VPP or on the Bench view.');
   }
   for (const [where, value] of [['from', request.from], ['to', request.to]] as const) {
     if (!Number.isFinite(value) || value === 0) throw new ValidationError(where, `${value} is not a usable ${request.kind === 'ac' ? 'frequency' : 'level'}`);
@@ -151,9 +151,12 @@ function validateRequest(input: PlanInput): void {
       throw new ValidationError('from/to', 'DC levels must not cross 0 V on a log scale', 'Sweep one polarity, e.g. --from 1m --to 10.');
     }
     const largestV = Math.max(Math.abs(request.from), Math.abs(request.to));
-    const ceilingVpp = Math.min(maxStimulusVpp, gen.maxAmplitudeVpp);
-    if (2 * largestV > ceilingVpp) {
-      throw new ValidationError('to', `a DC level of ${largestV} V is a ${2 * largestV} Vpp excursion, above the ceiling ${ceilingVpp} Vpp`, 'Lower the largest level or raise the maximum stimulus.');
+    // A DC level V counts as 2·|V| against the maximum stimulus and the generator's own maximum.
+    if (2 * largestV > maxStimulusVpp) {
+      throw new ValidationError('to', `a DC level of ${largestV} V counts as ${2 * largestV} Vpp, above the maximum stimulus ${maxStimulusVpp} Vpp`, 'Lower the largest level or raise the maximum stimulus.');
+    }
+    if (2 * largestV > gen.maxAmplitudeVpp) {
+      throw new ValidationError('to', `a DC level of ${largestV} V counts as ${2 * largestV} Vpp, above the generator's maximum ${gen.maxAmplitudeVpp} Vpp`, 'Lower the largest level.');
     }
   }
 }

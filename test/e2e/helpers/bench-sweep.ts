@@ -24,6 +24,6 @@ export function sweepAsBench({ db, bench, buildLabel, folder, env = {} }: BenchS
   const designPath = join(folder, 'lowpass.json');
   writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
   const result = spawnSync(process.execPath, ['app/cli/bin.mjs', 'sweep', '--design', designPath, '--label', buildLabel, '--simulated', '--time-scale', '20',
-    '--max-amplitude', '1', '--db', db, '--from', '100', '--to', '1k', '--per-decade', '2'], { cwd: ROOT, encoding: 'utf8', env: { ...process.env, ...env, ROLLOFF_BENCH: bench } });
+    '--max-stimulus', '1', '--db', db, '--from', '100', '--to', '1k', '--per-decade', '2'], { cwd: ROOT, encoding: 'utf8', env: { ...process.env, ...env, ROLLOFF_BENCH: bench } });
   if (result.status !== 0) throw new Error(`rolloff sweep as ${bench} exited ${result.status}: ${result.stderr}`);
 }

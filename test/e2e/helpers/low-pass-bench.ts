@@ -19,7 +19,7 @@ export interface LowPassBench {
 }
 
 export async function startLowPassBench(buildLabel: string, options: { beforeWindowLoads?: (page: Page) => Promise<unknown> } = {}): Promise<LowPassBench> {
-  const serve = await startServe(['--simulated', '--time-scale', '10', '--max-amplitude', '2']);
+  const serve = await startServe(['--simulated', '--time-scale', '10', '--max-stimulus', '2']);
   const design = await callService<{ id: number }>(serve, 'saveDesign', [{ ...makeDesignFromTemplate('inverting-lowpass', { rn: 1e3, rf: 10e3, cf: 15e-9 }), name: 'Low-pass, corner 1.06 kHz (invented example)' }]);
   const build = await callService<{ id: number }>(serve, 'createBuild', [{ designId: design.id, label: buildLabel, notes: 'invented example', actualValues: {} }]);
   await callService(serve, 'startSimulatedBench', [design.id]);

@@ -35,9 +35,10 @@ describe('rolloff ports without udevadm', () => {
     expect(result.status).toBe(0);
     const lines = result.stdout.trimEnd().split('\n');
     expect(lines[0]).toMatch(/^PATH\s+USB VID:PID\s+SERIAL NUMBER\s+MANUFACTURER\s+ADDRESS$/);
+    // Empty cells are "—" as in every table for people.
     expect(lines.slice(1, 5).map((line) => line.split(/\s{2,}/))).toEqual([
-      ['/dev/ttyACM0', '1209:0002', 'TEST-INSTRUMENT-42', '-', 'ASRL/dev/ttyACM0::INSTR'],
-      ['/dev/ttyS0', '-', '-', '-', 'ASRL/dev/ttyS0::INSTR'],
+      ['/dev/ttyACM0', '1209:0002', 'TEST-INSTRUMENT-42', '—', 'ASRL/dev/ttyACM0::INSTR'],
+      ['/dev/ttyS0', '—', '—', '—', 'ASRL/dev/ttyS0::INSTR'],
       ['/dev/ttyUSB0', '1209:0001', 'TEST-ADAPTER-7', 'Invented Test Fixture', 'ASRL/dev/ttyUSB0::INSTR'],
       // USBTMC beside the serial ports, with the resource string that finds it by USB identity.
       ['/dev/usbtmc0', '1209:0003', 'TEST-TMC-9', 'Invented Test Fixture', 'USB0::0x1209::0x0003::TEST-TMC-9::INSTR'],

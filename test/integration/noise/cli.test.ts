@@ -23,7 +23,7 @@ describe('rolloff noise', () => {
   writeFileSync(designPath, JSON.stringify(noisyGain1000()));
 
   it('refuses what the run could not take, naming the option, and stores nothing', async () => {
-    const common = ['--design', designPath, '--simulated', '--circuit-noise', '--max-amplitude', '1', '--db', dbPath];
+    const common = ['--design', designPath, '--simulated', '--circuit-noise', '--max-stimulus', '1', '--db', dbPath];
     const notPowerOfTwo = rolloff('noise', ...common, '--segment', '1000');
     expect(notPowerOfTwo.status).toBe(2);
     expect(notPowerOfTwo.stderr).toMatch(/--segment: must be a power of two, got 1000/);
@@ -38,7 +38,7 @@ describe('rolloff noise', () => {
     const noLimitDb = join(folder.path, 'no-limit.sqlite');
     const noLimit = rolloff('noise', '--design', designPath, '--simulated', '--db', noLimitDb);
     expect(noLimit.status).toBe(2);
-    expect(noLimit.stderr).toMatch(/--max-amplitude/);
+    expect(noLimit.stderr).toMatch(/--max-stimulus/);
     for (const path of [dbPath, noLimitDb]) {
       if (!existsSync(path)) continue;
       const store = SqliteStore.open(path, { readonly: true });
@@ -48,7 +48,7 @@ describe('rolloff noise', () => {
   });
 
   it('measures, shows and exports a noise run', () => {
-    // No --max-amplitude: the simulated bench's limit saved by the first test applies, and is said to.
+    // No --max-stimulus: the simulated bench's limit saved by the first test applies, and is said to.
     const measured = rolloff('noise', '--design', designPath, '--label', 'cli board', '--simulated', '--circuit-noise', '--time-scale', '20',
       '--db', dbPath, '--band', '200:20k', '--records', '6');
     expect(measured.status, measured.stderr).toBe(0);

@@ -30,7 +30,7 @@ describe('SIGKILL in the middle of a noise run, then resume', () => {
 
     // 24 records of 0.32 s (16384 samples at 51.2 kHz); at time scale 2 each takes ~0.16 s of wall time.
     const child = spawn(process.execPath, [BIN, 'noise', '--design', designPath, '--label', 'crash test', '--simulated', '--circuit-noise', '--time-scale', '2',
-      '--max-amplitude', '1', '--db', dbPath, '--band', '200:20k', '--segment', '4096', '--records', String(RECORDS)], { stdio: ['ignore', 'pipe', 'pipe'] });
+      '--max-stimulus', '1', '--db', dbPath, '--band', '200:20k', '--segment', '4096', '--records', String(RECORDS)], { stdio: ['ignore', 'pipe', 'pipe'] });
     let stderr = '';
     child.stderr.on('data', (chunk) => (stderr += chunk));
     const exited = new Promise<NodeJS.Signals | null>((done) => child.on('exit', (_code, signal) => done(signal)));

@@ -40,6 +40,8 @@ describe.skipIf(!hasPostgres)('the bundled desktop main process on a PostgreSQL 
   it('migrates the lab database and stores what the window saves', async () => {
     shell = await buildShellInTempFolder({ mainAlias: { electron: join(__dirname, '../../unit/main/helpers/electron-stand-in.ts') } });
     const journal = electronJournal();
+    // The window's settings file lives here (unused: --db names the store, and wins over a saved choice).
+    journal.userDataPath = join(shell.root, 'user-data');
     const errors: string[] = [];
     const writeError = process.stderr.write.bind(process.stderr);
     process.stderr.write = ((chunk: string | Uint8Array, ...rest: unknown[]) => {

@@ -37,7 +37,7 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
   it('sweeps into the lab store and lists the runs from another process, never printing the password', async () => {
     const demo = rolloff('demo', '--time-scale', '20', '--db', cluster.urlWithPassword);
     expect(demo.status, demo.stderr).toBe(0);
-    expect(demo.stdout).toMatch(/gain-limit point/);
+    expect(demo.stdout).toMatch(/Gain-limit point/);
     const runs = rolloff('runs', '--db', cluster.urlWithPassword);
     expect(runs.status, runs.stderr).toBe(0);
     for (const output of [demo.stdout, demo.stderr, runs.stdout, runs.stderr]) expect(output).not.toContain(cluster.password);
@@ -81,7 +81,7 @@ describe.skipIf(!hasPostgres)('rolloff commands with --db postgres://…', () =>
       });
     // Each bench sweeps twice: first with its own limit, then reusing it (never the other bench's).
     const limitOf: Record<string, number> = { 'bench 3': 1.5, 'bench 7': 0.25 };
-    const twice = async (bench: string) => [await sweep(bench, ['--max-amplitude', String(limitOf[bench])]), await sweep(bench, [])];
+    const twice = async (bench: string) => [await sweep(bench, ['--max-stimulus', String(limitOf[bench])]), await sweep(bench, [])];
     // Both open the empty database at the same moment: one migrates under the advisory lock, the other waits.
     const results = (await Promise.all([twice('bench 3'), twice('bench 7')])).flat();
     for (const result of results) expect(result.status, result.stderr).toBe(0);

@@ -126,7 +126,7 @@ describe.skipIf(!postgresAvailable())('live across the lab (PostgreSQL LISTEN/NO
       writeFileSync(designPath, JSON.stringify(noisyGain1000()));
       // In its own process, not waited for synchronously: this one keeps looking while the run measures.
       const noise = await new Promise<{ status: number | null; stderr: string }>((done) => {
-        const child = spawn(process.execPath, [BIN, 'noise', '--design', designPath, '--simulated', '--circuit-noise', '--time-scale', '5', '--max-amplitude', '1',
+        const child = spawn(process.execPath, [BIN, 'noise', '--design', designPath, '--simulated', '--circuit-noise', '--time-scale', '5', '--max-stimulus', '1',
           '--db', url, '--band', '200:20k', '--records', '6'], { stdio: ['ignore', 'ignore', 'pipe'], env: { ...process.env, ROLLOFF_BENCH: 'bench 6' } });
         let stderr = '';
         child.stderr.on('data', (chunk) => (stderr += chunk));

@@ -58,7 +58,7 @@ describe.skipIf(!postgresAvailable())('PostgreSQL stopped mid-sweep and started 
     // 10 Hz–10 kHz at 10/decade: 31 points, 2.7 s of bench time at least; at time scale 0.1 (about 30 s) the sweep lasts long enough
     // for the server to go and come back in the middle of it (its start after an immediate stop runs crash recovery: seconds).
     const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'outbox test', '--simulated', '--time-scale', '0.1',
-      '--max-amplitude', '1', '--db', url, '--from', '10', '--to', '10k', '--per-decade', '10', '--no-refine'],
+      '--max-stimulus', '1', '--db', url, '--from', '10', '--to', '10k', '--per-decade', '10', '--no-refine'],
     { stdio: ['ignore', 'pipe', 'pipe'], env: { ...process.env, ROLLOFF_OUTBOX_DIR: outboxDir, ROLLOFF_BENCH: 'bench 9' } });
     let stderr = '';
     child.stderr.on('data', (chunk) => (stderr += chunk));

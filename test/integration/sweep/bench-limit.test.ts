@@ -65,18 +65,18 @@ describe('the maximum stimulus belongs to one bench', () => {
   it('a simulated sweep at 10 Vpp leaves a sweep on real instruments without a limit: refused, nothing stored; then each keeps its own, and a reused one is announced', async () => {
     const dbPath = join(folder.path, 'simulated-then-real.sqlite');
     const bench = ['--bench', 'bench 1', '--db', dbPath];
-    const simulated = await rolloff(['sweep', '--design', designPath, '--label', 'simulated', '--simulated', '--time-scale', '50', '--max-amplitude', '10', ...bench, ...SHORT_SWEEP]);
+    const simulated = await rolloff(['sweep', '--design', designPath, '--label', 'simulated', '--simulated', '--time-scale', '50', '--max-stimulus', '10', ...bench, ...SHORT_SWEEP]);
     expect(simulated.status, simulated.stderr).toBe(0);
     expect(simulated.stderr).not.toMatch(/reusing the limit/); // given now, not reused
 
     const real = ['--generator', sim.addresses.socket.generator!, '--scope', sim.addresses.socket.scope!];
     const refused = await rolloff(['sweep', '--build', '1', ...real, ...bench, ...SHORT_SWEEP]);
     expect(refused.status).toBe(2);
-    expect(refused.stderr).toMatch(/--max-amplitude: is missing and bench "bench 1" has no maximum stimulus saved/);
+    expect(refused.stderr).toMatch(/--max-stimulus: is missing and bench "bench 1" has no maximum stimulus saved/);
     expect(refused.stderr).toMatch(/a limit set for the simulated bench never applies to real instruments/);
     expect(await storedRuns(dbPath)).toHaveLength(1);
 
-    const realRun = await rolloff(['sweep', '--build', '1', ...real, '--max-amplitude', '0.5', ...bench, ...SHORT_SWEEP]);
+    const realRun = await rolloff(['sweep', '--build', '1', ...real, '--max-stimulus', '0.5', ...bench, ...SHORT_SWEEP]);
     expect(realRun.status, realRun.stderr).toBe(0);
     const realAgain = await rolloff(['sweep', '--build', '1', ...real, ...bench, ...SHORT_SWEEP]);
     expect(realAgain.status, realAgain.stderr).toBe(0);
@@ -104,16 +104,16 @@ describe('the maximum stimulus belongs to one bench', () => {
     const dbPath = join(folder.path, 'two-benches.sqlite');
     const sweep = (benchArgs: string[], more: string[] = []) =>
       rolloff(['sweep', '--design', designPath, '--label', 'b', '--simulated', '--time-scale', '50', '--db', dbPath, ...benchArgs, ...SHORT_SWEEP, ...more]);
-    const a = await sweep(['--bench', 'bench A'], ['--max-amplitude', '3']);
+    const a = await sweep(['--bench', 'bench A'], ['--max-stimulus', '3']);
     expect(a.status, a.stderr).toBe(0);
     // Bench B by --bench and by ROLLOFF_BENCH: both refused, A's 3 Vpp is not B's.
     const byOption = await sweep(['--bench', 'bench B']);
     expect(byOption.status).toBe(2);
-    expect(byOption.stderr).toMatch(/--max-amplitude: is missing and the simulated bench of "bench B" has no maximum stimulus saved/);
+    expect(byOption.stderr).toMatch(/--max-stimulus: is missing and the simulated bench of "bench B" has no maximum stimulus saved/);
     const byEnvironment = await rolloff(['sweep', '--design', designPath, '--simulated', '--db', dbPath, ...SHORT_SWEEP], { ROLLOFF_BENCH: 'bench B' });
     expect(byEnvironment.status).toBe(2);
     expect(byEnvironment.stderr).toMatch(/"bench B" has no maximum stimulus saved/);
-    const b = await sweep(['--bench', 'bench B'], ['--max-amplitude', '1']);
+    const b = await sweep(['--bench', 'bench B'], ['--max-stimulus', '1']);
     expect(b.status, b.stderr).toBe(0);
     const aAgain = await sweep(['--bench', 'bench A']);
     expect(aAgain.status, aAgain.stderr).toBe(0);
@@ -125,7 +125,7 @@ describe('the maximum stimulus belongs to one bench', () => {
   it('resume applies the limit of the run\'s bench: refused when that bench has none (another bench\'s does not count), and runs under one given for it', async () => {
     const dbPath = join(folder.path, 'resume.sqlite');
     // A slow sweep (real time from 10 Hz), paused by Ctrl-C once it has measured a point.
-    const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'r', '--simulated', '--max-amplitude', '2', '--bench', 'bench A', '--db', dbPath,
+    const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'r', '--simulated', '--max-stimulus', '2', '--bench', 'bench A', '--db', dbPath,
       '--from', '10', '--to', '10k', '--per-decade', '10', '--no-refine'], { stdio: ['ignore', 'ignore', 'pipe'], env: { ...process.env, ROLLOFF_BENCH: '' } });
     let childErr = '';
     child.stderr.on('data', (chunk) => (childErr += chunk));
@@ -153,7 +153,7 @@ describe('the maximum stimulus belongs to one bench', () => {
     expect((await untouched.getRun(run.id)).status).toBe('paused');
     expect(await untouched.getRunOwnership(run.id)).toBeUndefined(); // given back for the next try
     await untouched.close();
-    const resumed = await rolloff(['resume', String(run.id), '--db', dbPath, '--bench', 'bench B', '--take-over-from', 'bench A', '--time-scale', '50', '--max-amplitude', '3']);
+    const resumed = await rolloff(['resume', String(run.id), '--db', dbPath, '--bench', 'bench B', '--take-over-from', 'bench A', '--time-scale', '50', '--max-amplitude', '3']); // the option's old name, still accepted
     expect(resumed.status, resumed.stderr).toBe(0);
 
     const after = SqliteStore.open(dbPath, { readonly: true });

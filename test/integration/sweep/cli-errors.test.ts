@@ -20,20 +20,21 @@ describe('sweep command errors', () => {
   const db = join(folder.path, 'errors.sqlite');
 
   it.each([
-    [['sweep', '--design', design, '--simulated'], /--max-amplitude: is missing/],
-    [['sweep', '--design', design, '--max-amplitude', '1'], /--generator: no instruments given/],
-    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--measure', 'probe'], /--measure: "probe" is not scope or meter/],
+    [['sweep', '--design', design, '--simulated'], /--max-stimulus: is missing/],
+    [['sweep', '--design', design, '--max-stimulus', '1'], /--generator: no instruments given/],
+    [['sweep', '--design', design, '--simulated', '--max-stimulus', '1', '--measure', 'probe'], /--measure: "probe" is not scope or meter/],
+    // --max-amplitude: the option's old name, still accepted.
     [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--from', '1k', '--to', '10'], /rolloff sweep: --to: must be above the start frequency \(1000 Hz\), got 10\n.*low to high/],
-    // DC defaults are theory --dc's (1 mV to 10 V): 10 V is a 20 Vpp excursion, above 1 Vpp; the error names --to.
-    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--dc'], /rolloff sweep: --to: a DC level of 10 V is a 20 Vpp excursion/],
-    [['sweep', '--design', join(folder.path, 'missing.json'), '--simulated', '--max-amplitude', '1'], /--design: cannot read/],
-    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--linear', '--per-decade', '3'], /--per-decade: applies to log spacing\n.*--points N/],
-    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--points', '5'], /--points: applies to --linear sweeps/],
-    [['sweep', '--design', '7', '--simulated', '--max-amplitude', '1'], /--design: no stored design 7/],
+    // DC defaults are theory --dc's (1 mV to 10 V): 10 V counts as 20 Vpp, above 1 Vpp; the error names --to.
+    [['sweep', '--design', design, '--simulated', '--max-stimulus', '1', '--dc'], /rolloff sweep: --to: a DC level of 10 V counts as 20 Vpp, above the maximum stimulus 1 Vpp/],
+    [['sweep', '--design', join(folder.path, 'missing.json'), '--simulated', '--max-stimulus', '1'], /--design: cannot read/],
+    [['sweep', '--design', design, '--simulated', '--max-stimulus', '1', '--linear', '--per-decade', '3'], /--per-decade: applies to log spacing\n.*--points N/],
+    [['sweep', '--design', design, '--simulated', '--max-stimulus', '1', '--points', '5'], /--points: applies to --linear sweeps/],
+    [['sweep', '--design', '7', '--simulated', '--max-stimulus', '1'], /--design: no stored design 7/],
     // Checked by the contract's own request schema, as a window's call is: a negative limit was once taken as given.
-    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--max-deviation', '-1'], /rolloff sweep: --max-deviation: must be greater than zero \(dB\), got −?-?1/],
-    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--corner-tolerance', '0'], /rolloff sweep: --corner-tolerance: must be greater than zero/],
-    [['sweep', '--design', design, '--simulated', '--max-amplitude', '1', '--cycles', '0'], /rolloff sweep: --cycles: must be a whole number from 1/],
+    [['sweep', '--design', design, '--simulated', '--max-stimulus', '1', '--max-deviation', '-1'], /rolloff sweep: --max-deviation: must be greater than zero \(dB\), got −?-?1/],
+    [['sweep', '--design', design, '--simulated', '--max-stimulus', '1', '--corner-tolerance', '0'], /rolloff sweep: --corner-tolerance: must be greater than zero/],
+    [['sweep', '--design', design, '--simulated', '--max-stimulus', '1', '--cycles', '0'], /rolloff sweep: --cycles: must be a whole number from 1/],
     [['build', 'add', '--design', design, '--label', 'x', '--actual', 'R9=1k'], /R9/],
     [['show', 'x1'], /RUN: "x1" is not a run number/],
   ])('%j is refused cleanly', (args, message) => {

@@ -21,7 +21,7 @@ describe('rolloff demo', () => {
     expect(Date.now() - started).toBeLessThan(60_000);
     expect(result.stderr).toMatch(/^Safety:/);
     expect(result.stdout).toMatch(/INVENTED SCENARIO, SIMULATED DATA/);
-    const limits = [...result.stdout.matchAll(/gain-limit point\s+([\d.]+ [kM]?Hz)\s+\(theory ([\d.]+ [kM]?Hz)\)/g)];
+    const limits = [...result.stdout.matchAll(/Gain-limit point\s+([\d.]+ [kM]?Hz)\s+\(theory ([\d.]+ [kM]?Hz)\)/g)];
     expect(limits).toHaveLength(2);
     const hz = (text: string) => Number(text.split(' ')[0]) * ({ Hz: 1, kHz: 1e3, MHz: 1e6 } as Record<string, number>)[text.split(' ')[1]];
     for (const [, measured, theory] of limits) expect(Math.abs(hz(measured) / hz(theory) - 1)).toBeLessThan(0.1);

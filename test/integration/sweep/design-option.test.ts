@@ -40,7 +40,7 @@ describe('--design ID|FILE', () => {
   });
 
   it('sweep --design ID sweeps a new build of the stored design, storing no second copy; --linear --points N', async () => {
-    const out = rolloff('sweep', '--design', '1', '--label', 'swept', '--simulated', '--time-scale', '50', '--max-amplitude', '1',
+    const out = rolloff('sweep', '--design', '1', '--label', 'swept', '--simulated', '--time-scale', '50', '--max-stimulus', '1',
       '--from', '100', '--to', '1k', '--linear', '--points', '5', '--no-refine', '--json');
     // sweep --json prints the run's JSON record: keys that name their quantity and unit, valid against the record schema.
     const record = JSON.parse(out) as RunRecord;

@@ -23,7 +23,7 @@ describe('finished runs in rolloff runs', () => {
     const dbPath = join(folder.path, 'runs.sqlite');
     writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
     const sweep = spawnSync(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'finished', '--simulated', '--time-scale', '50',
-      '--max-amplitude', '1', '--db', dbPath, '--per-decade', '3', '--no-refine'], { encoding: 'utf8', timeout: 60_000 });
+      '--max-stimulus', '1', '--db', dbPath, '--per-decade', '3', '--no-refine'], { encoding: 'utf8', timeout: 60_000 });
     expect(sweep.status, sweep.stderr).toBe(0);
 
     // A run finished while its owner was recorded (as stored before finished runs were released), and one still running, owned.

@@ -39,7 +39,7 @@ describe.skipIf(!postgresAvailable())('SIGKILL of a bench mid-sweep on PostgreSQ
   /** A sweep of 31 points (10 Hz–10 kHz at 10/decade) in its own process. */
   function startSweep(url: string, timeScale: string): { child: ChildProcess; output: () => string; exited: Promise<NodeJS.Signals | null> } {
     const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'crash test', '--simulated', '--time-scale', timeScale,
-      '--max-amplitude', '1', '--db', url, '--from', '10', '--to', '10k', '--per-decade', '10', '--no-refine'], { stdio: ['ignore', 'pipe', 'pipe'], env });
+      '--max-stimulus', '1', '--db', url, '--from', '10', '--to', '10k', '--per-decade', '10', '--no-refine'], { stdio: ['ignore', 'pipe', 'pipe'], env });
     let output = '';
     child.stderr!.on('data', (chunk) => (output += chunk));
     child.stdout!.on('data', (chunk) => (output += chunk));

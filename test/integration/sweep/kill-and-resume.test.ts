@@ -28,7 +28,7 @@ describe('SIGKILL in the middle of a sweep, then resume', () => {
 
     // 10 Hz–10 kHz at 10/decade: 31 points; at time scale 5 the low-frequency points take ~0.1 s of wall time each.
     const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'crash test', '--simulated', '--time-scale', '5',
-      '--max-amplitude', '1', '--db', dbPath, '--from', '10', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'pipe', 'pipe'] });
+      '--max-stimulus', '1', '--db', dbPath, '--from', '10', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'pipe', 'pipe'] });
     let stderr = '';
     child.stderr.on('data', (chunk) => (stderr += chunk));
     const exited = new Promise<NodeJS.Signals | null>((done) => child.on('exit', (_code, signal) => done(signal)));

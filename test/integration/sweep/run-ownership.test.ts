@@ -33,7 +33,7 @@ describe('two processes on one store file', () => {
     // 36 points from 3 Hz at time scale 0.2 (slower than real time): at least 42 s of sweeping, so the checks below (each a process
     // of its own, seconds each on a loaded machine) run while it measures.
     const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'owned', '--simulated', '--time-scale', '0.2',
-      '--max-amplitude', '1', '--db', dbPath, '--from', '3', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'pipe', 'pipe'] });
+      '--max-stimulus', '1', '--db', dbPath, '--from', '3', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'pipe', 'pipe'] });
     let stderr = '';
     child.stderr.on('data', (chunk) => (stderr += chunk));
     const exited = new Promise<NodeJS.Signals | null>((done) => child.on('exit', (_code, signal) => done(signal)));
@@ -56,7 +56,7 @@ describe('two processes on one store file', () => {
     const listed = spawnSync(process.execPath, [BIN, 'runs', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
     expect(listed.status, listed.stderr).toBe(0);
     expect(listed.stdout, stderr).toMatch(new RegExp(`\\nrun ${run.id}: running, driven by rolloff \\(command line\\) pid ${child.pid} on ${hostname()}, heartbeat \\d+ s ago\\n`));
-    expect(listed.stdout).toMatch(new RegExp(`\\n${run.id} +ac +running `)); // the table's status column
+    expect(listed.stdout).toMatch(new RegExp(`\\n${run.id} +AC +running `)); // the table's status column
     expect(listed.stderr).not.toMatch(/left running or paused/);
     const listedJson = spawnSync(process.execPath, [BIN, 'runs', '--json', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
     expect(JSON.parse(listedJson.stdout)[0].owner, stderr).toMatchObject({ label: 'rolloff (command line)', pid: child.pid, host: hostname(), live: true });
@@ -78,7 +78,7 @@ describe('two processes on one store file', () => {
     const pointsBefore = await pointsOfLatestRun(dbPath);
     // Its process is gone on this host: listed as interrupted at once, naming who drove it last.
     const listedAfterKill = spawnSync(process.execPath, [BIN, 'runs', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
-    expect(listedAfterKill.stdout).toMatch(new RegExp(`\\n${run.id} +ac +interrupted `));
+    expect(listedAfterKill.stdout).toMatch(new RegExp(`\\n${run.id} +AC +interrupted `));
     expect(listedAfterKill.stdout).toMatch(new RegExp(`\\nrun ${run.id}: interrupted, last driven by rolloff \\(command line\\) pid ${child.pid} on ${hostname()}, heartbeat \\d+ s ago\\n`));
     expect(listedAfterKill.stderr).toMatch(new RegExp(`left running or paused: ${run.id}\\.`));
 
@@ -113,7 +113,7 @@ describe('two processes on one store file', () => {
         await new Promise((r) => setTimeout(r, 50));
       }
     };
-    const first = start(['sweep', '--design', designPath, '--label', 'frozen', '--simulated', '--time-scale', '0.5', '--max-amplitude', '1', '--from', '3', '--to', '10k', '--per-decade', '10', '--no-refine']);
+    const first = start(['sweep', '--design', designPath, '--label', 'frozen', '--simulated', '--time-scale', '0.5', '--max-stimulus', '1', '--from', '3', '--to', '10k', '--per-decade', '10', '--no-refine']);
     await waitForPoints(2, 'the first sweep');
     first.child.kill('SIGSTOP'); // frozen (a hung machine, a laptop lid): alive, but no heartbeat
     await new Promise((r) => setTimeout(r, 11_000)); // more than the 10 s after which a heartbeat is stale (run-ownership.ts)
@@ -156,7 +156,7 @@ describe('two processes on one store file', () => {
     const dbPath = join(folder.path, 'bench-held.sqlite');
     writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
     const sweepOnBench = () => spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'held', '--simulated', '--time-scale', '0.2',
-      '--max-amplitude', '1', '--db', dbPath, '--bench', 'lab-x', '--from', '3', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'ignore', 'pipe'] });
+      '--max-stimulus', '1', '--db', dbPath, '--bench', 'lab-x', '--from', '3', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'ignore', 'pipe'] });
     const waitForPointsOf = async (runId: number) => {
       const deadline = Date.now() + 30_000;
       while ((await pointsOfLatestRun(dbPath)) < 1 || (await latestRunId(dbPath)) !== runId) {

@@ -24,7 +24,7 @@ describe('resuming another bench\'s run', () => {
     const dbPath = join(folder.path, 'runs.sqlite');
     writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
     const sweep = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'bench a', '--simulated', '--time-scale', '0.2',
-      '--max-amplitude', '1', '--db', dbPath, '--bench', 'lab-a', '--from', '3', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'ignore', 'pipe'] });
+      '--max-stimulus', '1', '--db', dbPath, '--bench', 'lab-a', '--from', '3', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'ignore', 'pipe'] });
     const deadline = Date.now() + 30_000;
     while ((await pointsOfLatestRun(dbPath)) < 1) {
       if (Date.now() > deadline) throw new Error('the sweep of bench lab-a made no progress');

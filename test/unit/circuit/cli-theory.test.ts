@@ -70,7 +70,7 @@ describe('rolloff template + theory', () => {
     expect(frequencies).toHaveLength(logGrid(from, to, pointsPerDecade).length);
     const help = await rolloff('theory', '--help');
     expect(help.stdout).toContain(`default ${formatEngineering(from, 'Hz')}`);
-    expect(help.stdout).toContain(`default ${pointsPerDecade};`);
+    expect(help.stdout).toContain(`(default ${pointsPerDecade})`);
   });
 
   it('DC transfer of the log stage as CSV', async () => {
@@ -79,7 +79,8 @@ describe('rolloff template + theory', () => {
     const result = await rolloff('theory', path, '--dc', '--from', '1m', '--to', '10', '--per-decade', '1', '--csv');
     expect(result.code).toBe(0);
     const lines = result.stdout.trim().split('\n');
-    expect(lines[0]).toBe('input_v,output_v,clipped');
+    // The columns a DC run's records use for input and output (app/contract/vocabulary.ts).
+    expect(lines[0]).toBe('input_v_dc,output_v_dc,clipped');
     expect(lines).toHaveLength(1 + 5);
     // 1 mV → 10 V is four decades, ≈ 4·VT·ln 10 ≈ 0.237 V of output change (Shockley law, VT at 25 °C).
     const first = Number(lines[1].split(',')[1]);

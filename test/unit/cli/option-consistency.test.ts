@@ -7,11 +7,12 @@
  */
 import { describe, expect, it } from 'vitest';
 import { COMMANDS } from '../../../app/cli/commands';
-import type { CommandSpec, OptionSpec } from '../../../app/cli/args';
+import { formatCommandHelp, parseArgs, type CommandSpec, type OptionSpec } from '../../../app/cli/args';
 import { DESIGN_PLACEHOLDER } from '../../../app/cli/design-option';
 import { SETTINGS } from '../../../app/contract/vocabulary';
 import { SIMULATED_BENCH_DEFAULTS } from '../../../app/sim';
 import { NOISE_RUN_MEASUREMENT_NOISE_VRMS } from '../../../app/cli/commands/noise';
+import { TOLERANCE_BAND_SETTINGS } from '../../../app/circuit';
 
 const uses = COMMANDS.flatMap((command) => command.options.map((option) => ({ command, option })));
 
@@ -73,6 +74,8 @@ describe('command options', () => {
     const designs = withOption('design');
     expect(designs.map((u) => u.command.name).sort()).toEqual(['build', 'noise', 'schedule', 'sim', 'sweep']);
     for (const { option } of designs) expect([option.kind, option.placeholder]).toEqual(['string', DESIGN_PLACEHOLDER]);
+    // The usage line says the same as the option list.
+    for (const { command } of designs) if (command.usage.includes('--design')) expect(command.usage, command.name).toContain(`--design ${DESIGN_PLACEHOLDER}`);
     const theory = COMMANDS.find((c) => c.name === 'theory')!;
     expect(theory.usage.startsWith(DESIGN_PLACEHOLDER)).toBe(true);
   });
@@ -97,6 +100,28 @@ describe('command options', () => {
       expect(option.description.startsWith(SETTINGS.maxStimulus.label), command.name).toBe(true);
       expect(option.description, command.name).toContain(SETTINGS.maxStimulus.explanation);
     }
+  });
+
+  it('the maximum stimulus\'s old name --max-amplitude is still accepted but never shown in help', () => {
+    const limits = withOption(SETTINGS.maxStimulus.cliOption);
+    for (const { command, option } of limits) {
+      expect(option.aliases, command.name).toEqual([...SETTINGS.maxStimulus.cliAliases]);
+      expect(parseArgs(['--max-amplitude', '2'], command.options).options[SETTINGS.maxStimulus.cliOption], command.name).toBe(2);
+      expect(formatCommandHelp(command), command.name).not.toContain('max-amplitude');
+      expect(formatCommandHelp(command), command.name).toContain(`--${SETTINGS.maxStimulus.cliOption} VPP`);
+    }
+  });
+
+  it('a sweep\'s range and the tolerance band state one default in one notation on every command', () => {
+    for (const name of ['from', 'to', 'per-decade']) {
+      const descriptions = withOption(name).map(({ option }) => option.description.match(/default [^;)]*(; DC [^;)]*)?/)?.[0]);
+      expect(withOption(name).map((u) => u.command.name).sort(), name).toEqual(['schedule', 'sweep', 'theory']);
+      expect(new Set(descriptions).size, `--${name}: ${descriptions.join(' | ')}`).toBe(1);
+      expect(descriptions[0], name).not.toMatch(/\d{4,}|0\.0/);
+    }
+    const theory = COMMANDS.find((c) => c.name === 'theory')!;
+    expect(theory.options.find((o) => o.name === 'samples')?.description).toContain(`default ${TOLERANCE_BAND_SETTINGS.samples},`);
+    expect(theory.options.find((o) => o.name === 'seed')?.description).toContain(`default ${TOLERANCE_BAND_SETTINGS.seed},`);
   });
 
   it('a linear sweep has its own --points; log and linear counts state their defaults and are not filled in', () => {

@@ -96,7 +96,7 @@ describe('rolloff serve', () => {
     const cases: Array<[string[], RegExp]> = [
       [['--port', '70000'], /--port 70000 is not a TCP port/],
       [['--time-scale', '0', '--simulated'], /--time-scale: 0 is not above 0/],
-      [['--max-amplitude', '-1'], /--max-amplitude: -1 Vpp is not a positive amplitude/],
+      [['--max-stimulus', '-1'], /--max-stimulus: -1 Vpp is not a positive amplitude/],
       [['--colour'], /--colour: unknown option/],
     ];
     for (const [args, message] of cases) {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { PointFlag } from '../../../app/contract/contract';
-import { flagWords, formatHz, formatUncertainty, idnText, verdictHeadline } from '../../../app/record/record-formatting';
+import { flagWords, formatHz, formatMeasured, idnText, verdictHeadline } from '../../../app/record/record-formatting';
 import { logAxis, linearAxis, axisFraction } from '../../../app/record/plot-axes';
 
 describe('record wording and number formats', () => {
@@ -14,10 +14,11 @@ describe('record wording and number formats', () => {
     expect(idnText({ manufacturer: 'M', model: 'X', serialNumber: 'S1', firmware: '1.0' })).toBe('M,X,S1,1.0');
   });
 
-  it('uncertainties keep two significant digits (GUM JCGM 100:2008 §7.2.6, recalled from memory)', () => {
-    expect(formatUncertainty(0.000123456)).toBe('0.00012');
-    expect(formatUncertainty(0.05)).toBe('0.05');
-    expect(formatUncertainty(1.26)).toBe('1.3');
+  it('a point\'s gain and phase are rounded with their uncertainty (GUM JCGM 100:2008 §7.2.6), dB and ° without SI prefixes', () => {
+    expect(formatMeasured(19.960123, 0.0000591, 'dB')).toBe('(19.960123 ± 0.000059) dB');
+    expect(formatMeasured(-90.1234, 0.345, '°')).toBe('(−90.12 ± 0.35)°');
+    expect(formatMeasured(0.0004321, 0.0000123, 'dB')).toBe('(0.000432 ± 0.000012) dB');
+    expect(formatMeasured(19.96, null, 'dB')).toBe('19.960 dB');
   });
 
   it('a frequency that rounds up to the next prefix moves to it (999.96 kHz → 1 MHz; common practice, no source)', () => {

@@ -79,8 +79,8 @@ describe('amplitude never exceeds the user maximum', () => {
     expect(plan.warnings.join(' ')).toMatch(/slew-rate limit/);
   });
 
-  it('refuses a DC sweep whose largest level exceeds the ceiling', () => {
-    expect(() => planSweep(input({ maxStimulusVpp: 2, request: request({ kind: 'dc', from: 1e-3, to: 5 }) }))).toThrow(/above the ceiling/);
+  it('refuses a DC sweep whose largest level exceeds the maximum stimulus (a DC level V counts as 2·|V|)', () => {
+    expect(() => planSweep(input({ maxStimulusVpp: 2, request: request({ kind: 'dc', from: 1e-3, to: 5 }) }))).toThrow(/5 V counts as 10 Vpp, above the maximum stimulus 2 Vpp/);
   });
 
   it('refuses frequencies outside the generator range, naming the field', () => {

@@ -17,6 +17,12 @@ describe('formatWithUncertainty (JCGM 100:2008 §7.2.6)', () => {
     expect(formatWithUncertainty(5, 0.0996, 'V')).toBe('(5.00 ± 0.10) V');
   });
 
+  it('keeps dB and degrees unprefixed when asked: the GUM example in its own unit, a small gain in dB, a phase with the degree sign unspaced (SI Brochure §5.4.3)', () => {
+    expect(formatWithUncertainty(100.02147, 0.00035, 'g', { prefix: false })).toBe('(100.02147 ± 0.00035) g');
+    expect(formatWithUncertainty(0.0004321, 0.0000123, 'dB', { prefix: false })).toBe('(0.000432 ± 0.000012) dB');
+    expect(formatWithUncertainty(-45.678, 1.26, '°', { prefix: false })).toBe('(−45.7 ± 1.3)°');
+  });
+
   it('writes a negative value with the true minus sign', () => {
     expect(formatWithUncertainty(-3.01234, 0.012, 'dB')).toBe('(−3.012 ± 0.012) dB');
   });
