@@ -1,13 +1,13 @@
 /** Plain-text summaries of noise runs for the terminal. */
 import type { NoiseFigures, NoiseRunDetail } from '../../contract/contract';
-import { flagWords, WINDOW_NAMES } from '../../contract/vocabulary';
+import { BENCH_WORDS, RUN_KIND_NAMES, flagWords, WINDOW_NAMES } from '../../contract/vocabulary';
 import { formatEngineering } from '../../units';
 import { noiseFigureRows } from '../../analysis';
 
 export function noiseRunText(detail: NoiseRunDetail): string {
   const a = detail.acquisition;
   const lines = [
-    `run ${detail.id}  NOISE  ${detail.status}${detail.simulated ? '  (SIMULATED: simulated bench)' : ''}`,
+    `run ${detail.id}  ${RUN_KIND_NAMES.noise}  ${detail.status}${detail.simulated ? `  (${BENCH_WORDS.simulated.toUpperCase()})` : ''}`,
     `build "${detail.buildLabel}" of design "${detail.designName}"`,
     `records ${detail.pointCount} of ${detail.plannedCount} planned   started ${detail.startedAt ?? '—'}   ended ${detail.endedAt ?? '—'}`,
     `generator held off; input held by its ${formatEngineering(a.sourceImpedanceOhm, 'Ω')} source resistance (computed so)`,

@@ -53,7 +53,7 @@ describe('rolloff noise', () => {
       '--db', dbPath, '--band', '200:20k', '--records', '6');
     expect(measured.status, measured.stderr).toBe(0);
     expect(measured.stderr).toMatch(/reusing the limit of 1 Vpp set on .* for the simulated bench/);
-    expect(measured.stdout).toMatch(/^run 1 {2}NOISE {2}done {2}\(SIMULATED: simulated bench\)/);
+    expect(measured.stdout).toMatch(/^run 1 {2}noise {2}done {2}\(SIMULATED BENCH\)/);
     expect(measured.stdout).toMatch(/Output noise over the band \(measured\) +\([\d.]+ ± [\d.]+\) mV RMS \(1σ\), from 6 records/);
     // show --json prints the run's JSON record, as for a sweep: it passes the schema and its own digest.
     const shown = rolloff('show', '1', '--db', dbPath, '--json');
@@ -70,6 +70,6 @@ describe('rolloff noise', () => {
     expect(header).toBe('frequency_hz,noise_v_per_rthz,noise_uncertainty_v_per_rthz,noise_low95_v_per_rthz,noise_high95_v_per_rthz,computed_noise_v_per_rthz');
     expect(Number(first.split(',')[0])).toBeGreaterThanOrEqual(200);
     const runs = rolloff('runs', '--db', dbPath);
-    expect(runs.stdout).toMatch(/^1 +noise +done +6\/6 +cli board/m);
+    expect(runs.stdout).toMatch(/^1 +noise +done +6 planned +cli board/m);
   });
 });

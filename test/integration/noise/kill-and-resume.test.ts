@@ -57,7 +57,7 @@ describe('SIGKILL in the middle of a noise run, then resume', () => {
     const resumed = spawnSync(process.execPath, [BIN, 'resume', String(run.id), '--db', dbPath, '--simulated', '--circuit-noise', '--measurement-noise', '0', '--seed', '2', '--time-scale', '20'], { encoding: 'utf8', timeout: 120_000 });
     expect(resumed.status, resumed.stderr).toBe(0);
     expect(resumed.stderr).toMatch(new RegExp(`run ${run.id} continues at step ${killedAt}`));
-    expect(resumed.stdout).toMatch(new RegExp(`run ${run.id}  NOISE  done`));
+    expect(resumed.stdout).toMatch(new RegExp(`run ${run.id}  noise  done`));
 
     const after = SqliteStore.open(dbPath, { readonly: true });
     const finished = await after.getRun(run.id);
