@@ -527,8 +527,9 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
       // The claimant's own live run holds the bench too; another bench's run is free.
       expect(await store.claimRunOnFreeBench(otherRun, winnerClaimant, 10_000, 'bench 9')).toEqual({ claimed: false, benchHeldBy: { runId: heldRun, ownership: winner.ownership } });
       expect((await store.claimRunOnFreeBench(left7.id, claimants[0], 10_000, 'bench 9')).claimed).toBe(true);
-      // A run's own live owner is named first, as claimRun names it.
-      expect(await store.claimRunOnFreeBench(heldRun, claimants[1], 10_000, 'bench 9')).toEqual({ claimed: false, ownership: winner.ownership });
+      // A run's own live owner is named first, as claimRun names it (to a claimant that is not the winner: the race picks it).
+      const loser = claimants.find((c) => c !== winnerClaimant)!;
+      expect(await store.claimRunOnFreeBench(heldRun, loser, 10_000, 'bench 9')).toEqual({ claimed: false, ownership: winner.ownership });
 
       nowMs += 11_000; // the winner's heartbeat is stale: the bench is free again
       const afterStale = await store.claimRunOnFreeBench(otherRun, claimants[2], 10_000, 'bench 9');
