@@ -724,26 +724,42 @@ export class PostgresStore implements RolloffStore {
     this.requireWritable();
     requireId(runId, 'runId');
     checkPoint(point, 'point');
-    const asOwner = checkOwnerCondition(condition);
+    await this.insertCountedRow(runId, checkOwnerCondition(condition), {
+      name: 'rolloff-insert-point',
+      into: `points (${POINT_COLUMNS})`,
+      select: `$2::integer, $3::float8, $4::float8, $5::float8, $6::float8, $7::float8, $8::float8, $9::float8, $10::float8, $11::float8, $12::integer, $13::timestamptz`,
+      values: this.valuesOf(point),
+    }, (error) => this.pointFailure(error, runId, [point]));
+  }
+
+  /**
+   * A point or noise record of a run, inserted with the run's count and the change notification in one
+   * statement: one transaction, durable (synchronous_commit=on), notified when it commits and never ahead of
+   * it. The count comes first: its row lock orders this insert with a concurrent claim, and with an owner
+   * condition (re-checked on the row a claim left) nothing is inserted once the run is another process's.
+   * `select` uses $2 … for `values`; the notification and the owner take the two parameters after them.
+   */
+  private async insertCountedRow(
+    runId: number,
+    asOwner: string | null,
+    row: { name: string; into: string; select: string; values: unknown[] },
+    failure: (error: unknown) => unknown,
+  ): Promise<void> {
+    const notifyAt = row.values.length + 2;
+    const ownerAt = notifyAt + 1;
     let inserted: number | null;
     try {
-      // One statement is one transaction: the point and the run's count commit together, durably (synchronous_commit=on).
-      // The count comes first: its row lock orders this insert with a concurrent claim, and with an owner condition
-      // (re-checked on the row a claim left) nothing is inserted once the run is another process's.
       ({ rowCount: inserted } = await this.query(
         {
-          name: 'rolloff-insert-point',
-          // The notification is sent when this statement commits, with the point: never ahead of it.
-          text: `WITH counted AS (UPDATE runs SET point_count = point_count + 1 WHERE id = $1 AND ($15::text IS NULL OR owner_id = $15) RETURNING id),
-                 point AS (INSERT INTO points (${POINT_COLUMNS})
-                   SELECT id, $2::integer, $3::float8, $4::float8, $5::float8, $6::float8, $7::float8, $8::float8, $9::float8, $10::float8, $11::float8,
-                     $12::integer, $13::timestamptz FROM counted RETURNING run_id)
-                 SELECT pg_notify('${CHANGE_CHANNEL}', $14) FROM point`,
+          name: row.name,
+          text: `WITH counted AS (UPDATE runs SET point_count = point_count + 1 WHERE id = $1 AND ($${ownerAt}::text IS NULL OR owner_id = $${ownerAt}) RETURNING id),
+                 inserted AS (INSERT INTO ${row.into} SELECT id, ${row.select} FROM counted RETURNING run_id)
+                 SELECT pg_notify('${CHANGE_CHANNEL}', $${notifyAt}) FROM inserted`,
         },
-        [runId, ...this.valuesOf(point), changePayload(this.origin, { kind: 'points', runId }), asOwner],
+        [runId, ...row.values, changePayload(this.origin, { kind: 'points', runId }), asOwner],
       ));
     } catch (error) {
-      throw this.pointFailure(error, runId, [point]);
+      throw failure(error);
     }
     if (inserted === 0) await this.refuseWrite(runId, asOwner);
   }
@@ -862,25 +878,12 @@ export class PostgresStore implements RolloffStore {
     this.requireWritable();
     requireId(runId, 'runId');
     const psd = checkNoiseRecord(record, 'noiseRecord');
-    const asOwner = checkOwnerCondition(condition);
-    let inserted: number | null;
-    try {
-      // One statement, one transaction (as insertPoint): the conditional count first, then the record and the notification.
-      ({ rowCount: inserted } = await this.query(
-        {
-          name: 'rolloff-insert-noise-record',
-          text: `WITH counted AS (UPDATE runs SET point_count = point_count + 1 WHERE id = $1 AND ($12::text IS NULL OR owner_id = $12) RETURNING id),
-                 record AS (INSERT INTO noise_records (${NOISE_RECORD_COLUMNS})
-                   SELECT id, $2::integer, $3::float8, $4::integer, $5::float8, $6::float8, $7::float8, $8::integer, $9::timestamptz, $10::bytea
-                   FROM counted RETURNING run_id)
-                 SELECT pg_notify('${CHANGE_CHANNEL}', $11) FROM record`,
-        },
-        [runId, ...this.noiseRecordValues(record, psd), changePayload(this.origin, { kind: 'points', runId }), asOwner],
-      ));
-    } catch (error) {
-      throw this.pointFailure(error, runId, [record]);
-    }
-    if (inserted === 0) await this.refuseWrite(runId, asOwner);
+    await this.insertCountedRow(runId, checkOwnerCondition(condition), {
+      name: 'rolloff-insert-noise-record',
+      into: `noise_records (${NOISE_RECORD_COLUMNS})`,
+      select: `$2::integer, $3::float8, $4::integer, $5::float8, $6::float8, $7::float8, $8::integer, $9::timestamptz, $10::bytea`,
+      values: this.noiseRecordValues(record, psd),
+    }, (error) => this.pointFailure(error, runId, [record]));
   }
 
   async loadNoiseRecords(runId: number): Promise<StoredNoiseRecords> {
