@@ -36,6 +36,12 @@
  * settle-before-acquire.test.ts checks captures against the bench's own
  * record). Everything else (read-back, next time base, storing) overlaps.
  *
+ * Beside the table, the "bare link" ratio: the same exchange (per point a setting and its
+ * acknowledgement, the settling, an acquisition and its "complete") between this process and two
+ * stand-in instruments with nothing of Rolloff in them (bare-link-instruments.ts), over raw sockets,
+ * with the same reply latency and the same waits. It is what any program reaches on this machine; the
+ * difference from Rolloff's raw-socket ratio is Rolloff's own cost.
+ *
  * A second table attributes every millisecond of the wall time beyond the
  * plan's Σ (settle + record), from the link traffic the service reports (its
  * own timestamps, nothing from inside the runner): set-up before the first
@@ -50,11 +56,15 @@
  * machine, which stretches the replies of the simulated bench's process, can
  * be told apart from the runner's own cost.
  */
+import { spawn } from 'node:child_process';
+import { once } from 'node:events';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { connect } from 'node:net';
 import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { openServiceAt } from '../../app/service/open-service';
 import { makeDesignFromTemplate } from '../../app/circuit/templates';
+import { realClock } from '../../app/bench/clock';
 import { startSimProcess } from '../helpers/sim-process';
 import { ensurePortmapper } from '../helpers/portmapper';
 
@@ -125,7 +135,7 @@ async function main(): Promise<void> {
         minCycles: 5, refine: false, operator: 'benchmark', notes: '', ...c.request,
       };
       const plan = await service.planSweep(request);
-      const minimumS = independentMinimumS(designFile as unknown as { parts: Array<{ id: string; value?: number }> }, { ...request, minIntegrationS: c.request.measurement === 'meter' ? 0.1 : 0 });
+      const minimumS = physicalMinimumS(independentSteps(designFile as unknown as { parts: Array<{ id: string; value?: number }> }, { ...request, minIntegrationS: c.request.measurement === 'meter' ? 0.1 : 0 }));
       let lastPointMs = 0;
       let firstSentMs = 0;
       const timeline: TrafficMoment[] = [];
@@ -168,6 +178,12 @@ async function main(): Promise<void> {
     }
     }
     console.log('target: ratio ≤ 1.10 (scope case, one acquisition per point, 3 ms per reply)');
+    const scopeCase = cases.find((c) => c.id === 'scope');
+    if (scopeCase) {
+      const steps = independentSteps(designFile as unknown as { parts: Array<{ id: string; value?: number }> }, { pointsPerDecade: perDecade, minCycles: 5, minIntegrationS: 0, ...scopeCase.request });
+      const bare = await bareLinkRatio(latencyMs, steps);
+      console.log(`bare link, the same exchange over a raw socket with nothing of Rolloff (${steps.length} points; the best any program reaches here): ratio ${bare.toFixed(3)}, 2-reply floor ${((physicalMinimumS(steps) + steps.length * 2 * (latencyMs / 1000)) / physicalMinimumS(steps)).toFixed(3)}`);
+    }
     console.log('');
     console.log('where the wall time beyond the physical minimum goes, from the link traffic (scope cases; ms in all, and per point in brackets: mean/median):');
     console.log('  set-up       = start of the run to the first generator command (store, plan, events)');
@@ -294,20 +310,82 @@ function describeNoParts(): string {
   return [6, 11, 18, 18, 18, 10, 6, 16].map((width) => '—'.padStart(width)).join('  ');
 }
 
-/** Σ (settle + averages · acquisition) from the design file and the request alone (see the file comment). */
-function independentMinimumS(design: { parts: Array<{ id: string; value?: number }> }, request: { from: number; to: number; pointsPerDecade: number; averages: number; minCycles: number; minIntegrationS: number }): number {
+/** Per point, the settling and the record time from the design file and the request alone (see the file comment). */
+function independentSteps(design: { parts: Array<{ id: string; value?: number }> }, request: { from: number; to: number; pointsPerDecade: number; averages: number; minCycles: number; minIntegrationS: number }): Array<{ settleS: number; recordS: number }> {
   const value = (id: string) => design.parts.find((p) => p.id === id)!.value!;
   const tauS = value('RF') * value('CF');
   const settleS = Math.max(-Math.log(1e-3) * tauS, 0.01);
   const decades = Math.log10(request.to / request.from);
   const count = Math.round(decades * request.pointsPerDecade) + 1;
-  let total = 0;
-  for (let k = 0; k < count; k++) {
+  return Array.from({ length: count }, (_, k) => {
     const frequencyHz = request.from * 10 ** (k / request.pointsPerDecade);
     const periods = Math.max(request.minCycles, Math.ceil(request.minIntegrationS * frequencyHz - 1e-9));
-    total += settleS + (request.averages * periods) / frequencyHz;
+    return { settleS, recordS: (request.averages * periods) / frequencyHz };
+  });
+}
+
+/** The physical minimum: Σ (settle + averages · acquisition). */
+function physicalMinimumS(steps: Array<{ settleS: number; recordS: number }>): number {
+  return steps.reduce((total, step) => total + step.settleS + step.recordS, 0);
+}
+
+/**
+ * The same exchange as a scope sweep with nothing of Rolloff in it: per point a setting to the bare
+ * generator and its acknowledgement, the settling, then "ACQUIRE" to the bare scope and its "complete"
+ * (bare-link-instruments.ts, replies exactly as late as the simulated bench's). Its ratio is the best any
+ * program can reach on this machine over a raw socket; the difference from Rolloff's ratio is Rolloff's
+ * own cost (SCPI, runner, fits, store).
+ */
+async function bareLinkRatio(latencyMs: number, steps: Array<{ settleS: number; recordS: number }>): Promise<number> {
+  const child = spawn(process.execPath, ['--import', 'tsx', join(import.meta.dirname, 'bare-link-instruments.ts'), String(latencyMs / 1000)], { stdio: ['ignore', 'pipe', 'inherit'] });
+  try {
+    const banner = await new Promise<string>((resolve, reject) => {
+      child.stdout!.once('data', (chunk) => resolve(String(chunk)));
+      child.once('exit', () => reject(new Error('the bare-link instruments exited before they listened')));
+    });
+    const [, generatorPort, scopePort] = /generator (\d+) scope (\d+)/.exec(banner)!;
+    const generator = await lineLink(Number(generatorPort));
+    const scope = await lineLink(Number(scopePort));
+    const startedMs = performance.now();
+    for (const step of steps) {
+      await generator.ask('SET');
+      await realClock.sleepS(step.settleS);
+      await scope.ask(`ACQUIRE ${step.recordS}`);
+    }
+    const wallS = (performance.now() - startedMs) / 1000;
+    generator.close();
+    scope.close();
+    return wallS / physicalMinimumS(steps);
+  } finally {
+    child.kill('SIGINT');
   }
-  return total;
+}
+
+/** A TCP connection that sends a line and resolves with the next line received. */
+async function lineLink(port: number): Promise<{ ask(line: string): Promise<string>; close(): void }> {
+  const socket = connect(port, '127.0.0.1');
+  await once(socket, 'connect');
+  socket.setNoDelay(true);
+  let waiting: ((line: string) => void) | undefined;
+  let buffered = '';
+  socket.on('data', (chunk) => {
+    buffered += String(chunk);
+    const at = buffered.indexOf('\n');
+    if (at >= 0 && waiting) {
+      const line = buffered.slice(0, at);
+      buffered = buffered.slice(at + 1);
+      const resolve = waiting;
+      waiting = undefined;
+      resolve(line);
+    }
+  });
+  return {
+    ask: (line) => new Promise((resolve) => {
+      waiting = resolve;
+      socket.write(`${line}\n`);
+    }),
+    close: () => socket.destroy(),
+  };
 }
 
 await main();
