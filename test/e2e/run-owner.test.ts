@@ -6,18 +6,15 @@
  * SIGKILL of the sweep, and once its heartbeat is stale, both show it interrupted.
  */
 import { afterAll, describe, expect, it } from 'vitest';
-import { spawn } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, rmSync } from 'node:fs';
 import { hostname, tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { launchChromium } from './helpers/chromium';
 import { requireTool } from '../helpers/required-tool';
 import { callService, startServe, type ServeProcess } from './helpers/serve-process';
-import { makeDesignFromTemplate } from '../../app/circuit';
 import type { RunSummary } from '../../app/contract/contract';
-import { pointsOfLatestRun } from '../integration/sweep/helpers';
+import { startCliSweep, writeLowpassDesign } from '../integration/sweep/helpers';
 
-const ROOT = resolve(__dirname, '../..');
 const ARTIFACTS = resolve(__dirname, '../artifacts');
 
 describe.skipIf(!requireTool('chromium'))('the driver of a run, in the History view and the run detail', () => {
@@ -30,20 +27,11 @@ describe.skipIf(!requireTool('chromium'))('the driver of a run, in the History v
   });
 
   it('shows a CLI sweep as running, driven by its process, without a Resume button; after SIGKILL, as interrupted', async () => {
-    const designPath = join(dir, 'lowpass.json');
-    writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
-    // Slower than real time from 3 Hz (8.4 s of bench time at time scale 0.2: at least 42 s): the window sees it running.
-    const sweep = spawn(process.execPath, ['app/cli/bin.mjs', 'sweep', '--design', designPath, '--label', 'driven board', '--simulated', '--time-scale', '0.2',
-      '--max-stimulus', '1', '--db', dbPath, '--from', '3', '--to', '10k', '--per-decade', '10'], { cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'] });
-    let sweepErr = '';
-    sweep.stderr.on('data', (chunk) => (sweepErr += chunk));
-    const exited = new Promise<NodeJS.Signals | null>((done) => sweep.on('exit', (_code, signal) => done(signal)));
+    // Slower than real time (startCliSweep: at least 42 s): the window sees it running.
+    const cliSweep = startCliSweep({ dbPath, designPath: writeLowpassDesign(dir), label: 'driven board' });
+    const { child: sweep, exited } = cliSweep;
     try {
-      const deadline = Date.now() + 60_000;
-      while ((await pointsOfLatestRun(dbPath)) < 1) {
-        if (Date.now() > deadline) throw new Error(`the sweep measured nothing: ${sweepErr}`);
-        await new Promise((r) => setTimeout(r, 100));
-      }
+      await cliSweep.pointsStored();
       serve = await startServe([], { dbPath });
       const [run] = await callService<RunSummary[]>(serve, 'listRuns', []);
       expect(run.owner).toMatchObject({ label: 'rolloff (command line)', pid: sweep.pid, host: hostname(), live: true });

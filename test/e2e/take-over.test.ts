@@ -6,18 +6,15 @@
  * run's events record the take-over.
  */
 import { afterAll, describe, expect, it } from 'vitest';
-import { spawn } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { launchChromium } from './helpers/chromium';
 import { requireTool } from '../helpers/required-tool';
 import { callService, startServe, type ServeProcess } from './helpers/serve-process';
-import { makeDesignFromTemplate } from '../../app/circuit';
 import type { RunDetail, RunSummary } from '../../app/contract/contract';
-import { pointsOfLatestRun } from '../integration/sweep/helpers';
+import { killed, startCliSweep, writeLowpassDesign } from '../integration/sweep/helpers';
 
-const ROOT = resolve(__dirname, '../..');
 const ARTIFACTS = resolve(__dirname, '../artifacts');
 
 describe.skipIf(!requireTool('chromium'))('taking over another bench\'s run in the window', () => {
@@ -30,18 +27,9 @@ describe.skipIf(!requireTool('chromium'))('taking over another bench\'s run in t
   });
 
   it('asks in a dialog naming the run\'s bench; cancel changes nothing, confirming resumes it here and records the take-over', async () => {
-    const designPath = join(dir, 'lowpass.json');
-    writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
-    const sweep = spawn(process.execPath, ['app/cli/bin.mjs', 'sweep', '--design', designPath, '--label', 'bench a board', '--simulated', '--time-scale', '0.2',
-      '--max-stimulus', '1', '--db', dbPath, '--bench', 'lab-a', '--from', '3', '--to', '10k', '--per-decade', '10'], { cwd: ROOT, stdio: ['ignore', 'ignore', 'pipe'] });
-    const exited = new Promise<void>((done) => sweep.on('exit', () => done()));
-    const deadline = Date.now() + 60_000;
-    while ((await pointsOfLatestRun(dbPath)) < 1) {
-      if (Date.now() > deadline) throw new Error('the sweep of bench lab-a measured nothing');
-      await new Promise((r) => setTimeout(r, 100));
-    }
-    sweep.kill('SIGKILL');
-    await exited;
+    const sweep = startCliSweep({ dbPath, designPath: writeLowpassDesign(dir), label: 'bench a board', extra: ['--bench', 'lab-a'] });
+    await sweep.pointsStored();
+    await killed(sweep.child);
 
     serve = await startServe(['--simulated', '--time-scale', '50'], { dbPath, env: { ROLLOFF_BENCH: 'lab-b' } });
     const [run] = await callService<RunSummary[]>(serve, 'listRuns', []);

@@ -7,12 +7,10 @@
  * in test/integration/store; here the whole crash/resume path is exercised.)
  */
 import { afterAll, describe, expect, it } from 'vitest';
-import { spawn, spawnSync } from 'node:child_process';
-import { writeFileSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
 import { join, resolve } from 'node:path';
 import { SqliteStore } from '../../../app/store';
-import { makeDesignFromTemplate } from '../../../app/circuit/templates';
-import { pointsOfLatestRun, tempFolder } from './helpers';
+import { startCliSweep, tempFolder, writeLowpassDesign } from './helpers';
 
 const ROOT = resolve(__dirname, '../../..');
 const BIN = join(ROOT, 'app/cli/bin.mjs');
@@ -22,24 +20,15 @@ describe('SIGKILL in the middle of a sweep, then resume', () => {
   afterAll(() => folder.remove());
 
   it('loses no point, duplicates none, and completes the run', async () => {
-    const designPath = join(folder.path, 'lowpass.json');
+    const designPath = writeLowpassDesign(folder.path);
     const dbPath = join(folder.path, 'runs.sqlite');
-    writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
 
     // 10 Hz–10 kHz at 10/decade: 31 points; at time scale 5 the low-frequency points take ~0.1 s of wall time each.
-    const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'crash test', '--simulated', '--time-scale', '5',
-      '--max-stimulus', '1', '--db', dbPath, '--from', '10', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'pipe', 'pipe'] });
-    let stderr = '';
-    child.stderr.on('data', (chunk) => (stderr += chunk));
-    const exited = new Promise<NodeJS.Signals | null>((done) => child.on('exit', (_code, signal) => done(signal)));
-
-    const deadline = Date.now() + 30_000;
-    while ((await pointsOfLatestRun(dbPath)) < 4) {
-      if (Date.now() > deadline) throw new Error(`sweep made no progress: ${stderr}`);
-      await new Promise((r) => setTimeout(r, 50));
-    }
+    const sweep = startCliSweep({ dbPath, designPath, label: 'crash test', timeScale: 5, fromHz: 10 });
+    const child = sweep.child;
+    await sweep.pointsStored(4);
     child.kill('SIGKILL');
-    expect(await exited).toBe('SIGKILL');
+    expect(await sweep.exited).toBe('SIGKILL');
 
     const before = SqliteStore.open(dbPath, { readonly: true });
     const [run] = await before.listRuns({ limit: 1 });

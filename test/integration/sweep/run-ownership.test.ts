@@ -17,7 +17,7 @@ import { SqliteStore } from '../../../app/store';
 import { openServiceAt } from '../../../app/service/open-service';
 import { RunOwnedElsewhereError } from '../../../app/service/run-ownership';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
-import { killed, pointsOfLatestRun, storedRun, tempFolder } from './helpers';
+import { killed, pointsOfLatestRun, startCliSweep, storedRun, tempFolder, writeLowpassDesign } from './helpers';
 
 const ROOT = resolve(__dirname, '../../..');
 const BIN = join(ROOT, 'app/cli/bin.mjs');
@@ -27,21 +27,12 @@ describe('two processes on one store file', () => {
   afterAll(() => folder.remove());
 
   it('a live run is not taken, paused, stopped or called interrupted by another process; after SIGKILL it is taken over and completed', async () => {
-    const designPath = join(folder.path, 'lowpass.json');
+    const designPath = writeLowpassDesign(folder.path);
     const dbPath = join(folder.path, 'runs.sqlite');
-    writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
-    // 36 points from 3 Hz at time scale 0.2 (slower than real time): at least 42 s of sweeping, so the checks below (each a process
-    // of its own, seconds each on a loaded machine) run while it measures.
-    const child = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'owned', '--simulated', '--time-scale', '0.2',
-      '--max-stimulus', '1', '--db', dbPath, '--from', '3', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'pipe', 'pipe'] });
-    let stderr = '';
-    child.stderr.on('data', (chunk) => (stderr += chunk));
-    const exited = new Promise<NodeJS.Signals | null>((done) => child.on('exit', (_code, signal) => done(signal)));
-    const deadline = Date.now() + 30_000;
-    while ((await pointsOfLatestRun(dbPath)) < 1) {
-      if (Date.now() > deadline) throw new Error(`sweep made no progress: ${stderr}`);
-      await new Promise((r) => setTimeout(r, 50));
-    }
+    // The checks below run while it measures (startCliSweep: at least 42 s of sweeping).
+    const sweep = startCliSweep({ dbPath, designPath, label: 'owned' });
+    const { child, exited } = sweep;
+    await sweep.pointsStored();
     const peek = SqliteStore.open(dbPath, { readonly: true });
     const [run] = await peek.listRuns({ limit: 1 });
     const owner = await peek.getRunOwnership(run.id);
@@ -55,11 +46,11 @@ describe('two processes on one store file', () => {
     expect(resumeRefused.stderr).toMatch(/Pause or stop it where it runs/);
     const listed = spawnSync(process.execPath, [BIN, 'runs', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
     expect(listed.status, listed.stderr).toBe(0);
-    expect(listed.stdout, stderr).toMatch(new RegExp(`\\nrun ${run.id}: running, driven by rolloff \\(command line\\) pid ${child.pid} on ${hostname()}, heartbeat \\d+ s ago\\n`));
+    expect(listed.stdout, sweep.stderr()).toMatch(new RegExp(`\\nrun ${run.id}: running, driven by rolloff \\(command line\\) pid ${child.pid} on ${hostname()}, heartbeat \\d+ s ago\\n`));
     expect(listed.stdout).toMatch(new RegExp(`\\n${run.id} +AC +running `)); // the table's status column
     expect(listed.stderr).not.toMatch(/left running or paused/);
     const listedJson = spawnSync(process.execPath, [BIN, 'runs', '--json', '--db', dbPath], { encoding: 'utf8', timeout: 30_000 });
-    expect(JSON.parse(listedJson.stdout)[0].owner, stderr).toMatchObject({ label: 'rolloff (command line)', pid: child.pid, host: hostname(), live: true });
+    expect(JSON.parse(listedJson.stdout)[0].owner, sweep.stderr()).toMatchObject({ label: 'rolloff (command line)', pid: child.pid, host: hostname(), live: true });
 
     // A service in this process (as the window's would be): pause, stop and resume refused, nothing changed.
     const other = await openServiceAt(dbPath, { maxStimulusVpp: 1 });
@@ -152,11 +143,9 @@ describe('two processes on one store file', () => {
   }, 180_000);
 
   it('a resume never starts beside a live run of the same bench: refused naming the run that holds the bench, nothing written', async () => {
-    const designPath = join(folder.path, 'bench-held.json');
+    const designPath = writeLowpassDesign(folder.path);
     const dbPath = join(folder.path, 'bench-held.sqlite');
-    writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
-    const sweepOnBench = () => spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'held', '--simulated', '--time-scale', '0.2',
-      '--max-stimulus', '1', '--db', dbPath, '--bench', 'lab-x', '--from', '3', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'ignore', 'pipe'] });
+    const sweepOnBench = () => startCliSweep({ dbPath, designPath, label: 'held', extra: ['--bench', 'lab-x'] }).child;
     const waitForPointsOf = async (runId: number) => {
       const deadline = Date.now() + 30_000;
       while ((await pointsOfLatestRun(dbPath)) < 1 || (await latestRunId(dbPath)) !== runId) {

@@ -6,11 +6,9 @@
  * confirmed take-over completes the run, and its events record it.
  */
 import { afterAll, describe, expect, it } from 'vitest';
-import { spawn, spawnSync } from 'node:child_process';
-import { writeFileSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
 import { join, resolve } from 'node:path';
-import { makeDesignFromTemplate } from '../../../app/circuit/templates';
-import { killed, pointsOfLatestRun, storedRun, tempFolder } from './helpers';
+import { killed, startCliSweep, storedRun, tempFolder, writeLowpassDesign } from './helpers';
 
 const ROOT = resolve(__dirname, '../../..');
 const BIN = join(ROOT, 'app/cli/bin.mjs');
@@ -20,17 +18,10 @@ describe('resuming another bench\'s run', () => {
   afterAll(() => folder.remove());
 
   it('needs the run\'s bench name repeated; a wrong one is refused naming the right one; the confirmed take-over is recorded', async () => {
-    const designPath = join(folder.path, 'lowpass.json');
     const dbPath = join(folder.path, 'runs.sqlite');
-    writeFileSync(designPath, JSON.stringify(makeDesignFromTemplate('inverting-lowpass', {})));
-    const sweep = spawn(process.execPath, [BIN, 'sweep', '--design', designPath, '--label', 'bench a', '--simulated', '--time-scale', '0.2',
-      '--max-stimulus', '1', '--db', dbPath, '--bench', 'lab-a', '--from', '3', '--to', '10k', '--per-decade', '10'], { stdio: ['ignore', 'ignore', 'pipe'] });
-    const deadline = Date.now() + 30_000;
-    while ((await pointsOfLatestRun(dbPath)) < 1) {
-      if (Date.now() > deadline) throw new Error('the sweep of bench lab-a made no progress');
-      await new Promise((r) => setTimeout(r, 50));
-    }
-    await killed(sweep);
+    const sweep = startCliSweep({ dbPath, designPath: writeLowpassDesign(folder.path), label: 'bench a', extra: ['--bench', 'lab-a'] });
+    await sweep.pointsStored();
+    await killed(sweep.child);
     const before = await storedRun(dbPath, 1);
     expect(before.run).toMatchObject({ status: 'running', benchName: 'lab-a' });
 
