@@ -10,21 +10,17 @@
  * prints "generator PORT scope PORT" once both listen.
  */
 import { createServer, type Server, type Socket } from 'node:net';
+import { ReadlineParser } from '@serialport/parser-readline';
 import { realClock } from '../../app/bench/clock';
 
 const latencyS = Number(process.argv[2]);
 
+/** Answers each LF-terminated line in turn (framed by @serialport/parser-readline, as the simulated bench's links are). */
 function serveLines(answer: (line: string) => Promise<void>, socket: Socket): void {
   socket.setNoDelay(true);
-  let buffered = '';
   let chain = Promise.resolve();
-  socket.on('data', (chunk) => {
-    buffered += chunk.toString('latin1');
-    for (let at = buffered.indexOf('\n'); at >= 0; at = buffered.indexOf('\n')) {
-      const line = buffered.slice(0, at);
-      buffered = buffered.slice(at + 1);
-      chain = chain.then(() => answer(line));
-    }
+  socket.pipe(new ReadlineParser({ delimiter: '\n', encoding: 'latin1' })).on('data', (line: string) => {
+    chain = chain.then(() => answer(line));
   });
   socket.on('error', () => socket.destroy());
 }

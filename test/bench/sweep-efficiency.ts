@@ -65,6 +65,7 @@ import { join } from 'node:path';
 import { openServiceAt } from '../../app/service/open-service';
 import { makeDesignFromTemplate } from '../../app/circuit/templates';
 import { realClock } from '../../app/bench/clock';
+import { ReadlineParser } from '@serialport/parser-readline';
 import { startSimProcess } from '../helpers/sim-process';
 import { ensurePortmapper } from '../helpers/portmapper';
 
@@ -130,12 +131,9 @@ async function main(): Promise<void> {
     const addresses = addressesOf(link);
     for (const role of ['generator', 'meter', 'scope'] as const) await service.connect({ role, address: addresses[role]!, profileId: `scpi-${role}` });
     for (const c of cases) {
-      const request = {
-        buildId: build.id, kind: 'ac' as const, pointsPerDecade: perDecade, spacing: 'log' as const, amplitude: { mode: 'auto' as const },
-        minCycles: 5, refine: false, operator: 'benchmark', notes: '', ...c.request,
-      };
+      const request = sweepRequest(c.request, build.id, perDecade);
       const plan = await service.planSweep(request);
-      const minimumS = physicalMinimumS(independentSteps(designFile as unknown as { parts: Array<{ id: string; value?: number }> }, { ...request, minIntegrationS: c.request.measurement === 'meter' ? 0.1 : 0 }));
+      const minimumS = physicalMinimumS(independentSteps(designFile, request));
       let lastPointMs = 0;
       let firstSentMs = 0;
       const timeline: TrafficMoment[] = [];
@@ -166,7 +164,7 @@ async function main(): Promise<void> {
       }
       const ratio = wallS / minimumS;
       const overheadMs = ((wallS - minimumS) / plan.steps.length) * 1000;
-      const floorRatio = (minimumS + plan.steps.length * 2 * (latencyMs / 1000)) / minimumS;
+      const floorRatio = twoReplyFloorRatio(minimumS, plan.steps.length, latencyMs);
       const parts = c.request.measurement === 'scope' ? scopeBreakdown(timeline, plan.steps, request.averages, started, lastPointMs) : undefined;
       const cpuMsPerPoint = (cpu.user + cpu.system) / 1000 / plan.steps.length;
       const simCpuMsPerPoint = simCpuMs / plan.steps.length;
@@ -180,9 +178,10 @@ async function main(): Promise<void> {
     console.log('target: ratio ≤ 1.10 (scope case, one acquisition per point, 3 ms per reply)');
     const scopeCase = cases.find((c) => c.id === 'scope');
     if (scopeCase) {
-      const steps = independentSteps(designFile as unknown as { parts: Array<{ id: string; value?: number }> }, { pointsPerDecade: perDecade, minCycles: 5, minIntegrationS: 0, ...scopeCase.request });
+      const steps = independentSteps(designFile, sweepRequest(scopeCase.request, build.id, perDecade));
       const bare = await bareLinkRatio(latencyMs, steps);
-      console.log(`bare link, the same exchange over a raw socket with nothing of Rolloff (${steps.length} points; the best any program reaches here): ratio ${bare.toFixed(3)}, 2-reply floor ${((physicalMinimumS(steps) + steps.length * 2 * (latencyMs / 1000)) / physicalMinimumS(steps)).toFixed(3)}`);
+      const floor = twoReplyFloorRatio(physicalMinimumS(steps), steps.length, latencyMs);
+      console.log(`bare link, the same exchange over a raw socket with nothing of Rolloff (${steps.length} points; the best any program reaches here): ratio ${bare.toFixed(3)}, 2-reply floor ${floor.toFixed(3)}`);
     }
     console.log('');
     console.log('where the wall time beyond the physical minimum goes, from the link traffic (scope cases; ms in all, and per point in brackets: mean/median):');
@@ -310,16 +309,33 @@ function describeNoParts(): string {
   return [6, 11, 18, 18, 18, 10, 6, 16].map((width) => '—'.padStart(width)).join('  ');
 }
 
-/** Per point, the settling and the record time from the design file and the request alone (see the file comment). */
-function independentSteps(design: { parts: Array<{ id: string; value?: number }> }, request: { from: number; to: number; pointsPerDecade: number; averages: number; minCycles: number; minIntegrationS: number }): Array<{ settleS: number; recordS: number }> {
-  const value = (id: string) => design.parts.find((p) => p.id === id)!.value!;
+/** The benchmark's sweep request for one case: the case's range, measurement and averages over the shared defaults. */
+function sweepRequest(caseRequest: (typeof CASES)[number]['request'], buildId: number, pointsPerDecade: number) {
+  return {
+    buildId, kind: 'ac' as const, pointsPerDecade, spacing: 'log' as const, amplitude: { mode: 'auto' as const },
+    minCycles: 5, refine: false, operator: 'benchmark', notes: '', ...caseRequest,
+  };
+}
+
+/** The ratio a sweep would reach if each point paid exactly two reply latencies and nothing else (see the file comment). */
+function twoReplyFloorRatio(minimumS: number, points: number, latencyMs: number): number {
+  return (minimumS + points * 2 * (latencyMs / 1000)) / minimumS;
+}
+
+/**
+ * Per point, the settling and the record time from the design file and the request alone (see the file
+ * comment). The shortest acquisition is the meter's 0.1 s aperture; a scope has none.
+ */
+function independentSteps(design: { parts: ReadonlyArray<Record<string, unknown>> }, request: ReturnType<typeof sweepRequest>): Array<{ settleS: number; recordS: number }> {
+  const minIntegrationS = request.measurement === 'meter' ? 0.1 : 0;
+  const value = (id: string) => Number(design.parts.find((p) => p.id === id)!.value);
   const tauS = value('RF') * value('CF');
   const settleS = Math.max(-Math.log(1e-3) * tauS, 0.01);
   const decades = Math.log10(request.to / request.from);
   const count = Math.round(decades * request.pointsPerDecade) + 1;
   return Array.from({ length: count }, (_, k) => {
     const frequencyHz = request.from * 10 ** (k / request.pointsPerDecade);
-    const periods = Math.max(request.minCycles, Math.ceil(request.minIntegrationS * frequencyHz - 1e-9));
+    const periods = Math.max(request.minCycles, Math.ceil(minIntegrationS * frequencyHz - 1e-9));
     return { settleS, recordS: (request.averages * periods) / frequencyHz };
   });
 }
@@ -361,23 +377,16 @@ async function bareLinkRatio(latencyMs: number, steps: Array<{ settleS: number; 
   }
 }
 
-/** A TCP connection that sends a line and resolves with the next line received. */
+/** A TCP connection that sends a line and resolves with the next line received (framed by @serialport/parser-readline). */
 async function lineLink(port: number): Promise<{ ask(line: string): Promise<string>; close(): void }> {
   const socket = connect(port, '127.0.0.1');
   await once(socket, 'connect');
   socket.setNoDelay(true);
   let waiting: ((line: string) => void) | undefined;
-  let buffered = '';
-  socket.on('data', (chunk) => {
-    buffered += String(chunk);
-    const at = buffered.indexOf('\n');
-    if (at >= 0 && waiting) {
-      const line = buffered.slice(0, at);
-      buffered = buffered.slice(at + 1);
-      const resolve = waiting;
-      waiting = undefined;
-      resolve(line);
-    }
+  socket.pipe(new ReadlineParser({ delimiter: '\n', encoding: 'latin1' })).on('data', (line: string) => {
+    const resolve = waiting;
+    waiting = undefined;
+    resolve?.(line);
   });
   return {
     ask: (line) => new Promise((resolve) => {
