@@ -5,7 +5,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { UserError, ValidationError } from '../errors';
-import type { RolloffService } from '../service/service';
+import type { LocalService } from '../service/local-service';
 import type { OptionSpec } from './args';
 
 export const DESIGN_PLACEHOLDER = 'ID|FILE';
@@ -23,18 +23,18 @@ export function chooseDesign(text: string, where = '--design'): DesignChoice {
 }
 
 /** The stored design's id: the one given, or a file's design stored now. */
-export async function storedDesignId(service: RolloffService, choice: DesignChoice): Promise<number> {
+export async function storedDesignId(service: LocalService, choice: DesignChoice): Promise<number> {
   if ('storedId' in choice) return (await storedDesign(service, choice)).id;
   return (await service.saveDesign(choice.content)).id;
 }
 
 /** The design's JSON: a file's content, or a stored design's. */
-export async function designContent(service: RolloffService, choice: DesignChoice): Promise<unknown> {
+export async function designContent(service: LocalService, choice: DesignChoice): Promise<unknown> {
   return 'storedId' in choice ? (await storedDesign(service, choice)).design : choice.content;
 }
 
 /** The stored designs that are this choice: the one with its id, or those stored with exactly a file's content. */
-export async function matchingDesignIds(service: RolloffService, choice: DesignChoice): Promise<number[]> {
+export async function matchingDesignIds(service: LocalService, choice: DesignChoice): Promise<number[]> {
   if ('storedId' in choice) return [(await storedDesign(service, choice)).id];
   const text = JSON.stringify(choice.content);
   const ids = (await service.listDesigns()).filter((d) => JSON.stringify(d.design) === text).map((d) => d.id);
@@ -42,7 +42,7 @@ export async function matchingDesignIds(service: RolloffService, choice: DesignC
   return ids;
 }
 
-async function storedDesign(service: RolloffService, choice: { storedId: number; where: string }) {
+async function storedDesign(service: LocalService, choice: { storedId: number; where: string }) {
   const found = (await service.listDesigns()).find((d) => d.id === choice.storedId);
   if (!found) throw new ValidationError(choice.where, `no stored design ${choice.storedId}`, 'See rolloff design list for the ids, or give a design file.');
   return found;

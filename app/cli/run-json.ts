@@ -4,9 +4,9 @@
  * names its quantity and unit (app/record/README.md) rather than the
  * service's internal columns.
  */
-import type { RolloffService } from '../service/service';
+import type { LocalService } from '../service/local-service';
 
-export async function runRecordJson(service: Pick<RolloffService, 'exportRecord'>, runId: number): Promise<string> {
+export async function runRecordJson(service: Pick<LocalService, 'exportRecord'>, runId: number): Promise<string> {
   return `${(await service.exportRecord([runId], 'json')).content.trimEnd()}\n`;
 }
 

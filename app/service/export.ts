@@ -1,14 +1,17 @@
 /** exportRecord: the run detail (or comparison) handed to the record module (app/record). */
 import { buildComparisonRecord, buildNoiseRunRecord, buildRunRecord, renderRecord, type RecordDcFit } from '../record';
-import type { ExportedRecord, RecordFormat, RunDetail } from '../contract/contract';
-import type { RolloffService } from './service';
+import type { ExportedRecord, RecordFormat, RunDetail, ServiceApi } from '../contract/contract';
+import type { RolloffStore } from '../store';
 import { inputResistor, logStageIdeal, type DiodePart } from '../circuit';
 import { designOf } from '../read-model/stored-design';
 import { formatEngineering, formatPrecision, logGrid } from '../units';
 import { ValidationError } from '../errors';
 
-/** What an export reads: the service, or a read-only store behind the same three members (`rolloff export`). */
-export type RecordSource = Pick<RolloffService, 'store' | 'getRun' | 'getNoiseRun' | 'compareRuns'>;
+/**
+ * What an export reads: the run history's details and the store's builds and designs behind them — the
+ * service's own history, or a read-only store behind the same three calls (`rolloff export`).
+ */
+export type RecordSource = Pick<ServiceApi, 'getRun' | 'getNoiseRun' | 'compareRuns'> & { store: Pick<RolloffStore, 'getBuild' | 'getDesign' | 'getRun'> };
 
 export async function exportRecordFor(service: RecordSource, runIds: number[], format: RecordFormat, reference: number | 'theory'): Promise<ExportedRecord> {
   const store = service.store;

@@ -2,6 +2,7 @@ import { databaseUrlScheme, openStore, type RolloffStore, type StoreOpenOptions 
 import { OutboxStore } from '../store/outbox/outbox-store';
 import { outboxPathFor } from '../store/outbox/outbox-path';
 import { RolloffService, type RolloffServiceOptions } from './service';
+import type { LocalService } from './local-service';
 
 /**
  * The service over the store the --db value names: a SQLite file path, or a
@@ -19,4 +20,9 @@ export async function openServiceAt(databaseLocation: string, options: RolloffSe
     await store.close();
     throw error;
   }
+}
+
+/** The same service as the CLI holds it: the contract and the in-process calls of LocalService, never the store behind it. */
+export async function openLocalServiceAt(databaseLocation: string, options: RolloffServiceOptions = {}): Promise<LocalService> {
+  return openServiceAt(databaseLocation, options);
 }

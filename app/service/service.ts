@@ -16,7 +16,7 @@ import { listPorts } from '../scpi/ports';
 import type {
   NoisePlanSummary, NoiseRequest, NoiseRunDetail,
   BenchIdentity, BenchStatus, BuildRecord, Comparison, ConnectRequest, ProfileCheckReport, ProfileCheckRequest, DesignRecord, ExportedRecord, InstrumentInfo, InstrumentRole,
-  PortListing, ProfileSummary, RecordFormat, ResumeRequest, RolloffClient, ServiceApi, RunDetail, RunFilter, RunStatus, RunSummary, ServiceEventName,
+  PortListing, ProfileSummary, RecordFormat, ResumeRequest, RolloffClient, RunDetail, RunFilter, RunStatus, RunSummary, ServiceEventName,
   ServiceEvents, SweepPlanSummary, SweepRequest, TemplateInfo,
 } from '../contract/contract';
 import { ServiceEventBus } from '../contract/event-bus';
@@ -31,12 +31,15 @@ import { Designs } from './designs';
 import { runSchedule, type ScheduleInput, type ScheduleReport } from './schedules';
 import { STALE_AFTER_MS, thisProcessClaimant } from './run-ownership';
 import type { RolloffServiceOptions } from './service-options';
+import type { LocalService } from './local-service';
 
 export type { RolloffServiceOptions } from './service-options';
+export type { LocalService } from './local-service';
 export type { ScheduleReport } from './schedules';
 
-export class RolloffService implements ServiceApi {
-  readonly store: RolloffStore;
+export class RolloffService implements LocalService {
+  /** Only the service reaches the store: hosts go through the contract (LocalService), so no write skips its checks. */
+  private readonly store: RolloffStore;
   readonly events = new ServiceEventBus();
   /** This bench's name (--bench, ROLLOFF_BENCH or the host name). */
   readonly benchName: string;

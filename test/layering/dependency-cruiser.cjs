@@ -108,6 +108,13 @@ module.exports = {
       to: { path: HOSTS },
     },
     {
+      name: 'cli-holds-the-service-by-its-interface',
+      comment: 'The CLI holds the service as LocalService (app/service/local-service.ts: the contract and the in-process calls), never the class, so no command reaches the store behind the service.',
+      severity: 'error',
+      from: { path: '^app/cli/' },
+      to: { path: '^app/service/service[.]ts$' },
+    },
+    {
       name: 'renderer-imports-pure-contract-and-uplot',
       comment: 'The window imports only its own files, pure folders and the contract, and the packages uplot and valibot.',
       severity: 'error',

@@ -115,6 +115,7 @@ describe('dependency rules (dependency-cruiser)', () => {
       'app/contract/uses-service.ts': "import { run } from '../service/service';\nexport const r = run;\n",
       'app/service/service.ts': "import { host } from '../host/web-host';\nexport const run = host;\n",
       'app/host/web-host.ts': 'export const host = 1;\n',
+      'app/cli/uses-service-class.ts': "import { run } from '../service/service';\nexport const r = run;\n",
       'renderer/view.ts': "import { open } from '../app/store/store';\nexport const v = open;\n",
       'app/analysis/a.ts': "import { b } from '../sim/b';\nexport const a = b;\n",
       'app/sim/b.ts': "import { c } from '../bench/c';\nexport const b = c;\n",
@@ -143,6 +144,7 @@ describe('dependency rules (dependency-cruiser)', () => {
       expect(report).toMatch(/pure-imports-only-pure-code: app\/circuit\/uses-store\.ts → app\/store\/store\.ts/);
       expect(report).toMatch(/contract-imports-nothing-above-it: app\/contract\/uses-service\.ts → app\/service\/service\.ts/);
       expect(report).toMatch(/only-hosts-import-hosts: app\/service\/service\.ts → app\/host\/web-host\.ts/);
+      expect(report).toMatch(/cli-holds-the-service-by-its-interface: app\/cli\/uses-service-class\.ts → app\/service\/service\.ts/);
       expect(report).toMatch(/renderer-imports-pure-contract-and-uplot: renderer\/view\.ts → app\/store\/store\.ts/);
       expect(report).toMatch(/read-model-imports-below-the-service: app\/read-model\/uses-service\.ts → app\/service\/service\.ts/);
       expect(report).toMatch(/read-model-imports-no-node: app\/read-model\/uses-service\.ts → (node:)?fs/);

@@ -1,7 +1,7 @@
 import type { CommandSpec } from '../args';
 import { optionString, requirePositional } from '../args';
 import { ValidationError } from '../../errors';
-import { openServiceAt } from '../../service/open-service';
+import { openLocalServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { actualValuesFrom } from '../sweep/sweep-options';
 import { DATABASE_OPTION } from '../common-options';
@@ -22,7 +22,7 @@ export const buildCommand: CommandSpec = {
   ],
   async run(parsed) {
     const action = requirePositional(parsed, 0, 'ACTION (add or list)');
-    const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
+    const service = await openLocalServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
     try {
       if (action === 'add') {
         const designText = optionString(parsed, 'design');

@@ -1,7 +1,7 @@
 import type { CommandSpec } from '../args';
 import { optionString } from '../args';
 import { SAFETY_NOTICE_SHORT } from '../../contract/safety';
-import { openServiceAt } from '../../service/open-service';
+import { openLocalServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { makeDesignFromTemplate } from '../../circuit';
 import { DATABASE_OPTION, TIME_SCALE_OPTION, timeScaleFrom } from '../common-options';
@@ -36,7 +36,7 @@ and two builds of it in the database, sweeps both and prints how they differ. Al
   async run(parsed) {
     process.stderr.write(`${SAFETY_NOTICE_SHORT}\n\n`);
     const out = (line = '') => process.stdout.write(line + '\n');
-    const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')), {
+    const service = await openLocalServiceAt(resolveDatabasePath(optionString(parsed, 'db')), {
       maxStimulusVpp: 1,
       simulatedBench: { timeScale: timeScaleFrom(parsed), noiseVrms: 2e-4, latencyS: 0.001 },
     });

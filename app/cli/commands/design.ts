@@ -1,7 +1,7 @@
 import type { CommandSpec } from '../args';
 import { optionString, requirePositional } from '../args';
 import { ValidationError } from '../../errors';
-import { openServiceAt } from '../../service/open-service';
+import { openLocalServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../common-options';
 import { readDesignFile } from '../design-option';
@@ -14,7 +14,7 @@ export const designCommand: CommandSpec = {
   details: 'Make a design file with rolloff template, edit its part values, then store it with rolloff design add.',
   async run(parsed) {
     const action = requirePositional(parsed, 0, 'ACTION (add or list)');
-    const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
+    const service = await openLocalServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
     try {
       if (action === 'add') {
         const path = requirePositional(parsed, 1, 'FILE.json');

@@ -4,7 +4,7 @@ import { optionFlag, optionNumber, optionString } from '../args';
 import { ValidationError } from '../../errors';
 import { RUN_STATUSES as STATUSES, type RunStatus } from '../../contract/contract';
 import { checkBenchName } from '../../bench/bench-name';
-import { openServiceAt } from '../../service/open-service';
+import { openLocalServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../common-options';
 import { runTable } from '../sweep/summary-text';
@@ -27,7 +27,7 @@ export const runsCommand: CommandSpec = {
     if (status !== undefined && !STATUSES.includes(status as RunStatus)) throw new ValidationError('--status', `"${status}" is not a run status`, `Use one of: ${STATUSES.join(', ')}.`);
     const benchOption = optionString(parsed, 'bench');
     const bench = benchOption === undefined ? undefined : checkBenchName(benchOption, '--bench');
-    const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
+    const service = await openLocalServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
     try {
       const runs = await service.listRuns({ search: optionString(parsed, 'search'), status: status as RunStatus | undefined, buildId: optionNumber(parsed, 'build'), bench });
       if (optionFlag(parsed, 'json')) {

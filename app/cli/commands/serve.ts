@@ -11,10 +11,10 @@ import { startWebHost } from '../../host/web-host';
 import { openHostedService } from '../../host/hosted-service';
 import { SETTINGS } from '../../contract/vocabulary';
 import { benchDescription, limitSourceText } from '../../contract/bench-text';
-import type { RolloffService } from '../../service/service';
+import type { LocalService } from '../../service/local-service';
 
 /** Which limit the window starts with, and whose it is. */
-function maximumStimulusLine(service: RolloffService): string {
+function maximumStimulusLine(service: LocalService): string {
   const limit = service.stimulusLimit;
   if (limit) return `${SETTINGS.maxStimulus.label}: ${limitSourceText(limit)}.`;
   return `${SETTINGS.maxStimulus.label}: not set for ${service.bench ? benchDescription(service.bench) : 'this bench'}; set it on the Bench view.`;

@@ -4,7 +4,7 @@ import { formatEngineering, formatPrecision } from '../../units';
 import { formatMeasured } from '../../record/record-formatting';
 import { ValidationError } from '../../errors';
 import { flagWords } from '../../contract/vocabulary';
-import { openServiceAt } from '../../service/open-service';
+import { openLocalServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 import { DATABASE_OPTION } from '../common-options';
 import { runDetailText, timeText } from '../sweep/summary-text';
@@ -25,7 +25,7 @@ export const showCommand: CommandSpec = {
   ],
   async run(parsed) {
     const runId = parseRunId(requirePositional(parsed, 0, 'RUN'));
-    const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
+    const service = await openLocalServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
     try {
       if (optionFlag(parsed, 'json')) {
         process.stdout.write(await runRecordJson(service, runId));

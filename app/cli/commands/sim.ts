@@ -9,7 +9,7 @@ import { formatEngineering } from '../../units';
 import { optionFlag, optionNumber, optionString, type CommandSpec } from '../args';
 import { DATABASE_OPTION, SIMULATED_BENCH_OPTIONS, simulatedBenchFrom } from '../common-options';
 import { chooseDesign, designContent, designOption, DESIGN_PLACEHOLDER } from '../design-option';
-import { openServiceAt } from '../../service/open-service';
+import { openLocalServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 
 export const simCommand: CommandSpec = {
@@ -99,7 +99,7 @@ Examples:
 
 /** A stored design's JSON, read from --db and the store closed again: the simulated bench needs only the circuit. */
 async function storedDesignContent(database: string | undefined, choice: ReturnType<typeof chooseDesign>): Promise<unknown> {
-  const service = await openServiceAt(resolveDatabasePath(database));
+  const service = await openLocalServiceAt(resolveDatabasePath(database));
   try {
     return await designContent(service, choice);
   } finally {

@@ -37,7 +37,7 @@ import { optionFlag, optionNumber, optionString, requirePositional, type Command
 import { FIGURE_NAMES, OUTPUT_COLUMN, POINT_COLUMNS } from '../../contract/vocabulary';
 import { DATABASE_OPTION } from '../common-options';
 import { chooseDesign, designContent, DESIGN_PLACEHOLDER } from '../design-option';
-import { openServiceAt } from '../../service/open-service';
+import { openLocalServiceAt } from '../../service/open-service';
 import { resolveDatabasePath } from '../../store';
 
 const AC = SWEEP_RANGE_DEFAULTS.ac;
@@ -365,7 +365,7 @@ function alignColumns(rows: string[][]): string {
 async function readDesign(text: string, parsed: ParsedArgs): Promise<Design> {
   const choice = chooseDesign(text, 'design');
   if ('content' in choice) return parseDesign(choice.content, choice.path);
-  const service = await openServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
+  const service = await openLocalServiceAt(resolveDatabasePath(optionString(parsed, 'db')));
   try {
     return parseDesign(await designContent(service, choice), `stored design ${choice.storedId}`);
   } finally {

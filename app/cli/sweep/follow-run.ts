@@ -3,11 +3,11 @@
  * bar on stderr, warnings and errors of the run as they happen, and Ctrl-C
  * pauses the run (resumable) instead of killing it mid-point.
  */
-import type { RolloffService } from '../../service/service';
+import type { LocalService } from '../../service/local-service';
 import type { RunStatus } from '../../contract/contract';
 import { terminalProgressBar } from './progress-bar';
 
-export async function followRun(service: RolloffService, runId: number): Promise<RunStatus> {
+export async function followRun(service: LocalService, runId: number): Promise<RunStatus> {
   const bar = terminalProgressBar();
   const offProgress = service.on('progress', (p) => {
     if (p.runId === runId) bar.update(p);

@@ -6,8 +6,8 @@
 import type { OptionSpec, ParsedArgs } from '../../cli/args';
 import { optionFlag, optionNumber, optionString } from '../../cli/args';
 import { ValidationError } from '../../errors';
-import type { RolloffService } from '../../service/service';
-import { openServiceAt } from '../../service/open-service';
+import type { LocalService } from '../../service/local-service';
+import { openLocalServiceAt } from '../../service/open-service';
 import { SweepRequestSchema, type ConnectRequest, type SweepRequest, type VerdictLimits } from '../../contract/contract';
 import { checkValue } from '../../contract/check-call';
 import { resolveDatabasePath } from '../../store';
@@ -22,7 +22,7 @@ import { SETTINGS } from '../../contract/vocabulary';
 import { benchDescription, limitReuseText } from '../../contract/bench-text';
 
 /** "reusing the limit of 2 Vpp set on … for bench "lab-3"" on stderr, when the limit in force was saved earlier. */
-export function reportReusedLimit(service: RolloffService): void {
+export function reportReusedLimit(service: LocalService): void {
   const limit = service.stimulusLimit;
   if (limit?.reused) process.stderr.write(`${limitReuseText(limit)}\n`);
 }
@@ -76,9 +76,9 @@ export const BUILD_OPTIONS: OptionSpec[] = [
  * instruments), so its stored maximum stimulus applies at once; else (resume)
  * the run decides.
  */
-export async function openService(parsed: ParsedArgs, overrides: { timeScale?: number; latencyS?: number; benchFromOptions?: boolean } = {}): Promise<RolloffService> {
+export async function openService(parsed: ParsedArgs, overrides: { timeScale?: number; latencyS?: number; benchFromOptions?: boolean } = {}): Promise<LocalService> {
   const simulated = simulatedBenchFrom(parsed);
-  return openServiceAt(resolveDatabasePath(optionString(parsed, 'db')), {
+  return openLocalServiceAt(resolveDatabasePath(optionString(parsed, 'db')), {
     maxStimulusVpp: maxStimulusFrom(parsed),
     ...(overrides.benchFromOptions === false ? {} : { startOn: optionFlag(parsed, 'simulated') ? 'simulated bench' : 'real instruments' }),
     giveUpAfterS: optionNumber(parsed, 'give-up') ?? 120,
@@ -103,7 +103,7 @@ export function actualValuesFrom(parsed: ParsedArgs): Record<string, number> {
  * The sweep a command (sweep, schedule) asks for, with its bench connected. Everything that can be
  * checked is checked before a design or build is stored.
  */
-export async function prepareSweep(service: RolloffService, parsed: ParsedArgs): Promise<{ buildId: number; request: SweepRequest }> {
+export async function prepareSweep(service: LocalService, parsed: ParsedArgs): Promise<{ buildId: number; request: SweepRequest }> {
   try {
     requestFrom(parsed, 0);
     checkBenchOptions(service, parsed);
@@ -147,7 +147,7 @@ export function namedForTheCommandLine(error: unknown): unknown {
  * The build to measure: --build ID, or a new build of --design ID|FILE. `checkUnsaved` refuses a design and
  * measured values the run could not take, before anything is stored.
  */
-export async function resolveBuildId(service: RolloffService, parsed: ParsedArgs, checkUnsaved: (design: unknown, actualValues: Record<string, number>) => void): Promise<number> {
+export async function resolveBuildId(service: LocalService, parsed: ParsedArgs, checkUnsaved: (design: unknown, actualValues: Record<string, number>) => void): Promise<number> {
   const buildId = optionNumber(parsed, 'build');
   const designText = optionString(parsed, 'design');
   if (buildId !== undefined && designText !== undefined) throw new ValidationError('--build/--design', 'give one, not both');
@@ -163,7 +163,7 @@ export async function resolveBuildId(service: RolloffService, parsed: ParsedArgs
 }
 
 /** Refuses a run that could not start (no ceiling, no instruments) before anything is stored. */
-export function checkBenchOptions(service: RolloffService, parsed: ParsedArgs): void {
+export function checkBenchOptions(service: LocalService, parsed: ParsedArgs): void {
   if (service.maxStimulus === undefined) {
     const bench = service.bench ? benchDescription(service.bench) : 'this bench';
     throw new ValidationError(
@@ -178,7 +178,7 @@ export function checkBenchOptions(service: RolloffService, parsed: ParsedArgs): 
 }
 
 /** Connects what the options name: the simulated bench of the build, or the given addresses. */
-export async function connectBench(service: RolloffService, parsed: ParsedArgs, buildId: number): Promise<void> {
+export async function connectBench(service: LocalService, parsed: ParsedArgs, buildId: number): Promise<void> {
   if (optionFlag(parsed, 'simulated')) {
     await service.startSimulatedBenchForBuild(buildId);
     return;

@@ -7,6 +7,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { join } from 'node:path';
 import { openServiceAt } from '../../../app/service/open-service';
 import { makeDesignFromTemplate } from '../../../app/circuit/templates';
+import { SqliteStore } from '../../../app/store';
 import { sweepRequest, tempFolder } from './helpers';
 
 describe('schedules', () => {
@@ -23,7 +24,13 @@ describe('schedules', () => {
       const startedAt: number[] = [];
       const report = await service.runSchedule({ request: sweepRequest(buildId, { from: 100, to: 10e3, pointsPerDecade: 3, refine: false }), everyMinutes: 1, count: 3 }, (_run, _index, slotS) => startedAt.push(slotS));
       expect(report.runs.map((r) => r.status)).toEqual(['done', 'done', 'done']);
-      for (const run of report.runs) expect((await service.store.getRun(run.runId)).scheduleId).toBe(report.scheduleId);
+      // Read back from the file itself (a second, read-only connection): the service keeps its store to itself.
+      const stored = SqliteStore.open(join(folder.path, 'sched.sqlite'), { readonly: true });
+      try {
+        for (const run of report.runs) expect((await stored.getRun(run.runId)).scheduleId).toBe(report.scheduleId);
+      } finally {
+        await stored.close();
+      }
       // Slots one interval (60 bench seconds) apart: not early (beyond timer rounding); late only by timer slack. CI runs this
       // beside Chromium on two cores, so allow up to ~0.8 s of wall time (50 bench seconds) — still far from a wrong unit
       // (seconds for minutes) or a doubled interval.
