@@ -139,13 +139,31 @@ export function checkRunFilter(filter: RunFilter): CheckedRunFilter {
   return { status, buildId, search, bench, limit };
 }
 
-export function checkPoint(point: NewPoint, where: string): void {
-  if (!Number.isInteger(point.step) || point.step < 0) throw new ValidationError(`${where}.step`, `${point.step} is not a whole number ≥ 0`);
-  requireFinite(point.stimulus, `${where}.stimulus`);
-  requireFinite(point.amplitudeVpp, `${where}.amplitudeVpp`);
-  if (!Number.isInteger(point.flags) || point.flags < 0) throw new ValidationError(`${where}.flags`, `${point.flags} is not a flag set`);
+/** A point's first problem as both stores refuse it (the field, what is wrong, a hint), or undefined when it is fine. */
+function pointProblem(point: NewPoint): { field: string; message: string; hint?: string } | undefined {
+  if (!Number.isInteger(point.step) || point.step < 0) return { field: 'step', message: `${point.step} is not a whole number ≥ 0` };
+  if (typeof point.stimulus !== 'number' || !Number.isFinite(point.stimulus)) return { field: 'stimulus', message: `${point.stimulus} is not a finite number` };
+  if (typeof point.amplitudeVpp !== 'number' || !Number.isFinite(point.amplitudeVpp)) return { field: 'amplitudeVpp', message: `${point.amplitudeVpp} is not a finite number` };
+  if (!Number.isInteger(point.flags) || point.flags < 0) return { field: 'flags', message: `${point.flags} is not a flag set` };
   if (point.measuredAt !== undefined && !Number.isFinite(Date.parse(point.measuredAt))) {
-    throw new ValidationError(`${where}.measuredAt`, `"${point.measuredAt}" is not a date and time`, 'Use ISO 8601, e.g. 2026-12-01T16:45:00.000Z.');
+    return { field: 'measuredAt', message: `"${point.measuredAt}" is not a date and time`, hint: 'Use ISO 8601, e.g. 2026-12-01T16:45:00.000Z.' };
+  }
+  return undefined;
+}
+
+export function checkPoint(point: NewPoint, where: string): void {
+  const problem = pointProblem(point);
+  if (problem) throw new ValidationError(`${where}.${problem.field}`, problem.message, problem.hint);
+}
+
+/**
+ * Every point of a list, refused as `where[index].field`. The path is made only for the point refused:
+ * a bulk insert of a million points builds no million strings (it cost about a tenth of the insert).
+ */
+export function checkPoints(points: readonly NewPoint[], where: string): void {
+  for (let index = 0; index < points.length; index++) {
+    const problem = pointProblem(points[index]);
+    if (problem) throw new ValidationError(`${where}[${index}].${problem.field}`, problem.message, problem.hint);
   }
 }
 
@@ -302,7 +320,7 @@ export function checkRunImports(runs: readonly RunImport[]): void {
     checkUids([run.uid]);
     checkRunKind(run);
     checkRunStatus(run.status);
-    points.forEach((point, index) => checkPoint(point, `runs[${r}].points[${index}]`));
+    checkPoints(points, `runs[${r}].points`);
     noiseRecords?.step.forEach((_, index) => checkNoiseRecord(noiseRecordAt(noiseRecords, index), `runs[${r}].noiseRecords[${index}]`));
   });
 }

@@ -43,6 +43,7 @@ import {
   checkNoiseRecord,
   noiseRecordAt,
   checkPoint,
+  checkPoints,
   checkRunFilter,
   checkRunStatus,
   checkSchedule,
@@ -712,7 +713,7 @@ export class SqliteStore implements RolloffStore {
   async insertPoints(runId: number, points: readonly NewPoint[]): Promise<void> {
     this.requireWritable();
     requireId(runId, 'runId');
-    points.forEach((point, index) => checkPoint(point, `points[${index}]`));
+    checkPoints(points, 'points');
     this.guard(() => this.insertPointsTransaction([{ runId, points }]));
   }
 
@@ -720,7 +721,7 @@ export class SqliteStore implements RolloffStore {
     this.requireWritable();
     batches.forEach(({ runId, points }, b) => {
       requireId(runId, `batches[${b}].runId`);
-      points.forEach((point, index) => checkPoint(point, `batches[${b}].points[${index}]`));
+      checkPoints(points, `batches[${b}].points`);
     });
     this.guard(() => this.insertPointsTransaction(batches));
   }

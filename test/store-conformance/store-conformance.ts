@@ -132,6 +132,13 @@ export const STORE_CONFORMANCE_CHECKS: readonly ConformanceCheck[] = [
       await expect(store.insertPoint(run.id, point(0, { flags: 1.5 }))).rejects.toThrow(ValidationError);
       await expect(store.insertPoint(run.id, point(0, { measuredAt: 'yesterday' }))).rejects.toThrow(/point.measuredAt/);
       await expect(store.insertPoint(999, point(0))).rejects.toThrow(RecordNotFoundError);
+      // In a list, the point refused is named by its place, and nothing of the list is stored.
+      await expect(store.insertPoints(run.id, [point(0), point(1), point(2, { amplitudeVpp: Number.POSITIVE_INFINITY })])).rejects.toThrow(/^points\[2\]\.amplitudeVpp: Infinity is not a finite number/);
+      await expect(store.insertPointsOfRuns([
+        { runId: run.id, points: [point(0)] },
+        { runId: run.id, points: [point(1), point(2, { step: 2.5 })] },
+      ])).rejects.toThrow(/^batches\[1\]\.points\[1\]\.step: 2\.5 is not a whole number/);
+      await expect(store.insertPointsOfRuns([{ runId: run.id, points: [point(0, { measuredAt: 'soon' })] }])).rejects.toThrow(/^batches\[0\]\.points\[0\]\.measuredAt: "soon" is not a date and time/);
       await expect(store.loadPoints(999)).rejects.toThrow(/run 999 does not exist/);
       await expect(store.nextStep(999)).rejects.toThrow(RecordNotFoundError);
       await expect(store.nextStep(0)).rejects.toThrow(/runId/);

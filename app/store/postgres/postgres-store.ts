@@ -33,6 +33,7 @@ import {
   checkNoiseRecord,
   noiseRecordAt,
   checkPoint,
+  checkPoints,
   checkRunFilter,
   checkRunStatus,
   checkSchedule,
@@ -773,7 +774,7 @@ export class PostgresStore implements RolloffStore {
 
   async insertPoints(runId: number, points: readonly NewPoint[]): Promise<void> {
     requireId(runId, 'runId');
-    points.forEach((point, index) => checkPoint(point, `points[${index}]`));
+    checkPoints(points, 'points');
     await this.insertPointsOfRuns([{ runId, points }]);
   }
 
@@ -781,7 +782,7 @@ export class PostgresStore implements RolloffStore {
     this.requireWritable();
     batches.forEach(({ runId, points }, b) => {
       requireId(runId, `batches[${b}].runId`);
-      points.forEach((point, index) => checkPoint(point, `batches[${b}].points[${index}]`));
+      checkPoints(points, `batches[${b}].points`);
     });
     await this.transaction(async (client) => {
       for (const batch of batches) {
