@@ -1,15 +1,18 @@
 #!/usr/bin/env node
 // Runs every benchmark in this folder one after another (never in parallel: they
 // time themselves and would disturb each other) and lets each print its figures.
-import { readdirSync } from 'node:fs';
+import { readdirSync, readFileSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const only = process.argv.slice(2);
+// A benchmark says how it is run ("Run: npx tsx test/bench/NAME.ts"); the shared modules, the stand-in
+// instruments a benchmark starts and the comparison that needs another tree do not, and are left out.
+const isBenchmark = (name) => readFileSync(join(here, name), 'utf8').includes(`Run: npx tsx test/bench/${name}`);
 const scripts = readdirSync(here)
-  .filter((name) => name.endsWith('.ts'))
+  .filter((name) => name.endsWith('.ts') && isBenchmark(name))
   .filter((name) => only.length === 0 || only.some((word) => name.includes(word)))
   .sort();
 
