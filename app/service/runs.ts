@@ -159,7 +159,7 @@ export class Runs {
       if (run.status === 'running' || run.status === 'paused' || run.status === 'planned') {
         await this.asOwnerOf(runId, 'stopped', async (asOwner) => {
           await store.updateRunStatus(runId, 'stopped', undefined, asOwner);
-          await this.logRunEvent(runId, 'info', 'stopped by the user');
+          await this.logRunEvent(runId, 'info', 'stopped by the user', asOwner);
         });
         await finalizeRun(this.launchContext, runId); // released already: a stopped run has no driver
       }
@@ -235,7 +235,7 @@ export class Runs {
       benchName: this.context.benchName,
     }, claimant, this.context.staleAfterMs);
     try {
-      for (const warning of plan.warnings) await this.logRunEvent(run.id, 'warning', `plan: ${warning}`);
+      for (const warning of plan.warnings) await this.logRunEvent(run.id, 'warning', `plan: ${warning}`, { asOwner: claimant.ownerId });
       await launchRun(this.launchContext, run.id);
     } catch (error) {
       // Not started after all: give the bench back now rather than when the heartbeat goes stale.
@@ -263,8 +263,9 @@ export class Runs {
       if (run.simulated) await bench.simulateBuild(run.buildId, runBench);
       else await bench.connectRealInstruments(instruments, run.bench);
       bench.requireInstrumentsFor(run.request);
-      if (takenOverFromBench !== undefined) await this.logRunEvent(runId, 'warning', takeOverEventText(takenOverFromBench, benchName));
-      await this.logRunEvent(runId, 'info', `resumed (maximum stimulus ${maxStimulusVpp} Vpp of ${benchDescription(runBench)})`);
+      const asOwner = { asOwner: claimant.ownerId };
+      if (takenOverFromBench !== undefined) await this.logRunEvent(runId, 'warning', takeOverEventText(takenOverFromBench, benchName), asOwner);
+      await this.logRunEvent(runId, 'info', `resumed (maximum stimulus ${maxStimulusVpp} Vpp of ${benchDescription(runBench)})`, asOwner);
       const continuesAtStep = await launchRun(this.launchContext, runId);
       return { run: await this.context.history.summary(runId), continuesAtStep };
     } catch (error) {
@@ -290,8 +291,13 @@ export class Runs {
     }
   }
 
-  private async logRunEvent(runId: number, level: RunEvent['level'], message: string): Promise<void> {
-    const event = await this.context.store.appendEvent(runId, level, message);
+  /**
+   * Stores and announces one line of a run's log. Given `condition`, the line is written only while this
+   * process still owns the run (as its points are): a bench that lost the run to a take-over adds nothing.
+   * Without it (the analysis after a run, which runs once the run is released), it is written as it is.
+   */
+  private async logRunEvent(runId: number, level: RunEvent['level'], message: string, condition?: OwnerCondition): Promise<void> {
+    const event = await this.context.store.appendEvent(runId, level, message, undefined, condition);
     this.context.emit('runEvent', { runId, ...event });
   }
 }
