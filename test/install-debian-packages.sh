@@ -33,7 +33,10 @@ SUDO=""
 export DEBIAN_FRONTEND=noninteractive
 $SUDO apt-get update -qq
 for package in "${missing_optional[@]}"; do
-  if apt-cache policy "$package" | grep -Eq '^\s*Candidate: [^(]'; then
+  # Read the whole answer first: with pipefail, grep -q quitting at its match can leave apt-cache
+  # killed by SIGPIPE, and the pipeline would then say "not there" for a package that is.
+  policy=$(apt-cache policy "$package")
+  if grep -Eq '^\s*Candidate: [^(]' <<<"$policy"; then
     missing+=("$package")
   else
     echo "optional test package $package is not in this distribution; the tests that use it will skip"
