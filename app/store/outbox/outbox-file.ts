@@ -18,6 +18,17 @@ import type { RunFigures, RunStatus, Verdict } from '../../contract/contract';
 import { StoreDamagedError, StoreUnavailableError } from '../errors';
 import type { NewNoiseRecord, NewPoint } from '../types';
 
+/** How long a busy first open is tried again (OutboxFile.open). */
+const OPEN_RETRY_MS = 10_000;
+
+/** A first open that found the file locked: tried again, and refused only if it stays locked. */
+class OutboxBusyError extends Error {}
+
+/** Waits without giving up the thread (the open is synchronous, as better-sqlite3 is). */
+function sleepMs(ms: number): void {
+  Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, ms);
+}
+
 /** A noise record as kept: its spectrum as plain numbers (JSON keeps a double exactly), its time fixed when it was made. */
 export type KeptNoiseRecord = Omit<NewNoiseRecord, 'psdV2PerHz' | 'measuredAt'> & { measuredAt: string; psdV2PerHz?: number[] };
 
@@ -109,8 +120,30 @@ export class OutboxFile {
     };
   }
 
-  /** Opens (creating) the outbox at path; a file that is not an outbox of this format is refused untouched. */
+  /**
+   * Opens (creating) the outbox at path; a file that is not an outbox of this format is refused untouched.
+   * Several bench processes may open the same fresh file at one moment. SQLite's busy timeout covers most of
+   * the waiting, but not every step of a first open (turning a new file to WAL among other openers can answer
+   * "database is locked" at once; seen about once in a few hundred opens on a loaded two-core machine), so a
+   * busy open is tried again, from the start, for up to OPEN_RETRY_MS. The open is safe to repeat: it looks
+   * and creates under the write lock, in one transaction.
+   */
   static open(path: string): OutboxFile {
+    const giveUpAtMs = Date.now() + OPEN_RETRY_MS;
+    for (let attempt = 1; ; attempt++) {
+      try {
+        return OutboxFile.openOnce(path);
+      } catch (error) {
+        if (!(error instanceof OutboxBusyError)) throw error;
+        if (Date.now() >= giveUpAtMs) {
+          throw new StoreUnavailableError(path, `the outbox stayed locked by another process for ${OPEN_RETRY_MS / 1000} s`, 'Another Rolloff process of this bench is using it; close it, or set ROLLOFF_OUTBOX_DIR to another folder.');
+        }
+        sleepMs(Math.min(10 * attempt, 100) * (0.5 + Math.random())); // spread out, so the openers do not meet again
+      }
+    }
+  }
+
+  private static openOnce(path: string): OutboxFile {
     mkdirSync(dirname(path), { recursive: true });
     let db: Database.Database;
     try {
@@ -138,6 +171,7 @@ export class OutboxFile {
     } catch (error) {
       db.close();
       if (error instanceof StoreDamagedError) throw error;
+      if (error instanceof Database.SqliteError && error.code.startsWith('SQLITE_BUSY')) throw new OutboxBusyError(error.message);
       throw new StoreDamagedError(path, (error as Error).message);
     }
   }

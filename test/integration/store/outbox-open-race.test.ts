@@ -9,6 +9,7 @@ import { spawn } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
+import { OutboxFile } from '../../../app/store/outbox/outbox-file';
 
 const ROOT = resolve(__dirname, '../../..');
 const OPENERS = 8;
@@ -42,4 +43,27 @@ describe('one outbox file opened by several processes at once', () => {
       expect(results.map((r) => r.code)).toEqual(Array(OPENERS).fill(0));
     }
   }, 120_000);
+
+  it('an outbox locked for longer than the busy timeout (5 s) is opened once the lock is gone', async () => {
+    const path = join(folder, 'outbox-held.sqlite');
+    OutboxFile.open(path).close();
+    // Another process holds the write lock for 6.5 s: past SQLite's busy timeout, within the open's 10 s of retries.
+    const holder = spawn(process.execPath, ['--input-type=module', '-e', `
+      import Database from ${JSON.stringify(join(ROOT, 'node_modules/better-sqlite3/lib/index.js'))};
+      const db = new Database(${JSON.stringify(path)});
+      db.exec('BEGIN EXCLUSIVE');
+      console.log('held');
+      setTimeout(() => { db.exec('COMMIT'); db.close(); }, 6500);
+    `], { cwd: ROOT });
+    await new Promise<void>((held, failed) => {
+      holder.stdout.once('data', () => held());
+      holder.once('exit', (code) => failed(new Error(`the lock holder exited (${code}) before it held the lock`)));
+    });
+    const startedMs = Date.now();
+    const outbox = OutboxFile.open(path);
+    const waitedMs = Date.now() - startedMs;
+    outbox.close();
+    expect(waitedMs).toBeGreaterThan(5000); // it did wait past one busy timeout, rather than finding the file free
+    expect(waitedMs).toBeLessThan(10_000);
+  }, 30_000);
 });
