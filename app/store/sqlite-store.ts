@@ -221,6 +221,9 @@ export class SqliteStore implements RolloffStore {
       throw new StoreUnavailableError(path, `cannot be opened: ${(error as Error).message}`, 'Check that the folder exists and you may write to it.');
     }
     try {
+      // Before the first read: a fresh file is in rollback mode until migrated, and a read while another
+      // process migrates it would otherwise be answered "database is locked" at once instead of waiting.
+      db.pragma('busy_timeout = 5000');
       // Reads only until the file is known to be sound and not newer than us.
       // One statement, one snapshot: another process may be migrating this file right now.
       const { fileVersion, tableCount } = db
@@ -237,7 +240,6 @@ export class SqliteStore implements RolloffStore {
         throw new StoreVersionError(path, fileVersion, knownVersion, writerAppVersion(db), SOFTWARE_VERSION);
       }
       db.pragma('foreign_keys = ON');
-      db.pragma('busy_timeout = 5000');
       db.pragma('cache_size = -32768'); // 32 MiB: bulk imports stay in memory until commit
       if (!readonly && fileVersion === 0 && tableCount === 0) {
         // Only possible before the first table exists; 16 KiB pages cut bulk-insert CPU by about a fifth against 4 KiB (measured on this schema, 1M points).
