@@ -3,11 +3,16 @@
  * Electron preload bridge and the headless web host both carry exactly these
  * methods and events, so the renderer never knows which one it talks to.
  *
- * Schema-first: what a caller sends (the arguments of every method) is a
- * valibot schema here, and its TypeScript type is inferred from it, so the
- * type and the check at every boundary are one text (check-call.ts applies
- * them; field-schemas.ts says why valibot). What the service sends back is
- * typed below and produced by our own code, so it is not checked again.
+ * Schema-first: what a caller sends (the arguments of every method) and what
+ * the service sends back (what every method resolves to, every event) are
+ * valibot schemas, and their TypeScript types are inferred from them, so the
+ * type and the check at every boundary are one text. The hosts check calls
+ * with API_ARGUMENTS (check-call.ts); the window checks replies and events
+ * with API_RESULTS and SERVICE_EVENT_SCHEMAS (check-reply.ts). Why valibot:
+ * field-schemas.ts. The replies' schemas are in files of their own by
+ * concern (bench-results.ts, design-results.ts, run-results.ts,
+ * run-figures.ts, noise.ts, store-choice.ts, event-schemas.ts) and re-exported
+ * here; a run's detail, which echoes its request, is here.
  *
  * Pure: imports only valibot (no node:*, Electron or DOM). Data crossing the
  * boundary is plain JSON; numeric series are arrays of numbers in columnar
@@ -24,6 +29,8 @@ import {
   fieldRule,
   fields,
   finiteNumber,
+  maxStimulusRecorded,
+  maxStimulusSetByService,
   numberRecord,
   oneOf,
   optional,
@@ -38,132 +45,39 @@ import {
   withDefault,
   withHint,
 } from './field-schemas';
-import type { ServiceEventName, ServiceEvents } from './events';
-import { StoreLocationSchema, type StoreInUse } from './store-choice';
-import { NoiseRequestSchema, type NoiseFigures, type NoisePlanSummary, type NoiseRequest, type NoiseRunDetail } from './noise';
-
-/** Every kind of run: a frequency sweep, a DC transfer sweep, or a noise run (generator off, the output's noise recorded). */
-export const RUN_KINDS = ['ac', 'dc', 'noise'] as const;
-export type RunKind = (typeof RUN_KINDS)[number];
-/** The kinds that sweep a stimulus (SweepRequest); a noise run has its own request (NoiseRequest). */
-export type SweepKind = Exclude<RunKind, 'noise'>;
-export const SWEEP_KINDS = RUN_KINDS.filter((kind): kind is SweepKind => kind !== 'noise');
-
-/** Every state a run can be in, in the order a run passes through them. */
-export const RUN_STATUSES = ['planned', 'running', 'paused', 'done', 'stopped', 'failed'] as const;
-export type RunStatus = (typeof RUN_STATUSES)[number];
-/** The states a run never leaves: nothing drives it any more (it has no owner, app/service/run-ownership.ts). */
-export const FINISHED_RUN_STATUSES: ReadonlySet<RunStatus> = new Set(['done', 'stopped', 'failed']);
-
-/** Every instrument role, in the order a bench lists them. */
-export const INSTRUMENT_ROLES = ['generator', 'meter', 'scope'] as const;
-export type InstrumentRole = (typeof INSTRUMENT_ROLES)[number];
-
-export const RunKindSchema = oneOf(RUN_KINDS);
-const SweepKindSchema = oneOf(SWEEP_KINDS);
-export const RunStatusSchema = oneOf(RUN_STATUSES);
-export const InstrumentRoleSchema = oneOf(INSTRUMENT_ROLES);
-
-export interface PortInfo {
-  path: string;
-  /** What is behind the path: a serial port, or a USBTMC instrument bound by the kernel's usbtmc driver. */
-  kind?: 'serial' | 'usbtmc';
-  /** The address to connect with, in a form the address parser accepts (a VISA resource string). */
-  address?: string;
-  manufacturer?: string;
-  serialNumber?: string;
-  vendorId?: string;
-  productId?: string;
-}
-
-/** The ports this machine offers; `incomplete` says in one line what the listing could not learn (no udev, an unreadable attribute). */
-export interface PortListing {
-  ports: PortInfo[];
-  incomplete?: string;
-}
-
-export interface InstrumentIdentity {
-  manufacturer: string;
-  model: string;
-  serialNumber: string;
-  firmware: string;
-}
-
-export interface InstrumentInfo {
-  role: InstrumentRole;
-  address: string;
-  profileId: string;
-  identity: InstrumentIdentity;
-  simulated: boolean;
-}
-
-export interface ProfileSummary {
-  id: string;
-  role: InstrumentRole;
-  description: string;
-  builtIn: boolean;
-}
-
-/** One operation of a profile check: what the instrument made of it. */
-export interface OperationCheck {
-  /** Operation name (e.g. "frequency", "init[1]", "channelOn (channel 2)"). */
-  operation: string;
-  /** The commands sent, as text. */
-  commands: string;
-  /** accepted; refused (with the instrument's SCPI error); timed-out; unparsed (reply not in the form the profile expects); not-checked (not sent). */
-  outcome: 'accepted' | 'refused' | 'timed-out' | 'unparsed' | 'not-checked';
-  errorCode?: number;
-  errorMessage?: string;
-  /** A short summary of a query's reply, or for an unparsed reply the bytes received. */
-  received?: string;
-  detail?: string;
-  /** Wall time of the exchange, milliseconds. */
-  replyMs: number;
-}
-
-export interface ProfileCheckReport {
-  address: string;
-  profileId: string;
-  role: InstrumentRole;
-  identity: InstrumentIdentity;
-  checks: OperationCheck[];
-}
-
-
-/**
- * A bench as its own settings (the maximum stimulus) are kept: its name
- * (--bench, ROLLOFF_BENCH or the host name) and whether it is the simulated
- * bench the service runs. The simulated bench of a machine and its real
- * instruments are two benches here, so a limit chosen for a simulation never
- * reaches a real circuit.
- */
-export interface BenchIdentity {
-  name: string;
-  simulated: boolean;
-}
-
-/** The maximum stimulus in force and where it came from. */
-export interface StimulusLimit {
-  maxStimulusVpp: number;
-  /** The bench it is the setting of. */
-  bench: BenchIdentity;
-  /** ISO 8601: when it was saved as that bench's setting. */
-  setAt: string;
-  /** Saved earlier and reused now (not given in this session). */
-  reused: boolean;
-}
-
-export interface BenchStatus {
-  instruments: InstrumentInfo[];
-  /** The user's ceiling on generator output, peak-to-peak volts; never exceeded. 0 while not set. */
-  maxStimulusVpp: number;
-  /** The bench whose settings are in force; absent until the service knows (no instrument connected, no simulated bench started yet). */
-  bench?: BenchIdentity;
-  /** Where maxStimulusVpp came from; absent while it is not set, or given but not saved yet (it is saved for the first bench used). */
-  maxStimulusLimit?: StimulusLimit;
-  /** Set when a simulated bench is running, with the addresses it answers on. */
-  simulatedBench?: { addresses: Partial<Record<InstrumentRole, string>>; designName: string };
-}
+import { InstrumentRoleSchema, RecordFormatSchema, RunStatusSchema, SweepKindSchema, type InstrumentRole, type RecordFormat, type SweepKind } from './enumerations';
+import { absentOr, listOf, nothing, nullOr, quantity, quantityColumn, replyObject, replyText, someOf } from './reply-fields';
+import {
+  BenchStatusSchema,
+  InstrumentInfoSchema,
+  PortListingSchema,
+  ProfileCheckReportSchema,
+  ProfileSummarySchema,
+  type BenchStatus,
+  type InstrumentInfo,
+  type PortListing,
+  type ProfileCheckReport,
+  type ProfileSummary,
+} from './bench-results';
+import { BuildRecordSchema, DesignFileReplySchema, DesignRecordSchema, TemplateInfoSchema, type BuildRecord, type DesignRecord, type TemplateInfo } from './design-results';
+import {
+  ExportedRecordSchema,
+  OfflinePeriodSchema,
+  PointColumnsSchema,
+  RUN_SUMMARY_FIELDS,
+  RunEventSchema,
+  RunSummarySchema,
+  SweepPlanSummarySchema,
+  TheoryColumnsSchema,
+  type ExportedRecord,
+  type RunSummary,
+  type SweepPlanSummary,
+} from './run-results';
+import { RUN_FIGURE_NAMES, RunFiguresSchema, VerdictSchema } from './run-figures';
+import type { ServiceEventName } from './events';
+import type { ServiceEvents } from './event-schemas';
+import { StoreInUseSchema, StoreLocationSchema, type StoreInUse } from './store-choice';
+import { NoisePlanSummarySchema, NoiseRequestSchema, NoiseRunDetailSchema, type NoisePlanSummary, type NoiseRequest, type NoiseRunDetail } from './noise';
 
 export const ConnectRequestSchema = fields({
   role: InstrumentRoleSchema,
@@ -177,37 +91,6 @@ export const ProfileCheckRequestSchema = fields({
   profileId: shortText(false),
 });
 export type ProfileCheckRequest = v.InferOutput<typeof ProfileCheckRequestSchema>;
-
-export interface TemplateInfo {
-  id: string;
-  title: string;
-  description: string;
-  /** Parameter names with defaults, in SI units (ohms, farads, hertz). */
-  parameters: Array<{ name: string; description: string; defaultValue: number; unit: string }>;
-}
-
-/** A design as stored: the JSON design file plus its store id. */
-export interface DesignRecord {
-  id: number;
-  /** Stable identity (a UUID made when the design was first stored), the same in every store it is copied to. */
-  uid: string;
-  name: string;
-  /** The design file's JSON (see app/circuit for its schema). */
-  design: unknown;
-  createdAt: string;
-}
-
-export interface BuildRecord {
-  id: number;
-  /** Stable identity (a UUID made when the build was first stored), the same in every store it is copied to. */
-  uid: string;
-  designId: number;
-  label: string;
-  notes: string;
-  /** Measured part values by part id, SI units. */
-  actualValues: Record<string, number>;
-  createdAt: string;
-}
 
 /** The new build a caller describes (createBuild). */
 export const NewBuildSchema = fields({
@@ -248,73 +131,72 @@ export const AmplitudeSchema = v.pipe(
 
 const SPACINGS = ['log', 'linear'] as const;
 
-export const SweepRequestSchema = fields(
-  {
-    buildId: storeId,
-    kind: SweepKindSchema,
-    /** AC: frequency limits in Hz; DC: input level limits in volts. */
-    from: finiteNumber,
-    to: finiteNumber,
-    /** Log spacing: points per decade. */
-    pointsPerDecade: wholeNumber(1, LIMITS.pointsPerDecade),
-    spacing: oneOf(SPACINGS),
-    /** Linear spacing: how many points from `from` to `to`. Runs stored without it had as many as the log grid would. */
-    points: optional(wholeNumber(2, LIMITS.count)),
-    amplitude: AmplitudeSchema,
-    measurement: oneOf(['scope', 'meter'] as const),
-    minCycles: wholeNumber(1, LIMITS.count),
-    averages: wholeNumber(1, LIMITS.count),
-    refine: trueOrFalse,
-    operator: withDefault(shortText(true), ''),
-    notes: withDefault(text(LIMITS.textChars, true), ''),
-    /** Optional pass/fail limits. */
-    limits: optional(VerdictLimitsSchema),
-    /**
-     * Through-calibration (meter runs): the stage is bypassed and the generator
-     * measured directly; the result is stored as the bench's calibration and
-     * applied to later meter runs.
-     */
-    through: optional(trueOrFalse),
-    /**
-     * The maximum stimulus in force when the run was made (Vpp). The ceiling is
-     * the bench's setting: the service fills it in and records it, and a
-     * caller may not pass its own.
-     */
-    maxStimulusVpp: optional(
-      v.custom<number>(
-        () => false,
-        withHint('is set by the service from the bench setting, not by the caller', 'Set the maximum stimulus on the Bench view (setMaxStimulus).'),
-      ),
-    ),
-  },
-  [
-    // The range is checked before the other fields, as a reader scans a request.
-    fieldFirst('kind', SweepKindSchema),
-    fieldFirst('from', finiteNumber),
-    fieldFirst('to', finiteNumber),
-    fieldRule<{ kind: SweepKind; from: number; to: number }>(({ kind, from, to }) => {
-      if (kind === 'ac') {
-        if (from <= 0) return { key: 'from', message: `must be a frequency above 0 Hz, got ${from}` };
-        if (to <= from) return { key: 'to', message: withHint(`must be above the start frequency (${from} Hz), got ${to}`, 'Sweeps run from low to high frequency.') };
-      } else if (from === to) {
-        return { key: 'to', message: withHint('must differ from the start level', 'A DC transfer sweep needs a range of input levels.') };
-      }
-      return undefined;
-    }),
-    fieldFirst('spacing', oneOf(SPACINGS)),
-    fieldRule<{ kind: SweepKind; from: number; to: number; spacing: string }>(({ kind, from, to, spacing }) =>
-      kind === 'dc' && spacing === 'log' && (from <= 0 || to <= 0)
-        ? { key: 'from', message: withHint('log-spaced input levels must be above 0 V', 'Use linear spacing for ranges that cross zero.') }
-        : undefined,
-    ),
-    fieldRule<{ spacing: string; points?: number }>(({ spacing, points }) =>
-      spacing === 'log' && points !== undefined
-        ? { key: 'points', message: withHint('applies to linear spacing only', 'A log sweep takes pointsPerDecade.') }
-        : undefined,
-    ),
-  ],
-);
+const SWEEP_REQUEST_FIELDS = {
+  buildId: storeId,
+  kind: SweepKindSchema,
+  /** AC: frequency limits in Hz; DC: input level limits in volts. */
+  from: finiteNumber,
+  to: finiteNumber,
+  /** Log spacing: points per decade. */
+  pointsPerDecade: wholeNumber(1, LIMITS.pointsPerDecade),
+  spacing: oneOf(SPACINGS),
+  /** Linear spacing: how many points from `from` to `to`. Runs stored without it had as many as the log grid would. */
+  points: optional(wholeNumber(2, LIMITS.count)),
+  amplitude: AmplitudeSchema,
+  measurement: oneOf(['scope', 'meter'] as const),
+  minCycles: wholeNumber(1, LIMITS.count),
+  averages: wholeNumber(1, LIMITS.count),
+  refine: trueOrFalse,
+  operator: withDefault(shortText(true), ''),
+  notes: withDefault(text(LIMITS.textChars, true), ''),
+  /** Optional pass/fail limits. */
+  limits: optional(VerdictLimitsSchema),
+  /**
+   * Through-calibration (meter runs): the stage is bypassed and the generator
+   * measured directly; the result is stored as the bench's calibration and
+   * applied to later meter runs.
+   */
+  through: optional(trueOrFalse),
+  /**
+   * The maximum stimulus in force when the run was made (Vpp). The ceiling is
+   * the bench's setting: the service fills it in and records it, and a
+   * caller may not pass its own.
+   */
+  maxStimulusVpp: maxStimulusSetByService,
+};
+
+const SWEEP_REQUEST_RULES = [
+  // The range is checked before the other fields, as a reader scans a request.
+  fieldFirst('kind', SweepKindSchema),
+  fieldFirst('from', finiteNumber),
+  fieldFirst('to', finiteNumber),
+  fieldRule<{ kind: SweepKind; from: number; to: number }>(({ kind, from, to }) => {
+    if (kind === 'ac') {
+      if (from <= 0) return { key: 'from', message: `must be a frequency above 0 Hz, got ${from}` };
+      if (to <= from) return { key: 'to', message: withHint(`must be above the start frequency (${from} Hz), got ${to}`, 'Sweeps run from low to high frequency.') };
+    } else if (from === to) {
+      return { key: 'to', message: withHint('must differ from the start level', 'A DC transfer sweep needs a range of input levels.') };
+    }
+    return undefined;
+  }),
+  fieldFirst('spacing', oneOf(SPACINGS)),
+  fieldRule<{ kind: SweepKind; from: number; to: number; spacing: string }>(({ kind, from, to, spacing }) =>
+    kind === 'dc' && spacing === 'log' && (from <= 0 || to <= 0)
+      ? { key: 'from', message: withHint('log-spaced input levels must be above 0 V', 'Use linear spacing for ranges that cross zero.') }
+      : undefined,
+  ),
+  fieldRule<{ spacing: string; points?: number }>(({ spacing, points }) =>
+    spacing === 'log' && points !== undefined
+      ? { key: 'points', message: withHint('applies to linear spacing only', 'A log sweep takes pointsPerDecade.') }
+      : undefined,
+  ),
+];
+
+export const SweepRequestSchema = fields(SWEEP_REQUEST_FIELDS, SWEEP_REQUEST_RULES);
 export type SweepRequest = v.InferOutput<typeof SweepRequestSchema>;
+
+/** A sweep's request as the service stored it and sends it back (RunDetail): as it was taken, with the maximum stimulus it recorded. */
+export const SweepRequestAsRunSchema = fields({ ...SWEEP_REQUEST_FIELDS, maxStimulusVpp: maxStimulusRecorded }, SWEEP_REQUEST_RULES);
 
 /** How a run is resumed (resumeRun). */
 export const ResumeRequestSchema = fields({
@@ -362,38 +244,7 @@ export const RunIdListSchema = v.pipe(
 /** What a comparison is measured against: one of the runs, or the theory. */
 export const ComparisonReferenceSchema = v.lazy((input) => (input === 'theory' ? v.literal('theory') : storeId));
 
-export interface PlannedStep {
-  index: number;
-  /** Hz for AC, volts for DC. */
-  stimulus: number;
-  amplitudeVpp: number;
-  settleS: number;
-  integrateS: number;
-}
-
-export interface SweepPlanSummary {
-  steps: PlannedStep[];
-  estimatedDurationS: number;
-  warnings: string[];
-}
-
-/** Columnar points of a run: index i of every array is one point. */
-export interface PointColumns {
-  step: number[];
-  /** Hz (AC) or input volts (DC). */
-  stimulus: number[];
-  amplitudeVpp: number[];
-  gainDb: number[];
-  gainUncertaintyDb: number[];
-  phaseDeg: number[];
-  phaseUncertaintyDeg: number[];
-  /** DC runs: output volts. */
-  outputV: number[];
-  /** Bit flags, see PointFlag. */
-  flags: number[];
-  measuredAt: string[];
-}
-
+/** The bits of a point's flags (PointColumns.flags). */
 export const PointFlag = {
   distorted: 1,
   overrange: 2,
@@ -404,148 +255,45 @@ export const PointFlag = {
   pastGainLimit: 64,
 } as const;
 
-export interface TheoryColumns {
-  frequencyHz: number[];
-  gainDb: number[];
-  phaseDeg: number[];
-  idealGainDb: number[];
-  idealPhaseDeg: number[];
-  bandLowDb?: number[];
-  bandHighDb?: number[];
-}
-
-export interface RunFigures {
-  passbandGainDb?: number;
-  minus3dbHz: number[];
-  rolloffDbPerDecade?: number;
-  gainLimitHz?: number;
-  gbwEstimateHz?: number;
-  gbwUncertaintyHz?: number;
-  maxDeviationDb?: number;
-  /** AC runs: peak of measured over ideal-op-amp gain above its low-frequency value, dB. */
-  closedLoopPeakingDb?: number;
-  /** Phase margin of the second-order loop with that peaking (an estimate), degrees. */
-  phaseMarginEstimateDeg?: number;
-  /** No peaking measured: the margin is at least phaseMarginEstimateDeg. */
-  phaseMarginEstimateIsLowerBound?: boolean;
-  /** Computed for the build's circuit (loop gain of the output op-amp): phase margin, degrees, and closed-loop peaking, dB. */
-  theoryPhaseMarginDeg?: number;
-  theoryPeakingDb?: number;
-  /** Plain warnings of the computed theory for the build's circuit (e.g. a phase margin below 45°). */
-  theoryWarnings?: string[];
-  /** Noise runs: measured against computed over the band. */
-  noise?: NoiseFigures;
-  /** DC runs: fitted log-stage parameters with 95 % intervals. */
-  logFit?: { n: number; nCi: [number, number]; isA: number; isCi: [number, number]; rsOhm: number; rsCi: [number, number] };
-}
-
-export interface Verdict {
-  pass: boolean;
-  reasons: string[];
-}
-
-/** The process that drives a run, as the service sees it when it answers. */
-export interface RunOwner {
-  /** What drives it, for people: "rolloff (command line)", "rolloff serve", "the desktop window". */
-  label: string;
-  pid: number;
-  host: string;
-  /** ISO 8601: when it took the run, and its latest heartbeat. */
-  since: string;
-  heartbeatAt: string;
-  /** Whole seconds from the heartbeat to the moment the service answered, by the service's clock. */
-  heartbeatAgeS: number;
-  /** false when the heartbeat is stale or, on the service's host, the process is gone: nobody drives the run any more. */
-  live: boolean;
-}
-
-export interface RunSummary {
-  id: number;
-  /** Stable identity (a UUID made when the run was created), the same in every store it is copied to. */
-  uid: string;
-  buildId: number;
-  buildLabel: string;
-  designName: string;
-  kind: RunKind;
-  status: RunStatus;
-  startedAt: string | null;
-  endedAt: string | null;
-  pointCount: number;
-  plannedCount: number;
-  simulated: boolean;
-  /** The bench that drove the run; '' for runs stored before benches had names. */
-  benchName: string;
-  /** The process that has claimed the run (while it is driven, or left behind by one that died); null when none has. */
-  owner: RunOwner | null;
-}
-
-/** A time the bench driving a run could not reach its store and kept the points in its local outbox (ISO 8601 instants). */
-export interface OfflinePeriod {
-  from: string;
-  to: string;
-}
-
-export interface RunEvent {
-  at: string;
-  level: 'info' | 'warning' | 'error';
-  message: string;
-}
-
 /** A sweep run (AC or DC) with its points, theory and figures; a noise run's is NoiseRunDetail (getNoiseRun). */
-export interface RunDetail extends RunSummary {
-  kind: SweepKind;
-  request: SweepRequest;
-  bench: InstrumentInfo[];
-  softwareVersion: string;
-  points: PointColumns;
-  theory: TheoryColumns;
-  figures: RunFigures;
-  verdict: Verdict | null;
-  events: RunEvent[];
+export const RunDetailSchema = replyObject({
+  ...RUN_SUMMARY_FIELDS,
+  kind: SweepKindSchema,
+  request: SweepRequestAsRunSchema,
+  bench: listOf(InstrumentInfoSchema),
+  softwareVersion: replyText,
+  points: PointColumnsSchema,
+  theory: TheoryColumnsSchema,
+  figures: RunFiguresSchema,
+  verdict: nullOr(VerdictSchema),
+  events: listOf(RunEventSchema),
   /** When the bench could not reach the store during the run, oldest first; [] when it never lost it. */
-  offlinePeriods: OfflinePeriod[];
-  theoryGainLimitHz?: number;
-  theoryMinus3dbHz: number[];
-}
+  offlinePeriods: listOf(OfflinePeriodSchema),
+  theoryGainLimitHz: absentOr(quantity),
+  theoryMinus3dbHz: quantityColumn,
+});
+export type RunDetail = v.InferOutput<typeof RunDetailSchema>;
 
-export interface Comparison {
-  runs: RunDetail[];
-  referenceRunId: number | 'theory';
+export const ComparisonSchema = replyObject({
+  runs: listOf(RunDetailSchema),
+  referenceRunId: ComparisonReferenceSchema,
   /** Per run: stimulus and measured − reference, in dB. */
-  differences: Array<{ runId: number; stimulus: number[]; deltaDb: number[] }>;
-  figureTable: Array<{ runId: number; label: string; figures: RunFigures; deltas: Partial<Record<keyof RunFigures, number>>; verdict: Verdict | null }>;
-}
+  differences: listOf(replyObject({ runId: storeId, stimulus: quantityColumn, deltaDb: quantityColumn })),
+  figureTable: listOf(
+    replyObject({ runId: storeId, label: replyText, figures: RunFiguresSchema, deltas: someOf(RUN_FIGURE_NAMES, quantity), verdict: nullOr(VerdictSchema) }),
+  ),
+});
+export type Comparison = v.InferOutput<typeof ComparisonSchema>;
 
-export const RECORD_FORMATS = ['pdf', 'html', 'csv', 'json'] as const;
-export type RecordFormat = (typeof RECORD_FORMATS)[number];
-
-export interface ExportedRecord {
-  fileName: string;
-  mimeType: string;
-  /** Base64 for PDF, text otherwise. */
-  content: string;
-  encoding: 'base64' | 'utf8';
-}
-
-export interface RunProgress {
-  runId: number;
-  step: number;
-  total: number;
-  etaS: number;
-  status: RunStatus;
-}
-
-export interface TrafficLine {
-  at: string;
-  role: InstrumentRole | 'other';
-  direction: 'sent' | 'received';
-  text: string;
-}
-
-export type { ServiceEventName, ServiceEvents } from './events';
-export type { StoreInUse, DatabaseSource } from './store-choice';
+export * from './enumerations';
+export * from './bench-results';
+export * from './design-results';
+export * from './run-results';
+export * from './run-figures';
 export * from './noise';
-export { SERVICE_EVENT_NAMES } from './events';
+export { StoreInUseSchema, type StoreInUse, type DatabaseSource } from './store-choice';
+export { SERVICE_EVENT_NAMES, type ServiceEventName } from './events';
+export { SERVICE_EVENT_SCHEMAS, type ServiceEvents } from './event-schemas';
 
 /** Every method a window may call. Arguments are validated where they arrive. */
 export interface RolloffApi {
@@ -651,7 +399,46 @@ export const API_ARGUMENTS: { readonly [M in RolloffMethodName]: readonly Argume
   getRun: [required('runId', storeId)],
   getNoiseRun: [required('runId', storeId)],
   compareRuns: [required('runIds', RunIdListSchema), required('reference', ComparisonReferenceSchema)],
-  exportRecord: [required('runIds', RunIdListSchema), required('format', oneOf(RECORD_FORMATS))],
+  exportRecord: [required('runIds', RunIdListSchema), required('format', RecordFormatSchema)],
   storeInUse: [],
   chooseStore: [required('location', StoreLocationSchema)],
+};
+
+/**
+ * What every method resolves to, as schemas: the window checks each reply
+ * against its method's entry (check-reply.ts) before a view sees it. Its type
+ * requires one entry per method of RolloffApi, each of exactly the type the
+ * method declares, so a method added to the contract, or a type changed,
+ * cannot go unchecked.
+ */
+export const API_RESULTS: { readonly [M in RolloffMethodName]: v.GenericSchema<unknown, Awaited<ReturnType<RolloffApi[M]>>> } = {
+  listPorts: PortListingSchema,
+  listProfiles: listOf(ProfileSummarySchema),
+  benchStatus: BenchStatusSchema,
+  connect: InstrumentInfoSchema,
+  disconnect: nothing,
+  startSimulatedBench: BenchStatusSchema,
+  setMaxStimulus: BenchStatusSchema,
+  checkProfile: ProfileCheckReportSchema,
+  listTemplates: listOf(TemplateInfoSchema),
+  makeTemplate: DesignFileReplySchema,
+  saveDesign: DesignRecordSchema,
+  listDesigns: listOf(DesignRecordSchema),
+  createBuild: BuildRecordSchema,
+  listBuilds: listOf(BuildRecordSchema),
+  planSweep: SweepPlanSummarySchema,
+  startRun: RunSummarySchema,
+  pauseRun: RunSummarySchema,
+  resumeRun: RunSummarySchema,
+  stopRun: RunSummarySchema,
+  planNoiseRun: NoisePlanSummarySchema,
+  startNoiseRun: RunSummarySchema,
+  listRuns: listOf(RunSummarySchema),
+  getRunSummary: RunSummarySchema,
+  getRun: RunDetailSchema,
+  getNoiseRun: NoiseRunDetailSchema,
+  compareRuns: ComparisonSchema,
+  exportRecord: ExportedRecordSchema,
+  storeInUse: StoreInUseSchema,
+  chooseStore: StoreInUseSchema,
 };

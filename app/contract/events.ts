@@ -1,20 +1,12 @@
 /**
- * The events the service pushes to every connected window, apart from the
- * schemas so that the Electron preload (which passes on only these names)
- * bundles without the validation library.
+ * The names of the events the service pushes to every connected window. This
+ * file imports no valibot (its payloads' schemas and types are in
+ * event-schemas.ts, imported here for types only), so that the Electron
+ * preload, which passes on only these names, bundles without the validation
+ * library (test/unit/main/build.test.ts holds it to that).
  */
-import type { BenchStatus, RunEvent, RunProgress, TrafficLine } from './contract';
-
-/** Events pushed from the service to every connected window. */
-export interface ServiceEvents {
-  progress: RunProgress;
-  point: { runId: number; index: number; stimulus: number; gainDb: number; phaseDeg: number; outputV: number; flags: number; gainUncertaintyDb: number; phaseUncertaintyDeg: number };
-  runEvent: { runId: number } & RunEvent;
-  traffic: TrafficLine;
-  bench: BenchStatus;
-}
-
-export type ServiceEventName = keyof ServiceEvents;
+export type { ServiceEvents } from './event-schemas';
 
 /** Every event the service pushes to windows (the preload passes on only these). */
-export const SERVICE_EVENT_NAMES = ['progress', 'point', 'runEvent', 'traffic', 'bench'] as const satisfies readonly ServiceEventName[];
+export const SERVICE_EVENT_NAMES = ['progress', 'point', 'runEvent', 'traffic', 'bench'] as const;
+export type ServiceEventName = (typeof SERVICE_EVENT_NAMES)[number];

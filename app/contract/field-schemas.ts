@@ -162,10 +162,20 @@ export function fields<const E extends v.ObjectEntries>(entries: E, first: reado
         unknown !== undefined ? { key: unknown, message: withHint(`is not a known ${what}`, `Known ${what}s: ${known.join(', ')}.`) } : firstProblem(first, input, config as AnyConfig);
       if (problem) addIssue({ message: problem.message, path: [fieldPath(input, problem.key), ...(problem.path ?? [])] });
     }),
-    v.transform((input: Record<string, unknown>) => ({ ...Object.fromEntries(known.map((key) => [key, undefined])), ...input })),
+    withEveryKey(known),
     v.object(entries),
     v.transform((output) => dropAbsent(output) as Given<typeof output>),
   );
+}
+
+/**
+ * Gives an object every one of `keys`, undefined where it lacks one, so that a
+ * missing field is checked by its own schema ("must be text, got undefined")
+ * at its own path, rather than by valibot's generic message for a missing key.
+ */
+export function withEveryKey(keys: readonly string[]) {
+  const absent: Record<string, undefined> = Object.fromEntries(keys.map((key) => [key, undefined]));
+  return v.transform((input: Record<string, unknown>) => ({ ...absent, ...input }));
 }
 
 function firstProblem(steps: readonly FieldStep[], input: Record<string, unknown>, config: AnyConfig): FieldProblem | undefined {
@@ -279,3 +289,18 @@ export function required<S extends v.GenericSchema>(schema: S, missingMessage: s
 export function withDefault<S extends v.GenericSchema>(schema: S, value: v.InferOutput<S>) {
   return v.nullish(schema, value as never);
 }
+
+/**
+ * The maximum stimulus a run was made under (Vpp), a field of both requests
+ * (sweep and noise). It is the bench's setting: the service fills it in and
+ * records it, and a caller may not pass its own.
+ */
+export const maxStimulusSetByService = optional(
+  v.custom<number>(
+    () => false,
+    withHint('is set by the service from the bench setting, not by the caller', 'Set the maximum stimulus on the Bench view (setMaxStimulus).'),
+  ),
+);
+
+/** The same field in a run's request as the service sends it back: the limit it recorded. */
+export const maxStimulusRecorded = optional(positiveNumber('V peak-to-peak'));

@@ -8,14 +8,16 @@
  * itself (app/store/postgres/connection.ts).
  */
 import * as v from 'valibot';
-import { shortText, withHint } from './field-schemas';
+import { oneOf, shortText, withHint } from './field-schemas';
+import { absentOr, listOf, replyObject, replyText } from './reply-fields';
 
 /**
  * Where the store in use was named: --db, ROLLOFF_DB, the desktop window's
  * saved setting, nowhere (the default file), or in the window of a host that
  * keeps the choice until it stops (rolloff serve).
  */
-export type DatabaseSource = 'command line' | 'environment' | 'saved setting' | 'default' | 'chosen in the window';
+export const DATABASE_SOURCES = ['command line', 'environment', 'saved setting', 'default', 'chosen in the window'] as const;
+export type DatabaseSource = (typeof DATABASE_SOURCES)[number];
 
 /** scheme://user:password@… — the part between "//" and "@" holds a ":" (an empty password counts: it is refused too). */
 const PASSWORD_IN_ADDRESS = /^[a-z][a-z0-9+.-]*:\/\/[^/@?#]*:[^/@?#]*@/i;
@@ -33,18 +35,19 @@ export const StoreLocationSchema = v.pipe(
   v.check((location) => !hasPasswordInAddress(location), withHint('has a password in it, which is not accepted here (it would be shown and saved)', PASSWORD_HINT)),
 );
 
-export interface StoreInUse {
+export const StoreInUseSchema = replyObject({
   /** The file path, or the lab store's address without its password. */
-  location: string;
-  kind: 'sqlite file' | 'lab store';
-  source: DatabaseSource;
+  location: replyText,
+  kind: oneOf(['sqlite file', 'lab store'] as const),
+  source: oneOf(DATABASE_SOURCES),
   /**
    * What a choice made in the window does: `saved` for the next starts (the
    * desktop window's settings file, `settingsFile`), or `until restart`
    * (rolloff serve: the choice applies to that process until it stops).
    */
-  choiceKept: 'saved' | 'until restart';
-  settingsFile?: string;
+  choiceKept: oneOf(['saved', 'until restart'] as const),
+  settingsFile: absentOr(replyText),
   /** Things to know, one sentence each: the settings file could not be read, or --db/ROLLOFF_DB overrides the saved setting. */
-  notes: string[];
-}
+  notes: listOf(replyText),
+});
+export type StoreInUse = v.InferOutput<typeof StoreInUseSchema>;
