@@ -25,6 +25,14 @@ export class ValidationError extends UserError {
   }
 }
 
+/**
+ * What the host sent back to the window (a method's result, an event) did not
+ * have the contract's shape: the host and the window are of different
+ * versions, or the host is faulty. `where` names the method or event and the
+ * field.
+ */
+export class UnexpectedReplyError extends ValidationError {}
+
 export function isUserError(error: unknown): error is UserError {
   return error instanceof UserError;
 }
