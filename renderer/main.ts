@@ -21,9 +21,12 @@ import { AboutView } from './views/about-view';
 
 const state = new AppState();
 
+/** An event the host sent that did not fit the contract: said once in a notice, not passed to the views. */
+const reportRefusedEvent = (error: Error) => showError(error, 'An update from the Rolloff host was ignored');
+
 function chooseClient(): RolloffClient {
   const bridge = (window as unknown as { rolloff?: PreloadBridge }).rolloff;
-  if (bridge) return createBridgeClient(bridge);
+  if (bridge) return createBridgeClient(bridge, reportRefusedEvent);
   let everConnected = false;
   let lost = false;
   return createHttpClient(new URL('./', location.href), (connected) => {
@@ -38,7 +41,7 @@ function chooseClient(): RolloffClient {
       everConnected = true;
       lost = false;
     }
-  });
+  }, reportRefusedEvent);
 }
 
 const client = chooseClient();

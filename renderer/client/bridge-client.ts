@@ -5,7 +5,7 @@
  */
 import type { RolloffClient, ServiceEventName } from '../../app/contract/contract';
 import { errorFromWire, type WireError } from './remote-error';
-import { contractProxy } from './contract-proxy';
+import { contractProxy, type RefusedEventReporter } from './contract-proxy';
 
 /** What main/preload.ts exposes on window.rolloff. */
 export interface PreloadBridge {
@@ -13,11 +13,12 @@ export interface PreloadBridge {
   on(event: ServiceEventName, listener: (payload: unknown) => void): () => void;
 }
 
-export function createBridgeClient(bridge: PreloadBridge): RolloffClient {
+/** `reportRefusedEvent` hears an event whose payload did not fit the contract (contract-proxy.ts). */
+export function createBridgeClient(bridge: PreloadBridge, reportRefusedEvent?: RefusedEventReporter): RolloffClient {
   const call = async (method: string, args: unknown[]): Promise<unknown> => {
     const reply = await bridge.call(method, args);
     if (!reply.ok) throw errorFromWire(reply.error, `${method} failed.`);
     return reply.result;
   };
-  return contractProxy(call, (event, listener) => bridge.on(event, listener));
+  return contractProxy(call, (event, listener) => bridge.on(event, listener), reportRefusedEvent);
 }

@@ -6,10 +6,13 @@
 import type { RolloffClient, ServiceEventName, ServiceEvents } from '../../app/contract/contract';
 import { errorFromWire, type WireError } from './remote-error';
 import { EventHub } from './event-hub';
-import { contractProxy } from './contract-proxy';
+import { contractProxy, type RefusedEventReporter } from './contract-proxy';
 
-/** `onConnection` hears when the event socket drops and comes back (events sent meanwhile are lost: views re-read). */
-export function createHttpClient(base: URL, onConnection?: (connected: boolean) => void): RolloffClient {
+/**
+ * `onConnection` hears when the event socket drops and comes back (events sent meanwhile are lost: views re-read);
+ * `reportRefusedEvent` hears an event whose payload did not fit the contract (contract-proxy.ts).
+ */
+export function createHttpClient(base: URL, onConnection?: (connected: boolean) => void, reportRefusedEvent?: RefusedEventReporter): RolloffClient {
   const hub = new EventHub();
   if (onConnection) hub.onConnection(onConnection);
   connectEvents(base, hub);
@@ -29,7 +32,7 @@ export function createHttpClient(base: URL, onConnection?: (connected: boolean) 
     if (!response.ok) throw errorFromWire(body.error, `The host refused ${method} (HTTP ${response.status}).`);
     return body.result;
   };
-  return contractProxy(call, (event, listener) => hub.on(event, listener));
+  return contractProxy(call, (event, listener) => hub.on(event, listener), reportRefusedEvent);
 }
 
 function connectEvents(base: URL, hub: EventHub, retryMs = 500): void {
