@@ -36,4 +36,21 @@ describe('electron build', () => {
     const html = readFileSync(join(outDir, 'renderer/index.html'), 'utf8');
     expect(html).toMatch(/Content-Security-Policy" content="default-src 'self'/);
   });
+
+  it('bundles the preload without the validation library: it passes on event names only (app/contract/events.ts imports no valibot)', async () => {
+    const folder = join(mkdtempSync(join(tmpdir(), 'rolloff-preload-')), 'electron');
+    try {
+      await buildElectronShell(folder);
+      const preload = readFileSync(join(folder, 'preload.cjs'), 'utf8');
+      // esbuild names each bundled module in a comment ("// node_modules/valibot/dist/index.mjs").
+      expect(preload).toMatch(/\/\/ app\/contract\/events\.ts/);
+      expect(preload).not.toMatch(/valibot/);
+      expect(preload).toContain('"progress", "point", "runEvent", "traffic", "bench"');
+      const renderer = readFileSync(join(folder, 'renderer/app.js'), 'utf8');
+      // The window does check replies: its bundle carries the reply schemas' wording (app/contract/reply-fields.ts).
+      expect(renderer.includes('null where it has none'), 'the reply checks are missing from the renderer bundle').toBe(true);
+    } finally {
+      rmSync(join(folder, '..'), { recursive: true, force: true });
+    }
+  });
 });
