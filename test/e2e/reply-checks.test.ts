@@ -13,7 +13,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page, WebSocketRoute } from 'playwright-core';
 import { requireTool } from '../helpers/required-tool';
 import { callService, type ServeProcess } from './helpers/serve-process';
-import { startLowPassBench, type LowPassBench } from './helpers/low-pass-bench';
+import { startLowPassBench, sweepInWindow, type LowPassBench } from './helpers/low-pass-bench';
 import type { RunSummary } from '../../app/contract/contract';
 
 const IGNORED_UPDATE = 'An update from the Rolloff host was ignored';
@@ -46,14 +46,7 @@ describe.skipIf(!requireTool('chromium'))('the window checks the host\'s replies
   });
 
   it('a real sweep passes every check: it ends with no notice of an error and nothing in the console', async () => {
-    await page.keyboard.press('Alt+3');
-    await page.getByTestId('sweep-from').fill('300');
-    await page.getByTestId('sweep-to').fill('3k');
-    await page.getByTestId('sweep-ppd').fill('3');
-    await page.getByTestId('sweep-cycles').fill('3');
-    await expect.poll(() => page.getByTestId('sweep-estimate').textContent()).toMatch(/points, about/);
-    await page.getByTestId('sweep-start').click();
-    await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 90_000 }).toBe('done');
+    await sweepInWindow(page, { from: '300', to: '3k', pointsPerDecade: 3, minCycles: 3 });
     const [run] = await callService<RunSummary[]>(serve, 'listRuns', []);
     expect(run.pointCount).toBeGreaterThan(0);
     await expect.poll(() => page.getByTestId('sweep-progress').textContent(), { timeout: 10_000 }).toMatch(/\(done\)$/);

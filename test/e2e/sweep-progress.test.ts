@@ -15,7 +15,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { requireTool } from '../helpers/required-tool';
 import { callService, type ServeProcess } from './helpers/serve-process';
-import { startLowPassBench, type LowPassBench } from './helpers/low-pass-bench';
+import { startLowPassBench, sweepInWindow, type LowPassBench } from './helpers/low-pass-bench';
 import { PointFlag, type RunDetail, type RunSummary, type SweepPlanSummary, type SweepRequest } from '../../app/contract/contract';
 
 describe.skipIf(!requireTool('chromium'))('the Sweep view counts planned and refinement points, in Chromium against rolloff serve --simulated', () => {
@@ -41,14 +41,7 @@ describe.skipIf(!requireTool('chromium'))('the Sweep view counts planned and ref
   }
 
   it('says "planned + refinement" when a live sweep ends with refinement points, and again when the run is reopened', async () => {
-    await page.keyboard.press('Alt+3');
-    await page.getByTestId('sweep-from').fill('100');
-    await page.getByTestId('sweep-to').fill('20k');
-    await page.getByTestId('sweep-ppd').fill('5');
-    await page.getByTestId('sweep-cycles').fill('3');
-    await expect.poll(() => page.getByTestId('sweep-estimate').textContent()).toMatch(/points, about/);
-    await page.getByTestId('sweep-start').click();
-    await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 90_000 }).toBe('done');
+    await sweepInWindow(page, { from: '100', to: '20k', pointsPerDecade: 5, minCycles: 3 });
 
     const [summary] = await callService<RunSummary[]>(serve, 'listRuns', []);
     const run = await callService<RunDetail>(serve, 'getRun', [summary.id]);

@@ -5,6 +5,7 @@
  * of 100 Hz – 20 kHz with refinement on adds points around it. The window is
  * opened in Chromium with the safety notice read.
  */
+import { expect } from 'vitest';
 import type { Page } from 'playwright-core';
 import { makeDesignFromTemplate } from '../../../app/circuit';
 import { launchChromium } from './chromium';
@@ -16,6 +17,18 @@ export interface LowPassBench {
   browser: Awaited<ReturnType<typeof launchChromium>>;
   page: Page;
   stop(): Promise<void>;
+}
+
+/** Sweeps from the Sweep view as a user does (range, points per decade, cycles, Start) and waits until the run is done. */
+export async function sweepInWindow(page: Page, sweep: { from: string; to: string; pointsPerDecade: number; minCycles: number }): Promise<void> {
+  await page.keyboard.press('Alt+3');
+  await page.getByTestId('sweep-from').fill(sweep.from);
+  await page.getByTestId('sweep-to').fill(sweep.to);
+  await page.getByTestId('sweep-ppd').fill(String(sweep.pointsPerDecade));
+  await page.getByTestId('sweep-cycles').fill(String(sweep.minCycles));
+  await expect.poll(() => page.getByTestId('sweep-estimate').textContent()).toMatch(/points, about/);
+  await page.getByTestId('sweep-start').click();
+  await expect.poll(() => page.getByTestId('run-status').textContent(), { timeout: 90_000 }).toBe('done');
 }
 
 export async function startLowPassBench(buildLabel: string, options: { beforeWindowLoads?: (page: Page) => Promise<unknown> } = {}): Promise<LowPassBench> {
