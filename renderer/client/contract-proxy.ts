@@ -8,11 +8,12 @@
  * alike (app/contract/check-reply.ts): a result that does not fit its
  * method's schema rejects the call with an UnexpectedReplyError, which the
  * view shows as it shows any failed call; an event that does not fit is not
- * passed to the listeners and is reported instead, once per distinct problem
+ * passed to the listeners and is reported instead, once per event and field
  * (a faulty host would otherwise repeat it with every point).
  */
 import type { RolloffClient, RolloffMethodName, ServiceEventName } from '../../app/contract/contract';
 import { checkEvent, checkResult } from '../../app/contract/check-reply';
+import { UnexpectedReplyError } from '../../app/errors';
 
 /** Hears an event that was refused (the window shows it as a notice). */
 export type RefusedEventReporter = (error: Error) => void;
@@ -29,9 +30,10 @@ export function contractProxy(
       try {
         checked = checkEvent(event, payload);
       } catch (error) {
-        const problem = (error as Error).message;
-        if (!reported.has(problem)) {
-          reported.add(problem);
+        // Once per event and field: the value that arrived may differ each time, the problem does not.
+        const where = error instanceof UnexpectedReplyError ? error.where : String(error);
+        if (!reported.has(where)) {
+          reported.add(where);
           reportRefusedEvent(error as Error);
         }
         return;

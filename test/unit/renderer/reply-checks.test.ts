@@ -93,6 +93,7 @@ describe('the preload bridge client checks replies (planted bridge)', () => {
     const { heard, off } = listening(client);
     push('point', POINT_WITHOUT_RUN_ID);
     push('point', POINT_WITHOUT_RUN_ID);
+    push('point', { ...POINT_WITHOUT_RUN_ID, index: 4 });
     push('point', POINT);
     push('runEvent', { runId: 12, at: '2026-11-30T10:00:00.000Z', level: 'info', message: 'resumed' });
     off();
@@ -100,6 +101,15 @@ describe('the preload bridge client checks replies (planted bridge)', () => {
     expect(reported.map((error) => error.message)).toEqual(['point event.runId: must be a finite number, got undefined']);
     expect(reported[0]).toBeInstanceOf(UnexpectedReplyError);
     expect((reported[0] as UnexpectedReplyError).hint).toBe(REPLY_MISMATCH_HINT);
+  });
+
+  it('reports another field of the same event, once, even as its value changes from point to point', () => {
+    const before = reported.length;
+    const { heard, off } = listening(client);
+    for (const gainDb of ['-3.1', '-3.2', '-3.3']) push('point', { ...POINT, gainDb });
+    off();
+    expect(heard).toEqual([]);
+    expect(reported.slice(before).map((error) => error.message)).toEqual(['point event.gainDb: must be a number (null where it has none), got "-3.1"']);
   });
 });
 
