@@ -23,13 +23,18 @@ export function showInfo(message: string): void {
   push('info', message);
 }
 
-function push(kind: 'error' | 'info', message: string, hint?: string): void {
+/** Information that stays until dismissed: a change the user did not make here and must not miss. */
+export function showLastingInfo(message: string, hint?: string): void {
+  push('info', message, hint, { lasting: true });
+}
+
+function push(kind: 'error' | 'info', message: string, hint?: string, options: { lasting?: boolean } = {}): void {
   const close = h('button', { type: 'button', className: 'notice-close', 'aria-label': 'Dismiss message' }, '×');
   const notice = h('div', { className: `notice notice-${kind}`, role: kind === 'error' ? 'alert' : undefined }, h('p', {}, message), hint ? h('p', { className: 'hint' }, hint) : null, close);
   close.addEventListener('click', () => notice.remove());
   noticeRegion().appendChild(notice);
   // Information fades; errors stay until dismissed so nothing is missed.
-  if (kind === 'info') setTimeout(() => notice.remove(), 3_500);
+  if (kind === 'info' && !options.lasting) setTimeout(() => notice.remove(), 3_500);
   while (noticeRegion().childElementCount > 3) noticeRegion().firstElementChild?.remove();
 }
 

@@ -11,6 +11,7 @@ import type { ServiceEventName } from './events';
 import { count, quantity, replyObject } from './reply-fields';
 import { BenchStatusSchema, TrafficLineSchema } from './bench-results';
 import { RUN_EVENT_FIELDS, RunProgressSchema } from './run-results';
+import { StoreInUseSchema } from './store-choice';
 
 /** Events pushed from the service to every connected window: the schema of each one's payload. */
 export const SERVICE_EVENT_SCHEMAS = {
@@ -31,6 +32,8 @@ export const SERVICE_EVENT_SCHEMAS = {
   runEvent: replyObject({ runId: storeId, ...RUN_EVENT_FIELDS }),
   traffic: TrafficLineSchema,
   bench: BenchStatusSchema,
+  /** The host opened another store (chooseStore in some window): every window of that host works on it now. */
+  store: StoreInUseSchema,
 } satisfies { readonly [E in ServiceEventName]: v.GenericSchema };
 
 /** Events pushed from the service to every connected window. */

@@ -7,6 +7,6 @@
  */
 export type { ServiceEvents } from './event-schemas';
 
-/** Every event the service pushes to windows (the preload passes on only these). */
-export const SERVICE_EVENT_NAMES = ['progress', 'point', 'runEvent', 'traffic', 'bench'] as const;
+/** Every event pushed to windows (the preload passes on only these); 'store' comes from the host, the others from the service. */
+export const SERVICE_EVENT_NAMES = ['progress', 'point', 'runEvent', 'traffic', 'bench', 'store'] as const;
 export type ServiceEventName = (typeof SERVICE_EVENT_NAMES)[number];

@@ -5,7 +5,9 @@
  * The host answers the store choice itself (storeInUse, chooseStore): choosing
  * another store opens a new service on it and, once that worked, closes the
  * old one, so a store that cannot be opened leaves the window where it was.
- * The subscribers stay subscribed across the change.
+ * The subscribers stay subscribed across the change, and each is told of it
+ * (the 'store' event): a second window of the same host must not go on
+ * showing the old store's runs.
  */
 import { isAbsolute, resolve } from 'node:path';
 import type { RolloffService, RolloffServiceOptions } from '../service/service';
@@ -84,6 +86,8 @@ export async function openHostedService(databaseLocation: string, options: Rollo
       stopForwarding = forward(next);
       source = choice.settingsFile ? 'saved setting' : 'chosen in the window';
       await previous.close();
+      const now = storeInUse();
+      for (const listener of listeners) listener('store', now);
       if (choice.settingsFile) {
         try {
           saveDatabaseSetting(choice.settingsFile, chosen);

@@ -6,7 +6,8 @@
  * with the store's own words: an address of an unknown scheme (with the forms
  * accepted), an address with a password (never shown back, never printed by
  * the host), a change while a run of this bench is active (naming the run),
- * and a server that cannot be reached.
+ * and a server that cannot be reached. A second window of the same host,
+ * open meanwhile, follows the change and says so until dismissed.
  */
 import { afterAll, describe, expect, it } from 'vitest';
 import { mkdtempSync, rmSync } from 'node:fs';
@@ -53,6 +54,12 @@ describe.skipIf(!requireTool('chromium') || !postgresAvailable())('choosing the 
       await page.goto(serve.url);
       await page.getByTestId('safety-ok').click();
       const inUse = page.getByTestId('store-location-in-use');
+      // A second window of the same host, on the History view (the safety notice already confirmed in this browser).
+      const other = await browser.context.newPage();
+      await other.goto(serve.url);
+      const otherInUse = other.getByTestId('store-location-in-use');
+      await expect.poll(() => otherInUse.textContent(), { timeout: 10_000 }).toBe(serve.dbPath);
+      await other.keyboard.press('Alt+4');
       await expect.poll(() => inUse.textContent(), { timeout: 10_000 }).toBe(serve.dbPath);
       expect(await page.getByTestId('store-about').textContent()).toMatch(/Named by --db.*applies until this host \(rolloff serve\) stops/);
 
@@ -87,13 +94,27 @@ describe.skipIf(!requireTool('chromium') || !postgresAvailable())('choosing the 
       await page.getByTestId('store-use').click();
       await expect.poll(() => inUse.textContent(), { timeout: 20_000 }).toBe(labUrl);
       expect(await result.isVisible()).toBe(false);
-      expect(await page.getByTestId('store-about').textContent()).toMatch(/Chosen in this window/);
+      expect(await page.getByTestId('store-about').textContent()).toMatch(/Chosen in a window of this host/);
+      // This window said it once, briefly; it did not also take its own change for another window's.
+      expect(await page.locator('.notice-info').allTextContents()).not.toContainEqual(expect.stringMatching(/Another window/));
       await page.keyboard.press('Alt+4');
       const rows = page.getByTestId('history-runs').locator('tr[data-run]');
       await expect.poll(() => rows.count(), { timeout: 10_000 }).toBe(1);
       expect(await rows.first().textContent()).toContain('board on the lab store');
       expect(await rows.first().locator('td').nth(3).textContent()).toBe('lab bench 2');
       await page.screenshot({ path: join(ARTIFACTS, 'e2e-store-lab.png') });
+
+      // The other window: told, until dismissed, and its History lists the lab store's run, not the file's.
+      await expect.poll(() => otherInUse.textContent(), { timeout: 10_000 }).toBe(labUrl);
+      const told = other.locator('.notice-info', { hasText: 'Another window of this host opened a different store' });
+      await expect.poll(() => told.count(), { timeout: 10_000 }).toBe(1);
+      expect(await told.textContent()).toContain(labUrl);
+      const otherRows = other.getByTestId('history-runs').locator('tr[data-run]');
+      await expect.poll(() => otherRows.count(), { timeout: 10_000 }).toBe(1);
+      expect(await otherRows.first().textContent()).toContain('board on the lab store');
+      await other.waitForTimeout(4_000); // longer than an ordinary notice lasts (3.5 s)
+      expect(await told.count()).toBe(1);
+      await other.screenshot({ path: join(ARTIFACTS, 'e2e-store-other-window.png') });
     } finally {
       await browser.close();
     }
