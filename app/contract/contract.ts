@@ -344,7 +344,7 @@ export interface RolloffApi {
   chooseStore(location: string): Promise<StoreInUse>;
 }
 
-/** The methods the host answers itself rather than the service (app/host/switchable-service.ts). */
+/** The methods the host answers itself rather than the service (app/host/hosted-service.ts). */
 export type StoreChoiceMethodName = 'storeInUse' | 'chooseStore';
 /** What the service itself implements: the contract without the store choice. */
 export type ServiceApi = Omit<RolloffApi, StoreChoiceMethodName>;

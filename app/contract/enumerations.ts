@@ -1,6 +1,6 @@
 /**
- * The contract's closed lists: run kinds and states, instrument roles, record
- * formats. Each is one list, its type and its schema, shared by what callers
+ * The contract's closed lists: run kinds and states, instrument roles, the
+ * levels of a run's log lines, record formats. Each is one list, its type and its schema, shared by what callers
  * send and what the service sends back.
  */
 import { oneOf } from './field-schemas';
@@ -22,6 +22,10 @@ export const FINISHED_RUN_STATUSES: ReadonlySet<RunStatus> = new Set(['done', 's
 export const INSTRUMENT_ROLES = ['generator', 'meter', 'scope'] as const;
 export type InstrumentRole = (typeof INSTRUMENT_ROLES)[number];
 
+/** How serious a line of a run's log is. */
+export const RUN_EVENT_LEVELS = ['info', 'warning', 'error'] as const;
+export type RunEventLevel = (typeof RUN_EVENT_LEVELS)[number];
+
 export const RECORD_FORMATS = ['pdf', 'html', 'csv', 'json'] as const;
 export type RecordFormat = (typeof RECORD_FORMATS)[number];
 
@@ -30,3 +34,4 @@ export const SweepKindSchema = oneOf(SWEEP_KINDS);
 export const RunStatusSchema = oneOf(RUN_STATUSES);
 export const InstrumentRoleSchema = oneOf(INSTRUMENT_ROLES);
 export const RecordFormatSchema = oneOf(RECORD_FORMATS);
+export const RunEventLevelSchema = oneOf(RUN_EVENT_LEVELS);

@@ -7,7 +7,7 @@
  */
 import * as v from 'valibot';
 import { oneOf, storeId, trueOrFalse } from './field-schemas';
-import { RunKindSchema, RunStatusSchema } from './enumerations';
+import { RunEventLevelSchema, RunKindSchema, RunStatusSchema } from './enumerations';
 import { absentOr, count, countColumn, instant, listOf, nullOr, quantity, quantityColumn, replyObject, replyText, textColumn } from './reply-fields';
 
 export const PlannedStepSchema = replyObject({
@@ -104,7 +104,7 @@ export type OfflinePeriod = v.InferOutput<typeof OfflinePeriodSchema>;
 
 export const RUN_EVENT_FIELDS = {
   at: instant,
-  level: oneOf(['info', 'warning', 'error'] as const),
+  level: RunEventLevelSchema,
   message: replyText,
 };
 export const RunEventSchema = replyObject(RUN_EVENT_FIELDS);

@@ -4,13 +4,13 @@
  * same ValidationError naming the same field.
  */
 import { ValidationError } from '../errors';
-import { FINISHED_RUN_STATUSES, RUN_KINDS, RUN_STATUSES, type OfflinePeriod, type RunEvent, type RunKind, type RunStatus } from '../contract/contract';
+import { FINISHED_RUN_STATUSES, RUN_EVENT_LEVELS, RUN_KINDS, RUN_STATUSES, type OfflinePeriod, type RunEvent, type RunKind, type RunStatus } from '../contract/contract';
 import { checkBenchName } from '../bench/bench-name';
 import type { BenchSettingsInput, NewCalibration, NewNoiseRecord, NewPoint, NewRun, NewSchedule, OwnerCondition, RunClaimant, RunFilter, RunImport, StoredNoiseRecords } from './types';
 
 /** The one list of run states (and of the finished ones) lives in the contract; re-exported for the store's checks. */
 export { RUN_STATUSES, FINISHED_RUN_STATUSES as FINISHED_STATUSES };
-const EVENT_LEVELS: ReadonlySet<RunEvent['level']> = new Set(['info', 'warning', 'error']);
+const EVENT_LEVELS: ReadonlySet<string> = new Set(RUN_EVENT_LEVELS);
 export const DEFAULT_LIST_LIMIT = 200;
 
 export function requireId(value: number, where: string): number {
